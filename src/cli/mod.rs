@@ -1,0 +1,81 @@
+//! Argument parsing and dispatch to one module per verb. Every verb returns the
+//! text to print, or a one-line failure.
+
+mod check;
+mod convert;
+mod nearest;
+
+use std::ffi::OsString;
+
+use clap::{Parser, Subcommand};
+
+/// Why a run did not produce its output.
+pub enum Failure {
+    /// The command line itself is wrong.
+    Usage(String),
+    /// An input (a value, a file, a field of a document) is bad.
+    Input(String),
+    /// Help or version text was asked for: printed, and not an error.
+    Shown(String),
+}
+
+impl From<halfrail::FieldError> for Failure {
+    fn from(e: halfrail::FieldError) -> Self {
+        Failure::Input(e.to_string())
+    }
+}
+
+#[derive(Parser)]
+#[command(name = "halfrail", version, about = "Bench calculator for a CMOS inverter used as a linear amplifier")]
+struct Cli {
+    #[command(subcommand)]
+    verb: Verb,
+}
+
+#[derive(Subcommand)]
+enum Verb {
+    /// Convert a signal level (`-30 dBm`, `3.5 mVpp`) to another unit at an impedance.
+    Convert(convert::Args),
+    /// State a mismatch every way: return loss, |Γ|, VSWR and mismatch loss.
+    Mismatch(convert::MismatchArgs),
+    /// The nearest standard value in an E-series, and the values either side.
+    Nearest(nearest::Args),
+    /// Check that a design document is valid.
+    Check(check::Args),
+}
+
+/// Parses the command line and runs the verb.
+pub fn run(args: impl IntoIterator<Item = OsString>) -> Result<String, Failure> {
+    let cli = Cli::try_parse_from(args).map_err(|e| match e.kind() {
+        clap::error::ErrorKind::DisplayHelp
+        | clap::error::ErrorKind::DisplayVersion
+        | clap::error::ErrorKind::DisplayHelpOnMissingArgumentOrSubcommand => Failure::Shown(e.render().to_string()),
+        _ => Failure::Usage(first_line(&e.render().to_string())),
+    })?;
+    match cli.verb {
+        Verb::Convert(args) => convert::run(args),
+        Verb::Mismatch(args) => convert::run_mismatch(args),
+        Verb::Nearest(args) => nearest::run(args),
+        Verb::Check(args) => check::run(args),
+    }
+}
+
+/// Clap's message without its "error: " and the usage block after it.
+fn first_line(rendered: &str) -> String {
+    let line = rendered.lines().next().unwrap_or("bad arguments");
+    format!("{} (see `halfrail --help`)", line.trim_start_matches("error: "))
+}
+
+/// Reads a document file, naming the file when it cannot be read.
+pub(crate) fn read_document(path: &std::path::Path) -> Result<halfrail::doc::Document, Failure> {
+    let size = std::fs::metadata(path).map_err(|e| Failure::Input(format!("{}: cannot read: {e}", path.display())))?.len();
+    if size > halfrail::doc::MAX_DOCUMENT_BYTES as u64 {
+        return Err(Failure::Input(format!(
+            "document: {} is {size} bytes; at most {} are accepted",
+            path.display(),
+            halfrail::doc::MAX_DOCUMENT_BYTES
+        )));
+    }
+    let text = std::fs::read_to_string(path).map_err(|e| Failure::Input(format!("{}: cannot read: {e}", path.display())))?;
+    Ok(halfrail::doc::load(&text)?)
+}

@@ -1,0 +1,116 @@
+//! The design document (SPEC §4): the only module that knows JSON. It reads a
+//! document into typed sections, naming the path of any bad field, and gives the
+//! core's results their serialised form (`serialize`).
+
+mod quantity;
+mod sections;
+mod serialize;
+pub use serialize::{DocumentSummary, LookupReport, NearestReport, ValueInUnit};
+mod validate;
+
+pub use sections::{
+    Analysis, Bench, Block, BlockKind, Chain, CurvePoint, Document, GainKind, GainReading, Model, Part, Stage, Target,
+    Tolerance,
+};
+
+use crate::error::{FieldError, Result};
+
+/// The format version this build writes and reads.
+pub const FORMAT_VERSION: u32 = 1;
+
+/// The largest document accepted, in bytes.
+pub const MAX_DOCUMENT_BYTES: usize = 4 << 20;
+
+/// The message of a JSON error without serde_json's " at line L column C".
+fn reason_of(error: &serde_json::Error) -> String {
+    let text = error.to_string();
+    match text.rfind(" at line ") {
+        Some(at) if error.line() > 0 => text[..at].to_string(),
+        _ => text,
+    }
+}
+
+/// The path serde_path_to_error gives, in the document's own notation
+/// (`stage.r_fb_ohm`, `chain.blocks[2].loss_db`); `.` for the top level.
+fn path_of(path: &serde_path_to_error::Path) -> String {
+    let text = path.to_string();
+    if text == "." {
+        String::new()
+    } else {
+        text
+    }
+}
+
+/// Reads the format version first, so that a document from a newer build is
+/// refused for that reason rather than for a key this build does not know.
+fn check_version(text: &str) -> Result<()> {
+    #[derive(serde::Deserialize)]
+    struct Header {
+        halfrail: Option<serde_json::Value>,
+    }
+    let header: Header = serde_json::from_str(text)
+        .map_err(|e| FieldError::new("document", format!("is not a JSON object: {}", reason_of(&e))))?;
+    match header.halfrail {
+        None => Err(FieldError::new("halfrail", "missing; a design document starts with \"halfrail\": 1")),
+        Some(serde_json::Value::Number(n)) if n.as_u64() == Some(FORMAT_VERSION as u64) => Ok(()),
+        Some(serde_json::Value::Number(n)) if n.as_u64().is_some_and(|v| v > FORMAT_VERSION as u64) => {
+            Err(FieldError::new(
+                "halfrail",
+                format!("this document is format version {n}, newer than this build reads ({FORMAT_VERSION}); open it with a newer Halfrail"),
+            ))
+        }
+        Some(other) => Err(FieldError::new("halfrail", format!("must be {FORMAT_VERSION}, got {other}"))),
+    }
+}
+
+/// Reads and checks a design document.
+///
+/// ```
+/// let doc = halfrail::doc::load(r#"{"halfrail": 1, "stage": {"r_fb_ohm": "4k7"}}"#).unwrap();
+/// assert_eq!(doc.stage.unwrap().r_fb_ohm, Some(4700.0));
+///
+/// let bad = halfrail::doc::load(r#"{"halfrail": 1, "stage": {"r_fb_ohm": -3300}}"#).unwrap_err();
+/// assert_eq!(bad.to_string(), "stage.r_fb_ohm: must be > 0, got -3300");
+/// ```
+pub fn load(text: &str) -> Result<Document> {
+    if text.len() > MAX_DOCUMENT_BYTES {
+        return Err(FieldError::new(
+            "document",
+            format!("is {} bytes; at most {} are accepted", text.len(), MAX_DOCUMENT_BYTES),
+        ));
+    }
+    check_version(text)?;
+    let mut reader = serde_json::Deserializer::from_str(text);
+    let document: Document = serde_path_to_error::deserialize(&mut reader).map_err(|e| {
+        let field = path_of(e.path());
+        let reason = reason_of(e.inner());
+        FieldError::new(if field.is_empty() { "document".to_string() } else { field }, reason)
+    })?;
+    reader
+        .end()
+        .map_err(|e| FieldError::new("document", format!("has text after the JSON object: {}", reason_of(&e))))?;
+    validate::document(&document)?;
+    Ok(document)
+}
+
+/// The format version and the names of the sections a document has, in document order.
+pub fn summary(d: &Document) -> DocumentSummary {
+    let sections = [
+        ("part", d.part.is_some()),
+        ("stage", d.stage.is_some()),
+        ("analysis", d.analysis.is_some()),
+        ("target", d.target.is_some()),
+        ("tolerance", d.tolerance.is_some()),
+        ("bench", d.bench.is_some()),
+        ("chain", d.chain.is_some()),
+    ]
+    .into_iter()
+    .filter_map(|(name, present)| present.then_some(name))
+    .collect();
+    DocumentSummary { halfrail: d.halfrail, sections }
+}
+
+/// Writes any serialisable result as pretty JSON (the CLI's output form).
+pub fn to_json<T: serde::Serialize>(value: &T) -> String {
+    serde_json::to_string_pretty(value).expect("results hold only finite numbers and strings")
+}

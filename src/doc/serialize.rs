@@ -1,0 +1,147 @@
+//! The serialised form of the core's results: the key names of the CLI's JSON and
+//! of the objects the page receives. Core types stay free of serde; each mapping
+//! of key to field is written once, here.
+
+use serde::ser::{Serialize, SerializeStruct, Serializer};
+
+use crate::units::{Levels, Mismatch, Unit};
+use crate::values::{Nearest, RatioPair, Series};
+
+/// `impl Serialize` for a core struct as a map of `"key" => field`.
+macro_rules! serialize_fields {
+    ($ty:ty { $($key:literal => $field:ident),* $(,)? }) => {
+        impl Serialize for $ty {
+            fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+                let keys: &[&str] = &[$($key),*];
+                let mut out = serializer.serialize_struct(stringify!($ty), keys.len())?;
+                $(out.serialize_field($key, &self.$field)?;)*
+                out.end()
+            }
+        }
+    };
+}
+
+impl Serialize for Series {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        serializer.serialize_str(self.name())
+    }
+}
+
+serialize_fields!(Levels {
+    "impedance_ohm" => impedance_ohm,
+    "w" => watts,
+    "dbm" => dbm,
+    "dbw" => dbw,
+    "vrms" => vrms,
+    "vpk" => vpk,
+    "vpp" => vpp,
+    "dbv" => dbv,
+    "dbuv" => dbuv,
+});
+
+serialize_fields!(Nearest {
+    "series" => series,
+    "value" => value,
+    "nearest" => nearest,
+    "below" => below,
+    "above" => above,
+    "error_pct" => error_pct,
+});
+
+serialize_fields!(RatioPair {
+    "numerator" => numerator,
+    "denominator" => denominator,
+    "ratio" => ratio,
+    "error_pct" => error_pct,
+});
+
+serialize_fields!(Mismatch {
+    "gamma" => gamma,
+    "return_loss_db" => return_loss_db,
+    "vswr" => vswr,
+    "mismatch_loss_db" => mismatch_loss_db,
+});
+
+/// A single value and its unit: `{"value": 0.02, "unit": "Vpp"}` (`null` for none).
+pub struct ValueInUnit {
+    pub value: f64,
+    pub unit: Option<Unit>,
+}
+
+impl Serialize for ValueInUnit {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let mut out = serializer.serialize_struct("ValueInUnit", 2)?;
+        out.serialize_field("value", &self.value)?;
+        out.serialize_field("unit", &self.unit.map(Unit::symbol))?;
+        out.end()
+    }
+}
+
+/// A look-up in one series, with the unit the value was typed in (if any) and
+/// every series the value itself belongs to.
+pub struct NearestReport<'a> {
+    pub found: &'a Nearest,
+    pub unit: Option<Unit>,
+    pub member_of: &'a [Series],
+}
+
+impl Serialize for NearestReport<'_> {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let f = self.found;
+        let mut out = serializer.serialize_struct("NearestReport", 8)?;
+        out.serialize_field("value", &f.value)?;
+        out.serialize_field("unit", &self.unit.map(Unit::symbol))?;
+        out.serialize_field("series", &f.series)?;
+        out.serialize_field("nearest", &f.nearest)?;
+        out.serialize_field("below", &f.below)?;
+        out.serialize_field("above", &f.above)?;
+        out.serialize_field("error_pct", &f.error_pct)?;
+        out.serialize_field("member_of", self.member_of)?;
+        out.end()
+    }
+}
+
+/// A value looked up in every series: what it was typed as, the series it is a
+/// member of, and one row per series.
+pub struct LookupReport<'a> {
+    pub value: f64,
+    pub unit: Option<Unit>,
+    pub member_of: &'a [Series],
+    pub rows: &'a [Nearest],
+}
+
+impl Serialize for LookupReport<'_> {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let mut out = serializer.serialize_struct("LookupReport", 4)?;
+        out.serialize_field("value", &self.value)?;
+        out.serialize_field("unit", &self.unit.map(Unit::symbol))?;
+        out.serialize_field("member_of", self.member_of)?;
+        out.serialize_field("rows", self.rows)?;
+        out.end()
+    }
+}
+
+impl Serialize for crate::error::FieldError {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let mut out = serializer.serialize_struct("FieldError", 3)?;
+        out.serialize_field("field", &self.field)?;
+        out.serialize_field("reason", &self.reason)?;
+        out.serialize_field("message", &self.to_string())?;
+        out.end()
+    }
+}
+
+/// What a valid document holds: `{"halfrail": 1, "sections": ["part", …]}`.
+pub struct DocumentSummary {
+    pub halfrail: u32,
+    pub sections: Vec<&'static str>,
+}
+
+impl Serialize for DocumentSummary {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let mut out = serializer.serialize_struct("DocumentSummary", 2)?;
+        out.serialize_field("halfrail", &self.halfrail)?;
+        out.serialize_field("sections", &self.sections)?;
+        out.end()
+    }
+}

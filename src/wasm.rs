@@ -1,0 +1,122 @@
+//! The page's entry points: the only module that knows wasm-bindgen. Each takes
+//! plain strings and numbers, and returns plain data (serialised by the document
+//! layer) or throws `{field, reason, message}` naming the bad input.
+
+use wasm_bindgen::prelude::*;
+
+use crate::doc::{self, LookupReport, ValueInUnit};
+use crate::error::FieldError;
+use crate::units::{self, MismatchForm, RkmKind, Unit};
+use crate::values::{self, Series};
+
+/// Reports panics to the console before the module traps, so the page can show them.
+#[wasm_bindgen(start)]
+pub fn start() {
+    console_error_panic_hook::set_once();
+}
+
+fn to_js<T: serde::Serialize>(value: &T) -> Result<JsValue, JsValue> {
+    value
+        .serialize(&serde_wasm_bindgen::Serializer::json_compatible())
+        .map_err(|e| JsValue::from_str(&e.to_string()))
+}
+
+fn thrown(error: FieldError) -> JsValue {
+    to_js(&error).unwrap_or_else(|e| e)
+}
+
+fn unit_named(field: &str, name: &str) -> Result<Unit, JsValue> {
+    Unit::from_name(name).ok_or_else(|| thrown(FieldError::new(field, format!("`{name}` is not a unit"))))
+}
+
+fn series_named(field: &str, name: &str) -> Result<Series, JsValue> {
+    Series::from_name(name).ok_or_else(|| thrown(FieldError::new(field, format!("`{name}` is not a series"))))
+}
+
+/// The build's version, for the page's footer and saved documents.
+#[wasm_bindgen(js_name = buildVersion)]
+pub fn build_version() -> String {
+    env!("CARGO_PKG_VERSION").to_string()
+}
+
+/// Parses `text` as a value in `unit` (`""` for any unit) into SI base units;
+/// errors name `field`.
+#[wasm_bindgen(js_name = parseValue)]
+pub fn parse_value(text: &str, unit: &str, field: &str) -> Result<JsValue, JsValue> {
+    let parsed = if unit.is_empty() {
+        units::parse(text).map(|p| ValueInUnit { value: p.value, unit: p.unit })
+    } else {
+        let u = unit_named("unit", unit)?;
+        units::parse_as(text, u).map(|value| ValueInUnit { value, unit: Some(u) })
+    };
+    to_js(&parsed.map_err(|e| thrown(e.within(field)))?)
+}
+
+/// Writes a value in engineering notation (`unit` may be `""`).
+#[wasm_bindgen(js_name = formatValue)]
+pub fn format_value(value: f64, unit: &str, digits: usize) -> Result<String, JsValue> {
+    let unit = if unit.is_empty() { None } else { Some(unit_named("unit", unit)?) };
+    Ok(units::format_eng(value, unit, digits.clamp(1, 12)))
+}
+
+/// The RKM code of a resistance (`kind` "R") or capacitance ("C"), or `""`.
+#[wasm_bindgen(js_name = formatRkm)]
+pub fn format_rkm(value: f64, kind: &str) -> String {
+    let kind = if kind == "C" { RkmKind::Capacitance } else { RkmKind::Resistance };
+    units::format_rkm(value, kind).unwrap_or_default()
+}
+
+/// Every form of a signal level typed as `text` across the resistance `at`.
+#[wasm_bindgen(js_name = levelsOf)]
+pub fn levels_of(text: &str, at: &str) -> Result<JsValue, JsValue> {
+    let impedance = units::parse_as(at, Unit::Ohm).map_err(|e| thrown(e.within("impedance")))?;
+    let parsed = units::parse(text).map_err(|e| thrown(e.within("level")))?;
+    let unit = parsed
+        .unit
+        .ok_or_else(|| thrown(FieldError::new("level", "needs a unit: dBm, dBW, W, Vrms, Vpk, Vpp, dBV or dBµV")))?;
+    let levels = units::levels(parsed.value, unit, impedance).map_err(|e| {
+        thrown(FieldError::new(if e.field == "impedance_ohm" { "impedance" } else { "level" }, e.reason))
+    })?;
+    to_js(&levels)
+}
+
+/// All four mismatch figures from one (`form`: vswr, rl, gamma or ml).
+#[wasm_bindgen(js_name = mismatchOf)]
+pub fn mismatch_of(text: &str, form: &str) -> Result<JsValue, JsValue> {
+    let form = match form {
+        "vswr" => MismatchForm::Vswr,
+        "rl" => MismatchForm::ReturnLossDb,
+        "gamma" => MismatchForm::Gamma,
+        "ml" => MismatchForm::MismatchLossDb,
+        other => return Err(thrown(FieldError::new("form", format!("`{other}` is not vswr, rl, gamma or ml")))),
+    };
+    let value = units::parse(text).map_err(|e| thrown(e.within("mismatch")))?.value;
+    let m = units::mismatch(form, value).map_err(|e| thrown(FieldError::new("mismatch", e.reason)))?;
+    to_js(&m)
+}
+
+/// A value looked up in every E-series.
+#[wasm_bindgen(js_name = lookUp)]
+pub fn look_up(text: &str) -> Result<JsValue, JsValue> {
+    let parsed = units::parse(text).map_err(|e| thrown(e.within("value")))?;
+    let in_field = |e: FieldError| thrown(FieldError::new("value", e.reason));
+    let rows = values::nearest_in_each(parsed.value).map_err(in_field)?;
+    let member_of = values::series_of(parsed.value).map_err(in_field)?;
+    to_js(&LookupReport { value: parsed.value, unit: parsed.unit, member_of: &member_of, rows: &rows })
+}
+
+/// The best `count` standard-value pairs for a ratio.
+#[wasm_bindgen(js_name = ratioPairs)]
+pub fn ratio_pairs(text: &str, series: &str, count: usize) -> Result<JsValue, JsValue> {
+    let series = series_named("series", series)?;
+    let wanted = units::parse(text).map_err(|e| thrown(e.within("ratio")))?.value;
+    let pairs = values::ratio_pairs(wanted, series, count.clamp(1, 50))
+        .map_err(|e| thrown(FieldError::new("ratio", e.reason)))?;
+    to_js(&pairs)
+}
+
+/// Checks a design document's text: its format version and sections, or the first bad field.
+#[wasm_bindgen(js_name = checkDocument)]
+pub fn check_document(text: &str) -> Result<JsValue, JsValue> {
+    to_js(&doc::summary(&doc::load(text).map_err(thrown)?))
+}
