@@ -4,7 +4,7 @@
 
 use wasm_bindgen::prelude::*;
 
-use crate::doc::{self, LookupReport, ValueInUnit};
+use crate::doc::{self, LookupReport, SeriesFacts, ValueInUnit};
 use crate::error::FieldError;
 use crate::units::{self, MismatchForm, RkmKind, Unit};
 use crate::values::{self, Series};
@@ -105,11 +105,28 @@ pub fn look_up(text: &str) -> Result<JsValue, JsValue> {
     to_js(&LookupReport { value: parsed.value, unit: parsed.unit, member_of: &member_of, rows: &rows })
 }
 
-/// The best `count` standard-value pairs for a ratio.
+/// The E-series, coarsest first, with their tolerance classes.
+#[wasm_bindgen(js_name = seriesFacts)]
+pub fn series_facts() -> Result<JsValue, JsValue> {
+    to_js(&Series::ALL.map(SeriesFacts))
+}
+
+/// The best `count` standard-value pairs for a ratio, typed plain (`4.7`) or as a
+/// voltage ratio in dB (`20 dB`).
 #[wasm_bindgen(js_name = ratioPairs)]
 pub fn ratio_pairs(text: &str, series: &str, count: usize) -> Result<JsValue, JsValue> {
     let series = series_named("series", series)?;
-    let wanted = units::parse(text).map_err(|e| thrown(e.within("ratio")))?.value;
+    let parsed = units::parse(text).map_err(|e| thrown(e.within("ratio")))?;
+    let wanted = match parsed.unit {
+        None => parsed.value,
+        Some(Unit::Db) => units::db_voltage_ratio(parsed.value),
+        Some(other) => {
+            return Err(thrown(FieldError::new(
+                "ratio",
+                format!("a ratio takes no unit ({}), or dB for a voltage ratio", other.symbol()),
+            )))
+        }
+    };
     let pairs = values::ratio_pairs(wanted, series, count.clamp(1, 50))
         .map_err(|e| thrown(FieldError::new("ratio", e.reason)))?;
     to_js(&pairs)

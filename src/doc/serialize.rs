@@ -145,3 +145,16 @@ impl Serialize for DocumentSummary {
         out.end()
     }
 }
+
+/// What the standard says of one series: `{"name", "per_decade", "tolerances_pct"}`.
+pub struct SeriesFacts(pub Series);
+
+impl Serialize for SeriesFacts {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let mut out = serializer.serialize_struct("SeriesFacts", 3)?;
+        out.serialize_field("name", self.0.name())?;
+        out.serialize_field("per_decade", &self.0.count())?;
+        out.serialize_field("tolerances_pct", self.0.tolerances_pct())?;
+        out.end()
+    }
+}

@@ -1,0 +1,63 @@
+# Halfrail: `make run` builds the page and serves it; `make test` runs every suite.
+# Each target installs what it needs on a fresh machine and skips what is there.
+
+SHELL := /bin/bash
+WASM_BINDGEN_VERSION := $(shell awk '/^name = "wasm-bindgen"$$/ { getline; gsub(/[^0-9.]/, ""); print; exit }' Cargo.lock)
+WASM_OUT := target/wasm32-unknown-unknown/wasm/halfrail.wasm
+BINDGEN := target/bindgen
+PAGE := dist/halfrail.html
+PORT ?= 8117
+APT := $(if $(filter 0,$(shell id -u)),,sudo) env DEBIAN_FRONTEND=noninteractive apt-get
+export CHROMEDRIVER ?= /usr/bin/chromedriver
+export CARGO_TARGET_WASM32_UNKNOWN_UNKNOWN_RUNNER := wasm-bindgen-test-runner
+
+.PHONY: run dist test test-native test-wasm test-e2e bench setup-rust setup-build-tools setup-node setup-browser clean
+
+run: dist
+	@echo "The page: file://$(CURDIR)/$(PAGE)"
+	@echo "Serving it at http://127.0.0.1:$(PORT)/halfrail.html (Ctrl-C to stop)"
+	python3 -m http.server $(PORT) --bind 127.0.0.1 --directory dist
+
+dist: setup-rust setup-build-tools
+	cargo build --lib --target wasm32-unknown-unknown --profile wasm
+	wasm-bindgen --target no-modules --no-typescript --out-dir $(BINDGEN) $(WASM_OUT)
+	www/node_modules/.bin/wasm-opt -Oz --enable-reference-types --enable-bulk-memory --enable-nontrapping-float-to-int --enable-sign-ext --enable-multivalue --enable-mutable-globals \
+	  $(BINDGEN)/halfrail_bg.wasm -o $(BINDGEN)/halfrail_bg.opt.wasm
+	node www/build.mjs $(BINDGEN) $(PAGE)
+
+test: dist setup-node setup-browser test-native test-wasm test-e2e
+
+test-native:
+	cargo test --all-targets
+	cargo test --doc
+
+test-wasm: setup-rust setup-browser
+	cd wasm-tests && cargo test --target wasm32-unknown-unknown
+
+test-e2e: setup-node setup-browser
+	cd wasm-tests && node --test e2e/
+
+bench: dist setup-node setup-browser
+	node wasm-tests/bench/page.mjs $(PAGE)
+
+setup-rust:
+	@rustup target list --installed | grep -qx wasm32-unknown-unknown || rustup target add wasm32-unknown-unknown
+	@if [ "$$(wasm-bindgen --version 2>/dev/null)" != "wasm-bindgen $(WASM_BINDGEN_VERSION)" ]; then \
+	  echo "installing wasm-bindgen-cli $(WASM_BINDGEN_VERSION) (a few minutes)"; \
+	  cargo install wasm-bindgen-cli --version $(WASM_BINDGEN_VERSION); fi
+
+# wasm-opt from npm, pinned in www/package-lock.json: Debian's binaryen 108 breaks
+# the externref table that wasm-bindgen 0.2.13x emits.
+setup-build-tools:
+	@command -v node >/dev/null || { $(APT) update -qq && $(APT) install -y -qq nodejs npm; }
+	@[ -x www/node_modules/.bin/wasm-opt ] || (cd www && npm ci --no-audit --no-fund)
+
+setup-node: setup-build-tools
+	@[ -d wasm-tests/node_modules/playwright-core ] || (cd wasm-tests && npm ci --no-audit --no-fund)
+
+setup-browser:
+	@[ -x /usr/bin/chromium ] && [ -x /usr/bin/chromedriver ] || { $(APT) update -qq && $(APT) install -y -qq chromium chromium-driver; }
+
+clean:
+	cargo clean
+	rm -rf dist wasm-tests/node_modules www/node_modules

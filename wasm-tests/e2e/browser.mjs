@@ -1,0 +1,44 @@
+// Launching Debian Chromium for the page tests and the page benchmark, and
+// watching a page for network requests and errors.
+import fs from 'fs';
+import os from 'os';
+import path from 'path';
+import { fileURLToPath } from 'url';
+import { chromium } from 'playwright-core';
+
+const here = path.dirname(fileURLToPath(import.meta.url));
+export const PAGE_PATH = path.resolve(here, '..', '..', 'dist', 'halfrail.html');
+export const PAGE_URL = 'file://' + PAGE_PATH;
+
+const FLAGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run',
+  '--disable-background-networking', '--disable-component-update', '--disable-sync'];
+
+// A fresh browser with its own empty profile.
+export async function launch() {
+  const profile = fs.mkdtempSync(path.join(os.tmpdir(), 'halfrail-profile-'));
+  const context = await chromium.launchPersistentContext(profile, {
+    executablePath: process.env.CHROMIUM || '/usr/bin/chromium', args: FLAGS, headless: true,
+    viewport: { width: 1280, height: 800 },
+  });
+  return {
+    context,
+    async close() { await context.close(); fs.rmSync(profile, { recursive: true, force: true }); },
+  };
+}
+
+// Records what a page does that it must not: fetch anything beyond the page and
+// its own frames, log an error, throw, or trip the Content-Security-Policy.
+export function watch(page, allowed = []) {
+  const seen = { requests: [], errors: [] };
+  const ok = (url) => url.startsWith('data:') || url.startsWith('blob:') || url === PAGE_URL
+    || allowed.some((a) => url === a);
+  page.on('request', (r) => { if (!ok(r.url())) seen.requests.push(r.url()); });
+  page.on('console', (m) => { if (m.type() === 'error') seen.errors.push(`console: ${m.text()}`); });
+  page.on('pageerror', (e) => seen.errors.push(`page: ${e.message}`));
+  return seen;
+}
+
+// Waits until the page has started the core and shown its first panel.
+export async function ready(frameOrPage) {
+  await frameOrPage.waitForSelector('html[data-ready="true"]', { timeout: 15000 });
+}

@@ -1,0 +1,45 @@
+// Builds dist/halfrail.html: one self-contained file with the CSS, the wasm-bindgen
+// glue, the app's scripts and the wasm module (gzip, then base64) inlined.
+// Usage: node www/build.mjs BINDGEN_DIR OUT_FILE   (run by `make dist`)
+import fs from 'fs';
+import path from 'path';
+import zlib from 'zlib';
+import { fileURLToPath } from 'url';
+
+const here = path.dirname(fileURLToPath(import.meta.url));
+const [bindgenDir = 'target/bindgen', outFile = 'dist/halfrail.html'] = process.argv.slice(2);
+
+// App scripts in load order: shared pieces first, the shell (which mounts) last.
+const SCRIPTS = [
+  'js/core.js',
+  'js/ui.js',
+  'js/panels/bench.js',
+  'js/panels/planned.js',
+  'js/shell.js',
+];
+const STYLES = ['css/base.css', 'css/panels.css'];
+
+const read = (p) => fs.readFileSync(p, 'utf8');
+// Inline scripts must not contain a closing script tag.
+const scriptSafe = (text) => text.replace(/<\/script/gi, '<\\/script');
+
+const glue = read(path.join(bindgenDir, 'halfrail.js'));
+const wasm = fs.readFileSync(path.join(bindgenDir, 'halfrail_bg.opt.wasm'));
+const packed = zlib.gzipSync(wasm, { level: 9 });
+const app = SCRIPTS.map((s) => `// ---- ${s}\n${read(path.join(here, s))}`).join('\n');
+const css = STYLES.map((s) => read(path.join(here, s))).join('\n');
+const version = (read(path.join(here, '..', 'Cargo.toml')).match(/^version = "([^"]+)"/m) || [])[1] || '0';
+
+const html = read(path.join(here, 'index.html'))
+  .replace('/*@STYLE@*/', () => css)
+  .replace('/*@GLUE@*/', () => scriptSafe(glue))
+  .replace('/*@APP@*/', () => scriptSafe(app))
+  .replace('@WASM@', () => packed.toString('base64'))
+  .replace(/@VERSION@/g, () => version);
+
+for (const marker of ['/*@STYLE@*/', '/*@GLUE@*/', '/*@APP@*/', '@WASM@', '@VERSION@']) {
+  if (html.includes(marker)) throw new Error(`build: marker ${marker} left in the page`);
+}
+fs.mkdirSync(path.dirname(outFile), { recursive: true });
+fs.writeFileSync(outFile, html);
+console.log(`${outFile}: ${html.length} bytes (wasm ${wasm.length} bytes, ${packed.length} gzip)`);

@@ -1,0 +1,71 @@
+'use strict';
+// Shared ground of the page: the namespace, starting the wasm core, calling it
+// with errors turned into {field, reason}, and storage that never throws.
+// The page computes no physics: every figure comes from the core.
+
+const HR = { panels: [] };
+
+// Registers a panel: {id, title, summary, mount(container)}. The shell lays them out.
+HR.panel = (spec) => { HR.panels.push(spec); };
+
+// Starts the wasm module: the bytes are gzip'd and base64'd in the page, so this
+// inflates them with the browser's DecompressionStream, compiles once and keeps the
+// compiled module (a worker can be handed it later).
+HR.start = async () => {
+  performance.mark('hr-wasm-start');
+  const text = document.getElementById('hr-wasm').textContent.trim();
+  const raw = Uint8Array.from(atob(text), (c) => c.charCodeAt(0));
+  const inflated = new Response(new Blob([raw]).stream().pipeThrough(new DecompressionStream('gzip')));
+  const bytes = new Uint8Array(await inflated.arrayBuffer());
+  HR.module = new WebAssembly.Module(bytes);
+  wasm_bindgen.initSync({ module: HR.module });
+  performance.mark('hr-wasm-ready');
+  performance.measure('hr-wasm-instantiate', 'hr-wasm-start', 'hr-wasm-ready');
+  HR.version = wasm_bindgen.buildVersion();
+};
+
+// Calls the core. Returns {ok: value} or {error: {field, reason, message}}; a trap
+// (a bug in the core) is reported in the status line and returned as an error.
+HR.call = (name, ...args) => {
+  try {
+    return { ok: wasm_bindgen[name](...args) };
+  } catch (e) {
+    if (e && typeof e === 'object' && 'reason' in e) return { error: e };
+    const message = `The calculation engine failed (${e && e.message ? e.message : e}). Your inputs are kept; reload the page to restart it.`;
+    HR.setStatus(message, true);
+    return { error: { field: '', reason: message, message } };
+  }
+};
+
+HR.setStatus = (text, isProblem = false) => {
+  const el = document.getElementById('engine-status');
+  el.textContent = text;
+  el.classList.toggle('problem', isProblem);
+};
+
+// localStorage that never throws: a sandboxed frame or a full disk only loses persistence.
+HR.store = {
+  prefix: 'halfrail.v1.',
+  get(key, fallback) {
+    try {
+      const text = window.localStorage.getItem(this.prefix + key);
+      return text === null ? fallback : JSON.parse(text);
+    } catch (e) {
+      return fallback;
+    }
+  },
+  set(key, value) {
+    try {
+      window.localStorage.setItem(this.prefix + key, JSON.stringify(value));
+      return true;
+    } catch (e) {
+      return false;
+    }
+  },
+};
+
+// Formats through the core so numbers read the same everywhere (SPEC §3.4).
+HR.fmt = (value, unit = '', digits = 3) => {
+  const r = HR.call('formatValue', value, unit, digits);
+  return r.ok === undefined ? '—' : r.ok;
+};

@@ -1,0 +1,25 @@
+'use strict';
+// The panels still to be built: each says plainly what it will hold. No figures
+// are shown until the core computes them.
+
+(() => {
+  const { el } = HR.ui;
+  const PLANNED = [
+    ['part', 'Part', 'Characterise the inverter: pick an illustrative preset or enter transistor parameters, see the transfer curve with its bias point and linear window, the supply current and dissipation, and fit the part from your own bench readings.'],
+    ['stage', 'Stage', 'The amplifier around the part: a schematic drawn from the components you fit, values edited in place, and the key figures beside it — gain at the design frequency, power gain, band edges, input match, noise figure and bias current. Design to a gain target with standard resistor values.'],
+    ['response', 'Response', 'Gain and phase against frequency, input impedance and return loss, noise figure and noise density, with markers at the design frequency and the band edges.'],
+    ['loop', 'Loop', 'Whether the feedback loop rings or oscillates: loop gain with crossover and margins, the Nyquist plot, the closed-loop poles, the step response, and a suggested fix.'],
+    ['swing', 'Swing', 'How big a signal the stage takes: waveforms, spectrum and harmonic distortion, the 1 dB compression point and the third-order intercept.'],
+    ['spread', 'Spread', 'How component tolerances move the result: Monte Carlo histograms, yield against your limits, worst-case corners and which part to buy tighter.'],
+    ['chain', 'Chain', 'The stage inside a cascade of pads, filters and other amplifiers: gain, noise figure, intercept, compression and the level at every node.'],
+  ];
+  for (const [id, title, text] of PLANNED) {
+    HR.panel({
+      id, title, planned: true,
+      mount(container) {
+        container.append(el('h1', {}, title),
+          el('p', { class: 'planned' }, el('strong', {}, 'Not built yet. '), text));
+      },
+    });
+  }
+})();

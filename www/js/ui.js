@@ -1,0 +1,74 @@
+'use strict';
+// Small DOM helpers. Text always goes in as text (textContent), never as markup,
+// so nothing a user types can become part of the page.
+
+HR.ui = (() => {
+  let nextId = 0;
+  const uid = (stem) => `${stem}-${++nextId}`;
+
+  // el('div', {class: 'x', 'aria-label': 'y'}, child, 'text', …)
+  const el = (tag, attrs = {}, ...children) => {
+    const node = document.createElement(tag);
+    for (const [key, value] of Object.entries(attrs)) {
+      if (value === false || value === null || value === undefined) continue;
+      if (key.startsWith('on')) node.addEventListener(key.slice(2), value);
+      else node.setAttribute(key, value === true ? '' : String(value));
+    }
+    for (const child of children.flat()) {
+      if (child === null || child === undefined || child === false) continue;
+      node.append(child instanceof Node ? child : document.createTextNode(String(child)));
+    }
+    return node;
+  };
+
+  // A card: a titled section of a panel.
+  const card = (title, ...children) => {
+    const id = uid('card');
+    return el('section', { class: 'card', 'aria-labelledby': id }, el('h2', { id }, title), ...children);
+  };
+
+  // A labelled text input with a place for its error beside it. `onInput(text)`
+  // runs on every edit; `setError(reason)` shows a reason, or clears it with null.
+  const field = ({ label, value, hint, onInput }) => {
+    const id = uid('field');
+    const input = el('input', {
+      id, type: 'text', value, spellcheck: 'false', autocomplete: 'off',
+      'aria-describedby': hint ? `${id}-err ${id}-hint` : `${id}-err`,
+    });
+    const error = el('span', { class: 'error', id: `${id}-err`, 'aria-live': 'polite' });
+    input.addEventListener('input', () => onInput(input.value));
+    const setError = (reason) => {
+      input.setAttribute('aria-invalid', reason ? 'true' : 'false');
+      error.textContent = reason || '';
+    };
+    const wrap = el('div', { class: 'field' },
+      el('label', { for: id }, label), input,
+      hint ? el('span', { class: 'hint', id: `${id}-hint` }, hint) : null, error);
+    return { wrap, input, setError };
+  };
+
+  // A labelled <select> of [value, text] options.
+  const choice = ({ label, options, value, onChange }) => {
+    const id = uid('choice');
+    const select = el('select', { id, onchange: () => onChange(select.value) },
+      options.map(([v, text]) => el('option', { value: v, selected: v === value }, text)));
+    return { wrap: el('div', { class: 'field' }, el('label', { for: id }, label), select), select };
+  };
+
+  // Replaces a table body with rows of cells (strings or nodes).
+  const fillRows = (tbody, rows) => {
+    tbody.replaceChildren(...rows.map((cells) => el('tr', {}, cells.map((c, i) =>
+      i === 0 ? el('th', { scope: 'row' }, c) : el('td', {}, c)))));
+  };
+
+  const table = (caption, headings) => {
+    const tbody = el('tbody');
+    const node = el('table', {},
+      el('caption', {}, caption),
+      el('thead', {}, el('tr', {}, headings.map((h) => el('th', { scope: 'col' }, h)))),
+      tbody);
+    return { node, tbody };
+  };
+
+  return { el, card, field, choice, fillRows, table };
+})();
