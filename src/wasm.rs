@@ -59,6 +59,12 @@ pub fn format_value(value: f64, unit: &str, digits: usize) -> Result<String, JsV
     Ok(units::format_eng(value, unit, digits.clamp(1, 12)))
 }
 
+/// A number with a fixed count of decimals (no negative zero).
+#[wasm_bindgen(js_name = formatFixed)]
+pub fn format_fixed(value: f64, decimals: usize) -> String {
+    units::format_fixed(value, decimals.min(12))
+}
+
 /// The RKM code of a resistance (`kind` "R") or capacitance ("C"), or `""`.
 #[wasm_bindgen(js_name = formatRkm)]
 pub fn format_rkm(value: f64, kind: &str) -> String {

@@ -16,7 +16,7 @@ pub struct Args {
     #[arg(long)]
     to: String,
     /// The resistance the level is across.
-    #[arg(long, default_value = "50")]
+    #[arg(long, default_value = "50", allow_hyphen_values = true)]
     at: String,
     /// Print JSON instead of text.
     #[arg(long)]
@@ -46,6 +46,7 @@ pub fn run(args: Args) -> Result<String, Failure> {
 #[derive(clap::Args)]
 pub struct MismatchArgs {
     /// The figure, a plain number: `1.5` (VSWR), `14` (return loss, dB), `0.2` (|Γ|).
+    #[arg(allow_hyphen_values = true)]
     value: String,
     /// What the number is: vswr, rl (return loss, dB), gamma (|Γ|) or ml (mismatch loss, dB).
     #[arg(long)]

@@ -68,6 +68,9 @@ pub fn parse(text: &str) -> Result<Parsed> {
     if !value.is_finite() {
         return Err(reason(format!("`{trimmed}` is too large")));
     }
+    if value == 0.0 && digits.bytes().any(|b| (b'1'..=b'9').contains(&b)) {
+        return Err(reason(format!("`{trimmed}` is too small")));
+    }
     Ok(Parsed { value, unit })
 }
 

@@ -65,7 +65,7 @@ const MEMBER_TOLERANCE: f64 = 1e-9;
 ///
 /// ```
 /// use halfrail::values::{series_of, Series};
-/// assert_eq!(series_of(4700.0).unwrap(), vec![Series::E3, Series::E6, Series::E12, Series::E24]);
+/// assert_eq!(series_of(6800.0).unwrap(), vec![Series::E6, Series::E12, Series::E24]);
 /// assert_eq!(series_of(9.2).unwrap(), vec![Series::E192]);
 /// ```
 pub fn series_of(value: f64) -> Result<Vec<Series>> {

@@ -16,7 +16,7 @@
   // {key, label, hint, options?, errorField}. `compute(state)` calls the core and
   // returns {ok} or {error}; `render(ok)` fills `output`. On an error the reason
   // goes beside the input it names and the last good output stays, marked stale.
-  const liveCard = ({ title, intro, inputs, output, compute, render, state, save }) => {
+  const liveCard = ({ title, intro, inputs, output, compute, render, state, save, wide = false }) => {
     const controls = inputs.map((spec) => {
       if (spec.options) {
         const c = choice({ label: spec.label, options: spec.options, value: state[spec.key],
@@ -58,6 +58,7 @@
     };
     const node = card(title, intro ? el('p', { class: 'intro' }, intro) : null,
       el('div', { class: 'inputs' }, controls.map((c) => c.wrap)), staleNote, output);
+    if (wide) node.classList.add('wide');
     return { node, update };
   };
 
@@ -105,7 +106,7 @@
       ],
       compute: (s) => HR.call('mismatchOf', s.mismatch, s.mismatchForm),
       render: (m) => {
-        out.cells.gamma.textContent = HR.fmt(m.gamma, '', 4);
+        out.cells.gamma.textContent = wasm_bindgen.formatFixed(m.gamma, 4);
         out.cells.return_loss_db.textContent = m.return_loss_db === null ? '∞ dB (perfect match)' : HR.fmt(m.return_loss_db, 'dB');
         out.cells.vswr.textContent = `${HR.fmt(m.vswr, '', 4)} : 1`;
         out.cells.mismatch_loss_db.textContent = HR.fmt(m.mismatch_loss_db, 'dB');
@@ -119,7 +120,7 @@
       ['Series', 'Tolerance', 'Nearest', 'Error', 'Below', 'Above', 'RKM code']);
     const out = el('div', {}, summary, el('div', { class: 'scroll' }, t.node));
     return liveCard({
-      title: 'Standard values',
+      title: 'Standard values', wide: true,
       intro: 'The IEC 60063 E-series value nearest yours, those either side, and the series your value belongs to.',
       state, save, output: out,
       inputs: [{ key: 'value', label: 'Value', hint: 'e.g. 5k, 4.7 uF, 8k2, R47', errorField: 'value' }],

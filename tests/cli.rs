@@ -1,0 +1,109 @@
+//! The `halfrail` command as scripts use it: output, JSON shapes and exit codes.
+
+use std::path::PathBuf;
+use std::process::{Command, Output};
+
+fn halfrail(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_halfrail")).args(args).output().expect("the binary runs")
+}
+
+fn stdout(out: &Output) -> String {
+    String::from_utf8(out.stdout.clone()).unwrap()
+}
+
+fn stderr(out: &Output) -> String {
+    String::from_utf8(out.stderr.clone()).unwrap()
+}
+
+fn fixture(name: &str) -> String {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures").join(name).display().to_string()
+}
+
+/// Asserts the run failed as bad input: status 2, one line on stderr containing `needle`.
+fn refused(args: &[&str], needle: &str) {
+    let out = halfrail(args);
+    let err = stderr(&out);
+    assert_eq!(out.status.code(), Some(2), "{args:?}: {err}");
+    assert_eq!(err.trim_end().lines().count(), 1, "{args:?}: one line, got {err:?}");
+    assert!(err.contains(needle), "{args:?}: {err:?} lacks {needle:?}");
+    assert!(!err.contains("panicked"), "{args:?}");
+}
+
+#[test]
+fn convert_example_of_the_issue() {
+    let out = halfrail(&["convert", "-30 dBm", "--to", "Vpp", "--at", "50"]);
+    assert!(out.status.success());
+    assert_eq!(stdout(&out), "20.0 mVpp\n");
+    let out = halfrail(&["convert", "-30 dBm", "--to", "Vpp", "--at", "50", "--json"]);
+    let json: serde_json::Value = serde_json::from_str(&stdout(&out)).unwrap();
+    assert_eq!(json, serde_json::json!({"value": 0.02, "unit": "Vpp"}));
+}
+
+#[test]
+fn convert_other_units_and_impedances() {
+    // 0 dBm at 50 Ω = 632.5 mVpp (common practice); at 600 Ω, 0.7746 Vrms.
+    assert_eq!(stdout(&halfrail(&["convert", "0 dBm", "--to", "Vpp"])), "632 mVpp\n");
+    let out = halfrail(&["convert", "0dBm", "--to", "vrms", "--at", "600R", "--json"]);
+    let json: serde_json::Value = serde_json::from_str(&stdout(&out)).unwrap();
+    assert!((json["value"].as_f64().unwrap() - 0.774597).abs() < 1e-6);
+    assert_eq!(stdout(&halfrail(&["convert", "20 mVpp", "--to", "dBm"])), "-30.00 dBm\n");
+}
+
+#[test]
+fn nearest_in_a_series() {
+    let out = halfrail(&["nearest", "5k", "--series", "E24", "--json"]);
+    assert!(out.status.success());
+    let json: serde_json::Value = serde_json::from_str(&stdout(&out)).unwrap();
+    assert_eq!(json["nearest"], 5100.0);
+    assert_eq!(json["below"], 4700.0);
+    assert_eq!(json["above"], 5100.0);
+    assert_eq!(json["series"], "E24");
+    let out = halfrail(&["nearest", "9.2", "--series", "e192", "--json"]);
+    let json: serde_json::Value = serde_json::from_str(&stdout(&out)).unwrap();
+    assert_eq!(json["member_of"], serde_json::json!(["E192"]));
+    let text = stdout(&halfrail(&["nearest", "4.7 uF", "--series", "E6"]));
+    assert!(text.starts_with("4.70 µF in E6 (±20 %): nearest 4.70 µF"), "{text}");
+}
+
+#[test]
+fn check_a_document() {
+    let out = halfrail(&["check", &fixture("if-block.halfrail.json")]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    assert!(stdout(&out).contains("with part, stage, analysis, target, tolerance, bench, chain"));
+}
+
+#[test]
+fn bad_input_exits_2_with_one_line() {
+    let dir = std::env::temp_dir().join(format!("halfrail-cli-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let bad = dir.join("bad.json");
+    std::fs::write(&bad, r#"{"halfrail": 1, "stage": {"r_fb_ohm": -3300}}"#).unwrap();
+    let bad = bad.display().to_string();
+    refused(&["check", &bad], "stage.r_fb_ohm: must be > 0, got -3300");
+    let not_json = dir.join("not.json");
+    std::fs::write(&not_json, "{\"halfrail\": 1,\n \"part\": ").unwrap();
+    refused(&["check", &not_json.display().to_string()], "document:");
+    refused(&["check", "/nonexistent/design.json"], "cannot read");
+    refused(&["convert", "-30 dBx", "--to", "Vpp"], "value: `-30 dBx`");
+    refused(&["convert", "-30", "--to", "Vpp"], "needs a unit");
+    refused(&["convert", "-30 dBm", "--to", "furlong"], "--to: `furlong` is not a unit");
+    refused(&["convert", "-30 dBm", "--to", "Hz"], "--to: Hz is not a signal level");
+    refused(&["convert", "-30 dBm", "--to", "Vpp", "--at", "-50"], "--at: must be > 0");
+    refused(&["convert", "-30 dBm", "--to", "Vpp", "--at", "2 uF"], "--at: `2 uF` is in F, expected Ω");
+    refused(&["convert", "0 W", "--to", "dBm"], "value: a level must be > 0");
+    refused(&["nearest", "5k", "--series", "E7"], "--series");
+    refused(&["nearest", "-5k"], "value: must be between");
+    refused(&["nearest", "0"], "value:");
+    refused(&["mismatch", "0.5", "--from", "vswr"], "VSWR must be ≥ 1");
+    refused(&["frobnicate"], "frobnicate");
+    refused(&["convert"], "required");
+    refused(&["convert", "1 V", "--to", "Vpp", "--bogus"], "--bogus");
+    std::fs::remove_dir_all(&dir).ok();
+}
+
+#[test]
+fn help_is_not_an_error() {
+    let out = halfrail(&["--help"]);
+    assert!(out.status.success());
+    assert!(stdout(&out).contains("convert"));
+}

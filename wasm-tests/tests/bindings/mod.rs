@@ -1,0 +1,91 @@
+//! Tests of the page's entry points, run in a real JS engine: once in Node
+//! (`node.rs`) and once in headless Chromium (`browser.rs`). They check what
+//! crosses the boundary: plain objects with the documented keys, and thrown
+//! `{field, reason}` objects for bad input.
+
+use halfrail::wasm;
+use js_sys::{Array, Reflect};
+use wasm_bindgen::JsValue;
+use wasm_bindgen_test::wasm_bindgen_test;
+
+fn get(object: &JsValue, key: &str) -> JsValue {
+    Reflect::get(object, &JsValue::from_str(key)).expect("an object")
+}
+
+fn number(object: &JsValue, key: &str) -> f64 {
+    get(object, key).as_f64().unwrap_or_else(|| panic!("{key} is not a number"))
+}
+
+fn text(object: &JsValue, key: &str) -> String {
+    get(object, key).as_string().unwrap_or_else(|| panic!("{key} is not a string"))
+}
+
+#[wasm_bindgen_test]
+fn levels_cross_as_a_plain_object() {
+    let l = wasm::levels_of("0 dBm", "50 Ω").unwrap();
+    // 0 dBm at 50 Ω = 223.6 mVrms = 632.5 mVpp (common practice).
+    assert!((number(&l, "vrms") - 0.2236).abs() < 5e-5);
+    assert!((number(&l, "vpp") - 0.6325).abs() < 5e-5);
+    assert_eq!(number(&l, "impedance_ohm"), 50.0);
+    for key in ["w", "dbm", "dbw", "vpk", "dbv", "dbuv"] {
+        assert!(number(&l, key).is_finite(), "{key}");
+    }
+}
+
+#[wasm_bindgen_test]
+fn bad_input_throws_the_field_and_the_reason() {
+    let e = wasm::levels_of("-30 dBx", "50").unwrap_err();
+    assert_eq!(text(&e, "field"), "level");
+    assert!(text(&e, "reason").contains("dBx"));
+    let e = wasm::levels_of("-30 dBm", "-50").unwrap_err();
+    assert_eq!(text(&e, "field"), "impedance");
+    let e = wasm::check_document(r#"{"halfrail": 1, "stage": {"r_fb_ohm": -3300}}"#).unwrap_err();
+    assert_eq!(text(&e, "message"), "stage.r_fb_ohm: must be > 0, got -3300");
+    let e = wasm::parse_value("2.2 uF", "Ω", "stage.r_in_ohm").unwrap_err();
+    assert_eq!(text(&e, "field"), "stage.r_in_ohm");
+}
+
+#[wasm_bindgen_test]
+fn look_up_returns_every_series() {
+    let r = wasm::look_up("5k").unwrap();
+    let rows = Array::from(&get(&r, "rows"));
+    assert_eq!(rows.length(), 7);
+    let e24 = rows.get(3);
+    assert_eq!(text(&e24, "series"), "E24");
+    assert_eq!(number(&e24, "nearest"), 5100.0);
+    assert_eq!(Array::from(&get(&r, "member_of")).length(), 0);
+    assert!(get(&r, "unit").is_null(), "no unit typed is null, not undefined");
+    let r = wasm::look_up("4.7 uF").unwrap();
+    assert_eq!(text(&r, "unit"), "F");
+}
+
+#[wasm_bindgen_test]
+fn ratio_pairs_accept_db() {
+    let pairs = Array::from(&wasm::ratio_pairs("20 dB", "E24", 3).unwrap());
+    assert_eq!(pairs.length(), 3);
+    assert_eq!(number(&pairs.get(0), "ratio"), 10.0);
+    assert!(wasm::ratio_pairs("3 V", "E24", 3).is_err());
+    assert!(wasm::ratio_pairs("3", "E25", 3).is_err());
+}
+
+#[wasm_bindgen_test]
+fn formatting_and_facts() {
+    assert_eq!(wasm::format_value(0.02, "Vpp", 3).unwrap(), "20.0 mVpp");
+    assert_eq!(wasm::format_rkm(4700.0, "R"), "4k7");
+    assert_eq!(wasm::format_rkm(4.7e-9, "C"), "4n7");
+    assert_eq!(wasm::format_fixed(-0.00001, 3), "0.000");
+    let facts = Array::from(&wasm::series_facts().unwrap());
+    assert_eq!(facts.length(), 7);
+    assert_eq!(number(&facts.get(6), "per_decade"), 192.0);
+    let m = wasm::mismatch_of("1.5", "vswr").unwrap();
+    assert!((number(&m, "gamma") - 0.2).abs() < 1e-12);
+    let perfect = wasm::mismatch_of("1", "vswr").unwrap();
+    assert!(get(&perfect, "return_loss_db").is_null(), "an infinite return loss crosses as null");
+}
+
+#[wasm_bindgen_test]
+fn documents_are_checked_the_same_as_natively() {
+    let s = wasm::check_document(include_str!("../../../tests/fixtures/if-block.halfrail.json")).unwrap();
+    assert_eq!(number(&s, "halfrail"), 1.0);
+    assert_eq!(Array::from(&get(&s, "sections")).length(), 7);
+}
