@@ -20,7 +20,10 @@
 //! ```
 
 pub mod doc;
+pub mod engine;
 pub mod error;
+pub mod part;
+pub mod stage;
 pub mod units;
 pub mod values;
 

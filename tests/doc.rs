@@ -2,6 +2,7 @@
 //! names the field for everything that is wrong.
 
 use halfrail::doc::{load, BlockKind, GainKind, Model};
+use halfrail::stage::Component::{COutF, CFbF, RFbOhm, ShuntOhm};
 use halfrail::values::Series;
 
 const DEMO: &str = include_str!("fixtures/if-block.halfrail.json");
@@ -37,8 +38,9 @@ fn the_demo_reads_in_every_notation() {
     assert_eq!(part.gamma, 2.0 / 3.0, "gamma defaults to 2/3");
     assert_eq!(part.temp_c, 25.0, "temp_c defaults to 25 °C");
     let stage = d.stage.unwrap();
-    assert_eq!((stage.shunt_ohm, stage.r_fb_ohm, stage.c_out_f), (Some(56.0), Some(2200.0), Some(100e-9)));
-    assert_eq!(stage.c_fb_f, None, "absent is not fitted");
+    let get = |c| stage.get(c);
+    assert_eq!((get(ShuntOhm), get(RFbOhm), get(COutF)), (Some(56.0), Some(2200.0), Some(100e-9)));
+    assert_eq!(get(CFbF), None, "absent is not fitted");
     let analysis = d.analysis.unwrap();
     assert_eq!((analysis.f_design_hz, analysis.f_start_hz), (10.7e6, 1e3));
     let target = d.target.unwrap();
@@ -92,6 +94,10 @@ fn each_bad_field_is_named() {
         (with_field("stage", "c_in_f", json!("4k7")), "stage.c_in_f: must be ≤ 1, got 4700"),
         (with_field("stage", "c_in_f", json!(0)), "stage.c_in_f: must be > 0, got 0"),
         (with_field("stage", "load_ohm", json!("")), "stage.load_ohm: is empty"),
+        (with_field("stage", "r_feedback", json!(1)), "stage.r_feedback: unknown field `r_feedback`"),
+        (with_field("stage", "r_in_ohm", json!("2.2 uF")), "stage.r_in_ohm: `2.2 uF` is in F, expected Ω"),
+        (with_field("stage", "r_in_ohm", json!(-1)), "stage.r_in_ohm: must be ≥ 0, got -1"),
+        (with_field("part", "n_slope", json!(0.5)), "part.n_slope: must be ≥ 1"),
         (with_field("analysis", "f_design_hz", json!("2 GHz")), "analysis.f_design_hz: must be ≤ 1e9"),
         (with_field("analysis", "f_stop_hz", json!(100)), "analysis.f_stop_hz: must be > 1000"),
         (with_field("analysis", "points_per_decade", json!(0)), "analysis.points_per_decade: must be ≥ 1"),

@@ -9,14 +9,33 @@ pub use serialize::{DocumentSummary, LookupReport, NearestReport, SeriesFacts, V
 mod validate;
 
 pub use sections::{
-    Analysis, Bench, Block, BlockKind, Chain, CurvePoint, Document, GainKind, GainReading, Model, Part, Stage, Target,
-    Tolerance,
+    Analysis, Bench, Block, BlockKind, Chain, CurvePoint, Document, GainKind, GainReading, Model, Part, Target, Tolerance,
 };
 
 use crate::error::{FieldError, Result};
 
 /// The format version this build writes and reads.
 pub const FORMAT_VERSION: u32 = 1;
+
+impl Part {
+    /// The part as the core models it.
+    pub fn to_core(&self) -> crate::part::Part {
+        use crate::part::{Capacitances, Mosfet};
+        crate::part::Part {
+            model: match self.model {
+                Model::SquareLaw => crate::part::Model::SquareLaw,
+                Model::Ekv => crate::part::Model::Ekv { slope: self.n_slope },
+            },
+            vdd: self.vdd_v,
+            stages: self.stages,
+            nmos: Mosfet { k: self.kn_a_per_v2, vt: self.vtn_v, lambda: self.lambda_n_per_v },
+            pmos: Mosfet { k: self.kp_a_per_v2, vt: -self.vtp_v, lambda: self.lambda_p_per_v },
+            caps: Capacitances { cgs: self.cgs_f, cgd: self.cgd_f, cdb: self.cdb_f },
+            gamma: self.gamma,
+            temp_c: self.temp_c,
+        }
+    }
+}
 
 /// The largest document accepted, in bytes.
 pub const MAX_DOCUMENT_BYTES: usize = 4 << 20;

@@ -118,3 +118,8 @@ pub fn value<'de, U: FieldUnit, D: Deserializer<'de>>(d: D) -> Result<f64, D::Er
 pub fn optional<'de, U: FieldUnit, D: Deserializer<'de>>(d: D) -> Result<Option<f64>, D::Error> {
     Option::<Quantity<U>>::deserialize(d).map(|q| q.map(|q| q.0))
 }
+
+/// Reads the next map value as an optional value field in `U`.
+pub fn next_optional<'de, U: FieldUnit, A: de::MapAccess<'de>>(map: &mut A) -> Result<Option<f64>, A::Error> {
+    map.next_value::<Option<Quantity<U>>>().map(|q| q.map(|q| q.0))
+}

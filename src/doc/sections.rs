@@ -3,7 +3,8 @@
 
 use serde::Deserialize;
 
-use super::quantity::{optional, value, Ampere, Celsius, Decibel, DecibelMilliwatt, Farad, Hertz, Millivolt, Ohm, Percent, Plain, Volt, Watt};
+use super::quantity::{next_optional, optional, value, Ampere, Celsius, Decibel, DecibelMilliwatt, Farad, Hertz, Millivolt, Ohm, Percent, Plain, Volt, Watt};
+use crate::stage::{Component, Components, Role};
 use crate::values::Series;
 
 /// The transistor model of the part.
@@ -62,32 +63,56 @@ pub struct Part {
     pub gamma: f64,
     #[serde(default = "room_c", deserialize_with = "value::<Celsius, _>")]
     pub temp_c: f64,
+    /// The EKV slope factor n (the square law ignores it).
+    #[serde(default = "typical_slope", deserialize_with = "value::<Plain, _>")]
+    pub n_slope: f64,
+    /// The package's dissipation limit, for the warning (optional).
+    #[serde(default, deserialize_with = "optional::<Watt, _>")]
+    pub pkg_max_w: Option<f64>,
 }
 
-/// The components around the part (SPEC §3.2); `None` is "not fitted".
-#[derive(Debug, Clone, Default, PartialEq, Deserialize)]
-#[serde(deny_unknown_fields)]
-pub struct Stage {
-    #[serde(default, deserialize_with = "optional::<Ohm, _>")]
-    pub source_ohm: Option<f64>,
-    #[serde(default, deserialize_with = "optional::<Ohm, _>")]
-    pub shunt_ohm: Option<f64>,
-    #[serde(default, deserialize_with = "optional::<Farad, _>")]
-    pub c_in_f: Option<f64>,
-    #[serde(default, deserialize_with = "optional::<Ohm, _>")]
-    pub r_in_ohm: Option<f64>,
-    #[serde(default, deserialize_with = "optional::<Ohm, _>")]
-    pub r_fb_ohm: Option<f64>,
-    #[serde(default, deserialize_with = "optional::<Farad, _>")]
-    pub c_fb_f: Option<f64>,
-    #[serde(default, deserialize_with = "optional::<Ohm, _>")]
-    pub r_out_ohm: Option<f64>,
-    #[serde(default, deserialize_with = "optional::<Farad, _>")]
-    pub c_out_f: Option<f64>,
-    #[serde(default, deserialize_with = "optional::<Ohm, _>")]
-    pub load_ohm: Option<f64>,
-    #[serde(default, deserialize_with = "optional::<Farad, _>")]
-    pub load_f: Option<f64>,
+/// Weak-inversion slope factor when none is given: 1.2–1.5 is typical (common practice).
+fn typical_slope() -> f64 {
+    1.3
+}
+
+/// Reads the `stage` section into the components it fits: each key a component's
+/// (`r_fb_ohm`), each value in that component's unit; `null` or absent is "not fitted".
+fn components<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Option<Components>, D::Error> {
+    struct Section;
+    impl<'de> serde::de::Visitor<'de> for Section {
+        type Value = Components;
+        fn expecting(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+            f.write_str("an object of component values")
+        }
+        fn visit_map<A: serde::de::MapAccess<'de>>(self, mut map: A) -> Result<Components, A::Error> {
+            let mut found = Components::default();
+            while let Some(key) = map.next_key::<String>()? {
+                // An unknown key's value goes through a seed that refuses, so the
+                // error carries the key's path.
+                let Some(c) = Component::from_key(&key) else {
+                    return map.next_value_seed(Unknown(key)).map(|_| found);
+                };
+                let value = match c.role() {
+                    Role::Resistor => next_optional::<Ohm, _>(&mut map)?,
+                    Role::Capacitor => next_optional::<Farad, _>(&mut map)?,
+                };
+                found.set(c, value);
+            }
+            Ok(found)
+        }
+    }
+    struct Unknown(String);
+    impl<'de> serde::de::DeserializeSeed<'de> for Unknown {
+        type Value = ();
+        fn deserialize<D: serde::Deserializer<'de>>(self, _: D) -> Result<(), D::Error> {
+            const KEYS: [&str; 10] = [
+                "source_ohm", "shunt_ohm", "c_in_f", "r_in_ohm", "r_fb_ohm", "c_fb_f", "r_out_ohm", "c_out_f", "load_ohm", "load_f",
+            ];
+            Err(serde::de::Error::unknown_field(&self.0, &KEYS))
+        }
+    }
+    d.deserialize_map(Section).map(Some)
 }
 
 fn f_start() -> f64 {
@@ -331,8 +356,8 @@ pub struct Document {
     pub notes: Option<String>,
     #[serde(default)]
     pub part: Option<Part>,
-    #[serde(default)]
-    pub stage: Option<Stage>,
+    #[serde(default, deserialize_with = "components")]
+    pub stage: Option<Components>,
     #[serde(default)]
     pub analysis: Option<Analysis>,
     #[serde(default)]

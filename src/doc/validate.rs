@@ -1,7 +1,8 @@
 //! Range checks on a document that has been read: every bad field is reported by
 //! its path, with the rule it broke and the value it had.
 
-use super::sections::{Analysis, Bench, Block, BlockKind, Chain, Document, Part, Stage, Target, Tolerance};
+use super::sections::{Analysis, Bench, Block, BlockKind, Chain, Document, Part, Target, Tolerance};
+use crate::stage::{Component, Components, Role};
 use crate::error::{FieldError, Result};
 
 /// One end of an allowed range.
@@ -89,20 +90,21 @@ fn part(p: &Part) -> Result<()> {
         range(path, c, Closed(0.0), Closed(1e-6))?;
     }
     range("part.gamma", p.gamma, Open(0.0), Closed(10.0))?;
+    range("part.n_slope", p.n_slope, Closed(1.0), Closed(3.0))?;
+    optional_range("part.pkg_max_w", p.pkg_max_w, Open(0.0), Closed(100.0))?;
     range("part.temp_c", p.temp_c, Closed(-60.0), Closed(200.0))
 }
 
-fn stage(s: &Stage) -> Result<()> {
-    optional_range("stage.source_ohm", s.source_ohm, Closed(0.0), Closed(MAX_OHM))?;
-    optional_range("stage.shunt_ohm", s.shunt_ohm, Open(0.0), Closed(MAX_OHM))?;
-    optional_range("stage.c_in_f", s.c_in_f, Open(0.0), Closed(MAX_F))?;
-    optional_range("stage.r_in_ohm", s.r_in_ohm, Closed(0.0), Closed(MAX_OHM))?;
-    optional_range("stage.r_fb_ohm", s.r_fb_ohm, Open(0.0), Closed(MAX_OHM))?;
-    optional_range("stage.c_fb_f", s.c_fb_f, Open(0.0), Closed(MAX_F))?;
-    optional_range("stage.r_out_ohm", s.r_out_ohm, Closed(0.0), Closed(MAX_OHM))?;
-    optional_range("stage.c_out_f", s.c_out_f, Open(0.0), Closed(MAX_F))?;
-    optional_range("stage.load_ohm", s.load_ohm, Open(0.0), Closed(MAX_OHM))?;
-    optional_range("stage.load_f", s.load_f, Open(0.0), Closed(MAX_F))
+fn stage(s: &Components) -> Result<()> {
+    for c in Component::ALL {
+        let low = if c.zero_is_short() { Closed(0.0) } else { Open(0.0) };
+        let high = match c.role() {
+            Role::Resistor => Closed(MAX_OHM),
+            Role::Capacitor => Closed(MAX_F),
+        };
+        optional_range(&format!("stage.{}", c.key()), s.get(c), low, high)?;
+    }
+    Ok(())
 }
 
 /// Most points a sweep may have.

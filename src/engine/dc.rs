@@ -1,0 +1,206 @@
+//! The DC operating point: damped Newton–Raphson on the MNA equations, with gmin
+//! stepping and then source stepping as fallbacks (both common SPICE practice).
+
+use nalgebra::{DMatrix, DVector};
+
+use super::mna::{device_states, dc_sources, linear_stamps, stamp_devices, Layout};
+use super::netlist::{DeviceState, Netlist, Node};
+use super::topology::{first_floating, PathKind};
+use crate::error::{FieldError, Result};
+
+/// How the operating point was reached.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Method {
+    Newton,
+    GminStepping,
+    SourceStepping,
+}
+
+/// A solved DC operating point.
+#[derive(Debug, Clone)]
+pub struct OperatingPoint {
+    pub layout: Layout,
+    /// Node voltages (ground excluded) then branch currents.
+    pub x: DVector<f64>,
+    /// Each device's currents and derivatives, in element order.
+    pub devices: Vec<Option<DeviceState>>,
+    pub iterations: usize,
+    pub method: Method,
+}
+
+impl OperatingPoint {
+    pub fn voltage(&self, node: Node) -> f64 {
+        self.layout.voltage(&self.x, node)
+    }
+
+    /// The current through a voltage source or inductor (from its `a` to its `b`).
+    pub fn branch_current(&self, element: usize) -> Option<f64> {
+        self.layout.branch[element].map(|i| self.x[i])
+    }
+}
+
+/// Largest change of a node voltage in one Newton step, in volts: keeps the first
+/// steps of a strongly nonlinear circuit from overshooting (common practice).
+const MAX_STEP_V: f64 = 0.5;
+const MAX_ITERATIONS: usize = 150;
+/// Converged when the last step moved no unknown by more than this (plus a relative
+/// part) and no KCL row is out of balance by more than `RESIDUAL_TOL`.
+const STEP_TOL: f64 = 1e-10;
+const STEP_RELTOL: f64 = 1e-9;
+const RESIDUAL_TOL: f64 = 1e-11;
+
+/// What a Newton run needs that does not change between iterations.
+struct Problem<'a> {
+    netlist: &'a Netlist,
+    layout: &'a Layout,
+    g: &'a DMatrix<f64>,
+    b: &'a DVector<f64>,
+}
+
+/// Why a Newton run stopped short.
+struct Stalled {
+    worst: usize,
+}
+
+impl Problem<'_> {
+    /// Residual F(x) and Jacobian J(x) at source scale `scale` with `gmin` added to
+    /// every node.
+    fn evaluate(&self, x: &DVector<f64>, scale: f64, gmin: f64) -> (DVector<f64>, DMatrix<f64>, Vec<Option<DeviceState>>) {
+        let mut jacobian = self.g.clone();
+        for i in 0..self.layout.nodes {
+            jacobian[(i, i)] += gmin;
+        }
+        let mut residual = &jacobian * x - self.b * scale;
+        let states = device_states(self.netlist, self.layout, x, scale);
+        stamp_devices(self.netlist, self.layout, &states, Some(&mut residual), &mut jacobian);
+        (residual, jacobian, states)
+    }
+
+    fn newton(&self, start: &DVector<f64>, scale: f64, gmin: f64) -> std::result::Result<(DVector<f64>, usize), Stalled> {
+        let mut x = start.clone();
+        let (mut residual, mut jacobian, _) = self.evaluate(&x, scale, gmin);
+        for iteration in 1..=MAX_ITERATIONS {
+            let worst = residual.iamax();
+            let mut step = jacobian.clone().lu().solve(&(-&residual)).ok_or(Stalled { worst })?;
+            if !step.iter().all(|v| v.is_finite()) {
+                return Err(Stalled { worst });
+            }
+            let largest = step.rows(0, self.layout.nodes).amax();
+            if largest > MAX_STEP_V {
+                step *= MAX_STEP_V / largest;
+            }
+            // Backtrack until the imbalance falls (or accept the smallest step tried).
+            let norm = residual.norm();
+            let mut alpha = 1.0;
+            let (next, next_residual, next_jacobian) = loop {
+                let trial = &x + &step * alpha;
+                let (r, j, _) = self.evaluate(&trial, scale, gmin);
+                if r.norm() < norm || alpha < 1e-3 {
+                    break (trial, r, j);
+                }
+                alpha *= 0.5;
+            };
+            let moved = (&next - &x).amax();
+            x = next;
+            residual = next_residual;
+            jacobian = next_jacobian;
+            if moved <= STEP_TOL + STEP_RELTOL * x.amax() && residual.amax() <= RESIDUAL_TOL {
+                return Ok((x, iteration));
+            }
+        }
+        Err(Stalled { worst: residual.iamax() })
+    }
+}
+
+/// The operating point, started from `guess` (all zero if `None`).
+///
+/// ```
+/// use halfrail::engine::{operating_point, Element, Netlist, Node};
+/// // A 10 V source into a 1k/3k divider: 7.5 V at the middle.
+/// let mut n = Netlist::new();
+/// let (top, mid) = (n.node("top"), n.node("mid"));
+/// n.add("V1", Element::VoltageSource { a: top, b: Node::GROUND, dc: 10.0, ac: 0.0 });
+/// n.add("R1", Element::Resistor { a: top, b: mid, ohms: 1e3 });
+/// n.add("R2", Element::Resistor { a: mid, b: Node::GROUND, ohms: 3e3 });
+/// let op = operating_point(&n, None).unwrap();
+/// assert!((op.voltage(mid) - 7.5).abs() < 1e-9);
+/// ```
+pub fn operating_point(netlist: &Netlist, guess: Option<&DVector<f64>>) -> Result<OperatingPoint> {
+    if let Some(node) = first_floating(netlist, PathKind::Dc) {
+        return Err(FieldError::new(
+            "circuit",
+            format!("node `{}` has no DC path to ground (only capacitors or current sources reach it)", netlist.node_name(node)),
+        ));
+    }
+    let layout = Layout::new(netlist);
+    let (g, _) = linear_stamps(netlist, &layout);
+    let b = dc_sources(netlist, &layout, 1.0);
+    let problem = Problem { netlist, layout: &layout, g: &g, b: &b };
+    let zero = DVector::zeros(layout.size);
+    let start = guess.filter(|s| s.len() == layout.size).unwrap_or(&zero);
+
+    let mut total = 0;
+    let finish = |x: DVector<f64>, iterations: usize, method: Method| {
+        let devices = device_states(netlist, &layout, &x, 1.0);
+        OperatingPoint { layout: layout.clone(), x, devices, iterations, method }
+    };
+
+    let mut last_worst = match problem.newton(start, 1.0, 0.0) {
+        Ok((x, n)) => return Ok(finish(x, n, Method::Newton)),
+        Err(s) => s.worst,
+    };
+
+    // Gmin stepping: a heavy shunt on every node makes the problem nearly linear;
+    // lift it a decade at a time, each solve starting from the last.
+    let mut x = start.clone();
+    let mut gmin_ok = true;
+    for exponent in (-12..=-2).rev() {
+        match problem.newton(&x, 1.0, 10f64.powi(exponent)) {
+            Ok((next, n)) => {
+                x = next;
+                total += n;
+            }
+            Err(s) => {
+                last_worst = s.worst;
+                gmin_ok = false;
+                break;
+            }
+        }
+    }
+    if gmin_ok {
+        if let Ok((x, n)) = problem.newton(&x, 1.0, 0.0) {
+            return Ok(finish(x, total + n, Method::GminStepping));
+        }
+    }
+
+    // Source stepping: raise every source (and the devices' supplies) from zero.
+    let mut x = zero.clone();
+    let (mut scale, mut stride) = (0.0f64, 0.1f64);
+    total = 0;
+    while scale < 1.0 {
+        let target = (scale + stride).min(1.0);
+        match problem.newton(&x, target, 0.0) {
+            Ok((next, n)) => {
+                x = next;
+                total += n;
+                scale = target;
+                stride = (stride * 2.0).min(0.25);
+            }
+            Err(s) => {
+                last_worst = s.worst;
+                stride /= 4.0;
+                if stride < 1e-4 {
+                    break;
+                }
+            }
+        }
+    }
+    if scale >= 1.0 {
+        return Ok(finish(x, total, Method::SourceStepping));
+    }
+    let name = if last_worst < layout.nodes { netlist.node_name(Node(last_worst + 1)).to_string() } else { "a branch".into() };
+    Err(FieldError::new(
+        "circuit",
+        format!("the operating point did not converge (Newton, gmin and source stepping all failed; the largest imbalance was at node `{name}`)"),
+    ))
+}

@@ -1,0 +1,16 @@
+//! The one circuit engine (SPEC §2): a netlist, its modified-nodal-analysis stamps,
+//! the DC operating point and the small-signal solve. Noise (adjoint) and
+//! transient (companion models of `C` in the same matrix form) build on the
+//! `G`/`C`/device stamps here rather than on a solver of their own.
+
+mod ac;
+mod dc;
+mod mna;
+mod netlist;
+mod topology;
+
+pub use ac::SmallSignal;
+pub use dc::{operating_point, Method, OperatingPoint};
+pub use mna::{Layout, GMIN};
+pub use netlist::{DeviceState, Element, Named, Netlist, Node, Transconductor};
+pub use topology::{first_floating, PathKind};

@@ -1,0 +1,247 @@
+//! The amplifier stage of SPEC §3.2 built on the engine: the components around the
+//! part, and the netlist they make.
+//!
+//! Nodes: `emf` (the source's EMF), `in` (input pin), `a`, `g1` (gate of stage 1),
+//! `o1…oN` (stage outputs, `g(k+1) = ok`), `b`, `out` (output pin). A component that
+//! is not fitted is absent; a coupling capacitor that is not fitted, or a series
+//! resistor of 0 Ω, is a short (its two nodes are one).
+
+use crate::engine::{first_floating, Element, Netlist, Node, PathKind};
+use crate::error::{FieldError, Result};
+use crate::part::{InverterLaw, Part};
+
+/// The components of a stage, by their document key.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
+pub enum Component {
+    SourceOhm,
+    ShuntOhm,
+    CInF,
+    RInOhm,
+    RFbOhm,
+    CFbF,
+    ROutOhm,
+    COutF,
+    LoadOhm,
+    LoadF,
+}
+
+/// What a component is, for units, tolerances and drawing.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Role {
+    Resistor,
+    Capacitor,
+}
+
+impl Component {
+    pub const ALL: [Component; 10] = [
+        Component::SourceOhm,
+        Component::ShuntOhm,
+        Component::CInF,
+        Component::RInOhm,
+        Component::RFbOhm,
+        Component::CFbF,
+        Component::ROutOhm,
+        Component::COutF,
+        Component::LoadOhm,
+        Component::LoadF,
+    ];
+
+    /// The document key (`r_fb_ohm`).
+    pub fn key(self) -> &'static str {
+        match self {
+            Component::SourceOhm => "source_ohm",
+            Component::ShuntOhm => "shunt_ohm",
+            Component::CInF => "c_in_f",
+            Component::RInOhm => "r_in_ohm",
+            Component::RFbOhm => "r_fb_ohm",
+            Component::CFbF => "c_fb_f",
+            Component::ROutOhm => "r_out_ohm",
+            Component::COutF => "c_out_f",
+            Component::LoadOhm => "load_ohm",
+            Component::LoadF => "load_f",
+        }
+    }
+
+    pub fn from_key(key: &str) -> Option<Component> {
+        Component::ALL.into_iter().find(|c| c.key() == key)
+    }
+
+    pub fn role(self) -> Role {
+        match self {
+            Component::CInF | Component::CFbF | Component::COutF | Component::LoadF => Role::Capacitor,
+            _ => Role::Resistor,
+        }
+    }
+
+    /// Source and load belong to the surroundings, not the stage: they are not
+    /// toleranced and not designed.
+    pub fn is_environment(self) -> bool {
+        matches!(self, Component::SourceOhm | Component::LoadOhm | Component::LoadF)
+    }
+
+    /// Whether 0 is a meaningful value (a short) rather than an error.
+    pub fn zero_is_short(self) -> bool {
+        matches!(self, Component::SourceOhm | Component::RInOhm | Component::ROutOhm)
+    }
+}
+
+/// The values of the fitted components; `None` is "not fitted".
+#[derive(Debug, Clone, Copy, PartialEq, Default)]
+pub struct Components([Option<f64>; 10]);
+
+impl Components {
+    pub fn get(&self, c: Component) -> Option<f64> {
+        self.0[c as usize]
+    }
+
+    pub fn set(&mut self, c: Component, value: Option<f64>) {
+        self.0[c as usize] = value;
+    }
+
+    /// The same with one component changed.
+    pub fn with(mut self, c: Component, value: Option<f64>) -> Self {
+        self.set(c, value);
+        self
+    }
+
+    /// A value that counts as fitted: present and, for a series resistor, not a short.
+    fn fitted(&self, c: Component) -> Option<f64> {
+        self.get(c).filter(|&v| !(c.zero_is_short() && v == 0.0))
+    }
+}
+
+/// The nodes of a built stage.
+#[derive(Debug, Clone)]
+pub struct StageNodes {
+    pub emf: Node,
+    pub input: Node,
+    pub a: Node,
+    /// Stage inputs g1…gN.
+    pub gates: Vec<Node>,
+    /// Stage outputs o1…oN.
+    pub outputs: Vec<Node>,
+    pub b: Node,
+    pub output: Node,
+}
+
+/// A stage as a netlist, with its nodes and the index of the source element.
+#[derive(Debug, Clone)]
+pub struct StageCircuit {
+    pub netlist: Netlist,
+    pub nodes: StageNodes,
+    /// The source EMF (a voltage source `emf`→ground: 0 V at DC, 1 V small-signal).
+    pub source: usize,
+}
+
+/// A leak that ties an output pin left with only a coupling capacitor to ground, so
+/// its DC voltage is defined (0 V) without affecting anything else.
+const PIN_LEAK_OHM: f64 = 1e12;
+
+/// Builds the stage of SPEC §3.2 around `part`.
+pub fn build(part: &Part, law: &InverterLaw, c: &Components) -> Result<StageCircuit> {
+    let mut n = Netlist::new();
+    let emf = n.node("emf");
+    let source = n.add("source EMF", Element::VoltageSource { a: emf, b: Node::GROUND, dc: 0.0, ac: 1.0 });
+    let input = match c.fitted(Component::SourceOhm) {
+        Some(ohms) => {
+            let input = n.node("in");
+            n.add("source_ohm", Element::Resistor { a: emf, b: input, ohms });
+            input
+        }
+        None => emf,
+    };
+    if let Some(ohms) = c.fitted(Component::ShuntOhm) {
+        n.add("shunt_ohm", Element::Resistor { a: input, b: Node::GROUND, ohms });
+    }
+    let a = match c.fitted(Component::CInF) {
+        Some(farads) => {
+            let a = n.node("a");
+            n.add("c_in_f", Element::Capacitor { a: input, b: a, farads });
+            a
+        }
+        None => input,
+    };
+    let g1 = match c.fitted(Component::RInOhm) {
+        Some(ohms) => {
+            let g1 = n.node("g1");
+            n.add("r_in_ohm", Element::Resistor { a, b: g1, ohms });
+            g1
+        }
+        None => a,
+    };
+    let (gates, outputs) = add_part(&mut n, part, law, g1);
+    let last = *outputs.last().expect("a part has at least one stage");
+    if let Some(ohms) = c.fitted(Component::RFbOhm) {
+        n.add("r_fb_ohm", Element::Resistor { a: g1, b: last, ohms });
+    }
+    if let Some(farads) = c.fitted(Component::CFbF) {
+        n.add("c_fb_f", Element::Capacitor { a: g1, b: last, farads });
+    }
+    let b = match c.fitted(Component::ROutOhm) {
+        Some(ohms) => {
+            let b = n.node("b");
+            n.add("r_out_ohm", Element::Resistor { a: last, b, ohms });
+            b
+        }
+        None => last,
+    };
+    let output = match c.fitted(Component::COutF) {
+        Some(farads) => {
+            let out = n.node("out");
+            n.add("c_out_f", Element::Capacitor { a: b, b: out, farads });
+            out
+        }
+        None => b,
+    };
+    if let Some(ohms) = c.fitted(Component::LoadOhm) {
+        n.add("load_ohm", Element::Resistor { a: output, b: Node::GROUND, ohms });
+    } else if c.fitted(Component::COutF).is_some() {
+        n.add("output pin leak", Element::Resistor { a: output, b: Node::GROUND, ohms: PIN_LEAK_OHM });
+    }
+    if let Some(farads) = c.fitted(Component::LoadF) {
+        n.add("load_f", Element::Capacitor { a: output, b: Node::GROUND, farads });
+    }
+    if let Some(node) = first_floating(&n, PathKind::Dc) {
+        return Err(floating_error(&n, node, &gates));
+    }
+    let nodes = StageNodes { emf, input, a, gates, outputs, b, output };
+    Ok(StageCircuit { netlist: n, nodes, source })
+}
+
+/// The part's stages in series from `g1`, with their capacitances: returns the
+/// stage inputs and outputs.
+pub fn add_part(n: &mut Netlist, part: &Part, law: &InverterLaw, g1: Node) -> (Vec<Node>, Vec<Node>) {
+    let law = std::sync::Arc::new(*law);
+    let mut gates = vec![g1];
+    let mut outputs = Vec::new();
+    for k in 1..=part.stages as usize {
+        let gate = gates[k - 1];
+        let out = n.node(&format!("o{k}"));
+        n.add(format!("stage {k}"), Element::Device { input: gate, output: out, law: law.clone() });
+        for (name, a, b, farads) in [
+            ("cgs", gate, Node::GROUND, part.caps.cgs),
+            ("cgd", gate, out, part.caps.cgd),
+            ("cdb", out, Node::GROUND, part.caps.cdb),
+        ] {
+            if farads > 0.0 {
+                n.add(format!("{name} {k}"), Element::Capacitor { a, b, farads });
+            }
+        }
+        outputs.push(out);
+        if k < part.stages as usize {
+            gates.push(out);
+        }
+    }
+    (gates, outputs)
+}
+
+fn floating_error(n: &Netlist, node: Node, gates: &[Node]) -> FieldError {
+    if node == gates[0] {
+        FieldError::new(
+            "stage.r_fb_ohm",
+            "the gate of the first stage has no DC path: fit a feedback resistor (or DC-couple the input)",
+        )
+    } else {
+        FieldError::new("stage", format!("node `{}` has no DC path to ground", n.node_name(node)))
+    }
+}
