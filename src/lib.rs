@@ -19,6 +19,7 @@
 //! assert_eq!(nearest(5e3, Series::E24).unwrap().nearest, 5100.0);
 //! ```
 
+pub mod analysis;
 pub mod doc;
 pub mod engine;
 pub mod error;

@@ -1,6 +1,7 @@
 //! Argument parsing and dispatch to one module per verb. Every verb returns the
 //! text to print, or a one-line failure.
 
+mod analyze;
 mod check;
 mod convert;
 mod nearest;
@@ -42,6 +43,8 @@ enum Verb {
     Nearest(nearest::Args),
     /// Check that a design document is valid.
     Check(check::Args),
+    /// Analyse a design: the operating point of the part in its stage.
+    Analyze(analyze::Args),
 }
 
 /// Parses the command line and runs the verb.
@@ -57,6 +60,7 @@ pub fn run(args: impl IntoIterator<Item = OsString>) -> Result<String, Failure> 
         Verb::Mismatch(args) => convert::run_mismatch(args),
         Verb::Nearest(args) => nearest::run(args),
         Verb::Check(args) => check::run(args),
+        Verb::Analyze(args) => analyze::run(args),
     }
 }
 

@@ -5,7 +5,7 @@
 mod quantity;
 mod sections;
 mod serialize;
-pub use serialize::{DocumentSummary, LookupReport, NearestReport, SeriesFacts, ValueInUnit};
+pub use serialize::{AnalyzeReport, BiasReport, DocumentSummary, LookupReport, NearestReport, SeriesFacts, ValueInUnit};
 mod validate;
 
 pub use sections::{

@@ -158,3 +158,91 @@ impl Serialize for SeriesFacts {
         out.end()
     }
 }
+
+serialize_fields!(crate::analysis::StageBias {
+    "vin_v" => vin_v,
+    "vout_v" => vout_v,
+    "id_a" => id_a,
+    "gm_n_s" => gm_n_s,
+    "gm_p_s" => gm_p_s,
+    "gds_n_s" => gds_n_s,
+    "gds_p_s" => gds_p_s,
+    "gm_s" => gm_s,
+    "gds_s" => gds_s,
+    "gain" => gain,
+    "saturated" => saturated,
+});
+
+serialize_fields!(crate::analysis::Warning {
+    "code" => code,
+    "text" => text,
+});
+
+serialize_fields!(crate::analysis::Window {
+    "low_v" => low_v,
+    "high_v" => high_v,
+});
+
+serialize_fields!(crate::analysis::BarePoint {
+    "vin_v" => vin_v,
+    "vout_v" => vout_v,
+    "gain" => gain,
+    "saturated" => saturated,
+});
+
+serialize_fields!(crate::analysis::LoopPoint {
+    "emf_v" => emf_v,
+    "vin_v" => vin_v,
+    "vout_v" => vout_v,
+});
+
+serialize_fields!(crate::analysis::BareCurve {
+    "bias_vin_v" => bias_vin_v,
+    "a0" => a0,
+    "saturated" => saturated,
+    "within_1db" => within_1db,
+    "points" => points,
+});
+
+/// The `bias` section of `halfrail analyze` (SPEC §4) with the curve windows.
+pub struct BiasReport<'a> {
+    pub bias: &'a crate::analysis::Bias,
+    pub curve: &'a crate::analysis::BareCurve,
+}
+
+impl Serialize for BiasReport<'_> {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let b = self.bias;
+        let first = &b.stages[0];
+        let mut out = serializer.serialize_struct("BiasReport", 16)?;
+        out.serialize_field("vin_v", &b.vin_v)?;
+        out.serialize_field("vout_v", &b.vout_v)?;
+        out.serialize_field("iq_a", &b.iq_a)?;
+        out.serialize_field("power_w", &b.power_w)?;
+        out.serialize_field("dissipation_w", &b.dissipation_w)?;
+        out.serialize_field("gm_s", &first.gm_s)?;
+        out.serialize_field("gds_s", &first.gds_s)?;
+        out.serialize_field("a0", &b.a0)?;
+        out.serialize_field("self_bias_v", &b.self_bias_v)?;
+        out.serialize_field("shift_v", &b.shift_v)?;
+        out.serialize_field("stages", &b.stages)?;
+        out.serialize_field("bare_a0", &self.curve.a0)?;
+        out.serialize_field("window_saturated", &self.curve.saturated)?;
+        out.serialize_field("window_1db", &self.curve.within_1db)?;
+        out.serialize_field("warnings", &b.warnings)?;
+        out.end()
+    }
+}
+
+/// What `halfrail analyze` prints: one section per analysis computed so far.
+pub struct AnalyzeReport<'a> {
+    pub bias: BiasReport<'a>,
+}
+
+impl Serialize for AnalyzeReport<'_> {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let mut out = serializer.serialize_struct("AnalyzeReport", 1)?;
+        out.serialize_field("bias", &self.bias)?;
+        out.end()
+    }
+}

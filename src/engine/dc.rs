@@ -3,7 +3,7 @@
 
 use nalgebra::{DMatrix, DVector};
 
-use super::mna::{device_states, dc_sources, linear_stamps, stamp_devices, Layout};
+use super::mna::{device_states, dc_sources, linear_stamps, stamp_devices, Layout, GMIN};
 use super::netlist::{DeviceState, Netlist, Node};
 use super::topology::{first_floating, PathKind};
 use crate::error::{FieldError, Result};
@@ -140,12 +140,18 @@ pub fn operating_point(netlist: &Netlist, guess: Option<&DVector<f64>>) -> Resul
     let start = guess.filter(|s| s.len() == layout.size).unwrap_or(&zero);
 
     let mut total = 0;
+    // Every solve carries GMIN; the answer is polished without it where the
+    // Jacobian allows (it does unless a node hangs on switched-off devices alone).
     let finish = |x: DVector<f64>, iterations: usize, method: Method| {
+        let (x, iterations) = match problem.newton(&x, 1.0, 0.0) {
+            Ok((exact, n)) => (exact, iterations + n),
+            Err(_) => (x, iterations),
+        };
         let devices = device_states(netlist, &layout, &x, 1.0);
         OperatingPoint { layout: layout.clone(), x, devices, iterations, method }
     };
 
-    let mut last_worst = match problem.newton(start, 1.0, 0.0) {
+    let mut last_worst = match problem.newton(start, 1.0, GMIN) {
         Ok((x, n)) => return Ok(finish(x, n, Method::Newton)),
         Err(s) => s.worst,
     };
@@ -168,7 +174,7 @@ pub fn operating_point(netlist: &Netlist, guess: Option<&DVector<f64>>) -> Resul
         }
     }
     if gmin_ok {
-        if let Ok((x, n)) = problem.newton(&x, 1.0, 0.0) {
+        if let Ok((x, n)) = problem.newton(&x, 1.0, GMIN) {
             return Ok(finish(x, total + n, Method::GminStepping));
         }
     }
@@ -179,7 +185,7 @@ pub fn operating_point(netlist: &Netlist, guess: Option<&DVector<f64>>) -> Resul
     total = 0;
     while scale < 1.0 {
         let target = (scale + stride).min(1.0);
-        match problem.newton(&x, target, 0.0) {
+        match problem.newton(&x, target, GMIN) {
             Ok((next, n)) => {
                 x = next;
                 total += n;

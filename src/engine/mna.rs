@@ -16,8 +16,8 @@ use num_complex::Complex64;
 use super::netlist::{DeviceState, Element, Netlist, Node};
 
 /// A conductance from every node to ground, far below any real element, that keeps
-/// a node with devices switched off from leaving the matrix singular (the usual SPICE
-/// GMIN; common practice).
+/// a node with devices switched off from leaving the DC Jacobian singular (the usual
+/// SPICE GMIN; common practice). The DC solve removes it again at the end where it can.
 pub const GMIN: f64 = 1e-12;
 
 /// Where each unknown sits in the solution vector.
@@ -74,14 +74,11 @@ fn stamp_admittance(m: &mut DMatrix<f64>, a: Option<usize>, b: Option<usize>, y:
     add(m, b, a, -y);
 }
 
-/// The linear part: `G` (with GMIN on every node) and `C`.
+/// The linear part: `G` and `C`.
 pub fn linear_stamps(netlist: &Netlist, layout: &Layout) -> (DMatrix<f64>, DMatrix<f64>) {
     let n = layout.size;
     let mut g = DMatrix::zeros(n, n);
     let mut c = DMatrix::zeros(n, n);
-    for i in 0..layout.nodes {
-        g[(i, i)] += GMIN;
-    }
     for (k, named) in netlist.elements().iter().enumerate() {
         let at = |node: Node| layout.index(node);
         match named.element {

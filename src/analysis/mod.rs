@@ -1,0 +1,7 @@
+//! Analyses of the stage, each in its own module, all on the one engine.
+
+mod bias;
+mod transfer;
+
+pub use bias::{bias, Bias, StageBias, Warning};
+pub use transfer::{bare_curve, closed_loop_curve, BareCurve, BarePoint, LoopPoint, Window, BARE_POINTS};
