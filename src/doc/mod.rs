@@ -86,7 +86,8 @@ fn check_version(text: &str) -> Result<()> {
 ///
 /// ```
 /// let doc = halfrail::doc::load(r#"{"halfrail": 1, "stage": {"r_fb_ohm": "4k7"}}"#).unwrap();
-/// assert_eq!(doc.stage.unwrap().r_fb_ohm, Some(4700.0));
+/// use halfrail::stage::Component;
+/// assert_eq!(doc.stage.unwrap().get(Component::RFbOhm), Some(4700.0));
 ///
 /// let bad = halfrail::doc::load(r#"{"halfrail": 1, "stage": {"r_fb_ohm": -3300}}"#).unwrap_err();
 /// assert_eq!(bad.to_string(), "stage.r_fb_ohm: must be > 0, got -3300");
