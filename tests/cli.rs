@@ -107,3 +107,44 @@ fn help_is_not_an_error() {
     assert!(out.status.success());
     assert!(stdout(&out).contains("convert"));
 }
+
+#[test]
+fn analyze_prints_the_bias_section() {
+    let out = halfrail(&["analyze", &fixture("if-block.halfrail.json")]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let json: serde_json::Value = serde_json::from_str(&stdout(&out)).unwrap();
+    let bias = &json["bias"];
+    for key in ["vin_v", "vout_v", "iq_a", "power_w", "gm_s", "gds_s", "a0"] {
+        assert!(bias[key].as_f64().is_some_and(f64::is_finite), "bias.{key}: {}", bias[key]);
+    }
+    // A self-biased unbuffered part: the output sits between the rails, the gain inverts,
+    // and the power is VDD·Iq.
+    let (vout, a0) = (bias["vout_v"].as_f64().unwrap(), bias["a0"].as_f64().unwrap());
+    assert!(vout > 0.5 && vout < 2.8 && a0 < -5.0, "{vout} {a0}");
+    let power = bias["power_w"].as_f64().unwrap();
+    assert!((power - 3.3 * bias["iq_a"].as_f64().unwrap()).abs() < 1e-12);
+}
+
+#[test]
+fn fit_prints_a_part_that_reads_back() {
+    let out = halfrail(&["fit", &fixture("if-block.halfrail.json")]);
+    assert!(out.status.success(), "{}", stderr(&out));
+    let json: serde_json::Value = serde_json::from_str(&stdout(&out)).unwrap();
+    let names: Vec<&str> = json["parameters"].as_array().unwrap().iter().map(|p| p["name"].as_str().unwrap()).collect();
+    assert_eq!(names, ["kn", "kp", "lambda", "cap"]);
+    // The fitted part is a valid `part` section of a document.
+    let doc = serde_json::json!({"halfrail": 1, "part": json["part"]});
+    halfrail::doc::load(&doc.to_string()).unwrap();
+}
+
+#[test]
+fn analysis_verbs_name_what_is_missing() {
+    let dir = std::env::temp_dir().join(format!("halfrail-cli-missing-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let bare = dir.join("bare.json");
+    std::fs::write(&bare, r#"{"halfrail": 1}"#).unwrap();
+    let bare = bare.display().to_string();
+    refused(&["analyze", &bare], "part: missing");
+    refused(&["fit", &bare], "bench: missing");
+    std::fs::remove_dir_all(&dir).ok();
+}

@@ -47,7 +47,7 @@ fn the_demo_reads_in_every_notation() {
     assert_eq!((target.gain_kind, target.series), (GainKind::Voltage, Series::E24));
     assert_eq!(d.tolerance.unwrap().vt_mv, 100.0, "\"100 mV\" in a _mv field is 100");
     let bench = d.bench.unwrap();
-    assert_eq!(bench.gains[1].gain_db, Some(17.1));
+    assert_eq!(bench.gains[2].gain_db, Some(8.9));
     let chain = d.chain.unwrap();
     assert_eq!(chain.blocks.len(), 4);
     assert_eq!(chain.blocks[3].kind, BlockKind::Amp);

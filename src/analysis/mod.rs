@@ -1,7 +1,9 @@
 //! Analyses of the stage, each in its own module, all on the one engine.
 
 mod bias;
+mod fit;
 mod transfer;
 
 pub use bias::{bias, Bias, StageBias, Warning};
 pub use transfer::{bare_curve, closed_loop_curve, BareCurve, BarePoint, LoopPoint, Window, BARE_POINTS};
+pub use fit::{default_params, fit, predict, Fit, Fitted, Param, Readings, Residual};

@@ -4,6 +4,7 @@
 mod analyze;
 mod check;
 mod convert;
+mod fit;
 mod nearest;
 
 use std::ffi::OsString;
@@ -45,6 +46,8 @@ enum Verb {
     Check(check::Args),
     /// Analyse a design: the operating point of the part in its stage.
     Analyze(analyze::Args),
+    /// Fit the part to the bench readings of a document.
+    Fit(fit::Args),
 }
 
 /// Parses the command line and runs the verb.
@@ -61,6 +64,7 @@ pub fn run(args: impl IntoIterator<Item = OsString>) -> Result<String, Failure> 
         Verb::Nearest(args) => nearest::run(args),
         Verb::Check(args) => check::run(args),
         Verb::Analyze(args) => analyze::run(args),
+        Verb::Fit(args) => fit::run(args),
     }
 }
 

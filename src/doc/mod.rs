@@ -37,6 +37,32 @@ impl Part {
     }
 }
 
+impl Bench {
+    /// The readings as the fit takes them (gains in V/V).
+    pub fn readings(&self) -> crate::analysis::Readings {
+        crate::analysis::Readings {
+            idd_a: self.idd_a,
+            vbias_v: self.vbias_v,
+            load_ohm: self.load_ohm,
+            load_f: self.load_f,
+            gains: self
+                .gains
+                .iter()
+                .map(|g| (g.f_hz, g.gain_vv.or(g.gain_db.map(crate::units::db_voltage_ratio)).unwrap_or(f64::NAN)))
+                .collect(),
+            curve: self.curve.iter().map(|p| (p.vin_v, p.vout_v)).collect(),
+        }
+    }
+
+    /// The parameters named in `fit`, or those the readings determine.
+    pub fn params(&self) -> Vec<crate::analysis::Param> {
+        match &self.fit {
+            Some(names) => names.iter().filter_map(|n| crate::analysis::Param::from_name(n)).collect(),
+            None => crate::analysis::default_params(&self.readings()),
+        }
+    }
+}
+
 /// The largest document accepted, in bytes.
 pub const MAX_DOCUMENT_BYTES: usize = 4 << 20;
 

@@ -295,6 +295,9 @@ pub struct Bench {
     pub gains: Vec<GainReading>,
     #[serde(default)]
     pub curve: Vec<CurvePoint>,
+    /// The parameters to fit (kn, kp, vtn, vtp, lambda, cap); absent: what the readings determine.
+    #[serde(default)]
+    pub fit: Option<Vec<String>>,
 }
 
 /// The kind of a chain block.

@@ -246,3 +246,57 @@ impl Serialize for AnalyzeReport<'_> {
         out.end()
     }
 }
+
+/// A part in the document's own keys, so a fitted part can be pasted into a design.
+impl Serialize for crate::part::Part {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        use crate::part::Model;
+        let mut out = serializer.serialize_struct("Part", 15)?;
+        let (model, slope) = match self.model {
+            Model::SquareLaw => ("square-law", None),
+            Model::Ekv { slope } => ("ekv", Some(slope)),
+        };
+        out.serialize_field("model", model)?;
+        out.serialize_field("vdd_v", &self.vdd)?;
+        out.serialize_field("stages", &self.stages)?;
+        out.serialize_field("kn_a_per_v2", &self.nmos.k)?;
+        out.serialize_field("kp_a_per_v2", &self.pmos.k)?;
+        out.serialize_field("vtn_v", &self.nmos.vt)?;
+        out.serialize_field("vtp_v", &-self.pmos.vt)?;
+        out.serialize_field("lambda_n_per_v", &self.nmos.lambda)?;
+        out.serialize_field("lambda_p_per_v", &self.pmos.lambda)?;
+        out.serialize_field("cgs_f", &self.caps.cgs)?;
+        out.serialize_field("cgd_f", &self.caps.cgd)?;
+        out.serialize_field("cdb_f", &self.caps.cdb)?;
+        out.serialize_field("gamma", &self.gamma)?;
+        out.serialize_field("temp_c", &self.temp_c)?;
+        if let Some(n) = slope {
+            out.serialize_field("n_slope", &n)?;
+        } else {
+            out.skip_field("n_slope")?;
+        }
+        out.end()
+    }
+}
+
+serialize_fields!(crate::analysis::Fitted {
+    "name" => name,
+    "value" => value,
+    "sigma" => sigma,
+});
+
+serialize_fields!(crate::analysis::Residual {
+    "reading" => reading,
+    "measured" => measured,
+    "fitted" => fitted,
+    "normalized" => normalized,
+});
+
+serialize_fields!(crate::analysis::Fit {
+    "part" => part,
+    "parameters" => parameters,
+    "residuals" => residuals,
+    "chi2" => chi2,
+    "dof" => dof,
+    "evaluations" => evaluations,
+});

@@ -173,6 +173,11 @@ fn bench(b: &Bench) -> Result<()> {
             (Option::None, Option::None) => return Err(FieldError::new(at, "needs gain_vv or gain_db")),
         }
     }
+    for (i, name) in b.fit.iter().flatten().enumerate() {
+        if crate::analysis::Param::from_name(name).is_none() {
+            return Err(FieldError::new(format!("bench.fit[{i}]"), format!("`{name}` is not a parameter (kn, kp, vtn, vtp, lambda, cap)")));
+        }
+    }
     list_length("bench.curve", b.curve.len())?;
     for (i, p) in b.curve.iter().enumerate() {
         range(&format!("bench.curve[{i}].vin_v"), p.vin_v, Closed(0.0), Closed(b.vdd_v))?;

@@ -1,0 +1,393 @@
+//! Bench fit: the part's parameters from readings taken with a generator and a
+//! scope, by Levenberg–Marquardt least squares (the `levenberg-marquardt` crate),
+//! each reading weighted by its usual bench uncertainty, with every parameter's
+//! standard uncertainty from the Jacobian at the solution.
+//!
+//! Each prediction is an engine analysis of the part as it is measured:
+//! self-biased through a large feedback resistor with its output unloaded
+//! (supply current, bias voltage), driven at the gate around that bias into the
+//! known load (open-loop gain), and swept at the gate unloaded (transfer points).
+
+use levenberg_marquardt::{LeastSquaresProblem, LevenbergMarquardt};
+use nalgebra::{DMatrix, DVector, Dyn, Owned};
+
+use crate::engine::{operating_point, Element, Netlist, Node, SmallSignal};
+use crate::error::{FieldError, Result};
+use crate::part::{Capacitances, Part};
+use crate::stage::add_part;
+
+/// What was measured at the bench.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Readings {
+    /// Supply current with the part self-biased.
+    pub idd_a: Option<f64>,
+    /// The self-bias voltage.
+    pub vbias_v: Option<f64>,
+    /// The known load of the gain readings (AC-coupled).
+    pub load_ohm: Option<f64>,
+    pub load_f: Option<f64>,
+    /// Open-loop gain magnitudes (V/V) at frequencies (Hz).
+    pub gains: Vec<(f64, f64)>,
+    /// Points of the unloaded transfer curve (Vin, Vout).
+    pub curve: Vec<(f64, f64)>,
+}
+
+/// A parameter the fit can move.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Param {
+    Kn,
+    Kp,
+    Vtn,
+    Vtp,
+    /// Both λ scaled by one factor.
+    Lambda,
+    /// All three capacitances scaled by one factor.
+    Cap,
+}
+
+impl Param {
+    pub const ALL: [Param; 6] = [Param::Kn, Param::Kp, Param::Vtn, Param::Vtp, Param::Lambda, Param::Cap];
+
+    pub fn name(self) -> &'static str {
+        match self {
+            Param::Kn => "kn",
+            Param::Kp => "kp",
+            Param::Vtn => "vtn",
+            Param::Vtp => "vtp",
+            Param::Lambda => "lambda",
+            Param::Cap => "cap",
+        }
+    }
+
+    pub fn from_name(name: &str) -> Option<Param> {
+        Param::ALL.into_iter().find(|p| p.name() == name)
+    }
+
+    /// Thresholds are fitted through a logistic map of Vt/VDD so they stay inside the
+    /// supply; the rest as logarithms, so they stay positive.
+    fn is_threshold(self) -> bool {
+        matches!(self, Param::Vtn | Param::Vtp)
+    }
+}
+
+/// Bench uncertainties the readings are weighted by (common practice for a
+/// generator, a scope and a bench meter): current 1 %, bias voltage 10 mV, gain
+/// 2 % (0.17 dB), transfer-curve points 20 mV.
+pub const SIGMA_IDD_REL: f64 = 0.01;
+pub const SIGMA_VBIAS_V: f64 = 0.01;
+pub const SIGMA_GAIN_REL: f64 = 0.02;
+pub const SIGMA_CURVE_V: f64 = 0.02;
+
+/// Feedback resistor used to model the self-biased measurement: large enough not
+/// to load the output, as on the bench.
+const BENCH_FEEDBACK_OHM: f64 = 1e7;
+/// Capacitances assumed when the starting part has none, so a scale can move them.
+const DEFAULT_CAPS: Capacitances = Capacitances { cgs: 2e-12, cgd: 1e-12, cdb: 2e-12 };
+const DEFAULT_LAMBDA: f64 = 0.05;
+
+/// The parameters a set of readings can determine, when the user names none:
+/// kn and kp from the current and bias, λ from a gain reading, the capacitance from
+/// a second gain at another frequency, and the thresholds from two curve points.
+pub fn default_params(r: &Readings) -> Vec<Param> {
+    let mut params = Vec::new();
+    if r.idd_a.is_some() && r.vbias_v.is_some() {
+        params.extend([Param::Kn, Param::Kp]);
+    }
+    if !r.gains.is_empty() {
+        params.push(Param::Lambda);
+    }
+    let distinct = r.gains.iter().any(|g| (g.0 - r.gains[0].0).abs() > 1e-9 * g.0);
+    if distinct {
+        params.push(Param::Cap);
+    }
+    if r.curve.len() >= 2 {
+        params.extend([Param::Vtn, Param::Vtp]);
+    }
+    params
+}
+
+/// One fitted parameter with its standard uncertainty (1σ).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Fitted {
+    pub name: &'static str,
+    pub value: f64,
+    pub sigma: f64,
+}
+
+/// One reading against the fitted part.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Residual {
+    pub reading: String,
+    pub measured: f64,
+    pub fitted: f64,
+    /// (fitted − measured)/σ.
+    pub normalized: f64,
+}
+
+/// The fit's result.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Fit {
+    pub part: Part,
+    pub parameters: Vec<Fitted>,
+    pub residuals: Vec<Residual>,
+    /// Σ normalized², and the degrees of freedom left (readings − parameters).
+    pub chi2: f64,
+    pub dof: usize,
+    pub evaluations: usize,
+}
+
+/// The fit problem: a starting part, which parameters move, and the readings.
+#[derive(Clone)]
+struct Problem<'a> {
+    base: Part,
+    params: &'a [Param],
+    readings: &'a Readings,
+    x: DVector<f64>,
+}
+
+/// The base values that scale parameters multiply.
+fn base_of(part: &Part) -> Part {
+    let mut base = part.clone();
+    if base.caps == Capacitances::default() {
+        base.caps = DEFAULT_CAPS;
+    }
+    if base.nmos.lambda == 0.0 && base.pmos.lambda == 0.0 {
+        base.nmos.lambda = DEFAULT_LAMBDA;
+        base.pmos.lambda = DEFAULT_LAMBDA;
+    }
+    base
+}
+
+impl Problem<'_> {
+    /// The starting vector: logarithms of k, logits of Vt/VDD, and 0 for the scale factors.
+    fn start(base: &Part, params: &[Param]) -> DVector<f64> {
+        let logit = |vt: f64| (vt / base.vdd / (1.0 - vt / base.vdd)).ln();
+        DVector::from_iterator(
+            params.len(),
+            params.iter().map(|p| match p {
+                Param::Kn => base.nmos.k.ln(),
+                Param::Kp => base.pmos.k.ln(),
+                Param::Vtn => logit(base.nmos.vt),
+                Param::Vtp => logit(base.pmos.vt),
+                Param::Lambda | Param::Cap => 0.0,
+            }),
+        )
+    }
+
+    /// The part at parameter vector `x`.
+    fn part_at(&self, x: &DVector<f64>) -> Part {
+        let mut p = self.base.clone();
+        let threshold = |v: f64| p.vdd / (1.0 + (-v).exp());
+        for (param, &v) in self.params.iter().zip(x.iter()) {
+            match param {
+                Param::Kn => p.nmos.k = v.exp(),
+                Param::Kp => p.pmos.k = v.exp(),
+                Param::Vtn => p.nmos.vt = threshold(v),
+                Param::Vtp => p.pmos.vt = threshold(v),
+                Param::Lambda => {
+                    p.nmos.lambda = self.base.nmos.lambda * v.exp();
+                    p.pmos.lambda = self.base.pmos.lambda * v.exp();
+                }
+                Param::Cap => {
+                    let s = v.exp();
+                    p.caps = Capacitances { cgs: self.base.caps.cgs * s, cgd: self.base.caps.cgd * s, cdb: self.base.caps.cdb * s };
+                }
+            }
+        }
+        p
+    }
+}
+
+/// Every reading predicted for `part`, with its label and σ, in a fixed order.
+pub fn predict(part: &Part, r: &Readings) -> Result<Vec<(String, f64, f64, f64)>> {
+    let mut out = Vec::new();
+    let self_bias = self_biased(part)?;
+    if let Some(idd) = r.idd_a {
+        out.push(("supply current (A)".to_string(), idd, self_bias.1, SIGMA_IDD_REL * idd));
+    }
+    if let Some(v) = r.vbias_v {
+        out.push(("bias voltage (V)".to_string(), v, self_bias.0, SIGMA_VBIAS_V));
+    }
+    for &(f, gain) in &r.gains {
+        let fitted = open_loop_gain(part, self_bias.0, f, r.load_ohm, r.load_f)?;
+        out.push((format!("gain at {} Hz (V/V)", crate::units::format_eng(f, None, 4)), gain, fitted, SIGMA_GAIN_REL * gain));
+    }
+    for &(vin, vout) in &r.curve {
+        out.push((format!("Vout at Vin = {vin} V"), vout, transfer_point(part, vin)?, SIGMA_CURVE_V));
+    }
+    Ok(out)
+}
+
+/// The self-bias voltage and supply current of the unloaded part.
+fn self_biased(part: &Part) -> Result<(f64, f64)> {
+    let law = part.law()?;
+    let mut n = Netlist::new();
+    let g1 = n.node("g1");
+    let (_, outputs) = add_part(&mut n, part, &law, g1);
+    let out = *outputs.last().expect("one stage at least");
+    n.add("feedback", Element::Resistor { a: g1, b: out, ohms: BENCH_FEEDBACK_OHM });
+    let op = operating_point(&n, None)?;
+    let iq = op.devices.iter().flatten().map(|d| d.i_supply).sum();
+    Ok((op.voltage(out), iq))
+}
+
+/// |v(out)/v(gate)| with the gate held at the self-bias and driven by 1 V
+/// small-signal, into the load through a large coupling capacitor.
+fn open_loop_gain(part: &Part, vbias: f64, f_hz: f64, load_ohm: Option<f64>, load_f: Option<f64>) -> Result<f64> {
+    let law = part.law()?;
+    let mut n = Netlist::new();
+    let g1 = n.node("g1");
+    n.add("drive", Element::VoltageSource { a: g1, b: Node::GROUND, dc: vbias, ac: 1.0 });
+    let (_, outputs) = add_part(&mut n, part, &law, g1);
+    let out = *outputs.last().expect("one stage at least");
+    let pin = n.node("load");
+    n.add("coupling", Element::Capacitor { a: out, b: pin, farads: 1.0 });
+    n.add("load_ohm", Element::Resistor { a: pin, b: Node::GROUND, ohms: load_ohm.unwrap_or(1e12) });
+    if let Some(farads) = load_f {
+        n.add("load_f", Element::Capacitor { a: pin, b: Node::GROUND, farads });
+    }
+    let op = operating_point(&n, None)?;
+    let small = SmallSignal::at(&n, &op)?;
+    let x = small.solve(std::f64::consts::TAU * f_hz)?;
+    Ok(small.layout.voltage(&x, out).norm())
+}
+
+/// The unloaded part's output with its gate held at `vin`.
+fn transfer_point(part: &Part, vin: f64) -> Result<f64> {
+    let law = part.law()?;
+    let mut n = Netlist::new();
+    let g1 = n.node("g1");
+    n.add("drive", Element::VoltageSource { a: g1, b: Node::GROUND, dc: vin, ac: 0.0 });
+    let (_, outputs) = add_part(&mut n, part, &law, g1);
+    let op = operating_point(&n, None)?;
+    Ok(op.voltage(*outputs.last().expect("one stage at least")))
+}
+
+impl Problem<'_> {
+    fn normalized(&self, x: &DVector<f64>) -> Option<DVector<f64>> {
+        let rows = predict(&self.part_at(x), self.readings).ok()?;
+        Some(DVector::from_iterator(rows.len(), rows.iter().map(|(_, m, f, s)| (f - m) / s)))
+    }
+}
+
+/// Step of the central-difference Jacobian in the fitted (log or logit) coordinates:
+/// large enough that the Newton tolerance of each prediction is noise far below
+/// the difference, small enough that the truncation error (∝ step²) is negligible.
+const JACOBIAN_STEP: f64 = 1e-4;
+
+impl LeastSquaresProblem<f64, Dyn, Dyn> for Problem<'_> {
+    type ResidualStorage = Owned<f64, Dyn>;
+    type JacobianStorage = Owned<f64, Dyn, Dyn>;
+    type ParameterStorage = Owned<f64, Dyn>;
+
+    fn set_params(&mut self, x: &DVector<f64>) {
+        self.x.copy_from(x);
+    }
+
+    fn params(&self) -> DVector<f64> {
+        self.x.clone()
+    }
+
+    fn residuals(&self) -> Option<DVector<f64>> {
+        self.normalized(&self.x)
+    }
+
+    fn jacobian(&self) -> Option<DMatrix<f64>> {
+        let base = self.normalized(&self.x)?;
+        let mut j = DMatrix::zeros(base.len(), self.x.len());
+        for k in 0..self.x.len() {
+            let h = JACOBIAN_STEP * self.x[k].abs().max(1.0);
+            let (mut up, mut down) = (self.x.clone(), self.x.clone());
+            up[k] += h;
+            down[k] -= h;
+            let column = (self.normalized(&up)? - self.normalized(&down)?) / (2.0 * h);
+            j.set_column(k, &column);
+        }
+        Some(j)
+    }
+}
+
+/// Fits `params` of `start` to `readings`. Refuses, naming the reason, when the
+/// readings are fewer than the parameters or cannot tell some parameter apart.
+pub fn fit(start: &Part, readings: &Readings, params: &[Param]) -> Result<Fit> {
+    if params.is_empty() {
+        return Err(FieldError::new("bench", "these readings determine no parameter: give the supply current and bias voltage, gain readings or transfer-curve points"));
+    }
+    let names: Vec<&str> = params.iter().map(|p| p.name()).collect();
+    let base = base_of(start);
+    let count = predict(&base, readings)?.len();
+    if count < params.len() {
+        return Err(FieldError::new(
+            "bench",
+            format!("{count} readings cannot determine {} parameters ({}); add readings or fit fewer with bench.fit", params.len(), names.join(", ")),
+        ));
+    }
+    let problem = Problem { x: Problem::start(&base, params), base, params, readings };
+    let jacobian = problem.jacobian().ok_or_else(|| FieldError::new("bench", "the starting part cannot be analysed"))?;
+    check_determined(&jacobian, params)?;
+    let (solved, report) = LevenbergMarquardt::new().with_patience(200).minimize(problem);
+    if !report.termination.was_successful() {
+        return Err(FieldError::new("bench", format!("the fit did not converge ({:?})", report.termination)));
+    }
+    let jacobian = solved.jacobian().ok_or_else(|| FieldError::new("bench", "the fitted part cannot be analysed"))?;
+    check_determined(&jacobian, params)?;
+    let part = solved.part_at(&solved.x);
+    let rows = predict(&part, readings)?;
+    let chi2: f64 = rows.iter().map(|(_, m, f, s)| ((f - m) / s).powi(2)).sum();
+    let dof = rows.len() - params.len();
+    // Covariance from the weighted Jacobian; inflated by the reduced χ² when the
+    // scatter exceeds the assumed bench uncertainties.
+    let scale = if dof > 0 { (chi2 / dof as f64).max(1.0) } else { 1.0 };
+    let covariance = (jacobian.transpose() * &jacobian)
+        .try_inverse()
+        .ok_or_else(|| FieldError::new("bench", "the readings cannot determine these parameters"))?
+        * scale;
+    let parameters = params
+        .iter()
+        .enumerate()
+        .map(|(i, p)| {
+            let s = covariance[(i, i)].sqrt();
+            let value = natural_value(&part, *p);
+            // Propagated through the map's slope: d(ln v) = dv/v, and for a threshold
+            // Vt = VDD·σ(x), dVt/dx = Vt·(1 − Vt/VDD).
+            let slope = if p.is_threshold() { value * (1.0 - value / part.vdd) } else { value };
+            let sigma = slope * s;
+            Fitted { name: p.name(), value, sigma }
+        })
+        .collect();
+    let residuals = rows
+        .into_iter()
+        .map(|(reading, measured, fitted, sigma)| Residual { reading, measured, fitted, normalized: (fitted - measured) / sigma })
+        .collect();
+    Ok(Fit { part, parameters, residuals, chi2, dof, evaluations: report.number_of_evaluations })
+}
+
+/// A parameter's value in the part's own units (λ of the NMOS, cgs for the capacitance scale).
+fn natural_value(part: &Part, p: Param) -> f64 {
+    match p {
+        Param::Kn => part.nmos.k,
+        Param::Kp => part.pmos.k,
+        Param::Vtn => part.nmos.vt,
+        Param::Vtp => part.pmos.vt,
+        Param::Lambda => part.nmos.lambda,
+        Param::Cap => part.caps.cgs + part.caps.cgd + part.caps.cdb,
+    }
+}
+
+/// Refuses a Jacobian whose columns the readings cannot tell apart: the weakest
+/// singular direction names the parameter it is mostly made of.
+fn check_determined(j: &DMatrix<f64>, params: &[Param]) -> Result<()> {
+    let svd = j.clone().svd(false, true);
+    let largest = svd.singular_values.max();
+    let (weakest, smallest) = svd.singular_values.argmin();
+    if !(smallest > 1e-7 * largest && largest > 0.0) {
+        let v_t = svd.v_t.expect("asked for V");
+        let row = v_t.row(weakest);
+        let (worst, _) = row.iter().enumerate().fold((0, 0.0), |best, (i, v)| if v.abs() > best.1 { (i, v.abs()) } else { best });
+        return Err(FieldError::new(
+            "bench",
+            format!("these readings cannot determine {}: add readings that depend on it, or leave it out of bench.fit", params[worst].name()),
+        ));
+    }
+    Ok(())
+}
