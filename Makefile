@@ -35,7 +35,7 @@ test-wasm: setup-rust setup-browser
 	cd wasm-tests && cargo test --target wasm32-unknown-unknown
 
 test-e2e: setup-node setup-browser
-	cd wasm-tests && node --test e2e/
+	cd wasm-tests && node --test --test-concurrency=1 e2e/
 
 bench: dist setup-node setup-browser
 	node wasm-tests/bench/page.mjs $(PAGE)
@@ -46,11 +46,11 @@ setup-rust:
 	  echo "installing wasm-bindgen-cli $(WASM_BINDGEN_VERSION) (a few minutes)"; \
 	  cargo install wasm-bindgen-cli --version $(WASM_BINDGEN_VERSION); fi
 
-# wasm-opt from npm, pinned in www/package-lock.json: Debian's binaryen 108 breaks
-# the externref table that wasm-bindgen 0.2.13x emits.
+# The page's npm inputs, pinned in www/package-lock.json: uPlot, and wasm-opt
+# (Debian's binaryen 108 breaks the externref table that wasm-bindgen 0.2.13x emits).
 setup-build-tools:
 	@command -v node >/dev/null || { $(APT) update -qq && $(APT) install -y -qq nodejs npm; }
-	@[ -x www/node_modules/.bin/wasm-opt ] || (cd www && npm ci --no-audit --no-fund)
+	@[ -x www/node_modules/.bin/wasm-opt ] && [ -f www/node_modules/uplot/dist/uPlot.iife.min.js ] || (cd www && npm ci --no-audit --no-fund)
 
 setup-node: setup-build-tools
 	@[ -d wasm-tests/node_modules/playwright-core ] || (cd wasm-tests && npm ci --no-audit --no-fund)

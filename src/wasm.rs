@@ -143,3 +143,46 @@ pub fn ratio_pairs(text: &str, series: &str, count: usize) -> Result<JsValue, Js
 pub fn check_document(text: &str) -> Result<JsValue, JsValue> {
     to_js(&doc::summary(&doc::load(text).map_err(thrown)?))
 }
+
+/// The demo design document (our own scenario), as text.
+#[wasm_bindgen(js_name = demoDocument)]
+pub fn demo_document() -> String {
+    doc::DEMO.to_string()
+}
+
+/// The illustrative part presets, each with its part in document keys.
+#[wasm_bindgen]
+pub fn presets() -> Result<JsValue, JsValue> {
+    to_js(&crate::part::PRESETS)
+}
+
+/// Reads a document that must hold `part` and `stage`.
+fn part_and_stage(text: &str) -> Result<(doc::Document, crate::part::Part, crate::stage::Components), JsValue> {
+    let document = doc::load(text).map_err(thrown)?;
+    let part = document.part.as_ref().ok_or_else(|| thrown(FieldError::new("part", "missing")))?.to_core();
+    let stage = document.stage.ok_or_else(|| thrown(FieldError::new("stage", "missing")))?;
+    Ok((document, part, stage))
+}
+
+/// The Part panel's figures for a design document: the bias report, the bare
+/// part's transfer curve (`points` points) and the closed-loop curve.
+#[wasm_bindgen(js_name = partReport)]
+pub fn part_report(text: &str, points: usize) -> Result<JsValue, JsValue> {
+    use crate::analysis::{bare_curve, bias, closed_loop_curve};
+    let (document, part, stage) = part_and_stage(text)?;
+    let package = document.part.as_ref().and_then(|p| p.pkg_max_w);
+    let points = points.clamp(3, 5001);
+    let b = bias(&part, &stage, package).map_err(thrown)?;
+    let curve = bare_curve(&part, points).map_err(thrown)?;
+    let closed = closed_loop_curve(&part, &stage, points.min(401), None).map_err(thrown)?;
+    to_js(&doc::PartReport { bias: doc::BiasReport { bias: &b, curve: &curve }, closed: &closed })
+}
+
+/// Fits the part to the document's bench readings.
+#[wasm_bindgen(js_name = benchFit)]
+pub fn bench_fit(text: &str) -> Result<JsValue, JsValue> {
+    let document = doc::load(text).map_err(thrown)?;
+    let bench = document.bench.as_ref().ok_or_else(|| thrown(FieldError::new("bench", "missing")))?;
+    let start = bench.starting_part(document.part.as_ref());
+    to_js(&crate::analysis::fit(&start, &bench.readings(), &bench.params()).map_err(thrown)?)
+}

@@ -15,8 +15,9 @@ fn stderr(out: &Output) -> String {
     String::from_utf8(out.stderr.clone()).unwrap()
 }
 
-fn fixture(name: &str) -> String {
-    PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures").join(name).display().to_string()
+/// The demo design document shipped in the crate.
+fn demo() -> String {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("src/doc/demo.halfrail.json").display().to_string()
 }
 
 /// Asserts the run failed as bad input: status 2, one line on stderr containing `needle`.
@@ -67,7 +68,7 @@ fn nearest_in_a_series() {
 
 #[test]
 fn check_a_document() {
-    let out = halfrail(&["check", &fixture("if-block.halfrail.json")]);
+    let out = halfrail(&["check", &demo()]);
     assert!(out.status.success(), "{}", stderr(&out));
     assert!(stdout(&out).contains("with part, stage, analysis, target, tolerance, bench, chain"));
 }
@@ -110,7 +111,7 @@ fn help_is_not_an_error() {
 
 #[test]
 fn analyze_prints_the_bias_section() {
-    let out = halfrail(&["analyze", &fixture("if-block.halfrail.json")]);
+    let out = halfrail(&["analyze", &demo()]);
     assert!(out.status.success(), "{}", stderr(&out));
     let json: serde_json::Value = serde_json::from_str(&stdout(&out)).unwrap();
     let bias = &json["bias"];
@@ -127,7 +128,7 @@ fn analyze_prints_the_bias_section() {
 
 #[test]
 fn fit_prints_a_part_that_reads_back() {
-    let out = halfrail(&["fit", &fixture("if-block.halfrail.json")]);
+    let out = halfrail(&["fit", &demo()]);
     assert!(out.status.success(), "{}", stderr(&out));
     let json: serde_json::Value = serde_json::from_str(&stdout(&out)).unwrap();
     let names: Vec<&str> = json["parameters"].as_array().unwrap().iter().map(|p| p["name"].as_str().unwrap()).collect();

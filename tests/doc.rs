@@ -5,7 +5,7 @@ use halfrail::doc::{load, BlockKind, GainKind, Model};
 use halfrail::stage::Component::{COutF, CFbF, RFbOhm, ShuntOhm};
 use halfrail::values::Series;
 
-const DEMO: &str = include_str!("fixtures/if-block.halfrail.json");
+const DEMO: &str = include_str!("../src/doc/demo.halfrail.json");
 
 /// The demo document with one section replaced (or removed, for `null`).
 fn with(section: &str, replacement: serde_json::Value) -> String {

@@ -13,11 +13,18 @@ const [bindgenDir = 'target/bindgen', outFile = 'dist/halfrail.html'] = process.
 const SCRIPTS = [
   'js/core.js',
   'js/ui.js',
+  'js/design.js',
+  'js/plot.js',
+  'js/panels/part.js',
   'js/panels/bench.js',
   'js/panels/planned.js',
   'js/shell.js',
 ];
 const STYLES = ['css/base.css', 'css/panels.css'];
+// Third-party code inlined as is, ahead of the app (its licence travels with it).
+const VENDOR_SCRIPTS = ['node_modules/uplot/dist/uPlot.iife.min.js'];
+const VENDOR_STYLES = ['node_modules/uplot/dist/uPlot.min.css'];
+const VENDOR_NOTICE = '/* uPlot © Leon Sorokin, MIT licence (https://opensource.org/license/mit) */';
 
 const read = (p) => fs.readFileSync(p, 'utf8');
 // Inline scripts must not contain a closing script tag.
@@ -26,8 +33,9 @@ const scriptSafe = (text) => text.replace(/<\/script/gi, '<\\/script');
 const glue = read(path.join(bindgenDir, 'halfrail.js'));
 const wasm = fs.readFileSync(path.join(bindgenDir, 'halfrail_bg.opt.wasm'));
 const packed = zlib.gzipSync(wasm, { level: 9 });
-const app = SCRIPTS.map((s) => `// ---- ${s}\n${read(path.join(here, s))}`).join('\n');
-const css = STYLES.map((s) => read(path.join(here, s))).join('\n');
+const vendor = [VENDOR_NOTICE, ...VENDOR_SCRIPTS.map((s) => read(path.join(here, s)))].join('\n');
+const app = [vendor, ...SCRIPTS.map((s) => `// ---- ${s}\n${read(path.join(here, s))}`)].join('\n');
+const css = [...VENDOR_STYLES, ...STYLES].map((s) => read(path.join(here, s))).join('\n');
 const version = (read(path.join(here, '..', 'Cargo.toml')).match(/^version = "([^"]+)"/m) || [])[1] || '0';
 
 const html = read(path.join(here, 'index.html'))

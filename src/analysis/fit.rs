@@ -13,7 +13,7 @@ use nalgebra::{DMatrix, DVector, Dyn, Owned};
 
 use crate::engine::{operating_point, Element, Netlist, Node, SmallSignal};
 use crate::error::{FieldError, Result};
-use crate::part::{Capacitances, Part};
+use crate::part::{Capacitances, Part, PRESETS};
 use crate::stage::add_part;
 
 /// What was measured at the bench.
@@ -390,4 +390,19 @@ fn check_determined(j: &DMatrix<f64>, params: &[Param]) -> Result<()> {
         ));
     }
     Ok(())
+}
+
+/// The part a fit starts from: the one given, else the preset with the readings'
+/// stage count and the nearest supply. The bench's supply and stage count win.
+pub fn starting_part(given: Option<Part>, vdd: f64, stages: u32) -> Part {
+    let mut part = given.unwrap_or_else(|| {
+        PRESETS
+            .iter()
+            .filter(|p| p.part.stages == stages)
+            .min_by(|a, b| (a.part.vdd - vdd).abs().total_cmp(&(b.part.vdd - vdd).abs()))
+            .map_or_else(|| PRESETS[0].part.clone(), |p| p.part.clone())
+    });
+    part.vdd = vdd;
+    part.stages = stages;
+    part
 }

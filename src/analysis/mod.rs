@@ -6,4 +6,4 @@ mod transfer;
 
 pub use bias::{bias, Bias, StageBias, Warning};
 pub use transfer::{bare_curve, closed_loop_curve, BareCurve, BarePoint, LoopPoint, Window, BARE_POINTS};
-pub use fit::{default_params, fit, predict, Fit, Fitted, Param, Readings, Residual};
+pub use fit::{default_params, fit, predict, starting_part, Fit, Fitted, Param, Readings, Residual};

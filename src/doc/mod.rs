@@ -5,7 +5,7 @@
 mod quantity;
 mod sections;
 mod serialize;
-pub use serialize::{AnalyzeReport, BiasReport, DocumentSummary, LookupReport, NearestReport, SeriesFacts, ValueInUnit};
+pub use serialize::{AnalyzeReport, BiasReport, PartReport, DocumentSummary, LookupReport, NearestReport, SeriesFacts, ValueInUnit};
 mod validate;
 
 pub use sections::{
@@ -13,6 +13,10 @@ pub use sections::{
 };
 
 use crate::error::{FieldError, Result};
+
+/// The demo design (SPEC §5): our own scenario, a 10.7 MHz IF gain block and the
+/// front-end chain of a small lab receiver; every value is illustrative.
+pub const DEMO: &str = include_str!("demo.halfrail.json");
 
 /// The format version this build writes and reads.
 pub const FORMAT_VERSION: u32 = 1;
@@ -52,6 +56,11 @@ impl Bench {
                 .collect(),
             curve: self.curve.iter().map(|p| (p.vin_v, p.vout_v)).collect(),
         }
+    }
+
+    /// The part the fit starts from, given the document's part (if any).
+    pub fn starting_part(&self, part: Option<&Part>) -> crate::part::Part {
+        crate::analysis::starting_part(part.map(Part::to_core), self.vdd_v, self.stages)
     }
 
     /// The parameters named in `fit`, or those the readings determine.

@@ -300,3 +300,26 @@ serialize_fields!(crate::analysis::Fit {
     "dof" => dof,
     "evaluations" => evaluations,
 });
+
+serialize_fields!(crate::part::Preset {
+    "id" => id,
+    "title" => title,
+    "part" => part,
+});
+
+/// What the Part panel shows: the bias report, the bare part's curve and the
+/// closed-loop curve.
+pub struct PartReport<'a> {
+    pub bias: BiasReport<'a>,
+    pub closed: &'a [crate::analysis::LoopPoint],
+}
+
+impl Serialize for PartReport<'_> {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let mut out = serializer.serialize_struct("PartReport", 3)?;
+        out.serialize_field("bias", &self.bias)?;
+        out.serialize_field("bare", self.bias.curve)?;
+        out.serialize_field("closed", self.closed)?;
+        out.end()
+    }
+}

@@ -12,6 +12,7 @@ pub enum Unit {
     Ampere,
     Watt,
     Second,
+    Siemens,
     /// Volts RMS (a signal level).
     Vrms,
     /// Volts peak.
@@ -34,7 +35,7 @@ pub enum Unit {
 
 impl Unit {
     /// Every unit, for look-ups by spelling.
-    pub const ALL: [Unit; 18] = [
+    pub const ALL: [Unit; 19] = [
         Unit::Ohm,
         Unit::Farad,
         Unit::Henry,
@@ -43,6 +44,7 @@ impl Unit {
         Unit::Ampere,
         Unit::Watt,
         Unit::Second,
+        Unit::Siemens,
         Unit::Vrms,
         Unit::Vpk,
         Unit::Vpp,
@@ -66,6 +68,7 @@ impl Unit {
             Unit::Ampere => "A",
             Unit::Watt => "W",
             Unit::Second => "s",
+            Unit::Siemens => "S",
             Unit::Vrms => "Vrms",
             Unit::Vpk => "Vpk",
             Unit::Vpp => "Vpp",
@@ -91,6 +94,7 @@ impl Unit {
             Unit::Ampere => &["A"],
             Unit::Watt => &["W"],
             Unit::Second => &["s"],
+            Unit::Siemens => &["S"],
             Unit::Vrms => &["Vrms", "Vrm"],
             Unit::Vpk => &["Vpk", "Vp"],
             Unit::Vpp => &["Vpp", "Vp-p"],

@@ -30,8 +30,9 @@ export async function launch() {
 // its own frames, log an error, throw, or trip the Content-Security-Policy.
 export function watch(page, allowed = []) {
   const seen = { requests: [], errors: [] };
-  const ok = (url) => url.startsWith('data:') || url.startsWith('blob:') || url === PAGE_URL
-    || allowed.some((a) => url === a);
+  const bare = (url) => url.split('#')[0];
+  const ok = (url) => url.startsWith('data:') || url.startsWith('blob:') || bare(url) === PAGE_URL
+    || allowed.some((a) => bare(url) === bare(a));
   page.on('request', (r) => { if (!ok(r.url())) seen.requests.push(r.url()); });
   page.on('console', (m) => { if (m.type() === 'error') seen.errors.push(`console: ${m.text()}`); });
   page.on('pageerror', (e) => seen.errors.push(`page: ${e.message}`));
@@ -41,4 +42,12 @@ export function watch(page, allowed = []) {
 // Waits until the page has started the core and shown its first panel.
 export async function ready(frameOrPage) {
   await frameOrPage.waitForSelector('html[data-ready="true"]', { timeout: 15000 });
+}
+
+// Empties the file:// origin's storage (shared by every page opened from disk).
+export async function clearStorage(context) {
+  const page = await context.newPage();
+  await page.goto(PAGE_URL + '#bench');
+  await page.evaluate(() => localStorage.clear());
+  await page.close();
 }

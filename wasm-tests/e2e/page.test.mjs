@@ -6,18 +6,13 @@ import fs from 'fs';
 import http from 'http';
 import os from 'os';
 import path from 'path';
-import { launch, watch, ready, PAGE_PATH, PAGE_URL } from './browser.mjs';
+import { launch, watch, ready, clearStorage, PAGE_PATH, PAGE_URL } from './browser.mjs';
 
 let browser;
 before(async () => { browser = await launch(); });
 after(async () => { await browser.close(); });
 // Every test starts from an empty store (the file:// origin's storage is shared).
-beforeEach(async () => {
-  const page = await browser.context.newPage();
-  await page.goto(PAGE_URL);
-  await page.evaluate(() => localStorage.clear());
-  await page.close();
-});
+beforeEach(() => clearStorage(browser.context));
 
 const levelInput = (page) => page.getByLabel('Level', { exact: true });
 const cell = (page, key) => page.locator(`#panel-bench dd[data-key="${key}"]`);
@@ -29,7 +24,7 @@ test('opens from file:// with no network request and no console error', async ()
   await page.exposeFunction('reportViolation', (v) => violations.push(v));
   await page.addInitScript(() => document.addEventListener('securitypolicyviolation',
     (e) => window.reportViolation(`${e.violatedDirective} ${e.blockedURI}`)));
-  await page.goto(PAGE_URL);
+  await page.goto(PAGE_URL + '#bench');
   await ready(page);
   // The demo values are computed: -30 dBm at 50 Ω is 20.00 mVpp (common practice).
   assert.equal(await cell(page, 'vpp').textContent(), '20.00 mVpp');
@@ -139,7 +134,7 @@ test('works served over http', async () => {
     res.end(fs.readFileSync(PAGE_PATH));
   });
   await new Promise((r) => server.listen(0, '127.0.0.1', r));
-  const url = `http://127.0.0.1:${server.address().port}/halfrail.html`;
+  const url = `http://127.0.0.1:${server.address().port}/halfrail.html#bench`;
   const page = await browser.context.newPage();
   const seen = watch(page, [url]);
   await page.goto(url);

@@ -5,7 +5,7 @@
 (() => {
   const { el } = HR.ui;
   const ORDER = ['part', 'stage', 'response', 'loop', 'swing', 'spread', 'chain', 'bench'];
-  const DEFAULT_PANEL = 'bench';
+  const DEFAULT_PANEL = 'part';
   const mounted = new Map();
 
   const panelById = (id) => HR.panels.find((p) => p.id === id);
@@ -50,6 +50,7 @@
       return;
     }
     HR.setStatus(`Engine ready · v${HR.version}`);
+    HR.design.start();
     const saved = HR.store.get('ui', {});
     const first = requested() || (panelById(saved.panel) ? saved.panel : DEFAULT_PANEL);
     show(first);

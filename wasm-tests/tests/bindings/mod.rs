@@ -85,7 +85,36 @@ fn formatting_and_facts() {
 
 #[wasm_bindgen_test]
 fn documents_are_checked_the_same_as_natively() {
-    let s = wasm::check_document(include_str!("../../../tests/fixtures/if-block.halfrail.json")).unwrap();
+    let s = wasm::check_document(include_str!("../../../src/doc/demo.halfrail.json")).unwrap();
     assert_eq!(number(&s, "halfrail"), 1.0);
     assert_eq!(Array::from(&get(&s, "sections")).length(), 7);
+}
+
+#[wasm_bindgen_test]
+fn the_part_report_of_the_demo() {
+    let r = wasm::part_report(&wasm::demo_document(), 101).unwrap();
+    let bias = get(&r, "bias");
+    assert!(number(&bias, "a0") < -5.0, "an unbuffered stage inverts with gain");
+    assert!(number(&bias, "iq_a") > 0.0);
+    assert_eq!(Array::from(&get(&get(&r, "bare"), "points")).length(), 101);
+    assert!(Array::from(&get(&r, "closed")).length() >= 3);
+    // The same document gives the same figure natively and in wasm, bit for bit.
+    let native = halfrail::analysis::bias(
+        &halfrail::doc::load(halfrail::doc::DEMO).unwrap().part.unwrap().to_core(),
+        &halfrail::doc::load(halfrail::doc::DEMO).unwrap().stage.unwrap(),
+        None,
+    )
+    .unwrap();
+    assert_eq!(number(&bias, "a0"), native.a0);
+}
+
+#[wasm_bindgen_test]
+fn presets_and_bench_fit() {
+    let presets = Array::from(&wasm::presets().unwrap());
+    assert_eq!(presets.length(), 6);
+    assert!(text(&presets.get(0), "title").contains("illustrative"));
+    let fit = wasm::bench_fit(&wasm::demo_document()).unwrap();
+    assert_eq!(Array::from(&get(&fit, "parameters")).length(), 4);
+    let bad = wasm::part_report(r#"{"halfrail": 1, "part": {"vdd_v": 3.3}}"#, 11).unwrap_err();
+    assert_eq!(text(&bad, "field"), "part");
 }

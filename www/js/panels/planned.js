@@ -5,7 +5,6 @@
 (() => {
   const { el } = HR.ui;
   const PLANNED = [
-    ['part', 'Part', 'Characterise the inverter: pick an illustrative preset or enter transistor parameters, see the transfer curve with its bias point and linear window, the supply current and dissipation, and fit the part from your own bench readings.'],
     ['stage', 'Stage', 'The amplifier around the part: a schematic drawn from the components you fit, values edited in place, and the key figures beside it — gain at the design frequency, power gain, band edges, input match, noise figure and bias current. Design to a gain target with standard resistor values.'],
     ['response', 'Response', 'Gain and phase against frequency, input impedance and return loss, noise figure and noise density, with markers at the design frequency and the band edges.'],
     ['loop', 'Loop', 'Whether the feedback loop rings or oscillates: loop gain with crossover and margins, the Nyquist plot, the closed-loop poles, the step response, and a suggested fix.'],

@@ -1,0 +1,268 @@
+'use strict';
+// Part: the inverter's parameters (from an illustrative preset or typed in), its
+// operating point inside the stage, the transfer curves, and the bench fit.
+// The core computes every figure; this file lays them out and routes errors to
+// the field they name.
+
+(() => {
+  const { el, card, field, choice, table, fillRows } = HR.ui;
+
+  // The part's fields: document key, label, hint.
+  const FIELDS = [
+    ['vdd_v', 'Supply', 'V, e.g. 3.3'],
+    ['stages', 'Stages', '1 unbuffered, 3 buffered'],
+    ['kn_a_per_v2', 'kn (NMOS)', 'A/V², e.g. 6m'],
+    ['kp_a_per_v2', 'kp (PMOS)', 'A/V², e.g. 3m'],
+    ['vtn_v', 'Vtn', 'V, e.g. 0.55'],
+    ['vtp_v', 'Vtp', 'V, negative, e.g. -0.6'],
+    ['lambda_n_per_v', 'λn', '1/V'],
+    ['lambda_p_per_v', 'λp', '1/V'],
+    ['cgs_f', 'Cgs', 'F per stage, e.g. 4p'],
+    ['cgd_f', 'Cgd', 'F per stage, e.g. 1p2'],
+    ['cdb_f', 'Cdb', 'F per stage, e.g. 3p'],
+    ['gamma', 'Noise γ', 'default 2/3'],
+    ['temp_c', 'Temperature', '°C, default 25'],
+    ['n_slope', 'Slope n (EKV)', 'default 1.3'],
+    ['pkg_max_w', 'Package limit', 'W, for the warning, e.g. 0.5'],
+  ];
+  const BENCH = [
+    ['vdd_v', 'Supply at the bench', 'V'],
+    ['stages', 'Stages', '1 or 3'],
+    ['idd_a', 'Supply current, self-biased', 'A, e.g. 2.84 mA'],
+    ['vbias_v', 'Self-bias voltage', 'V'],
+    ['load_ohm', 'Load of the gain readings', 'Ω, e.g. 10k'],
+    ['load_f', 'Load capacitance', 'F, e.g. 10p'],
+  ];
+  const POINTS = 501;
+
+  // The controls by document path, so an error can find its field.
+  const byPath = new Map();
+  const routeError = (error, fallback) => {
+    byPath.forEach((c) => c.setError(null));
+    fallback.textContent = '';
+    if (!error) return;
+    const path = error.field || '';
+    const exact = byPath.get(path);
+    const prefix = [...byPath.keys()].find((k) => path.startsWith(`${k}[`) || path.startsWith(`${k}.`));
+    const target = exact || (prefix && byPath.get(prefix));
+    if (target) target.setError(error.reason);
+    else fallback.textContent = error.message || error.reason;
+  };
+
+  const text = (v) => (v === undefined || v === null ? '' : String(v));
+
+  const partCard = (problem) => {
+    const presets = wasm_bindgen.presets();
+    const pick = choice({ label: 'Preset (illustrative, not a datasheet)', value: presets[0].id,
+      options: presets.map((p) => [p.id, p.title]), onChange: () => {} });
+    const undo = el('button', { type: 'button', disabled: true, onclick: () => HR.design.undo() }, 'Undo');
+    const load = el('button', { type: 'button', onclick: () => {
+      const p = presets.find((x) => x.id === pick.select.value);
+      HR.design.replace('part', JSON.parse(JSON.stringify(p.part)), `load “${p.title}”`);
+    } }, 'Load preset');
+    const model = choice({ label: 'Model', value: text(HR.design.get('part', 'model')) || 'square-law',
+      options: [['square-law', 'Square law (long channel)'], ['ekv', 'EKV (weak to strong inversion)']],
+      onChange: (v) => HR.design.set('part', 'model', v, 'part') });
+    const fields = FIELDS.map(([key, label, hint]) => {
+      const f = field({ label, hint, value: text(HR.design.get('part', key)),
+        onInput: (v) => HR.design.set('part', key, v.trim(), 'part') });
+      f.wrap.classList.add('compact');
+      byPath.set(`part.${key}`, f);
+      return { key, f };
+    });
+    const refresh = () => {
+      fields.forEach(({ key, f }) => { if (document.activeElement !== f.input) f.input.value = text(HR.design.get('part', key)); });
+      model.select.value = text(HR.design.get('part', 'model')) || 'square-law';
+      undo.disabled = !HR.design.canUndo();
+      undo.textContent = HR.design.canUndo() ? `Undo ${HR.design.undoLabel()}` : 'Undo';
+    };
+    const node = card('Part',
+      el('p', { class: 'intro' }, 'Start from an illustrative preset or type your part’s parameters (given at 25 °C). Values take engineering notation or RKM codes.'),
+      el('div', { class: 'inputs' }, pick.wrap, el('div', { class: 'actions' }, load, undo)),
+      el('div', { class: 'inputs' }, model.wrap),
+      el('div', { class: 'grid-fields' }, fields.map(({ f }) => f.wrap)),
+      problem);
+    node.classList.add('wide');
+    return { node, refresh };
+  };
+
+  const READOUT = [
+    ['vin', 'Gate, stage 1'], ['vout', 'Output'], ['iq', 'Supply current'], ['power', 'Supply power'],
+    ['dissipation', 'Package dissipation'], ['gm', 'gm, stage 1'], ['gds', 'gds, stage 1'], ['a0', 'Open-loop gain A0'],
+    ['selfbias', 'Self-bias (source and load off)'], ['sat', 'Both saturated, output'], ['db1', 'Gain within 1 dB, output'],
+  ];
+
+  const biasCard = () => {
+    const cells = {};
+    const readout = el('dl', { class: 'readout' }, READOUT.map(([k, label]) => {
+      cells[k] = el('dd', { 'data-key': k }, '—');
+      return el('div', {}, el('dt', {}, label), cells[k]);
+    }));
+    const warnings = el('ul', { class: 'warnings', 'aria-live': 'polite' });
+    const stages = table('Each stage at its operating point', ['Stage', 'Vin', 'Vout', 'Id', 'gm', 'gds', 'Gain']);
+    const stagesWrap = el('div', { class: 'scroll' }, stages.node);
+    const stale = el('p', { class: 'stale-note', hidden: true }, 'Showing the last valid result.');
+    const output = el('div', {}, readout, stagesWrap, warnings);
+    const render = (r) => {
+      const b = r.bias;
+      const fmt = HR.fmt;
+      const window = (w) => (w ? `${fmt(w.low_v, 'V', 3)} … ${fmt(w.high_v, 'V', 3)}` : 'none at the bias');
+      cells.vin.textContent = fmt(b.vin_v, 'V', 4);
+      cells.vout.textContent = fmt(b.vout_v, 'V', 4);
+      cells.iq.textContent = fmt(b.iq_a, 'A', 3);
+      cells.power.textContent = fmt(b.power_w, 'W', 3);
+      cells.dissipation.textContent = fmt(b.dissipation_w, 'W', 3);
+      cells.gm.textContent = fmt(b.gm_s, 'S', 3);
+      cells.gds.textContent = fmt(b.gds_s, 'S', 3);
+      cells.a0.textContent = `${fmt(b.a0, '', 4)} V/V`;
+      cells.selfbias.textContent = fmt(b.self_bias_v, 'V', 4);
+      cells.sat.textContent = window(b.window_saturated);
+      cells.db1.textContent = window(b.window_1db);
+      stagesWrap.hidden = b.stages.length < 2;
+      fillRows(stages.tbody, b.stages.map((s, i) => [String(i + 1), fmt(s.vin_v, 'V', 4), fmt(s.vout_v, 'V', 4),
+        fmt(s.id_a, 'A', 3), fmt(s.gm_s, 'S', 3), fmt(s.gds_s, 'S', 3), fmt(s.gain, '', 3)]));
+      warnings.replaceChildren(...(b.warnings.length
+        ? b.warnings.map((w) => el('li', { class: 'warning', 'data-code': w.code }, w.text))
+        : [el('li', { class: 'ok' }, 'No warnings at this operating point.')]));
+    };
+    return { node: card('Operating point', stale, output), render, output, stale };
+  };
+
+  const curvesCard = () => {
+    let last = null;
+    const node = card('Transfer curves',
+      el('p', { class: 'intro' }, 'Left: the bare part, input swept from 0 to the supply, unloaded; the ring is the self-bias and the band the output range with both transistors saturated. Right: the stage in band, output against the input pin, coupling capacitors holding their bias. Drag to zoom, double-click to reset.'));
+    const row = el('div', { class: 'plots' });
+    node.append(row);
+    node.classList.add('wide');
+    const bare = HR.plot.create(row, {
+      title: 'Bare part: Vout against Vin', x: { label: 'Vin', unit: 'V' }, y: { label: 'Vout', unit: 'V' },
+      series: [{ label: 'Vout', unit: 'V' }],
+      decorate: (u, ctx) => {
+        if (!last) return;
+        const w = last.bias.window_saturated;
+        if (w) HR.plot.band(u, ctx, w.low_v, w.high_v, HR.plot.css('--window'));
+        HR.plot.marker(u, ctx, last.bare.bias_vin_v, last.bare.bias_vin_v, HR.plot.css('--plot-2'));
+      },
+    });
+    const closed = HR.plot.create(row, {
+      title: 'In the stage: Vout against Vin (pins)', x: { label: 'Vin', unit: 'V' }, y: { label: 'Vout', unit: 'V' },
+      series: [{ label: 'Vout', unit: 'V' }],
+    });
+    const render = (r) => {
+      last = r;
+      bare.setData([r.bare.points.map((p) => p.vin_v), r.bare.points.map((p) => p.vout_v)]);
+      closed.setData([r.closed.map((p) => p.vin_v), r.closed.map((p) => p.vout_v)]);
+    };
+    return { node, render };
+  };
+
+  // Bench readings typed as lines of "frequency, gain" (gain in V/V, or with dB) and "vin, vout".
+  const rows = (textValue) => textValue.split('\n').map((l) => l.trim()).filter(Boolean)
+    .map((l) => l.split(/\s*[,;\t]\s*|\s{2,}|\s+(?=[-+.\d])/).filter(Boolean));
+  const gainsFromText = (t) => rows(t).map(([f, g = '']) => (/dB\s*$/.test(g)
+    ? { f_hz: f, gain_db: g.replace(/dB\s*$/, '').trim() } : { f_hz: f, gain_vv: g }));
+  const curveFromText = (t) => rows(t).map(([vin, vout = '']) => ({ vin_v: vin, vout_v: vout }));
+  const gainsToText = (g) => (g || []).map((r) => (r.gain_db !== undefined ? `${r.f_hz}, ${r.gain_db} dB` : `${r.f_hz}, ${r.gain_vv}`)).join('\n');
+  const curveToText = (c) => (c || []).map((r) => `${r.vin_v}, ${r.vout_v}`).join('\n');
+
+  const area = ({ label, hint, value, onInput, path }) => {
+    const id = `area-${path.replace(/\W/g, '-')}`;
+    const input = el('textarea', { id, rows: 4, spellcheck: 'false', 'aria-describedby': `${id}-err ${id}-hint` });
+    input.value = value;
+    input.addEventListener('input', () => onInput(input.value));
+    const error = el('span', { class: 'error', id: `${id}-err`, 'aria-live': 'polite' });
+    const setError = (reason) => { input.setAttribute('aria-invalid', reason ? 'true' : 'false'); error.textContent = reason || ''; };
+    byPath.set(path, { setError, input });
+    return el('div', { class: 'field' }, el('label', { for: id }, label), input, el('span', { class: 'hint', id: `${id}-hint` }, hint), error);
+  };
+
+  const fitCard = () => {
+    const bench = () => HR.design.section('bench') || {};
+    const fields = BENCH.map(([key, label, hint]) => {
+      const f = field({ label, hint, value: text(bench()[key]), onInput: (v) => HR.design.set('bench', key, v.trim(), 'bench') });
+      f.wrap.classList.add('compact');
+      byPath.set(`bench.${key}`, f);
+      return f;
+    });
+    const gains = area({ label: 'Open-loop gain readings', path: 'bench.gains', value: gainsToText(bench().gains),
+      hint: 'one per line: frequency, gain (V/V, or add dB) — paste from a spreadsheet',
+      onInput: (v) => HR.design.set('bench', 'gains', gainsFromText(v), 'bench') });
+    const curve = area({ label: 'Transfer-curve points (optional)', path: 'bench.curve', value: curveToText(bench().curve),
+      hint: 'one per line: Vin, Vout, unloaded',
+      onInput: (v) => HR.design.set('bench', 'curve', curveFromText(v), 'bench') });
+    const message = el('p', { class: 'error', 'aria-live': 'polite' });
+    const params = table('Fitted parameters (±1σ from the Jacobian)', ['Parameter', 'Value', '±1σ']);
+    const residuals = table('Each reading against the fitted part', ['Reading', 'Measured', 'Fitted', 'In σ']);
+    const results = el('div', { hidden: true }, el('div', { class: 'scroll' }, params.node), el('div', { class: 'scroll' }, residuals.node));
+    let fitted = null;
+    const use = el('button', { type: 'button', disabled: true, onclick: () => {
+      if (fitted) HR.design.replace('part', fitted, 'use the fitted part');
+    } }, 'Use this part');
+    const run = el('button', { type: 'button', onclick: () => {
+      const r = HR.call('benchFit', HR.design.text());
+      if (r.error) {
+        routeError(r.error, message);
+        return;
+      }
+      routeError(null, message);
+      fitted = r.ok.part;
+      use.disabled = false;
+      const unitOf = { kn: 'A/V²', kp: 'A/V²', vtn: 'V', vtp: 'V', lambda: '1/V', cap: 'F' };
+      const show = (name, v) => (['vtn', 'vtp', 'cap'].includes(name) ? HR.fmt(v, name === 'cap' ? 'F' : 'V', 4) : `${HR.fmt(v, '', 4)} ${unitOf[name]}`);
+      fillRows(params.tbody, r.ok.parameters.map((p) => [p.name === 'cap' ? 'capacitance (sum)' : p.name, show(p.name, p.value), show(p.name, p.sigma)]));
+      fillRows(residuals.tbody, r.ok.residuals.map((x) => [x.reading, HR.fmt(x.measured, '', 4), HR.fmt(x.fitted, '', 4), wasm_bindgen.formatFixed(x.normalized, 2)]));
+      results.hidden = false;
+    } }, 'Fit the part');
+    const node = card('Bench fit',
+      el('p', { class: 'intro' }, 'Readings you can take with a generator and a scope fit the part by least squares (Levenberg–Marquardt). Readings are weighted by usual bench accuracy: current 1 %, bias 10 mV, gain 2 %.'),
+      el('div', { class: 'grid-fields' }, fields.map((f) => f.wrap)),
+      el('div', { class: 'inputs' }, gains, curve),
+      el('div', { class: 'actions' }, run, use), message, results);
+    node.classList.add('wide');
+    return { node };
+  };
+
+  HR.panel({
+    id: 'part',
+    title: 'Part',
+    mount(container) {
+      const problem = el('p', { class: 'error', 'aria-live': 'polite' });
+      const part = partCard(problem);
+      const bias = biasCard();
+      const curves = curvesCard();
+      const fit = fitCard();
+      container.append(el('h1', {}, 'Part'),
+        el('p', { class: 'lede' }, 'The inverter, its operating point in the stage, and its transfer curves. Figures are model estimates: verify them on the bench and check the datasheet’s limits.'),
+        el('div', { class: 'cards' }, part.node, bias.node, curves.node, fit.node));
+      let rendered = false;
+      let queued = false;
+      const update = () => {
+        queued = false;
+        part.refresh();
+        const text = HR.design.text();
+        const r = HR.call('partReport', text, POINTS);
+        if (r.error) {
+          routeError(r.error, problem);
+          if (!rendered && HR.design.lastGood()) {
+            const last = HR.call('partReport', HR.design.lastGood(), POINTS);
+            if (last.ok) { bias.render(last.ok); curves.render(last.ok); rendered = true; }
+          }
+          bias.output.classList.add('stale');
+          bias.stale.hidden = !rendered;
+          return;
+        }
+        routeError(null, problem);
+        HR.design.accept(text);
+        bias.render(r.ok);
+        curves.render(r.ok);
+        rendered = true;
+        bias.output.classList.remove('stale');
+        bias.stale.hidden = true;
+        document.getElementById('panel-part').dataset.computed = String(Number(document.getElementById('panel-part').dataset.computed || 0) + 1);
+      };
+      HR.design.onChange(() => { if (!queued) { queued = true; requestAnimationFrame(update); } });
+      update();
+    },
+  });
+})();

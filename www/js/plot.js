@@ -1,0 +1,80 @@
+'use strict';
+// Plots, drawn by uPlot (a small, fast canvas plotting library inlined into the page):
+// axes labelled with their unit and ticked in engineering notation through the core's
+// formatter, a live read-out of the values under the cursor, drag to zoom and
+// double-click to reset. Colours come from the page's theme.
+
+HR.plot = (() => {
+  const { el } = HR.ui;
+  const css = (name) => getComputedStyle(document.documentElement).getPropertyValue(name).trim();
+  // Series colours chosen to stay apart in both themes and for common colour-vision deficiencies.
+  const PALETTE = ['--plot-1', '--plot-2', '--plot-3', '--plot-4'];
+
+  const axis = (label, unit) => ({
+    label: unit ? `${label} (${unit})` : label,
+    stroke: css('--ink'),
+    grid: { stroke: css('--line'), width: 1 },
+    ticks: { stroke: css('--line') },
+    values: (u, ticks) => ticks.map((v) => HR.fmt(v, '', 3)),
+    size: 56,
+  });
+
+  // create(container, {title, x: {label, unit}, y: {label, unit}, series: [{label, unit}],
+  //   height, decorate(u, ctx)}) → {setData(xs, ...ys), node}
+  const create = (container, spec) => {
+    const wrap = el('figure', { class: 'plot' }, el('figcaption', {}, spec.title));
+    container.append(wrap);
+    const opts = {
+      width: Math.max(320, wrap.clientWidth || 560),
+      height: spec.height || 300,
+      scales: { x: { time: false }, y: {} },
+      axes: [axis(spec.x.label, spec.x.unit), axis(spec.y.label, spec.y.unit)],
+      cursor: { drag: { x: true, y: true } },
+      legend: { live: true },
+      series: [
+        { label: spec.x.label, value: (u, v) => (v === null || v === undefined ? '—' : HR.fmt(v, spec.x.unit || '', 4)) },
+        ...spec.series.map((s, i) => ({
+          label: s.label,
+          stroke: css(PALETTE[i % PALETTE.length]),
+          width: 2,
+          points: { show: false },
+          value: (u, v) => (v === null || v === undefined ? '—' : HR.fmt(v, s.unit || '', 4)),
+        })),
+      ],
+      hooks: { draw: spec.decorate ? [(u) => spec.decorate(u, u.ctx)] : [] },
+    };
+    let chart = null;
+    const resize = () => chart && chart.setSize({ width: Math.max(320, wrap.clientWidth), height: opts.height });
+    new ResizeObserver(resize).observe(wrap);
+    return {
+      node: wrap,
+      setData(data) {
+        if (!chart) chart = new uPlot(opts, data, wrap);
+        else chart.setData(data);
+      },
+    };
+  };
+
+  // Fills a horizontal band between two y values (e.g. a linear window).
+  const band = (u, ctx, low, high, colour) => {
+    const top = u.valToPos(high, 'y', true);
+    const bottom = u.valToPos(low, 'y', true);
+    ctx.save();
+    ctx.fillStyle = colour;
+    ctx.fillRect(u.bbox.left, top, u.bbox.width, bottom - top);
+    ctx.restore();
+  };
+
+  // Marks a point with a ring.
+  const marker = (u, ctx, x, y, colour) => {
+    ctx.save();
+    ctx.strokeStyle = colour;
+    ctx.lineWidth = 2;
+    ctx.beginPath();
+    ctx.arc(u.valToPos(x, 'x', true), u.valToPos(y, 'y', true), 6, 0, 2 * Math.PI);
+    ctx.stroke();
+    ctx.restore();
+  };
+
+  return { create, band, marker, css };
+})();
