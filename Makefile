@@ -19,7 +19,7 @@ run: dist
 	python3 -m http.server $(PORT) --bind 127.0.0.1 --directory dist
 
 dist: setup-rust setup-build-tools
-	cargo build --lib --target wasm32-unknown-unknown --profile wasm
+	cargo rustc --lib --target wasm32-unknown-unknown --profile wasm --crate-type cdylib
 	wasm-bindgen --target no-modules --no-typescript --out-dir $(BINDGEN) $(WASM_OUT)
 	www/node_modules/.bin/wasm-opt -Oz --enable-reference-types --enable-bulk-memory --enable-nontrapping-float-to-int --enable-sign-ext --enable-multivalue --enable-mutable-globals \
 	  $(BINDGEN)/halfrail_bg.wasm -o $(BINDGEN)/halfrail_bg.opt.wasm
@@ -28,8 +28,7 @@ dist: setup-rust setup-build-tools
 test: dist setup-node setup-browser test-native test-wasm test-e2e
 
 test-native:
-	cargo test --all-targets
-	cargo test --doc
+	cargo test
 
 test-wasm: setup-rust setup-browser
 	cd wasm-tests && cargo test --target wasm32-unknown-unknown
@@ -38,6 +37,7 @@ test-e2e: setup-node setup-browser
 	cd wasm-tests && node --test --test-concurrency=1 e2e/
 
 bench: dist setup-node setup-browser
+	cargo bench --bench core
 	node wasm-tests/bench/page.mjs $(PAGE)
 
 setup-rust:

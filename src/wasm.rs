@@ -186,3 +186,10 @@ pub fn bench_fit(text: &str) -> Result<JsValue, JsValue> {
     let start = bench.starting_part(document.part.as_ref());
     to_js(&crate::analysis::fit(&start, &bench.readings(), &bench.params()).map_err(thrown)?)
 }
+
+/// The bare part's transfer curve alone (`points` from 0 to VDD).
+#[wasm_bindgen(js_name = transferCurve)]
+pub fn transfer_curve(text: &str, points: usize) -> Result<JsValue, JsValue> {
+    let (_, part, _) = part_and_stage(text)?;
+    to_js(&crate::analysis::bare_curve(&part, points.clamp(3, 5001)).map_err(thrown)?)
+}

@@ -3,8 +3,8 @@
 
 use nalgebra::{DMatrix, DVector};
 
-use super::mna::{device_states, dc_sources, linear_stamps, stamp_devices, Layout, GMIN};
-use super::netlist::{DeviceState, Netlist, Node};
+use super::mna::{device_states, dc_sources, linear_stamps, Layout, GMIN};
+use super::netlist::{DeviceState, Element, Netlist, Node, Transconductor};
 use super::topology::{first_floating, PathKind};
 use crate::error::{FieldError, Result};
 
@@ -49,12 +49,15 @@ const STEP_TOL: f64 = 1e-10;
 const STEP_RELTOL: f64 = 1e-9;
 const RESIDUAL_TOL: f64 = 1e-11;
 
+/// A device's law and the unknowns of its input and output (`None` for ground).
+type DeviceSlot<'a> = (Option<usize>, Option<usize>, &'a dyn Transconductor);
+
 /// What a Newton run needs that does not change between iterations.
 struct Problem<'a> {
-    netlist: &'a Netlist,
     layout: &'a Layout,
     g: &'a DMatrix<f64>,
     b: &'a DVector<f64>,
+    devices: &'a [DeviceSlot<'a>],
 }
 
 /// Why a Newton run stopped short.
@@ -65,23 +68,33 @@ struct Stalled {
 impl Problem<'_> {
     /// Residual F(x) and Jacobian J(x) at source scale `scale` with `gmin` added to
     /// every node.
-    fn evaluate(&self, x: &DVector<f64>, scale: f64, gmin: f64) -> (DVector<f64>, DMatrix<f64>, Vec<Option<DeviceState>>) {
+    fn evaluate(&self, x: &DVector<f64>, scale: f64, gmin: f64) -> (DVector<f64>, DMatrix<f64>) {
         let mut jacobian = self.g.clone();
         for i in 0..self.layout.nodes {
             jacobian[(i, i)] += gmin;
         }
         let mut residual = &jacobian * x - self.b * scale;
-        let states = device_states(self.netlist, self.layout, x, scale);
-        stamp_devices(self.netlist, self.layout, &states, Some(&mut residual), &mut jacobian);
-        (residual, jacobian, states)
+        let at = |i: Option<usize>| i.map_or(0.0, |i| x[i]);
+        for &(input, output, law) in self.devices {
+            let s = law.evaluate(at(input), at(output), scale);
+            // The device pushes i_out into its output node: −i_out leaves it.
+            if let Some(o) = output {
+                residual[o] -= s.i_out;
+                if let Some(i) = input {
+                    jacobian[(o, i)] -= s.di_dvin;
+                }
+                jacobian[(o, o)] -= s.di_dvout;
+            }
+        }
+        (residual, jacobian)
     }
 
     fn newton(&self, start: &DVector<f64>, scale: f64, gmin: f64) -> std::result::Result<(DVector<f64>, usize), Stalled> {
         let mut x = start.clone();
-        let (mut residual, mut jacobian, _) = self.evaluate(&x, scale, gmin);
+        let (mut residual, mut jacobian) = self.evaluate(&x, scale, gmin);
         for iteration in 1..=MAX_ITERATIONS {
             let worst = residual.iamax();
-            let mut step = jacobian.clone().lu().solve(&(-&residual)).ok_or(Stalled { worst })?;
+            let mut step = jacobian.lu().solve(&(-&residual)).ok_or(Stalled { worst })?;
             if !step.iter().all(|v| v.is_finite()) {
                 return Err(Stalled { worst });
             }
@@ -89,13 +102,16 @@ impl Problem<'_> {
             if largest > MAX_STEP_V {
                 step *= MAX_STEP_V / largest;
             }
-            // Backtrack until the imbalance falls (or accept the smallest step tried).
+            // Backtrack until the imbalance falls (or accept the smallest step tried);
+            // once the imbalance is within tolerance, rounding decides whether it
+            // falls further, so the full step is taken.
             let norm = residual.norm();
+            let settled = residual.amax() <= RESIDUAL_TOL;
             let mut alpha = 1.0;
             let (next, next_residual, next_jacobian) = loop {
                 let trial = &x + &step * alpha;
-                let (r, j, _) = self.evaluate(&trial, scale, gmin);
-                if r.norm() < norm || alpha < 1e-3 {
+                let (r, j) = self.evaluate(&trial, scale, gmin);
+                if settled || r.norm() < norm || alpha < 1e-3 {
                     break (trial, r, j);
                 }
                 alpha *= 0.5;
@@ -109,6 +125,135 @@ impl Problem<'_> {
             }
         }
         Err(Stalled { worst: residual.iamax() })
+    }
+}
+
+/// A circuit prepared for DC solves: checked, laid out and stamped once, so that a
+/// sweep only changes one source's value between solves.
+pub struct DcSystem<'a> {
+    netlist: &'a Netlist,
+    layout: Layout,
+    g: DMatrix<f64>,
+    b: DVector<f64>,
+    devices: Vec<DeviceSlot<'a>>,
+}
+
+impl<'a> DcSystem<'a> {
+    /// Checks that every node has a DC path and stamps the linear part.
+    pub fn new(netlist: &'a Netlist) -> Result<Self> {
+        if let Some(node) = first_floating(netlist, PathKind::Dc) {
+            return Err(FieldError::new(
+                "circuit",
+                format!("node `{}` has no DC path to ground (only capacitors or current sources reach it)", netlist.node_name(node)),
+            ));
+        }
+        let layout = Layout::new(netlist);
+        let (g, _) = linear_stamps(netlist, &layout);
+        let b = dc_sources(netlist, &layout, 1.0);
+        let devices = netlist
+            .elements()
+            .iter()
+            .filter_map(|e| match &e.element {
+                Element::Device { input, output, law } => Some((layout.index(*input), layout.index(*output), law.as_ref())),
+                _ => None,
+            })
+            .collect();
+        Ok(DcSystem { netlist, layout, g, b, devices })
+    }
+
+    /// Sets the DC value of the voltage source at element index `element`.
+    pub fn set_voltage(&mut self, element: usize, dc: f64) {
+        if let Some(branch) = self.layout.branch[element] {
+            self.b[branch] = dc;
+        }
+    }
+
+    fn problem(&self) -> Problem<'_> {
+        Problem { layout: &self.layout, g: &self.g, b: &self.b, devices: &self.devices }
+    }
+
+    /// The operating point, started from `guess` (all zero if `None`): plain Newton
+    /// first; then with GMIN, gmin stepping and source stepping, each answer polished
+    /// without GMIN where the Jacobian allows (it does unless a node hangs on
+    /// switched-off devices alone).
+    pub fn solve(&self, guess: Option<&DVector<f64>>) -> Result<OperatingPoint> {
+        let problem = self.problem();
+        let layout = &self.layout;
+        let zero = DVector::zeros(layout.size);
+        let start = guess.filter(|s| s.len() == layout.size).unwrap_or(&zero);
+        let finish = |x: DVector<f64>, iterations: usize, method: Method, polish: bool| {
+            let (x, iterations) = match polish.then(|| problem.newton(&x, 1.0, 0.0)) {
+                Some(Ok((exact, n))) => (exact, iterations + n),
+                _ => (x, iterations),
+            };
+            let devices = device_states(self.netlist, layout, &x, 1.0);
+            OperatingPoint { layout: layout.clone(), x, devices, iterations, method }
+        };
+
+        if let Ok((x, n)) = problem.newton(start, 1.0, 0.0) {
+            return Ok(finish(x, n, Method::Newton, false));
+        }
+        let mut last_worst = match problem.newton(start, 1.0, GMIN) {
+            Ok((x, n)) => return Ok(finish(x, n, Method::Newton, true)),
+            Err(s) => s.worst,
+        };
+
+        // Gmin stepping: a heavy shunt on every node makes the problem nearly linear;
+        // lift it a decade at a time, each solve starting from the last.
+        let mut x = start.clone();
+        let mut total = 0;
+        let mut gmin_ok = true;
+        for exponent in (-12..=-2).rev() {
+            match problem.newton(&x, 1.0, 10f64.powi(exponent)) {
+                Ok((next, n)) => {
+                    x = next;
+                    total += n;
+                }
+                Err(s) => {
+                    last_worst = s.worst;
+                    gmin_ok = false;
+                    break;
+                }
+            }
+        }
+        if gmin_ok {
+            return Ok(finish(x, total, Method::GminStepping, true));
+        }
+
+        // Source stepping: raise every source (and the devices' supplies) from zero.
+        let mut x = zero.clone();
+        let (mut scale, mut stride) = (0.0f64, 0.1f64);
+        total = 0;
+        while scale < 1.0 {
+            let target = (scale + stride).min(1.0);
+            match problem.newton(&x, target, GMIN) {
+                Ok((next, n)) => {
+                    x = next;
+                    total += n;
+                    scale = target;
+                    stride = (stride * 2.0).min(0.25);
+                }
+                Err(s) => {
+                    last_worst = s.worst;
+                    stride /= 4.0;
+                    if stride < 1e-4 {
+                        break;
+                    }
+                }
+            }
+        }
+        if scale >= 1.0 {
+            return Ok(finish(x, total, Method::SourceStepping, true));
+        }
+        let name = if last_worst < layout.nodes {
+            self.netlist.node_name(Node(last_worst + 1)).to_string()
+        } else {
+            "a branch".into()
+        };
+        Err(FieldError::new(
+            "circuit",
+            format!("the operating point did not converge (Newton, gmin and source stepping all failed; the largest imbalance was at node `{name}`)"),
+        ))
     }
 }
 
@@ -126,87 +271,5 @@ impl Problem<'_> {
 /// assert!((op.voltage(mid) - 7.5).abs() < 1e-9);
 /// ```
 pub fn operating_point(netlist: &Netlist, guess: Option<&DVector<f64>>) -> Result<OperatingPoint> {
-    if let Some(node) = first_floating(netlist, PathKind::Dc) {
-        return Err(FieldError::new(
-            "circuit",
-            format!("node `{}` has no DC path to ground (only capacitors or current sources reach it)", netlist.node_name(node)),
-        ));
-    }
-    let layout = Layout::new(netlist);
-    let (g, _) = linear_stamps(netlist, &layout);
-    let b = dc_sources(netlist, &layout, 1.0);
-    let problem = Problem { netlist, layout: &layout, g: &g, b: &b };
-    let zero = DVector::zeros(layout.size);
-    let start = guess.filter(|s| s.len() == layout.size).unwrap_or(&zero);
-
-    let mut total = 0;
-    // Every solve carries GMIN; the answer is polished without it where the
-    // Jacobian allows (it does unless a node hangs on switched-off devices alone).
-    let finish = |x: DVector<f64>, iterations: usize, method: Method| {
-        let (x, iterations) = match problem.newton(&x, 1.0, 0.0) {
-            Ok((exact, n)) => (exact, iterations + n),
-            Err(_) => (x, iterations),
-        };
-        let devices = device_states(netlist, &layout, &x, 1.0);
-        OperatingPoint { layout: layout.clone(), x, devices, iterations, method }
-    };
-
-    let mut last_worst = match problem.newton(start, 1.0, GMIN) {
-        Ok((x, n)) => return Ok(finish(x, n, Method::Newton)),
-        Err(s) => s.worst,
-    };
-
-    // Gmin stepping: a heavy shunt on every node makes the problem nearly linear;
-    // lift it a decade at a time, each solve starting from the last.
-    let mut x = start.clone();
-    let mut gmin_ok = true;
-    for exponent in (-12..=-2).rev() {
-        match problem.newton(&x, 1.0, 10f64.powi(exponent)) {
-            Ok((next, n)) => {
-                x = next;
-                total += n;
-            }
-            Err(s) => {
-                last_worst = s.worst;
-                gmin_ok = false;
-                break;
-            }
-        }
-    }
-    if gmin_ok {
-        if let Ok((x, n)) = problem.newton(&x, 1.0, GMIN) {
-            return Ok(finish(x, total + n, Method::GminStepping));
-        }
-    }
-
-    // Source stepping: raise every source (and the devices' supplies) from zero.
-    let mut x = zero.clone();
-    let (mut scale, mut stride) = (0.0f64, 0.1f64);
-    total = 0;
-    while scale < 1.0 {
-        let target = (scale + stride).min(1.0);
-        match problem.newton(&x, target, GMIN) {
-            Ok((next, n)) => {
-                x = next;
-                total += n;
-                scale = target;
-                stride = (stride * 2.0).min(0.25);
-            }
-            Err(s) => {
-                last_worst = s.worst;
-                stride /= 4.0;
-                if stride < 1e-4 {
-                    break;
-                }
-            }
-        }
-    }
-    if scale >= 1.0 {
-        return Ok(finish(x, total, Method::SourceStepping));
-    }
-    let name = if last_worst < layout.nodes { netlist.node_name(Node(last_worst + 1)).to_string() } else { "a branch".into() };
-    Err(FieldError::new(
-        "circuit",
-        format!("the operating point did not converge (Newton, gmin and source stepping all failed; the largest imbalance was at node `{name}`)"),
-    ))
+    DcSystem::new(netlist)?.solve(guess)
 }

@@ -10,7 +10,7 @@ mod netlist;
 mod topology;
 
 pub use ac::SmallSignal;
-pub use dc::{operating_point, Method, OperatingPoint};
+pub use dc::{operating_point, DcSystem, Method, OperatingPoint};
 pub use mna::{Layout, GMIN};
 pub use netlist::{DeviceState, Element, Named, Netlist, Node, Transconductor};
 pub use topology::{first_floating, PathKind};

@@ -1,0 +1,72 @@
+//! `make bench`, native figures: median wall time of the core's analyses on the demo
+//! design and on a buffered part. Targets are the issues' (operating point ≤ 50 µs).
+//! A plain timing loop: the targets need a median, not criterion's statistics.
+
+use std::hint::black_box;
+use std::time::Instant;
+
+use halfrail::analysis::{bare_curve, bias, fit};
+use halfrail::doc::{load, DEMO};
+use halfrail::engine::operating_point;
+use halfrail::part::preset;
+use halfrail::stage::build;
+
+/// Median seconds per call of `f`, over `batches` batches sized to take about 20 ms each.
+fn median_time(mut f: impl FnMut()) -> f64 {
+    let start = Instant::now();
+    f();
+    let once = start.elapsed().as_secs_f64().max(1e-9);
+    let per_batch = ((0.02 / once) as usize).clamp(1, 100_000);
+    let mut times: Vec<f64> = (0..15)
+        .map(|_| {
+            let t = Instant::now();
+            for _ in 0..per_batch {
+                f();
+            }
+            t.elapsed().as_secs_f64() / per_batch as f64
+        })
+        .collect();
+    times.sort_by(f64::total_cmp);
+    times[times.len() / 2]
+}
+
+fn report(what: &str, seconds: f64, target: Option<f64>) {
+    let verdict = match target {
+        Some(t) if seconds <= t => format!("≤ {:.0} µs  met", t * 1e6),
+        Some(t) => format!("≤ {:.0} µs  MISSED", t * 1e6),
+        None => String::new(),
+    };
+    println!("{what:<58} {:>12.1} µs  {verdict}", seconds * 1e6);
+}
+
+fn main() {
+    let doc = load(DEMO).unwrap();
+    let demo_part = doc.part.as_ref().unwrap().to_core();
+    let stage = doc.stage.unwrap();
+    let buffered = preset("buffered-5v").unwrap().part.clone();
+    let law = buffered.law().unwrap();
+    let circuit = build(&buffered, &law, &stage).unwrap();
+
+    report(
+        "operating point, three-stage part in the demo stage",
+        median_time(|| {
+            black_box(operating_point(black_box(&circuit.netlist), None).unwrap());
+        }),
+        Some(50e-6),
+    );
+    report("bias report, demo design (two operating points)", median_time(|| {
+        black_box(bias(&demo_part, &stage, None).unwrap());
+    }), None);
+    report("transfer curve, 500 points, demo part", median_time(|| {
+        black_box(bare_curve(&demo_part, 500).unwrap());
+    }), None);
+    report("transfer curve, 500 points, three-stage part", median_time(|| {
+        black_box(bare_curve(&buffered, 500).unwrap());
+    }), None);
+    let bench = doc.bench.as_ref().unwrap();
+    let start = bench.starting_part(doc.part.as_ref());
+    let (readings, params) = (bench.readings(), bench.params());
+    report("bench fit, demo readings (4 parameters)", median_time(|| {
+        black_box(fit(&start, &readings, &params).unwrap());
+    }), None);
+}
