@@ -137,70 +137,54 @@ pub struct StageCircuit {
 /// its DC voltage is defined (0 V) without affecting anything else.
 const PIN_LEAK_OHM: f64 = 1e12;
 
+/// The element a component makes between `a` and `b`.
+fn element(which: Component, a: Node, b: Node, value: f64) -> Element {
+    match which.role() {
+        Role::Resistor => Element::Resistor { a, b, ohms: value },
+        Role::Capacitor => Element::Capacitor { a, b, farads: value },
+    }
+}
+
+/// Adds `which` between `a` and `b` if it is fitted.
+fn between(n: &mut Netlist, c: &Components, which: Component, a: Node, b: Node) {
+    if let Some(value) = c.fitted(which) {
+        n.add(which.key(), element(which, a, b, value));
+    }
+}
+
+/// The node after a series component: a new node `to`, joined to `from` by the
+/// component if it is fitted, else `from` itself (a short).
+fn series(n: &mut Netlist, c: &Components, which: Component, from: Node, to: &str) -> Node {
+    match c.fitted(which) {
+        Some(value) => {
+            let node = n.node(to);
+            n.add(which.key(), element(which, from, node, value));
+            node
+        }
+        None => from,
+    }
+}
+
 /// Builds the stage of SPEC §3.2 around `part`.
 pub fn build(part: &Part, law: &InverterLaw, c: &Components) -> Result<StageCircuit> {
     let mut n = Netlist::new();
     let emf = n.node("emf");
     let source = n.add("source EMF", Element::VoltageSource { a: emf, b: Node::GROUND, dc: 0.0, ac: 1.0 });
-    let input = match c.fitted(Component::SourceOhm) {
-        Some(ohms) => {
-            let input = n.node("in");
-            n.add("source_ohm", Element::Resistor { a: emf, b: input, ohms });
-            input
-        }
-        None => emf,
-    };
-    if let Some(ohms) = c.fitted(Component::ShuntOhm) {
-        n.add("shunt_ohm", Element::Resistor { a: input, b: Node::GROUND, ohms });
-    }
-    let a = match c.fitted(Component::CInF) {
-        Some(farads) => {
-            let a = n.node("a");
-            n.add("c_in_f", Element::Capacitor { a: input, b: a, farads });
-            a
-        }
-        None => input,
-    };
-    let g1 = match c.fitted(Component::RInOhm) {
-        Some(ohms) => {
-            let g1 = n.node("g1");
-            n.add("r_in_ohm", Element::Resistor { a, b: g1, ohms });
-            g1
-        }
-        None => a,
-    };
+    let input = series(&mut n, c, Component::SourceOhm, emf, "in");
+    between(&mut n, c, Component::ShuntOhm, input, Node::GROUND);
+    let a = series(&mut n, c, Component::CInF, input, "a");
+    let g1 = series(&mut n, c, Component::RInOhm, a, "g1");
     let (gates, outputs) = add_part(&mut n, part, law, g1);
     let last = *outputs.last().expect("a part has at least one stage");
-    if let Some(ohms) = c.fitted(Component::RFbOhm) {
-        n.add("r_fb_ohm", Element::Resistor { a: g1, b: last, ohms });
-    }
-    if let Some(farads) = c.fitted(Component::CFbF) {
-        n.add("c_fb_f", Element::Capacitor { a: g1, b: last, farads });
-    }
-    let b = match c.fitted(Component::ROutOhm) {
-        Some(ohms) => {
-            let b = n.node("b");
-            n.add("r_out_ohm", Element::Resistor { a: last, b, ohms });
-            b
-        }
-        None => last,
-    };
-    let output = match c.fitted(Component::COutF) {
-        Some(farads) => {
-            let out = n.node("out");
-            n.add("c_out_f", Element::Capacitor { a: b, b: out, farads });
-            out
-        }
-        None => b,
-    };
-    if let Some(ohms) = c.fitted(Component::LoadOhm) {
-        n.add("load_ohm", Element::Resistor { a: output, b: Node::GROUND, ohms });
-    } else if c.fitted(Component::COutF).is_some() {
+    between(&mut n, c, Component::RFbOhm, g1, last);
+    between(&mut n, c, Component::CFbF, g1, last);
+    let b = series(&mut n, c, Component::ROutOhm, last, "b");
+    let output = series(&mut n, c, Component::COutF, b, "out");
+    between(&mut n, c, Component::LoadOhm, output, Node::GROUND);
+    if c.fitted(Component::LoadOhm).is_none() && c.fitted(Component::COutF).is_some() {
         n.add("output pin leak", Element::Resistor { a: output, b: Node::GROUND, ohms: PIN_LEAK_OHM });
     }
-    if let Some(farads) = c.fitted(Component::LoadF) {
-        n.add("load_f", Element::Capacitor { a: output, b: Node::GROUND, farads });
-    }
+    between(&mut n, c, Component::LoadF, output, Node::GROUND);
     if let Some(node) = first_floating(&n, PathKind::Dc) {
         return Err(floating_error(&n, node, &gates));
     }

@@ -184,7 +184,8 @@ pub fn bench_fit(text: &str) -> Result<JsValue, JsValue> {
     let document = doc::load(text).map_err(thrown)?;
     let bench = document.bench.as_ref().ok_or_else(|| thrown(FieldError::new("bench", "missing")))?;
     let start = bench.starting_part(document.part.as_ref());
-    to_js(&crate::analysis::fit(&start, &bench.readings(), &bench.params()).map_err(thrown)?)
+    let readings = bench.readings().map_err(thrown)?;
+    to_js(&crate::analysis::fit(&start, &readings, &bench.params(&readings)).map_err(thrown)?)
 }
 
 /// The bare part's transfer curve alone (`points` from 0 to VDD).

@@ -32,7 +32,7 @@ fn switching_threshold_matches_the_closed_form() {
     // (Rabaey, Chandrakasan and Nikolić, Digital Integrated Circuits, 2nd ed., from memory).
     for (vdd, kn, kp, vtn, vtp) in [(5.0, 2e-3, 1e-3, 0.8, 0.9), (3.3, 6e-3, 3e-3, 0.55, 0.6), (2.5, 1e-3, 4e-3, 0.4, 0.7)] {
         let p = part(vdd, kn, kp, vtn, vtp, 0.0, 1);
-        let r = (kp / kn as f64).sqrt();
+        let r = (kp / kn).sqrt();
         let vm = (vtn + r * (vdd - vtp)) / (1.0 + r);
         let b = bias(&p, &feedback_only(1e6), None).unwrap();
         assert!((b.vin_v - vm).abs() < 1e-6, "{vdd} V: {} vs {vm}", b.vin_v);
@@ -45,8 +45,8 @@ fn gain_at_threshold_matches_the_small_signal_formula() {
     // Av = −(gmn + gmp)·(ron ∥ rop), ro = 1/(λ·Id), in saturation (Razavi, Design of Analog
     // CMOS Integrated Circuits, from memory). The formula drops the (1 + λVds) factors,
     // so with λ = 1e-3 /V it holds to about λ·VDD.
-    let (vdd, kn, kp, vtn, vtp, lambda) = (5.0, 2e-3, 1e-3, 0.8, 0.9, 1e-3);
-    let r = (kp / kn as f64).sqrt();
+    let (vdd, kn, kp, vtn, vtp, lambda): (f64, f64, f64, f64, f64, f64) = (5.0, 2e-3, 1e-3, 0.8, 0.9, 1e-3);
+    let r = (kp / kn).sqrt();
     let vm = (vtn + r * (vdd - vtp)) / (1.0 + r);
     let id = kn / 2.0 * (vm - vtn).powi(2);
     let gmn = kn * (vm - vtn);

@@ -19,6 +19,7 @@ pub fn run(args: Args) -> Result<String, Failure> {
     let document = read_document(&args.file)?;
     let bench = document.bench.as_ref().ok_or_else(|| FieldError::new("bench", "missing; `fit` needs the bench readings"))?;
     let start = bench.starting_part(document.part.as_ref());
-    let result = fit(&start, &bench.readings(), &bench.params())?;
+    let readings = bench.readings()?;
+    let result = fit(&start, &readings, &bench.params(&readings))?;
     Ok(format!("{}\n", to_json(&result)))
 }

@@ -43,19 +43,25 @@ impl Part {
 
 impl Bench {
     /// The readings as the fit takes them (gains in V/V).
-    pub fn readings(&self) -> crate::analysis::Readings {
-        crate::analysis::Readings {
+    pub fn readings(&self) -> Result<crate::analysis::Readings> {
+        let gains = self
+            .gains
+            .iter()
+            .enumerate()
+            .map(|(i, g)| match (g.gain_vv, g.gain_db) {
+                (Some(vv), None) => Ok((g.f_hz, vv)),
+                (None, Some(db)) => Ok((g.f_hz, crate::units::db_voltage_ratio(db))),
+                _ => Err(FieldError::new(format!("bench.gains[{i}]"), "give gain_vv or gain_db")),
+            })
+            .collect::<Result<_>>()?;
+        Ok(crate::analysis::Readings {
             idd_a: self.idd_a,
             vbias_v: self.vbias_v,
             load_ohm: self.load_ohm,
             load_f: self.load_f,
-            gains: self
-                .gains
-                .iter()
-                .map(|g| (g.f_hz, g.gain_vv.or(g.gain_db.map(crate::units::db_voltage_ratio)).unwrap_or(f64::NAN)))
-                .collect(),
+            gains,
             curve: self.curve.iter().map(|p| (p.vin_v, p.vout_v)).collect(),
-        }
+        })
     }
 
     /// The part the fit starts from, given the document's part (if any).
@@ -64,10 +70,10 @@ impl Bench {
     }
 
     /// The parameters named in `fit`, or those the readings determine.
-    pub fn params(&self) -> Vec<crate::analysis::Param> {
+    pub fn params(&self, readings: &crate::analysis::Readings) -> Vec<crate::analysis::Param> {
         match &self.fit {
             Some(names) => names.iter().filter_map(|n| crate::analysis::Param::from_name(n)).collect(),
-            None => crate::analysis::default_params(&self.readings()),
+            None => crate::analysis::default_params(readings),
         }
     }
 }

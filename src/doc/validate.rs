@@ -57,17 +57,24 @@ const MAX_HZ: f64 = 1e12;
 /// Readings or blocks a list may hold.
 const MAX_LIST: usize = 1000;
 
-fn part(p: &Part) -> Result<()> {
-    range("part.vdd_v", p.vdd_v, Open(0.0), Closed(30.0))?;
-    if p.stages == 0 || p.stages > 9 {
-        return Err(FieldError::new("part.stages", format!("must be 1 to 9, got {}", p.stages)));
+/// A part has 1 to 9 stages, an odd number: an even count does not invert, and the
+/// feedback resistor would latch it.
+fn stage_count(path: &str, stages: u32) -> Result<()> {
+    if stages == 0 || stages > 9 {
+        return Err(FieldError::new(path, format!("must be 1 to 9, got {stages}")));
     }
-    if p.stages % 2 == 0 {
+    if stages.is_multiple_of(2) {
         return Err(FieldError::new(
-            "part.stages",
-            format!("must be odd, got {}: an even count does not invert, so the feedback resistor would latch it", p.stages),
+            path,
+            format!("must be odd, got {stages}: an even count does not invert, so the feedback resistor would latch it"),
         ));
     }
+    Ok(())
+}
+
+fn part(p: &Part) -> Result<()> {
+    range("part.vdd_v", p.vdd_v, Open(0.0), Closed(30.0))?;
+    stage_count("part.stages", p.stages)?;
     range("part.kn_a_per_v2", p.kn_a_per_v2, Open(0.0), Closed(10.0))?;
     range("part.kp_a_per_v2", p.kp_a_per_v2, Open(0.0), Closed(10.0))?;
     range("part.vtn_v", p.vtn_v, Open(0.0), Free)?;
@@ -155,9 +162,7 @@ fn list_length(path: &str, len: usize) -> Result<()> {
 
 fn bench(b: &Bench) -> Result<()> {
     range("bench.vdd_v", b.vdd_v, Open(0.0), Closed(30.0))?;
-    if b.stages == 0 || b.stages > 9 || b.stages % 2 == 0 {
-        return Err(FieldError::new("bench.stages", format!("must be odd, 1 to 9, got {}", b.stages)));
-    }
+    stage_count("bench.stages", b.stages)?;
     optional_range("bench.idd_a", b.idd_a, Open(0.0), Closed(10.0))?;
     optional_range("bench.vbias_v", b.vbias_v, Open(0.0), Open(b.vdd_v))?;
     optional_range("bench.load_ohm", b.load_ohm, Open(0.0), Closed(MAX_OHM))?;

@@ -65,7 +65,8 @@ fn main() {
     }), None);
     let bench = doc.bench.as_ref().unwrap();
     let start = bench.starting_part(doc.part.as_ref());
-    let (readings, params) = (bench.readings(), bench.params());
+    let readings = bench.readings().unwrap();
+    let params = bench.params(&readings);
     report("bench fit, demo readings (4 parameters)", median_time(|| {
         black_box(fit(&start, &readings, &params).unwrap());
     }), None);

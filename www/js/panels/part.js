@@ -27,7 +27,7 @@
   ];
   const BENCH = [
     ['vdd_v', 'Supply at the bench', 'V'],
-    ['stages', 'Stages', '1 or 3'],
+    ['stages', 'Stages of the part measured', '1 or 3'],
     ['idd_a', 'Supply current, self-biased', 'A, e.g. 2.84 mA'],
     ['vbias_v', 'Self-bias voltage', 'V'],
     ['load_ohm', 'Load of the gain readings', 'Ω, e.g. 10k'],
@@ -125,7 +125,9 @@
         ? b.warnings.map((w) => el('li', { class: 'warning', 'data-code': w.code }, w.text))
         : [el('li', { class: 'ok' }, 'No warnings at this operating point.')]));
     };
-    return { node: card('Operating point', stale, output), render, output, stale };
+    const node = card('Operating point', stale, output);
+    node.classList.add('wide');
+    return { node, render, output, stale };
   };
 
   const curvesCard = () => {
