@@ -133,7 +133,7 @@
   const curvesCard = () => {
     let last = null;
     const node = card('Transfer curves',
-      el('p', { class: 'intro' }, 'Left: the bare part, input swept from 0 to the supply, unloaded; the ring is the self-bias and the band the output range with both transistors saturated. Right: the stage in band, output against the input pin, coupling capacitors holding their bias. Drag to zoom, double-click to reset.'));
+      el('p', { class: 'intro' }, 'Left: the bare part, input swept from 0 to the supply, unloaded; the ring is the self-bias and the band the output range with both transistors saturated. Right: the stage in band, output against the input pin, coupling capacitors holding their bias; the ring is the operating point. Drag to zoom, double-click to reset.'));
     const row = el('div', { class: 'plots' });
     node.append(row);
     node.classList.add('wide');
@@ -150,6 +150,11 @@
     const closed = HR.plot.create(row, {
       title: 'In the stage: Vout against Vin (pins)', x: { label: 'Vin', unit: 'V' }, y: { label: 'Vout', unit: 'V' },
       series: [{ label: 'Vout', unit: 'V' }],
+      decorate: (u, ctx) => {
+        // The operating point: the middle of the sweep, where the source EMF is zero.
+        const mid = last && last.closed[Math.floor(last.closed.length / 2)];
+        if (mid) HR.plot.marker(u, ctx, mid.vin_v, mid.vout_v, HR.plot.css('--plot-2'));
+      },
     });
     const render = (r) => {
       last = r;
