@@ -115,6 +115,18 @@ fn isolated(c: &Components) -> Components {
     isolated
 }
 
+impl Bias {
+    /// gm of the first stage (SPEC §4 `bias.gm_s`).
+    pub fn gm_s(&self) -> f64 {
+        self.stages[0].gm_s
+    }
+
+    /// gds of the first stage (SPEC §4 `bias.gds_s`).
+    pub fn gds_s(&self) -> f64 {
+        self.stages[0].gds_s
+    }
+}
+
 /// The least supply with which a square-law stage conducts at its switching point.
 fn conduction_floor(part: &Part) -> f64 {
     part.nmos.vt + part.pmos.vt

@@ -1,0 +1,308 @@
+//! Small-signal response of the stage over frequency (SPEC §3.3): voltage gain,
+//! transducer power gain, group delay, band edges, input and output impedance,
+//! the S-parameters of the two-port between `in` and `out` with Rollett K, Δ and
+//! Edwards–Sinsky μ, and noise by the adjoint method.
+//!
+//! Every figure is a solve of the one engine linearised at the stage's operating
+//! point. Variants of the circuit (source removed, ports terminated) are made by
+//! replacing elements with opens and appending test sources, so the device states
+//! of the operating point stay aligned with their elements.
+
+use num_complex::Complex64;
+
+use super::twoport::{mu, output_noise, resistor_noise, rollett_k, NoiseSource, TwoPort, BOLTZMANN, T0_K};
+use crate::engine::{operating_point, Element, Netlist, Node, OperatingPoint, SmallSignal};
+use crate::error::Result;
+use crate::part::Part;
+use crate::stage::{build, Component, Components, StageCircuit};
+
+/// Log-spaced frequencies from `start` to `stop` with `per_decade` points per decade,
+/// both ends included.
+pub fn frequencies(start: f64, stop: f64, per_decade: u32) -> Vec<f64> {
+    let decades = (stop / start).log10();
+    let steps = (decades * per_decade as f64).ceil().max(1.0) as usize;
+    (0..=steps).map(|i| start * 10f64.powf(decades * i as f64 / steps as f64)).collect()
+}
+
+/// The figures at one frequency.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Point {
+    pub f_hz: f64,
+    /// Av = v(out)/v(in).
+    pub av: Complex64,
+    /// Transducer power gain, when both the source and the load are resistive and fitted.
+    pub gt: Option<f64>,
+    /// Input impedance at `in`, load attached, source removed (`None` when nothing
+    /// but the source reaches `in`).
+    pub zin: Option<Complex64>,
+    /// Output impedance at `out`, source EMF zeroed, load removed.
+    pub zout: Complex64,
+    /// S-parameters [[S11, S12], [S21, S22]] referenced to z0.
+    pub s: [[Complex64; 2]; 2],
+    /// Output noise density, V²/Hz, and the part of it from the source resistance.
+    pub noise_out_v2: f64,
+    pub noise_source_v2: f64,
+    /// v(out) per volt of source EMF (for referring noise to the input).
+    pub emf_gain: Complex64,
+}
+
+impl Point {
+    pub fn gain_db(&self) -> f64 {
+        20.0 * self.av.norm().log10()
+    }
+
+    pub fn phase_deg(&self) -> f64 {
+        self.av.arg().to_degrees()
+    }
+
+    pub fn rollett_k(&self) -> f64 {
+        rollett_k(&self.s)
+    }
+
+    pub fn mu(&self) -> f64 {
+        mu(&self.s)
+    }
+
+    /// Spot noise figure in dB (IEEE: source at 290 K), when the source has resistance.
+    pub fn nf_db(&self) -> Option<f64> {
+        (self.noise_source_v2 > 0.0).then(|| 10.0 * (self.noise_out_v2 / self.noise_source_v2).log10())
+    }
+
+    /// The stage's own noise referred to the source EMF, V/√Hz (the source's own excluded).
+    pub fn noise_in_v_per_rthz(&self) -> f64 {
+        ((self.noise_out_v2 - self.noise_source_v2).max(0.0)).sqrt() / self.emf_gain.norm()
+    }
+}
+
+/// The stage prepared for small-signal work at its operating point.
+pub struct Linearised {
+    circuit: StageCircuit,
+    op: OperatingPoint,
+    main: SmallSignal,
+    zin: Option<(SmallSignal, Node)>,
+    zout: (SmallSignal, Node),
+    ports: TwoPort,
+    noise: Vec<NoiseSource>,
+}
+
+/// A zero current source: an exact open circuit where an element is removed.
+const OPEN: Element = Element::CurrentSource { a: Node::GROUND, b: Node::GROUND, dc: 0.0, ac: 0.0 };
+
+fn open(n: &mut Netlist, name: &str) {
+    if let Some(i) = n.element_index(name) {
+        n.replace(i, OPEN);
+    }
+}
+
+/// A unit small-signal current into `node`.
+fn drive(n: &mut Netlist, node: Node) {
+    n.add("test current", Element::CurrentSource { a: Node::GROUND, b: node, dc: 0.0, ac: 1.0 });
+}
+
+/// The source's EMF silenced (a short at AC: the source resistance stays).
+fn silence(n: &mut Netlist, circuit: &StageCircuit) {
+    if let Element::VoltageSource { a, b, dc, .. } = circuit.netlist.elements()[circuit.source].element {
+        n.replace(circuit.source, Element::VoltageSource { a, b, dc, ac: 0.0 });
+    }
+}
+
+/// Removes the source: its resistor opened, or the EMF itself when it sits on `in`.
+fn remove_source(n: &mut Netlist, circuit: &StageCircuit) {
+    silence(n, circuit);
+    if n.element_index("source_ohm").is_some() {
+        open(n, "source_ohm");
+    } else {
+        n.replace(circuit.source, OPEN);
+    }
+}
+
+impl Linearised {
+    /// Solves the operating point and linearises the stage and its variants.
+    pub fn new(part: &Part, components: &Components, z0: f64) -> Result<Self> {
+        let law = part.law()?;
+        let circuit = build(part, &law, components)?;
+        let op = operating_point(&circuit.netlist, None)?;
+        let main = SmallSignal::at(&circuit.netlist, &op)?;
+        let nodes = &circuit.nodes;
+
+        // Zin: load attached, source removed, a test current into `in`.
+        let mut n = circuit.netlist.clone();
+        remove_source(&mut n, &circuit);
+        drive(&mut n, nodes.input);
+        let zin = SmallSignal::at(&n, &op).ok().map(|s| (s, nodes.input));
+
+        // Zout: source EMF zeroed, load removed, a test current into `out`.
+        let mut n = circuit.netlist.clone();
+        silence(&mut n, &circuit);
+        open(&mut n, "load_ohm");
+        open(&mut n, "load_f");
+        drive(&mut n, nodes.output);
+        let zout = (SmallSignal::at(&n, &op)?, nodes.output);
+
+        // The two-port between `in` and `out`, source and load excluded.
+        let mut n = circuit.netlist.clone();
+        remove_source(&mut n, &circuit);
+        open(&mut n, "load_ohm");
+        open(&mut n, "load_f");
+        let ports = TwoPort::new(&n, &op, nodes.input, nodes.output, z0)?;
+
+        let noise = noise_sources(part, &circuit, &op);
+        Ok(Linearised { circuit, op, main, zin, zout, ports, noise })
+    }
+
+    pub fn circuit(&self) -> &StageCircuit {
+        &self.circuit
+    }
+
+    pub fn operating_point(&self) -> &OperatingPoint {
+        &self.op
+    }
+
+    /// Every figure at `f_hz`.
+    pub fn at(&self, f_hz: f64, components: &Components) -> Result<Point> {
+        let omega = std::f64::consts::TAU * f_hz;
+        let nodes = &self.circuit.nodes;
+        let x = self.main.solve(omega)?;
+        let (vin, vout) = (self.main.layout.voltage(&x, nodes.input), self.main.layout.voltage(&x, nodes.output));
+        let av = vout / vin;
+        let rs = components.get(Component::SourceOhm).filter(|&r| r > 0.0);
+        let rl = components.get(Component::LoadOhm);
+        let gt = match (rs, rl) {
+            // (|v(out)|²/RL) / (|E|²/(4·Rs)) with E = 1 V.
+            (Some(rs), Some(rl)) => Some(vout.norm_sqr() / rl * 4.0 * rs),
+            _ => None,
+        };
+        let impedance = |s: &SmallSignal, node: Node| -> Result<Complex64> {
+            Ok(s.layout.voltage(&s.solve(omega)?, node))
+        };
+        let zin = match &self.zin {
+            Some((s, node)) => Some(impedance(s, *node)?),
+            None => None,
+        };
+        let zout = impedance(&self.zout.0, self.zout.1)?;
+
+        let s = self.ports.s(f_hz)?;
+        let densities = output_noise(&self.main, &self.noise, nodes.output, f_hz)?;
+        let total = densities.iter().sum();
+        let source = self.noise.iter().zip(&densities).filter(|(n, _)| n.from_source).map(|(_, d)| d).sum();
+        Ok(Point { f_hz, av, gt, zin, zout, s, noise_out_v2: total, noise_source_v2: source, emf_gain: vout })
+    }
+
+    /// Each noise source's share of the output noise at `f_hz`, largest first: (name, fraction).
+    pub fn noise_shares(&self, f_hz: f64) -> Result<Vec<(String, f64)>> {
+        let densities = output_noise(&self.main, &self.noise, self.circuit.nodes.output, f_hz)?;
+        let total: f64 = densities.iter().sum();
+        let mut shares: Vec<(String, f64)> = self
+            .noise
+            .iter()
+            .zip(densities)
+            .map(|(n, d)| (n.name.clone(), if total > 0.0 { d / total } else { 0.0 }))
+            .collect();
+        shares.sort_by(|a, b| b.1.total_cmp(&a.1));
+        Ok(shares)
+    }
+}
+
+/// Thermal noise of every resistor of the stage (the source's at T0, the rest at the
+/// part's temperature; the load and the pin leak noiseless) and the channel noise
+/// 4kTγ·gm of each inverter stage, output to ground.
+fn noise_sources(part: &Part, circuit: &StageCircuit, op: &OperatingPoint) -> Vec<NoiseSource> {
+    let t_part = part.kelvin();
+    let mut out = Vec::new();
+    for (named, state) in circuit.netlist.elements().iter().zip(&op.devices) {
+        match (&named.element, state) {
+            (Element::Resistor { a, b, ohms }, _) if !matches!(named.name.as_str(), "load_ohm" | "output pin leak") => {
+                let from_source = named.name == "source_ohm";
+                let kelvin = if from_source { T0_K } else { t_part };
+                out.push(resistor_noise(&named.name, *a, *b, *ohms, kelvin, from_source));
+            }
+            (Element::Device { output, .. }, Some(s)) => {
+                let gm = -s.di_dvin;
+                out.push(NoiseSource {
+                    name: named.name.clone(),
+                    a: *output,
+                    b: Node::GROUND,
+                    density: 4.0 * BOLTZMANN * t_part * part.gamma * gm,
+                    from_source: false,
+                });
+            }
+            _ => {}
+        }
+    }
+    out
+}
+
+/// The swept response and the figures read from it.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Response {
+    pub points: Vec<Point>,
+    pub design: Point,
+    /// Where |Av| has fallen to |Av(f_design)|/√2 below and above f_design, within
+    /// 0.1 %; `None` when that happens outside the sweep.
+    pub f_low_hz: Option<f64>,
+    pub f_high_hz: Option<f64>,
+    /// The ideal inverting gain −r_fb/r_in (with the source resistance when there is
+    /// no r_in), for comparison: what the finite open-loop gain costs.
+    pub ideal_gain: Option<f64>,
+    /// Group delay −dφ/dω at each sweep point, s.
+    pub group_delay_s: Vec<f64>,
+}
+
+/// Refines a band edge between two frequencies that bracket the level, by bisection
+/// in log frequency to 0.1 %.
+fn refine_edge(lin: &Linearised, c: &Components, level: f64, mut inside: f64, mut outside: f64) -> Result<f64> {
+    while (outside / inside - 1.0).abs() > 1e-3 {
+        let mid = (inside * outside).sqrt();
+        if lin.at(mid, c)?.av.norm() >= level {
+            inside = mid;
+        } else {
+            outside = mid;
+        }
+    }
+    Ok((inside * outside).sqrt())
+}
+
+/// The stage's response over `freqs`, with the design figures at `f_design`.
+pub fn response(part: &Part, c: &Components, f_design: f64, freqs: &[f64], z0: f64) -> Result<Response> {
+    let lin = Linearised::new(part, c, z0)?;
+    let points = freqs.iter().map(|&f| lin.at(f, c)).collect::<Result<Vec<_>>>()?;
+    let design = lin.at(f_design, c)?;
+    let level = design.av.norm() / std::f64::consts::SQRT_2;
+    let split = freqs.partition_point(|&f| f < f_design);
+    let below = (0..split).rev().find(|&i| points[i].av.norm() < level);
+    let above = (split..points.len()).find(|&i| points[i].av.norm() < level);
+    let f_low_hz = match below {
+        Some(i) => Some(refine_edge(&lin, c, level, if i + 1 < split { freqs[i + 1] } else { f_design }, freqs[i])?),
+        None => None,
+    };
+    let f_high_hz = match above {
+        Some(i) => Some(refine_edge(&lin, c, level, if i > split { freqs[i - 1] } else { f_design }, freqs[i])?),
+        None => None,
+    };
+    let series_in = c.get(Component::RInOhm).filter(|&r| r > 0.0).or(c.get(Component::SourceOhm).filter(|&r| r > 0.0));
+    let ideal_gain = match (c.get(Component::RFbOhm), series_in) {
+        (Some(rf), Some(ri)) => Some(-rf / ri),
+        _ => None,
+    };
+    Ok(Response { group_delay_s: group_delay(&points), points, design, f_low_hz, f_high_hz, ideal_gain })
+}
+
+/// −dφ/dω by central differences on the unwrapped phase (one-sided at the ends).
+fn group_delay(points: &[Point]) -> Vec<f64> {
+    let mut phase: Vec<f64> = points.iter().map(|p| p.av.arg()).collect();
+    for i in 1..phase.len() {
+        let jump = phase[i] - phase[i - 1];
+        phase[i] -= std::f64::consts::TAU * (jump / std::f64::consts::TAU).round();
+    }
+    let omega = |i: usize| std::f64::consts::TAU * points[i].f_hz;
+    (0..points.len())
+        .map(|i| {
+            let (a, b) = (i.saturating_sub(1), (i + 1).min(points.len() - 1));
+            if a == b {
+                0.0
+            } else {
+                -(phase[b] - phase[a]) / (omega(b) - omega(a))
+            }
+        })
+        .collect()
+}
