@@ -7,11 +7,13 @@ WASM_OUT := target/wasm32-unknown-unknown/wasm/halfrail.wasm
 BINDGEN := target/bindgen
 PAGE := dist/halfrail.html
 PORT ?= 8117
+PYENV := target/pyenv
+SKRF_VERSION := 2.2.0
 APT := $(if $(filter 0,$(shell id -u)),,sudo) env DEBIAN_FRONTEND=noninteractive apt-get
 export CHROMEDRIVER ?= /usr/bin/chromedriver
 export CARGO_TARGET_WASM32_UNKNOWN_UNKNOWN_RUNNER := wasm-bindgen-test-runner
 
-.PHONY: run dist test test-native test-wasm test-e2e bench setup-rust setup-build-tools setup-node setup-browser clean
+.PHONY: run dist test test-native test-wasm test-e2e test-interop bench setup-rust setup-build-tools setup-node setup-python setup-browser clean
 
 run: dist
 	@echo "The page: file://$(CURDIR)/$(PAGE)"
@@ -25,13 +27,18 @@ dist: setup-rust setup-build-tools
 	  $(BINDGEN)/halfrail_bg.wasm -o $(BINDGEN)/halfrail_bg.opt.wasm
 	node www/build.mjs $(BINDGEN) $(PAGE)
 
-test: dist setup-node setup-browser test-native test-wasm test-e2e
+test: dist setup-node setup-browser test-native test-wasm test-e2e test-interop
 
 test-native:
 	cargo test
 
 test-wasm: setup-rust setup-browser
 	cd wasm-tests && cargo test --target wasm32-unknown-unknown
+
+# Files the core writes, read back by independent readers from the registries.
+test-interop: setup-python
+	cargo build --bin halfrail
+	$(PYENV)/bin/python tests/touchstone_readback.py target/debug/halfrail src/doc/demo.halfrail.json
 
 test-e2e: setup-node setup-browser
 	cd wasm-tests && node --test --test-concurrency=1 e2e/
@@ -54,6 +61,11 @@ setup-build-tools:
 
 setup-node: setup-build-tools
 	@[ -d wasm-tests/node_modules/playwright-core ] || (cd wasm-tests && npm ci --no-audit --no-fund)
+
+# A virtual environment with scikit-rf, the independent Touchstone reader.
+setup-python:
+	@[ -x $(PYENV)/bin/python ] && $(PYENV)/bin/python -c 'import skrf' 2>/dev/null || \
+	  { python3 -m venv $(PYENV) && $(PYENV)/bin/pip install -q scikit-rf==$(SKRF_VERSION); }
 
 setup-browser:
 	@[ -x /usr/bin/chromium ] && [ -x /usr/bin/chromedriver ] || { $(APT) update -qq && $(APT) install -y -qq chromium chromium-driver; }

@@ -24,6 +24,7 @@ pub mod doc;
 pub mod engine;
 pub mod error;
 pub mod part;
+pub mod report;
 pub mod stage;
 pub mod units;
 pub mod values;

@@ -4,21 +4,23 @@
 
 mod cli;
 
+use std::io::Write;
 use std::process::ExitCode;
+
+/// Writes to stdout; a reader that has gone away (`| head`) is not an error.
+fn emit(text: &str) {
+    let _ = std::io::stdout().lock().write_all(text.as_bytes());
+}
 
 fn main() -> ExitCode {
     match cli::run(std::env::args_os()) {
-        Ok(output) => {
-            print!("{output}");
+        Ok(output) | Err(cli::Failure::Shown(output)) => {
+            emit(&output);
             ExitCode::SUCCESS
         }
         Err(cli::Failure::Usage(line)) | Err(cli::Failure::Input(line)) => {
-            eprintln!("halfrail: {line}");
+            let _ = writeln!(std::io::stderr(), "halfrail: {line}");
             ExitCode::from(2)
-        }
-        Err(cli::Failure::Shown(text)) => {
-            print!("{text}");
-            ExitCode::SUCCESS
         }
     }
 }

@@ -149,3 +149,26 @@ fn analysis_verbs_name_what_is_missing() {
     refused(&["fit", &bare], "bench: missing");
     std::fs::remove_dir_all(&dir).ok();
 }
+
+#[test]
+fn analyze_sweep_and_touchstone_share_one_response() {
+    let out = halfrail(&["analyze", &demo()]);
+    let json: serde_json::Value = serde_json::from_str(&stdout(&out)).unwrap();
+    let ac = &json["ac"];
+    for key in ["gain_db", "phase_deg", "power_gain_db", "f_low_hz", "f_high_hz", "zin_re_ohm", "zin_im_ohm", "s11_db", "s21_db", "nf_db"] {
+        assert!(ac[key].as_f64().is_some_and(f64::is_finite), "ac.{key}: {}", ac[key]);
+    }
+    assert!(ac["f_low_hz"].as_f64().unwrap() < 10.7e6 && ac["f_high_hz"].as_f64().unwrap() > 10.7e6, "f_design is in band");
+    let csv = stdout(&halfrail(&["sweep", &demo(), "--csv"]));
+    let mut lines = csv.lines();
+    assert!(lines.next().unwrap().starts_with("f_hz,gain_db,phase_deg,gt_db"));
+    // 1 kHz to 1 GHz at 50 points per decade: 6 decades, 301 points.
+    assert_eq!(lines.count(), 301);
+    let s2p = stdout(&halfrail(&["touchstone", &demo()]));
+    assert!(s2p.lines().any(|l| l == "# HZ S RI R 50"));
+    assert_eq!(s2p.lines().filter(|l| !l.starts_with('!') && !l.starts_with('#')).count(), 301);
+    let bad = std::env::temp_dir().join(format!("halfrail-no-analysis-{}.json", std::process::id()));
+    std::fs::write(&bad, r#"{"halfrail": 1, "part": {"vdd_v": 5, "kn_a_per_v2": 1e-3, "kp_a_per_v2": 1e-3, "vtn_v": 1, "vtp_v": -1}, "stage": {"r_fb_ohm": "1M", "c_in_f": "1u"}}"#).unwrap();
+    refused(&["sweep", &bad.display().to_string(), "--csv"], "analysis: missing");
+    std::fs::remove_file(&bad).ok();
+}

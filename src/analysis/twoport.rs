@@ -37,10 +37,11 @@ impl TwoPort {
     pub fn s(&self, f_hz: f64) -> Result<[[Complex64; 2]; 2]> {
         let omega = std::f64::consts::TAU * f_hz;
         let layout = &self.small.layout;
+        let drives = [self.p1, self.p2].map(|node| injection(&self.small, node, 2.0 / self.z0));
+        let solved = self.small.solve_each(omega, &drives)?;
         let mut s = [[Complex64::new(0.0, 0.0); 2]; 2];
-        for (col, node) in [(0, self.p1), (1, self.p2)] {
-            let v = self.small.solve_with(omega, &injection(&self.small, node, 2.0 / self.z0))?;
-            let (v1, v2) = (layout.voltage(&v, self.p1), layout.voltage(&v, self.p2));
+        for (col, v) in solved.iter().enumerate() {
+            let (v1, v2) = (layout.voltage(v, self.p1), layout.voltage(v, self.p2));
             s[0][col] = if col == 0 { v1 - 1.0 } else { v1 };
             s[1][col] = if col == 1 { v2 - 1.0 } else { v2 };
         }

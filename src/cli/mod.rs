@@ -44,8 +44,12 @@ enum Verb {
     Nearest(nearest::Args),
     /// Check that a design document is valid.
     Check(check::Args),
-    /// Analyse a design: the operating point of the part in its stage.
+    /// Analyse a design: the operating point, and the small-signal response at f_design.
     Analyze(analyze::Args),
+    /// The small-signal sweep of a design, one row per frequency.
+    Sweep(analyze::SweepArgs),
+    /// The stage's S-parameters as a Touchstone 1.1 two-port file.
+    Touchstone(analyze::Args),
     /// Fit the part to the bench readings of a document.
     Fit(fit::Args),
 }
@@ -64,6 +68,8 @@ pub fn run(args: impl IntoIterator<Item = OsString>) -> Result<String, Failure> 
         Verb::Nearest(args) => nearest::run(args),
         Verb::Check(args) => check::run(args),
         Verb::Analyze(args) => analyze::run(args),
+        Verb::Sweep(args) => analyze::run_sweep(args),
+        Verb::Touchstone(args) => analyze::run_touchstone(args),
         Verb::Fit(args) => fit::run(args),
     }
 }

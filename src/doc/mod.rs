@@ -5,7 +5,7 @@
 mod quantity;
 mod sections;
 mod serialize;
-pub use serialize::{AnalyzeReport, BiasReport, PartReport, DocumentSummary, LookupReport, NearestReport, SeriesFacts, ValueInUnit};
+pub use serialize::{AcReport, AnalyzeReport, BiasReport, PartReport, DocumentSummary, LookupReport, NearestReport, SeriesFacts, ValueInUnit};
 mod validate;
 
 pub use sections::{
@@ -75,6 +75,13 @@ impl Bench {
             Some(names) => names.iter().filter_map(|n| crate::analysis::Param::from_name(n)).collect(),
             None => crate::analysis::default_params(readings),
         }
+    }
+}
+
+impl Analysis {
+    /// The sweep's frequencies.
+    pub fn frequencies(&self) -> Vec<f64> {
+        crate::analysis::frequencies(self.f_start_hz, self.f_stop_hz, self.points_per_decade)
     }
 }
 

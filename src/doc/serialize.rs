@@ -234,15 +234,18 @@ impl Serialize for BiasReport<'_> {
     }
 }
 
-/// What `halfrail analyze` prints: one section per analysis computed so far.
+/// What `halfrail analyze` prints: one section per analysis computed so far
+/// (`ac` when the document has an `analysis` section).
 pub struct AnalyzeReport<'a> {
     pub bias: BiasReport<'a>,
+    pub ac: Option<AcReport<'a>>,
 }
 
 impl Serialize for AnalyzeReport<'_> {
     fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let mut out = serializer.serialize_struct("AnalyzeReport", 1)?;
+        let mut out = serializer.serialize_struct("AnalyzeReport", 2)?;
         out.serialize_field("bias", &self.bias)?;
+        out.serialize_field("ac", &self.ac)?;
         out.end()
     }
 }
@@ -320,6 +323,37 @@ impl Serialize for PartReport<'_> {
         out.serialize_field("bias", &self.bias)?;
         out.serialize_field("bare", self.bias.curve)?;
         out.serialize_field("closed", self.closed)?;
+        out.end()
+    }
+}
+
+/// The `ac` section of `halfrail analyze` (SPEC §4): the figures at f_design.
+pub struct AcReport<'a>(pub &'a crate::analysis::Response);
+
+impl Serialize for AcReport<'_> {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let r = self.0;
+        let p = &r.design;
+        let db = |x: f64| (x > 0.0).then(|| 20.0 * x.log10());
+        let mut out = serializer.serialize_struct("AcReport", 18)?;
+        out.serialize_field("gain_db", &p.gain_db())?;
+        out.serialize_field("phase_deg", &p.phase_deg())?;
+        out.serialize_field("power_gain_db", &p.gt.map(|g| 10.0 * g.log10()))?;
+        out.serialize_field("ideal_gain_db", &r.ideal_gain.and_then(|g| db(g.abs())))?;
+        out.serialize_field("f_low_hz", &r.f_low_hz)?;
+        out.serialize_field("f_high_hz", &r.f_high_hz)?;
+        out.serialize_field("zin_re_ohm", &p.zin.map(|z| z.re))?;
+        out.serialize_field("zin_im_ohm", &p.zin.map(|z| z.im))?;
+        out.serialize_field("zout_re_ohm", &p.zout.re)?;
+        out.serialize_field("zout_im_ohm", &p.zout.im)?;
+        out.serialize_field("s11_db", &db(p.s[0][0].norm()))?;
+        out.serialize_field("s21_db", &db(p.s[1][0].norm()))?;
+        out.serialize_field("s12_db", &db(p.s[0][1].norm()))?;
+        out.serialize_field("s22_db", &db(p.s[1][1].norm()))?;
+        out.serialize_field("k", &p.rollett_k())?;
+        out.serialize_field("mu", &p.mu())?;
+        out.serialize_field("nf_db", &p.nf_db())?;
+        out.serialize_field("noise_in_v_per_rthz", &p.noise_in_v_per_rthz())?;
         out.end()
     }
 }

@@ -49,6 +49,12 @@ impl SmallSignal {
         checked(self.matrix(omega).lu().solve(rhs), omega)
     }
 
+    /// Solves (G + jωC)·x = b for each right-hand side, factorising once.
+    pub fn solve_each(&self, omega: f64, rhs: &[DVector<Complex64>]) -> Result<Vec<DVector<Complex64>>> {
+        let lu = self.matrix(omega).lu();
+        rhs.iter().map(|b| checked(lu.solve(b), omega)).collect()
+    }
+
     /// The response to the circuit's own small-signal sources at `omega`.
     pub fn solve(&self, omega: f64) -> Result<DVector<Complex64>> {
         self.solve_with(omega, &self.b)

@@ -36,6 +36,7 @@ fn report(what: &str, seconds: f64, target: Option<f64>) {
         Some(t) => format!("≤ {:.0} µs  MISSED", t * 1e6),
         None => String::new(),
     };
+    let what = if what.chars().count() > 58 { what.chars().take(58).collect() } else { what.to_string() };
     println!("{what:<58} {:>12.1} µs  {verdict}", seconds * 1e6);
 }
 
@@ -63,6 +64,11 @@ fn main() {
     report("transfer curve, 500 points, three-stage part", median_time(|| {
         black_box(bare_curve(&buffered, 500).unwrap());
     }), None);
+    let analysis = doc.analysis.as_ref().unwrap();
+    let sweep = halfrail::analysis::frequencies(analysis.f_start_hz, analysis.f_stop_hz, 1000 / 6);
+    report(&format!("small-signal response, demo, {} points (gain, Z, S, noise)", sweep.len()), median_time(|| {
+        black_box(halfrail::analysis::response(&demo_part, &stage, analysis.f_design_hz, &sweep, 50.0).unwrap());
+    }), Some(2e-3));
     let bench = doc.bench.as_ref().unwrap();
     let start = bench.starting_part(doc.part.as_ref());
     let readings = bench.readings().unwrap();

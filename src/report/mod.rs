@@ -1,0 +1,13 @@
+//! Text exports of computed results: the sweep as CSV and the two-port as a
+//! Touchstone file. (JSON output belongs to `doc`.)
+
+mod sweep_csv;
+mod touchstone;
+
+pub use sweep_csv::sweep_csv;
+pub use touchstone::touchstone;
+
+/// A number for a data file: full precision, or an empty field when absent.
+fn cell(value: Option<f64>) -> String {
+    value.filter(|v| v.is_finite()).map_or(String::new(), |v| format!("{v:.10e}"))
+}

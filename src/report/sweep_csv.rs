@@ -1,0 +1,42 @@
+//! The frequency sweep as CSV: one row per frequency, a header of keys that carry
+//! their unit, an empty field where a figure does not exist.
+
+use super::cell;
+use crate::analysis::{mu, rollett_k, Response};
+
+const HEADER: &str = "f_hz,gain_db,phase_deg,gt_db,group_delay_s,zin_re_ohm,zin_im_ohm,zout_re_ohm,zout_im_ohm,\
+s11_db,s21_db,s12_db,s22_db,k,mu,nf_db,noise_in_v_per_rthz";
+
+fn db(x: f64) -> Option<f64> {
+    (x > 0.0).then(|| 20.0 * x.log10())
+}
+
+/// The CSV text of a swept response.
+pub fn sweep_csv(response: &Response) -> String {
+    let mut out = format!("{HEADER}\n");
+    for (p, delay) in response.points.iter().zip(&response.group_delay_s) {
+        let [[s11, s12], [s21, s22]] = p.s;
+        let row = [
+            Some(p.f_hz),
+            Some(p.gain_db()),
+            Some(p.phase_deg()),
+            p.gt.map(|g| 10.0 * g.log10()),
+            Some(*delay),
+            p.zin.map(|z| z.re),
+            p.zin.map(|z| z.im),
+            Some(p.zout.re),
+            Some(p.zout.im),
+            db(s11.norm()),
+            db(s21.norm()),
+            db(s12.norm()),
+            db(s22.norm()),
+            Some(rollett_k(&p.s)),
+            Some(mu(&p.s)),
+            p.nf_db(),
+            Some(p.noise_in_v_per_rthz()),
+        ];
+        out.push_str(&row.iter().map(|v| cell(*v)).collect::<Vec<_>>().join(","));
+        out.push('\n');
+    }
+    out
+}
