@@ -194,3 +194,15 @@ pub fn transfer_curve(text: &str, points: usize) -> Result<JsValue, JsValue> {
     let (_, part, _) = part_and_stage(text)?;
     to_js(&crate::analysis::bare_curve(&part, points.clamp(3, 5001)).map_err(thrown)?)
 }
+
+/// The Response panel's figures: the design-frequency figures, the sweep of the
+/// document's `analysis` section as columns, and the noise shares.
+#[wasm_bindgen(js_name = responseReport)]
+pub fn response_report(text: &str) -> Result<JsValue, JsValue> {
+    let (document, part, stage) = part_and_stage(text)?;
+    let analysis = document.analysis.as_ref().ok_or_else(|| thrown(FieldError::new("analysis", "missing")))?;
+    let response = crate::analysis::response(&part, &stage, analysis.f_design_hz, &analysis.frequencies(), analysis.z0_ohm)
+        .map_err(thrown)?;
+    let source_ohm = stage.get(crate::stage::Component::SourceOhm).filter(|&r| r > 0.0);
+    to_js(&doc::ResponseReport { response: &response, source_ohm, f_design_hz: analysis.f_design_hz })
+}

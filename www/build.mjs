@@ -16,6 +16,7 @@ const SCRIPTS = [
   'js/design.js',
   'js/plot.js',
   'js/panels/part.js',
+  'js/panels/response.js',
   'js/panels/bench.js',
   'js/panels/planned.js',
   'js/shell.js',

@@ -68,6 +68,13 @@ impl Point {
         (self.noise_source_v2 > 0.0).then(|| 10.0 * (self.noise_out_v2 / self.noise_source_v2).log10())
     }
 
+    /// Return loss of the input against a source of `source_ohm`, dB (`None` without
+    /// an input impedance; infinite for a perfect match is left out too).
+    pub fn return_loss_db(&self, source_ohm: f64) -> Option<f64> {
+        let gamma = crate::units::reflection(self.zin?, source_ohm).norm();
+        (gamma > 0.0).then(|| -20.0 * gamma.log10())
+    }
+
     /// The stage's own noise referred to the source EMF, V/√Hz (the source's own excluded).
     pub fn noise_in_v_per_rthz(&self) -> f64 {
         ((self.noise_out_v2 - self.noise_source_v2).max(0.0)).sqrt() / self.emf_gain.norm()
@@ -246,6 +253,8 @@ pub struct Response {
     pub ideal_gain: Option<f64>,
     /// Group delay −dφ/dω at each sweep point, s.
     pub group_delay_s: Vec<f64>,
+    /// Each noise source's share of the output noise at f_design, largest first.
+    pub noise_shares: Vec<(String, f64)>,
 }
 
 /// Refines a band edge between two frequencies that bracket the level, by bisection
@@ -284,16 +293,29 @@ pub fn response(part: &Part, c: &Components, f_design: f64, freqs: &[f64], z0: f
         (Some(rf), Some(ri)) => Some(-rf / ri),
         _ => None,
     };
-    Ok(Response { group_delay_s: group_delay(&points), points, design, f_low_hz, f_high_hz, ideal_gain })
+    let noise_shares = lin.noise_shares(f_design)?;
+    Ok(Response { group_delay_s: group_delay(&points), points, design, f_low_hz, f_high_hz, ideal_gain, noise_shares })
 }
 
-/// −dφ/dω by central differences on the unwrapped phase (one-sided at the ends).
-fn group_delay(points: &[Point]) -> Vec<f64> {
+/// The phase of Av in radians made continuous over the sweep (each step moved by
+/// whole turns to stay within half a turn of the last), then shifted by whole turns
+/// so that at `f_design` it is the principal value there.
+pub fn unwrapped_phase(points: &[Point], f_design: f64) -> Vec<f64> {
     let mut phase: Vec<f64> = points.iter().map(|p| p.av.arg()).collect();
     for i in 1..phase.len() {
         let jump = phase[i] - phase[i - 1];
         phase[i] -= std::f64::consts::TAU * (jump / std::f64::consts::TAU).round();
     }
+    if let Some(at) = points.iter().position(|p| p.f_hz >= f_design) {
+        let turns = ((phase[at] - points[at].av.arg()) / std::f64::consts::TAU).round();
+        phase.iter_mut().for_each(|p| *p -= turns * std::f64::consts::TAU);
+    }
+    phase
+}
+
+/// −dφ/dω by central differences on the unwrapped phase (one-sided at the ends).
+fn group_delay(points: &[Point]) -> Vec<f64> {
+    let phase = unwrapped_phase(points, 0.0);
     let omega = |i: usize| std::f64::consts::TAU * points[i].f_hz;
     (0..points.len())
         .map(|i| {

@@ -5,7 +5,7 @@
 mod quantity;
 mod sections;
 mod serialize;
-pub use serialize::{AcReport, AnalyzeReport, BiasReport, PartReport, DocumentSummary, LookupReport, NearestReport, SeriesFacts, ValueInUnit};
+pub use serialize::{AcReport, AnalyzeReport, BiasReport, PartReport, ResponseReport, DocumentSummary, LookupReport, NearestReport, SeriesFacts, ValueInUnit};
 mod validate;
 
 pub use sections::{

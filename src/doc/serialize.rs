@@ -357,3 +357,51 @@ impl Serialize for AcReport<'_> {
         out.end()
     }
 }
+
+/// What the Response panel plots: the design figures, the sweep as columns (one
+/// array per figure, `null` where a figure does not exist) and the noise shares.
+pub struct ResponseReport<'a> {
+    pub response: &'a crate::analysis::Response,
+    pub source_ohm: Option<f64>,
+    pub f_design_hz: f64,
+}
+
+impl Serialize for ResponseReport<'_> {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let r = self.response;
+        let column = |f: &dyn Fn(&crate::analysis::Point) -> Option<f64>| -> Vec<Option<f64>> {
+            r.points.iter().map(|p| f(p).filter(|v| v.is_finite())).collect()
+        };
+        let db = |x: f64| (x > 0.0).then(|| 20.0 * x.log10());
+        let mut out = serializer.serialize_struct("ResponseReport", 16)?;
+        out.serialize_field("f_design_hz", &self.f_design_hz)?;
+        out.serialize_field("design", &AcReport(r))?;
+        out.serialize_field("return_loss_db", &self.source_ohm.and_then(|rs| r.design.return_loss_db(rs)))?;
+        out.serialize_field("f_hz", &column(&|p| Some(p.f_hz)))?;
+        out.serialize_field("gain_db", &column(&|p| Some(p.gain_db())))?;
+        out.serialize_field("phase_deg", &column(&|p| Some(p.phase_deg())))?;
+        let unwrapped = crate::analysis::unwrapped_phase(&r.points, self.f_design_hz);
+        out.serialize_field("phase_unwrapped_deg", &unwrapped.iter().map(|p| p.to_degrees()).collect::<Vec<_>>())?;
+        out.serialize_field("gt_db", &column(&|p| p.gt.map(|g| 10.0 * g.log10())))?;
+        out.serialize_field("zin_re_ohm", &column(&|p| p.zin.map(|z| z.re)))?;
+        out.serialize_field("zin_im_ohm", &column(&|p| p.zin.map(|z| z.im)))?;
+        out.serialize_field("rl_db", &column(&|p| self.source_ohm.and_then(|rs| p.return_loss_db(rs))))?;
+        out.serialize_field("s21_db", &column(&|p| db(p.s[1][0].norm())))?;
+        out.serialize_field("nf_db", &column(&|p| p.nf_db()))?;
+        out.serialize_field("noise_in_v_per_rthz", &column(&|p| Some(p.noise_in_v_per_rthz())))?;
+        out.serialize_field("mu", &column(&|p| Some(p.mu())))?;
+        let shares: Vec<ShareOut> = r.noise_shares.iter().map(|(name, share)| ShareOut { name, share: *share }).collect();
+        out.serialize_field("noise_shares", &shares)?;
+        out.end()
+    }
+}
+
+struct ShareOut<'a> {
+    name: &'a str,
+    share: f64,
+}
+
+serialize_fields!(ShareOut<'_> {
+    "name" => name,
+    "share" => share,
+});

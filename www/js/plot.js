@@ -10,25 +10,27 @@ HR.plot = (() => {
   // Series colours chosen to stay apart in both themes and for common colour-vision deficiencies.
   const PALETTE = ['--plot-1', '--plot-2', '--plot-3', '--plot-4'];
 
-  const axis = (label, unit) => ({
+  // On a log axis uPlot ticks 1…9 of every decade; only the decades are labelled.
+  const isDecade = (v) => v > 0 && Math.abs(Math.log10(v) - Math.round(Math.log10(v))) < 1e-9;
+  const axis = (label, unit, log = false) => ({
     label: unit ? `${label} (${unit})` : label,
     stroke: css('--ink'),
     grid: { stroke: css('--line'), width: 1 },
     ticks: { stroke: css('--line') },
-    values: (u, ticks) => ticks.map((v) => HR.fmt(v, '', 3)),
+    values: (u, ticks) => ticks.map((v) => (log && !isDecade(v) ? '' : HR.fmt(v, '', 3))),
     size: 56,
   });
 
   // create(container, {title, x: {label, unit}, y: {label, unit}, series: [{label, unit}],
-  //   height, decorate(u, ctx)}) → {setData(xs, ...ys), node}
+  //   logX, height, decorate(u, ctx)}) → {setData([xs, ...ys]), node}
   const create = (container, spec) => {
     const wrap = el('figure', { class: 'plot' }, el('figcaption', {}, spec.title));
     container.append(wrap);
     const opts = {
       width: Math.max(320, wrap.clientWidth || 560),
       height: spec.height || 300,
-      scales: { x: { time: false }, y: {} },
-      axes: [axis(spec.x.label, spec.x.unit), axis(spec.y.label, spec.y.unit)],
+      scales: { x: spec.logX ? { time: false, distr: 3, log: 10 } : { time: false }, y: {} },
+      axes: [axis(spec.x.label, spec.x.unit, spec.logX), axis(spec.y.label, spec.y.unit)],
       cursor: { drag: { x: true, y: true } },
       legend: { live: true },
       series: [
@@ -76,5 +78,23 @@ HR.plot = (() => {
     ctx.restore();
   };
 
-  return { create, band, marker, css };
+  // A labelled vertical line at x (a design frequency, a band edge).
+  const vline = (u, ctx, x, colour, label, row = 0) => {
+    if (x === null || x === undefined || x < u.scales.x.min || x > u.scales.x.max) return;
+    const px = u.valToPos(x, 'x', true);
+    ctx.save();
+    ctx.strokeStyle = colour;
+    ctx.fillStyle = colour;
+    ctx.setLineDash([5, 4]);
+    ctx.lineWidth = 1.5;
+    ctx.beginPath();
+    ctx.moveTo(px, u.bbox.top);
+    ctx.lineTo(px, u.bbox.top + u.bbox.height);
+    ctx.stroke();
+    ctx.font = `${12 * devicePixelRatio}px sans-serif`;
+    ctx.fillText(label, px + 4, u.bbox.top + (14 + 14 * row) * devicePixelRatio);
+    ctx.restore();
+  };
+
+  return { create, band, marker, vline, css };
 })();

@@ -118,3 +118,15 @@ fn presets_and_bench_fit() {
     let bad = wasm::part_report(r#"{"halfrail": 1, "part": {"vdd_v": 3.3}}"#, 11).unwrap_err();
     assert_eq!(text(&bad, "field"), "part");
 }
+
+#[wasm_bindgen_test]
+fn the_response_report_of_the_demo() {
+    let r = wasm::response_report(&wasm::demo_document()).unwrap();
+    let f = Array::from(&get(&r, "f_hz"));
+    assert_eq!(f.length(), 301);
+    assert_eq!(Array::from(&get(&r, "gain_db")).length(), 301);
+    let design = get(&r, "design");
+    assert!(number(&design, "gain_db").is_finite());
+    assert!(number(&design, "f_low_hz") < 10.7e6 && number(&design, "f_high_hz") > 10.7e6);
+    assert!(Array::from(&get(&r, "noise_shares")).length() >= 3);
+}

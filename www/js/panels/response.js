@@ -1,0 +1,102 @@
+'use strict';
+// Response: the stage's small-signal behaviour against frequency — gain and phase,
+// input impedance and return loss, noise figure and input noise — with the design
+// frequency and the band edges marked. Every figure comes from the core.
+
+(() => {
+  const { el, card, table, fillRows } = HR.ui;
+
+  const FIGURES = [
+    ['gain', 'Gain at f_design'], ['ideal', 'Ideal −r_fb/r_in'], ['gt', 'Power gain GT'],
+    ['band', 'Band edges (−3 dB)'], ['zin', 'Input impedance'], ['rl', 'Return loss'],
+    ['nf', 'Noise figure'], ['en', 'Input noise (stage)'], ['mu', 'Stability μ'],
+  ];
+
+  HR.panel({
+    id: 'response',
+    title: 'Response',
+    mount(container) {
+      const cells = {};
+      const readout = el('dl', { class: 'readout' }, FIGURES.map(([k, label]) => {
+        cells[k] = el('dd', { 'data-key': k }, '—');
+        return el('div', {}, el('dt', {}, label), cells[k]);
+      }));
+      const problem = el('p', { class: 'error', 'aria-live': 'polite' });
+      const stale = el('p', { class: 'stale-note', hidden: true }, 'Showing the last valid result.');
+      const shares = table('Who makes the output noise at f_design', ['Source', 'Share']);
+      const figures = card('At the design frequency', problem, stale, readout, el('div', { class: 'scroll' }, shares.node));
+      figures.classList.add('wide');
+      const plotsCard = card('Against frequency', el('p', { class: 'intro' },
+        'Dashed lines mark the design frequency and the band edges. Hover for values, drag to zoom, double-click to reset.'));
+      plotsCard.classList.add('wide');
+      const row = el('div', { class: 'plots' });
+      plotsCard.append(row);
+      let last = null;
+      const marks = (u, ctx) => {
+        if (!last) return;
+        const d = last.design;
+        HR.plot.vline(u, ctx, last.f_design, HR.plot.css('--plot-2'), 'f_design', 1);
+        HR.plot.vline(u, ctx, d.f_low_hz, HR.plot.css('--plot-3'), 'f_low');
+        HR.plot.vline(u, ctx, d.f_high_hz, HR.plot.css('--plot-3'), 'f_high');
+      };
+      const freq = { label: 'Frequency', unit: 'Hz' };
+      const plots = [
+        [HR.plot.create(row, { title: 'Voltage gain', x: freq, y: { label: 'Gain', unit: 'dB' }, logX: true, decorate: marks,
+          series: [{ label: 'Av', unit: 'dB' }, { label: 'GT', unit: 'dB' }] }), (r) => [r.gain_db, r.gt_db]],
+        [HR.plot.create(row, { title: 'Phase of the voltage gain (continuous)', x: freq, y: { label: 'Phase', unit: '°' }, logX: true, decorate: marks,
+          series: [{ label: 'Phase', unit: '' }] }), (r) => [r.phase_unwrapped_deg]],
+        [HR.plot.create(row, { title: 'Input impedance', x: freq, y: { label: 'Zin', unit: 'Ω' }, logX: true, decorate: marks,
+          series: [{ label: 'Re Zin', unit: 'Ω' }, { label: 'Im Zin', unit: 'Ω' }] }), (r) => [r.zin_re_ohm, r.zin_im_ohm]],
+        [HR.plot.create(row, { title: 'Return loss against the source', x: freq, y: { label: 'Return loss', unit: 'dB' }, logX: true, decorate: marks,
+          series: [{ label: 'RL', unit: 'dB' }] }), (r) => [r.rl_db]],
+        [HR.plot.create(row, { title: 'Noise figure (source at 290 K)', x: freq, y: { label: 'NF', unit: 'dB' }, logX: true, decorate: marks,
+          series: [{ label: 'NF', unit: 'dB' }] }), (r) => [r.nf_db]],
+        [HR.plot.create(row, { title: 'Input-referred noise of the stage', x: freq, y: { label: 'Density', unit: 'V/√Hz' }, logX: true, decorate: marks,
+          series: [{ label: 'en', unit: 'V/√Hz' }] }), (r) => [r.noise_in_v_per_rthz]],
+      ];
+      const render = (r) => {
+        last = { ...r, f_design: r.f_design_hz };
+        const d = r.design;
+        const fmt = HR.fmt;
+        cells.gain.textContent = `${fmt(d.gain_db, 'dB')} (${fmt(d.phase_deg, '', 4)}°)`;
+        cells.ideal.textContent = d.ideal_gain_db === null ? '—' : fmt(d.ideal_gain_db, 'dB');
+        cells.gt.textContent = d.power_gain_db === null ? 'needs source and load resistance' : fmt(d.power_gain_db, 'dB');
+        cells.band.textContent = `${d.f_low_hz === null ? 'below the sweep' : fmt(d.f_low_hz, 'Hz', 3)} … ${d.f_high_hz === null ? 'above the sweep' : fmt(d.f_high_hz, 'Hz', 3)}`;
+        cells.zin.textContent = d.zin_re_ohm === null ? '—' : `${fmt(d.zin_re_ohm, 'Ω', 4)} ${d.zin_im_ohm < 0 ? '−' : '+'} j${fmt(Math.abs(d.zin_im_ohm), 'Ω', 3)}`;
+        cells.rl.textContent = r.return_loss_db === null ? '—' : fmt(r.return_loss_db, 'dB');
+        cells.nf.textContent = d.nf_db === null ? 'needs a source resistance' : fmt(d.nf_db, 'dB');
+        cells.en.textContent = `${fmt(d.noise_in_v_per_rthz, 'V', 3)}/√Hz`;
+        cells.mu.textContent = `${wasm_bindgen.formatFixed(d.mu, 3)} ${d.mu > 1 ? '(unconditionally stable)' : '(some source or load can make it oscillate)'}`;
+        fillRows(shares.tbody, r.noise_shares.slice(0, 6).map((s) => [s.name, HR.fmt(100 * s.share, '%')]));
+        for (const [plot, ys] of plots) plot.setData([r.f_hz, ...ys(r)]);
+      };
+      container.append(el('h1', {}, 'Response'),
+        el('p', { class: 'lede' }, 'The stage’s small-signal response over the analysis range of the design, with the finite, falling open-loop gain of the part included.'),
+        el('div', { class: 'cards' }, figures, plotsCard));
+      let rendered = false;
+      let queued = false;
+      const update = () => {
+        queued = false;
+        const text = HR.design.text();
+        const r = HR.call('responseReport', text);
+        if (r.error) {
+          problem.textContent = r.error.message || r.error.reason;
+          if (!rendered && HR.design.lastGood()) {
+            const good = HR.call('responseReport', HR.design.lastGood());
+            if (good.ok) { render(good.ok); rendered = true; }
+          }
+          stale.hidden = !rendered;
+          return;
+        }
+        problem.textContent = '';
+        stale.hidden = true;
+        render(r.ok);
+        rendered = true;
+        const panel = document.getElementById('panel-response');
+        panel.dataset.computed = String(Number(panel.dataset.computed || 0) + 1);
+      };
+      HR.design.onChange(() => { if (!queued) { queued = true; requestAnimationFrame(update); } });
+      update();
+    },
+  });
+})();
