@@ -1,6 +1,7 @@
 // `make bench`, page figures: size of dist/halfrail.html (bytes and gzip), and in
 // headless Chromium from file:// the time from navigation to the first computed
-// result and the wasm start-up time (median of 5 fresh loads each).
+// result (the demo's Part panel: bias and both transfer curves) and the wasm start-up
+// time (median of 5 fresh loads each).
 // Targets (issue 2): page ≤ 600 KB (≤ 250 KB gzip), first result ≤ 300 ms; (issue 3)
 // a 500-point transfer curve ≤ 5 ms in wasm. Core timings run inside the page.
 import fs from 'fs';
@@ -19,7 +20,11 @@ const wasm = [];
 let core = null;
 for (let i = 0; i < RUNS; i++) {
   const page = await browser.context.newPage();
-  await page.goto(PAGE_URL + '#bench');
+  // The page as a new user first sees it: no stored design, so the demo on the Part panel.
+  await page.goto(PAGE_URL);
+  await page.evaluate(() => localStorage.clear());
+  await page.goto(PAGE_URL + '#part');
+  await page.reload();
   await page.waitForSelector('html[data-ready="true"]');
   const t = await page.evaluate(() => ({
     first: performance.getEntriesByName('hr-first-result')[0].startTime,
@@ -39,7 +44,11 @@ for (let i = 0; i < RUNS; i++) {
       const doc = JSON.parse(demo);
       doc.part = wasm_bindgen.presets().find((p) => p.id === 'buffered-5v').part;
       const buffered = JSON.stringify(doc);
+      const wide = JSON.parse(demo);
+      Object.assign(wide.analysis, { f_start_hz: 1e4, f_stop_hz: 1e9, points_per_decade: 200 });
+      const sweep = JSON.stringify(wide);
       return {
+        response: median(() => wasm_bindgen.responseReport(sweep)),
         curve1: median(() => wasm_bindgen.transferCurve(demo, 500)),
         curve3: median(() => wasm_bindgen.transferCurve(buffered, 500)),
         report: median(() => wasm_bindgen.partReport(demo, 501)),
@@ -60,6 +69,7 @@ const rows = [
   ['wasm: transfer curve, 500 points, three-stage part', `${core.curve3.toFixed(2)} ms`, '≤ 5 ms', core.curve3 <= 5],
   ['wasm: Part panel update (bias, both curves)', `${core.report.toFixed(2)} ms`, '', true],
   ['wasm: bench fit of the demo readings', `${core.fit.toFixed(1)} ms`, '', true],
+  ['wasm: response of the demo, 1001 points (Response panel)', `${core.response.toFixed(1)} ms`, '', true],
 ];
 for (const [what, figure, target, met] of rows) {
   console.log(`${what.padEnd(52)} ${figure.padStart(12)}  ${target.padEnd(11)} ${target ? (met ? 'met' : 'MISSED') : ''}`);
