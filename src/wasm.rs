@@ -206,3 +206,11 @@ pub fn response_report(text: &str) -> Result<JsValue, JsValue> {
     let source_ohm = stage.get(crate::stage::Component::SourceOhm).filter(|&r| r > 0.0);
     to_js(&doc::ResponseReport { response: &response, source_ohm, f_design_hz: analysis.f_design_hz })
 }
+
+/// The operating point alone (no curves): for the Stage panel's figures.
+#[wasm_bindgen(js_name = biasOf)]
+pub fn bias_of(text: &str) -> Result<JsValue, JsValue> {
+    let (document, part, stage) = part_and_stage(text)?;
+    let package = document.part.as_ref().and_then(|p| p.pkg_max_w);
+    to_js(&crate::analysis::bias(&part, &stage, package).map_err(thrown)?)
+}

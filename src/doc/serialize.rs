@@ -405,3 +405,16 @@ serialize_fields!(ShareOut<'_> {
     "name" => name,
     "share" => share,
 });
+
+serialize_fields!(crate::analysis::Bias {
+    "stages" => stages,
+    "vin_v" => vin_v,
+    "vout_v" => vout_v,
+    "iq_a" => iq_a,
+    "power_w" => power_w,
+    "dissipation_w" => dissipation_w,
+    "a0" => a0,
+    "self_bias_v" => self_bias_v,
+    "shift_v" => shift_v,
+    "warnings" => warnings,
+});

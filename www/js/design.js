@@ -2,14 +2,26 @@
 // The design the panels share: the document as the user has typed it (the draft,
 // which may hold a bad value), and the last draft the core accepted. Both are kept
 // in storage, so a reload loses nothing and still has a good design to show.
-// Replacing a whole section (a preset, a fitted part) can be undone.
+// Every change can be undone and redone; typing into one field is one step.
 
 HR.design = (() => {
   const KEY = 'design';
   const listeners = new Set();
-  const undoStack = [];
+  const past = [];
+  const future = [];
+  let lastField = null;
   let draft;
   let good;
+  const HISTORY = 200;
+
+  // Remembers the draft before a change; consecutive edits of one field are one step.
+  const remember = (label, field) => {
+    if (field && field === lastField) return;
+    past.push({ draft: JSON.stringify(draft), label });
+    if (past.length > HISTORY) past.shift();
+    future.length = 0;
+    lastField = field;
+  };
 
   const save = () => HR.store.set(KEY, { draft, good });
 
@@ -37,28 +49,42 @@ HR.design = (() => {
     section(name) { return draft[name]; },
     // Sets one field as typed; an empty text removes it (not fitted / default).
     set(section, key, value, origin) {
+      remember(`edit ${section}.${key}`, `${section}.${key}`);
       draft[section] = draft[section] || {};
       if (value === '' || value === null || value === undefined) delete draft[section][key];
       else draft[section][key] = value;
       save();
       notify(origin);
     },
-    // Replaces a whole section, keeping the old one for `undo`.
+    // Replaces a whole section as one step.
     replace(name, value, label) {
-      undoStack.push({ name, value: draft[name] === undefined ? undefined : JSON.parse(JSON.stringify(draft[name])), label });
+      remember(label, null);
+      lastField = null;
       draft[name] = value;
       save();
       notify('replace');
     },
-    canUndo: () => undoStack.length > 0,
-    undoLabel: () => (undoStack.length ? undoStack[undoStack.length - 1].label : ''),
+    canUndo: () => past.length > 0,
+    canRedo: () => future.length > 0,
+    undoLabel: () => (past.length ? past[past.length - 1].label : ''),
+    redoLabel: () => (future.length ? future[future.length - 1].label : ''),
     undo() {
-      const last = undoStack.pop();
-      if (!last) return;
-      if (last.value === undefined) delete draft[last.name];
-      else draft[last.name] = last.value;
+      const step = past.pop();
+      if (!step) return;
+      future.push({ draft: JSON.stringify(draft), label: step.label });
+      draft = JSON.parse(step.draft);
+      lastField = null;
       save();
       notify('undo');
+    },
+    redo() {
+      const step = future.pop();
+      if (!step) return;
+      past.push({ draft: JSON.stringify(draft), label: step.label });
+      draft = JSON.parse(step.draft);
+      lastField = null;
+      save();
+      notify('redo');
     },
     onChange(fn) { listeners.add(fn); },
   };

@@ -1,0 +1,65 @@
+// The Stage panel in Chromium from file://: values edited in place on the
+// schematic (mouse and keyboard), undo and redo, and a bad value refused at its
+// component with the last figures kept.
+import { test, before, after, beforeEach } from 'node:test';
+import assert from 'node:assert/strict';
+import { launch, watch, ready, clearStorage, PAGE_URL } from './browser.mjs';
+
+let browser;
+before(async () => { browser = await launch(); });
+after(async () => { await browser.close(); });
+beforeEach(() => clearStorage(browser.context));
+
+const figure = (page, key) => page.locator(`#panel-stage dd[data-key="${key}"]`).textContent();
+const count = (page) => page.locator('#panel-stage').getAttribute('data-computed').then(Number);
+const recomputed = (page, n) => page.waitForFunction((m) => Number(document.getElementById('panel-stage').dataset.computed) > m, n);
+const value = (page, key) => page.locator(`#panel-stage button.value[data-key="${key}"]`);
+
+test('edit a value in place, then undo and redo it', async () => {
+  const page = await browser.context.newPage();
+  const seen = watch(page);
+  await page.goto(PAGE_URL + '#stage');
+  await ready(page);
+  await page.waitForSelector('#panel-stage[data-computed]');
+  assert.match(await value(page, 'r_fb_ohm').textContent(), /R fb2k2 · E3/);
+  const before = await figure(page, 'gain');
+  let n = await count(page);
+  await value(page, 'r_fb_ohm').click();
+  await page.locator('#panel-stage input.in-place').fill('4k7');
+  await page.keyboard.press('Enter');
+  await recomputed(page, n);
+  assert.match(await value(page, 'r_fb_ohm').textContent(), /4k7 · E3/);
+  assert.notEqual(await figure(page, 'gain'), before, 'more feedback resistance, more gain');
+  n = await count(page);
+  await page.getByRole('button', { name: 'Undo', exact: true }).click();
+  await recomputed(page, n);
+  assert.equal(await figure(page, 'gain'), before);
+  n = await count(page);
+  await page.getByRole('button', { name: 'Redo', exact: true }).click();
+  await recomputed(page, n);
+  assert.match(await value(page, 'r_fb_ohm').textContent(), /4k7/);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});
+
+test('a component is reached from the keyboard, and a bad value is refused at it', async () => {
+  const page = await browser.context.newPage();
+  await page.goto(PAGE_URL + '#stage');
+  await ready(page);
+  await page.waitForSelector('#panel-stage[data-computed]');
+  const before = await figure(page, 'nf');
+  await value(page, 'r_in_ohm').focus();
+  await page.keyboard.press('Enter');
+  const input = page.locator('#panel-stage input.in-place');
+  await input.fill('220 uF');
+  await input.press('Enter');
+  await page.waitForFunction(() => document.querySelector('#panel-stage button.value[data-key="r_in_ohm"][aria-invalid="true"]'));
+  assert.match(await page.locator('#panel-stage p.error').textContent(), /stage\.r_in_ohm: `220 uF` is in F, expected Ω/);
+  assert.equal(await figure(page, 'nf'), before, 'the last figures stay');
+  // A component that is not fitted can be added.
+  await page.getByRole('button', { name: 'C fb not fitted: add' }).click();
+  await page.locator('#panel-stage input.in-place').fill('1p');
+  await page.keyboard.press('Enter');
+  await page.waitForSelector('#panel-stage button.value[data-key="c_fb_f"]:not(.ghost)');
+  await page.close();
+});
