@@ -201,8 +201,7 @@ pub fn transfer_curve(text: &str, points: usize) -> Result<JsValue, JsValue> {
 pub fn response_report(text: &str) -> Result<JsValue, JsValue> {
     let (document, part, stage) = part_and_stage(text)?;
     let analysis = document.analysis.as_ref().ok_or_else(|| thrown(FieldError::new("analysis", "missing")))?;
-    let response = crate::analysis::response(&part, &stage, analysis.f_design_hz, &analysis.frequencies(), analysis.z0_ohm)
-        .map_err(thrown)?;
+    let response = analysis.response(&part, &stage).map_err(thrown)?;
     let source_ohm = stage.get(crate::stage::Component::SourceOhm).filter(|&r| r > 0.0);
     to_js(&doc::ResponseReport { response: &response, source_ohm, f_design_hz: analysis.f_design_hz })
 }
@@ -213,4 +212,13 @@ pub fn bias_of(text: &str) -> Result<JsValue, JsValue> {
     let (document, part, stage) = part_and_stage(text)?;
     let package = document.part.as_ref().and_then(|p| p.pkg_max_w);
     to_js(&crate::analysis::bias(&part, &stage, package).map_err(thrown)?)
+}
+
+/// The document's sweep as CSV text (the same as `halfrail sweep --csv`).
+#[wasm_bindgen(js_name = sweepCsv)]
+pub fn sweep_csv(text: &str) -> Result<String, JsValue> {
+    let (document, part, stage) = part_and_stage(text)?;
+    let analysis = document.analysis.as_ref().ok_or_else(|| thrown(FieldError::new("analysis", "missing")))?;
+    let response = analysis.response(&part, &stage).map_err(thrown)?;
+    Ok(crate::report::sweep_csv(&response))
 }

@@ -101,6 +101,8 @@ fn each_bad_field_is_named() {
         (with_field("analysis", "f_design_hz", json!("2 GHz")), "analysis.f_design_hz: must be ≤ 1e9"),
         (with_field("analysis", "f_stop_hz", json!(100)), "analysis.f_stop_hz: must be > 1000"),
         (with_field("analysis", "points_per_decade", json!(0)), "analysis.points_per_decade: must be ≥ 1"),
+        (with_field("analysis", "noise_f_high_hz", json!(null)), "analysis.noise_f_high_hz: missing; the noise band needs both ends"),
+        (with_field("analysis", "noise_f_high_hz", json!("1 MHz")), "analysis.noise_f_high_hz: must be > 10585000, got 1000000"),
         (with_field("analysis", "points_per_decade", json!(1.5)), "analysis.points_per_decade: invalid type"),
         (with_field("target", "series", json!("E7")), "target.series: `E7` is not a series"),
         (with_field("target", "gain_kind", json!("current")), "target.gain_kind: unknown variant"),

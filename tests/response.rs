@@ -82,7 +82,7 @@ fn finite_gain_inverting_amplifier() {
     let (ri, rf) = (1e3, 10e3);
     // A very large transconductance: the gain tends to −r_fb/r_in.
     let huge = part(10.0, 1e-4, Capacitances::default());
-    let r = response(&huge, &inverting(ri, rf), 1e3, &[1e3], 50.0).unwrap();
+    let r = response(&huge, &inverting(ri, rf), 1e3, &[1e3], 50.0, None).unwrap();
     assert!((r.design.av.re + rf / ri).abs() < 1e-3 * rf / ri, "{}", r.design.av);
     assert_eq!(r.ideal_gain, Some(-10.0));
     // A modest one: nodal analysis of the inverting stage (gate: (vg − vin)/Ri + (vg − vo)/Rf = 0;
@@ -93,7 +93,7 @@ fn finite_gain_inverting_amplifier() {
     let b = bias(&modest, &c, None).unwrap();
     let (gm, gds, gi, gf) = (b.gm_s(), b.gds_s(), 1.0 / ri, 1.0 / rf);
     let exact = gi / ((gds + gf) * (gi + gf) / (gf - gm) - gf);
-    let r = response(&modest, &c, 1e3, &[1e3], 50.0).unwrap();
+    let r = response(&modest, &c, 1e3, &[1e3], 50.0, None).unwrap();
     assert!((r.design.av.re - exact).abs() < 1e-6 * exact.abs(), "{} vs {exact}", r.design.av);
     // The textbook form for an ideal voltage amplifier of gain A,
     // Av = −(Rf/Ri)/(1 + (1 + Rf/Ri)/A) (Sedra and Smith, Microelectronic Circuits, from memory),
@@ -118,7 +118,7 @@ fn band_edges_of_rc_corners() {
     let a = b.gm_s() / (b.gds_s() + 1.0 / rf);
     let expected = 1.0 / (std::f64::consts::TAU * (ri + rf / (1.0 + a)) * c_in);
     let freqs = frequencies(10.0, 1e9, 50);
-    let r = response(&p, &c, 1e5, &freqs, 50.0).unwrap();
+    let r = response(&p, &c, 1e5, &freqs, 50.0, None).unwrap();
     let low = r.f_low_hz.unwrap();
     assert!((low / expected - 1.0).abs() < 0.01, "{low} vs {expected}");
     let high = r.f_high_hz.expect("the part's capacitance rolls the gain off inside the sweep");
@@ -126,7 +126,7 @@ fn band_edges_of_rc_corners() {
     // At each edge |Av| is 3 dB below its value at f_design, to the 0.1 % refinement.
     let level = r.design.av.norm() / std::f64::consts::SQRT_2;
     for edge in [low, high] {
-        let at = response(&p, &c, 1e5, &[edge], 50.0).unwrap().points[0].av.norm();
+        let at = response(&p, &c, 1e5, &[edge], 50.0, None).unwrap().points[0].av.norm();
         assert!((at / level - 1.0).abs() < 2e-3, "{edge}: {at} vs {level}");
     }
 }
@@ -150,4 +150,20 @@ proptest! {
         prop_assert!(rollett_k(&s) >= 1.0 - 1e-9, "K = {}", rollett_k(&s));
         prop_assert!(mu(&s) >= 1.0 - 1e-9, "μ = {}", mu(&s));
     }
+}
+
+#[test]
+fn integrated_noise_over_a_flat_band() {
+    // Where the output density is flat, ∫S df = S·B, so the RMS noise is √(S·B).
+    let doc = halfrail::doc::load(halfrail::doc::DEMO).unwrap();
+    let part = doc.part.unwrap().to_core();
+    let stage = doc.stage.unwrap();
+    let (low, high) = (1e6, 2e6);
+    let r = response(&part, &stage, 1.5e6, &[low, 1.5e6, high], 50.0, Some((low, high))).unwrap();
+    let densities: Vec<f64> = r.points.iter().map(|p| p.noise_out_v2).collect();
+    let spread = (densities[0] - densities[2]).abs() / densities[1];
+    assert!(spread < 0.01, "the demo's output noise is flat from 1 to 2 MHz ({spread})");
+    let expected = (densities[1] * (high - low)).sqrt();
+    let got = r.integrated_noise_v.unwrap();
+    assert!((got / expected - 1.0).abs() < 0.01, "{got} vs {expected}");
 }

@@ -255,6 +255,19 @@ pub struct Response {
     pub group_delay_s: Vec<f64>,
     /// Each noise source's share of the output noise at f_design, largest first.
     pub noise_shares: Vec<(String, f64)>,
+    /// RMS output noise integrated over the band asked for, V.
+    pub integrated_noise_v: Option<f64>,
+}
+
+/// Points per decade of the grid the noise is integrated on.
+const NOISE_GRID_PER_DECADE: u32 = 100;
+
+/// √∫ S_out(f) df over [low, high] by the trapezoid rule on a log-spaced grid.
+fn integrated_noise(lin: &Linearised, c: &Components, low: f64, high: f64) -> Result<f64> {
+    let grid = frequencies(low, high, NOISE_GRID_PER_DECADE);
+    let density = grid.iter().map(|&f| lin.at(f, c).map(|p| p.noise_out_v2)).collect::<Result<Vec<_>>>()?;
+    let power: f64 = grid.windows(2).zip(density.windows(2)).map(|(f, s)| 0.5 * (s[0] + s[1]) * (f[1] - f[0])).sum();
+    Ok(power.sqrt())
 }
 
 /// Refines a band edge between two frequencies that bracket the level, by bisection
@@ -271,8 +284,9 @@ fn refine_edge(lin: &Linearised, c: &Components, level: f64, mut inside: f64, mu
     Ok((inside * outside).sqrt())
 }
 
-/// The stage's response over `freqs`, with the design figures at `f_design`.
-pub fn response(part: &Part, c: &Components, f_design: f64, freqs: &[f64], z0: f64) -> Result<Response> {
+/// The stage's response over `freqs`, with the design figures at `f_design`, and the
+/// output noise integrated over `noise_band` (Hz) if given.
+pub fn response(part: &Part, c: &Components, f_design: f64, freqs: &[f64], z0: f64, noise_band: Option<(f64, f64)>) -> Result<Response> {
     let lin = Linearised::new(part, c, z0)?;
     let points = freqs.iter().map(|&f| lin.at(f, c)).collect::<Result<Vec<_>>>()?;
     let design = lin.at(f_design, c)?;
@@ -294,7 +308,11 @@ pub fn response(part: &Part, c: &Components, f_design: f64, freqs: &[f64], z0: f
         _ => None,
     };
     let noise_shares = lin.noise_shares(f_design)?;
-    Ok(Response { group_delay_s: group_delay(&points), points, design, f_low_hz, f_high_hz, ideal_gain, noise_shares })
+    let integrated_noise_v = match noise_band {
+        Some((low, high)) => Some(integrated_noise(&lin, c, low, high)?),
+        None => None,
+    };
+    Ok(Response { group_delay_s: group_delay(&points), points, design, f_low_hz, f_high_hz, ideal_gain, noise_shares, integrated_noise_v })
 }
 
 /// The phase of Av in radians made continuous over the sweep (each step moved by

@@ -4,7 +4,7 @@
 
 use std::path::PathBuf;
 
-use halfrail::analysis::{bare_curve, bias, response, Response, BARE_POINTS};
+use halfrail::analysis::{bare_curve, bias, Response, BARE_POINTS};
 use halfrail::doc::{to_json, AcReport, AnalyzeReport, BiasReport, Document};
 use halfrail::report::{sweep_csv, touchstone};
 use halfrail::FieldError;
@@ -43,7 +43,7 @@ fn swept(document: &Document, verb: &str) -> Result<Response, Failure> {
         .analysis
         .as_ref()
         .ok_or_else(|| FieldError::new("analysis", format!("missing; `{verb}` needs the sweep and f_design_hz")))?;
-    Ok(response(&part, &stage, analysis.f_design_hz, &analysis.frequencies(), analysis.z0_ohm)?)
+    Ok(analysis.response(&part, &stage)?)
 }
 
 pub fn run(args: Args) -> Result<String, Failure> {

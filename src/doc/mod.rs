@@ -83,6 +83,16 @@ impl Analysis {
     pub fn frequencies(&self) -> Vec<f64> {
         crate::analysis::frequencies(self.f_start_hz, self.f_stop_hz, self.points_per_decade)
     }
+
+    /// The band to integrate the output noise over, if one is set.
+    pub fn noise_band(&self) -> Option<(f64, f64)> {
+        self.noise_f_low_hz.zip(self.noise_f_high_hz)
+    }
+
+    /// The stage's response as this section asks for it.
+    pub fn response(&self, part: &crate::part::Part, stage: &crate::stage::Components) -> Result<crate::analysis::Response> {
+        crate::analysis::response(part, stage, self.f_design_hz, &self.frequencies(), self.z0_ohm, self.noise_band())
+    }
 }
 
 /// The largest document accepted, in bytes.

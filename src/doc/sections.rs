@@ -147,6 +147,11 @@ pub struct Analysis {
     pub z0_ohm: f64,
     #[serde(default = "minus_thirty", deserialize_with = "value::<DecibelMilliwatt, _>")]
     pub input_dbm: f64,
+    /// The band the output noise is integrated over (both or neither).
+    #[serde(default, deserialize_with = "optional::<Hertz, _>")]
+    pub noise_f_low_hz: Option<f64>,
+    #[serde(default, deserialize_with = "optional::<Hertz, _>")]
+    pub noise_f_high_hz: Option<f64>,
 }
 
 /// Which gain a design target means.

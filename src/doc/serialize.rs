@@ -335,7 +335,7 @@ impl Serialize for AcReport<'_> {
         let r = self.0;
         let p = &r.design;
         let db = |x: f64| (x > 0.0).then(|| 20.0 * x.log10());
-        let mut out = serializer.serialize_struct("AcReport", 18)?;
+        let mut out = serializer.serialize_struct("AcReport", 20)?;
         out.serialize_field("gain_db", &p.gain_db())?;
         out.serialize_field("phase_deg", &p.phase_deg())?;
         out.serialize_field("power_gain_db", &p.gt.map(|g| 10.0 * g.log10()))?;
@@ -354,6 +354,8 @@ impl Serialize for AcReport<'_> {
         out.serialize_field("mu", &p.mu())?;
         out.serialize_field("nf_db", &p.nf_db())?;
         out.serialize_field("noise_in_v_per_rthz", &p.noise_in_v_per_rthz())?;
+        out.serialize_field("noise_out_v_per_rthz", &p.noise_out_v2.sqrt())?;
+        out.serialize_field("integrated_noise_v", &r.integrated_noise_v)?;
         out.end()
     }
 }

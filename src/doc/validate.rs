@@ -130,7 +130,16 @@ fn analysis(a: &Analysis) -> Result<()> {
         ));
     }
     range("analysis.z0_ohm", a.z0_ohm, Open(0.0), Closed(MAX_OHM))?;
-    range("analysis.input_dbm", a.input_dbm, Closed(-200.0), Closed(60.0))
+    range("analysis.input_dbm", a.input_dbm, Closed(-200.0), Closed(60.0))?;
+    match (a.noise_f_low_hz, a.noise_f_high_hz) {
+        (Some(low), Some(high)) => {
+            range("analysis.noise_f_low_hz", low, Open(0.0), Open(MAX_HZ))?;
+            range("analysis.noise_f_high_hz", high, Open(low), Closed(MAX_HZ))
+        }
+        (None, None) => Ok(()),
+        (Some(_), None) => Err(FieldError::new("analysis.noise_f_high_hz", "missing; the noise band needs both ends")),
+        (None, Some(_)) => Err(FieldError::new("analysis.noise_f_low_hz", "missing; the noise band needs both ends")),
+    }
 }
 
 fn target(t: &Target) -> Result<()> {

@@ -68,7 +68,7 @@ fn main() {
     // 10 kHz to 1 GHz at 200 points per decade: 1001 points.
     let sweep = halfrail::analysis::frequencies(1e4, 1e9, 200);
     report(&format!("small-signal response, demo, {} points (gain, Z, S, noise)", sweep.len()), median_time(|| {
-        black_box(halfrail::analysis::response(&demo_part, &stage, analysis.f_design_hz, &sweep, 50.0).unwrap());
+        black_box(halfrail::analysis::response(&demo_part, &stage, analysis.f_design_hz, &sweep, 50.0, None).unwrap());
     }), Some(2e-3));
     let bench = doc.bench.as_ref().unwrap();
     let start = bench.starting_part(doc.part.as_ref());

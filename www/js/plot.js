@@ -48,6 +48,12 @@ HR.plot = (() => {
     let chart = null;
     const resize = () => chart && chart.setSize({ width: Math.max(320, wrap.clientWidth), height: opts.height });
     new ResizeObserver(resize).observe(wrap);
+    const png = el('button', { type: 'button', class: 'small', onclick: () => {
+      const canvas = wrap.querySelector('canvas');
+      if (canvas) canvas.toBlob((blob) => HR.ui.download(`${spec.file || 'plot'}.png`, blob));
+    } }, 'PNG');
+    wrap.querySelector('figcaption').append(' ', png);
+    png.setAttribute('aria-label', `Save “${spec.title}” as PNG`);
     return {
       node: wrap,
       setData(data) {

@@ -70,5 +70,15 @@ HR.ui = (() => {
     return { node, tbody };
   };
 
-  return { el, card, field, choice, fillRows, table };
+  // Offers `data` (a Blob) as a file download named `name`.
+  const download = (name, data) => {
+    const url = URL.createObjectURL(data);
+    const a = el('a', { href: url, download: name, hidden: true });
+    document.body.append(a);
+    a.click();
+    a.remove();
+    setTimeout(() => URL.revokeObjectURL(url), 1000);
+  };
+
+  return { el, card, field, choice, fillRows, table, download };
 })();

@@ -9,7 +9,7 @@
   const FIGURES = [
     ['gain', 'Gain at f_design'], ['ideal', 'Ideal −r_fb/r_in'], ['gt', 'Power gain GT'],
     ['band', 'Band edges (−3 dB)'], ['zin', 'Input impedance'], ['rl', 'Return loss'],
-    ['nf', 'Noise figure'], ['en', 'Input noise (stage)'], ['mu', 'Stability μ'],
+    ['nf', 'Noise figure'], ['en', 'Input noise (stage)'], ['band_noise', 'Output noise in the noise band'], ['mu', 'Stability μ'],
   ];
 
   HR.panel({
@@ -26,8 +26,13 @@
       const shares = table('Who makes the output noise at f_design', ['Source', 'Share']);
       const figures = card('At the design frequency', problem, stale, readout, el('div', { class: 'scroll' }, shares.node));
       figures.classList.add('wide');
+      const csv = el('button', { type: 'button', onclick: () => {
+        const r = HR.call('sweepCsv', HR.design.text());
+        if (r.ok !== undefined) HR.ui.download('halfrail-sweep.csv', new Blob([r.ok], { type: 'text/csv' }));
+      } }, 'Save the sweep as CSV');
       const plotsCard = card('Against frequency', el('p', { class: 'intro' },
-        'Dashed lines mark the design frequency and the band edges. Hover for values, drag to zoom, double-click to reset.'));
+        'Dashed lines mark the design frequency and the band edges. Hover for values, drag to zoom, double-click to reset.'),
+        el('div', { class: 'actions' }, csv));
       plotsCard.classList.add('wide');
       const row = el('div', { class: 'plots' });
       plotsCard.append(row);
@@ -41,17 +46,17 @@
       };
       const freq = { label: 'Frequency', unit: 'Hz' };
       const plots = [
-        [HR.plot.create(row, { title: 'Voltage gain', x: freq, y: { label: 'Gain', unit: 'dB' }, logX: true, decorate: marks,
+        [HR.plot.create(row, { title: 'Voltage gain', file: 'halfrail-gain', x: freq, y: { label: 'Gain', unit: 'dB' }, logX: true, decorate: marks,
           series: [{ label: 'Av', unit: 'dB' }, { label: 'GT', unit: 'dB' }] }), (r) => [r.gain_db, r.gt_db]],
-        [HR.plot.create(row, { title: 'Phase of the voltage gain (continuous)', x: freq, y: { label: 'Phase', unit: '°' }, logX: true, decorate: marks,
+        [HR.plot.create(row, { title: 'Phase of the voltage gain (continuous)', file: 'halfrail-phase', x: freq, y: { label: 'Phase', unit: '°' }, logX: true, decorate: marks,
           series: [{ label: 'Phase', unit: '' }] }), (r) => [r.phase_unwrapped_deg]],
-        [HR.plot.create(row, { title: 'Input impedance', x: freq, y: { label: 'Zin', unit: 'Ω' }, logX: true, decorate: marks,
+        [HR.plot.create(row, { title: 'Input impedance', file: 'halfrail-zin', x: freq, y: { label: 'Zin', unit: 'Ω' }, logX: true, decorate: marks,
           series: [{ label: 'Re Zin', unit: 'Ω' }, { label: 'Im Zin', unit: 'Ω' }] }), (r) => [r.zin_re_ohm, r.zin_im_ohm]],
-        [HR.plot.create(row, { title: 'Return loss against the source', x: freq, y: { label: 'Return loss', unit: 'dB' }, logX: true, decorate: marks,
+        [HR.plot.create(row, { title: 'Return loss against the source', file: 'halfrail-return-loss', x: freq, y: { label: 'Return loss', unit: 'dB' }, logX: true, decorate: marks,
           series: [{ label: 'RL', unit: 'dB' }] }), (r) => [r.rl_db]],
-        [HR.plot.create(row, { title: 'Noise figure (source at 290 K)', x: freq, y: { label: 'NF', unit: 'dB' }, logX: true, decorate: marks,
+        [HR.plot.create(row, { title: 'Noise figure (source at 290 K)', file: 'halfrail-noise-figure', x: freq, y: { label: 'NF', unit: 'dB' }, logX: true, decorate: marks,
           series: [{ label: 'NF', unit: 'dB' }] }), (r) => [r.nf_db]],
-        [HR.plot.create(row, { title: 'Input-referred noise of the stage', x: freq, y: { label: 'Density', unit: 'V/√Hz' }, logX: true, decorate: marks,
+        [HR.plot.create(row, { title: 'Input-referred noise of the stage', file: 'halfrail-input-noise', x: freq, y: { label: 'Density', unit: 'V/√Hz' }, logX: true, decorate: marks,
           series: [{ label: 'en', unit: 'V/√Hz' }] }), (r) => [r.noise_in_v_per_rthz]],
       ];
       const render = (r) => {
@@ -66,6 +71,7 @@
         cells.rl.textContent = r.return_loss_db === null ? '—' : fmt(r.return_loss_db, 'dB');
         cells.nf.textContent = d.nf_db === null ? 'needs a source resistance' : fmt(d.nf_db, 'dB');
         cells.en.textContent = `${fmt(d.noise_in_v_per_rthz, 'V', 3)}/√Hz`;
+        cells.band_noise.textContent = d.integrated_noise_v === null ? 'set analysis.noise_f_low_hz and noise_f_high_hz' : fmt(d.integrated_noise_v, 'Vrms', 3);
         cells.mu.textContent = `${wasm_bindgen.formatFixed(d.mu, 3)} ${d.mu > 1 ? '(unconditionally stable)' : '(some source or load can make it oscillate)'}`;
         fillRows(shares.tbody, r.noise_shares.slice(0, 6).map((s) => [s.name, HR.fmt(100 * s.share, '%')]));
         for (const [plot, ys] of plots) plot.setData([r.f_hz, ...ys(r)]);
