@@ -80,5 +80,16 @@ HR.ui = (() => {
     setTimeout(() => URL.revokeObjectURL(url), 1000);
   };
 
-  return { el, card, field, choice, fillRows, table, download };
+  // A scheduler that runs `fn` once after the current burst of changes (the end of
+  // the event that made them), not once per change and without waiting for a frame.
+  const coalesce = (fn) => {
+    let queued = false;
+    return () => {
+      if (queued) return;
+      queued = true;
+      queueMicrotask(() => { queued = false; fn(); });
+    };
+  };
+
+  return { el, card, field, choice, fillRows, table, download, coalesce };
 })();

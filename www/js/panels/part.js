@@ -243,9 +243,7 @@
         el('p', { class: 'lede' }, 'The inverter, its operating point in the stage, and its transfer curves. Figures are model estimates: verify them on the bench and check the datasheet’s limits.'),
         el('div', { class: 'cards' }, part.node, bias.node, curves.node, fit.node));
       let rendered = false;
-      let queued = false;
       const update = () => {
-        queued = false;
         part.refresh();
         const text = HR.design.text();
         const r = HR.call('partReport', text, POINTS);
@@ -268,7 +266,7 @@
         bias.stale.hidden = true;
         document.getElementById('panel-part').dataset.computed = String(Number(document.getElementById('panel-part').dataset.computed || 0) + 1);
       };
-      HR.design.onChange(() => { if (!queued) { queued = true; requestAnimationFrame(update); } });
+      HR.design.onChange(HR.ui.coalesce(update));
       update();
     },
   });

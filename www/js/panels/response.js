@@ -80,9 +80,7 @@
         el('p', { class: 'lede' }, 'The stage’s small-signal response over the analysis range of the design, with the finite, falling open-loop gain of the part included.'),
         el('div', { class: 'cards' }, figures, plotsCard));
       let rendered = false;
-      let queued = false;
       const update = () => {
-        queued = false;
         const text = HR.design.text();
         const r = HR.call('responseReport', text);
         if (r.error) {
@@ -101,7 +99,7 @@
         const panel = document.getElementById('panel-response');
         panel.dataset.computed = String(Number(panel.dataset.computed || 0) + 1);
       };
-      HR.design.onChange(() => { if (!queued) { queued = true; requestAnimationFrame(update); } });
+      HR.design.onChange(HR.ui.coalesce(update));
       update();
     },
   });

@@ -110,9 +110,7 @@
           (() => { const c = card('Key figures', stale, readout); c.classList.add('wide'); return c; })()));
 
       let rendered = false;
-      let queued = false;
       const update = () => {
-        queued = false;
         const text = HR.design.text();
         const r = HR.call('responseReport', text);
         const b = r.ok ? HR.call('biasOf', text) : r;
@@ -145,7 +143,8 @@
         if (key === 'z' && !e.shiftKey) { HR.design.undo(); e.preventDefault(); }
         if ((key === 'z' && e.shiftKey) || key === 'y') { HR.design.redo(); e.preventDefault(); }
       });
-      HR.design.onChange(() => { if (!queued && !editing) { queued = true; requestAnimationFrame(update); } });
+      const schedule = HR.ui.coalesce(update);
+      HR.design.onChange(() => { if (!editing) schedule(); });
       update();
     },
   });
