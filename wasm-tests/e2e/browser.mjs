@@ -51,3 +51,14 @@ export async function clearStorage(context) {
   await page.evaluate(() => localStorage.clear());
   await page.close();
 }
+
+// A new page on panel `id`, once its first figures are computed (panels that compute
+// mark themselves with data-computed).
+export async function openPanel(context, id, { computes = true } = {}) {
+  const page = await context.newPage();
+  const seen = watch(page);
+  await page.goto(`${PAGE_URL}#${id}`);
+  await ready(page);
+  if (computes) await page.waitForSelector(`#panel-${id}[data-computed]`);
+  return { page, seen };
+}

@@ -6,7 +6,7 @@ import assert from 'node:assert/strict';
 import { execFileSync } from 'child_process';
 import path from 'path';
 import { fileURLToPath } from 'url';
-import { launch, watch, ready, clearStorage, PAGE_URL } from './browser.mjs';
+import { launch, ready, clearStorage, openPanel, PAGE_URL } from './browser.mjs';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
 let browser;
@@ -30,11 +30,7 @@ function cliBias() {
 }
 
 test('the demo part is computed and matches the native core', async () => {
-  const page = await browser.context.newPage();
-  const seen = watch(page);
-  await page.goto(PAGE_URL + '#part');
-  await ready(page);
-  await page.waitForSelector('#panel-part[data-computed]');
+  const { page, seen } = await openPanel(browser.context, 'part');
   const a0 = await cell(page, 'a0').textContent();
   assert.match(a0, /^-\d+\.\d+ V\/V$/);
   const native = cliBias();
@@ -46,10 +42,7 @@ test('the demo part is computed and matches the native core', async () => {
 });
 
 test('a bad value is refused beside its field and the last figures stay', async () => {
-  const page = await browser.context.newPage();
-  await page.goto(PAGE_URL + '#part');
-  await ready(page);
-  await page.waitForSelector('#panel-part[data-computed]');
+  const { page } = await openPanel(browser.context, 'part');
   const before = await cell(page, 'iq').textContent();
   const kn = page.getByLabel('kn (NMOS)', { exact: true });
   await kn.fill('-6m');
@@ -74,10 +67,7 @@ test('a bad value is refused beside its field and the last figures stay', async 
 });
 
 test('a preset loads and can be undone; a buffered part shows each stage', async () => {
-  const page = await browser.context.newPage();
-  await page.goto(PAGE_URL + '#part');
-  await ready(page);
-  await page.waitForSelector('#panel-part[data-computed]');
+  const { page } = await openPanel(browser.context, 'part');
   const supply = page.getByLabel('Supply', { exact: true });
   const original = await supply.inputValue();
   await page.getByLabel('Preset (illustrative, not a datasheet)').selectOption('buffered-5v');
@@ -95,11 +85,7 @@ test('a preset loads and can be undone; a buffered part shows each stage', async
 });
 
 test('the bench fit runs and its part can be used', async () => {
-  const page = await browser.context.newPage();
-  const seen = watch(page);
-  await page.goto(PAGE_URL + '#part');
-  await ready(page);
-  await page.waitForSelector('#panel-part[data-computed]');
+  const { page, seen } = await openPanel(browser.context, 'part');
   await page.getByRole('button', { name: 'Fit the part' }).click();
   const rows = page.locator('#panel-part table').filter({ hasText: 'Fitted parameters' }).locator('tbody tr');
   await rows.first().waitFor();

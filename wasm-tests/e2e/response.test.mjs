@@ -6,7 +6,7 @@ import assert from 'node:assert/strict';
 import { execFileSync } from 'child_process';
 import path from 'path';
 import { fileURLToPath } from 'url';
-import { launch, watch, ready, clearStorage, PAGE_URL } from './browser.mjs';
+import { launch, clearStorage, openPanel } from './browser.mjs';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
 let browser;
@@ -17,11 +17,7 @@ beforeEach(() => clearStorage(browser.context));
 const cell = (page, key) => page.locator(`#panel-response dd[data-key="${key}"]`);
 
 test('the demo response is computed, plotted and agrees with the CLI', async () => {
-  const page = await browser.context.newPage();
-  const seen = watch(page);
-  await page.goto(PAGE_URL + '#response');
-  await ready(page);
-  await page.waitForSelector('#panel-response[data-computed]');
+  const { page, seen } = await openPanel(browser.context, 'response');
   const gain = await cell(page, 'gain').textContent();
   const ac = JSON.parse(execFileSync(path.join(root, 'target/debug/halfrail'), ['analyze', path.join(root, 'src/doc/demo.halfrail.json')])).ac;
   assert.ok(gain.startsWith(`${ac.gain_db.toFixed(2)} dB`), `${gain} vs ${ac.gain_db}`);
@@ -33,9 +29,7 @@ test('the demo response is computed, plotted and agrees with the CLI', async () 
 });
 
 test('a bad value elsewhere is reported here and the last figures stay', async () => {
-  const page = await browser.context.newPage();
-  await page.goto(PAGE_URL + '#part');
-  await ready(page);
+  const { page } = await openPanel(browser.context, 'part');
   await page.getByLabel('Cgs', { exact: true }).fill('4 uH');
   await page.locator('#rail a[href="#response"]').click();
   await page.waitForFunction(() => document.querySelector('#panel-response dd[data-key="gain"]').textContent !== '—');

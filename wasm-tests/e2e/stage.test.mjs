@@ -3,7 +3,7 @@
 // component with the last figures kept.
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
-import { launch, watch, ready, clearStorage, PAGE_URL } from './browser.mjs';
+import { launch, clearStorage, openPanel } from './browser.mjs';
 
 let browser;
 before(async () => { browser = await launch(); });
@@ -16,11 +16,7 @@ const recomputed = (page, n) => page.waitForFunction((m) => Number(document.getE
 const value = (page, key) => page.locator(`#panel-stage button.value[data-key="${key}"]`);
 
 test('edit a value in place, then undo and redo it', async () => {
-  const page = await browser.context.newPage();
-  const seen = watch(page);
-  await page.goto(PAGE_URL + '#stage');
-  await ready(page);
-  await page.waitForSelector('#panel-stage[data-computed]');
+  const { page, seen } = await openPanel(browser.context, 'stage');
   assert.match(await value(page, 'r_fb_ohm').textContent(), /R fb2k2 · E3/);
   const before = await figure(page, 'gain');
   let n = await count(page);
@@ -43,10 +39,7 @@ test('edit a value in place, then undo and redo it', async () => {
 });
 
 test('a component is reached from the keyboard, and a bad value is refused at it', async () => {
-  const page = await browser.context.newPage();
-  await page.goto(PAGE_URL + '#stage');
-  await ready(page);
-  await page.waitForSelector('#panel-stage[data-computed]');
+  const { page } = await openPanel(browser.context, 'stage');
   const before = await figure(page, 'nf');
   await value(page, 'r_in_ohm').focus();
   await page.keyboard.press('Enter');

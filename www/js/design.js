@@ -38,6 +38,17 @@ HR.design = (() => {
 
   const notify = (origin) => listeners.forEach((fn) => fn(origin));
 
+  // Moves one step from one history to the other: undo (past → future) or redo.
+  const travel = (from, to, origin) => {
+    const step = from.pop();
+    if (!step) return;
+    to.push({ draft: JSON.stringify(draft), label: step.label });
+    draft = JSON.parse(step.draft);
+    lastField = null;
+    save();
+    notify(origin);
+  };
+
   return {
     start() { load(); },
     // The draft as text, for the core.
@@ -68,24 +79,8 @@ HR.design = (() => {
     canRedo: () => future.length > 0,
     undoLabel: () => (past.length ? past[past.length - 1].label : ''),
     redoLabel: () => (future.length ? future[future.length - 1].label : ''),
-    undo() {
-      const step = past.pop();
-      if (!step) return;
-      future.push({ draft: JSON.stringify(draft), label: step.label });
-      draft = JSON.parse(step.draft);
-      lastField = null;
-      save();
-      notify('undo');
-    },
-    redo() {
-      const step = future.pop();
-      if (!step) return;
-      past.push({ draft: JSON.stringify(draft), label: step.label });
-      draft = JSON.parse(step.draft);
-      lastField = null;
-      save();
-      notify('redo');
-    },
+    undo() { travel(past, future, 'undo'); },
+    redo() { travel(future, past, 'redo'); },
     onChange(fn) { listeners.add(fn); },
   };
 })();
