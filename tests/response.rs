@@ -167,3 +167,45 @@ fn integrated_noise_over_a_flat_band() {
     let got = r.integrated_noise_v.unwrap();
     assert!((got / expected - 1.0).abs() < 0.01, "{got} vs {expected}");
 }
+
+#[test]
+fn terminated_two_port_impedances_match_a_direct_measurement() {
+    // Zin and Zout come from the two-port's Z-parameters and the terminations; a test
+    // current into the pin of the circuit itself (source removed for Zin; EMF shorted and
+    // load removed for Zout) must measure the same.
+    use halfrail::stage::build;
+    let doc = halfrail::doc::load(halfrail::doc::DEMO).unwrap();
+    let part = doc.part.unwrap().to_core();
+    let stage = doc.stage.unwrap();
+    let law = part.law().unwrap();
+    let circuit = build(&part, &law, &stage).unwrap();
+    let op = operating_point(&circuit.netlist, None).unwrap();
+    let open = Element::CurrentSource { a: Node::GROUND, b: Node::GROUND, dc: 0.0, ac: 0.0 };
+    let measure = |netlist: &Netlist, node: Node, f: f64| {
+        let mut n = netlist.clone();
+        n.add("test", Element::CurrentSource { a: Node::GROUND, b: node, dc: 0.0, ac: 1.0 });
+        let small = SmallSignal::at(&n, &op).unwrap();
+        small.layout.voltage(&small.solve(std::f64::consts::TAU * f).unwrap(), node)
+    };
+    let silenced = |n: &mut Netlist| {
+        if let Element::VoltageSource { a, b, dc, .. } = n.elements()[circuit.source].element {
+            n.replace(circuit.source, Element::VoltageSource { a, b, dc, ac: 0.0 });
+        }
+    };
+    for f in [1e4, 10.7e6, 100e6] {
+        let r = response(&part, &stage, f, &[f], 50.0, None).unwrap();
+        let mut for_zin = circuit.netlist.clone();
+        silenced(&mut for_zin);
+        for_zin.replace(for_zin.element_index("source_ohm").unwrap(), open.clone());
+        let zin = measure(&for_zin, circuit.nodes.input, f);
+        assert!((r.design.zin.unwrap() - zin).norm() < 1e-9 * zin.norm(), "{f}: {} vs {zin}", r.design.zin.unwrap());
+        let mut for_zout = circuit.netlist.clone();
+        silenced(&mut for_zout);
+        for name in ["load_ohm", "load_f"] {
+            let i = for_zout.element_index(name).unwrap();
+            for_zout.replace(i, open.clone());
+        }
+        let zout = measure(&for_zout, circuit.nodes.output, f);
+        assert!((r.design.zout - zout).norm() < 1e-9 * zout.norm(), "{f}: {} vs {zout}", r.design.zout);
+    }
+}

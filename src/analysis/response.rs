@@ -10,7 +10,7 @@
 
 use num_complex::Complex64;
 
-use super::twoport::{mu, output_noise, resistor_noise, rollett_k, NoiseSource, TwoPort, BOLTZMANN, T0_K};
+use super::twoport::{mu, noise_from_adjoint, output_noise, output_selector, resistor_noise, rollett_k, NoiseSource, TwoPort, BOLTZMANN, T0_K};
 use crate::engine::{operating_point, Element, Netlist, Node, OperatingPoint, SmallSignal};
 use crate::error::Result;
 use crate::part::Part;
@@ -86,10 +86,33 @@ pub struct Linearised {
     circuit: StageCircuit,
     op: OperatingPoint,
     main: SmallSignal,
-    zin: Option<(SmallSignal, Node)>,
-    zout: (SmallSignal, Node),
     ports: TwoPort,
     noise: Vec<NoiseSource>,
+}
+
+/// Z = z0·(I + S)(I − S)⁻¹ for a two-port referenced to a real z0.
+pub fn z_parameters(s: &[[Complex64; 2]; 2], z0: f64) -> [[Complex64; 2]; 2] {
+    let one = Complex64::new(1.0, 0.0);
+    let [[s11, s12], [s21, s22]] = *s;
+    // (I − S)⁻¹ by the 2×2 inverse.
+    let (a, b, c, d) = (one - s11, -s12, -s21, one - s22);
+    let det = a * d - b * c;
+    let inv = [[d / det, -b / det], [-c / det, a / det]];
+    let plus = [[one + s11, s12], [s21, one + s22]];
+    let mut z = [[Complex64::new(0.0, 0.0); 2]; 2];
+    for i in 0..2 {
+        for j in 0..2 {
+            z[i][j] = (plus[i][0] * inv[0][j] + plus[i][1] * inv[1][j]) * z0;
+        }
+    }
+    z
+}
+
+/// The load's impedance at `omega` (R ∥ C), or `None` for no load at all.
+fn termination(ohms: Option<f64>, farads: Option<f64>, omega: f64) -> Option<Complex64> {
+    let y = ohms.map_or(Complex64::new(0.0, 0.0), |r| Complex64::new(1.0 / r, 0.0))
+        + farads.map_or(Complex64::new(0.0, 0.0), |c| Complex64::new(0.0, omega * c));
+    (y.norm() > 0.0).then(|| 1.0 / y)
 }
 
 /// A zero current source: an exact open circuit where an element is removed.
@@ -99,11 +122,6 @@ fn open(n: &mut Netlist, name: &str) {
     if let Some(i) = n.element_index(name) {
         n.replace(i, OPEN);
     }
-}
-
-/// A unit small-signal current into `node`.
-fn drive(n: &mut Netlist, node: Node) {
-    n.add("test current", Element::CurrentSource { a: Node::GROUND, b: node, dc: 0.0, ac: 1.0 });
 }
 
 /// The source's EMF silenced (a short at AC: the source resistance stays).
@@ -132,20 +150,6 @@ impl Linearised {
         let main = SmallSignal::at(&circuit.netlist, &op)?;
         let nodes = &circuit.nodes;
 
-        // Zin: load attached, source removed, a test current into `in`.
-        let mut n = circuit.netlist.clone();
-        remove_source(&mut n, &circuit);
-        drive(&mut n, nodes.input);
-        let zin = SmallSignal::at(&n, &op).ok().map(|s| (s, nodes.input));
-
-        // Zout: source EMF zeroed, load removed, a test current into `out`.
-        let mut n = circuit.netlist.clone();
-        silence(&mut n, &circuit);
-        open(&mut n, "load_ohm");
-        open(&mut n, "load_f");
-        drive(&mut n, nodes.output);
-        let zout = (SmallSignal::at(&n, &op)?, nodes.output);
-
         // The two-port between `in` and `out`, source and load excluded.
         let mut n = circuit.netlist.clone();
         remove_source(&mut n, &circuit);
@@ -154,7 +158,7 @@ impl Linearised {
         let ports = TwoPort::new(&n, &op, nodes.input, nodes.output, z0)?;
 
         let noise = noise_sources(part, &circuit, &op);
-        Ok(Linearised { circuit, op, main, zin, zout, ports, noise })
+        Ok(Linearised { circuit, op, main, ports, noise })
     }
 
     pub fn circuit(&self) -> &StageCircuit {
@@ -169,7 +173,9 @@ impl Linearised {
     pub fn at(&self, f_hz: f64, components: &Components) -> Result<Point> {
         let omega = std::f64::consts::TAU * f_hz;
         let nodes = &self.circuit.nodes;
-        let x = self.main.solve(omega)?;
+        // The signal solve and the noise adjoint share one matrix.
+        let selector = output_selector(&self.main, nodes.output);
+        let (x, y) = self.main.solve_with_adjoint(omega, &self.main.b, &selector)?;
         let (vin, vout) = (self.main.layout.voltage(&x, nodes.input), self.main.layout.voltage(&x, nodes.output));
         let av = vout / vin;
         let rs = components.get(Component::SourceOhm).filter(|&r| r > 0.0);
@@ -179,17 +185,21 @@ impl Linearised {
             (Some(rs), Some(rl)) => Some(vout.norm_sqr() / rl * 4.0 * rs),
             _ => None,
         };
-        let impedance = |s: &SmallSignal, node: Node| -> Result<Complex64> {
-            Ok(s.layout.voltage(&s.solve(omega)?, node))
-        };
-        let zin = match &self.zin {
-            Some((s, node)) => Some(impedance(s, *node)?),
-            None => None,
-        };
-        let zout = impedance(&self.zout.0, self.zout.1)?;
-
         let s = self.ports.s(f_hz)?;
-        let densities = output_noise(&self.main, &self.noise, nodes.output, f_hz)?;
+        // Zin (load attached) and Zout (source EMF zeroed, load removed) follow from the
+        // two-port's Z-parameters and the terminations (the standard terminated two-port
+        // relations): Zin = Z11 − Z12·Z21/(Z22 + ZL), Zout = Z22 − Z12·Z21/(Z11 + Zs).
+        let z = z_parameters(&s, self.ports.z0());
+        let load = termination(components.get(Component::LoadOhm), components.get(Component::LoadF), omega);
+        let zs = Complex64::new(components.get(Component::SourceOhm).unwrap_or(0.0), 0.0);
+        let feedback = z[0][1] * z[1][0];
+        let zin = Some(match load {
+            Some(zl) => z[0][0] - feedback / (z[1][1] + zl),
+            None => z[0][0],
+        })
+        .filter(|v| v.re.is_finite() && v.im.is_finite());
+        let zout = z[1][1] - feedback / (z[0][0] + zs);
+        let densities = noise_from_adjoint(&self.main, &y, &self.noise);
         let total = densities.iter().sum();
         let source = self.noise.iter().zip(&densities).filter(|(n, _)| n.from_source).map(|(_, d)| d).sum();
         Ok(Point { f_hz, av, gt, zin, zout, s, noise_out_v2: total, noise_source_v2: source, emf_gain: vout })

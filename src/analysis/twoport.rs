@@ -31,6 +31,11 @@ impl TwoPort {
         Ok(TwoPort { small: SmallSignal::at(&n, op)?, p1, p2, z0 })
     }
 
+    /// The reference impedance.
+    pub fn z0(&self) -> f64 {
+        self.z0
+    }
+
     /// [[S11, S12], [S21, S22]] at `f_hz`. Each port is driven in turn by an EMF of
     /// 2 V behind z0 (a Norton current of 2/z0), so the incident wave is 1 V and
     /// S11 = V1 − 1, S21 = V2.
@@ -92,16 +97,22 @@ pub fn resistor_noise(name: &str, a: Node, b: Node, ohms: f64, kelvin: f64, from
     NoiseSource { name: name.to_string(), a, b, density: 4.0 * BOLTZMANN * kelvin / ohms, from_source }
 }
 
+/// The right-hand side of the adjoint solve that reads the voltage at `out`.
+pub fn output_selector(small: &SmallSignal, out: Node) -> DVector<Complex64> {
+    injection(small, out, 1.0)
+}
+
+/// The noise density at the output (V²/Hz) from each source, given the adjoint
+/// solution `y` for that output: source i reaches it through y(a) − y(b).
+pub fn noise_from_adjoint(small: &SmallSignal, y: &DVector<Complex64>, sources: &[NoiseSource]) -> Vec<f64> {
+    sources
+        .iter()
+        .map(|n| (small.layout.voltage(y, n.a) - small.layout.voltage(y, n.b)).norm_sqr() * n.density)
+        .collect()
+}
+
 /// The noise density at `out` (V²/Hz) from each source, by one adjoint solve.
 pub fn output_noise(small: &SmallSignal, sources: &[NoiseSource], out: Node, f_hz: f64) -> Result<Vec<f64>> {
-    let omega = std::f64::consts::TAU * f_hz;
-    let mut e = DVector::zeros(small.layout.size);
-    if let Some(i) = small.layout.index(out) {
-        e[i] = Complex64::new(1.0, 0.0);
-    }
-    let y = small.solve_adjoint(omega, &e)?;
-    Ok(sources
-        .iter()
-        .map(|n| (small.layout.voltage(&y, n.a) - small.layout.voltage(&y, n.b)).norm_sqr() * n.density)
-        .collect())
+    let y = small.solve_adjoint(std::f64::consts::TAU * f_hz, &output_selector(small, out))?;
+    Ok(noise_from_adjoint(small, &y, sources))
 }

@@ -60,6 +60,20 @@ impl SmallSignal {
         self.solve_with(omega, &self.b)
     }
 
+    /// Solves (G + jωC)·x = `rhs` and the adjoint (G + jωC)ᵀ·y = `adjoint_rhs`,
+    /// building the matrix once.
+    pub fn solve_with_adjoint(
+        &self,
+        omega: f64,
+        rhs: &DVector<Complex64>,
+        adjoint_rhs: &DVector<Complex64>,
+    ) -> Result<(DVector<Complex64>, DVector<Complex64>)> {
+        let m = self.matrix(omega);
+        let y = checked(m.transpose().lu().solve(adjoint_rhs), omega)?;
+        let x = checked(m.lu().solve(rhs), omega)?;
+        Ok((x, y))
+    }
+
     /// Solves the transposed system (G + jωC)ᵀ·y = `rhs`: the adjoint network, whose
     /// solution gives every source's transfer to one output at once (noise).
     pub fn solve_adjoint(&self, omega: f64, rhs: &DVector<Complex64>) -> Result<DVector<Complex64>> {
