@@ -40,7 +40,9 @@ test-interop: setup-python
 	cargo build --bin halfrail
 	$(PYENV)/bin/python tests/touchstone_readback.py target/debug/halfrail src/doc/demo.halfrail.json
 
-test-e2e: setup-node setup-browser
+# The page tests compare with the native CLI, so it is built first.
+test-e2e: dist setup-node setup-browser
+	cargo build --bin halfrail
 	cd wasm-tests && node --test --test-concurrency=1 e2e/
 
 bench: dist setup-node setup-browser
