@@ -37,3 +37,21 @@ test('a bad value elsewhere is reported here and the last figures stay', async (
   assert.equal(await page.locator('#panel-response .stale-note').isVisible(), true);
   await page.close();
 });
+
+test('a plot pans and zooms from the keyboard and resets', async () => {
+  const { page } = await openPanel(browser.context, 'response');
+  const plot = page.locator('#panel-response figure.plot').first();
+  const xRange = () => plot.getAttribute('data-x-range');
+  const before = await xRange();
+  await plot.focus();
+  await page.keyboard.press('+');
+  await page.keyboard.press('+');
+  const zoomed = await xRange();
+  assert.notEqual(zoomed, before, 'zooming in narrows the frequency range');
+  assert.ok(before && zoomed);
+  await page.keyboard.press('ArrowRight');
+  assert.notEqual(await xRange(), zoomed, 'panning moves them');
+  await page.keyboard.press('0');
+  assert.equal(await xRange(), before, '0 resets the range');
+  await page.close();
+});

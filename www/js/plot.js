@@ -1,8 +1,9 @@
 'use strict';
 // Plots, drawn by uPlot (a small, fast canvas plotting library inlined into the page):
 // axes labelled with their unit and ticked in engineering notation through the core's
-// formatter, a live read-out of the values under the cursor, drag to zoom and
-// double-click to reset. Colours come from the page's theme.
+// formatter, a live read-out of the values under the cursor, drag to zoom, shift-drag
+// or the arrow keys to pan, Ctrl/Alt+wheel or +/− to zoom about the cursor, and
+// double-click or 0 to reset. Colours come from the page's theme.
 
 HR.plot = (() => {
   const { el } = HR.ui;
@@ -31,7 +32,11 @@ HR.plot = (() => {
       height: spec.height || 300,
       scales: { x: spec.logX ? { time: false, distr: 3, log: 10 } : { time: false }, y: {} },
       axes: [axis(spec.x.label, spec.x.unit, spec.logX), axis(spec.y.label, spec.y.unit)],
-      cursor: { drag: { x: true, y: true } },
+      cursor: {
+        drag: { x: true, y: true },
+        // Shift-drag pans instead of selecting a zoom box.
+        bind: { mousedown: (u, target, handler) => (e) => { if (!e.shiftKey) handler(e); return null; } },
+      },
       legend: { live: true },
       series: [
         { label: spec.x.label, value: (u, v) => (v === null || v === undefined ? '—' : HR.fmt(v, spec.x.unit || '', 4)) },
@@ -43,10 +48,49 @@ HR.plot = (() => {
           value: (u, v) => (v === null || v === undefined ? '—' : HR.fmt(v, s.unit || '', 4)),
         })),
       ],
-      hooks: { draw: spec.decorate ? [(u) => spec.decorate(u, u.ctx)] : [] },
+      hooks: {
+        draw: spec.decorate ? [(u) => spec.decorate(u, u.ctx)] : [],
+        // The x range shown, kept on the figure for read-outs and tests.
+        setScale: [(u, key) => { if (key === 'x') wrap.dataset.xRange = `${u.scales.x.min} ${u.scales.x.max}`; }],
+      },
     };
     let chart = null;
     const resize = () => chart && chart.setSize({ width: Math.max(320, wrap.clientWidth), height: opts.height });
+    // The x range in the scale's own coordinates (log10 of the value on a log axis).
+    const toAxis = (v) => (spec.logX ? Math.log10(v) : v);
+    const fromAxis = (v) => (spec.logX ? 10 ** v : v);
+    const setX = (lo, hi) => chart && chart.setScale('x', { min: fromAxis(lo), max: fromAxis(hi) });
+    const range = () => [toAxis(chart.scales.x.min), toAxis(chart.scales.x.max)];
+    // Moves the x range by `fraction` of its width; zooms it by `factor` about `at` (0…1 across).
+    const pan = (fraction) => { const [lo, hi] = range(); const d = (hi - lo) * fraction; setX(lo + d, hi + d); };
+    const zoom = (factor, at = 0.5) => {
+      const [lo, hi] = range();
+      const centre = lo + (hi - lo) * at;
+      setX(centre - (centre - lo) * factor, centre + (hi - centre) * factor);
+    };
+    wrap.addEventListener('wheel', (e) => {
+      if (!chart || !e.ctrlKey && !e.altKey) return; // plain scrolling scrolls the page
+      e.preventDefault();
+      const box = chart.over.getBoundingClientRect();
+      zoom(e.deltaY > 0 ? 1.25 : 0.8, Math.min(1, Math.max(0, (e.clientX - box.left) / box.width)));
+    }, { passive: false });
+    let dragFrom = null;
+    wrap.addEventListener('mousedown', (e) => { if (chart && e.shiftKey) dragFrom = { x: e.clientX, range: range() }; });
+    window.addEventListener('mousemove', (e) => {
+      if (!dragFrom) return;
+      const [lo, hi] = dragFrom.range;
+      const d = -((e.clientX - dragFrom.x) / chart.over.clientWidth) * (hi - lo);
+      setX(lo + d, hi + d);
+    });
+    window.addEventListener('mouseup', () => { dragFrom = null; });
+    wrap.tabIndex = 0;
+    wrap.setAttribute('aria-label', `${spec.title}. Arrow keys pan, + and − zoom, 0 resets.`);
+    wrap.addEventListener('keydown', (e) => {
+      if (!chart) return;
+      const keys = { ArrowLeft: () => pan(-0.1), ArrowRight: () => pan(0.1), '+': () => zoom(0.8), '=': () => zoom(0.8), '-': () => zoom(1.25),
+        0: () => setX(toAxis(chart.data[0][0]), toAxis(chart.data[0][chart.data[0].length - 1])) };
+      if (keys[e.key]) { keys[e.key](); e.preventDefault(); }
+    });
     new ResizeObserver(resize).observe(wrap);
     const png = el('button', { type: 'button', class: 'small', onclick: () => {
       const canvas = wrap.querySelector('canvas');

@@ -31,7 +31,7 @@
         if (r.ok !== undefined) HR.ui.download('halfrail-sweep.csv', new Blob([r.ok], { type: 'text/csv' }));
       } }, 'Save the sweep as CSV');
       const plotsCard = card('Against frequency', el('p', { class: 'intro' },
-        'Dashed lines mark the design frequency and the band edges. Hover for values, drag to zoom, double-click to reset.'),
+        'Dashed lines mark the design frequency and the band edges. Hover for values; drag to zoom, shift-drag (or the arrow keys on a focused plot) to pan, Ctrl+wheel or +/− to zoom about the cursor, double-click (or 0) to reset.'),
         el('div', { class: 'actions' }, csv));
       plotsCard.classList.add('wide');
       const row = el('div', { class: 'plots' });
