@@ -156,11 +156,10 @@ pub fn presets() -> Result<JsValue, JsValue> {
     to_js(&crate::part::PRESETS)
 }
 
-/// Reads a document that must hold `part` and `stage`.
+/// Reads a document and its part and stage.
 fn part_and_stage(text: &str) -> Result<(doc::Document, crate::part::Part, crate::stage::Components), JsValue> {
     let document = doc::load(text).map_err(thrown)?;
-    let part = document.part.as_ref().ok_or_else(|| thrown(FieldError::new("part", "missing")))?.to_core();
-    let stage = document.stage.ok_or_else(|| thrown(FieldError::new("stage", "missing")))?;
+    let (part, stage) = document.part_and_stage().map_err(thrown)?;
     Ok((document, part, stage))
 }
 
@@ -168,11 +167,10 @@ fn part_and_stage(text: &str) -> Result<(doc::Document, crate::part::Part, crate
 /// part's transfer curve (`points` points) and the closed-loop curve.
 #[wasm_bindgen(js_name = partReport)]
 pub fn part_report(text: &str, points: usize) -> Result<JsValue, JsValue> {
-    use crate::analysis::{bare_curve, bias, closed_loop_curve};
+    use crate::analysis::{bare_curve, closed_loop_curve};
     let (document, part, stage) = part_and_stage(text)?;
-    let package = document.part.as_ref().and_then(|p| p.pkg_max_w);
     let points = points.clamp(3, 5001);
-    let b = bias(&part, &stage, package).map_err(thrown)?;
+    let b = document.bias().map_err(thrown)?;
     let curve = bare_curve(&part, points).map_err(thrown)?;
     let closed = closed_loop_curve(&part, &stage, points.min(401), None).map_err(thrown)?;
     to_js(&doc::PartReport { bias: doc::BiasReport { bias: &b, curve: &curve }, closed: &closed })
@@ -181,11 +179,7 @@ pub fn part_report(text: &str, points: usize) -> Result<JsValue, JsValue> {
 /// Fits the part to the document's bench readings.
 #[wasm_bindgen(js_name = benchFit)]
 pub fn bench_fit(text: &str) -> Result<JsValue, JsValue> {
-    let document = doc::load(text).map_err(thrown)?;
-    let bench = document.bench.as_ref().ok_or_else(|| thrown(FieldError::new("bench", "missing")))?;
-    let start = bench.starting_part(document.part.as_ref());
-    let readings = bench.readings().map_err(thrown)?;
-    to_js(&crate::analysis::fit(&start, &readings, &bench.params(&readings)).map_err(thrown)?)
+    to_js(&doc::load(text).and_then(|d| d.bench_fit()).map_err(thrown)?)
 }
 
 /// The bare part's transfer curve alone (`points` from 0 to VDD).
@@ -199,26 +193,21 @@ pub fn transfer_curve(text: &str, points: usize) -> Result<JsValue, JsValue> {
 /// document's `analysis` section as columns, and the noise shares.
 #[wasm_bindgen(js_name = responseReport)]
 pub fn response_report(text: &str) -> Result<JsValue, JsValue> {
-    let (document, part, stage) = part_and_stage(text)?;
-    let analysis = document.analysis.as_ref().ok_or_else(|| thrown(FieldError::new("analysis", "missing")))?;
-    let response = analysis.response(&part, &stage).map_err(thrown)?;
+    let (document, _, stage) = part_and_stage(text)?;
+    let response = document.response().map_err(thrown)?;
     let source_ohm = stage.get(crate::stage::Component::SourceOhm).filter(|&r| r > 0.0);
-    to_js(&doc::ResponseReport { response: &response, source_ohm, f_design_hz: analysis.f_design_hz })
+    let f_design_hz = document.sweep().map_err(thrown)?.f_design_hz;
+    to_js(&doc::ResponseReport { response: &response, source_ohm, f_design_hz })
 }
 
 /// The operating point alone (no curves): for the Stage panel's figures.
 #[wasm_bindgen(js_name = biasOf)]
 pub fn bias_of(text: &str) -> Result<JsValue, JsValue> {
-    let (document, part, stage) = part_and_stage(text)?;
-    let package = document.part.as_ref().and_then(|p| p.pkg_max_w);
-    to_js(&crate::analysis::bias(&part, &stage, package).map_err(thrown)?)
+    to_js(&doc::load(text).and_then(|d| d.bias()).map_err(thrown)?)
 }
 
 /// The document's sweep as CSV text (the same as `halfrail sweep --csv`).
 #[wasm_bindgen(js_name = sweepCsv)]
 pub fn sweep_csv(text: &str) -> Result<String, JsValue> {
-    let (document, part, stage) = part_and_stage(text)?;
-    let analysis = document.analysis.as_ref().ok_or_else(|| thrown(FieldError::new("analysis", "missing")))?;
-    let response = analysis.response(&part, &stage).map_err(thrown)?;
-    Ok(crate::report::sweep_csv(&response))
+    Ok(crate::report::sweep_csv(&doc::load(text).and_then(|d| d.response()).map_err(thrown)?))
 }

@@ -3,9 +3,7 @@
 
 use std::path::PathBuf;
 
-use halfrail::analysis::fit;
 use halfrail::doc::to_json;
-use halfrail::FieldError;
 
 use super::{read_document, Failure};
 
@@ -17,9 +15,5 @@ pub struct Args {
 
 pub fn run(args: Args) -> Result<String, Failure> {
     let document = read_document(&args.file)?;
-    let bench = document.bench.as_ref().ok_or_else(|| FieldError::new("bench", "missing; `fit` needs the bench readings"))?;
-    let start = bench.starting_part(document.part.as_ref());
-    let readings = bench.readings()?;
-    let result = fit(&start, &readings, &bench.params(&readings))?;
-    Ok(format!("{}\n", to_json(&result)))
+    Ok(format!("{}\n", to_json(&document.bench_fit()?)))
 }

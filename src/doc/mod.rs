@@ -95,6 +95,43 @@ impl Analysis {
     }
 }
 
+/// The analyses a document asks for, with the section each one needs named when
+/// it is missing: one place for the CLI and the page to start from.
+impl Document {
+    /// The part and the stage, which every stage analysis needs.
+    pub fn part_and_stage(&self) -> Result<(crate::part::Part, crate::stage::Components)> {
+        let part = self.part.as_ref().ok_or_else(|| FieldError::new("part", "missing; a stage analysis needs the part"))?;
+        let stage = self.stage.ok_or_else(|| FieldError::new("stage", "missing; a stage analysis needs the stage"))?;
+        Ok((part.to_core(), stage))
+    }
+
+    /// The `analysis` section, which every sweep needs.
+    pub fn sweep(&self) -> Result<&Analysis> {
+        self.analysis
+            .as_ref()
+            .ok_or_else(|| FieldError::new("analysis", "missing; a sweep needs f_design_hz and its range"))
+    }
+
+    /// The stage's operating point, warned against the part's package limit.
+    pub fn bias(&self) -> Result<crate::analysis::Bias> {
+        let (part, stage) = self.part_and_stage()?;
+        crate::analysis::bias(&part, &stage, self.part.as_ref().and_then(|p| p.pkg_max_w))
+    }
+
+    /// The stage's small-signal response over the `analysis` sweep.
+    pub fn response(&self) -> Result<crate::analysis::Response> {
+        let (part, stage) = self.part_and_stage()?;
+        self.sweep()?.response(&part, &stage)
+    }
+
+    /// The part fitted to the `bench` readings, starting from the document's part.
+    pub fn bench_fit(&self) -> Result<crate::analysis::Fit> {
+        let bench = self.bench.as_ref().ok_or_else(|| FieldError::new("bench", "missing; a fit needs the bench readings"))?;
+        let readings = bench.readings()?;
+        crate::analysis::fit(&bench.starting_part(self.part.as_ref()), &readings, &bench.params(&readings))
+    }
+}
+
 /// The largest document accepted, in bytes.
 pub const MAX_DOCUMENT_BYTES: usize = 4 << 20;
 
