@@ -82,5 +82,35 @@ HR.design = (() => {
     undo() { travel(past, future, 'undo'); },
     redo() { travel(future, past, 'redo'); },
     onChange(fn) { listeners.add(fn); },
+    // Keeps a view in step with the design. After each burst of edits (and once now)
+    // `compute(text)` runs on the draft: a result is rendered and the draft accepted;
+    // an error goes to `report` (null clears it) and the last good design's result is
+    // shown instead if nothing was yet, marked by `stale(true, rendered)`. `when()`
+    // can hold updates back (while a value is being typed in place).
+    // `panel.dataset.computed` counts the results rendered.
+    follow(panel, { compute, render, report, stale, when = () => true }) {
+      let rendered = false;
+      const update = () => {
+        const text = JSON.stringify(draft);
+        const result = compute(text);
+        report(result.error || null);
+        if (result.error) {
+          if (!rendered && good) {
+            const last = compute(good);
+            if (last.ok !== undefined) { render(last.ok); rendered = true; }
+          }
+          stale(true, rendered);
+          return;
+        }
+        this.accept(text);
+        render(result.ok);
+        rendered = true;
+        stale(false, true);
+        panel.dataset.computed = String(Number(panel.dataset.computed || 0) + 1);
+      };
+      const schedule = HR.ui.coalesce(update);
+      listeners.add(() => { if (when()) schedule(); });
+      update();
+    },
   };
 })();

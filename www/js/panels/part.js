@@ -242,32 +242,15 @@
       container.append(el('h1', {}, 'Part'),
         el('p', { class: 'lede' }, 'The inverter, its operating point in the stage, and its transfer curves. Figures are model estimates: verify them on the bench and check the datasheet’s limits.'),
         el('div', { class: 'cards' }, part.node, bias.node, curves.node, fit.node));
-      let rendered = false;
-      const update = () => {
-        part.refresh();
-        const text = HR.design.text();
-        const r = HR.call('partReport', text, POINTS);
-        if (r.error) {
-          routeError(r.error, problem);
-          if (!rendered && HR.design.lastGood()) {
-            const last = HR.call('partReport', HR.design.lastGood(), POINTS);
-            if (last.ok) { bias.render(last.ok); curves.render(last.ok); rendered = true; }
-          }
-          bias.output.classList.add('stale');
-          bias.stale.hidden = !rendered;
-          return;
-        }
-        routeError(null, problem);
-        HR.design.accept(text);
-        bias.render(r.ok);
-        curves.render(r.ok);
-        rendered = true;
-        bias.output.classList.remove('stale');
-        bias.stale.hidden = true;
-        document.getElementById('panel-part').dataset.computed = String(Number(document.getElementById('panel-part').dataset.computed || 0) + 1);
-      };
-      HR.design.onChange(HR.ui.coalesce(update));
-      update();
+      HR.design.follow(container, {
+        compute: (text) => { part.refresh(); return HR.call('partReport', text, POINTS); },
+        render: (r) => { bias.render(r); curves.render(r); },
+        report: (error) => routeError(error, problem),
+        stale: (isStale, rendered) => {
+          bias.output.classList.toggle('stale', isStale);
+          bias.stale.hidden = !(isStale && rendered);
+        },
+      });
     },
   });
 })();

@@ -79,28 +79,12 @@
       container.append(el('h1', {}, 'Response'),
         el('p', { class: 'lede' }, 'The stage’s small-signal response over the analysis range of the design, with the finite, falling open-loop gain of the part included.'),
         el('div', { class: 'cards' }, figures, plotsCard));
-      let rendered = false;
-      const update = () => {
-        const text = HR.design.text();
-        const r = HR.call('responseReport', text);
-        if (r.error) {
-          problem.textContent = r.error.message || r.error.reason;
-          if (!rendered && HR.design.lastGood()) {
-            const good = HR.call('responseReport', HR.design.lastGood());
-            if (good.ok) { render(good.ok); rendered = true; }
-          }
-          stale.hidden = !rendered;
-          return;
-        }
-        problem.textContent = '';
-        stale.hidden = true;
-        render(r.ok);
-        rendered = true;
-        const panel = document.getElementById('panel-response');
-        panel.dataset.computed = String(Number(panel.dataset.computed || 0) + 1);
-      };
-      HR.design.onChange(HR.ui.coalesce(update));
-      update();
+      HR.design.follow(container, {
+        compute: (text) => HR.call('responseReport', text),
+        render,
+        report: (error) => { problem.textContent = error ? error.message || error.reason : ''; },
+        stale: (isStale, rendered) => { stale.hidden = !(isStale && rendered); },
+      });
     },
   });
 })();

@@ -109,33 +109,6 @@
           (() => { const c = card('Schematic', el('div', { class: 'scroll' }, drawing), problem, el('div', { class: 'actions' }, undo, redo)); c.classList.add('wide'); return c; })(),
           (() => { const c = card('Key figures', stale, readout); c.classList.add('wide'); return c; })()));
 
-      let rendered = false;
-      const update = () => {
-        const text = HR.design.text();
-        const r = HR.call('responseReport', text);
-        const b = r.ok ? HR.call('biasOf', text) : r;
-        const error = r.error || b.error;
-        refresh(error);
-        if (error) {
-          problem.textContent = error.message || error.reason;
-          if (!rendered && HR.design.lastGood()) {
-            const gr = HR.call('responseReport', HR.design.lastGood());
-            const gb = HR.call('biasOf', HR.design.lastGood());
-            if (gr.ok && gb.ok) { render(gr.ok, gb.ok); rendered = true; }
-          }
-          readout.classList.add('stale');
-          stale.hidden = !rendered;
-          return;
-        }
-        problem.textContent = '';
-        HR.design.accept(text);
-        render(r.ok, b.ok);
-        rendered = true;
-        readout.classList.remove('stale');
-        stale.hidden = true;
-        const panel = document.getElementById('panel-stage');
-        panel.dataset.computed = String(Number(panel.dataset.computed || 0) + 1);
-      };
       document.addEventListener('keydown', (e) => {
         if (container.hidden || container.closest('[hidden]') || !(e.ctrlKey || e.metaKey)) return;
         if (document.activeElement && ['INPUT', 'TEXTAREA'].includes(document.activeElement.tagName)) return;
@@ -143,9 +116,21 @@
         if (key === 'z' && !e.shiftKey) { HR.design.undo(); e.preventDefault(); }
         if ((key === 'z' && e.shiftKey) || key === 'y') { HR.design.redo(); e.preventDefault(); }
       });
-      const schedule = HR.ui.coalesce(update);
-      HR.design.onChange(() => { if (!editing) schedule(); });
-      update();
+      HR.design.follow(container, {
+        // The figures need the sweep and the operating point; either error is the answer.
+        compute: (text) => {
+          const r = HR.call('responseReport', text);
+          const b = r.ok ? HR.call('biasOf', text) : r;
+          return r.error || b.error ? { error: r.error || b.error } : { ok: { r: r.ok, b: b.ok } };
+        },
+        render: ({ r, b }) => render(r, b),
+        report: (error) => { refresh(error); problem.textContent = error ? error.message || error.reason : ''; },
+        stale: (isStale, rendered) => {
+          readout.classList.toggle('stale', isStale);
+          stale.hidden = !(isStale && rendered);
+        },
+        when: () => !editing,
+      });
     },
   });
 })();
