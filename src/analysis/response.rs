@@ -84,7 +84,6 @@ impl Point {
 /// The stage prepared for small-signal work at its operating point.
 pub struct Linearised {
     circuit: StageCircuit,
-    op: OperatingPoint,
     main: SmallSignal,
     ports: TwoPort,
     noise: Vec<NoiseSource>,
@@ -158,15 +157,7 @@ impl Linearised {
         let ports = TwoPort::new(&n, &op, nodes.input, nodes.output, z0)?;
 
         let noise = noise_sources(part, &circuit, &op);
-        Ok(Linearised { circuit, op, main, ports, noise })
-    }
-
-    pub fn circuit(&self) -> &StageCircuit {
-        &self.circuit
-    }
-
-    pub fn operating_point(&self) -> &OperatingPoint {
-        &self.op
+        Ok(Linearised { circuit, main, ports, noise })
     }
 
     /// Every figure at `f_hz`.
