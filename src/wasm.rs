@@ -211,3 +211,11 @@ pub fn bias_of(text: &str) -> Result<JsValue, JsValue> {
 pub fn sweep_csv(text: &str) -> Result<String, JsValue> {
     Ok(crate::report::sweep_csv(&doc::load(text).and_then(|d| d.response()).map_err(thrown)?))
 }
+
+
+/// The response computed and only its length returned: the benchmark's measure of
+/// the core alone, without the cost of handing the figures to JavaScript.
+#[wasm_bindgen(js_name = responsePoints)]
+pub fn response_points(text: &str) -> Result<usize, JsValue> {
+    Ok(doc::load(text).and_then(|d| d.response()).map_err(thrown)?.points.len())
+}

@@ -80,7 +80,8 @@ fn faer_solve(a: &DMatrix<Complex64>, b: &DVector<Complex64>) -> Vec<Complex64> 
 proptest! {
     #![proptest_config(ProptestConfig::with_cases(200))]
 
-    /// Random diagonally dominant G and random C: the engine's complex solve agrees with faer's.
+    /// Random diagonally dominant G and random C: the engine's complex solve, both
+    /// ways, agrees with faer's.
     #[test]
     fn complex_solve_matches_faer(size in 2usize..12, seed in any::<u64>(), log_omega in 0.0f64..10.0) {
         let mut state = seed | 1;
@@ -97,5 +98,37 @@ proptest! {
         for (x, y) in ours.iter().zip(&theirs) {
             prop_assert!((x - y).norm() <= 1e-9 * (1.0 + y.norm()), "{x} vs {y}");
         }
+        // The adjoint from the same factorisation against faer on the explicit transpose.
+        let ours = small.solve_adjoint(omega, &b).unwrap();
+        let theirs = faer_solve(&small.matrix(omega).transpose(), &b);
+        for (x, y) in ours.iter().zip(&theirs) {
+            prop_assert!((x - y).norm() <= 1e-9 * (1.0 + y.norm()), "adjoint {x} vs {y}");
+        }
+    }
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(200))]
+
+    /// A general complex matrix with a zero leading diagonal, so the LU must pivot:
+    /// both solves agree with faer's partial-pivoting LU, and an all-zero column is
+    /// reported singular rather than solved.
+    #[test]
+    fn pivoting_lu_matches_faer(size in 2usize..10, seed in any::<u64>()) {
+        let mut state = seed | 1;
+        let mut next = || { state ^= state << 13; state ^= state >> 7; state ^= state << 17; (state % 20_000) as f64 / 10_000.0 - 1.0 };
+        let mut a = DMatrix::from_fn(size, size, |_, _| Complex64::new(next(), next()));
+        a[(0, 0)] = Complex64::new(0.0, 0.0);
+        let b = DVector::from_fn(size, |_, _| Complex64::new(next(), next()));
+        let mut lu = halfrail::engine::ComplexLu::of_matrix(&a).unwrap();
+        for (ours, theirs) in [(lu.solve(&b), faer_solve(&a, &b)), (lu.solve_transpose(&b), faer_solve(&a.transpose(), &b))] {
+            let scale = theirs.iter().map(|v| v.norm()).fold(1.0, f64::max);
+            for (x, y) in ours.iter().zip(&theirs) {
+                prop_assert!((x - y).norm() <= 1e-8 * scale, "{x} vs {y}");
+            }
+        }
+        let mut singular = a.clone();
+        singular.column_mut(size - 1).fill(Complex64::new(0.0, 0.0));
+        prop_assert!(halfrail::engine::ComplexLu::of_matrix(&singular).is_none());
     }
 }

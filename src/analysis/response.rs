@@ -8,10 +8,13 @@
 //! replacing elements with opens and appending test sources, so the device states
 //! of the operating point stay aligned with their elements.
 
+use std::cell::RefCell;
+
+use nalgebra::DVector;
 use num_complex::Complex64;
 
-use super::twoport::{mu, noise_from_adjoint, output_noise, output_selector, resistor_noise, rollett_k, NoiseSource, TwoPort, BOLTZMANN, T0_K};
-use crate::engine::{operating_point, Element, Netlist, Node, OperatingPoint, SmallSignal};
+use super::twoport::{mu, output_noise, output_selector, resistor_noise, rollett_k, NoiseSource, TwoPort, BOLTZMANN, T0_K};
+use crate::engine::{check_finite, operating_point, ComplexLu, Element, Netlist, Node, OperatingPoint, SmallSignal};
 use crate::error::Result;
 use crate::part::Part;
 use crate::stage::{build, Component, Components, StageCircuit};
@@ -87,6 +90,17 @@ pub struct Linearised {
     main: SmallSignal,
     ports: TwoPort,
     noise: Vec<NoiseSource>,
+    /// The adjoint right-hand side that reads v(out).
+    selector: DVector<Complex64>,
+    /// The factors and both solutions, reused from one frequency to the next.
+    scratch: RefCell<Scratch>,
+}
+
+#[derive(Default)]
+struct Scratch {
+    lu: ComplexLu,
+    x: DVector<Complex64>,
+    y: DVector<Complex64>,
 }
 
 /// Z = z0·(I + S)(I − S)⁻¹ for a two-port referenced to a real z0.
@@ -157,7 +171,10 @@ impl Linearised {
         let ports = TwoPort::new(&n, &op, nodes.input, nodes.output, z0)?;
 
         let noise = noise_sources(part, &circuit, &op);
-        Ok(Linearised { circuit, main, ports, noise })
+        let selector = output_selector(&main, nodes.output);
+        let size = main.layout.size;
+        let scratch = RefCell::new(Scratch { lu: ComplexLu::default(), x: DVector::zeros(size), y: DVector::zeros(size) });
+        Ok(Linearised { circuit, main, ports, noise, selector, scratch })
     }
 
     /// Every figure at `f_hz`.
@@ -165,9 +182,15 @@ impl Linearised {
         let omega = std::f64::consts::TAU * f_hz;
         let nodes = &self.circuit.nodes;
         // The signal solve and the noise adjoint share one matrix.
-        let selector = output_selector(&self.main, nodes.output);
-        let (x, y) = self.main.solve_with_adjoint(omega, &self.main.b, &selector)?;
-        let (vin, vout) = (self.main.layout.voltage(&x, nodes.input), self.main.layout.voltage(&x, nodes.output));
+        let mut scratch = self.scratch.borrow_mut();
+        let Scratch { lu, x, y } = &mut *scratch;
+        self.main.factor_into(omega, lu)?;
+        lu.solve_into(&self.main.b, x);
+        lu.solve_transpose_into(&self.selector, y);
+        check_finite(x, omega)?;
+        check_finite(y, omega)?;
+        let (x, y) = (&*x, &*y);
+        let (vin, vout) = (self.main.layout.voltage(x, nodes.input), self.main.layout.voltage(x, nodes.output));
         let av = vout / vin;
         let rs = components.get(Component::SourceOhm).filter(|&r| r > 0.0);
         let rl = components.get(Component::LoadOhm);
@@ -190,10 +213,16 @@ impl Linearised {
         })
         .filter(|v| v.re.is_finite() && v.im.is_finite());
         let zout = z[1][1] - feedback / (z[0][0] + zs);
-        let densities = noise_from_adjoint(&self.main, &y, &self.noise);
-        let total = densities.iter().sum();
-        let source = self.noise.iter().zip(&densities).filter(|(n, _)| n.from_source).map(|(_, d)| d).sum();
+        let total = self.noise.iter().map(|n| n.at_output(&self.main, y)).sum();
+        let source = self.noise.iter().filter(|n| n.from_source).map(|n| n.at_output(&self.main, y)).sum();
         Ok(Point { f_hz, av, gt, zin, zout, s, noise_out_v2: total, noise_source_v2: source, emf_gain: vout })
+    }
+
+    /// Av alone at `f_hz`: one solve, for searches that need nothing else.
+    pub fn av(&self, f_hz: f64) -> Result<Complex64> {
+        let x = self.main.solve(std::f64::consts::TAU * f_hz)?;
+        let nodes = &self.circuit.nodes;
+        Ok(self.main.layout.voltage(&x, nodes.output) / self.main.layout.voltage(&x, nodes.input))
     }
 
     /// Each noise source's share of the output noise at `f_hz`, largest first: (name, fraction).
@@ -273,10 +302,10 @@ fn integrated_noise(lin: &Linearised, c: &Components, low: f64, high: f64) -> Re
 
 /// Refines a band edge between two frequencies that bracket the level, by bisection
 /// in log frequency to 0.1 %.
-fn refine_edge(lin: &Linearised, c: &Components, level: f64, mut inside: f64, mut outside: f64) -> Result<f64> {
+fn refine_edge(lin: &Linearised, level: f64, mut inside: f64, mut outside: f64) -> Result<f64> {
     while (outside / inside - 1.0).abs() > 1e-3 {
         let mid = (inside * outside).sqrt();
-        if lin.at(mid, c)?.av.norm() >= level {
+        if lin.av(mid)?.norm() >= level {
             inside = mid;
         } else {
             outside = mid;
@@ -296,11 +325,11 @@ pub fn response(part: &Part, c: &Components, f_design: f64, freqs: &[f64], z0: f
     let below = (0..split).rev().find(|&i| points[i].av.norm() < level);
     let above = (split..points.len()).find(|&i| points[i].av.norm() < level);
     let f_low_hz = match below {
-        Some(i) => Some(refine_edge(&lin, c, level, if i + 1 < split { freqs[i + 1] } else { f_design }, freqs[i])?),
+        Some(i) => Some(refine_edge(&lin, level, if i + 1 < split { freqs[i + 1] } else { f_design }, freqs[i])?),
         None => None,
     };
     let f_high_hz = match above {
-        Some(i) => Some(refine_edge(&lin, c, level, if i > split { freqs[i - 1] } else { f_design }, freqs[i])?),
+        Some(i) => Some(refine_edge(&lin, level, if i > split { freqs[i - 1] } else { f_design }, freqs[i])?),
         None => None,
     };
     let series_in = c.get(Component::RInOhm).filter(|&r| r > 0.0).or(c.get(Component::SourceOhm).filter(|&r| r > 0.0));

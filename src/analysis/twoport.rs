@@ -2,10 +2,12 @@
 //! referenced to a real z0, and noise at a node by the adjoint method. The stage's
 //! response uses them; so can any test network.
 
+use std::cell::RefCell;
+
 use nalgebra::DVector;
 use num_complex::Complex64;
 
-use crate::engine::{Element, Netlist, Node, OperatingPoint, SmallSignal};
+use crate::engine::{check_finite, ComplexLu, Element, Netlist, Node, OperatingPoint, SmallSignal};
 use crate::error::Result;
 
 /// Boltzmann's constant, J/K (exact in the 2019 SI).
@@ -17,6 +19,10 @@ pub const T0_K: f64 = 290.0;
 /// terminated in z0, ready to be driven from either side.
 pub struct TwoPort {
     small: SmallSignal,
+    /// The factors and the solution, reused from one frequency to the next.
+    scratch: RefCell<(ComplexLu, DVector<Complex64>)>,
+    /// The Norton drive of each port in turn.
+    drives: [DVector<Complex64>; 2],
     p1: Node,
     p2: Node,
     z0: f64,
@@ -28,7 +34,10 @@ impl TwoPort {
         let mut n = netlist.clone();
         n.add("port 1", Element::Resistor { a: p1, b: Node::GROUND, ohms: z0 });
         n.add("port 2", Element::Resistor { a: p2, b: Node::GROUND, ohms: z0 });
-        Ok(TwoPort { small: SmallSignal::at(&n, op)?, p1, p2, z0 })
+        let small = SmallSignal::at(&n, op)?;
+        let drives = [p1, p2].map(|node| injection(&small, node, 2.0 / z0));
+        let scratch = RefCell::new((ComplexLu::default(), DVector::zeros(small.layout.size)));
+        Ok(TwoPort { small, scratch, drives, p1, p2, z0 })
     }
 
     /// The reference impedance.
@@ -42,10 +51,13 @@ impl TwoPort {
     pub fn s(&self, f_hz: f64) -> Result<[[Complex64; 2]; 2]> {
         let omega = std::f64::consts::TAU * f_hz;
         let layout = &self.small.layout;
-        let drives = [self.p1, self.p2].map(|node| injection(&self.small, node, 2.0 / self.z0));
-        let solved = self.small.solve_each(omega, &drives)?;
+        let mut scratch = self.scratch.borrow_mut();
+        let (lu, v) = &mut *scratch;
+        self.small.factor_into(omega, lu)?;
         let mut s = [[Complex64::new(0.0, 0.0); 2]; 2];
-        for (col, v) in solved.iter().enumerate() {
+        for (col, drive) in self.drives.iter().enumerate() {
+            lu.solve_into(drive, v);
+            check_finite(v, omega)?;
             let (v1, v2) = (layout.voltage(v, self.p1), layout.voltage(v, self.p2));
             s[0][col] = if col == 0 { v1 - 1.0 } else { v1 };
             s[1][col] = if col == 1 { v2 - 1.0 } else { v2 };
@@ -105,10 +117,15 @@ pub fn output_selector(small: &SmallSignal, out: Node) -> DVector<Complex64> {
 /// The noise density at the output (V²/Hz) from each source, given the adjoint
 /// solution `y` for that output: source i reaches it through y(a) − y(b).
 pub fn noise_from_adjoint(small: &SmallSignal, y: &DVector<Complex64>, sources: &[NoiseSource]) -> Vec<f64> {
-    sources
-        .iter()
-        .map(|n| (small.layout.voltage(y, n.a) - small.layout.voltage(y, n.b)).norm_sqr() * n.density)
-        .collect()
+    sources.iter().map(|n| n.at_output(small, y)).collect()
+}
+
+impl NoiseSource {
+    /// This source's noise density at the output (V²/Hz), given the adjoint solution
+    /// `y` for that output: it reaches it through y(a) − y(b).
+    pub fn at_output(&self, small: &SmallSignal, y: &DVector<Complex64>) -> f64 {
+        (small.layout.voltage(y, self.a) - small.layout.voltage(y, self.b)).norm_sqr() * self.density
+    }
 }
 
 /// The noise density at `out` (V²/Hz) from each source, by one adjoint solve.

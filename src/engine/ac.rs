@@ -1,11 +1,12 @@
 //! Small-signal analysis: the circuit linearised at its operating point into real
-//! `G` and `C` matrices, solved at any angular frequency as (G + jωC)·x = b with
-//! nalgebra's dense complex LU.
+//! `G` and `C` matrices, solved at any angular frequency as (G + jωC)·x = b (and its transpose,
+//! for the adjoint) from one dense complex LU.
 
 use nalgebra::{DMatrix, DVector};
 use num_complex::Complex64;
 
 use super::dc::OperatingPoint;
+use super::lu::ComplexLu;
 use super::mna::{ac_sources, linear_stamps, stamp_devices, Layout};
 use super::netlist::Netlist;
 use super::topology::{first_floating, PathKind};
@@ -44,15 +45,25 @@ impl SmallSignal {
         self.g.zip_map(&self.c, |g, c| Complex64::new(g, omega * c))
     }
 
-    /// Solves (G + jωC)·x = `rhs`.
-    pub fn solve_with(&self, omega: f64, rhs: &DVector<Complex64>) -> Result<DVector<Complex64>> {
-        checked(self.matrix(omega).lu().solve(rhs), omega)
+    /// G + jωC factorised once, for any number of solves either way.
+    pub fn factor(&self, omega: f64) -> Result<ComplexLu> {
+        let mut lu = ComplexLu::default();
+        self.factor_into(omega, &mut lu)?;
+        Ok(lu)
     }
 
-    /// Solves (G + jωC)·x = b for each right-hand side, factorising once.
-    pub fn solve_each(&self, omega: f64, rhs: &[DVector<Complex64>]) -> Result<Vec<DVector<Complex64>>> {
-        let lu = self.matrix(omega).lu();
-        rhs.iter().map(|b| checked(lu.solve(b), omega)).collect()
+    /// G + jωC factorised into `lu`'s buffers: a sweep reuses one and allocates nothing.
+    pub fn factor_into(&self, omega: f64, lu: &mut ComplexLu) -> Result<()> {
+        if lu.refactor(&self.g, &self.c, omega) {
+            Ok(())
+        } else {
+            Err(singular(omega))
+        }
+    }
+
+    /// Solves (G + jωC)·x = `rhs`.
+    pub fn solve_with(&self, omega: f64, rhs: &DVector<Complex64>) -> Result<DVector<Complex64>> {
+        checked(self.factor(omega)?.solve(rhs), omega)
     }
 
     /// The response to the circuit's own small-signal sources at `omega`.
@@ -60,32 +71,32 @@ impl SmallSignal {
         self.solve_with(omega, &self.b)
     }
 
-    /// Solves (G + jωC)·x = `rhs` and the adjoint (G + jωC)ᵀ·y = `adjoint_rhs`,
-    /// building the matrix once.
-    pub fn solve_with_adjoint(
-        &self,
-        omega: f64,
-        rhs: &DVector<Complex64>,
-        adjoint_rhs: &DVector<Complex64>,
-    ) -> Result<(DVector<Complex64>, DVector<Complex64>)> {
-        let m = self.matrix(omega);
-        let y = checked(m.transpose().lu().solve(adjoint_rhs), omega)?;
-        let x = checked(m.lu().solve(rhs), omega)?;
-        Ok((x, y))
-    }
-
     /// Solves the transposed system (G + jωC)ᵀ·y = `rhs`: the adjoint network, whose
     /// solution gives every source's transfer to one output at once (noise).
     pub fn solve_adjoint(&self, omega: f64, rhs: &DVector<Complex64>) -> Result<DVector<Complex64>> {
-        checked(self.matrix(omega).transpose().lu().solve(rhs), omega)
+        checked(self.factor(omega)?.solve_transpose(rhs), omega)
     }
 }
 
-fn checked(solution: Option<DVector<Complex64>>, omega: f64) -> Result<DVector<Complex64>> {
-    solution.filter(|x| x.iter().all(|v| v.re.is_finite() && v.im.is_finite())).ok_or_else(|| {
-        FieldError::new(
-            "circuit",
-            format!("the small-signal equations are singular at {:.4e} Hz", omega / std::f64::consts::TAU),
-        )
-    })
+/// The error of a singular small-signal system at `omega`.
+pub fn singular(omega: f64) -> FieldError {
+    FieldError::new(
+        "circuit",
+        format!("the small-signal equations are singular at {:.4e} Hz", omega / std::f64::consts::TAU),
+    )
+}
+
+fn checked(solution: DVector<Complex64>, omega: f64) -> Result<DVector<Complex64>> {
+    check_finite(&solution, omega)?;
+    Ok(solution)
+}
+
+/// An error naming the frequency when a solution has gone infinite or NaN (a
+/// near-singular system the pivots let through).
+pub fn check_finite(solution: &DVector<Complex64>, omega: f64) -> Result<()> {
+    if solution.iter().all(|v| v.re.is_finite() && v.im.is_finite()) {
+        Ok(())
+    } else {
+        Err(singular(omega))
+    }
 }

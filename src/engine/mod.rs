@@ -5,11 +5,13 @@
 
 mod ac;
 mod dc;
+mod lu;
 mod mna;
 mod netlist;
 mod topology;
 
-pub use ac::SmallSignal;
+pub use ac::{check_finite, SmallSignal};
+pub use lu::ComplexLu;
 pub use dc::{operating_point, DcSystem, Method, OperatingPoint};
 pub use mna::{Layout, GMIN};
 pub use netlist::{DeviceState, Element, Named, Netlist, Node, Transconductor};

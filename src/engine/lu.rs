@@ -1,0 +1,137 @@
+//! Dense complex LU with partial pivoting, solvable both ways from one
+//! factorisation: A·x = b for the signal and Aᵀ·y = c for the adjoint (noise,
+//! sensitivities).
+//!
+//! Hand-written rather than nalgebra's `LU` because that one has no transposed
+//! solve, so every frequency paid a second factorisation for the adjoint, and it
+//! allocates per call; the systems here are a few dozen unknowns at most. The
+//! tests check it against faer's partial-pivoting LU.
+
+use nalgebra::{DMatrix, DVector};
+use num_complex::Complex64;
+
+/// P·A = L·U, stored packed row-major (L unit lower, U upper) with the row order.
+/// `default()` is an empty one to `refactor` into.
+#[derive(Debug, Clone, Default)]
+pub struct ComplexLu {
+    n: usize,
+    lu: Vec<Complex64>,
+    /// `rows[i]` is the row of A that became row i.
+    rows: Vec<usize>,
+    /// Room for the transposed solve's intermediate vector.
+    scratch: Vec<Complex64>,
+}
+
+impl ComplexLu {
+    /// Factorises G + jωC; `None` when a pivot is zero or not finite (singular).
+    pub fn of(g: &DMatrix<f64>, c: &DMatrix<f64>, omega: f64) -> Option<Self> {
+        let mut lu = ComplexLu::default();
+        lu.refactor(g, c, omega).then_some(lu)
+    }
+
+    /// Factorises a complex matrix.
+    pub fn of_matrix(a: &DMatrix<Complex64>) -> Option<Self> {
+        let n = a.nrows();
+        let mut lu = ComplexLu { n, lu: (0..n * n).map(|k| a[(k / n, k % n)]).collect(), ..Default::default() };
+        lu.factor().then_some(lu)
+    }
+
+    /// Factorises G + jωC into this one's buffers (no allocation once they are the
+    /// right size); `false` when singular, and the factors are then not usable.
+    pub fn refactor(&mut self, g: &DMatrix<f64>, c: &DMatrix<f64>, omega: f64) -> bool {
+        let n = g.nrows();
+        self.n = n;
+        self.lu.clear();
+        for i in 0..n {
+            self.lu.extend((0..n).map(|j| Complex64::new(g[(i, j)], omega * c[(i, j)])));
+        }
+        self.factor()
+    }
+
+    fn factor(&mut self) -> bool {
+        let (n, lu) = (self.n, &mut self.lu);
+        self.rows.clear();
+        self.rows.extend(0..n);
+        for k in 0..n {
+            let pivot = (k..n).max_by(|&i, &j| lu[i * n + k].norm_sqr().total_cmp(&lu[j * n + k].norm_sqr())).unwrap_or(k);
+            let p = lu[pivot * n + k];
+            if !(p.norm_sqr() > 0.0 && p.re.is_finite() && p.im.is_finite()) {
+                return false;
+            }
+            if pivot != k {
+                for j in 0..n {
+                    lu.swap(k * n + j, pivot * n + j);
+                }
+                self.rows.swap(k, pivot);
+            }
+            let inv = 1.0 / p;
+            for i in k + 1..n {
+                let l = lu[i * n + k] * inv;
+                lu[i * n + k] = l;
+                if l != Complex64::new(0.0, 0.0) {
+                    for j in k + 1..n {
+                        let u = lu[k * n + j];
+                        lu[i * n + j] -= l * u;
+                    }
+                }
+            }
+        }
+        true
+    }
+
+    /// x with A·x = b.
+    pub fn solve(&self, b: &DVector<Complex64>) -> DVector<Complex64> {
+        let mut x = DVector::zeros(self.n);
+        self.solve_into(b, &mut x);
+        x
+    }
+
+    /// x with A·x = b, written into `x` (of the system's size).
+    pub fn solve_into(&self, b: &DVector<Complex64>, x: &mut DVector<Complex64>) {
+        let n = self.n;
+        for (i, &row) in self.rows.iter().enumerate() {
+            x[i] = b[row];
+        }
+        for i in 0..n {
+            let mut s = x[i];
+            for j in 0..i {
+                s -= self.lu[i * n + j] * x[j];
+            }
+            x[i] = s;
+        }
+        for i in (0..n).rev() {
+            let mut s = x[i];
+            for j in i + 1..n {
+                s -= self.lu[i * n + j] * x[j];
+            }
+            x[i] = s / self.lu[i * n + i];
+        }
+    }
+
+    /// y with Aᵀ·y = c (plain transpose, not conjugate): Aᵀ = Uᵀ·Lᵀ·P.
+    pub fn solve_transpose(&mut self, c: &DVector<Complex64>) -> DVector<Complex64> {
+        let mut y = DVector::zeros(self.n);
+        self.solve_transpose_into(c, &mut y);
+        y
+    }
+
+    /// y with Aᵀ·y = c, written into `y` (of the system's size).
+    pub fn solve_transpose_into(&mut self, c: &DVector<Complex64>, y: &mut DVector<Complex64>) {
+        let n = self.n;
+        let z = &mut self.scratch;
+        z.clear();
+        z.extend(c.iter().copied());
+        // Column i of L and U read down the packed rows: entry (j, i) is lu[j·n + i].
+        for i in 0..n {
+            let above: Complex64 = z[..i].iter().enumerate().map(|(j, &zj)| self.lu[j * n + i] * zj).sum();
+            z[i] = (z[i] - above) / self.lu[i * n + i];
+        }
+        for i in (0..n).rev() {
+            let below: Complex64 = z[i + 1..].iter().enumerate().map(|(k, &zj)| self.lu[(i + 1 + k) * n + i] * zj).sum();
+            z[i] -= below;
+        }
+        for (i, &row) in self.rows.iter().enumerate() {
+            y[row] = z[i];
+        }
+    }
+}
