@@ -200,6 +200,22 @@ pub fn response_report(text: &str) -> Result<JsValue, JsValue> {
     to_js(&doc::ResponseReport { response: &response, source_ohm, f_design_hz })
 }
 
+/// The Loop panel's figures: loop gain, margins, poles, step, μ and the
+/// compensation helper's answers.
+#[wasm_bindgen(js_name = loopReport)]
+pub fn loop_report(text: &str) -> Result<JsValue, JsValue> {
+    let document = doc::load(text).map_err(thrown)?;
+    let (_, stability) = document.stability().map_err(thrown)?;
+    let suggestions = document.compensation().map_err(thrown)?;
+    let analysis = document.sweep().map_err(thrown)?;
+    to_js(&doc::LoopReport {
+        stability: &stability,
+        suggestions: &suggestions,
+        wanted_margin_deg: analysis.wanted_margin_deg.unwrap_or(crate::analysis::stability::WANTED_MARGIN_DEG),
+        f_design_hz: analysis.f_design_hz,
+    })
+}
+
 /// The operating point alone (no curves): for the Stage panel's figures.
 #[wasm_bindgen(js_name = biasOf)]
 pub fn bias_of(text: &str) -> Result<JsValue, JsValue> {

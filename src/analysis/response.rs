@@ -14,7 +14,7 @@ use nalgebra::DVector;
 use num_complex::Complex64;
 
 use super::twoport::{mu, output_noise, output_selector, resistor_noise, rollett_k, NoiseSource, TwoPort, BOLTZMANN, T0_K};
-use crate::engine::{check_finite, operating_point, ComplexLu, Element, Netlist, Node, OperatingPoint, SmallSignal};
+use crate::engine::{operating_point, Workspace, Element, Netlist, Node, OperatingPoint, SmallSignal};
 use crate::error::Result;
 use crate::part::Part;
 use crate::stage::{build, Component, Components, StageCircuit};
@@ -92,15 +92,9 @@ pub struct Linearised {
     noise: Vec<NoiseSource>,
     /// The adjoint right-hand side that reads v(out).
     selector: DVector<Complex64>,
-    /// The factors and both solutions, reused from one frequency to the next.
-    scratch: RefCell<Scratch>,
-}
-
-#[derive(Default)]
-struct Scratch {
-    lu: ComplexLu,
-    x: DVector<Complex64>,
-    y: DVector<Complex64>,
+    /// Buffers reused from one frequency to the next.
+    work: RefCell<Workspace>,
+    op: OperatingPoint,
 }
 
 /// Z = z0·(I + S)(I − S)⁻¹ for a two-port referenced to a real z0.
@@ -172,9 +166,7 @@ impl Linearised {
 
         let noise = noise_sources(part, &circuit, &op);
         let selector = output_selector(&main, nodes.output);
-        let size = main.layout.size;
-        let scratch = RefCell::new(Scratch { lu: ComplexLu::default(), x: DVector::zeros(size), y: DVector::zeros(size) });
-        Ok(Linearised { circuit, main, ports, noise, selector, scratch })
+        Ok(Linearised { circuit, main, ports, noise, selector, work: RefCell::default(), op })
     }
 
     /// Every figure at `f_hz`.
@@ -182,14 +174,9 @@ impl Linearised {
         let omega = std::f64::consts::TAU * f_hz;
         let nodes = &self.circuit.nodes;
         // The signal solve and the noise adjoint share one matrix.
-        let mut scratch = self.scratch.borrow_mut();
-        let Scratch { lu, x, y } = &mut *scratch;
-        self.main.factor_into(omega, lu)?;
-        lu.solve_into(&self.main.b, x);
-        lu.solve_transpose_into(&self.selector, y);
-        check_finite(x, omega)?;
-        check_finite(y, omega)?;
-        let (x, y) = (&*x, &*y);
+        let work = &mut *self.work.borrow_mut();
+        self.main.solve_in(omega, &self.main.b, Some(&self.selector), work)?;
+        let (x, y) = (&work.x, &work.y);
         let (vin, vout) = (self.main.layout.voltage(x, nodes.input), self.main.layout.voltage(x, nodes.output));
         let av = vout / vin;
         let rs = components.get(Component::SourceOhm).filter(|&r| r > 0.0);
@@ -216,6 +203,20 @@ impl Linearised {
         let total = self.noise.iter().map(|n| n.at_output(&self.main, y)).sum();
         let source = self.noise.iter().filter(|n| n.from_source).map(|n| n.at_output(&self.main, y)).sum();
         Ok(Point { f_hz, av, gt, zin, zout, s, noise_out_v2: total, noise_source_v2: source, emf_gain: vout })
+    }
+
+    /// The stage circuit, its operating point and its linearisation (source attached,
+    /// loaded): what the loop analysis breaks open.
+    pub fn circuit(&self) -> &StageCircuit {
+        &self.circuit
+    }
+
+    pub fn operating_point(&self) -> &OperatingPoint {
+        &self.op
+    }
+
+    pub fn small_signal(&self) -> &SmallSignal {
+        &self.main
     }
 
     /// Av alone at `f_hz`: one solve, for searches that need nothing else.
@@ -317,7 +318,11 @@ fn refine_edge(lin: &Linearised, level: f64, mut inside: f64, mut outside: f64) 
 /// The stage's response over `freqs`, with the design figures at `f_design`, and the
 /// output noise integrated over `noise_band` (Hz) if given.
 pub fn response(part: &Part, c: &Components, f_design: f64, freqs: &[f64], z0: f64, noise_band: Option<(f64, f64)>) -> Result<Response> {
-    let lin = Linearised::new(part, c, z0)?;
+    response_of(&Linearised::new(part, c, z0)?, c, f_design, freqs, noise_band)
+}
+
+/// The same, of a stage already linearised (the loop analysis shares it).
+pub fn response_of(lin: &Linearised, c: &Components, f_design: f64, freqs: &[f64], noise_band: Option<(f64, f64)>) -> Result<Response> {
     let points = freqs.iter().map(|&f| lin.at(f, c)).collect::<Result<Vec<_>>>()?;
     let design = lin.at(f_design, c)?;
     let level = design.av.norm() / std::f64::consts::SQRT_2;
@@ -325,11 +330,11 @@ pub fn response(part: &Part, c: &Components, f_design: f64, freqs: &[f64], z0: f
     let below = (0..split).rev().find(|&i| points[i].av.norm() < level);
     let above = (split..points.len()).find(|&i| points[i].av.norm() < level);
     let f_low_hz = match below {
-        Some(i) => Some(refine_edge(&lin, level, if i + 1 < split { freqs[i + 1] } else { f_design }, freqs[i])?),
+        Some(i) => Some(refine_edge(lin, level, if i + 1 < split { freqs[i + 1] } else { f_design }, freqs[i])?),
         None => None,
     };
     let f_high_hz = match above {
-        Some(i) => Some(refine_edge(&lin, level, if i > split { freqs[i - 1] } else { f_design }, freqs[i])?),
+        Some(i) => Some(refine_edge(lin, level, if i > split { freqs[i - 1] } else { f_design }, freqs[i])?),
         None => None,
     };
     let series_in = c.get(Component::RInOhm).filter(|&r| r > 0.0).or(c.get(Component::SourceOhm).filter(|&r| r > 0.0));
@@ -339,7 +344,7 @@ pub fn response(part: &Part, c: &Components, f_design: f64, freqs: &[f64], z0: f
     };
     let noise_shares = lin.noise_shares(f_design)?;
     let integrated_noise_v = match noise_band {
-        Some((low, high)) => Some(integrated_noise(&lin, c, low, high)?),
+        Some((low, high)) => Some(integrated_noise(lin, c, low, high)?),
         None => None,
     };
     Ok(Response { group_delay_s: group_delay(&points), points, design, f_low_hz, f_high_hz, ideal_gain, noise_shares, integrated_noise_v })

@@ -7,7 +7,7 @@ use std::cell::RefCell;
 use nalgebra::DVector;
 use num_complex::Complex64;
 
-use crate::engine::{check_finite, ComplexLu, Element, Netlist, Node, OperatingPoint, SmallSignal};
+use crate::engine::{Element, Netlist, Node, OperatingPoint, SmallSignal, Workspace};
 use crate::error::Result;
 
 /// Boltzmann's constant, J/K (exact in the 2019 SI).
@@ -19,8 +19,8 @@ pub const T0_K: f64 = 290.0;
 /// terminated in z0, ready to be driven from either side.
 pub struct TwoPort {
     small: SmallSignal,
-    /// The factors and the solution, reused from one frequency to the next.
-    scratch: RefCell<(ComplexLu, DVector<Complex64>)>,
+    /// Buffers reused from one frequency to the next.
+    work: RefCell<Workspace>,
     /// The Norton drive of each port in turn.
     drives: [DVector<Complex64>; 2],
     p1: Node,
@@ -36,8 +36,7 @@ impl TwoPort {
         n.add("port 2", Element::Resistor { a: p2, b: Node::GROUND, ohms: z0 });
         let small = SmallSignal::at(&n, op)?;
         let drives = [p1, p2].map(|node| injection(&small, node, 2.0 / z0));
-        let scratch = RefCell::new((ComplexLu::default(), DVector::zeros(small.layout.size)));
-        Ok(TwoPort { small, scratch, drives, p1, p2, z0 })
+        Ok(TwoPort { small, work: RefCell::default(), drives, p1, p2, z0 })
     }
 
     /// The reference impedance.
@@ -51,13 +50,15 @@ impl TwoPort {
     pub fn s(&self, f_hz: f64) -> Result<[[Complex64; 2]; 2]> {
         let omega = std::f64::consts::TAU * f_hz;
         let layout = &self.small.layout;
-        let mut scratch = self.scratch.borrow_mut();
-        let (lu, v) = &mut *scratch;
-        self.small.factor_into(omega, lu)?;
+        let work = &mut *self.work.borrow_mut();
         let mut s = [[Complex64::new(0.0, 0.0); 2]; 2];
         for (col, drive) in self.drives.iter().enumerate() {
-            lu.solve_into(drive, v);
-            check_finite(v, omega)?;
+            if col == 0 {
+                self.small.solve_in(omega, drive, None, work)?;
+            } else {
+                work.resolve(drive, omega)?;
+            }
+            let v = &work.x;
             let (v1, v2) = (layout.voltage(v, self.p1), layout.voltage(v, self.p2));
             s[0][col] = if col == 0 { v1 - 1.0 } else { v1 };
             s[1][col] = if col == 1 { v2 - 1.0 } else { v2 };

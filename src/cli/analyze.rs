@@ -1,11 +1,12 @@
 //! `halfrail analyze FILE` (the SPEC §4 sections computed so far: `bias`, and `ac`
-//! when the document has an `analysis` section), `halfrail sweep FILE --csv` and
+//! and `loop` — with the compensation helper's answers — when the document has an
+//! `analysis` section), `halfrail sweep FILE --csv` and
 //! `halfrail touchstone FILE`.
 
 use std::path::PathBuf;
 
 use halfrail::analysis::{bare_curve, BARE_POINTS};
-use halfrail::doc::{to_json, AcReport, AnalyzeReport, BiasReport};
+use halfrail::doc::{to_json, AcReport, AnalyzeReport, BiasReport, LoopSummary};
 use halfrail::report::{sweep_csv, touchstone};
 
 use super::{read_document, Failure};
@@ -29,11 +30,15 @@ pub fn run(args: Args) -> Result<String, Failure> {
     let document = read_document(&args.file)?;
     let bias = document.bias()?;
     let curve = bare_curve(&document.part_and_stage()?.0, BARE_POINTS)?;
-    let ac = match document.analysis {
-        Some(_) => Some(document.response()?),
+    let small_signal = match document.analysis {
+        Some(_) => Some((document.stability()?, document.compensation()?)),
         None => None,
     };
-    let report = AnalyzeReport { bias: BiasReport { bias: &bias, curve: &curve }, ac: ac.as_ref().map(AcReport) };
+    let report = AnalyzeReport {
+        bias: BiasReport { bias: &bias, curve: &curve },
+        ac: small_signal.as_ref().map(|((response, _), _)| AcReport(response)),
+        stability: small_signal.as_ref().map(|((_, stability), suggestions)| LoopSummary(stability, Some(suggestions))),
+    };
     Ok(format!("{}\n", to_json(&report)))
 }
 

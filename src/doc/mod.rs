@@ -2,9 +2,12 @@
 //! document into typed sections, naming the path of any bad field, and gives the
 //! core's results their serialised form (`serialize`).
 
+#[macro_use]
+mod serialize;
+mod loop_report;
 mod quantity;
 mod sections;
-mod serialize;
+pub use loop_report::{LoopReport, LoopSummary, SuggestionOut};
 pub use serialize::{AcReport, AnalyzeReport, BiasReport, PartReport, ResponseReport, DocumentSummary, LookupReport, NearestReport, SeriesFacts, ValueInUnit};
 mod validate;
 
@@ -89,6 +92,21 @@ impl Analysis {
         self.noise_f_low_hz.zip(self.noise_f_high_hz)
     }
 
+    /// The stage's response and its loop analysis over this section's sweep.
+    pub fn stability(&self, part: &crate::part::Part, stage: &crate::stage::Components) -> Result<(crate::analysis::Response, crate::analysis::stability::Loop)> {
+        let lin = crate::analysis::Linearised::new(part, stage, self.z0_ohm)?;
+        let freqs = self.frequencies();
+        let response = crate::analysis::response_of(&lin, stage, self.f_design_hz, &freqs, self.noise_band())?;
+        let stability = crate::analysis::stability::analyse(&lin, stage, &response, self.f_design_hz, &freqs)?;
+        Ok((response, stability))
+    }
+
+    /// The compensation helper's answers for the wanted margin, resistors from `series`.
+    pub fn compensation(&self, part: &crate::part::Part, stage: &crate::stage::Components, series: crate::values::Series) -> Result<Vec<crate::analysis::stability::Suggestion>> {
+        let wanted = self.wanted_margin_deg.unwrap_or(crate::analysis::stability::WANTED_MARGIN_DEG);
+        crate::analysis::stability::compensate(part, stage, self.f_design_hz, (self.f_start_hz, self.f_stop_hz), self.z0_ohm, wanted, series)
+    }
+
     /// The stage's response as this section asks for it.
     pub fn response(&self, part: &crate::part::Part, stage: &crate::stage::Components) -> Result<crate::analysis::Response> {
         crate::analysis::response(part, stage, self.f_design_hz, &self.frequencies(), self.z0_ohm, self.noise_band())
@@ -122,6 +140,20 @@ impl Document {
     pub fn response(&self) -> Result<crate::analysis::Response> {
         let (part, stage) = self.part_and_stage()?;
         self.sweep()?.response(&part, &stage)
+    }
+
+    /// The stage's response and loop analysis over the `analysis` sweep.
+    pub fn stability(&self) -> Result<(crate::analysis::Response, crate::analysis::stability::Loop)> {
+        let (part, stage) = self.part_and_stage()?;
+        self.sweep()?.stability(&part, &stage)
+    }
+
+    /// The compensation helper for the document's stage: resistors from the target's
+    /// series (E24 without a target).
+    pub fn compensation(&self) -> Result<Vec<crate::analysis::stability::Suggestion>> {
+        let (part, stage) = self.part_and_stage()?;
+        let series = self.target.as_ref().map_or(crate::values::Series::E24, |t| t.series);
+        self.sweep()?.compensation(&part, &stage, series)
     }
 
     /// The part fitted to the `bench` readings, starting from the document's part.

@@ -12,6 +12,22 @@ use super::netlist::Netlist;
 use super::topology::{first_floating, PathKind};
 use crate::error::{FieldError, Result};
 
+/// The buffers of repeated solves: the factors, the solution and the adjoint solution.
+#[derive(Debug, Clone, Default)]
+pub struct Workspace {
+    pub lu: ComplexLu,
+    pub x: DVector<Complex64>,
+    pub y: DVector<Complex64>,
+}
+
+impl Workspace {
+    /// Solves for another right-hand side with the factors of the last `solve_in`.
+    pub fn resolve(&mut self, rhs: &DVector<Complex64>, omega: f64) -> Result<()> {
+        self.lu.solve_into(rhs, &mut self.x);
+        check_finite(&self.x, omega)
+    }
+}
+
 /// The linearised circuit.
 #[derive(Debug, Clone)]
 pub struct SmallSignal {
@@ -50,6 +66,22 @@ impl SmallSignal {
         let mut lu = ComplexLu::default();
         self.factor_into(omega, &mut lu)?;
         Ok(lu)
+    }
+
+    /// Solves (G + jωC)·x = `rhs` into `work` (and, given `adjoint_rhs`, the
+    /// transposed system into `work.y`) reusing its buffers: a sweep allocates nothing.
+    pub fn solve_in(&self, omega: f64, rhs: &DVector<Complex64>, adjoint_rhs: Option<&DVector<Complex64>>, work: &mut Workspace) -> Result<()> {
+        let Workspace { lu, x, y } = work;
+        self.factor_into(omega, lu)?;
+        x.resize_vertically_mut(self.layout.size, Complex64::default());
+        lu.solve_into(rhs, x);
+        check_finite(x, omega)?;
+        if let Some(c) = adjoint_rhs {
+            y.resize_vertically_mut(self.layout.size, Complex64::default());
+            lu.solve_transpose_into(c, y);
+            check_finite(y, omega)?;
+        }
+        Ok(())
     }
 
     /// G + jωC factorised into `lu`'s buffers: a sweep reuses one and allocates nothing.

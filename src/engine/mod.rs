@@ -10,7 +10,7 @@ mod mna;
 mod netlist;
 mod topology;
 
-pub use ac::{check_finite, SmallSignal};
+pub use ac::{check_finite, SmallSignal, Workspace};
 pub use lu::ComplexLu;
 pub use dc::{operating_point, DcSystem, Method, OperatingPoint};
 pub use mna::{Layout, GMIN};

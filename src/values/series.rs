@@ -115,6 +115,23 @@ impl Series {
         table.iter().step_by(step).copied().collect()
     }
 
+    /// Every standard value from `low` to `high` (inclusive), ascending.
+    ///
+    /// ```
+    /// use halfrail::values::Series;
+    /// assert_eq!(Series::E6.between(1e3, 1e4), [1e3, 1.5e3, 2.2e3, 3.3e3, 4.7e3, 6.8e3, 1e4]);
+    /// ```
+    pub fn between(self, low: f64, high: f64) -> Vec<f64> {
+        let first = low.log10().floor() as i32;
+        let last = high.log10().floor() as i32;
+        let shift = 1 - self.digits() as i32;
+        let mantissas = self.mantissas();
+        (first..=last)
+            .flat_map(|decade| mantissas.iter().map(move |&m| standard_value(m, decade + shift)))
+            .filter(|&v| v >= low * (1.0 - 1e-12) && v <= high * (1.0 + 1e-12))
+            .collect()
+    }
+
     /// The standard values of one decade as numbers in [1, 10).
     pub fn decade(self) -> Vec<f64> {
         self.mantissas().into_iter().map(|m| standard_value(m, 1 - self.digits() as i32)).collect()

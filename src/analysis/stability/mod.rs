@@ -1,0 +1,170 @@
+//! Does the feedback loop ring? The loop gain (Bode's return ratio of stage 1),
+//! its margins, the closed loop's natural frequencies and the verdict drawn from
+//! them, the small-signal step response, and a helper that finds the component
+//! change that buys a wanted phase margin.
+//!
+//! ```
+//! use halfrail::analysis::{frequencies, response_of, stability, Linearised};
+//! use halfrail::doc::{load, DEMO};
+//!
+//! let doc = load(DEMO).unwrap();
+//! let (part, stage) = doc.part_and_stage().unwrap();
+//! let lin = Linearised::new(&part, &stage, 50.0).unwrap();
+//! let freqs = frequencies(1e3, 1e9, 50);
+//! let response = response_of(&lin, &stage, 10.7e6, &freqs, None).unwrap();
+//! let report = stability::analyse(&lin, &stage, &response, 10.7e6, &freqs).unwrap();
+//! // One unbuffered inverter under resistive feedback: stable.
+//! assert!(report.stable);
+//! ```
+
+mod compensate;
+mod margins;
+mod poles;
+mod return_ratio;
+mod step;
+
+pub use compensate::{compensate, Knob, Suggestion, WANTED_MARGIN_DEG};
+pub use margins::{margins, unwrap_near, Margins};
+pub use poles::{grows, least_damped_pair, natural_frequencies, Pair};
+pub use return_ratio::ReturnRatio;
+pub use step::{settling, step_response, Settling, Step, SETTLE_BAND};
+
+use num_complex::Complex64;
+
+use crate::analysis::{Linearised, Response};
+use crate::error::Result;
+use crate::stage::Components;
+
+/// Below this phase margin a stable loop is said to ring (common practice: 45°).
+pub const RINGING_BELOW_DEG: f64 = 45.0;
+/// A pair with Q above this rings visibly whatever the margin says (ζ < 0.3).
+pub const RINGING_Q: f64 = 1.0 / 0.6;
+/// A step response that grows past this many times its target stops there.
+pub const STEP_LIMIT: f64 = 1e3;
+/// Time steps of the step response.
+pub const STEP_POINTS: usize = 2000;
+
+/// What the loop will do, in the terms the page states it.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Verdict {
+    /// Settles cleanly; the margin, when there is a crossover at all.
+    Stable { margin_deg: Option<f64> },
+    /// Stable but underdamped: rings at about `f_hz` with quality factor `q`.
+    Rings { margin_deg: Option<f64>, f_hz: f64, q: f64 },
+    /// A natural frequency grows: oscillates at about `f_hz`, or runs away (a real
+    /// pole in the right half-plane) when `f_hz` is `None`.
+    Oscillates { f_hz: Option<f64> },
+}
+
+/// The loop analysis of a stage.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Loop {
+    pub f_hz: Vec<f64>,
+    /// T at each frequency, and its phase carried continuously up from DC (radians).
+    pub t: Vec<Complex64>,
+    pub t_phase: Vec<f64>,
+    pub margins: Margins,
+    /// Peak of |Av| above f_design over |Av(f_design)|, dB (0 when it only falls).
+    pub peaking_db: f64,
+    /// Closed-loop natural frequencies, rad/s.
+    pub poles: Vec<Complex64>,
+    pub stable: bool,
+    /// Natural frequencies of the circuit with the loop broken at stage 1 that grow:
+    /// an inner loop (through the part's capacitances) that is unstable by itself.
+    /// When there are any, the margins do not describe stability (Nyquist: Z = N + P);
+    /// the poles still do.
+    pub open_loop_growing: usize,
+    pub least_damped: Option<Pair>,
+    pub verdict: Verdict,
+    pub step: Step,
+    /// The level the step should settle at: the mid-band gain from the EMF.
+    pub step_target: f64,
+    pub settling: Settling,
+    /// Edwards–Sinsky μ over the sweep and its minimum.
+    pub mu: Vec<f64>,
+    pub mu_min: Option<f64>,
+}
+
+/// Everything about the loop of the stage `lin` (built from `components`), over
+/// `freqs`, with `response` the stage's response over the same sweep.
+pub fn analyse(lin: &Linearised, components: &Components, response: &Response, f_design: f64, freqs: &[f64]) -> Result<Loop> {
+    let ratio = ReturnRatio::new(lin)?;
+    let t = freqs.iter().map(|&f| ratio.at(f)).collect::<Result<Vec<_>>>()?;
+    let start_phase = ratio.phase_from_dc(freqs[0])?;
+    let margins = margins(f_design, freqs, &t, start_phase, |f| ratio.at(f))?;
+    let t_phase = continuous_phase(&t, start_phase);
+    let small = lin.small_signal();
+    let poles = natural_frequencies(&small.g, &small.c)?;
+    let open = ratio.open_loop();
+    let open_loop_growing = natural_frequencies(&open.g, &open.c)?.into_iter().filter(|&p| grows(p)).count();
+    let stable = !poles.iter().any(|&p| grows(p));
+    let least_damped = least_damped_pair(&poles);
+    let verdict = verdict(stable, &poles, &margins, least_damped);
+
+    let mid = response.design.av.norm();
+    let peaking_db = response
+        .points
+        .iter()
+        .filter(|p| p.f_hz >= f_design)
+        .map(|p| 20.0 * (p.av.norm() / mid).log10())
+        .fold(0.0, f64::max);
+    // The step settles at the mid-band gain (the geometric middle of the band, or
+    // f_design when an edge is missing), the coupling capacitors' droop being far slower.
+    let f_mid = match (response.f_low_hz, response.f_high_hz) {
+        (Some(lo), Some(hi)) => (lo * hi).sqrt(),
+        _ => f_design,
+    };
+    let emf = lin.at(f_mid, components)?.emf_gain;
+    let step_target = emf.norm().copysign(emf.re);
+    // The step shows the upper band's dynamics: pairs below mid-band (the coupling
+    // capacitors') only droop it, far more slowly.
+    let upper = least_damped_pair(&poles.iter().copied().filter(|p| p.norm() / std::f64::consts::TAU > f_mid).collect::<Vec<_>>());
+    let t_end = step_window(response, &margins, upper, f_design);
+    let step = step_response(small, lin.circuit().nodes.output, t_end, STEP_POINTS, STEP_LIMIT * step_target.abs().max(1e-3))?;
+    let settling = settling(&step, step_target);
+    let mu: Vec<f64> = response.points.iter().map(|p| p.mu()).collect();
+    let mu_min = mu.iter().copied().filter(|m| m.is_finite()).reduce(f64::min);
+    Ok(Loop { f_hz: freqs.to_vec(), t, t_phase, margins, peaking_db, poles, stable, open_loop_growing, least_damped, verdict, step, step_target, settling, mu, mu_min })
+}
+
+/// The phases of `t` made continuous, the first on the branch of `start`.
+fn continuous_phase(t: &[Complex64], start: f64) -> Vec<f64> {
+    let mut last = start;
+    t.iter()
+        .map(|t| {
+            last = unwrap_near(t.arg(), last);
+            last
+        })
+        .collect()
+}
+
+fn verdict(stable: bool, poles: &[Complex64], margins: &Margins, pair: Option<Pair>) -> Verdict {
+    if !stable {
+        let fastest = poles.iter().filter(|&&p| grows(p)).max_by(|a, b| a.re.total_cmp(&b.re)).copied();
+        let f_hz = fastest.filter(|p| p.im.abs() > 1e-9 * p.norm()).map(|p| p.im.abs() / std::f64::consts::TAU);
+        return Verdict::Oscillates { f_hz };
+    }
+    let margin_deg = margins.phase_margin_deg;
+    let low_margin = margin_deg.is_some_and(|m| m < RINGING_BELOW_DEG);
+    match pair {
+        Some(p) if low_margin || p.q > RINGING_Q => Verdict::Rings { margin_deg, f_hz: p.f_ring_hz(), q: p.q },
+        _ => Verdict::Stable { margin_deg },
+    }
+}
+
+/// A window long enough to see the step settle (or grow): about twenty time
+/// constants of the closed-loop bandwidth, stretched to let a ringing pair decay
+/// to 2 % (4/(ζω) … a little more), but never more than forty ringing periods.
+fn step_window(response: &Response, margins: &Margins, pair: Option<Pair>, f_design: f64) -> f64 {
+    let f_ref = response.f_high_hz.or(margins.crossover_hz).unwrap_or(10.0 * f_design);
+    let base = 20.0 / (std::f64::consts::TAU * f_ref);
+    match pair {
+        Some(p) if p.zeta.abs() < 1.0 => {
+            let omega = p.pole.norm();
+            let decay = 6.0 / (p.zeta.abs().max(1e-3) * omega);
+            let periods = 40.0 * std::f64::consts::TAU / p.pole.im.abs();
+            base.max(decay.min(periods))
+        }
+        _ => base,
+    }
+}

@@ -1,0 +1,87 @@
+//! Bode's return ratio of stage 1's transconductor (SPEC §3.3): with the source EMF
+//! zeroed, the device's controlling voltage is replaced by a 1 V test value — its
+//! gm·v(in) term leaves the matrix and the current it would drive for 1 V becomes
+//! a source — and T = −v(in) is what the loop returns.
+//!
+//! For a single controlled source the return difference 1 + T is the ratio of the
+//! circuit's determinant to the determinant with that source dead (Bode), which is
+//! what lets the Nyquist count of 1 + T and the poles be checked against each other.
+
+use std::cell::RefCell;
+
+use nalgebra::DVector;
+use num_complex::Complex64;
+
+use super::{natural_frequencies, unwrap_near};
+use crate::analysis::{frequencies, Linearised};
+use crate::engine::{Element, Node, SmallSignal, Workspace};
+use crate::error::{FieldError, Result};
+
+/// Points per decade of the walk up from near DC.
+const WALK_PER_DECADE: u32 = 20;
+
+/// The name the stage builder gives the first inverter.
+const FIRST_STAGE: &str = "stage 1";
+
+/// The stage with stage 1's gm broken out, ready to return T at any frequency.
+pub struct ReturnRatio {
+    /// G and C of the circuit with the controlling term removed; `b` is the test drive.
+    small: SmallSignal,
+    /// The controlling node (stage 1's input).
+    control: Node,
+    work: RefCell<Workspace>,
+}
+
+impl ReturnRatio {
+    pub fn new(lin: &Linearised) -> Result<Self> {
+        let netlist = &lin.circuit().netlist;
+        let missing = || FieldError::new("part", "the stage has no inverter to break the loop at");
+        let k = netlist.element_index(FIRST_STAGE).ok_or_else(missing)?;
+        let (Element::Device { input, output, .. }, Some(state)) = (&netlist.elements()[k].element, &lin.operating_point().devices[k]) else {
+            return Err(missing());
+        };
+        let mut small = lin.small_signal().clone();
+        let layout = &small.layout;
+        let (row, col) = (layout.index(*output), layout.index(*input));
+        let mut b = DVector::zeros(layout.size);
+        if let (Some(r), Some(c)) = (row, col) {
+            // The engine stamps −∂i/∂v_in at (out, in); take it out, and inject the
+            // current the device pushes into its output for v_in = 1 V.
+            small.g[(r, c)] += state.di_dvin;
+            b[r] = Complex64::new(state.di_dvin, 0.0);
+        }
+        small.b = b;
+        Ok(ReturnRatio { small, control: *input, work: RefCell::default() })
+    }
+
+    /// T at `f_hz`.
+    pub fn at(&self, f_hz: f64) -> Result<Complex64> {
+        let work = &mut *self.work.borrow_mut();
+        self.small.solve_in(std::f64::consts::TAU * f_hz, &self.small.b, None, work)?;
+        Ok(-self.small.layout.voltage(&work.x, self.control))
+    }
+
+    /// The continuous phase of T at `f_hz` (radians). Far below the loop's lowest
+    /// natural frequency T → K·(jω)^m, m the coupling capacitors in the loop, so
+    /// the phase there is m·90° (0 for a DC-coupled negative-feedback loop): taken
+    /// in [−45°, 315°) and carried up continuously from there.
+    pub fn phase_from_dc(&self, f_hz: f64) -> Result<f64> {
+        let lowest = natural_frequencies(&self.small.g, &self.small.c)?
+            .iter()
+            .map(|p| p.norm() / std::f64::consts::TAU)
+            .find(|&f| f > 0.0)
+            .unwrap_or(f_hz);
+        let f0 = f_hz.min(lowest * 1e-3);
+        let quarter = std::f64::consts::FRAC_PI_4;
+        let mut phase = (self.at(f0)?.arg() + quarter).rem_euclid(std::f64::consts::TAU) - quarter;
+        for f in frequencies(f0, f_hz, WALK_PER_DECADE).into_iter().skip(1) {
+            phase = unwrap_near(self.at(f)?.arg(), phase);
+        }
+        Ok(phase)
+    }
+
+    /// The circuit with the loop broken (its natural frequencies are the poles of T).
+    pub fn open_loop(&self) -> &SmallSignal {
+        &self.small
+    }
+}
