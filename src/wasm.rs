@@ -211,7 +211,7 @@ pub fn loop_report(text: &str) -> Result<JsValue, JsValue> {
     to_js(&doc::LoopReport {
         stability: &stability,
         suggestions: &suggestions,
-        wanted_margin_deg: analysis.wanted_margin_deg.unwrap_or(crate::analysis::stability::WANTED_MARGIN_DEG),
+        wanted_margin_deg: document.wanted_margin_deg(),
         f_design_hz: analysis.f_design_hz,
     })
 }

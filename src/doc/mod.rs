@@ -101,9 +101,8 @@ impl Analysis {
         Ok((response, stability))
     }
 
-    /// The compensation helper's answers for the wanted margin, resistors from `series`.
-    pub fn compensation(&self, part: &crate::part::Part, stage: &crate::stage::Components, series: crate::values::Series) -> Result<Vec<crate::analysis::stability::Suggestion>> {
-        let wanted = self.wanted_margin_deg.unwrap_or(crate::analysis::stability::WANTED_MARGIN_DEG);
+    /// The compensation helper's answers for a `wanted` margin, resistors from `series`.
+    pub fn compensation(&self, part: &crate::part::Part, stage: &crate::stage::Components, wanted: f64, series: crate::values::Series) -> Result<Vec<crate::analysis::stability::Suggestion>> {
         crate::analysis::stability::compensate(part, stage, self.f_design_hz, (self.f_start_hz, self.f_stop_hz), self.z0_ohm, wanted, series)
     }
 
@@ -148,12 +147,18 @@ impl Document {
         self.sweep()?.stability(&part, &stage)
     }
 
+    /// The phase margin the compensation helper aims for: the target's `pm_min_deg`,
+    /// else 60°.
+    pub fn wanted_margin_deg(&self) -> f64 {
+        self.target.as_ref().and_then(|t| t.pm_min_deg).unwrap_or(crate::analysis::stability::WANTED_MARGIN_DEG)
+    }
+
     /// The compensation helper for the document's stage: resistors from the target's
     /// series (E24 without a target).
     pub fn compensation(&self) -> Result<Vec<crate::analysis::stability::Suggestion>> {
         let (part, stage) = self.part_and_stage()?;
         let series = self.target.as_ref().map_or(crate::values::Series::E24, |t| t.series);
-        self.sweep()?.compensation(&part, &stage, series)
+        self.sweep()?.compensation(&part, &stage, self.wanted_margin_deg(), series)
     }
 
     /// The part fitted to the `bench` readings, starting from the document's part.

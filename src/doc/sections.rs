@@ -152,9 +152,6 @@ pub struct Analysis {
     pub noise_f_low_hz: Option<f64>,
     #[serde(default, deserialize_with = "optional::<Hertz, _>")]
     pub noise_f_high_hz: Option<f64>,
-    /// The phase margin the compensation helper aims for (60° when absent).
-    #[serde(default, deserialize_with = "optional::<Plain, _>")]
-    pub wanted_margin_deg: Option<f64>,
 }
 
 /// Which gain a design target means.

@@ -131,7 +131,6 @@ fn analysis(a: &Analysis) -> Result<()> {
     }
     range("analysis.z0_ohm", a.z0_ohm, Open(0.0), Closed(MAX_OHM))?;
     range("analysis.input_dbm", a.input_dbm, Closed(-200.0), Closed(60.0))?;
-    optional_range("analysis.wanted_margin_deg", a.wanted_margin_deg, Open(0.0), Open(90.0))?;
     match (a.noise_f_low_hz, a.noise_f_high_hz) {
         (Some(low), Some(high)) => {
             range("analysis.noise_f_low_hz", low, Open(0.0), Open(MAX_HZ))?;
