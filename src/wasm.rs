@@ -229,9 +229,16 @@ pub fn sweep_csv(text: &str) -> Result<String, JsValue> {
 }
 
 
-/// The response computed and only its length returned: the benchmark's measure of
-/// the core alone, without the cost of handing the figures to JavaScript.
-#[wasm_bindgen(js_name = responsePoints)]
-pub fn response_points(text: &str) -> Result<usize, JsValue> {
-    Ok(doc::load(text).and_then(|d| d.response()).map_err(thrown)?.points.len())
+/// One of the document's analyses computed and only its size returned: the
+/// benchmark's measure of the core alone, without the cost of handing the
+/// figures to JavaScript. `what`: "response" or "stability".
+#[wasm_bindgen(js_name = benchCore)]
+pub fn bench_core(text: &str, what: &str) -> Result<usize, JsValue> {
+    let document = doc::load(text).map_err(thrown)?;
+    let points = match what {
+        "response" => document.response().map(|r| r.points.len()),
+        "stability" => document.stability().map(|(_, l)| l.t.len()),
+        _ => return Err(thrown(FieldError::new("what", format!("`{what}` is not a benchmarked analysis")))),
+    };
+    points.map_err(thrown)
 }

@@ -172,3 +172,47 @@ fn analyze_sweep_and_touchstone_share_one_response() {
     refused(&["sweep", &bad.display().to_string(), "--csv"], "analysis: missing");
     std::fs::remove_file(&bad).ok();
 }
+
+/// The demo document with its part swapped for a three-stage (buffered) one.
+fn buffered_demo() -> PathBuf {
+    let mut doc: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(demo()).unwrap()).unwrap();
+    doc["part"] = serde_json::json!({
+        "model": "square-law", "vdd_v": 5, "stages": 3, "kn_a_per_v2": "3.5m", "kp_a_per_v2": "3.9m",
+        "vtn_v": 0.8, "vtp_v": -0.9, "lambda_n_per_v": 0.05, "lambda_p_per_v": 0.06,
+        "cgs_f": "2p5", "cgd_f": "1p", "cdb_f": "3p"
+    });
+    let path = std::env::temp_dir().join(format!("halfrail-buffered-{}.json", std::process::id()));
+    std::fs::write(&path, doc.to_string()).unwrap();
+    path
+}
+
+#[test]
+fn analyze_prints_the_loop_section() {
+    let json: serde_json::Value = serde_json::from_str(&stdout(&halfrail(&["analyze", &demo()]))).unwrap();
+    let lp = &json["loop"];
+    // SPEC §4 keys, present (null where the figure does not exist).
+    for key in ["t_mid_db", "crossover_hz", "phase_margin_deg", "gain_margin_db", "stable", "mu_min"] {
+        assert!(lp.get(key).is_some(), "loop.{key} missing: {lp}");
+    }
+    // One unbuffered stage under resistive feedback: stable, and its loop gain at
+    // f_design is below 1, so there is no crossover above it.
+    assert_eq!(lp["stable"], true);
+    assert!(lp["t_mid_db"].as_f64().unwrap() < 0.0);
+    assert!(lp["crossover_hz"].is_null() && lp["phase_margin_deg"].is_null());
+    assert_eq!(lp["verdict"]["kind"], "stable");
+    assert!(lp["suggestions"].as_array().unwrap().is_empty(), "nothing to fix");
+
+    let path = buffered_demo();
+    let json: serde_json::Value = serde_json::from_str(&stdout(&halfrail(&["analyze", &path.display().to_string()]))).unwrap();
+    std::fs::remove_file(&path).ok();
+    let lp = &json["loop"];
+    assert_eq!(lp["stable"], false, "three stages under the same feedback: {lp}");
+    assert!(lp["phase_margin_deg"].as_f64().unwrap() < 0.0);
+    assert_eq!(lp["verdict"]["kind"], "oscillates");
+    let f = lp["verdict"]["f_hz"].as_f64().unwrap();
+    assert!(f > 1e7 && f < 1e9, "oscillates at {f} Hz");
+    // At least one right-half-plane pole, at the frequency the verdict names.
+    assert!(lp["poles_hz"].as_array().unwrap().iter().any(|p| p[0].as_f64().unwrap() > 0.0 && (p[1].as_f64().unwrap().abs() / f - 1.0).abs() < 1e-6));
+    let fix = lp["suggestions"].as_array().unwrap().iter().find(|s| s["key"] == "r_fb_ohm").expect("a lower-gain answer");
+    assert!(fix["value"].as_f64().unwrap() > 2200.0 && fix["phase_margin_deg"].as_f64().unwrap() >= 60.0, "{fix}");
+}

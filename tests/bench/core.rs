@@ -86,6 +86,22 @@ fn main() {
     });
     report("small-signal response, demo, 1001 points (gain, Z, S, noise)", response, Some(2e-3));
     figures.push(("response", response));
+    // The same sweep with the loop: return ratio, margins, poles, open-loop poles, step.
+    let stability = median_time(|| {
+        black_box(load(black_box(&wide)).unwrap().stability().unwrap());
+    });
+    report("loop analysis, demo, 1001 points + poles + step (with the response)", stability, Some(3e-3));
+    figures.push(("stability", stability));
+    let wide_doc = load(&wide).unwrap();
+    report("compensation helper, demo (already meets 60°: one judgement)", median_time(|| {
+        black_box(wide_doc.compensation().unwrap());
+    }), None);
+    let mut buffered_json: serde_json::Value = serde_json::from_str(&wide).unwrap();
+    buffered_json["part"] = serde_json::to_value(&buffered).unwrap();
+    let buffered_doc = load(&buffered_json.to_string()).unwrap();
+    report("compensation helper, three-stage part (three knobs searched)", median_time(|| {
+        black_box(buffered_doc.compensation().unwrap());
+    }), None);
     let bench = doc.bench.as_ref().unwrap();
     let start = bench.starting_part(doc.part.as_ref());
     let readings = bench.readings().unwrap();

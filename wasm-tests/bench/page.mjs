@@ -57,7 +57,9 @@ for (let i = 0; i < RUNS; i++) {
       const sweep = JSON.stringify(wide);
       return {
         response: median(() => wasm_bindgen.responseReport(sweep)),
-        responseCore: median(() => wasm_bindgen.responsePoints(sweep)),
+        responseCore: median(() => wasm_bindgen.benchCore(sweep, 'response')),
+        stabilityCore: median(() => wasm_bindgen.benchCore(sweep, 'stability')),
+        loopPanel: median(() => wasm_bindgen.loopReport(sweep)),
         curve1: median(() => wasm_bindgen.transferCurve(demo, 500)),
         curve3: median(() => wasm_bindgen.transferCurve(buffered, 500)),
         report: median(() => wasm_bindgen.partReport(demo, 501)),
@@ -112,6 +114,8 @@ const rows = [
   ['wasm: bench fit of the demo readings', `${core.fit.toFixed(1)} ms`, '', true],
   ['wasm: response of the demo, 1001 points (core)', `${core.responseCore.toFixed(2)} ms`, ...ratio('response', core.responseCore)],
   ['wasm: the same with the report handed to the page', `${core.response.toFixed(1)} ms`, '', true],
+  ['wasm: loop analysis of the demo, 1001 points (core)', `${core.stabilityCore.toFixed(2)} ms`, ...ratio('stability', core.stabilityCore)],
+  ['wasm: Loop panel report (loop, helper, handed over)', `${core.loopPanel.toFixed(1)} ms`, '', true],
   ['Stage edit to redrawn figures, 95th percentile of 40', `${p95.toFixed(1)} ms`, '≤ 16 ms', p95 <= 16],
 ];
 for (const [what, figure, target, met] of rows) {

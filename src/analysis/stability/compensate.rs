@@ -88,12 +88,16 @@ impl Judged {
 }
 
 fn judge(lin: &Linearised, f_design: f64, grid: &[f64]) -> Result<Judged> {
+    // The poles first: most candidates of a loop that needs help are still unstable,
+    // and then the margin is not worth sweeping for.
+    let small = lin.small_signal();
+    if natural_frequencies(&small.g, &small.c)?.iter().any(|&p| grows(p)) {
+        return Ok(Judged { stable: false, margin_deg: None });
+    }
     let ratio = ReturnRatio::new(lin)?;
     let t = grid.iter().map(|&f| ratio.at(f)).collect::<Result<Vec<_>>>()?;
     let m = margins(f_design, grid, &t, ratio.phase_from_dc(grid[0])?, |f| ratio.at(f))?;
-    let small = lin.small_signal();
-    let stable = !natural_frequencies(&small.g, &small.c)?.iter().any(|&p| grows(p));
-    Ok(Judged { stable, margin_deg: m.phase_margin_deg })
+    Ok(Judged { stable: true, margin_deg: m.phase_margin_deg })
 }
 
 /// Gain at f_design (dB) and the upper band edge on `grid`.

@@ -29,18 +29,29 @@ pub fn step_response(small: &SmallSignal, out: Node, t_end: f64, steps: usize, l
     };
     let euler = factor(c / h + g)?;
     let gear = factor(c * (1.5 / h) + g)?;
-    let mut t_s = vec![0.0];
-    let mut v = vec![0.0];
-    let mut before = DVector::zeros(small.layout.size);
-    let mut now = euler.solve(&b).ok_or_else(singular)?;
-    let mut rhs = DVector::zeros(small.layout.size);
+    let n = small.layout.size;
+    let mut t_s = Vec::with_capacity(steps + 1);
+    let mut v = Vec::with_capacity(steps + 1);
+    t_s.push(0.0);
+    v.push(0.0);
+    // Buffers reused every step: the loop allocates nothing.
+    let mut before = DVector::zeros(n);
+    let mut now = b.clone();
+    if !euler.solve_mut(&mut now) {
+        return Err(singular());
+    }
+    let mut history = DVector::zeros(n);
     for k in 1..=steps {
         if k > 1 {
             // BDF2: (3C/2h + G)·x₊ = C·(2x − x₋/2)/h + b.
-            rhs.copy_from(&b);
-            rhs.gemv(1.0 / h, c, &(&now * 2.0 - &before * 0.5), 1.0);
-            let next = gear.solve(&rhs).ok_or_else(singular)?;
-            before = std::mem::replace(&mut now, next);
+            history.copy_from(&now);
+            history.axpy(-0.25, &before, 1.0);
+            before.copy_from(&now);
+            now.copy_from(&b);
+            now.gemv(2.0 / h, c, &history, 1.0);
+            if !gear.solve_mut(&mut now) {
+                return Err(singular());
+            }
         }
         let x = small.layout.voltage(&now, out);
         if !x.is_finite() {
