@@ -130,3 +130,32 @@ fn the_response_report_of_the_demo() {
     assert!(number(&design, "f_low_hz") < 10.7e6 && number(&design, "f_high_hz") > 10.7e6);
     assert!(Array::from(&get(&r, "noise_shares")).length() >= 3);
 }
+
+#[wasm_bindgen_test]
+fn the_loop_report_of_the_demo_and_of_a_buffered_part() {
+    let demo = wasm::demo_document();
+    let r = wasm::loop_report(&demo).unwrap();
+    let n = Array::from(&get(&r, "f_hz")).length();
+    assert_eq!(n, 301);
+    for key in ["t_db", "t_phase_deg", "t_re", "t_im", "mu"] {
+        assert_eq!(Array::from(&get(&r, key)).length(), n, "{key}");
+    }
+    assert_eq!(Array::from(&get(&r, "step_t_s")).length(), Array::from(&get(&r, "step_v")).length());
+    let summary = get(&r, "summary");
+    assert_eq!(get(&summary, "stable").as_bool(), Some(true));
+    assert_eq!(text(&get(&summary, "verdict"), "kind"), "stable");
+    assert_eq!(number(&r, "wanted_margin_deg"), 60.0);
+    assert_eq!(Array::from(&get(&r, "suggestions")).length(), 0);
+
+    // The three-stage preset in the same stage oscillates; the lower-gain answer is
+    // the same standard value the native build finds (tests/cli.rs, E24).
+    let buffered = Array::from(&wasm::presets().unwrap()).iter().find(|p| text(p, "id") == "buffered-5v").unwrap();
+    let part = js_sys::JSON::stringify(&get(&buffered, "part")).unwrap().as_string().unwrap();
+    let document = demo.replacen(&demo[demo.find("\"part\"").unwrap()..demo.find("\"stage\"").unwrap()], &format!("\"part\": {part},\n  "), 1);
+    let r = wasm::loop_report(&document).unwrap();
+    let summary = get(&r, "summary");
+    assert_eq!(get(&summary, "stable").as_bool(), Some(false));
+    assert_eq!(text(&get(&summary, "verdict"), "kind"), "oscillates");
+    let fix = Array::from(&get(&r, "suggestions")).iter().find(|s| text(s, "key") == "r_fb_ohm").unwrap();
+    assert_eq!(number(&fix, "value"), 180e3);
+}
