@@ -132,3 +132,29 @@ proptest! {
         prop_assert!(halfrail::engine::ComplexLu::of_matrix(&singular).is_none());
     }
 }
+
+proptest! {
+    #![proptest_config(ProptestConfig::with_cases(100))]
+
+    /// The same factorisation over the reals (the transient's Newton steps) against
+    /// faer's partial-pivoting LU on a general matrix with a zero leading diagonal.
+    #[test]
+    fn real_lu_matches_faer(size in 2usize..10, seed in any::<u64>()) {
+        use faer::linalg::solvers::Solve;
+        let mut state = seed | 1;
+        let mut next = || { state ^= state << 13; state ^= state >> 7; state ^= state << 17; (state % 20_000) as f64 / 10_000.0 - 1.0 };
+        let mut a = DMatrix::from_fn(size, size, |_, _| next());
+        a[(0, 0)] = 0.0;
+        let b = DVector::from_fn(size, |_, _| next());
+        let mut lu = halfrail::engine::RealLu::default();
+        prop_assert!(lu.refactor_matrix(&a));
+        let fa = faer::Mat::<f64>::from_fn(size, size, |i, j| a[(i, j)]);
+        let fb = faer::Mat::<f64>::from_fn(size, 1, |i, _| b[i]);
+        for (ours, theirs) in [(lu.solve(&b), fa.partial_piv_lu().solve(&fb)), (lu.solve_transpose(&b), fa.transpose().to_owned().partial_piv_lu().solve(&fb))] {
+            let scale = (0..size).map(|i| theirs[(i, 0)].abs()).fold(1.0, f64::max);
+            for i in 0..size {
+                prop_assert!((ours[i] - theirs[(i, 0)]).abs() <= 1e-8 * scale, "{} vs {}", ours[i], theirs[(i, 0)]);
+            }
+        }
+    }
+}

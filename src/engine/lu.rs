@@ -1,39 +1,66 @@
-//! Dense complex LU with partial pivoting, solvable both ways from one
+//! Dense LU with partial pivoting, real or complex, solvable both ways from one
 //! factorisation: A·x = b for the signal and Aᵀ·y = c for the adjoint (noise,
-//! sensitivities).
+//! sensitivities), refactorised into the same buffers along a sweep or a
+//! transient so the inner loops allocate nothing.
 //!
 //! Hand-written rather than nalgebra's `LU` because that one has no transposed
 //! solve, so every frequency paid a second factorisation for the adjoint, and it
-//! allocates per call; the systems here are a few dozen unknowns at most. The
-//! tests check it against faer's partial-pivoting LU.
+//! allocates per call (in wasm the allocations, not the arithmetic, made the sweep
+//! 2.6× slower than native); the systems here are a few dozen unknowns at most.
+//! The tests check it against faer's partial-pivoting LU.
 
-use nalgebra::{DMatrix, DVector};
+use std::ops::{Div, Mul, Sub, SubAssign};
+
+use nalgebra::{DMatrix, DVector, Scalar};
 use num_complex::Complex64;
 
+/// What the factorisation needs of a number.
+pub trait Entry: Scalar + Copy + Default + PartialEq + Sub<Output = Self> + SubAssign + Mul<Output = Self> + Div<Output = Self> + std::iter::Sum {
+    /// |x|², for choosing pivots.
+    fn magnitude2(self) -> f64;
+    fn one() -> Self;
+}
+
+impl Entry for f64 {
+    fn magnitude2(self) -> f64 {
+        self * self
+    }
+    fn one() -> Self {
+        1.0
+    }
+}
+
+impl Entry for Complex64 {
+    fn magnitude2(self) -> f64 {
+        self.norm_sqr()
+    }
+    fn one() -> Self {
+        Complex64::new(1.0, 0.0)
+    }
+}
+
 /// P·A = L·U, stored packed row-major (L unit lower, U upper) with the row order.
-/// `default()` is an empty one to `refactor` into.
+/// `default()` is an empty one to factorise into.
 #[derive(Debug, Clone, Default)]
-pub struct ComplexLu {
+pub struct Lu<T> {
     n: usize,
-    lu: Vec<Complex64>,
+    lu: Vec<T>,
     /// `rows[i]` is the row of A that became row i.
     rows: Vec<usize>,
     /// Room for the transposed solve's intermediate vector.
-    scratch: Vec<Complex64>,
+    scratch: Vec<T>,
 }
+
+/// The small-signal systems' factorisation.
+pub type ComplexLu = Lu<Complex64>;
+/// The Newton iterations' factorisation.
+pub type RealLu = Lu<f64>;
 
 impl ComplexLu {
     /// Factorises G + jωC; `None` when a pivot is zero or not finite (singular).
     pub fn of(g: &DMatrix<f64>, c: &DMatrix<f64>, omega: f64) -> Option<Self> {
         let mut lu = ComplexLu::default();
         lu.refactor(g, c, omega).then_some(lu)
-    }
-
-    /// Factorises a complex matrix.
-    pub fn of_matrix(a: &DMatrix<Complex64>) -> Option<Self> {
-        let n = a.nrows();
-        let mut lu = ComplexLu { n, lu: (0..n * n).map(|k| a[(k / n, k % n)]).collect(), ..Default::default() };
-        lu.factor().then_some(lu)
     }
 
     /// Factorises G + jωC into this one's buffers (no allocation once they are the
@@ -47,15 +74,35 @@ impl ComplexLu {
         }
         self.factor()
     }
+}
+
+impl<T: Entry> Lu<T> {
+    /// Factorises a matrix.
+    pub fn of_matrix(a: &DMatrix<T>) -> Option<Self> {
+        let mut lu = Lu::default();
+        lu.refactor_matrix(a).then_some(lu)
+    }
+
+    /// Factorises `a` into this one's buffers; `false` when singular.
+    pub fn refactor_matrix(&mut self, a: &DMatrix<T>) -> bool {
+        let n = a.nrows();
+        self.n = n;
+        self.lu.clear();
+        for i in 0..n {
+            self.lu.extend((0..n).map(|j| a[(i, j)]));
+        }
+        self.factor()
+    }
 
     fn factor(&mut self) -> bool {
         let (n, lu) = (self.n, &mut self.lu);
         self.rows.clear();
         self.rows.extend(0..n);
         for k in 0..n {
-            let pivot = (k..n).max_by(|&i, &j| lu[i * n + k].norm_sqr().total_cmp(&lu[j * n + k].norm_sqr())).unwrap_or(k);
+            let pivot = (k..n).max_by(|&i, &j| lu[i * n + k].magnitude2().total_cmp(&lu[j * n + k].magnitude2())).unwrap_or(k);
             let p = lu[pivot * n + k];
-            if !(p.norm_sqr() > 0.0 && p.re.is_finite() && p.im.is_finite()) {
+            let size = p.magnitude2();
+            if !(size > 0.0 && size.is_finite()) {
                 return false;
             }
             if pivot != k {
@@ -64,11 +111,11 @@ impl ComplexLu {
                 }
                 self.rows.swap(k, pivot);
             }
-            let inv = 1.0 / p;
+            let inv = T::one() / p;
             for i in k + 1..n {
                 let l = lu[i * n + k] * inv;
                 lu[i * n + k] = l;
-                if l != Complex64::new(0.0, 0.0) {
+                if l != T::default() {
                     for j in k + 1..n {
                         let u = lu[k * n + j];
                         lu[i * n + j] -= l * u;
@@ -80,14 +127,14 @@ impl ComplexLu {
     }
 
     /// x with A·x = b.
-    pub fn solve(&self, b: &DVector<Complex64>) -> DVector<Complex64> {
-        let mut x = DVector::zeros(self.n);
+    pub fn solve(&self, b: &DVector<T>) -> DVector<T> {
+        let mut x = DVector::from_element(self.n, T::default());
         self.solve_into(b, &mut x);
         x
     }
 
     /// x with A·x = b, written into `x` (of the system's size).
-    pub fn solve_into(&self, b: &DVector<Complex64>, x: &mut DVector<Complex64>) {
+    pub fn solve_into(&self, b: &DVector<T>, x: &mut DVector<T>) {
         let n = self.n;
         for (i, &row) in self.rows.iter().enumerate() {
             x[i] = b[row];
@@ -109,25 +156,25 @@ impl ComplexLu {
     }
 
     /// y with Aᵀ·y = c (plain transpose, not conjugate): Aᵀ = Uᵀ·Lᵀ·P.
-    pub fn solve_transpose(&mut self, c: &DVector<Complex64>) -> DVector<Complex64> {
-        let mut y = DVector::zeros(self.n);
+    pub fn solve_transpose(&mut self, c: &DVector<T>) -> DVector<T> {
+        let mut y = DVector::from_element(self.n, T::default());
         self.solve_transpose_into(c, &mut y);
         y
     }
 
     /// y with Aᵀ·y = c, written into `y` (of the system's size).
-    pub fn solve_transpose_into(&mut self, c: &DVector<Complex64>, y: &mut DVector<Complex64>) {
+    pub fn solve_transpose_into(&mut self, c: &DVector<T>, y: &mut DVector<T>) {
         let n = self.n;
         let z = &mut self.scratch;
         z.clear();
         z.extend(c.iter().copied());
         // Column i of L and U read down the packed rows: entry (j, i) is lu[j·n + i].
         for i in 0..n {
-            let above: Complex64 = z[..i].iter().enumerate().map(|(j, &zj)| self.lu[j * n + i] * zj).sum();
+            let above: T = z[..i].iter().enumerate().map(|(j, &zj)| self.lu[j * n + i] * zj).sum();
             z[i] = (z[i] - above) / self.lu[i * n + i];
         }
         for i in (0..n).rev() {
-            let below: Complex64 = z[i + 1..].iter().enumerate().map(|(k, &zj)| self.lu[(i + 1 + k) * n + i] * zj).sum();
+            let below: T = z[i + 1..].iter().enumerate().map(|(k, &zj)| self.lu[(i + 1 + k) * n + i] * zj).sum();
             z[i] -= below;
         }
         for (i, &row) in self.rows.iter().enumerate() {

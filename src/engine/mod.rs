@@ -11,7 +11,7 @@ mod netlist;
 mod topology;
 
 pub use ac::{check_finite, SmallSignal, Workspace};
-pub use lu::ComplexLu;
+pub use lu::{ComplexLu, RealLu};
 pub use dc::{operating_point, DcSystem, Method, OperatingPoint};
 pub use mna::{Layout, GMIN};
 pub use netlist::{DeviceState, Element, Named, Netlist, Node, Transconductor};
