@@ -3,8 +3,8 @@
 
 use nalgebra::{DMatrix, DVector};
 
-use super::mna::{device_states, dc_sources, linear_stamps, Layout, GMIN};
-use super::netlist::{DeviceState, Element, Netlist, Node, Transconductor};
+use super::mna::{dc_sources, device_slots, device_states, evaluate_into, linear_stamps, DeviceSlot, Layout, GMIN};
+use super::netlist::{DeviceState, Netlist, Node};
 use super::topology::{first_floating, PathKind};
 use crate::error::{FieldError, Result};
 
@@ -49,9 +49,6 @@ const STEP_TOL: f64 = 1e-10;
 const STEP_RELTOL: f64 = 1e-9;
 const RESIDUAL_TOL: f64 = 1e-11;
 
-/// A device's law and the unknowns of its input and output (`None` for ground).
-type DeviceSlot<'a> = (Option<usize>, Option<usize>, &'a dyn Transconductor);
-
 /// What a Newton run needs that does not change between iterations.
 struct Problem<'a> {
     layout: &'a Layout,
@@ -69,23 +66,12 @@ impl Problem<'_> {
     /// Residual F(x) and Jacobian J(x) at source scale `scale` with `gmin` added to
     /// every node.
     fn evaluate(&self, x: &DVector<f64>, scale: f64, gmin: f64) -> (DVector<f64>, DMatrix<f64>) {
-        let mut jacobian = self.g.clone();
+        let mut a = self.g.clone();
         for i in 0..self.layout.nodes {
-            jacobian[(i, i)] += gmin;
+            a[(i, i)] += gmin;
         }
-        let mut residual = &jacobian * x - self.b * scale;
-        let at = |i: Option<usize>| i.map_or(0.0, |i| x[i]);
-        for &(input, output, law) in self.devices {
-            let s = law.evaluate(at(input), at(output), scale);
-            // The device pushes i_out into its output node: −i_out leaves it.
-            if let Some(o) = output {
-                residual[o] -= s.i_out;
-                if let Some(i) = input {
-                    jacobian[(o, i)] -= s.di_dvin;
-                }
-                jacobian[(o, o)] -= s.di_dvout;
-            }
-        }
+        let (mut residual, mut jacobian) = (DVector::zeros(x.len()), DMatrix::zeros(x.len(), x.len()));
+        evaluate_into(&a, &(self.b * scale), self.devices, x, scale, &mut residual, &mut jacobian);
         (residual, jacobian)
     }
 
@@ -150,14 +136,7 @@ impl<'a> DcSystem<'a> {
         let layout = Layout::new(netlist);
         let (g, _) = linear_stamps(netlist, &layout);
         let b = dc_sources(netlist, &layout, 1.0);
-        let devices = netlist
-            .elements()
-            .iter()
-            .filter_map(|e| match &e.element {
-                Element::Device { input, output, law } => Some((layout.index(*input), layout.index(*output), law.as_ref())),
-                _ => None,
-            })
-            .collect();
+        let devices = device_slots(netlist, &layout);
         Ok(DcSystem { netlist, layout, g, b, devices })
     }
 

@@ -13,7 +13,7 @@
 use nalgebra::{DMatrix, DVector};
 use num_complex::Complex64;
 
-use super::netlist::{DeviceState, Element, Netlist, Node};
+use super::netlist::{DeviceState, Element, Netlist, Node, Transconductor};
 
 /// A conductance from every node to ground, far below any real element, that keeps
 /// a node with devices switched off from leaving the DC Jacobian singular (the usual
@@ -179,6 +179,51 @@ pub fn stamp_devices(
             }
             add(jacobian, out, vin, -s.di_dvin);
             add(jacobian, out, out, -s.di_dvout);
+        }
+    }
+}
+
+/// A device's law and the unknowns of its input and output (`None` for ground).
+pub type DeviceSlot<'a> = (Option<usize>, Option<usize>, &'a dyn Transconductor);
+
+/// The devices of `netlist` with their unknowns, in element order.
+pub fn device_slots<'a>(netlist: &'a Netlist, layout: &Layout) -> Vec<DeviceSlot<'a>> {
+    netlist
+        .elements()
+        .iter()
+        .filter_map(|e| match &e.element {
+            Element::Device { input, output, law } => Some((layout.index(*input), layout.index(*output), law.as_ref())),
+            _ => None,
+        })
+        .collect()
+}
+
+/// The Newton kernel every nonlinear analysis shares: the imbalance
+/// F(x) = A·x − i_devices(x) − rhs of the system whose linear part is `a`, and its
+/// Jacobian, written into `residual` and `jacobian` (no allocation). The DC solve
+/// passes A = G (+ GMIN); the transient, G plus its integrator's multiple of C.
+pub fn evaluate_into(
+    a: &DMatrix<f64>,
+    rhs: &DVector<f64>,
+    devices: &[DeviceSlot],
+    x: &DVector<f64>,
+    supply_scale: f64,
+    residual: &mut DVector<f64>,
+    jacobian: &mut DMatrix<f64>,
+) {
+    jacobian.copy_from(a);
+    residual.copy_from(rhs);
+    residual.gemv(1.0, a, x, -1.0);
+    let at = |i: Option<usize>| i.map_or(0.0, |i| x[i]);
+    for &(input, output, law) in devices {
+        let s = law.evaluate(at(input), at(output), supply_scale);
+        // The device pushes i_out into its output node: −i_out leaves it.
+        if let Some(o) = output {
+            residual[o] -= s.i_out;
+            if let Some(i) = input {
+                jacobian[(o, i)] -= s.di_dvin;
+            }
+            jacobian[(o, o)] -= s.di_dvout;
         }
     }
 }

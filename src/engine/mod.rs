@@ -9,6 +9,7 @@ mod lu;
 mod mna;
 mod netlist;
 mod topology;
+mod transient;
 
 pub use ac::{check_finite, SmallSignal, Workspace};
 pub use lu::{ComplexLu, RealLu};
@@ -16,3 +17,4 @@ pub use dc::{operating_point, DcSystem, Method, OperatingPoint};
 pub use mna::{Layout, GMIN};
 pub use netlist::{DeviceState, Element, Named, Netlist, Node, Transconductor};
 pub use topology::{first_floating, PathKind};
+pub use transient::Transient;
