@@ -4,6 +4,7 @@ mod bias;
 mod fit;
 mod response;
 pub mod stability;
+pub mod swing;
 mod twoport;
 mod transfer;
 

@@ -1,0 +1,100 @@
+//! How big a signal the stage takes: the time-domain analysis on the same engine
+//! (SPEC §2) and the large-signal figures of SPEC §3.3 — harmonics and THD at the
+//! document's input level, output 1 dB compression and saturated power, two-tone
+//! OIP3 with its slope checked, the output swing against the rails — beside the
+//! power-series estimate from the quasi-static transfer curve.
+//!
+//! ```
+//! use halfrail::analysis::swing::{one_tone, TimeDomain};
+//! use halfrail::doc::{load, DEMO};
+//!
+//! let doc = load(DEMO).unwrap();
+//! let (part, stage) = doc.part_and_stage().unwrap();
+//! let stage_in_time = TimeDomain::new(&part, &stage).unwrap();
+//! // 20 mV peak of EMF at 10.7 MHz: the second harmonic is well below the carrier.
+//! let tone = one_tone(&stage_in_time, 0.02, 10.7e6, &mut |_| {}).unwrap();
+//! assert!(tone.hd2_dbc < -20.0);
+//! ```
+
+mod drive;
+mod figures;
+mod series;
+mod spectrum;
+mod wave;
+
+pub use drive::{available_dbm, emf_amplitude, emf_at, power_dbm, Record, Tone, SINGLE_CYCLES};
+pub use figures::{compression, intercept, one_tone, rail_level_dbm, Compression, Intercept, Level, ToneResult, TwoTone, COMPRESSION_LEVELS, SLOPE_TOLERANCE, THD_HARMONICS};
+pub use series::PowerSeries;
+pub use spectrum::amplitudes;
+pub use wave::{QuasiStatic, TimeDomain, Wave, Waveforms};
+
+use crate::error::{FieldError, Result};
+use crate::part::Part;
+use crate::stage::{Component, Components};
+
+/// The compression sweep runs from this far below the level that would drive the
+/// output to the rails (by the small-signal gain) …
+pub const SWEEP_BELOW_RAIL_DB: f64 = 25.0;
+/// … to this far above it.
+pub const SWEEP_ABOVE_RAIL_DB: f64 = 5.0;
+/// The intercept search starts this far below the input 1 dB point.
+pub const INTERCEPT_BELOW_P1DB_DB: f64 = 15.0;
+
+/// Everything the Swing panel and `analyze`'s `large` section show.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Large {
+    pub f_hz: f64,
+    pub input_dbm: f64,
+    /// The tone at `input_dbm`.
+    pub tone: ToneResult,
+    pub vdd: f64,
+    /// With a resistive load: the compression sweep and the intercept.
+    pub compression: Option<Compression>,
+    pub intercept: Option<Intercept>,
+    /// The power-series estimate and its figures at `input_dbm`.
+    pub series: PowerSeries,
+    pub series_hd_dbc: (f64, f64),
+    pub series_intercepts_dbm: Option<(f64, f64)>,
+}
+
+/// The large-signal analysis at `f_hz` and `input_dbm`; `progress` hears the
+/// fraction done.
+pub fn analyse(part: &Part, c: &Components, f_hz: f64, input_dbm: f64, progress: &mut dyn FnMut(f64)) -> Result<Large> {
+    let source_ohm = c.get(Component::SourceOhm).filter(|&r| r > 0.0).ok_or_else(|| {
+        FieldError::new("stage.source_ohm", "the large-signal levels are powers available from the source: fit a source resistance")
+    })?;
+    let load_ohm = c.get(Component::LoadOhm);
+    let time = TimeDomain::new(part, c)?;
+    let still = QuasiStatic::new(part, c)?;
+    let rail_dbm = rail_level_dbm(part.vdd, time.gain_to_last_stage(f_hz)?, source_ohm);
+
+    let amplitude = emf_amplitude(input_dbm, source_ohm);
+    let tone = one_tone(&time, amplitude, f_hz, &mut |p| progress(0.05 * p))?;
+    let (compression, intercept) = match load_ohm {
+        Some(rl) => {
+            let sweep = compression(&time, f_hz, rail_dbm - SWEEP_BELOW_RAIL_DB, rail_dbm + SWEEP_ABOVE_RAIL_DB, source_ohm, rl, &mut |p| progress(0.05 + 0.45 * p))?;
+            let start = sweep.ip1db_dbm.unwrap_or(rail_dbm) - INTERCEPT_BELOW_P1DB_DB;
+            let mut done = 0.0;
+            let ip3 = intercept(&time, f_hz, start, source_ohm, rl, &mut |p| {
+                done = (done + p / 8.0).min(1.0);
+                progress(0.5 + 0.5 * done)
+            })?;
+            (Some(sweep), Some(ip3))
+        }
+        None => (None, None),
+    };
+    let span = emf_amplitude(rail_dbm, source_ohm) / 4.0;
+    let series = PowerSeries::of(&still, span)?;
+    progress(1.0);
+    Ok(Large {
+        f_hz,
+        input_dbm,
+        series_hd_dbc: series.hd_dbc(amplitude),
+        series_intercepts_dbm: load_ohm.map(|rl| series.intercepts_dbm(source_ohm, rl)),
+        tone,
+        vdd: part.vdd,
+        compression,
+        intercept,
+        series,
+    })
+}

@@ -1,0 +1,159 @@
+//! Waveforms of the stage driven by tones: by the transient on the stage's own
+//! netlist (`TimeDomain`), or quasi-statically (`QuasiStatic`: a DC solve at each
+//! instant with the coupling capacitors held at their operating-point voltages,
+//! every other capacitance open) — the memoryless limit the time domain must reach
+//! at low frequency, and the source of the power-series estimate.
+
+use nalgebra::DVector;
+
+use super::drive::{emf_at, Record, Tone};
+use crate::engine::{operating_point, DcSystem, Element, Netlist, Node, OperatingPoint, SmallSignal, Transient};
+use crate::error::{FieldError, Result};
+use crate::part::Part;
+use crate::stage::{build, Component, Components, StageCircuit};
+
+/// The sampled record: time, v(out) at the load, v(in), and the last inverter's
+/// output (what runs into the rails).
+#[derive(Debug, Clone, PartialEq, Default)]
+pub struct Wave {
+    pub t_s: Vec<f64>,
+    pub out: Vec<f64>,
+    pub input: Vec<f64>,
+    pub last_stage: Vec<f64>,
+}
+
+impl Wave {
+    fn with_capacity(n: usize) -> Self {
+        Wave { t_s: Vec::with_capacity(n), out: Vec::with_capacity(n), input: Vec::with_capacity(n), last_stage: Vec::with_capacity(n) }
+    }
+
+    fn push(&mut self, t: f64, at: impl Fn(Node) -> f64, nodes: &crate::stage::StageNodes) {
+        self.t_s.push(t);
+        self.out.push(at(nodes.output));
+        self.input.push(at(nodes.input));
+        self.last_stage.push(at(*nodes.outputs.last().expect("a part has a stage")));
+    }
+}
+
+/// Something that turns tones into a record: the two ways below.
+pub trait Waveforms {
+    /// The record of v(out) and friends for `tones` on `record`; `progress` hears
+    /// the fraction done now and then.
+    fn run(&self, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave>;
+}
+
+/// The stage in the time domain.
+pub struct TimeDomain {
+    circuit: StageCircuit,
+    op: OperatingPoint,
+    small: SmallSignal,
+}
+
+impl TimeDomain {
+    pub fn new(part: &Part, c: &Components) -> Result<Self> {
+        let law = part.law()?;
+        let circuit = build(part, &law, c)?;
+        let op = operating_point(&circuit.netlist, None)?;
+        let small = SmallSignal::at(&circuit.netlist, &op)?;
+        Ok(TimeDomain { circuit, op, small })
+    }
+}
+
+impl TimeDomain {
+    /// |v(last inverter output)| per volt of EMF at `f_hz`, small-signal.
+    pub fn gain_to_last_stage(&self, f_hz: f64) -> Result<f64> {
+        let x = self.small.solve(std::f64::consts::TAU * f_hz)?;
+        Ok(self.small.layout.voltage(&x, *self.circuit.nodes.outputs.last().expect("a part has a stage")).norm())
+    }
+}
+
+/// How often a run reports progress, in steps.
+const PROGRESS_EVERY: usize = 1024;
+
+impl Waveforms for TimeDomain {
+    fn run(&self, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave> {
+        // Start on the linearised steady state of the tones (each a cosine from
+        // t = 0): the coupling capacitors are then already charged as the signal
+        // wants, and only the nonlinearity and the integrator have to settle.
+        let mut x0 = self.op.x.clone();
+        for tone in tones {
+            let phasor = self.small.solve(std::f64::consts::TAU * tone.f_hz)?;
+            x0 += phasor.map(|v| v.re * tone.amplitude);
+        }
+        let transient = Transient::new(&self.circuit.netlist, self.circuit.source)?;
+        let total = record.warmup + record.samples;
+        let mut wave = Wave::with_capacity(record.samples);
+        let nodes = &self.circuit.nodes;
+        let t0 = record.warmup as f64 * record.step_s();
+        transient.run(&x0, record.step_s(), total, |t| emf_at(tones, t), |k, t, x: &DVector<f64>| {
+            if k > record.warmup {
+                wave.push(t - t0, |n| transient.layout.voltage(x, n), nodes);
+            }
+            if k % PROGRESS_EVERY == 0 {
+                progress(k as f64 / total as f64);
+            }
+            true
+        })?;
+        Ok(wave)
+    }
+}
+
+/// The stage as a memoryless network: coupling capacitors replaced by sources at
+/// their operating-point voltages, the rest of the capacitance left out (DC).
+pub struct QuasiStatic {
+    netlist: Netlist,
+    source: usize,
+    nodes: crate::stage::StageNodes,
+    op: OperatingPoint,
+}
+
+impl QuasiStatic {
+    pub fn new(part: &Part, c: &Components) -> Result<Self> {
+        let law = part.law()?;
+        let circuit = build(part, &law, c)?;
+        let op = operating_point(&circuit.netlist, None)?;
+        let mut netlist = circuit.netlist.clone();
+        for coupling in [Component::CInF, Component::COutF] {
+            if let Some(i) = netlist.element_index(coupling.key()) {
+                if let Element::Capacitor { a, b, .. } = netlist.elements()[i].element {
+                    netlist.replace(i, Element::VoltageSource { a, b, dc: op.voltage(a) - op.voltage(b), ac: 0.0 });
+                }
+            }
+        }
+        let op = operating_point(&netlist, Some(&op.x))?;
+        Ok(QuasiStatic { netlist, source: circuit.source, nodes: circuit.nodes, op })
+    }
+
+    /// v(out) against a DC EMF `e` (the closed-loop transfer at the held bias).
+    pub fn transfer(&self, emfs: &[f64]) -> Result<Vec<f64>> {
+        let mut system = DcSystem::new(&self.netlist)?;
+        let mut guess = self.op.x.clone();
+        emfs.iter()
+            .map(|&e| {
+                system.set_voltage(self.source, e);
+                let op = system.solve(Some(&guess))?;
+                guess = op.x.clone();
+                Ok(op.voltage(self.nodes.output))
+            })
+            .collect()
+    }
+}
+
+impl Waveforms for QuasiStatic {
+    fn run(&self, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave> {
+        let mut system = DcSystem::new(&self.netlist)?;
+        let mut guess = self.op.x.clone();
+        let mut wave = Wave::with_capacity(record.samples);
+        for k in 0..record.samples {
+            let t = k as f64 * record.step_s();
+            system.set_voltage(self.source, emf_at(tones, t));
+            let op = system.solve(Some(&guess)).map_err(|e| FieldError::new(e.field, format!("{} (quasi-static, t = {t:.4e} s)", e.reason)))?;
+            wave.push(t, |n| op.voltage(n), &self.nodes);
+            guess = op.x;
+            if (k + 1) % PROGRESS_EVERY == 0 {
+                progress((k + 1) as f64 / record.samples as f64);
+            }
+        }
+        Ok(wave)
+    }
+}
