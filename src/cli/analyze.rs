@@ -1,13 +1,13 @@
-//! `halfrail analyze FILE` (the SPEC §4 sections computed so far: `bias`, and `ac`
-//! and `loop` — with the compensation helper's answers — when the document has an
-//! `analysis` section), `halfrail sweep FILE --csv` and
+//! `halfrail analyze FILE` (the SPEC §4 sections: `bias`, and `ac`, `loop` — with
+//! the compensation helper's answers — and `large` when the document has an
+//! `analysis` section), `halfrail sweep FILE --csv`, `halfrail wave FILE --csv` and
 //! `halfrail touchstone FILE`.
 
 use std::path::PathBuf;
 
 use halfrail::analysis::{bare_curve, BARE_POINTS};
-use halfrail::doc::{to_json, AcReport, AnalyzeReport, BiasReport, LoopSummary};
-use halfrail::report::{sweep_csv, touchstone};
+use halfrail::doc::{to_json, AcReport, AnalyzeReport, BiasReport, LargeSummary, LoopSummary};
+use halfrail::report::{sweep_csv, touchstone, wave_csv};
 
 use super::{read_document, Failure};
 
@@ -31,13 +31,14 @@ pub fn run(args: Args) -> Result<String, Failure> {
     let bias = document.bias()?;
     let curve = bare_curve(&document.part_and_stage()?.0, BARE_POINTS)?;
     let small_signal = match document.analysis {
-        Some(_) => Some((document.stability()?, document.compensation()?)),
+        Some(_) => Some((document.stability()?, document.compensation()?, document.large(&mut |_| {})?)),
         None => None,
     };
     let report = AnalyzeReport {
         bias: BiasReport { bias: &bias, curve: &curve },
-        ac: small_signal.as_ref().map(|((response, _), _)| AcReport(response)),
-        stability: small_signal.as_ref().map(|((_, stability), suggestions)| LoopSummary(stability, Some(suggestions))),
+        ac: small_signal.as_ref().map(|((response, _), _, _)| AcReport(response)),
+        stability: small_signal.as_ref().map(|((_, stability), suggestions, _)| LoopSummary(stability, Some(suggestions))),
+        large: small_signal.as_ref().map(|(_, _, large)| LargeSummary(large)),
     };
     Ok(format!("{}\n", to_json(&report)))
 }
@@ -55,4 +56,12 @@ pub fn run_touchstone(args: Args) -> Result<String, Failure> {
     let response = document.response()?;
     let z0 = document.analysis.as_ref().map_or(50.0, |a| a.z0_ohm);
     Ok(touchstone(&response, z0, document.title.as_deref().unwrap_or("")))
+}
+
+pub fn run_wave(args: SweepArgs) -> Result<String, Failure> {
+    if !args.csv {
+        return Err(Failure::Usage("wave: give --csv (the only format so far)".into()));
+    }
+    let document = read_document(&args.file)?;
+    Ok(wave_csv(&document.wave()?))
 }

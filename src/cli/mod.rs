@@ -48,6 +48,8 @@ enum Verb {
     Analyze(analyze::Args),
     /// The small-signal sweep of a design, one row per frequency.
     Sweep(analyze::SweepArgs),
+    /// The steady-state waveform of one tone at f_design and the input level, as CSV.
+    Wave(analyze::SweepArgs),
     /// The stage's S-parameters as a Touchstone 1.1 two-port file.
     Touchstone(analyze::Args),
     /// Fit the part to the bench readings of a document.
@@ -69,6 +71,7 @@ pub fn run(args: impl IntoIterator<Item = OsString>) -> Result<String, Failure> 
         Verb::Check(args) => check::run(args),
         Verb::Analyze(args) => analyze::run(args),
         Verb::Sweep(args) => analyze::run_sweep(args),
+        Verb::Wave(args) => analyze::run_wave(args),
         Verb::Touchstone(args) => analyze::run_touchstone(args),
         Verb::Fit(args) => fit::run(args),
     }

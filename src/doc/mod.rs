@@ -5,9 +5,11 @@
 #[macro_use]
 mod serialize;
 mod loop_report;
+mod swing_report;
 mod quantity;
 mod sections;
 pub use loop_report::{LoopReport, LoopSummary, SuggestionOut};
+pub use swing_report::{LargeSummary, SwingReport};
 pub use serialize::{AcReport, AnalyzeReport, BiasReport, PartReport, ResponseReport, DocumentSummary, LookupReport, NearestReport, SeriesFacts, ValueInUnit};
 mod validate;
 
@@ -106,6 +108,11 @@ impl Analysis {
         crate::analysis::stability::compensate(part, stage, self.f_design_hz, (self.f_start_hz, self.f_stop_hz), self.z0_ohm, wanted, series)
     }
 
+    /// The large-signal analysis at f_design and `input_dbm`.
+    pub fn large(&self, part: &crate::part::Part, stage: &crate::stage::Components, progress: &mut dyn FnMut(f64)) -> Result<crate::analysis::swing::Large> {
+        crate::analysis::swing::analyse(part, stage, self.f_design_hz, self.input_dbm, progress)
+    }
+
     /// The stage's response as this section asks for it.
     pub fn response(&self, part: &crate::part::Part, stage: &crate::stage::Components) -> Result<crate::analysis::Response> {
         crate::analysis::response(part, stage, self.f_design_hz, &self.frequencies(), self.z0_ohm, self.noise_band())
@@ -159,6 +166,24 @@ impl Document {
         let (part, stage) = self.part_and_stage()?;
         let series = self.target.as_ref().map_or(crate::values::Series::E24, |t| t.series);
         self.sweep()?.compensation(&part, &stage, self.wanted_margin_deg(), series)
+    }
+
+    /// The large-signal analysis over the `analysis` section's f_design and level.
+    pub fn large(&self, progress: &mut dyn FnMut(f64)) -> Result<crate::analysis::swing::Large> {
+        let (part, stage) = self.part_and_stage()?;
+        self.sweep()?.large(&part, &stage, progress)
+    }
+
+    /// The steady-state waveform of one tone at f_design and `input_dbm`.
+    pub fn wave(&self) -> Result<crate::analysis::swing::Wave> {
+        let (part, stage) = self.part_and_stage()?;
+        let analysis = self.sweep()?;
+        let source = stage.get(crate::stage::Component::SourceOhm).filter(|&r| r > 0.0).ok_or_else(|| {
+            FieldError::new("stage.source_ohm", "the input level is a power available from the source: fit a source resistance")
+        })?;
+        let time = crate::analysis::swing::TimeDomain::new(&part, &stage)?;
+        let amplitude = crate::analysis::swing::emf_amplitude(analysis.input_dbm, source);
+        Ok(crate::analysis::swing::one_tone(&time, amplitude, analysis.f_design_hz, &mut |_| {})?.wave)
     }
 
     /// The part fitted to the `bench` readings, starting from the document's part.

@@ -235,19 +235,21 @@ impl Serialize for BiasReport<'_> {
 }
 
 /// What `halfrail analyze` prints: one section per analysis computed so far
-/// (`ac` and `loop` when the document has an `analysis` section).
+/// (`ac`, `loop` and `large` when the document has an `analysis` section).
 pub struct AnalyzeReport<'a> {
     pub bias: BiasReport<'a>,
     pub ac: Option<AcReport<'a>>,
     pub stability: Option<super::LoopSummary<'a>>,
+    pub large: Option<super::LargeSummary<'a>>,
 }
 
 impl Serialize for AnalyzeReport<'_> {
     fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let mut out = serializer.serialize_struct("AnalyzeReport", 3)?;
+        let mut out = serializer.serialize_struct("AnalyzeReport", 4)?;
         out.serialize_field("bias", &self.bias)?;
         out.serialize_field("ac", &self.ac)?;
         out.serialize_field("loop", &self.stability)?;
+        out.serialize_field("large", &self.large)?;
         out.end()
     }
 }

@@ -21,8 +21,8 @@ const MAX_STEP_V: f64 = 0.5;
 const MAX_ITERATIONS: usize = 60;
 /// Converged when no unknown moved by more than this (plus a relative part) and no
 /// KCL row is out of balance by more than `RESIDUAL_TOL` amperes.
-const STEP_TOL: f64 = 1e-9;
-const STEP_RELTOL: f64 = 1e-7;
+const STEP_TOL: f64 = 1e-12;
+const STEP_RELTOL: f64 = 1e-10;
 const RESIDUAL_TOL: f64 = 1e-10;
 
 /// A circuit prepared for time-domain runs with one voltage source driven.

@@ -1,11 +1,13 @@
-//! Text exports of computed results: the sweep as CSV and the two-port as a
-//! Touchstone file. (JSON output belongs to `doc`.)
+//! Text exports of computed results: the sweep and a waveform as CSV, and the
+//! two-port as a Touchstone file. (JSON output belongs to `doc`.)
 
 mod sweep_csv;
 mod touchstone;
+mod wave_csv;
 
 pub use sweep_csv::sweep_csv;
 pub use touchstone::touchstone;
+pub use wave_csv::wave_csv;
 
 /// A number for a data file: full precision, or an empty field when absent.
 fn cell(value: Option<f64>) -> String {

@@ -55,7 +55,15 @@ pub struct Large {
     pub series: PowerSeries,
     pub series_hd_dbc: (f64, f64),
     pub series_intercepts_dbm: Option<(f64, f64)>,
+    /// The quasi-static transfer curve: v(out) against a DC EMF over ±1.5 times the
+    /// EMF that reaches the rails, for drawing the signal's excursion on.
+    pub transfer: (Vec<f64>, Vec<f64>),
+    /// Peak EMF of the tone at `input_dbm`.
+    pub amplitude: f64,
 }
+
+/// Points of the transfer curve.
+pub const TRANSFER_POINTS: usize = 201;
 
 /// The large-signal analysis at `f_hz` and `input_dbm`; `progress` hears the
 /// fraction done.
@@ -85,6 +93,7 @@ pub fn analyse(part: &Part, c: &Components, f_hz: f64, input_dbm: f64, progress:
     };
     let span = emf_amplitude(rail_dbm, source_ohm) / 4.0;
     let series = PowerSeries::of(&still, span)?;
+    let transfer = still.transfer_curve(6.0 * span, TRANSFER_POINTS)?;
     progress(1.0);
     Ok(Large {
         f_hz,
@@ -96,5 +105,7 @@ pub fn analyse(part: &Part, c: &Components, f_hz: f64, input_dbm: f64, progress:
         compression,
         intercept,
         series,
+        transfer,
+        amplitude,
     })
 }

@@ -139,6 +139,21 @@ impl QuasiStatic {
     }
 }
 
+impl QuasiStatic {
+    /// The transfer over ±`reach` volts of EMF at `points` (odd) equal steps, each
+    /// half swept outward from the operating point so every solve starts next to
+    /// its answer. Returns (EMF, v(out)).
+    pub fn transfer_curve(&self, reach: f64, points: usize) -> Result<(Vec<f64>, Vec<f64>)> {
+        let half = points / 2;
+        let up: Vec<f64> = (0..=half).map(|k| reach * k as f64 / half as f64).collect();
+        let down: Vec<f64> = up.iter().map(|e| -e).collect();
+        let (v_up, v_down) = (self.transfer(&up)?, self.transfer(&down)?);
+        let emf = down.iter().rev().chain(&up[1..]).copied().collect();
+        let out = v_down.iter().rev().chain(&v_up[1..]).copied().collect();
+        Ok((emf, out))
+    }
+}
+
 impl Waveforms for QuasiStatic {
     fn run(&self, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave> {
         let mut system = DcSystem::new(&self.netlist)?;
