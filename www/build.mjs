@@ -20,6 +20,7 @@ const SCRIPTS = [
   'js/panels/stage.js',
   'js/panels/response.js',
   'js/panels/bench.js',
+  'js/panels/loop.js',
   'js/panels/planned.js',
   'js/shell.js',
 ];

@@ -22,15 +22,16 @@ HR.plot = (() => {
     size: 56,
   });
 
-  // create(container, {title, x: {label, unit}, y: {label, unit}, series: [{label, unit}],
+  // create(container, {title, x: {label, unit}, y: {label, unit, range}, series: [{label, unit}],
   //   logX, height, decorate(u, ctx)}) → {setData([xs, ...ys]), node}
+  // `y.range(u, dataMin, dataMax)` → [min, max] sets the y range (uPlot's own scale option).
   const create = (container, spec) => {
     const wrap = el('figure', { class: 'plot' }, el('figcaption', {}, spec.title));
     container.append(wrap);
     const opts = {
       width: Math.max(320, wrap.clientWidth || 560),
       height: spec.height || 300,
-      scales: { x: spec.logX ? { time: false, distr: 3, log: 10 } : { time: false }, y: {} },
+      scales: { x: spec.logX ? { time: false, distr: 3, log: 10 } : { time: false }, y: spec.y.range ? { range: spec.y.range } : {} },
       axes: [axis(spec.x.label, spec.x.unit, spec.logX), axis(spec.y.label, spec.y.unit)],
       cursor: {
         drag: { x: true, y: true },
@@ -128,6 +129,17 @@ HR.plot = (() => {
     ctx.restore();
   };
 
+  // Text with a halo of the surface colour, so a label reads over grid lines and curves.
+  const halo = (ctx, text, x, y) => {
+    ctx.save();
+    ctx.setLineDash([]);
+    ctx.lineWidth = 3 * devicePixelRatio;
+    ctx.strokeStyle = css('--surface');
+    ctx.strokeText(text, x, y);
+    ctx.restore();
+    ctx.fillText(text, x, y);
+  };
+
   // A labelled vertical line at x (a design frequency, a band edge).
   const vline = (u, ctx, x, colour, label, row = 0) => {
     if (x === null || x === undefined || x < u.scales.x.min || x > u.scales.x.max) return;
@@ -142,9 +154,29 @@ HR.plot = (() => {
     ctx.lineTo(px, u.bbox.top + u.bbox.height);
     ctx.stroke();
     ctx.font = `${12 * devicePixelRatio}px sans-serif`;
-    ctx.fillText(label, px + 4, u.bbox.top + (14 + 14 * row) * devicePixelRatio);
+    halo(ctx, label, px + 4, u.bbox.top + (14 + 14 * row) * devicePixelRatio);
     ctx.restore();
   };
 
-  return { create, band, marker, vline, css };
+  // A labelled horizontal line at y (a reference level: 0 dB, −180°, μ = 1), labelled
+  // at the `side` ('left' or 'right') of the plot.
+  const hline = (u, ctx, y, colour, label, side = 'right') => {
+    if (y === null || y === undefined || y < u.scales.y.min || y > u.scales.y.max) return;
+    const py = u.valToPos(y, 'y', true);
+    ctx.save();
+    ctx.strokeStyle = colour;
+    ctx.fillStyle = colour;
+    ctx.setLineDash([2, 3]);
+    ctx.lineWidth = 1.5;
+    ctx.beginPath();
+    ctx.moveTo(u.bbox.left, py);
+    ctx.lineTo(u.bbox.left + u.bbox.width, py);
+    ctx.stroke();
+    ctx.font = `${12 * devicePixelRatio}px sans-serif`;
+    ctx.textAlign = side;
+    halo(ctx, label, side === 'left' ? u.bbox.left + 4 * devicePixelRatio : u.bbox.left + u.bbox.width - 4 * devicePixelRatio, py - 4 * devicePixelRatio);
+    ctx.restore();
+  };
+
+  return { create, band, marker, vline, hline, css };
 })();
