@@ -216,6 +216,26 @@ pub fn loop_report(text: &str) -> Result<JsValue, JsValue> {
     })
 }
 
+/// The Swing panel's figures: the large-signal analysis at f_design and the
+/// document's input level. Long (hundreds of milliseconds): the page runs it in a
+/// worker, and `progress` is called with the fraction done now and then.
+#[wasm_bindgen(js_name = swingReport)]
+pub fn swing_report(text: &str, progress: &js_sys::Function) -> Result<JsValue, JsValue> {
+    let document = doc::load(text).map_err(thrown)?;
+    let large = document
+        .large(&mut |p| {
+            let _ = progress.call1(&JsValue::NULL, &JsValue::from_f64(p));
+        })
+        .map_err(thrown)?;
+    to_js(&doc::SwingReport(&large))
+}
+
+/// The steady-state waveform as CSV (the same as `halfrail wave --csv`).
+#[wasm_bindgen(js_name = waveCsv)]
+pub fn wave_csv(text: &str) -> Result<String, JsValue> {
+    Ok(crate::report::wave_csv(&doc::load(text).and_then(|d| d.wave()).map_err(thrown)?))
+}
+
 /// The operating point alone (no curves): for the Stage panel's figures.
 #[wasm_bindgen(js_name = biasOf)]
 pub fn bias_of(text: &str) -> Result<JsValue, JsValue> {
@@ -231,14 +251,35 @@ pub fn sweep_csv(text: &str) -> Result<String, JsValue> {
 
 /// One of the document's analyses computed and only its size returned: the
 /// benchmark's measure of the core alone, without the cost of handing the
-/// figures to JavaScript. `what`: "response" or "stability".
+/// figures to JavaScript. `what`: "response", "stability", "two-tone" (one
+/// two-tone record of 2^14 samples at f_design) or "compression" (the 20-level sweep).
 #[wasm_bindgen(js_name = benchCore)]
 pub fn bench_core(text: &str, what: &str) -> Result<usize, JsValue> {
     let document = doc::load(text).map_err(thrown)?;
     let points = match what {
         "response" => document.response().map(|r| r.points.len()),
         "stability" => document.stability().map(|(_, l)| l.t.len()),
+        "two-tone" | "compression" => bench_swing(&document, what),
         _ => return Err(thrown(FieldError::new("what", format!("`{what}` is not a benchmarked analysis")))),
     };
     points.map_err(thrown)
+}
+
+/// One two-tone record or one compression sweep of the document's stage.
+fn bench_swing(document: &doc::Document, what: &str) -> crate::error::Result<usize> {
+    use crate::analysis::swing::{compression, emf_amplitude, rail_level_dbm, Record, TimeDomain, Tone, Waveforms};
+    let (part, stage) = document.part_and_stage()?;
+    let f = document.sweep()?.f_design_hz;
+    let time = TimeDomain::new(&part, &stage)?;
+    let rs = stage.get(crate::stage::Component::SourceOhm).unwrap_or(50.0);
+    if what == "two-tone" {
+        let record = Record::two_tone(f);
+        let a = emf_amplitude(-20.0, rs);
+        let tones = [Tone { amplitude: a, f_hz: 99.0 * record.resolution_hz }, Tone { amplitude: a, f_hz: 101.0 * record.resolution_hz }];
+        Ok(time.run(&tones, &record, &mut |_| {})?.out.len())
+    } else {
+        let rail = rail_level_dbm(part.vdd, time.gain_to_last_stage(f)?, rs);
+        let rl = stage.get(crate::stage::Component::LoadOhm).unwrap_or(1e3);
+        Ok(compression(&time, f, rail - 25.0, rail + 5.0, rs, rl, &mut |_| {})?.levels.len())
+    }
 }
