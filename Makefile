@@ -55,14 +55,14 @@ setup-rust:
 	  echo "installing wasm-bindgen-cli $(WASM_BINDGEN_VERSION) (a few minutes)"; \
 	  cargo install wasm-bindgen-cli --version $(WASM_BINDGEN_VERSION); fi
 
-# The page's npm inputs, pinned in www/package-lock.json: uPlot, xz-decompress, and
+# The page's npm inputs, pinned in www/package-lock.json: uPlot, xz-decompress, terser, and
 # wasm-opt (Debian's binaryen 108 breaks the externref table that wasm-bindgen 0.2.13x
 # emits); and the xz command that packs the wasm.
 setup-build-tools:
 	@command -v node >/dev/null || { $(APT) update -qq && $(APT) install -y -qq nodejs npm; }
 	@command -v xz >/dev/null || { $(APT) update -qq && $(APT) install -y -qq xz-utils; }
 	@[ -x www/node_modules/.bin/wasm-opt ] && [ -f www/node_modules/uplot/dist/uPlot.iife.min.js ] && \
-	  [ -f www/node_modules/xz-decompress/dist/package/xz-decompress.min.js ] || (cd www && npm ci --no-audit --no-fund)
+	  [ -f www/node_modules/xz-decompress/dist/package/xz-decompress.min.js ] && [ -d www/node_modules/terser ] || (cd www && npm ci --no-audit --no-fund)
 
 setup-node: setup-build-tools
 	@[ -d wasm-tests/node_modules/playwright-core ] || (cd wasm-tests && npm ci --no-audit --no-fund)

@@ -4,6 +4,7 @@
 import fs from 'fs';
 import path from 'path';
 import { execFileSync } from 'child_process';
+import { minify } from 'terser';
 import { fileURLToPath } from 'url';
 
 const here = path.dirname(fileURLToPath(import.meta.url));
@@ -34,19 +35,23 @@ const read = (p) => fs.readFileSync(p, 'utf8');
 // Inline scripts must not contain a closing script tag.
 const scriptSafe = (text) => text.replace(/<\/script/gi, '<\\/script');
 
+// The app's own scripts and the glue, minified (terser): a tenth of the page's
+// gzip size, which the page has little of to spare. The vendor files come minified.
+const squeeze = async (code) => (await minify(code, { compress: true, mangle: true, format: { comments: false } })).code;
 const glue = read(path.join(bindgenDir, 'halfrail.js'));
+const glueMin = await squeeze(glue);
 const wasm = fs.readFileSync(path.join(bindgenDir, 'halfrail_bg.opt.wasm'));
 // xz (LZMA2) packs the module about a fifth smaller than gzip -9, which is what
 // keeps the page's gzip size in budget; the CRC32 check is one xz-embedded reads.
 const packed = execFileSync('xz', ['--format=xz', '--check=crc32', '-9e', '--stdout'], { input: wasm, maxBuffer: 1 << 26 });
 const vendor = [VENDOR_NOTICE, ...VENDOR_SCRIPTS.map((s) => read(path.join(here, s)))].join('\n');
-const app = [vendor, ...SCRIPTS.map((s) => `// ---- ${s}\n${read(path.join(here, s))}`)].join('\n');
+const app = [vendor, await squeeze(SCRIPTS.map((s) => read(path.join(here, s))).join('\n'))].join('\n');
 const css = [...VENDOR_STYLES, ...STYLES].map((s) => read(path.join(here, s))).join('\n');
 const version = (read(path.join(here, '..', 'Cargo.toml')).match(/^version = "([^"]+)"/m) || [])[1] || '0';
 
 const html = read(path.join(here, 'index.html'))
   .replace('/*@STYLE@*/', () => css)
-  .replace('/*@GLUE@*/', () => scriptSafe(glue))
+  .replace('/*@GLUE@*/', () => scriptSafe(glueMin))
   .replace('/*@APP@*/', () => scriptSafe(app))
   .replace('@WASM@', () => packed.toString('base64'))
   .replace(/@VERSION@/g, () => version);

@@ -222,7 +222,7 @@ fn block(at: &str, b: &Block) -> Result<()> {
         ("dc_w", b.dc_w),
     ];
     let (required, allowed) = block_fields(b.kind);
-    let kind_name = format!("{:?}", b.kind).to_lowercase();
+    let kind_name = format!("{:?}", b.kind).to_ascii_lowercase();
     for (key, value) in present {
         let known = required.contains(&key) || allowed.contains(&key);
         match (known, value) {

@@ -128,7 +128,7 @@ impl Unit {
             let lower = text.to_ascii_lowercase();
             Unit::ALL
                 .into_iter()
-                .filter(|u| u.spellings().iter().any(|s| s.to_lowercase() == lower))
+                .filter(|u| u.spellings().iter().any(|s| s.to_ascii_lowercase() == lower))
                 .fold(None, |found, u| match found {
                     None => Some(Some(u)),
                     Some(_) => Some(None), // two units share this lower-case spelling
