@@ -51,3 +51,31 @@ fn an_undriven_stage_stays_at_its_operating_point() {
     .unwrap();
     assert!(drift < 1e-7, "drift {drift} V");
 }
+
+#[test]
+fn a_buffered_stage_under_resistive_feedback_oscillates_in_the_time_domain() {
+    // The loop analysis calls the three-stage part in the demo stage unstable; the
+    // nonlinear transient, kicked by a small step, must show the oscillation grow
+    // until the rails limit it (the small-signal poles cannot say where it stops).
+    use halfrail::analysis::swing::TimeDomain;
+    let doc = load(DEMO).unwrap();
+    let (_, stage) = doc.part_and_stage().unwrap();
+    let part = halfrail::part::preset("buffered-5v").unwrap().part.clone();
+    let time = TimeDomain::new(&part, &stage).unwrap();
+    // 1 mV step, 2 µs at 0.1 ns steps: about 160 cycles at the ~82 MHz of the poles.
+    let wave = time.step(1e-3, 2e-6, 20_000).unwrap();
+    let n = wave.last_stage.len();
+    let span = |range: std::ops::Range<usize>| {
+        let part = &wave.last_stage[range];
+        part.iter().copied().fold(f64::NEG_INFINITY, f64::max) - part.iter().copied().fold(f64::INFINITY, f64::min)
+    };
+    // The first 5 ns (growth e-folds in about 5 ns) against the last 200 ns.
+    let (early, late) = (span(0..50), span(n - n / 10..n));
+    assert!(late > 100.0 * early && late > 2.5, "swing early {early} V, late {late} V (of 5 V)");
+    // A stable one-stage stage, kicked the same way, settles instead.
+    let (part, stage) = doc.part_and_stage().unwrap();
+    let wave = TimeDomain::new(&part, &stage).unwrap().step(1e-3, 2e-6, 20_000).unwrap();
+    let tail = &wave.last_stage[wave.last_stage.len() - 2000..];
+    let ripple = tail.iter().copied().fold(f64::NEG_INFINITY, f64::max) - tail.iter().copied().fold(f64::INFINITY, f64::min);
+    assert!(ripple < 1e-4, "the demo stage settles: ripple {ripple} V");
+}

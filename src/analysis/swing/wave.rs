@@ -67,6 +67,21 @@ impl TimeDomain {
     }
 }
 
+impl TimeDomain {
+    /// The stage's large-signal response to a step of `amplitude` volts of EMF at
+    /// t = 0⁺, from the operating point, over `steps` steps of `t_end/steps`.
+    pub fn step(&self, amplitude: f64, t_end: f64, steps: usize) -> Result<Wave> {
+        let transient = Transient::new(&self.circuit.netlist, self.circuit.source)?;
+        let mut wave = Wave::with_capacity(steps);
+        let nodes = &self.circuit.nodes;
+        transient.run(&self.op.x, t_end / steps as f64, steps, |_| amplitude, |_, t, x: &DVector<f64>| {
+            wave.push(t, |n| transient.layout.voltage(x, n), nodes);
+            true
+        })?;
+        Ok(wave)
+    }
+}
+
 /// How often a run reports progress, in steps.
 const PROGRESS_EVERY: usize = 1024;
 
