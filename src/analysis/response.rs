@@ -47,6 +47,8 @@ pub struct Point {
     pub noise_source_v2: f64,
     /// v(out) per volt of source EMF (for referring noise to the input).
     pub emf_gain: Complex64,
+    /// The loop gain: Bode's return ratio of stage 1 (see `LoopBreak`).
+    pub loop_gain: Option<Complex64>,
 }
 
 impl Point {
@@ -84,6 +86,40 @@ impl Point {
     }
 }
 
+/// Where the loop is broken for Bode's return ratio (SPEC §3.3): stage 1's
+/// transconductance, the engine's stamp −∂i/∂v_in = `delta`… at (output, control).
+///
+/// Removing it is a rank-one change of the circuit's matrix A, so by the
+/// Sherman–Morrison formula the return ratio comes from the closed loop's own
+/// factors: with z = [A⁻¹·e_output]_control (the transimpedance from the device's
+/// output to its input, source EMF zeroed), T = −δ·z/(1 + δ·z), δ = ∂i_out/∂v_in.
+/// One more triangular solve per frequency instead of a second factorisation.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct LoopBreak {
+    pub control: Node,
+    pub output: Node,
+    /// ∂i_out/∂v_in of stage 1 at the operating point (−gm).
+    pub delta: f64,
+}
+
+/// The name the stage builder gives the first inverter.
+const FIRST_STAGE: &str = "stage 1";
+
+impl LoopBreak {
+    fn of(circuit: &StageCircuit, op: &OperatingPoint) -> Option<Self> {
+        let k = circuit.netlist.element_index(FIRST_STAGE)?;
+        match (&circuit.netlist.elements()[k].element, &op.devices[k]) {
+            (Element::Device { input, output, .. }, Some(state)) => Some(LoopBreak { control: *input, output: *output, delta: state.di_dvin }),
+            _ => None,
+        }
+    }
+
+    /// T from z = [A⁻¹·e_output]_control.
+    pub fn return_ratio(&self, z: Complex64) -> Complex64 {
+        -self.delta * z / (1.0 + self.delta * z)
+    }
+}
+
 /// The stage prepared for small-signal work at its operating point.
 pub struct Linearised {
     circuit: StageCircuit,
@@ -95,6 +131,8 @@ pub struct Linearised {
     /// Buffers reused from one frequency to the next.
     work: RefCell<Workspace>,
     op: OperatingPoint,
+    /// Stage 1's loop, and a unit current into its output as a right-hand side.
+    loop_break: Option<(LoopBreak, DVector<Complex64>)>,
 }
 
 /// Z = z0·(I + S)(I − S)⁻¹ for a two-port referenced to a real z0.
@@ -166,7 +204,8 @@ impl Linearised {
 
         let noise = noise_sources(part, &circuit, &op);
         let selector = output_selector(&main, nodes.output);
-        Ok(Linearised { circuit, main, ports, noise, selector, work: RefCell::default(), op })
+        let loop_break = LoopBreak::of(&circuit, &op).map(|b| (b, output_selector(&main, b.output)));
+        Ok(Linearised { circuit, main, ports, noise, selector, work: RefCell::default(), op, loop_break })
     }
 
     /// Every figure at `f_hz`.
@@ -202,7 +241,14 @@ impl Linearised {
         let zout = z[1][1] - feedback / (z[0][0] + zs);
         let total = self.noise.iter().map(|n| n.at_output(&self.main, y)).sum();
         let source = self.noise.iter().filter(|n| n.from_source).map(|n| n.at_output(&self.main, y)).sum();
-        Ok(Point { f_hz, av, gt, zin, zout, s, noise_out_v2: total, noise_source_v2: source, emf_gain: vout })
+        let loop_gain = match &self.loop_break {
+            Some((b, probe)) => {
+                work.resolve_aside(probe, omega)?;
+                Some(b.return_ratio(self.main.layout.voltage(&work.z, b.control))).filter(|t| t.re.is_finite() && t.im.is_finite())
+            }
+            None => None,
+        };
+        Ok(Point { f_hz, av, gt, zin, zout, s, noise_out_v2: total, noise_source_v2: source, emf_gain: vout, loop_gain })
     }
 
     /// The stage circuit, its operating point and its linearisation (source attached,
@@ -217,6 +263,11 @@ impl Linearised {
 
     pub fn small_signal(&self) -> &SmallSignal {
         &self.main
+    }
+
+    /// Where the loop is broken (`None` for a circuit without an inverter).
+    pub fn loop_break(&self) -> Option<LoopBreak> {
+        self.loop_break.as_ref().map(|(b, _)| *b)
     }
 
     /// Av alone at `f_hz`: one solve, for searches that need nothing else.

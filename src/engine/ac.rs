@@ -18,13 +18,23 @@ pub struct Workspace {
     pub lu: ComplexLu,
     pub x: DVector<Complex64>,
     pub y: DVector<Complex64>,
+    /// A third solution, for a further right-hand side on the same factors.
+    pub z: DVector<Complex64>,
 }
 
 impl Workspace {
-    /// Solves for another right-hand side with the factors of the last `solve_in`.
+    /// Solves for another right-hand side with the factors of the last `solve_in`,
+    /// into `x`.
     pub fn resolve(&mut self, rhs: &DVector<Complex64>, omega: f64) -> Result<()> {
         self.lu.solve_into(rhs, &mut self.x);
         check_finite(&self.x, omega)
+    }
+
+    /// The same, into `z` (keeping `x` and `y`).
+    pub fn resolve_aside(&mut self, rhs: &DVector<Complex64>, omega: f64) -> Result<()> {
+        self.z.resize_vertically_mut(rhs.len(), Complex64::default());
+        self.lu.solve_into(rhs, &mut self.z);
+        check_finite(&self.z, omega)
     }
 }
 
@@ -71,7 +81,7 @@ impl SmallSignal {
     /// Solves (G + jωC)·x = `rhs` into `work` (and, given `adjoint_rhs`, the
     /// transposed system into `work.y`) reusing its buffers: a sweep allocates nothing.
     pub fn solve_in(&self, omega: f64, rhs: &DVector<Complex64>, adjoint_rhs: Option<&DVector<Complex64>>, work: &mut Workspace) -> Result<()> {
-        let Workspace { lu, x, y } = work;
+        let Workspace { lu, x, y, .. } = work;
         self.factor_into(omega, lu)?;
         x.resize_vertically_mut(self.layout.size, Complex64::default());
         lu.solve_into(rhs, x);

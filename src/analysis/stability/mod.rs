@@ -89,14 +89,19 @@ pub struct Loop {
 /// `freqs`, with `response` the stage's response over the same sweep.
 pub fn analyse(lin: &Linearised, components: &Components, response: &Response, f_design: f64, freqs: &[f64]) -> Result<Loop> {
     let ratio = ReturnRatio::new(lin)?;
-    let t = freqs.iter().map(|&f| ratio.at(f)).collect::<Result<Vec<_>>>()?;
+    // T over the sweep comes with the response (Sherman–Morrison on its factors)
+    // when the response is over the same frequencies; else it is solved here.
+    let shared: Option<Vec<Complex64>> = (response.points.len() == freqs.len()).then(|| response.points.iter().map(|p| p.loop_gain).collect()).flatten();
+    let t = match shared {
+        Some(t) => t,
+        None => freqs.iter().map(|&f| ratio.at(f)).collect::<Result<Vec<_>>>()?,
+    };
     let start_phase = ratio.phase_from_dc(freqs[0])?;
     let margins = margins(f_design, freqs, &t, start_phase, |f| ratio.at(f))?;
     let t_phase = continuous_phase(&t, start_phase);
     let small = lin.small_signal();
     let poles = natural_frequencies(&small.g, &small.c)?;
-    let open = ratio.open_loop();
-    let open_loop_growing = natural_frequencies(&open.g, &open.c)?.into_iter().filter(|&p| grows(p)).count();
+    let open_loop_growing = ratio.open_loop_poles()?.iter().filter(|&&p| grows(p)).count();
     let stable = !poles.iter().any(|&p| grows(p));
     let least_damped = least_damped_pair(&poles);
     let verdict = verdict(stable, &poles, &margins, least_damped);

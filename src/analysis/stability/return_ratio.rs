@@ -7,21 +7,18 @@
 //! circuit's determinant to the determinant with that source dead (Bode), which is
 //! what lets the Nyquist count of 1 + T and the poles be checked against each other.
 
-use std::cell::RefCell;
+use std::cell::{OnceCell, RefCell};
 
 use nalgebra::DVector;
 use num_complex::Complex64;
 
 use super::{natural_frequencies, unwrap_near};
 use crate::analysis::{frequencies, Linearised};
-use crate::engine::{Element, Node, SmallSignal, Workspace};
+use crate::engine::{Node, SmallSignal, Workspace};
 use crate::error::{FieldError, Result};
 
 /// Points per decade of the walk up from near DC.
 const WALK_PER_DECADE: u32 = 20;
-
-/// The name the stage builder gives the first inverter.
-const FIRST_STAGE: &str = "stage 1";
 
 /// The stage with stage 1's gm broken out, ready to return T at any frequency.
 pub struct ReturnRatio {
@@ -30,28 +27,24 @@ pub struct ReturnRatio {
     /// The controlling node (stage 1's input).
     control: Node,
     work: RefCell<Workspace>,
+    /// The natural frequencies of the broken loop (the poles of T), found once.
+    open_poles: OnceCell<Vec<Complex64>>,
 }
 
 impl ReturnRatio {
     pub fn new(lin: &Linearised) -> Result<Self> {
-        let netlist = &lin.circuit().netlist;
-        let missing = || FieldError::new("part", "the stage has no inverter to break the loop at");
-        let k = netlist.element_index(FIRST_STAGE).ok_or_else(missing)?;
-        let (Element::Device { input, output, .. }, Some(state)) = (&netlist.elements()[k].element, &lin.operating_point().devices[k]) else {
-            return Err(missing());
-        };
+        let cut = lin.loop_break().ok_or_else(|| FieldError::new("part", "the stage has no inverter to break the loop at"))?;
         let mut small = lin.small_signal().clone();
         let layout = &small.layout;
-        let (row, col) = (layout.index(*output), layout.index(*input));
         let mut b = DVector::zeros(layout.size);
-        if let (Some(r), Some(c)) = (row, col) {
+        if let (Some(r), Some(c)) = (layout.index(cut.output), layout.index(cut.control)) {
             // The engine stamps −∂i/∂v_in at (out, in); take it out, and inject the
             // current the device pushes into its output for v_in = 1 V.
-            small.g[(r, c)] += state.di_dvin;
-            b[r] = Complex64::new(state.di_dvin, 0.0);
+            small.g[(r, c)] += cut.delta;
+            b[r] = Complex64::new(cut.delta, 0.0);
         }
         small.b = b;
-        Ok(ReturnRatio { small, control: *input, work: RefCell::default() })
+        Ok(ReturnRatio { small, control: cut.control, work: RefCell::default(), open_poles: OnceCell::new() })
     }
 
     /// T at `f_hz`.
@@ -66,7 +59,8 @@ impl ReturnRatio {
     /// the phase there is m·90° (0 for a DC-coupled negative-feedback loop): taken
     /// in [−45°, 315°) and carried up continuously from there.
     pub fn phase_from_dc(&self, f_hz: f64) -> Result<f64> {
-        let lowest = natural_frequencies(&self.small.g, &self.small.c)?
+        let lowest = self
+            .open_loop_poles()?
             .iter()
             .map(|p| p.norm() / std::f64::consts::TAU)
             .find(|&f| f > 0.0)
@@ -78,6 +72,15 @@ impl ReturnRatio {
             phase = unwrap_near(self.at(f)?.arg(), phase);
         }
         Ok(phase)
+    }
+
+    /// The natural frequencies of the circuit with the loop broken (rad/s).
+    pub fn open_loop_poles(&self) -> Result<&[Complex64]> {
+        if self.open_poles.get().is_none() {
+            let poles = natural_frequencies(&self.small.g, &self.small.c)?;
+            let _ = self.open_poles.set(poles);
+        }
+        Ok(self.open_poles.get().map(Vec::as_slice).unwrap_or(&[]))
     }
 
     /// The circuit with the loop broken (its natural frequencies are the poles of T).
