@@ -159,3 +159,17 @@ fn the_loop_report_of_the_demo_and_of_a_buffered_part() {
     let fix = Array::from(&get(&r, "suggestions")).iter().find(|s| text(s, "key") == "r_fb_ohm").unwrap();
     assert_eq!(number(&fix, "value"), 180e3);
 }
+
+#[wasm_bindgen_test]
+fn the_waveform_of_the_demo_as_csv() {
+    // One tone of the demo at its input level: four cycles of 256 samples.
+    let csv = wasm::wave_csv(&wasm::demo_document()).unwrap();
+    let mut lines = csv.lines();
+    assert_eq!(lines.next(), Some("t_s,v_in_v,v_out_v,v_last_stage_v"));
+    let rows: Vec<Vec<f64>> = lines.map(|l| l.split(',').map(|c| c.parse().unwrap()).collect()).collect();
+    assert_eq!(rows.len(), 1024);
+    // The output swings about zero (after c_out) by the stage's gain times the input's swing.
+    let swing = |col: usize| rows.iter().map(|r| r[col]).fold(f64::NEG_INFINITY, f64::max) - rows.iter().map(|r| r[col]).fold(f64::INFINITY, f64::min);
+    let gain = swing(2) / swing(1);
+    assert!(gain > 1.0 && gain < 10.0, "gain {gain}");
+}
