@@ -1,44 +1,78 @@
 //! Natural frequencies of a linearised circuit: the values of s where
-//! det(G + sC) = 0, found by shift-and-invert: with (G + σC) invertible,
-//! (G + sC)·x = 0 ⇔ −(G + σC)⁻¹C·x = x/(s − σ), so each eigenvalue λ of
-//! −(G + σC)⁻¹C gives s = σ + 1/λ, and λ = 0 is a pole at infinity (the
-//! algebraic rows of MNA, where C is singular). The eigenvalues come from
-//! nalgebra's real Schur decomposition; the tests check them against faer's QZ
-//! on the pencil itself.
+//! det(G + sC) = 0.
+//!
+//! First the unknowns that no capacitance touches (their row and column of C
+//! are zero: resistive nodes, source branches) are eliminated — a Schur
+//! complement, G_r = G_dd − G_da·G_aa⁻¹·G_ad with C_r = C_dd — since they carry
+//! only poles at infinity, which left in would come back from the eigen-solver as
+//! rounding-sized, huge "finite" poles. Then shift-and-invert: with (G_r + σC_r)
+//! invertible, (G_r + sC_r)·x = 0 ⇔ −(G_r + σC_r)⁻¹C_r·x = x/(s − σ), so each
+//! eigenvalue λ gives s = σ + 1/λ, and λ = 0 is a pole at infinity (what is left of
+//! MNA's algebraic rows). The eigenvalues come from nalgebra's real Schur
+//! decomposition; the tests check them against faer's QZ on the pencil itself.
 
 use nalgebra::DMatrix;
 use num_complex::Complex64;
 
 use crate::error::{FieldError, Result};
 
-/// Eigenvalues below this fraction of the largest are poles at infinity (rounding
-/// of an exact zero), far beyond any frequency a stage responds at.
-const INFINITE_BELOW: f64 = 1e-13;
+/// Eigenvalues below this fraction of the largest entry of −(G + σC)⁻¹C are poles at infinity
+/// (rounding of an exact zero, which scales with the matrix, not with its
+/// largest eigenvalue).
+const INFINITE_BELOW: f64 = 1e-12;
+
+/// Poles within this fraction of the pencil's frequency scale of the origin are
+/// the origin (a node held only by capacitors).
+const ORIGIN_WITHIN: f64 = 1e-9;
 
 /// Schur iterations before giving up.
 const MAX_ITERATIONS: usize = 10_000;
 
+/// (G_r, C_r): the pencil with the capacitance-free unknowns eliminated (or as
+/// it is, when their block of G is singular).
+fn reduced(g: &DMatrix<f64>, c: &DMatrix<f64>) -> (DMatrix<f64>, DMatrix<f64>) {
+    let n = g.nrows();
+    let free: Vec<bool> = (0..n).map(|i| c.row(i).iter().all(|&v| v == 0.0) && c.column(i).iter().all(|&v| v == 0.0)).collect();
+    let (a, d): (Vec<usize>, Vec<usize>) = (0..n).partition(|&i| free[i]);
+    if a.is_empty() || d.is_empty() {
+        return (g.clone(), c.clone());
+    }
+    let pick = |m: &DMatrix<f64>, rows: &[usize], cols: &[usize]| DMatrix::from_fn(rows.len(), cols.len(), |i, j| m[(rows[i], cols[j])]);
+    let Some(g_aa_inv) = pick(g, &a, &a).lu().try_inverse().filter(|m| m.iter().all(|v| v.is_finite())) else {
+        return (g.clone(), c.clone());
+    };
+    let g_r = pick(g, &d, &d) - pick(g, &d, &a) * g_aa_inv * pick(g, &a, &d);
+    (g_r, pick(c, &d, &d))
+}
+
 /// The finite natural frequencies of the pencil (G, C), in rad/s, sorted by
 /// magnitude. Complex ones come in conjugate pairs.
 pub fn natural_frequencies(g: &DMatrix<f64>, c: &DMatrix<f64>) -> Result<Vec<Complex64>> {
-    let scale = g.amax().max(f64::MIN_POSITIVE) / c.amax().max(f64::MIN_POSITIVE);
+    if c.amax() == 0.0 {
+        return Ok(Vec::new());
+    }
+    // The pencil's frequency scale, from the whole circuit (the reduced G can be
+    // zero: every remaining node held by capacitors alone).
+    let scale = g.amax().max(f64::MIN_POSITIVE) / c.amax();
+    let (g, c) = reduced(g, c);
     // σ = 0 unless G is singular (a node held only by capacitors: a pole at s = 0);
     // then shifts at the pencil's own frequency scale, away from any pole in practice.
     for sigma in [0.0, 0.37 * scale, -1.9 * scale, 7.3 * scale] {
-        let shifted = g + c * sigma;
-        let Some(inverse) = shifted.clone().lu().try_inverse() else { continue };
+        let shifted = &g + &c * sigma;
+        let Some(inverse) = shifted.lu().try_inverse() else { continue };
         if !inverse.iter().all(|v| v.is_finite()) {
             continue;
         }
-        let a = -(inverse * c);
+        let a = -(inverse * &c);
+        let size = a.amax();
         let schur = nalgebra::linalg::Schur::try_new(a, f64::EPSILON, MAX_ITERATIONS)
             .ok_or_else(|| FieldError::new("circuit", "the natural frequencies did not converge"))?;
-        let lambdas = schur.complex_eigenvalues();
-        let largest = lambdas.iter().map(|l| l.norm()).fold(0.0, f64::max);
-        let mut poles: Vec<Complex64> = lambdas
+        let mut poles: Vec<Complex64> = schur
+            .complex_eigenvalues()
             .iter()
-            .filter(|l| l.norm() > INFINITE_BELOW * largest)
+            .filter(|l| l.norm() > INFINITE_BELOW * size)
             .map(|l| sigma + 1.0 / l)
+            .map(|s| if s.norm() < ORIGIN_WITHIN * scale { Complex64::new(0.0, 0.0) } else { s })
             .collect();
         poles.sort_by(|a, b| a.norm().total_cmp(&b.norm()));
         return Ok(poles);
