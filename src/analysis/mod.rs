@@ -1,6 +1,7 @@
 //! Analyses of the stage, each in its own module, all on the one engine.
 
 mod bias;
+pub mod design;
 mod fit;
 mod response;
 pub mod stability;

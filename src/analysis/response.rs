@@ -277,6 +277,22 @@ impl Linearised {
         Ok(self.main.layout.voltage(&x, nodes.output) / self.main.layout.voltage(&x, nodes.input))
     }
 
+    /// The band's lower edge (|Av| down to |Av(f_design)|/√2) found without a sweep:
+    /// halving the frequency from f_design until it is passed, then refining to
+    /// 0.1 %. `None` when the gain holds down to a millihertz (a DC-coupled stage).
+    pub fn edge_below(&self, f_design: f64) -> Result<Option<f64>> {
+        let level = self.av(f_design)?.norm() / std::f64::consts::SQRT_2;
+        let mut f = f_design;
+        while f > 1e-3 {
+            let lower = f / 2.0;
+            if self.av(lower)?.norm() < level {
+                return refine_edge(self, level, f, lower).map(Some);
+            }
+            f = lower;
+        }
+        Ok(None)
+    }
+
     /// Each noise source's share of the output noise at `f_hz`, largest first: (name, fraction).
     pub fn noise_shares(&self, f_hz: f64) -> Result<Vec<(String, f64)>> {
         let densities = output_noise(&self.main, &self.noise, self.circuit.nodes.output, f_hz)?;
