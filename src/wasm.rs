@@ -236,6 +236,13 @@ pub fn wave_csv(text: &str) -> Result<String, JsValue> {
     Ok(crate::report::wave_csv(&doc::load(text).and_then(|d| d.wave()).map_err(thrown)?))
 }
 
+/// The design to the document's target: candidates best first, coupling
+/// capacitors, the by-hand answer (the same as `halfrail design`).
+#[wasm_bindgen(js_name = designReport)]
+pub fn design_report(text: &str) -> Result<JsValue, JsValue> {
+    to_js(&doc::DesignReport(&doc::load(text).and_then(|d| d.design()).map_err(thrown)?))
+}
+
 /// The operating point alone (no curves): for the Stage panel's figures.
 #[wasm_bindgen(js_name = biasOf)]
 pub fn bias_of(text: &str) -> Result<JsValue, JsValue> {
@@ -251,14 +258,16 @@ pub fn sweep_csv(text: &str) -> Result<String, JsValue> {
 
 /// One of the document's analyses computed and only its size returned: the
 /// benchmark's measure of the core alone, without the cost of handing the
-/// figures to JavaScript. `what`: "response", "stability", "two-tone" (one
-/// two-tone record of 2^14 samples at f_design) or "compression" (the 20-level sweep).
+/// figures to JavaScript. `what`: "response", "stability", "design", "two-tone"
+/// (one two-tone record of 2^14 samples at f_design) or "compression" (the
+/// 20-level sweep).
 #[wasm_bindgen(js_name = benchCore)]
 pub fn bench_core(text: &str, what: &str) -> Result<usize, JsValue> {
     let document = doc::load(text).map_err(thrown)?;
     let points = match what {
         "response" => document.response().map(|r| r.points.len()),
         "stability" => document.stability().map(|(_, l)| l.t.len()),
+        "design" => document.design().map(|d| d.candidates.len()),
         "two-tone" | "compression" => bench_swing(&document, what),
         _ => return Err(thrown(FieldError::new("what", format!("`{what}` is not a benchmarked analysis")))),
     };

@@ -216,3 +216,26 @@ fn analyze_prints_the_loop_section() {
     let fix = lp["suggestions"].as_array().unwrap().iter().find(|s| s["key"] == "r_fb_ohm").expect("a lower-gain answer");
     assert!(fix["value"].as_f64().unwrap() > 2200.0 && fix["phase_margin_deg"].as_f64().unwrap() >= 60.0, "{fix}");
 }
+
+#[test]
+fn design_prints_candidates_best_first() {
+    let json: serde_json::Value = serde_json::from_str(&stdout(&halfrail(&["design", &demo()]))).unwrap();
+    let candidates = json["candidates"].as_array().unwrap();
+    assert!(!candidates.is_empty());
+    for c in candidates {
+        for key in ["r_in_ohm", "r_fb_ohm", "gain_db", "error_db"] {
+            assert!(c[key].as_f64().is_some_and(f64::is_finite), "{key}: {c}");
+        }
+    }
+    // The demo asks for 12 dB (E24, 100 kHz low corner).
+    let best = &candidates[0];
+    assert!((best["gain_db"].as_f64().unwrap() - 12.0).abs() < 0.42);
+    assert!(json["c_in_f"].as_f64().is_some() && json["c_out_f"].as_f64().is_some());
+    assert!(json["f_low_hz"].as_f64().unwrap() <= 100e3);
+    let bare = std::env::temp_dir().join(format!("halfrail-no-target-{}.json", std::process::id()));
+    let mut doc: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(demo()).unwrap()).unwrap();
+    doc.as_object_mut().unwrap().remove("target");
+    std::fs::write(&bare, doc.to_string()).unwrap();
+    refused(&["design", &bare.display().to_string()], "target: missing");
+    std::fs::remove_file(&bare).ok();
+}

@@ -4,6 +4,7 @@
 mod analyze;
 mod check;
 mod convert;
+mod design;
 mod fit;
 mod nearest;
 
@@ -48,6 +49,8 @@ enum Verb {
     Analyze(analyze::Args),
     /// The small-signal sweep of a design, one row per frequency.
     Sweep(analyze::SweepArgs),
+    /// The stage designed to the document's target: standard-value candidates, best first.
+    Design(design::Args),
     /// The steady-state waveform of one tone at f_design and the input level, as CSV.
     Wave(analyze::SweepArgs),
     /// The stage's S-parameters as a Touchstone 1.1 two-port file.
@@ -71,6 +74,7 @@ pub fn run(args: impl IntoIterator<Item = OsString>) -> Result<String, Failure> 
         Verb::Check(args) => check::run(args),
         Verb::Analyze(args) => analyze::run(args),
         Verb::Sweep(args) => analyze::run_sweep(args),
+        Verb::Design(args) => design::run(args),
         Verb::Wave(args) => analyze::run_wave(args),
         Verb::Touchstone(args) => analyze::run_touchstone(args),
         Verb::Fit(args) => fit::run(args),

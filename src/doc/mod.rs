@@ -6,10 +6,12 @@
 mod serialize;
 mod loop_report;
 mod swing_report;
+mod design_report;
 mod quantity;
 mod sections;
 pub use loop_report::{LoopReport, LoopSummary, SuggestionOut};
 pub use swing_report::{LargeSummary, SwingReport};
+pub use design_report::DesignReport;
 pub use serialize::{AcReport, AnalyzeReport, BiasReport, PartReport, ResponseReport, DocumentSummary, LookupReport, NearestReport, SeriesFacts, ValueInUnit};
 mod validate;
 
@@ -42,6 +44,25 @@ impl Part {
             caps: Capacitances { cgs: self.cgs_f, cgd: self.cgd_f, cdb: self.cdb_f },
             gamma: self.gamma,
             temp_c: self.temp_c,
+        }
+    }
+}
+
+impl Target {
+    /// The target as the design takes it.
+    pub fn to_core(&self) -> crate::analysis::design::Target {
+        use crate::analysis::design::{GainKind as Kind, Limits, Target as Core};
+        Core {
+            gain_db: self.gain_db,
+            kind: match self.gain_kind {
+                GainKind::Voltage => Kind::Voltage,
+                GainKind::Power => Kind::Power,
+            },
+            series: self.series,
+            limits: Limits { s11_max_db: self.s11_max_db, nf_max_db: self.nf_max_db, iq_max_a: self.iq_max_a },
+            match_source: self.match_source,
+            f_low_hz: self.f_low_hz,
+            allow_combinations: self.allow_combinations,
         }
     }
 }
@@ -184,6 +205,14 @@ impl Document {
         let time = crate::analysis::swing::TimeDomain::new(&part, &stage)?;
         let amplitude = crate::analysis::swing::emf_amplitude(analysis.input_dbm, source);
         Ok(crate::analysis::swing::one_tone(&time, amplitude, analysis.f_design_hz, &mut |_| {})?.wave)
+    }
+
+    /// The stage designed to the `target` section at f_design.
+    pub fn design(&self) -> Result<crate::analysis::design::Design> {
+        let (part, stage) = self.part_and_stage()?;
+        let analysis = self.sweep()?;
+        let target = self.target.as_ref().ok_or_else(|| FieldError::new("target", "missing; a design needs a target gain"))?;
+        crate::analysis::design::design(&part, &stage, analysis.f_design_hz, analysis.z0_ohm, &target.to_core())
     }
 
     /// The part fitted to the `bench` readings, starting from the document's part.

@@ -125,6 +125,9 @@ fn main() {
             black_box(doc.large(&mut |_| {}).unwrap());
         }), None);
     }
+    report("design to target, demo (12 dB, E24, 100 kHz corner)", median_time(|| {
+        black_box(doc.design().unwrap());
+    }), None);
     let bench = doc.bench.as_ref().unwrap();
     let start = bench.starting_part(doc.part.as_ref());
     let readings = bench.readings().unwrap();

@@ -3,7 +3,9 @@
 //! target. Each capacitor is first sized alone (the other a short) for a corner of
 //! 0.644 of the target — two equal first-order corners f_c meet −3 dB at
 //! f_c·√(1/(√2 − 1)) = 1.554·f_c — then both together are checked and the one
-//! whose own corner is higher is raised a step until the edge is low enough.
+//! whose own corner is higher is raised a step until the edge is low enough;
+//! last, each is lowered a step at a time while the edge stays low enough, so
+//! neither could be a standard value smaller.
 
 use crate::analysis::Linearised;
 use crate::error::Result;
@@ -59,10 +61,21 @@ pub fn coupling(part: &Part, c: &Components, target_hz: f64, f_design: f64, z0: 
         false => None,
     };
     let step = |v: f64| Series::E12.between(v * 1.0001, v * 1.5).first().copied().unwrap_or(v * 1.2);
+    let step_down = |v: f64| Series::E12.between(v / 1.5, v * 0.9999).last().copied();
+    let meets = |c_in: Option<f64>, c_out: Option<f64>| -> Result<bool> {
+        Ok(edge(part, &c.with(Component::CInF, c_in).with(Component::COutF, c_out), f_design, z0)?.is_none_or(|f| f <= target_hz))
+    };
     for _ in 0..=MAX_RAISES {
         let both = c.with(Component::CInF, c_in).with(Component::COutF, c_out);
-        let f_low_hz = edge(part, &both, f_design, z0)?;
-        if f_low_hz.is_none_or(|f| f <= target_hz) {
+        if meets(c_in, c_out)? {
+            // Trim: each one step smaller while the corner still holds.
+            while let Some(smaller) = c_in.and_then(step_down).filter(|&v| meets(Some(v), c_out).unwrap_or(false)) {
+                c_in = Some(smaller);
+            }
+            while let Some(smaller) = c_out.and_then(step_down).filter(|&v| meets(c_in, Some(v)).unwrap_or(false)) {
+                c_out = Some(smaller);
+            }
+            let f_low_hz = edge(part, &c.with(Component::CInF, c_in).with(Component::COutF, c_out), f_design, z0)?;
             return Ok(Coupling { c_in_f: c_in, c_out_f: c_out, f_low_hz });
         }
         // Raise the capacitor whose own corner is the higher.

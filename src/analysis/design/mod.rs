@@ -84,7 +84,7 @@ pub struct Design {
 /// Candidates kept.
 pub const KEEP: usize = 12;
 /// Standard r_in values tried at most (spread evenly over the range).
-const R_IN_TRIES: usize = 12;
+const R_IN_TRIES: usize = 24;
 /// The r_in range searched around the starting value, as a factor either side.
 const R_IN_SPAN: f64 = 3.0;
 
