@@ -15,6 +15,7 @@ const SCRIPTS = [
   'js/core.js',
   'js/ui.js',
   'js/design.js',
+  'js/worker.js',
   'js/plot.js',
   'js/schematic.js',
   'js/panels/part.js',
@@ -22,6 +23,7 @@ const SCRIPTS = [
   'js/panels/response.js',
   'js/panels/bench.js',
   'js/panels/loop.js',
+  'js/panels/swing.js',
   'js/panels/planned.js',
   'js/shell.js',
 ];

@@ -22,9 +22,11 @@ HR.plot = (() => {
     size: 56,
   });
 
-  // create(container, {title, x: {label, unit}, y: {label, unit, range}, series: [{label, unit}],
+  // create(container, {title, x: {label, unit}, y: {label, unit, range}, series: [{label, unit, opts}],
   //   logX, height, decorate(u, ctx)}) → {setData([xs, ...ys]), node}
   // `y.range(u, dataMin, dataMax)` → [min, max] sets the y range (uPlot's own scale option).
+  // A series' `opts` are uPlot series options laid over the defaults (stroke, dash,
+  // spanGaps, points, paths: () => null for points alone).
   const create = (container, spec) => {
     const wrap = el('figure', { class: 'plot' }, el('figcaption', {}, spec.title));
     container.append(wrap);
@@ -47,6 +49,7 @@ HR.plot = (() => {
           width: 2,
           points: { show: false },
           value: (u, v) => (v === null || v === undefined ? '—' : HR.fmt(v, s.unit || '', 4)),
+          ...(s.opts || {}),
         })),
       ],
       hooks: {
@@ -140,6 +143,38 @@ HR.plot = (() => {
     ctx.fillText(text, x, y);
   };
 
+  // Fills a vertical band between two x values, at least `minPx` CSS pixels wide so a
+  // narrow one (a small signal's excursion) still shows.
+  const vband = (u, ctx, low, high, colour, minPx = 3) => {
+    let left = u.valToPos(low, 'x', true);
+    let right = u.valToPos(high, 'x', true);
+    const short = minPx * devicePixelRatio - (right - left);
+    if (short > 0) { left -= short / 2; right += short / 2; }
+    ctx.save();
+    ctx.fillStyle = colour;
+    ctx.fillRect(left, u.bbox.top, right - left, u.bbox.height);
+    ctx.restore();
+  };
+
+  // A label at a point given in data coordinates, haloed, kept inside the plot box;
+  // `dx`, `dy` shift it in CSS pixels.
+  const label = (u, ctx, text, x, y, colour, { align = 'left', dx = 0, dy = 0 } = {}) => {
+    if (x === null || x === undefined || y === null || y === undefined) return;
+    const dpr = devicePixelRatio;
+    ctx.save();
+    ctx.font = `${12 * dpr}px sans-serif`;
+    ctx.fillStyle = colour;
+    const w = ctx.measureText(text).width;
+    const px = u.valToPos(x, 'x', true) + dx * dpr;
+    let py = u.valToPos(y, 'y', true) + dy * dpr;
+    let left = align === 'right' ? px - w : px;
+    left = Math.max(u.bbox.left + 3 * dpr, Math.min(left, u.bbox.left + u.bbox.width - w - 3 * dpr));
+    py = Math.max(u.bbox.top + 12 * dpr, Math.min(py, u.bbox.top + u.bbox.height - 4 * dpr));
+    ctx.textAlign = 'left';
+    halo(ctx, text, left, py);
+    ctx.restore();
+  };
+
   // A labelled vertical line at x (a design frequency, a band edge).
   const vline = (u, ctx, x, colour, label, row = 0) => {
     if (x === null || x === undefined || x < u.scales.x.min || x > u.scales.x.max) return;
@@ -178,5 +213,5 @@ HR.plot = (() => {
     ctx.restore();
   };
 
-  return { create, band, marker, vline, hline, css };
+  return { create, band, vband, marker, label, vline, hline, css };
 })();

@@ -1,0 +1,270 @@
+// The Swing panel in Chromium: the large-signal run is made in a background worker
+// (a classic Worker from a Blob of the glue, handed the compiled module), from
+// file://, inside an iframe and over http; the page keeps answering during the run;
+// the progress bar reaches completion; Cancel leaves no result of the cancelled run;
+// an edit during a run supersedes it; the figures agree with the native CLI.
+import { test, before, after, beforeEach } from 'node:test';
+import assert from 'node:assert/strict';
+import { execFileSync } from 'child_process';
+import fs from 'fs';
+import http from 'http';
+import os from 'os';
+import path from 'path';
+import { fileURLToPath } from 'url';
+import { launch, watch, ready, clearStorage, PAGE_PATH, PAGE_URL } from './browser.mjs';
+
+const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
+let browser;
+before(async () => { browser = await launch(); });
+after(async () => { await browser.close(); });
+beforeEach(() => clearStorage(browser.context));
+
+// The native CLI's large-signal figures for a document (built by `make test-e2e`).
+function cliLarge(text) {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'halfrail-swing-'));
+  const file = path.join(dir, 'design.halfrail.json');
+  fs.writeFileSync(file, text);
+  try {
+    return JSON.parse(execFileSync(path.join(root, 'target/debug/halfrail'), ['analyze', file])).large;
+  } finally {
+    fs.rmSync(dir, { recursive: true, force: true });
+  }
+}
+
+// Watches, from before the page's own scripts run: every Worker made (its URL) and
+// terminated, every animation frame, every value the progress bar shows and whether
+// the run's box is shown, each with its time.
+const instrument = () => {
+  const log = { workers: [], terminated: 0, frames: [], progress: [], box: [] };
+  window.__swing = log;
+  const Native = window.Worker;
+  window.Worker = class extends Native {
+    constructor(url, options) { super(url, options); log.workers.push(String(url)); }
+  };
+  const terminate = Native.prototype.terminate;
+  Native.prototype.terminate = function () { log.terminated += 1; return terminate.call(this); };
+  const tick = (t) => { log.frames.push(t); requestAnimationFrame(tick); };
+  requestAnimationFrame(tick);
+  new MutationObserver((records) => {
+    for (const r of records) {
+      if (r.target.tagName === 'PROGRESS' && r.attributeName === 'value') log.progress.push([performance.now(), Number(r.target.value)]);
+      if (r.target.classList && r.target.classList.contains('run') && r.attributeName === 'hidden') log.box.push([performance.now(), !r.target.hidden]);
+    }
+  }).observe(document, { subtree: true, attributes: true, attributeFilter: ['value', 'hidden'] });
+};
+
+const panel = (page) => page.locator('#panel-swing');
+const figure = (page, key) => page.locator(`#panel-swing dd[data-key="${key}"] .value`).textContent();
+const computed = (page) => panel(page).getAttribute('data-computed').then(Number);
+const results = (page, n) => page.waitForSelector(`#panel-swing[data-computed="${n}"]`, { timeout: 20000 });
+const runBox = (page) => page.locator('#panel-swing .run');
+const log = (page) => page.evaluate(() => window.__swing);
+
+async function openSwing(hash = '#swing') {
+  const page = await browser.context.newPage();
+  const seen = watch(page);
+  await page.addInitScript(instrument);
+  await page.goto(PAGE_URL + hash);
+  await ready(page);
+  return { page, seen };
+}
+
+// The figures the test compares with the CLI, to the precision shown.
+async function assertAgrees(page, large) {
+  assert.equal(await figure(page, 'oip3'), `${large.oip3_dbm.toFixed(2)} dBm`);
+  assert.equal(await figure(page, 'op1db'), `${large.op1db_dbm.toFixed(2)} dBm`);
+  assert.equal(await figure(page, 'hd2'), `${large.hd2_dbc.toFixed(2)} dBc`);
+}
+
+test('from file:// the demo runs in a worker, the page stays responsive, and the figures agree with the CLI', async () => {
+  const { page, seen } = await openSwing('#bench');
+  // Mount the Bench panel first, to type into during a run.
+  await page.locator('#rail a[href="#swing"]').click();
+  await results(page, 1);
+  let l = await log(page);
+  assert.equal(l.workers.length, 1, 'one worker made');
+  assert.match(l.workers[0], /^blob:/, 'from a Blob');
+  assert.equal(await page.evaluate(() => HR.background.started), 1);
+
+  // A second run, watched: the main thread handles an edit elsewhere while it runs.
+  const during = await page.evaluate(async () => {
+    const before = document.getElementById('panel-swing').dataset.computed;
+    const box = document.querySelector('#panel-swing .run');
+    const t0 = performance.now();
+    [...document.querySelectorAll('#panel-swing button')].find((b) => b.textContent === 'Compute now').click();
+    await new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)));
+    const input = [...document.querySelectorAll('#panel-bench label')].find((x) => x.textContent === 'Level').control;
+    input.value = '-45 dBm';
+    input.dispatchEvent(new Event('input'));
+    return {
+      t0,
+      vpp: document.querySelector('#panel-bench dd[data-key="vpp"]').textContent,
+      stillRunning: !box.hidden && document.getElementById('panel-swing').dataset.computed === before,
+      answeredMs: performance.now() - t0,
+    };
+  });
+  // -45 dBm across 50 Ω: 3.557 mVpp (as page.test.mjs).
+  assert.equal(during.vpp, '3.557 mVpp');
+  assert.ok(during.stillRunning, `the edit elsewhere was answered ${during.answeredMs.toFixed(0)} ms into the run, while it still ran`);
+  await results(page, 2);
+  l = await log(page);
+  const t1 = l.box.filter(([t, shown]) => t > during.t0 && !shown).map(([t]) => t)[0];
+  assert.ok(t1 > during.t0, 'the run box was hidden at the end');
+  const frames = l.frames.filter((t) => t >= during.t0 && t <= t1);
+  const gaps = frames.slice(1).map((t, i) => t - frames[i]);
+  assert.ok(t1 - during.t0 > 100, `the run took ${(t1 - during.t0).toFixed(0)} ms`);
+  assert.ok(frames.length >= 5, `${frames.length} frames during a ${(t1 - during.t0).toFixed(0)} ms run`);
+  assert.ok(Math.max(...gaps) < 200, `longest gap between frames during the run: ${Math.max(...gaps).toFixed(0)} ms`);
+  assert.equal(l.workers.length, 1, 'the worker is reused for the next run');
+
+  // The progress bar rose through the run to completion, then went away.
+  const values = l.progress.filter(([t]) => t >= during.t0 && t <= t1).map(([, v]) => v);
+  assert.ok(values.length >= 5, `progress values: ${values}`);
+  assert.ok(values.every((v, i) => i === 0 || v >= values[i - 1]), `progress never goes back: ${values}`);
+  assert.equal(values[0], 0);
+  assert.equal(values[values.length - 1], 1, 'the bar reached completion');
+  assert.equal(await runBox(page).isVisible(), false);
+
+  // Figures against the CLI, the figure notes, and every plot drawn.
+  const large = cliLarge(await page.evaluate(() => HR.design.text()));
+  await assertAgrees(page, large);
+  assert.match(await figure(page, 'swing'), /^1\.4\d V … 1\.4\d V$/);
+  assert.equal(await figure(page, 'level'), '-40.00 dBm at 10.70 MHz');
+  assert.equal(await figure(page, 'slope'), `${large.im3_slope.toFixed(2)} dB/dB, passes`);
+  // OIP3 − OP1dB is far above the ~10 dB of a pure cubic for the demo, so the note shows.
+  assert.ok(large.oip3_dbm - large.op1db_dbm > 15);
+  assert.match(await page.locator('#panel-swing .swing-shape').textContent(),
+    new RegExp(`^OIP3 sits ${(large.oip3_dbm - large.op1db_dbm).toFixed(1)} dB above OP1dB.*square-law stage.*running into the rails`));
+  assert.match(await page.locator('#panel-swing .run-note').textContent(), /^Computed in \d\.\d\d s in a background worker/);
+  assert.equal(await page.locator('#panel-swing .plot-cell').count(), 5);
+  assert.equal(await page.locator('#panel-swing .plot-cell .plot-note').count(), 5);
+  const boxes = await page.locator('#panel-swing canvas').evaluateAll((cs) => cs.map((c) => c.getBoundingClientRect()).map((b) => [b.width, b.height]));
+  assert.equal(boxes.length, 5);
+  for (const [w, h] of boxes) assert.ok(w > 100 && h > 100, `a canvas of ${w}×${h}`);
+  assert.doesNotMatch(await panel(page).textContent(), /NaN|undefined|Infinity/);
+  assert.deepEqual(seen.errors, []);
+  assert.deepEqual(seen.requests, []);
+  await page.close();
+});
+
+test('Cancel stops the run, no result of it appears, and the next run completes; an edit supersedes a run', async () => {
+  const { page, seen } = await openSwing();
+  await results(page, 1);
+  const hd2 = await figure(page, 'hd2');
+  const level = page.getByLabel('Input level (dBm available from the source)');
+
+  // Cancel: the bar goes, the worker is ended, and the old figures stay, marked.
+  await level.fill('-30');
+  await runBox(page).waitFor({ state: 'visible' });
+  const terminated = (await log(page)).terminated;
+  await page.locator('#panel-swing .run button', { hasText: 'Cancel' }).click();
+  assert.equal(await runBox(page).isVisible(), false);
+  assert.equal((await log(page)).terminated, terminated + 1, 'the worker was terminated');
+  assert.equal(await page.locator('#panel-swing .stale-note').getAttribute('data-why'), 'cancelled');
+  await page.waitForTimeout(1500); // longer than a run: a cancelled one must never land
+  assert.equal(await computed(page), 1);
+  assert.equal(await figure(page, 'hd2'), hd2);
+  assert.equal(await figure(page, 'level'), '-40.00 dBm at 10.70 MHz');
+  assert.equal(await runBox(page).isVisible(), false, 'a cancelled run is not restarted by itself');
+
+  // The next run, in a fresh worker, completes.
+  await page.getByRole('button', { name: 'Compute now' }).click();
+  await results(page, 2);
+  assert.equal(await figure(page, 'level'), '-30.00 dBm at 10.70 MHz');
+  assert.equal((await log(page)).workers.length, 2, 'a fresh worker after the cancel');
+  assert.equal(await page.locator('#panel-swing .stale-note').isVisible(), false);
+  const at30 = cliLarge(await page.evaluate(() => HR.design.text()));
+  await assertAgrees(page, at30);
+  assert.notEqual(await figure(page, 'hd2'), hd2, 'HD2 moves with the level');
+
+  // An edit during a run supersedes it: only the later level's result is ever shown.
+  await page.evaluate(() => {
+    window.__levels = [];
+    const cell = document.querySelector('#panel-swing dd[data-key="level"] .value');
+    new MutationObserver(() => window.__levels.push(cell.textContent)).observe(cell, { childList: true, characterData: true, subtree: true });
+  });
+  await level.fill('-20');
+  await runBox(page).waitFor({ state: 'visible' });
+  await level.fill('-25');
+  await results(page, 3);
+  await page.waitForTimeout(1000);
+  assert.equal(await computed(page), 3, 'one result for the two edits');
+  assert.deepEqual(await page.evaluate(() => window.__levels), ['-25.00 dBm at 10.70 MHz']);
+  assert.deepEqual(seen.errors, []);
+  assert.deepEqual(seen.requests, []);
+  await page.close();
+});
+
+test('a bad level is reported at its field without a run; edits elsewhere wait until the panel is shown', async () => {
+  const { page, seen } = await openSwing();
+  await results(page, 1);
+  const level = page.getByLabel('Input level (dBm available from the source)');
+  await level.fill('-40 dBx');
+  await page.waitForFunction(() => !document.querySelector('#panel-swing p.error').hidden);
+  assert.equal(await level.getAttribute('aria-invalid'), 'true');
+  assert.match(await page.locator('#panel-swing p.error').textContent(), /^analysis\.input_dbm: /);
+  assert.equal(await page.locator('#panel-swing .stale-note').isVisible(), true);
+  await page.waitForTimeout(600);
+  assert.equal(await runBox(page).isVisible(), false, 'no run for a draft the core refuses');
+  assert.equal(await figure(page, 'level'), '-40.00 dBm at 10.70 MHz');
+  await level.fill('-35 dBm');
+  await results(page, 2);
+  assert.equal(await level.getAttribute('aria-invalid'), 'false');
+
+  // Hidden: a change of the design starts no run until the panel is shown again.
+  await page.locator('#rail a[href="#bench"]').click();
+  await page.evaluate(() => HR.design.set('analysis', 'input_dbm', '-33 dBm', 'test'));
+  await page.waitForTimeout(1200);
+  assert.equal(await computed(page), 2);
+  assert.equal((await log(page)).progress.filter(([, v]) => v === 0).length, 2, 'two runs so far');
+  await page.locator('#rail a[href="#swing"]').click();
+  await results(page, 3);
+  assert.equal(await figure(page, 'level'), '-33.00 dBm at 10.70 MHz');
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});
+
+test('the worker runs inside an iframe of another local page', async () => {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'halfrail-host-'));
+  const host = path.join(dir, 'wiki.html');
+  fs.writeFileSync(host, `<!doctype html><title>host</title><h1>Lab wiki</h1>
+    <iframe id="calc" src="${PAGE_URL}#swing" width="1100" height="700"></iframe>`);
+  const page = await browser.context.newPage();
+  const seen = watch(page, ['file://' + host, PAGE_URL + '#swing']);
+  await page.goto('file://' + host);
+  const frame = page.frames().find((f) => f.url().startsWith(PAGE_URL));
+  await ready(frame);
+  await frame.waitForSelector('#panel-swing[data-computed="1"]', { timeout: 20000 });
+  assert.equal(await frame.evaluate(() => HR.background.started), 1);
+  assert.match(await frame.locator('#panel-swing .run-note').textContent(), /background worker/);
+  const large = cliLarge(await frame.evaluate(() => HR.design.text()));
+  await assertAgrees(frame, large);
+  assert.deepEqual(seen.errors, []);
+  assert.deepEqual(seen.requests, []);
+  await page.close();
+  fs.rmSync(dir, { recursive: true, force: true });
+});
+
+test('the worker runs when the page is served over http', async () => {
+  const server = http.createServer((req, res) => {
+    res.writeHead(200, { 'content-type': 'text/html; charset=utf-8' });
+    res.end(fs.readFileSync(PAGE_PATH));
+  });
+  await new Promise((r) => server.listen(0, '127.0.0.1', r));
+  const url = `http://127.0.0.1:${server.address().port}/halfrail.html#swing`;
+  const page = await browser.context.newPage();
+  const seen = watch(page, [url]);
+  await page.addInitScript(instrument);
+  await page.goto(url);
+  await ready(page);
+  await results(page, 1);
+  const l = await log(page);
+  assert.equal(l.workers.length, 1);
+  assert.match(l.workers[0], /^blob:http:\/\/127\.0\.0\.1:/);
+  const large = cliLarge(await page.evaluate(() => HR.design.text()));
+  await assertAgrees(page, large);
+  assert.deepEqual(seen.requests, []);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+  server.close();
+});

@@ -1,0 +1,231 @@
+'use strict';
+// Background runs: long calls into the core made in a Web Worker, so the page keeps
+// answering while they compute.
+//
+// The worker is a classic one, made from a Blob of the wasm-bindgen glue (the
+// no-modules text of <script id="hr-glue">) followed by the small loop below, and it is
+// handed the module the page already compiled (HR.module), so it fetches nothing: this
+// works from file://, inside an iframe and over http, under the page's CSP (worker-src
+// blob:). Module workers made from a Blob fail on file://, hence classic.
+//
+//   HR.background.run(name, args, {lane, onProgress}) → {promise, cancel()}
+//
+// calls wasm_bindgen[name](...args, progress) in the lane's worker; `progress(fraction)`
+// reaches `onProgress`. The promise never rejects: it settles to {ok, ms} (ms: the run's
+// wall time), {error: {field, reason, message}} (bad input, or a trap, which is also
+// reported in the status line as HR.call does) or {cancelled: true}. Each lane (by
+// default the entry's name) has one worker and runs one call at a time: a new run in a
+// lane cancels the one before it. Cancelling terminates the lane's worker; the next run
+// starts a fresh one. Lanes run in parallel, one worker each.
+//
+//   HR.background.follow(panel, spec)
+//
+// is HR.design.follow for a long run: see below.
+
+HR.background = (() => {
+  // The worker's side, run in the worker's own global scope after the glue (this
+  // function is sent as its source text, so it may use nothing from this file).
+  const inWorker = () => {
+    self.onmessage = ({ data }) => {
+      if (data.module) {
+        wasm_bindgen.initSync({ module: data.module });
+        return;
+      }
+      const { id, name, args } = data;
+      const progress = (fraction) => self.postMessage({ id, progress: fraction });
+      try {
+        self.postMessage({ id, ok: wasm_bindgen[name](...args, progress) });
+      } catch (e) {
+        if (e && typeof e === 'object' && 'reason' in e) self.postMessage({ id, error: { field: e.field, reason: e.reason, message: e.message } });
+        else self.postMessage({ id, trap: String(e && e.message ? e.message : e) });
+      }
+    };
+  };
+
+  let source = null;
+  const sourceUrl = () => {
+    if (!source) {
+      const glue = document.getElementById('hr-glue').textContent;
+      source = URL.createObjectURL(new Blob([glue, `\n;(${inWorker})();\n`], { type: 'text/javascript' }));
+    }
+    return source;
+  };
+
+  const lanes = new Map();
+  let nextId = 0;
+
+  const stop = (lane) => {
+    if (lane.worker) lane.worker.terminate();
+    lane.worker = null;
+  };
+
+  // The lane's worker, started (and handed the module) when it has none.
+  const workerOf = (lane) => {
+    if (lane.worker) return lane.worker;
+    const worker = new Worker(sourceUrl(), { name: `halfrail-${lane.key}` });
+    worker.onmessage = ({ data }) => {
+      const job = lane.job;
+      if (!job || data.id !== job.id) return;
+      if ('progress' in data) job.onProgress(data.progress);
+      else job.finish(data);
+    };
+    // The worker itself failed (it could not start, or the module would not load).
+    worker.onerror = (e) => {
+      e.preventDefault();
+      if (lane.job) lane.job.finish({ trap: e.message || 'the background worker stopped' });
+      stop(lane);
+    };
+    worker.postMessage({ module: HR.module });
+    lane.worker = worker;
+    HR.background.started += 1;
+    return worker;
+  };
+
+  const trapped = (what) => {
+    const message = `The calculation engine failed in the background (${what}). Your inputs are kept; the next run starts afresh.`;
+    HR.setStatus(message, true);
+    return { error: { field: '', reason: message, message } };
+  };
+
+  const run = (name, args, { lane: key = name, onProgress = () => {} } = {}) => {
+    if (!lanes.has(key)) lanes.set(key, { key, worker: null, job: null });
+    const lane = lanes.get(key);
+    if (lane.job) lane.job.cancel();
+    let settle;
+    const promise = new Promise((resolve) => { settle = resolve; });
+    const begun = performance.now();
+    const job = {
+      id: ++nextId,
+      onProgress,
+      finish(data) {
+        if (lane.job !== job) return;
+        lane.job = null;
+        if ('ok' in data) settle({ ok: data.ok, ms: performance.now() - begun });
+        else if (data.error) settle({ error: data.error });
+        else { stop(lane); settle(trapped(data.trap)); }
+      },
+      cancel() {
+        if (lane.job !== job) return;
+        lane.job = null;
+        stop(lane);
+        settle({ cancelled: true });
+      },
+    };
+    lane.job = job;
+    try {
+      workerOf(lane).postMessage({ id: job.id, name, args });
+    } catch (e) {
+      job.finish({ trap: `no background worker: ${e && e.message ? e.message : e}` });
+    }
+    return { promise, cancel: () => job.cancel() };
+  };
+
+  // Keeps a panel's figures in step with the design, like HR.design.follow, for a run
+  // too long to make on every keystroke. A run starts `delay` ms after the last edit,
+  // and only while the panel is shown; an edit made while it is hidden is remembered
+  // and computed when it is next shown. An edit during a run cancels it (its result
+  // would be out of date). The draft is checked first (checkDocument, well under a
+  // millisecond), so a bad value is reported at once, without a run. The last result
+  // stays on show, marked stale, while a new one computes, after an error and after a
+  // cancel.
+  //   spec: {name, args(text) → [...], lane, delay, render(result, {ms, text}),
+  //          report(error | null), stale(why | null, rendered), progress(fraction | null)}
+  //   `why`: 'running', 'error', 'cancelled' or 'due' (changed while hidden or held).
+  // Returns {start() (run now), cancel()}. `panel.dataset.computed` counts results.
+  const follow = (panel, spec) => {
+    const { name, args, lane = name, delay = 300, render, report, stale, progress } = spec;
+    let shownText = null;   // the design text of the result on show
+    let job = null;
+    let timer = null;
+    let held = false;       // cancelled by the user: wait for an edit or start()
+    const visible = () => !panel.hidden && !panel.closest('[hidden]');
+
+    const finish = (text, r) => {
+      if (r.error) {
+        report(r.error);
+        // Nothing on show yet: show the last design the core accepted, marked stale.
+        const good = HR.design.lastGood();
+        if (shownText === null && good && good !== text) { launch(good, true); return; }
+        stale('error', shownText !== null);
+        return;
+      }
+      shownText = text;
+      if (text === HR.design.text()) {
+        HR.design.accept(text);
+        report(null);
+        stale(null, true);
+      } else {
+        stale('error', true);
+      }
+      render(r.ok, { ms: r.ms, text });
+      panel.dataset.computed = String(Number(panel.dataset.computed || 0) + 1);
+    };
+
+    const launch = (text, fallback = false) => {
+      const mine = run(name, args(text), { lane, onProgress: (p) => progress(p) });
+      job = mine;
+      progress(0);
+      if (!fallback) stale('running', shownText !== null);
+      mine.promise.then((r) => {
+        if (job !== mine) return;
+        job = null;
+        progress(null);
+        if (!r.cancelled) finish(text, r);
+      });
+    };
+
+    const start = () => {
+      clearTimeout(timer);
+      timer = null;
+      held = false;
+      const text = HR.design.text();
+      const check = HR.call('checkDocument', text);
+      if (check.error) {
+        if (job) cancelJob();
+        finish(text, check);
+        return;
+      }
+      launch(text);
+    };
+
+    const cancelJob = () => {
+      const mine = job;
+      job = null;
+      if (mine) mine.cancel();
+      progress(null);
+    };
+
+    // After an edit, an undo or a redo.
+    const changed = () => {
+      if (job) cancelJob();
+      clearTimeout(timer);
+      timer = null;
+      held = false;
+      if (HR.design.text() === shownText) {
+        report(null);
+        stale(null, true);
+        return;
+      }
+      stale('due', shownText !== null);
+      if (visible()) timer = setTimeout(start, delay);
+    };
+
+    HR.design.onChange(changed);
+    // Shown again: compute what changed while it was hidden.
+    new MutationObserver(() => {
+      if (visible() && !job && !timer && !held && HR.design.text() !== shownText) start();
+    }).observe(panel, { attributes: true, attributeFilter: ['hidden'] });
+    start();
+    return {
+      start,
+      cancel() {
+        if (!job) return;
+        cancelJob();
+        held = true;
+        stale('cancelled', shownText !== null);
+      },
+    };
+  };
+
+  return { run, follow, started: 0 };
+})();
