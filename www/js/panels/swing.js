@@ -42,7 +42,7 @@
       level: [`${dbm(s.input_dbm)} at ${fmt(s.f_hz, 'Hz', 4)}`, `${volts(r.amplitude_v)} peak EMF`],
       hd2: [dbc(s.hd2_dbc), series(s.series_hd2_dbc, dbc)],
       hd3: [dbc(s.hd3_dbc), series(s.series_hd3_dbc, dbc)],
-      thd: [pct(s.thd_pct), 'harmonics 2 to 10'],
+      thd: [pct(s.thd_pct), '2nd to 9th harmonics'],
       op1db: [load ? (known(s.op1db_dbm) ? dbm(s.op1db_dbm) : 'not reached in the sweep') : NEEDS_LOAD, null],
       ip1db: [load ? (known(s.ip1db_dbm) ? dbm(s.ip1db_dbm) : 'not reached in the sweep') : NEEDS_LOAD, null],
       psat: [load ? dbm(s.psat_dbm) : NEEDS_LOAD, null],
@@ -219,7 +219,7 @@
           { label: 'harmonic (dBc)', unit: '', opts: { paths: () => null, points: { show: true, size: 7 } } },
           { label: 'floor (dBc)', unit: '', opts: { stroke: css('--muted'), paths: () => null, points: { show: true, size: 4 } } },
         ] });
-      note(spectrumCell, 'The output’s harmonics at the input level, relative to the fundamental (0 dBc), up to the 10th. The small grey dots between them are the computation’s numerical floor, not a signal.');
+      const spectrumNote = note(spectrumCell, '');
 
       const poutMarks = (u, ctx) => {
         if (!last) return;
@@ -302,6 +302,8 @@
         spectrumPlot.setData([r.spectrum_f_hz,
           r.spectrum_dbc.map((v, i) => (known(v) && isHarmonic(r.spectrum_f_hz[i], f) ? v : null)),
           r.spectrum_dbc.map((v, i) => (known(v) && !isHarmonic(r.spectrum_f_hz[i], f) ? v : null))]);
+        const top = Math.round(Math.max(...r.spectrum_f_hz) / f);
+        spectrumNote.textContent = `The output’s harmonics at the input level, relative to the fundamental (0 dBc), up to the ${top}th. The small grey dots between them are the computation’s numerical floor, not a signal.`;
         const hasSweep = r.sweep_pin_dbm.length > 0;
         poutPlot.node.hidden = !hasSweep;
         if (hasSweep) poutPlot.setData(poutData(r));
