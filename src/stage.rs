@@ -105,7 +105,7 @@ impl Components {
     }
 
     /// A value that counts as fitted: present and, for a series resistor, not a short.
-    fn fitted(&self, c: Component) -> Option<f64> {
+    pub fn fitted(&self, c: Component) -> Option<f64> {
         self.get(c).filter(|&v| !(c.zero_is_short() && v == 0.0))
     }
 }

@@ -243,6 +243,20 @@ pub fn design_report(text: &str) -> Result<JsValue, JsValue> {
     to_js(&doc::DesignReport(&doc::load(text).and_then(|d| d.design()).map_err(thrown)?))
 }
 
+/// The Spread panel's figures: the Monte Carlo of the tolerance section with
+/// every trial, swings and corners. Long (about a second): the page runs it in a
+/// worker; `progress` hears the fraction of trials done.
+#[wasm_bindgen(js_name = spreadReport)]
+pub fn spread_report(text: &str, progress: &js_sys::Function) -> Result<JsValue, JsValue> {
+    let document = doc::load(text).map_err(thrown)?;
+    let result = document
+        .spread(&mut |p| {
+            let _ = progress.call1(&JsValue::NULL, &JsValue::from_f64(p));
+        })
+        .map_err(thrown)?;
+    to_js(&doc::SpreadReport(&result))
+}
+
 /// The operating point alone (no curves): for the Stage panel's figures.
 #[wasm_bindgen(js_name = biasOf)]
 pub fn bias_of(text: &str) -> Result<JsValue, JsValue> {

@@ -239,3 +239,17 @@ fn design_prints_candidates_best_first() {
     refused(&["design", &bare.display().to_string()], "target: missing");
     std::fs::remove_file(&bare).ok();
 }
+
+#[test]
+fn spread_prints_statistics_and_yield() {
+    let json: serde_json::Value = serde_json::from_str(&stdout(&halfrail(&["spread", &demo()]))).unwrap();
+    assert_eq!(json["trials"], 2000, "the demo's tolerance section asks for 2000");
+    for figure in ["gain_db", "f_low_hz", "f_high_hz", "iq_a", "nf_db"] {
+        let s = &json[figure];
+        let [mean, std, min, max, p1, p99] = ["mean", "std", "min", "max", "p1", "p99"].map(|k| s[k].as_f64().unwrap_or_else(|| panic!("{figure}.{k}: {s}")));
+        assert!(min <= p1 && p1 <= mean && mean <= p99 && p99 <= max && std > 0.0, "{figure}: {s}");
+    }
+    let y = json["yield"].as_f64().unwrap();
+    assert!((0.0..=1.0).contains(&y));
+    assert!(json["swings"].as_array().unwrap().iter().any(|s| s["quantity"] == "r_fb_ohm"));
+}

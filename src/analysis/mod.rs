@@ -4,6 +4,7 @@ mod bias;
 pub mod design;
 mod fit;
 mod response;
+pub mod spread;
 pub mod stability;
 pub mod swing;
 mod twoport;

@@ -281,14 +281,23 @@ impl Linearised {
     /// halving the frequency from f_design until it is passed, then refining to
     /// 0.1 %. `None` when the gain holds down to a millihertz (a DC-coupled stage).
     pub fn edge_below(&self, f_design: f64) -> Result<Option<f64>> {
+        self.edge_from(f_design, 0.5, 1e-3)
+    }
+
+    /// The upper edge the same way, doubling up to 1 THz.
+    pub fn edge_above(&self, f_design: f64) -> Result<Option<f64>> {
+        self.edge_from(f_design, 2.0, 1e12)
+    }
+
+    fn edge_from(&self, f_design: f64, factor: f64, limit: f64) -> Result<Option<f64>> {
         let level = self.av(f_design)?.norm() / std::f64::consts::SQRT_2;
         let mut f = f_design;
-        while f > 1e-3 {
-            let lower = f / 2.0;
-            if self.av(lower)?.norm() < level {
-                return refine_edge(self, level, f, lower).map(Some);
+        while (factor < 1.0 && f > limit) || (factor > 1.0 && f < limit) {
+            let next = f * factor;
+            if self.av(next)?.norm() < level {
+                return refine_edge(self, level, f, next).map(Some);
             }
-            f = lower;
+            f = next;
         }
         Ok(None)
     }

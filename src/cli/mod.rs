@@ -7,6 +7,7 @@ mod convert;
 mod design;
 mod fit;
 mod nearest;
+mod spread;
 
 use std::ffi::OsString;
 
@@ -51,6 +52,8 @@ enum Verb {
     Sweep(analyze::SweepArgs),
     /// The stage designed to the document's target: standard-value candidates, best first.
     Design(design::Args),
+    /// The Monte Carlo of the document's tolerances: statistics, yield, swings and corners.
+    Spread(spread::Args),
     /// The steady-state waveform of one tone at f_design and the input level, as CSV.
     Wave(analyze::SweepArgs),
     /// The stage's S-parameters as a Touchstone 1.1 two-port file.
@@ -75,6 +78,7 @@ pub fn run(args: impl IntoIterator<Item = OsString>) -> Result<String, Failure> 
         Verb::Analyze(args) => analyze::run(args),
         Verb::Sweep(args) => analyze::run_sweep(args),
         Verb::Design(args) => design::run(args),
+        Verb::Spread(args) => spread::run(args),
         Verb::Wave(args) => analyze::run_wave(args),
         Verb::Touchstone(args) => analyze::run_touchstone(args),
         Verb::Fit(args) => fit::run(args),

@@ -7,11 +7,13 @@ mod serialize;
 mod loop_report;
 mod swing_report;
 mod design_report;
+mod spread_report;
 mod quantity;
 mod sections;
 pub use loop_report::{LoopReport, LoopSummary, SuggestionOut};
 pub use swing_report::{LargeSummary, SwingReport};
 pub use design_report::DesignReport;
+pub use spread_report::{SpreadReport, SpreadSummary};
 pub use serialize::{AcReport, AnalyzeReport, BiasReport, PartReport, ResponseReport, DocumentSummary, LookupReport, NearestReport, SeriesFacts, ValueInUnit};
 mod validate;
 
@@ -215,12 +217,55 @@ impl Document {
         crate::analysis::design::design(&part, &stage, analysis.f_design_hz, analysis.z0_ohm, &target.to_core())
     }
 
+    /// The Monte Carlo of the `tolerance` section, with swings and corners;
+    /// `progress` hears the fraction of trials done.
+    pub fn spread(&self, progress: &mut dyn FnMut(f64)) -> Result<SpreadResult> {
+        use crate::analysis::spread::{corners, run, summarise, swings, Limits, Setup, Tolerance as Core};
+        let (part, stage) = self.part_and_stage()?;
+        let analysis = self.sweep()?;
+        let tolerance = self.tolerance.as_ref().ok_or_else(|| FieldError::new("tolerance", "missing; a spread needs the tolerances"))?;
+        let kind = self.target.as_ref().map_or(crate::analysis::design::GainKind::Voltage, |t| t.to_core().kind);
+        let setup = Setup::new(&part, &stage, analysis.f_design_hz, analysis.f_stop_hz, analysis.z0_ohm, kind)?;
+        let tol = Core { resistor_pct: tolerance.resistor_pct, capacitor_pct: tolerance.capacitor_pct, vdd_pct: tolerance.vdd_pct, k_pct: tolerance.k_pct, vt_v: tolerance.vt_mv / 1e3 };
+        let limits = self.target.as_ref().map_or(Limits::default(), |t| Limits {
+            gain: t.gain_tol_db.map(|tol| (t.gain_db, tol)),
+            f_low_max_hz: t.f_low_hz,
+            pm_min_deg: t.pm_min_deg,
+            iq_max_a: t.iq_max_a,
+            nf_max_db: t.nf_max_db,
+        });
+        let total = tolerance.trials as u64;
+        let chunk = (total / 20).max(1);
+        let mut trials = Vec::with_capacity(total as usize);
+        let mut from = 0;
+        while from < total {
+            let to = (from + chunk).min(total);
+            trials.extend(run(&part, &stage, &setup, &tol, tolerance.seed, from..to));
+            progress(to as f64 / total as f64);
+            from = to;
+        }
+        let swings = swings(&part, &stage, &setup, &tol)?;
+        let corners = corners(&part, &stage, &setup, &tol, &swings)?;
+        Ok(SpreadResult { nominal: setup.figures(&part, &stage)?, summary: summarise(&trials, &limits), swings, corners, trials })
+    }
+
     /// The part fitted to the `bench` readings, starting from the document's part.
     pub fn bench_fit(&self) -> Result<crate::analysis::Fit> {
         let bench = self.bench.as_ref().ok_or_else(|| FieldError::new("bench", "missing; a fit needs the bench readings"))?;
         let readings = bench.readings()?;
         crate::analysis::fit(&bench.starting_part(self.part.as_ref()), &readings, &bench.params(&readings))
     }
+}
+
+/// A spread and everything reported with it.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SpreadResult {
+    pub nominal: crate::analysis::spread::Values,
+    pub summary: crate::analysis::spread::Summary,
+    pub swings: Vec<crate::analysis::spread::Swing>,
+    pub corners: Vec<crate::analysis::spread::Corner>,
+    /// Every trial's figures (the histograms).
+    pub trials: Vec<crate::analysis::spread::Values>,
 }
 
 /// The largest document accepted, in bytes.

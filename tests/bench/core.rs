@@ -128,6 +128,11 @@ fn main() {
     report("design to target, demo (12 dB, E24, 100 kHz corner)", median_time(|| {
         black_box(doc.design().unwrap());
     }), None);
+    let spread = median_time(|| {
+        black_box(doc.spread(&mut |_| {}).unwrap());
+    });
+    report("spread, demo, 2000 trials + swings + corners", spread, None);
+    figures.push(("spread", spread));
     let bench = doc.bench.as_ref().unwrap();
     let start = bench.starting_part(doc.part.as_ref());
     let readings = bench.readings().unwrap();

@@ -66,6 +66,7 @@ for (let i = 0; i < RUNS; i++) {
         twoTone: median(() => wasm_bindgen.benchCore(demo, 'two-tone'), 3),
         compression: median(() => wasm_bindgen.benchCore(demo, 'compression'), 3),
         swing: median(() => wasm_bindgen.swingReport(demo, () => {}), 3),
+        spread: median(() => wasm_bindgen.spreadReport(demo, () => {}), 1),
         curve1: median(() => wasm_bindgen.transferCurve(demo, 500)),
         curve3: median(() => wasm_bindgen.transferCurve(buffered, 500)),
         report: median(() => wasm_bindgen.partReport(demo, 501)),
@@ -126,6 +127,7 @@ const rows = [
   ['wasm: two-tone steady state, 2^14 samples (demo)', `${core.twoTone.toFixed(1)} ms`, '≤ 150 ms', core.twoTone <= 150],
   ['wasm: compression sweep, 20 levels (demo)', `${core.compression.toFixed(0)} ms`, '≤ 1000 ms', core.compression <= 1000],
   ['wasm: whole Swing panel analysis (demo)', `${core.swing.toFixed(0)} ms`, '', true],
+  ['wasm: spread, 2000 trials, one thread (demo)', `${core.spread.toFixed(0)} ms`, '≤ 1500 ms', core.spread <= 1500],
   ['Stage edit to redrawn figures, 95th percentile of 40', `${p95.toFixed(1)} ms`, '≤ 16 ms', p95 <= 16],
 ];
 for (const [what, figure, target, met] of rows) {

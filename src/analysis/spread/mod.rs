@@ -1,0 +1,122 @@
+//! Spread: how component tolerances move the stage (SPEC §3.3). A seeded Monte
+//! Carlo of the figures at f_design — gain, band edges, phase margin, supply
+//! current, noise figure — with their statistics and the yield against the
+//! target's limits; the worst-case corners; and each quantity's swing (how far a
+//! figure moves when that quantity goes to the edge of its tolerance), so the user
+//! sees which part to buy tighter. For a figure linear in its inputs the Monte
+//! Carlo variance is Σ swingᵢ²/3 (the variance of a uniform on [−1, 1] is 1/3).
+//!
+//! ```
+//! use halfrail::analysis::design::GainKind;
+//! use halfrail::analysis::spread::{run, Setup, Tolerance};
+//! use halfrail::doc::{load, DEMO};
+//!
+//! let doc = load(DEMO).unwrap();
+//! let (part, stage) = doc.part_and_stage().unwrap();
+//! let setup = Setup::new(&part, &stage, 10.7e6, 1e9, 50.0, GainKind::Voltage).unwrap();
+//! let tol = Tolerance { resistor_pct: 1.0, capacitor_pct: 10.0, vdd_pct: 5.0, k_pct: 20.0, vt_v: 0.1 };
+//! let trials = run(&part, &stage, &setup, &tol, 7, 0..50);
+//! assert_eq!(trials.len(), 50);
+//! ```
+
+mod draw;
+mod stats;
+
+pub use draw::{draws, Quantity, Tolerance};
+pub use stats::{corners, summarise, swings, Corner, Limits, Stats, Summary, Swing};
+
+use std::ops::Range;
+
+use num_complex::Complex64;
+
+use super::design::GainKind;
+use super::stability::{margins, unwrap_near, ReturnRatio};
+use super::{frequencies, Linearised};
+use crate::error::Result;
+use crate::part::Part;
+use crate::stage::Components;
+
+/// The figures each trial yields, in this order.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Figure {
+    GainDb,
+    FLowHz,
+    FHighHz,
+    PhaseMarginDeg,
+    IqA,
+    NfDb,
+}
+
+impl Figure {
+    pub const ALL: [Figure; 6] = [Figure::GainDb, Figure::FLowHz, Figure::FHighHz, Figure::PhaseMarginDeg, Figure::IqA, Figure::NfDb];
+
+    pub fn key(self) -> &'static str {
+        match self {
+            Figure::GainDb => "gain_db",
+            Figure::FLowHz => "f_low_hz",
+            Figure::FHighHz => "f_high_hz",
+            Figure::PhaseMarginDeg => "phase_margin_deg",
+            Figure::IqA => "iq_a",
+            Figure::NfDb => "nf_db",
+        }
+    }
+}
+
+/// One trial's figures (`None` where a figure does not exist, e.g. no crossover);
+/// all `None` when the trial's circuit could not be solved.
+pub type Values = [Option<f64>; 6];
+
+/// What every trial is measured against.
+pub struct Setup {
+    pub f_design: f64,
+    pub z0: f64,
+    pub kind: GainKind,
+    /// The margin grid: f_design up to f_stop.
+    grid: Vec<f64>,
+    /// The nominal loop's continuous phase at f_design: each trial's phase is taken
+    /// on the branch nearest it (tolerances move it far less than a turn).
+    phase_at_design: f64,
+}
+
+/// Points per decade of the margin grid.
+const GRID_PER_DECADE: u32 = 20;
+
+impl Setup {
+    pub fn new(part: &Part, c: &Components, f_design: f64, f_stop: f64, z0: f64, kind: GainKind) -> Result<Self> {
+        let lin = Linearised::new(part, c, z0)?;
+        let phase_at_design = ReturnRatio::new(&lin)?.phase_from_dc(f_design)?;
+        Ok(Setup { f_design, z0, kind, grid: frequencies(f_design, f_stop.max(f_design * 10.0), GRID_PER_DECADE), phase_at_design })
+    }
+
+    /// The figures of one stage.
+    pub fn figures(&self, part: &Part, c: &Components) -> Result<Values> {
+        let lin = Linearised::new(part, c, self.z0)?;
+        let p = lin.at(self.f_design, c)?;
+        let gain = match self.kind {
+            GainKind::Voltage => Some(p.gain_db()),
+            GainKind::Power => p.gt.map(|g| 10.0 * g.log10()),
+        };
+        let iq = lin.operating_point().devices.iter().flatten().map(|d| d.i_supply).sum();
+        let ratio = ReturnRatio::new(&lin)?;
+        let t: Vec<Complex64> = self.grid.iter().map(|&f| ratio.at(f)).collect::<Result<_>>()?;
+        let start = unwrap_near(t[0].arg(), self.phase_at_design);
+        let pm = margins(self.f_design, &self.grid, &t, start, |f| ratio.at(f))?.phase_margin_deg;
+        Ok([gain, lin.edge_below(self.f_design)?, lin.edge_above(self.f_design)?, pm, Some(iq), p.nf_db()])
+    }
+
+    /// The figures with each quantity moved by `u[i]` half-widths.
+    pub fn figures_at(&self, part: &Part, c: &Components, quantities: &[Quantity], u: &[f64], tol: &Tolerance) -> Result<Values> {
+        let (mut part, mut c) = (part.clone(), *c);
+        for (q, &u) in quantities.iter().zip(u) {
+            q.apply(u, tol, &mut part, &mut c);
+        }
+        self.figures(&part, &c)
+    }
+}
+
+/// Trials `range` of the Monte Carlo with `seed`: each trial's figures (all `None`
+/// for a trial whose circuit could not be solved).
+pub fn run(part: &Part, c: &Components, setup: &Setup, tol: &Tolerance, seed: u64, range: Range<u64>) -> Vec<Values> {
+    let quantities = Quantity::all(c);
+    range.map(|i| setup.figures_at(part, c, &quantities, &draws(seed, i, quantities.len()), tol).unwrap_or([None; 6])).collect()
+}
