@@ -257,6 +257,33 @@ pub fn spread_report(text: &str, progress: &js_sys::Function) -> Result<JsValue,
     to_js(&doc::SpreadReport(&result))
 }
 
+/// Trials `from..to` of the document's spread, for splitting the Monte Carlo
+/// between workers: each trial's figures, one column per figure key (null where a
+/// figure does not exist). Trial i is the same whichever worker runs it.
+#[wasm_bindgen(js_name = spreadTrials)]
+pub fn spread_trials(text: &str, from: u32, to: u32, progress: &js_sys::Function) -> Result<JsValue, JsValue> {
+    let plan = doc::load(text).and_then(|d| d.spread_plan()).map_err(thrown)?;
+    let (from, to) = (from as u64, (to as u64).min(plan.trials));
+    let mut trials = Vec::new();
+    let mut at = from;
+    while at < to {
+        let next = (at + 25).min(to);
+        trials.extend(plan.run(at..next));
+        let _ = progress.call1(&JsValue::NULL, &JsValue::from_f64((next - from) as f64 / (to - from).max(1) as f64));
+        at = next;
+    }
+    to_js(&doc::TrialColumns(&trials))
+}
+
+/// The spread report from every trial's figures (the columns `spreadTrials`
+/// returned, joined in trial order): the same as `spreadReport`.
+#[wasm_bindgen(js_name = spreadFinish)]
+pub fn spread_finish(text: &str, columns: &str) -> Result<JsValue, JsValue> {
+    let plan = doc::load(text).and_then(|d| d.spread_plan()).map_err(thrown)?;
+    let trials = doc::trials_from_columns(columns).map_err(thrown)?;
+    to_js(&doc::SpreadReport(&plan.finish(trials).map_err(thrown)?))
+}
+
 /// The operating point alone (no curves): for the Stage panel's figures.
 #[wasm_bindgen(js_name = biasOf)]
 pub fn bias_of(text: &str) -> Result<JsValue, JsValue> {

@@ -13,7 +13,7 @@ mod sections;
 pub use loop_report::{LoopReport, LoopSummary, SuggestionOut};
 pub use swing_report::{LargeSummary, SwingReport};
 pub use design_report::DesignReport;
-pub use spread_report::{SpreadReport, SpreadSummary};
+pub use spread_report::{trials_from_columns, SpreadReport, SpreadSummary, TrialColumns};
 pub use serialize::{AcReport, AnalyzeReport, BiasReport, PartReport, ResponseReport, DocumentSummary, LookupReport, NearestReport, SeriesFacts, ValueInUnit};
 mod validate;
 
@@ -217,16 +217,15 @@ impl Document {
         crate::analysis::design::design(&part, &stage, analysis.f_design_hz, analysis.z0_ohm, &target.to_core())
     }
 
-    /// The Monte Carlo of the `tolerance` section, with swings and corners;
-    /// `progress` hears the fraction of trials done.
-    pub fn spread(&self, progress: &mut dyn FnMut(f64)) -> Result<SpreadResult> {
-        use crate::analysis::spread::{corners, run, summarise, swings, Limits, Setup, Tolerance as Core};
+    /// Everything a spread needs, read from the document once.
+    pub fn spread_plan(&self) -> Result<SpreadPlan> {
+        use crate::analysis::spread::{Limits, Setup, Tolerance as Core};
         let (part, stage) = self.part_and_stage()?;
         let analysis = self.sweep()?;
         let tolerance = self.tolerance.as_ref().ok_or_else(|| FieldError::new("tolerance", "missing; a spread needs the tolerances"))?;
         let kind = self.target.as_ref().map_or(crate::analysis::design::GainKind::Voltage, |t| t.to_core().kind);
         let setup = Setup::new(&part, &stage, analysis.f_design_hz, analysis.f_stop_hz, analysis.z0_ohm, kind)?;
-        let tol = Core { resistor_pct: tolerance.resistor_pct, capacitor_pct: tolerance.capacitor_pct, vdd_pct: tolerance.vdd_pct, k_pct: tolerance.k_pct, vt_v: tolerance.vt_mv / 1e3 };
+        let tolerance_core = Core { resistor_pct: tolerance.resistor_pct, capacitor_pct: tolerance.capacitor_pct, vdd_pct: tolerance.vdd_pct, k_pct: tolerance.k_pct, vt_v: tolerance.vt_mv / 1e3 };
         let limits = self.target.as_ref().map_or(Limits::default(), |t| Limits {
             gain: t.gain_tol_db.map(|tol| (t.gain_db, tol)),
             f_low_max_hz: t.f_low_hz,
@@ -234,19 +233,23 @@ impl Document {
             iq_max_a: t.iq_max_a,
             nf_max_db: t.nf_max_db,
         });
-        let total = tolerance.trials as u64;
-        let chunk = (total / 20).max(1);
-        let mut trials = Vec::with_capacity(total as usize);
+        Ok(SpreadPlan { part, stage, setup, tolerance: tolerance_core, limits, trials: tolerance.trials as u64, seed: tolerance.seed })
+    }
+
+    /// The Monte Carlo of the `tolerance` section, with swings and corners;
+    /// `progress` hears the fraction of trials done.
+    pub fn spread(&self, progress: &mut dyn FnMut(f64)) -> Result<SpreadResult> {
+        let plan = self.spread_plan()?;
+        let chunk = (plan.trials / 20).max(1);
+        let mut trials = Vec::with_capacity(plan.trials as usize);
         let mut from = 0;
-        while from < total {
-            let to = (from + chunk).min(total);
-            trials.extend(run(&part, &stage, &setup, &tol, tolerance.seed, from..to));
-            progress(to as f64 / total as f64);
+        while from < plan.trials {
+            let to = (from + chunk).min(plan.trials);
+            trials.extend(plan.run(from..to));
+            progress(to as f64 / plan.trials as f64);
             from = to;
         }
-        let swings = swings(&part, &stage, &setup, &tol)?;
-        let corners = corners(&part, &stage, &setup, &tol, &swings)?;
-        Ok(SpreadResult { nominal: setup.figures(&part, &stage)?, summary: summarise(&trials, &limits), swings, corners, trials })
+        plan.finish(trials)
     }
 
     /// The part fitted to the `bench` readings, starting from the document's part.
@@ -254,6 +257,34 @@ impl Document {
         let bench = self.bench.as_ref().ok_or_else(|| FieldError::new("bench", "missing; a fit needs the bench readings"))?;
         let readings = bench.readings()?;
         crate::analysis::fit(&bench.starting_part(self.part.as_ref()), &readings, &bench.params(&readings))
+    }
+}
+
+/// A spread ready to run: the design, the measuring setup, the tolerances, the
+/// limits of the yield, and how many trials from which seed. Trials can be run in
+/// any split (`run`), then put together (`finish`).
+pub struct SpreadPlan {
+    pub part: crate::part::Part,
+    pub stage: crate::stage::Components,
+    pub setup: crate::analysis::spread::Setup,
+    pub tolerance: crate::analysis::spread::Tolerance,
+    pub limits: crate::analysis::spread::Limits,
+    pub trials: u64,
+    pub seed: u64,
+}
+
+impl SpreadPlan {
+    /// Trials `range`.
+    pub fn run(&self, range: std::ops::Range<u64>) -> Vec<crate::analysis::spread::Values> {
+        crate::analysis::spread::run(&self.part, &self.stage, &self.setup, &self.tolerance, self.seed, range)
+    }
+
+    /// The statistics of `trials` (all of them, in order), with swings and corners.
+    pub fn finish(&self, trials: Vec<crate::analysis::spread::Values>) -> Result<SpreadResult> {
+        use crate::analysis::spread::{corners, summarise, swings};
+        let swings = swings(&self.part, &self.stage, &self.setup, &self.tolerance)?;
+        let corners = corners(&self.part, &self.stage, &self.setup, &self.tolerance, &swings)?;
+        Ok(SpreadResult { nominal: self.setup.figures(&self.part, &self.stage)?, summary: summarise(&trials, &self.limits), swings, corners, trials })
     }
 }
 

@@ -49,6 +49,32 @@ impl Serialize for SpreadSummary<'_> {
     }
 }
 
+/// Trials' figures as columns, one per figure key.
+pub struct TrialColumns<'a>(pub &'a [crate::analysis::spread::Values]);
+
+impl Serialize for TrialColumns<'_> {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let mut out = serializer.serialize_struct("Trials", Figure::ALL.len())?;
+        for (k, f) in Figure::ALL.iter().enumerate() {
+            out.serialize_field(f.key(), &self.0.iter().map(|v| v[k]).collect::<Vec<_>>())?;
+        }
+        out.end()
+    }
+}
+
+/// Trials back from their columns (JSON text of `TrialColumns`, possibly joined
+/// from several runs): the field named is `trials` when the text is not that.
+pub fn trials_from_columns(text: &str) -> crate::error::Result<Vec<crate::analysis::spread::Values>> {
+    let bad = |why: String| crate::error::FieldError::new("trials", why);
+    let map: std::collections::BTreeMap<String, Vec<Option<f64>>> = serde_json::from_str(text).map_err(|e| bad(e.to_string()))?;
+    let columns: Vec<&Vec<Option<f64>>> = Figure::ALL.iter().map(|f| map.get(f.key()).ok_or_else(|| bad(format!("no `{}` column", f.key())))).collect::<crate::error::Result<_>>()?;
+    let n = columns[0].len();
+    if columns.iter().any(|c| c.len() != n) {
+        return Err(bad("the columns differ in length".into()));
+    }
+    Ok((0..n).map(|i| std::array::from_fn(|k| columns[k][i])).collect())
+}
+
 /// The summary and every trial's figures, one column per figure.
 pub struct SpreadReport<'a>(pub &'a SpreadResult);
 
@@ -57,9 +83,7 @@ impl Serialize for SpreadReport<'_> {
         let r = self.0;
         let mut out = serializer.serialize_struct("SpreadReport", 2)?;
         out.serialize_field("summary", &SpreadSummary(r))?;
-        let columns: serde_json::Map<String, serde_json::Value> =
-            Figure::ALL.iter().enumerate().map(|(k, f)| (f.key().to_string(), r.trials.iter().map(|v| v[k]).collect::<Vec<_>>().into())).collect();
-        out.serialize_field("trials", &columns)?;
+        out.serialize_field("trials", &TrialColumns(&r.trials))?;
         out.end()
     }
 }

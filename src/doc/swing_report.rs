@@ -18,7 +18,7 @@ impl Serialize for LargeSummary<'_> {
         let l = self.0;
         let c = l.compression.as_ref();
         let i = l.intercept.as_ref();
-        let mut out = serializer.serialize_struct("LargeSummary", 24)?;
+        let mut out = serializer.serialize_struct("LargeSummary", 26)?;
         out.serialize_field("op1db_dbm", &c.and_then(|c| c.op1db_dbm))?;
         out.serialize_field("oip3_dbm", &i.map(|i| i.oip3_dbm))?;
         out.serialize_field("hd2_dbc", &finite(l.tone.hd2_dbc))?;
@@ -42,6 +42,9 @@ impl Serialize for LargeSummary<'_> {
         out.serialize_field("series_iip3_dbm", &l.series_intercepts_dbm.map(|p| p.0).and_then(finite))?;
         out.serialize_field("series_oip3_dbm", &l.series_intercepts_dbm.map(|p| p.1).and_then(finite))?;
         out.serialize_field("series_a", &[l.series.a1, l.series.a2, l.series.a3])?;
+        // The page states these rather than restating the core's constants.
+        out.serialize_field("thd_harmonics", &(2..=THD_HARMONICS).collect::<Vec<_>>())?;
+        out.serialize_field("im3_slope_tolerance", &crate::analysis::swing::SLOPE_TOLERANCE)?;
         out.end()
     }
 }

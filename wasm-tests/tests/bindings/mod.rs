@@ -173,3 +173,28 @@ fn the_waveform_of_the_demo_as_csv() {
     let gain = swing(2) / swing(1);
     assert!(gain > 1.0 && gain < 10.0, "gain {gain}");
 }
+
+#[wasm_bindgen_test]
+fn spread_trials_split_and_joined_give_the_whole_spread() {
+    // A small spread of the demo: trials 0..6 in two runs joined, then finished.
+    let demo = wasm::demo_document();
+    let document = demo.replacen("\"trials\": 2000", "\"trials\": 6", 1);
+    let quiet = js_sys::Function::new_no_args("");
+    let a = wasm::spread_trials(&document, 0, 4, &quiet).unwrap();
+    let b = wasm::spread_trials(&document, 4, 6, &quiet).unwrap();
+    let joined = js_sys::Object::new();
+    for key in ["gain_db", "f_low_hz", "f_high_hz", "phase_margin_deg", "iq_a", "nf_db"] {
+        let column = Array::from(&get(&a, key)).concat(&Array::from(&get(&b, key)));
+        assert_eq!(column.length(), 6, "{key}");
+        Reflect::set(&joined, &JsValue::from_str(key), &column).unwrap();
+    }
+    let columns = js_sys::JSON::stringify(&joined).unwrap().as_string().unwrap();
+    let report = wasm::spread_finish(&document, &columns).unwrap();
+    let summary = get(&report, "summary");
+    assert_eq!(number(&summary, "trials"), 6.0);
+    let gain = get(&summary, "gain_db");
+    assert!(number(&gain, "min") <= number(&gain, "mean") && number(&gain, "mean") <= number(&gain, "max"));
+    // A bad join names the field.
+    let err = wasm::spread_finish(&document, "{\"gain_db\": [1]}").unwrap_err();
+    assert_eq!(text(&err, "field"), "trials");
+}
