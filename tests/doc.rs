@@ -173,3 +173,18 @@ fn hostile_documents_are_refused_without_harm() {
     let long = format!(r#"{{"halfrail": 1, "bench": {{"vdd_v": 3.3, "gains": [{}]}}}}"#, readings.join(","));
     assert_eq!(error_of(&long), "bench.gains: at most 1000 entries, got 1001");
 }
+
+#[test]
+fn errors_inside_lists_and_on_later_lines_are_named_by_path() {
+    // The field is found from serde_json's line and column: inside a list, on a
+    // line of its own, after keys with escapes.
+    let mut doc: serde_json::Value = serde_json::from_str(DEMO).unwrap();
+    doc["chain"]["blocks"][2]["loss_db"] = serde_json::json!("3 V");
+    let pretty = serde_json::to_string_pretty(&doc).unwrap();
+    assert!(error_of(&pretty).starts_with("chain.blocks[2].loss_db: "), "{}", error_of(&pretty));
+    doc["chain"]["blocks"][2]["loss_db"] = serde_json::json!(3);
+    doc["bench"]["gains"][1]["f_hz"] = serde_json::json!([1]);
+    assert!(error_of(&doc.to_string()).starts_with("bench.gains[1].f_hz: invalid type: sequence"), "{}", error_of(&doc.to_string()));
+    let text = DEMO.replacen("\"title\"", "\"ti\\\"tle\"", 1);
+    assert!(error_of(&text).starts_with("ti\"tle: unknown field"), "{}", error_of(&text));
+}

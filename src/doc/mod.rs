@@ -4,6 +4,7 @@
 
 #[macro_use]
 mod serialize;
+mod locate;
 mod loop_report;
 mod swing_report;
 mod design_report;
@@ -311,17 +312,6 @@ fn reason_of(error: &serde_json::Error) -> String {
     }
 }
 
-/// The path serde_path_to_error gives, in the document's own notation
-/// (`stage.r_fb_ohm`, `chain.blocks[2].loss_db`); `.` for the top level.
-fn path_of(path: &serde_path_to_error::Path) -> String {
-    let text = path.to_string();
-    if text == "." {
-        String::new()
-    } else {
-        text
-    }
-}
-
 /// Reads the format version first, so that a document from a newer build is
 /// refused for that reason rather than for a key this build does not know.
 fn check_version(text: &str) -> Result<()> {
@@ -363,10 +353,9 @@ pub fn load(text: &str) -> Result<Document> {
     }
     check_version(text)?;
     let mut reader = serde_json::Deserializer::from_str(text);
-    let document: Document = serde_path_to_error::deserialize(&mut reader).map_err(|e| {
-        let field = path_of(e.path());
-        let reason = reason_of(e.inner());
-        FieldError::new(if field.is_empty() { "document".to_string() } else { field }, reason)
+    let document: Document = serde::Deserialize::deserialize(&mut reader).map_err(|e| {
+        let field = locate::path_at(text, e.line(), e.column());
+        FieldError::new(if field.is_empty() { "document".to_string() } else { field }, reason_of(&e))
     })?;
     reader
         .end()

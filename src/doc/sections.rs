@@ -171,11 +171,25 @@ fn e24() -> Series {
     Series::E24
 }
 
+/// Reads a series name inside a visitor, so a bad name's error carries the
+/// position of the name (which is how the document names the field).
+struct SeriesName;
+
+impl serde::de::Visitor<'_> for SeriesName {
+    type Value = Series;
+
+    fn expecting(&self, f: &mut std::fmt::Formatter) -> std::fmt::Result {
+        f.write_str("a series name such as \"E24\"")
+    }
+
+    fn visit_str<E: serde::de::Error>(self, name: &str) -> Result<Series, E> {
+        Series::from_name(name).ok_or_else(|| E::custom(format!("`{name}` is not a series (E3, E6, E12, E24, E48, E96 or E192)")))
+    }
+}
+
 impl<'de> Deserialize<'de> for Series {
     fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
-        let name = String::deserialize(d)?;
-        Series::from_name(&name)
-            .ok_or_else(|| serde::de::Error::custom(format!("`{name}` is not a series (E3, E6, E12, E24, E48, E96 or E192)")))
+        d.deserialize_str(SeriesName)
     }
 }
 

@@ -6,7 +6,7 @@
 use serde::ser::{Serialize, SerializeStruct, Serializer};
 
 use super::SpreadResult;
-use crate::analysis::spread::{Figure, Stats};
+use crate::analysis::spread::{Corner, Figure, Stats, Swing};
 
 serialize_fields!(Stats {
     "mean" => mean,
@@ -17,6 +17,43 @@ serialize_fields!(Stats {
     "p99" => p99,
     "count" => count,
 });
+
+/// One value per figure, keyed by the figure.
+struct FiguresOut<'a>(&'a [Option<f64>]);
+
+impl Serialize for FiguresOut<'_> {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let mut out = serializer.serialize_struct("Figures", Figure::ALL.len())?;
+        for (f, v) in Figure::ALL.iter().zip(self.0) {
+            out.serialize_field(f.key(), v)?;
+        }
+        out.end()
+    }
+}
+
+/// A quantity's swing of every figure.
+struct SwingOut<'a>(&'a Swing);
+
+impl Serialize for SwingOut<'_> {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let mut out = serializer.serialize_struct("Swing", 2)?;
+        out.serialize_field("quantity", self.0.quantity.key())?;
+        out.serialize_field("swing", &FiguresOut(&self.0.per_figure))?;
+        out.end()
+    }
+}
+
+struct CornerOut<'a>(&'a Corner);
+
+impl Serialize for CornerOut<'_> {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let mut out = serializer.serialize_struct("Corner", 3)?;
+        out.serialize_field("figure", self.0.figure.key())?;
+        out.serialize_field("low", &self.0.low)?;
+        out.serialize_field("high", &self.0.high)?;
+        out.end()
+    }
+}
 
 /// `halfrail spread` output.
 pub struct SpreadSummary<'a>(pub &'a SpreadResult);
@@ -31,20 +68,9 @@ impl Serialize for SpreadSummary<'_> {
         for (k, figure) in Figure::ALL.iter().enumerate() {
             out.serialize_field(figure.key(), &r.summary.stats[k])?;
         }
-        let nominal: serde_json::Map<String, serde_json::Value> = Figure::ALL.iter().zip(&r.nominal).map(|(f, v)| (f.key().to_string(), (*v).into())).collect();
-        out.serialize_field("nominal", &nominal)?;
-        let swings: Vec<serde_json::Value> = r
-            .swings
-            .iter()
-            .map(|s| {
-                let mut m: serde_json::Map<String, serde_json::Value> = Figure::ALL.iter().zip(&s.per_figure).map(|(f, v)| (f.key().to_string(), (*v).into())).collect();
-                m.insert("quantity".into(), s.quantity.key().into());
-                serde_json::Value::Object(m)
-            })
-            .collect();
-        out.serialize_field("swings", &swings)?;
-        let corners: Vec<serde_json::Value> = r.corners.iter().map(|c| serde_json::json!({ "figure": c.figure.key(), "low": c.low, "high": c.high })).collect();
-        out.serialize_field("corners", &corners)?;
+        out.serialize_field("nominal", &FiguresOut(&r.nominal))?;
+        out.serialize_field("swings", &r.swings.iter().map(SwingOut).collect::<Vec<_>>())?;
+        out.serialize_field("corners", &r.corners.iter().map(CornerOut).collect::<Vec<_>>())?;
         out.end()
     }
 }
@@ -65,9 +91,19 @@ impl Serialize for TrialColumns<'_> {
 /// Trials back from their columns (JSON text of `TrialColumns`, possibly joined
 /// from several runs): the field named is `trials` when the text is not that.
 pub fn trials_from_columns(text: &str) -> crate::error::Result<Vec<crate::analysis::spread::Values>> {
+    #[derive(serde::Deserialize)]
+    struct Columns {
+        gain_db: Vec<Option<f64>>,
+        f_low_hz: Vec<Option<f64>>,
+        f_high_hz: Vec<Option<f64>>,
+        phase_margin_deg: Vec<Option<f64>>,
+        iq_a: Vec<Option<f64>>,
+        nf_db: Vec<Option<f64>>,
+    }
     let bad = |why: String| crate::error::FieldError::new("trials", why);
-    let map: std::collections::BTreeMap<String, Vec<Option<f64>>> = serde_json::from_str(text).map_err(|e| bad(e.to_string()))?;
-    let columns: Vec<&Vec<Option<f64>>> = Figure::ALL.iter().map(|f| map.get(f.key()).ok_or_else(|| bad(format!("no `{}` column", f.key())))).collect::<crate::error::Result<_>>()?;
+    let c: Columns = serde_json::from_str(text).map_err(|e| bad(e.to_string()))?;
+    // In `Figure::ALL` order.
+    let columns = [&c.gain_db, &c.f_low_hz, &c.f_high_hz, &c.phase_margin_deg, &c.iq_a, &c.nf_db];
     let n = columns[0].len();
     if columns.iter().any(|c| c.len() != n) {
         return Err(bad("the columns differ in length".into()));
