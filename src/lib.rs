@@ -20,6 +20,7 @@
 //! ```
 
 pub mod analysis;
+pub mod chain;
 pub mod doc;
 pub mod engine;
 pub mod error;

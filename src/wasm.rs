@@ -284,6 +284,22 @@ pub fn spread_finish(text: &str, columns: &str) -> Result<JsValue, JsValue> {
     to_js(&doc::SpreadReport(&plan.finish(trials).map_err(thrown)?))
 }
 
+/// The document's stage as a chain block (gain, NF, OIP3, OP1dB, DC power): the
+/// slow part of a chain, computed once in a worker and handed back to `chainReport`.
+#[wasm_bindgen(js_name = stageBlock)]
+pub fn stage_block(text: &str) -> Result<JsValue, JsValue> {
+    to_js(&doc::StageBlock(&doc::load(text).and_then(|d| d.stage_block()).map_err(thrown)?))
+}
+
+/// The chain's budget; `stage` is `stageBlock`'s result as JSON text, or empty to
+/// compute it here.
+#[wasm_bindgen(js_name = chainReport)]
+pub fn chain_report(text: &str, stage: &str) -> Result<JsValue, JsValue> {
+    let document = doc::load(text).map_err(thrown)?;
+    let known = if stage.is_empty() { None } else { Some(doc::stage_block_from(stage).map_err(thrown)?) };
+    to_js(&doc::ChainReport(&document.chain(known).map_err(thrown)?))
+}
+
 /// The operating point alone (no curves): for the Stage panel's figures.
 #[wasm_bindgen(js_name = biasOf)]
 pub fn bias_of(text: &str) -> Result<JsValue, JsValue> {

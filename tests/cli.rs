@@ -253,3 +253,16 @@ fn spread_prints_statistics_and_yield() {
     assert!((0.0..=1.0).contains(&y));
     assert!(json["swings"].as_array().unwrap().iter().any(|s| s["quantity"] == "r_fb_ohm"));
 }
+
+#[test]
+fn chain_prints_the_budget() {
+    let json: serde_json::Value = serde_json::from_str(&stdout(&halfrail(&["chain", &demo()]))).unwrap();
+    for key in ["gain_db", "nf_db", "iip3_dbm", "oip3_dbm", "ip1db_dbm", "noise_floor_in_dbm", "snr_db", "sfdr_db", "output_dbm", "dc_w"] {
+        assert!(json[key].as_f64().is_some_and(f64::is_finite), "{key}: {}", json[key]);
+    }
+    let stages = json["stages"].as_array().unwrap();
+    assert_eq!(stages.len(), 4, "the demo chain has four blocks");
+    assert_eq!(stages[1]["name"], "Inverter gain block");
+    // The output level is the input plus the chain's gain.
+    assert!((json["output_dbm"].as_f64().unwrap() - (-60.0 + json["gain_db"].as_f64().unwrap())).abs() < 1e-9);
+}

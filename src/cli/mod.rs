@@ -2,6 +2,7 @@
 //! text to print, or a one-line failure.
 
 mod analyze;
+mod chain;
 mod check;
 mod convert;
 mod design;
@@ -54,6 +55,8 @@ enum Verb {
     Design(design::Args),
     /// The Monte Carlo of the document's tolerances: statistics, yield, swings and corners.
     Spread(spread::Args),
+    /// The cascade budget of the document's chain of blocks.
+    Chain(chain::Args),
     /// The steady-state waveform of one tone at f_design and the input level, as CSV.
     Wave(analyze::SweepArgs),
     /// The stage's S-parameters as a Touchstone 1.1 two-port file.
@@ -79,6 +82,7 @@ pub fn run(args: impl IntoIterator<Item = OsString>) -> Result<String, Failure> 
         Verb::Sweep(args) => analyze::run_sweep(args),
         Verb::Design(args) => design::run(args),
         Verb::Spread(args) => spread::run(args),
+        Verb::Chain(args) => chain::run(args),
         Verb::Wave(args) => analyze::run_wave(args),
         Verb::Touchstone(args) => analyze::run_touchstone(args),
         Verb::Fit(args) => fit::run(args),

@@ -7,6 +7,7 @@ mod serialize;
 mod locate;
 mod loop_report;
 mod swing_report;
+mod chain_report;
 mod design_report;
 mod spread_report;
 mod quantity;
@@ -14,6 +15,7 @@ mod sections;
 pub use loop_report::{LoopReport, LoopSummary, SuggestionOut};
 pub use swing_report::{LargeSummary, SwingReport};
 pub use design_report::DesignReport;
+pub use chain_report::{stage_block_from, ChainReport, StageBlock};
 pub use spread_report::{trials_from_columns, SpreadReport, SpreadSummary, TrialColumns};
 pub use serialize::{AcReport, AnalyzeReport, BiasReport, PartReport, ResponseReport, DocumentSummary, LookupReport, NearestReport, SeriesFacts, ValueInUnit};
 mod validate;
@@ -253,6 +255,51 @@ impl Document {
         plan.finish(trials)
     }
 
+    /// This document's stage as a chain block: GT and NF at f_design, OIP3 and OP1dB
+    /// from the large-signal analysis, DC power from the bias (the slow part of a
+    /// chain: the page computes it once, off the main thread).
+    pub fn stage_block(&self) -> Result<crate::chain::Block> {
+        let missing = |what: &str| FieldError::new("chain", format!("a stage block needs {what}"));
+        let (part, stage) = self.part_and_stage()?;
+        let analysis = self.sweep().map_err(|_| missing("the analysis section (its f_design_hz)"))?;
+        let response = analysis.response(&part, &stage)?;
+        let gain_db = response.design.gt.map(|g| 10.0 * g.log10()).ok_or_else(|| missing("a source resistance and a load resistor (its power gain)"))?;
+        let nf_db = response.design.nf_db().ok_or_else(|| missing("a source resistance (its noise figure)"))?;
+        let large = analysis.large(&part, &stage, &mut |_| {})?;
+        let bias = self.bias()?;
+        Ok(crate::chain::Block {
+            name: "stage".into(),
+            gain_db,
+            nf_db,
+            oip3_dbm: large.intercept.map(|i| i.oip3_dbm),
+            op1db_dbm: large.compression.and_then(|c| c.op1db_dbm),
+            dc_w: Some(bias.power_w),
+        })
+    }
+
+    /// The `chain` section's budget; `stage` is the stage block's figures when
+    /// already known (else computed when a stage block is in the chain).
+    pub fn chain(&self, stage: Option<crate::chain::Block>) -> Result<crate::chain::Cascade> {
+        use crate::chain::{cascade, Block as Core, Levels};
+        let chain = self.chain.as_ref().ok_or_else(|| FieldError::new("chain", "missing; a budget needs the chain of blocks"))?;
+        let mut stage = stage;
+        let mut blocks = Vec::with_capacity(chain.blocks.len());
+        for (i, b) in chain.blocks.iter().enumerate() {
+            let name = b.name.clone().unwrap_or_else(|| format!("{:?} {}", b.kind, i + 1).to_ascii_lowercase());
+            blocks.push(match b.kind {
+                BlockKind::Stage => {
+                    if stage.is_none() {
+                        stage = Some(self.stage_block()?);
+                    }
+                    Core { name, ..stage.clone().expect("just computed") }
+                }
+                BlockKind::Pad | BlockKind::Filter => Core::passive(&name, b.loss_db.unwrap_or(0.0)),
+                BlockKind::Amp => Core::amp(&name, b.gain_db.unwrap_or(0.0), b.nf_db.unwrap_or(0.0), b.oip3_dbm, b.op1db_dbm, b.dc_w),
+            });
+        }
+        Ok(cascade(&blocks, &Levels { input_dbm: chain.input_dbm, bandwidth_hz: chain.bandwidth_hz, snr_wanted_db: chain.snr_wanted_db.unwrap_or(DEFAULT_SNR_DB) }))
+    }
+
     /// The part fitted to the `bench` readings, starting from the document's part.
     pub fn bench_fit(&self) -> Result<crate::analysis::Fit> {
         let bench = self.bench.as_ref().ok_or_else(|| FieldError::new("bench", "missing; a fit needs the bench readings"))?;
@@ -299,6 +346,10 @@ pub struct SpreadResult {
     /// Every trial's figures (the histograms).
     pub trials: Vec<crate::analysis::spread::Values>,
 }
+
+/// The SNR of the minimum detectable signal when the chain names none (common
+/// practice: 10 dB for a usable signal).
+pub const DEFAULT_SNR_DB: f64 = 10.0;
 
 /// The largest document accepted, in bytes.
 pub const MAX_DOCUMENT_BYTES: usize = 4 << 20;

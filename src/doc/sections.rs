@@ -364,6 +364,9 @@ pub struct Chain {
     #[serde(deserialize_with = "value::<Hertz, _>")]
     pub bandwidth_hz: f64,
     pub blocks: Vec<Block>,
+    /// The SNR the minimum detectable signal is counted at (10 dB when absent).
+    #[serde(default, deserialize_with = "optional::<Decibel, _>")]
+    pub snr_wanted_db: Option<f64>,
 }
 
 /// A whole design document (`"halfrail": 1`).

@@ -246,6 +246,7 @@ fn block(at: &str, b: &Block) -> Result<()> {
 fn chain(c: &Chain) -> Result<()> {
     range("chain.input_dbm", c.input_dbm, Closed(-200.0), Closed(60.0))?;
     range("chain.bandwidth_hz", c.bandwidth_hz, Open(0.0), Closed(MAX_HZ))?;
+    optional_range("chain.snr_wanted_db", c.snr_wanted_db, Closed(-20.0), Closed(100.0))?;
     list_length("chain.blocks", c.blocks.len())?;
     for (i, b) in c.blocks.iter().enumerate() {
         block(&format!("chain.blocks[{i}]"), b)?;

@@ -133,6 +133,13 @@ fn main() {
     });
     report("spread, demo, 2000 trials + swings + corners", spread, None);
     figures.push(("spread", spread));
+    {
+        use halfrail::chain::{cascade, Block, Levels};
+        let blocks: Vec<Block> = (0..12).map(|i| if i % 3 == 0 { Block::passive("pad", 3.0) } else { Block::amp("amp", 15.0, 4.0, Some(25.0), Some(12.0), Some(0.05)) }).collect();
+        report("cascade of 12 blocks", median_time(|| {
+            black_box(cascade(black_box(&blocks), &Levels { input_dbm: -60.0, bandwidth_hz: 1e6, snr_wanted_db: 10.0 }));
+        }), None);
+    }
     let bench = doc.bench.as_ref().unwrap();
     let start = bench.starting_part(doc.part.as_ref());
     let readings = bench.readings().unwrap();
