@@ -69,3 +69,8 @@ HR.fmt = (value, unit = '', digits = 3) => {
   const r = HR.call('formatValue', value, unit, digits);
   return r.ok === undefined ? '—' : r.ok;
 };
+
+// Whether a figure from the core is there to show (the core sends null where a
+// figure does not exist), and a figure to a fixed number of decimals, or a dash.
+HR.known = (v) => v !== null && v !== undefined && Number.isFinite(v);
+HR.fixed = (v, decimals) => (HR.known(v) ? wasm_bindgen.formatFixed(v, decimals) : '—');

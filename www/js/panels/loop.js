@@ -8,8 +8,7 @@
 (() => {
   const { el, card } = HR.ui;
   const fmt = HR.fmt;
-  const known = (v) => v !== null && v !== undefined && Number.isFinite(v);
-  const fixed = (v, decimals) => (known(v) ? wasm_bindgen.formatFixed(v, decimals) : '—');
+  const { known, fixed } = HR;
   const deg = (v, decimals = 1) => (known(v) ? `${fixed(v, decimals)}°` : '—');
   const hz = (v, digits = 3) => (known(v) ? fmt(v, 'Hz', digits) : '—');
   const about = (v) => hz(v, 2);

@@ -10,8 +10,7 @@
 (() => {
   const { el, card } = HR.ui;
   const fmt = HR.fmt;
-  const known = (v) => v !== null && v !== undefined && Number.isFinite(v);
-  const fixed = (v, decimals) => (known(v) ? wasm_bindgen.formatFixed(v, decimals) : '—');
+  const { known, fixed } = HR;
   const dbm = (v) => (known(v) ? fmt(v, 'dBm') : '—');
   const dbc = (v) => (known(v) ? `${fmt(v, 'dB')}c` : '—');
   const volts = (v) => (known(v) ? fmt(v, 'V', 3) : '—');
