@@ -24,6 +24,7 @@ const SCRIPTS = [
   'js/panels/bench.js',
   'js/panels/loop.js',
   'js/panels/swing.js',
+  'js/panels/spread.js',
   'js/panels/planned.js',
   'js/shell.js',
 ];

@@ -38,6 +38,17 @@ HR.design = (() => {
 
   const notify = (origin) => listeners.forEach((fn) => fn(origin));
 
+  // Writes fields of a section (an empty value removes the field), then tells the views.
+  const put = (section, values, origin) => {
+    draft[section] = draft[section] || {};
+    for (const [key, value] of Object.entries(values)) {
+      if (value === '' || value === null || value === undefined) delete draft[section][key];
+      else draft[section][key] = value;
+    }
+    save();
+    notify(origin);
+  };
+
   // Moves one step from one history to the other: undo (past → future) or redo.
   const travel = (from, to, origin) => {
     const step = from.pop();
@@ -61,11 +72,18 @@ HR.design = (() => {
     // Sets one field as typed; an empty text removes it (not fitted / default).
     set(section, key, value, origin) {
       remember(`edit ${section}.${key}`, `${section}.${key}`);
-      draft[section] = draft[section] || {};
-      if (value === '' || value === null || value === undefined) delete draft[section][key];
-      else draft[section][key] = value;
-      save();
-      notify(origin);
+      put(section, { [key]: value }, origin);
+    },
+    // Sets several fields of one section as one step: one undo takes them all back.
+    setMany(section, values, label, origin) {
+      remember(label, null);
+      put(section, values, origin);
+    },
+    // A field's value in SI base units as the core reads it, or null when empty or bad.
+    value(section, key, unit = '') {
+      const v = this.get(section, key);
+      const r = v === undefined || v === null || v === '' ? {} : HR.call('parseValue', String(v), unit, `${section}.${key}`);
+      return r.ok ? r.ok.value : null;
     },
     // Replaces a whole section as one step.
     replace(name, value, label) {

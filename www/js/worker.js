@@ -130,10 +130,13 @@ HR.background = (() => {
   // cancel.
   //   spec: {name, args(text) → [...], lane, delay, render(result, {ms, text}),
   //          report(error | null), stale(why | null, rendered), progress(fraction | null)}
+  //   or, for a run of several calls (in several lanes), `job(text, onProgress)` in
+  //   place of name and args, returning what run() returns: {promise, cancel()}.
   //   `why`: 'running', 'error', 'cancelled' or 'due' (changed while hidden or held).
   // Returns {start() (run now), cancel()}. `panel.dataset.computed` counts results.
   const follow = (panel, spec) => {
-    const { name, args, lane = name, delay = 300, render, report, stale, progress } = spec;
+    const { name, args, lane = name, delay = 300, render, report, stale, progress,
+      job: begin = (text, onProgress) => run(name, args(text), { lane, onProgress }) } = spec;
     let shownText = null;   // the design text of the result on show
     let job = null;
     let timer = null;
@@ -162,7 +165,7 @@ HR.background = (() => {
     };
 
     const launch = (text, fallback = false) => {
-      const mine = run(name, args(text), { lane, onProgress: (p) => progress(p) });
+      const mine = begin(text, (p) => progress(p));
       job = mine;
       progress(0);
       if (!fallback) stale('running', shownText !== null);

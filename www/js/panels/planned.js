@@ -5,7 +5,6 @@
 (() => {
   const { el } = HR.ui;
   const PLANNED = [
-    ['spread', 'Spread', 'How component tolerances move the result: Monte Carlo histograms, yield against your limits, worst-case corners and which part to buy tighter.'],
     ['chain', 'Chain', 'The stage inside a cascade of pads, filters and other amplifiers: gain, noise figure, intercept, compression and the level at every node.'],
   ];
   for (const [id, title, text] of PLANNED) {

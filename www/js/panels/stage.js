@@ -37,6 +37,141 @@
     return { text: `${name} | ${shown}${series}`, short: v === 0 };
   };
 
+  // ---- Design to a target --------------------------------------------------------
+  const { known } = HR;
+  const db = (v) => (known(v) ? HR.fmt(v, 'dB') : '—');
+  // Signed, so over and short read apart; no sign where it rounds to nothing.
+  const off = (v) => (db(v) !== '0.00 dB' && v > 0 ? `+${db(v)}` : db(v));
+  const rkm = (v) => wasm_bindgen.formatRkm(v, 'R') || HR.fmt(v, 'Ω', 3);
+  const rfb = (c) => (c.r_fb_parts_ohm ? c.r_fb_parts_ohm.map(rkm).join(c.r_fb_joined === 'series' ? ' + ' : ' ∥ ') : rkm(c.r_fb_ohm));
+  // The text to put in the design: the RKM code when it reads back as exactly the value.
+  const asText = (v, kind, unit) => {
+    const code = wasm_bindgen.formatRkm(v, kind);
+    const back = code ? HR.call('parseValue', code, unit, '') : {};
+    return back.ok && back.ok.value === v ? code : v;
+  };
+  const TARGET = [
+    ['gain_db', 'Gain wanted', 'dB at f_design, e.g. 12'], ['f_low_hz', 'Low corner', 'Hz, optional: picks C in and C out'],
+    ['s11_max_db', 'S11 at most', 'dB, optional, e.g. -15'], ['iq_max_a', 'Supply current at most', 'A, optional'],
+    ['nf_max_db', 'Noise figure at most', 'dB, optional'], ['gain_tol_db', 'Gain tolerance', '± dB, optional (for the Spread yield)'],
+    ['pm_min_deg', 'Phase margin at least', '°, optional (for the Spread yield)'],
+  ];
+
+  // The form (the design's `target` section, so it persists and undoes) and the
+  // core's designReport laid out: ranked standard pairs, each with Use.
+  const designCard = (container) => {
+    const text = (key) => { const v = HR.design.get('target', key); return v === undefined || v === null ? '' : String(v); };
+    const byKey = {};
+    const fields = TARGET.map(([key, label, hint]) => {
+      const f = HR.ui.field({ label, hint, value: text(key), onInput: (v) => HR.design.set('target', key, v.trim(), 'stage') });
+      f.wrap.classList.add('compact');
+      byKey[key] = f;
+      return [key, f];
+    });
+    const selects = [
+      ['gain_kind', 'Gain kind', [['voltage', 'Voltage, v(out)/v(in)'], ['power', 'Power, GT']], 'voltage'],
+      ['series', 'Resistor series', wasm_bindgen.seriesFacts().map((f) => [f.name, f.name]), 'E24'],
+    ].map(([key, label, options, fallback]) => {
+      const c = HR.ui.choice({ label, options, value: text(key) || fallback, onChange: (v) => HR.design.set('target', key, v, 'stage') });
+      c.wrap.classList.add('compact');
+      return [key, c, fallback];
+    });
+    const tick = (key, label, onchange) => {
+      const box = el('input', { type: 'checkbox', onchange });
+      return { key, box, wrap: el('label', { class: 'tick' }, box, ` ${label}`) };
+    };
+    const ticks = [['match_source', 'R in matches the source resistance'], ['allow_combinations', 'R fb may be two standard values, in series or parallel']]
+      .map(([key, label]) => tick(key, label, (e) => HR.design.set('target', key, e.target.checked || '', 'stage')));
+    const caps = tick('', 'Use fits these capacitors too', () => {});
+    caps.box.checked = true;
+    const sync = () => {
+      fields.forEach(([key, f]) => { if (document.activeElement !== f.input) f.input.value = text(key); });
+      selects.forEach(([key, c, fallback]) => { c.select.value = text(key) || fallback; });
+      ticks.forEach((t) => { t.box.checked = HR.design.get('target', t.key) === true; });
+    };
+    sync();
+
+    const problem = el('div', { class: 'error', 'aria-live': 'polite' });
+    // Errors from the core name their field: a target field shows it beside itself.
+    const route = (error) => {
+      Object.values(byKey).forEach((f) => f.setError(null));
+      const key = error && /^target\./.test(error.field) ? error.field.slice(7) : null;
+      if (byKey[key]) byKey[key].setError(error.reason);
+      return Boolean(byKey[key]);
+    };
+    const warn = el('p', { class: 'warning', hidden: true });
+    const best = el('p', { class: 'design-best' });
+    const hand = HR.ui.table('The ideal ratio against the part’s real gain', ['', 'R in', 'R fb', 'Gives', 'Off target']);
+    const handNote = el('p', { class: 'plot-note' });
+    const capsNote = el('p', { class: 'intro' });
+    const list = HR.ui.table('', ['#', 'R in', 'R fb', 'Gain', 'Off target', 'S11', 'NF', 'Supply current', 'Limits met', '']);
+    list.node.classList.add('candidates');
+    const out = el('div', { class: 'design-out', hidden: true }, warn, best,
+      el('div', { class: 'scroll' }, hand.node), handNote, capsNote, caps.wrap, el('div', { class: 'scroll' }, list.node));
+
+    const render = (d) => {
+      const series = text('series') || 'E24';
+      const target = HR.design.value('target', 'gain_db', 'dB');
+      const top = d.candidates[0];
+      warn.hidden = d.feasible;
+      warn.textContent = d.feasible ? '' : `This part cannot reach ${db(target)} at f_design (${HR.fmt(HR.design.value('analysis', 'f_design_hz', 'Hz'), 'Hz', 4)}): its open-loop gain there allows at most ${db(d.ceiling_db)}. The nearest target it can meet is ${db(d.ceiling_db)}; or lower f_design, or take a faster part.`;
+      best.textContent = top ? `Best ${series} pair: R in ${rkm(top.r_in_ohm)}, R fb ${rfb(top)}, giving ${db(top.gain_db)}.${known(d.continuous_r_fb_ohm) ? ` Exact values: R in ${HR.fmt(d.continuous_r_in_ohm, 'Ω', 4)}, R fb ${HR.fmt(d.continuous_r_fb_ohm, 'Ω', 4)}.` : ''}` : `No ${series} pair comes near the target.`;
+      const bh = d.by_hand;
+      const rows = [[`By hand: −R fb/R in = the gain, in ${series}`, rkm(bh.r_in_ohm), rfb(bh), db(bh.gain_db), off(bh.error_db)]];
+      if (top) rows.push([`Designed with the part’s gain, in ${series}`, rkm(top.r_in_ohm), rfb(top), db(top.gain_db), off(top.error_db)]);
+      HR.ui.fillRows(hand.tbody, rows);
+      handNote.textContent = `The ideal ratio assumes a part of endless gain. This part’s open-loop gain is finite and falls with frequency, so at f_design the by-hand pair gives ${db(bh.gain_db)}, ${db(Math.abs(bh.error_db))} ${bh.error_db < 0 ? 'short of' : 'over'} the target; the design counts the real gain, phase and all.`;
+      const hasCaps = known(d.c_in_f) || known(d.c_out_f);
+      const cap = (v) => (known(v) ? HR.fmt(v, 'F', 2) : 'as it is');
+      capsNote.textContent = hasCaps ? `Coupling capacitors (E12) for the low corner: C in ${cap(d.c_in_f)}, C out ${cap(d.c_out_f)}, giving a corner at ${HR.fmt(d.f_low_hz, 'Hz', 4)}.`
+        : 'Give a low corner to have the coupling capacitors chosen; Use then leaves them as they are.';
+      caps.wrap.hidden = !hasCaps;
+      capsNote.hidden = !top;
+      list.node.querySelector('caption').textContent = `${d.candidates.length} standard pairs from ${series}, best first (Off target: gain minus the target; S11: against the source resistance; Limits: the target’s S11, current and NF limits)`;
+      list.node.hidden = !top;
+      HR.ui.fillRows(list.tbody, d.candidates.map((c, i) => [String(i + 1), rkm(c.r_in_ohm), rfb(c), db(c.gain_db), off(c.error_db), db(c.s11_db),
+        db(c.nf_db), HR.fmt(c.iq_a, 'A', 3), c.meets_limits ? 'yes' : 'no',
+        el('button', { type: 'button', class: 'apply', 'aria-label': `Use R in ${rkm(c.r_in_ohm)} and R fb ${rfb(c)}`, onclick: () => {
+          const values = { r_in_ohm: asText(c.r_in_ohm, 'R', 'Ω'), r_fb_ohm: asText(c.r_fb_ohm, 'R', 'Ω') };
+          if (hasCaps && caps.box.checked) {
+            if (known(d.c_in_f)) values.c_in_f = asText(d.c_in_f, 'C', 'F');
+            if (known(d.c_out_f)) values.c_out_f = asText(d.c_out_f, 'C', 'F');
+          }
+          HR.design.setMany('stage', values, `use ${rkm(c.r_in_ohm)} / ${rfb(c)}`, 'stage');
+        } }, 'Use')]));
+    };
+
+    // Design once asked, then again a pause after each change (5 to 15 ms a call).
+    let asked = false;
+    let timer = null;
+    const design = () => {
+      clearTimeout(timer);
+      asked = true;
+      const r = HR.call('designReport', HR.design.text());
+      const atField = route(r.error);
+      problem.textContent = r.error && !atField ? r.error.message || r.error.reason : '';
+      out.classList.toggle('stale', Boolean(r.error));
+      if (r.error) return;
+      render(r.ok);
+      out.hidden = false;
+      container.dataset.designed = String(Number(container.dataset.designed || 0) + 1);
+    };
+    HR.design.onChange(() => {
+      sync();
+      if (!asked) return;
+      out.classList.add('stale');
+      clearTimeout(timer);
+      timer = setTimeout(design, 300);
+    });
+    const node = card('Design to a target',
+      el('p', { class: 'intro' }, 'The gain you want at f_design; Design finds the standard resistor pairs that give it with this part’s real, finite gain, ranked by gain error, match, noise and current. Use puts a pair in the stage (one step to undo).'),
+      el('div', { class: 'grid-fields' }, fields.slice(0, 1).map(([, f]) => f.wrap), selects.map(([, c]) => c.wrap), fields.slice(1).map(([, f]) => f.wrap)),
+      el('div', { class: 'inputs' }, ticks.map((t) => t.wrap)),
+      el('div', { class: 'actions' }, el('button', { type: 'button', onclick: design }, 'Design')), problem, out);
+    node.classList.add('wide');
+    return { node, route };
+  };
+
   HR.panel({
     id: 'stage',
     title: 'Stage',
@@ -103,11 +238,13 @@
         cells.diss.textContent = fmt(b.dissipation_w, 'W');
       };
 
+      const target = designCard(container);
       container.append(el('h1', {}, 'Stage'),
         el('p', { class: 'lede' }, 'The components around the part. Click a value (or Tab to it and press Enter) to change it; leave it empty to take the part out. Values take engineering notation or RKM codes (4k7, 100n).'),
         el('div', { class: 'cards' },
           (() => { const c = card('Schematic', el('div', { class: 'scroll' }, drawing), problem, el('div', { class: 'actions' }, undo, redo)); c.classList.add('wide'); return c; })(),
-          (() => { const c = card('Key figures', stale, readout); c.classList.add('wide'); return c; })()));
+          (() => { const c = card('Key figures', stale, readout); c.classList.add('wide'); return c; })(),
+          target.node));
 
       document.addEventListener('keydown', (e) => {
         if (container.hidden || container.closest('[hidden]') || !(e.ctrlKey || e.metaKey)) return;
@@ -124,7 +261,7 @@
           return r.error || b.error ? { error: r.error || b.error } : { ok: { r: r.ok, b: b.ok } };
         },
         render: ({ r, b }) => render(r, b),
-        report: (error) => { refresh(error); problem.textContent = error ? error.message || error.reason : ''; },
+        report: (error) => { refresh(error); target.route(error); problem.textContent = error ? error.message || error.reason : ''; },
         stale: (isStale, rendered) => {
           readout.classList.toggle('stale', isStale);
           stale.hidden = !(isStale && rendered);

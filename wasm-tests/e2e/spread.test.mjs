@@ -1,0 +1,252 @@
+// The Spread panel in Chromium from file://: the Monte Carlo runs in two background
+// workers (the trials split between them, joined and summarised in a worker), the page
+// keeps answering during the run, the progress bar reaches completion, the yield and
+// the gain's mean and spread agree with the native CLI (`halfrail spread`) to the
+// precision shown, Cancel ends both workers and no result of the cancelled run lands,
+// an edit supersedes a run, the histograms are drawn, and the tolerances are fields of
+// the design (persisted, undoable, a bad one refused at its field).
+import { test, before, after, beforeEach } from 'node:test';
+import assert from 'node:assert/strict';
+import { execFileSync } from 'child_process';
+import fs from 'fs';
+import os from 'os';
+import path from 'path';
+import { fileURLToPath } from 'url';
+import { launch, watch, ready, clearStorage, PAGE_URL } from './browser.mjs';
+
+const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
+let browser;
+before(async () => { browser = await launch(); });
+after(async () => { await browser.close(); });
+beforeEach(() => clearStorage(browser.context));
+
+// The native CLI's spread summary for a document (built by `make test-e2e`).
+function cliSpread(text) {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'halfrail-spread-'));
+  const file = path.join(dir, 'design.halfrail.json');
+  fs.writeFileSync(file, text);
+  try {
+    return JSON.parse(execFileSync(path.join(root, 'target/debug/halfrail'), ['spread', file]));
+  } finally {
+    fs.rmSync(dir, { recursive: true, force: true });
+  }
+}
+
+// Watches, from before the page's own scripts run: every Worker made (its name) and
+// terminated, every animation frame, and every value the progress bar shows, with its time.
+const instrument = () => {
+  const log = { workers: [], terminated: 0, frames: [], progress: [] };
+  window.__spread = log;
+  const Native = window.Worker;
+  window.Worker = class extends Native {
+    constructor(url, options) { super(url, options); log.workers.push(`${options && options.name} ${url}`); }
+  };
+  const terminate = Native.prototype.terminate;
+  Native.prototype.terminate = function () { log.terminated += 1; return terminate.call(this); };
+  const tick = (t) => { log.frames.push(t); requestAnimationFrame(tick); };
+  requestAnimationFrame(tick);
+  new MutationObserver((records) => {
+    for (const r of records) if (r.target.tagName === 'PROGRESS') log.progress.push([performance.now(), Number(r.target.value)]);
+  }).observe(document, { subtree: true, attributes: true, attributeFilter: ['value'] });
+};
+
+const panel = (page) => page.locator('#panel-spread');
+const computed = (page) => panel(page).getAttribute('data-computed').then(Number);
+const results = (page, n) => page.waitForSelector(`#panel-spread[data-computed="${n}"]`, { timeout: 30000 });
+const runBox = (page) => page.locator('#panel-spread .run');
+// Polled every frame (a locator's waitFor polls every half second once it has waited a while).
+const runShown = (page) => page.waitForFunction(() => !document.querySelector('#panel-spread .run').hidden);
+const log = (page) => page.evaluate(() => window.__spread);
+const figureRow = (page, name) => page.locator('#panel-spread table tbody tr').filter({ hasText: name }).locator('td').allTextContents();
+const tolerance = (page, label) => page.locator('#panel-spread').getByLabel(label, { exact: true });
+
+async function openSpread(hash = '#spread') {
+  const page = await browser.context.newPage();
+  const seen = watch(page);
+  await page.addInitScript(instrument);
+  await page.goto(PAGE_URL + hash);
+  await ready(page);
+  return { page, seen };
+}
+
+// How many pixels of each canvas of the panel are in the first series colour (the bars'
+// outlines): an axes-only canvas has none.
+const barPixels = (page) => page.evaluate(() => {
+  const hex = getComputedStyle(document.documentElement).getPropertyValue('--plot-1').trim();
+  const want = [1, 3, 5].map((i) => parseInt(hex.slice(i, i + 2), 16));
+  return [...document.querySelectorAll('#panel-spread canvas')].filter((c) => c.getBoundingClientRect().width > 0).map((c) => {
+    const { data } = c.getContext('2d').getImageData(0, 0, c.width, c.height);
+    let n = 0;
+    for (let i = 0; i < data.length; i += 4) {
+      if (data[i + 3] > 200 && Math.abs(data[i] - want[0]) + Math.abs(data[i + 1] - want[1]) + Math.abs(data[i + 2] - want[2]) < 30) n++;
+    }
+    return n;
+  });
+});
+
+test('the demo spreads in two workers; the yield and the gain agree with the CLI; the histograms are drawn', async () => {
+  const { page, seen } = await openSpread();
+  await results(page, 1);
+  const l = await log(page);
+  assert.equal(l.workers.length, 2, `two workers made: ${l.workers}`);
+  assert.deepEqual(l.workers.map((w) => w.split(' ')[0]).sort(), ['halfrail-spread-0', 'halfrail-spread-1']);
+  assert.ok(l.workers.every((w) => / blob:/.test(w)), 'from a Blob');
+  assert.equal(await page.evaluate(() => HR.background.started), 2);
+
+  const text = await page.evaluate(() => HR.design.text());
+  const cli = cliSpread(text);
+  assert.equal(cli.trials, 2000);
+  // To the precision shown (wasm and native libm differ in the last bits).
+  assert.equal(await page.locator('#panel-spread [data-key="yield"]').textContent(), `Yield ${(100 * cli.yield).toFixed(1)} %`);
+  assert.match(await panel(page).textContent(), new RegExp(`${Math.round(cli.yield * cli.trials)} of 2000 trials meet the target’s limits: gain at f_design 11\\.00 dB … 13\\.00 dB, low band edge ≤ 100\\.0 kHz\\.`));
+  const [nominal, mean, std, range] = await figureRow(page, 'Gain at f_design');
+  assert.equal(mean, `${cli.gain_db.mean.toFixed(2)} dB`);
+  assert.equal(std, `${cli.gain_db.std.toFixed(2)} dB`);
+  assert.equal(nominal, `${cli.nominal.gain_db.toFixed(2)} dB`);
+  assert.equal(range, `${cli.gain_db.p1.toFixed(2)} dB … ${cli.gain_db.p99.toFixed(2)} dB`);
+  // The demo's stage is not yet designed to its 12 dB target, and the panel says so.
+  assert.match(await panel(page).textContent(), /nominal design itself misses the gain at f_design limit/);
+  // The worst corner is at least as far out as any trial.
+  const corner = cli.corners.find((c) => c.figure === 'gain_db');
+  assert.ok(corner.low <= cli.gain_db.min && corner.high >= cli.gain_db.max);
+  assert.equal((await figureRow(page, 'Gain at f_design'))[4], `${corner.low.toFixed(2)} dB … ${corner.high.toFixed(2)} dB`);
+
+  // Which part to buy tighter: the bars for the gain, largest first, as the CLI's swings.
+  const swings = cli.swings.filter((s) => s.swing.gain_db !== null).sort((a, b) => Math.abs(b.swing.gain_db) - Math.abs(a.swing.gain_db));
+  const bars = await page.locator('#panel-spread .bar-row').evaluateAll((rs) => rs.map((r) => r.dataset.key));
+  assert.deepEqual(bars, swings.map((s) => s.quantity));
+  const top = swings[0];
+  assert.equal(await page.locator(`#panel-spread .bar-row[data-key="${top.quantity}"] .bar-value`).textContent(), `+${top.swing.gain_db.toFixed(2)} dB`);
+  await page.getByLabel('Figure', { exact: true }).selectOption('iq_a');
+  const iq = cli.swings.filter((s) => s.swing.iq_a !== null).sort((a, b) => Math.abs(b.swing.iq_a) - Math.abs(a.swing.iq_a));
+  assert.equal(await page.locator('#panel-spread .bar-row').first().getAttribute('data-key'), iq[0].quantity);
+
+  // Five histograms drawn (no trial has a phase margin in the demo: its cell says so), each with a caption.
+  assert.equal(cli.phase_margin_deg, null);
+  assert.match(await page.locator('#panel-spread .plot-cell[data-key="phase_margin_deg"]').textContent(), /No trial has a loop-gain crossover/);
+  assert.equal(await page.locator('#panel-spread .plot-cell .plot-note').count(), 6);
+  const drawn = await barPixels(page);
+  assert.equal(drawn.length, 5, 'five histogram canvases');
+  assert.ok(drawn.every((n) => n > 100), `bar pixels per canvas: ${drawn}`);
+  assert.match(await page.locator('#panel-spread .plot-cell[data-key="gain_db"] .plot-note').textContent(),
+    new RegExp(`^2000 trials: mean ${cli.gain_db.mean.toFixed(2)} dB, std dev ${cli.gain_db.std.toFixed(2)} dB`));
+  assert.doesNotMatch(await panel(page).textContent(), /NaN|undefined|Infinity/);
+  assert.deepEqual(seen.errors, []);
+  assert.deepEqual(seen.requests, []);
+  await page.close();
+});
+
+test('the page keeps answering during a run, and the progress bar rises to completion', async () => {
+  const { page, seen } = await openSpread('#bench');
+  await page.locator('#rail a[href="#spread"]').click();
+  await results(page, 1);
+  // A longer run, so there is time to watch it.
+  await tolerance(page, 'Trials').fill('12000');
+  await results(page, 2);
+  const during = await page.evaluate(async () => {
+    const before = document.getElementById('panel-spread').dataset.computed;
+    const box = document.querySelector('#panel-spread .run');
+    const t0 = performance.now();
+    [...document.querySelectorAll('#panel-spread button')].find((b) => b.textContent === 'Compute now').click();
+    await new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)));
+    const input = [...document.querySelectorAll('#panel-bench label')].find((x) => x.textContent === 'Level').control;
+    input.value = '-45 dBm';
+    input.dispatchEvent(new Event('input'));
+    return {
+      t0,
+      vpp: document.querySelector('#panel-bench dd[data-key="vpp"]').textContent,
+      stillRunning: !box.hidden && document.getElementById('panel-spread').dataset.computed === before,
+    };
+  });
+  // -45 dBm across 50 Ω: 3.557 mVpp (as page.test.mjs).
+  assert.equal(during.vpp, '3.557 mVpp');
+  assert.ok(during.stillRunning, 'the edit elsewhere was answered while the run still ran');
+  await results(page, 3);
+  const t1 = await page.evaluate(() => performance.now());
+  const l = await log(page);
+  const frames = l.frames.filter((t) => t >= during.t0 && t <= t1);
+  const gaps = frames.slice(1).map((t, i) => t - frames[i]);
+  assert.ok(frames.length >= 5, `${frames.length} frames during the run`);
+  assert.ok(Math.max(...gaps) < 200, `longest gap between frames during the run: ${Math.max(...gaps).toFixed(0)} ms`);
+  const values = l.progress.filter(([t]) => t >= during.t0).map(([, v]) => v);
+  assert.ok(values.length >= 5, `progress values: ${values}`);
+  assert.equal(values[0], 0);
+  assert.ok(values.every((v, i) => i === 0 || v >= values[i - 1]), `progress never goes back: ${values}`);
+  assert.equal(values[values.length - 1], 1, 'the bar reached completion');
+  assert.equal(await runBox(page).isVisible(), false);
+  assert.match(await page.locator('#panel-spread .run-note').textContent(), /^12000 trials computed in \d+\.\d\d s in two background workers\.$/);
+  assert.equal(l.workers.length, 2, 'the two workers are kept between runs');
+  assert.deepEqual(seen.errors, []);
+  assert.deepEqual(seen.requests, []);
+  await page.close();
+});
+
+test('Cancel ends both workers and no result of the run lands; an edit supersedes a run', async () => {
+  const { page, seen } = await openSpread();
+  await results(page, 1);
+  const mean = (await figureRow(page, 'Gain at f_design'))[1];
+  const trials = tolerance(page, 'Trials');
+  await trials.fill('30000');
+  await runShown(page);
+  const terminated = (await log(page)).terminated;
+  await page.locator('#panel-spread .run button', { hasText: 'Cancel' }).click();
+  assert.equal(await runBox(page).isVisible(), false);
+  assert.equal((await log(page)).terminated, terminated + 2, 'both workers were terminated');
+  assert.equal(await page.locator('#panel-spread .stale-note').getAttribute('data-why'), 'cancelled');
+  await page.waitForTimeout(3000); // longer than the run would take: a cancelled one must never land
+  assert.equal(await computed(page), 1);
+  assert.equal((await figureRow(page, 'Gain at f_design'))[1], mean);
+  assert.equal(await runBox(page).isVisible(), false, 'a cancelled run is not restarted by itself');
+
+  // An edit during a run supersedes it: one result, for the last value.
+  await trials.fill('3000');
+  await results(page, 2);
+  assert.equal((await log(page)).workers.length, 4, 'two fresh workers after the cancel');
+  await page.evaluate(() => {
+    window.__notes = [];
+    const note = document.querySelector('#panel-spread .run-note');
+    new MutationObserver(() => window.__notes.push(note.textContent)).observe(note, { childList: true, characterData: true, subtree: true });
+  });
+  await trials.fill('20000');
+  await runShown(page);
+  await trials.fill('4000');
+  await results(page, 3);
+  await page.waitForTimeout(1000);
+  assert.equal(await computed(page), 3, 'one result for the two edits');
+  assert.deepEqual((await page.evaluate(() => window.__notes)).map((t) => t.split(' ')[0]), ['4000']);
+  assert.equal(await page.locator('#panel-spread .stale-note').isVisible(), false);
+  assert.deepEqual(seen.errors, []);
+  assert.deepEqual(seen.requests, []);
+  await page.close();
+});
+
+test('the tolerances are part of the design: a bad one is refused at its field without a run, and undo restores it', async () => {
+  const { page, seen } = await openSpread();
+  await results(page, 1);
+  const resistors = tolerance(page, 'Resistors');
+  assert.equal(await resistors.inputValue(), '1');
+  await resistors.fill('75');
+  await page.waitForFunction(() => !document.querySelector('#panel-spread p.error').hidden);
+  assert.equal(await resistors.getAttribute('aria-invalid'), 'true');
+  assert.match(await page.locator('#panel-spread p.error').textContent(), /^tolerance\.resistor_pct: /);
+  assert.equal(await page.locator('#panel-spread .stale-note').isVisible(), true);
+  await page.waitForTimeout(600);
+  assert.equal(await runBox(page).isVisible(), false, 'no run for a draft the core refuses');
+  assert.equal(await computed(page), 1);
+
+  await resistors.fill('5');
+  await results(page, 2);
+  assert.equal(await resistors.getAttribute('aria-invalid'), 'false');
+  const wider = (await figureRow(page, 'Gain at f_design'))[2];
+  await page.locator('#panel-spread').getByRole('button', { name: 'Undo', exact: true }).click();
+  await results(page, 3);
+  assert.equal(await resistors.inputValue(), '1');
+  assert.notEqual((await figureRow(page, 'Gain at f_design'))[2], wider, 'the spread follows the tolerance');
+  await page.reload();
+  await ready(page);
+  await results(page, 1);
+  assert.equal(await tolerance(page, 'Resistors').inputValue(), '1');
+  assert.equal(await tolerance(page, 'Seed').inputValue(), '7');
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});

@@ -1,0 +1,252 @@
+'use strict';
+// Spread: what the parts' tolerances do to the stage. The core's Monte Carlo runs in
+// the background, its trials split between two workers (spreadTrials on two lanes),
+// the two halves' columns joined in trial order and summarised by spreadFinish in a
+// worker too: histograms of the figures, the yield against the target's limits, how
+// far each part's tolerance moves each figure (which part to buy tighter), the
+// worst-case corners, and the tolerances themselves (in the design, undoable).
+
+(() => {
+  const { el, card, field, choice, table, fillRows } = HR.ui;
+  const fmt = HR.fmt;
+  const { known, fixed } = HR;
+  const css = (name) => HR.plot.css(name);
+
+  // The figures of each trial: document key, name, unit ('°' for degrees).
+  const FIGURES = [
+    ['gain_db', 'Gain at f_design', 'dB'], ['f_low_hz', 'Low band edge', 'Hz'], ['f_high_hz', 'High band edge', 'Hz'],
+    ['phase_margin_deg', 'Phase margin', '°'], ['iq_a', 'Supply current', 'A'], ['nf_db', 'Noise figure', 'dB'],
+  ];
+  const show = (v, unit) => (!known(v) ? '—' : unit === '°' ? `${fixed(v, 1)}°` : fmt(v, unit, 4));
+  const signed = (v, unit) => `${v > 0 ? '+' : ''}${show(v, unit)}`;
+  const PARTS = {
+    shunt_ohm: 'R shunt', r_in_ohm: 'R in', r_fb_ohm: 'R fb', r_out_ohm: 'R out', c_in_f: 'C in', c_fb_f: 'C fb', c_out_f: 'C out',
+    vdd_v: 'Supply Vdd', kn_a_per_v2: 'kn (NMOS)', kp_a_per_v2: 'kp (PMOS)', vtn_v: 'Vtn', vtp_v: 'Vtp',
+  };
+  const TOLERANCES = [
+    ['resistor_pct', 'Resistors', '± %, e.g. 1'], ['capacitor_pct', 'Capacitors', '± %, e.g. 10'],
+    ['vdd_pct', 'Supply', '± %, e.g. 5'], ['k_pct', 'kn and kp', '± %, e.g. 20'], ['vt_mv', 'Thresholds', '± mV, e.g. 100'],
+    ['trials', 'Trials', 'how many random builds'], ['seed', 'Seed', 'whole number: the same seed draws the same builds'],
+  ];
+  const DEFAULT_TRIALS = 1000; // the core's default for tolerance.trials
+
+  // Runs the spread of `text` in the background → {promise, cancel()}, as HR.background.run.
+  // Two lanes: the trials in halves on two workers, then spreadFinish on the first;
+  // one lane: spreadReport in one worker.
+  const run = (text, onProgress = () => {}, lanes = 2) => {
+    const go = (name, args, lane, progress = () => {}) => HR.background.run(name, args, { lane, onProgress: progress });
+    if (lanes === 1) return go('spreadReport', [text], 'spread-1', onProgress);
+    const begun = performance.now();
+    const t = JSON.parse(text).tolerance;
+    const n = (t && t.trials) || DEFAULT_TRIALS;
+    const half = Math.ceil(n / 2);
+    const done = [0, 0];
+    let stopped = false;
+    let runs = [[0, half], [half, n]].map(([from, to], i) => go('spreadTrials', [text, from, to], `spread-${i}`, (p) => {
+      done[i] = p * (to - from);
+      onProgress((0.9 * (done[0] + done[1])) / n);
+    }));
+    const promise = (async () => {
+      const halves = await Promise.all(runs.map((r) => r.promise));
+      const bad = halves.find((h) => h.error) || halves.find((h) => !h.ok);
+      if (bad || stopped) return bad || { cancelled: true };
+      const joined = {};
+      for (const key of Object.keys(halves[0].ok)) joined[key] = halves[0].ok[key].concat(halves[1].ok[key]);
+      runs = [go('spreadFinish', [text, JSON.stringify(joined)], 'spread-0')];
+      const r = await runs[0].promise;
+      if (r.ok) {
+        onProgress(1);
+        r.ms = performance.now() - begun;
+      }
+      return r;
+    })();
+    return { promise, cancel() { stopped = true; runs.forEach((r) => r.cancel()); } };
+  };
+  HR.spread = { run };
+
+  // The target's limits on each figure as [lowest, highest] (null: no bound).
+  const limits = () => {
+    const v = (key, unit) => HR.design.value('target', key, unit);
+    const gain = v('gain_db', 'dB');
+    const tol = v('gain_tol_db', 'dB');
+    const at = (x, low) => (known(x) ? (low ? [x, null] : [null, x]) : null);
+    return {
+      gain_db: known(gain) && known(tol) ? [gain - tol, gain + tol] : null,
+      f_low_hz: at(v('f_low_hz', 'Hz')), phase_margin_deg: at(v('pm_min_deg'), true),
+      iq_a: at(v('iq_max_a', 'A')), nf_db: at(v('nf_max_db', 'dB')),
+    };
+  };
+  const bound = ([lo, hi], unit) => (known(lo) && known(hi) ? `${show(lo, unit)} … ${show(hi, unit)}` : known(lo) ? `≥ ${show(lo, unit)}` : `≤ ${show(hi, unit)}`);
+
+  const STALE = {
+    running: 'Computing for the design as it is now; the figures shown are for the design before the last change.',
+    due: 'The design has changed; these figures are for the design before the change.',
+    error: 'Showing the last valid result.',
+    cancelled: 'Run cancelled: these figures are for an earlier design. Press Compute now to bring them up to date.',
+  };
+
+  HR.panel({
+    id: 'spread',
+    title: 'Spread',
+    mount(container) {
+      let last = null;
+      let lim = {};
+
+      // ---- Tolerances and the run ---------------------------------------------------
+      const raw = (key) => {
+        const v = HR.design.get('tolerance', key);
+        return v === undefined || v === null ? '' : String(v);
+      };
+      const fields = TOLERANCES.map(([key, label, hint]) => {
+        const f = field({ label, hint, value: raw(key), onInput: (text) => {
+          const t = text.trim();
+          // Trials and seed are whole numbers in the document, not values with units.
+          HR.design.set('tolerance', key, /^(trials|seed)$/.test(key) && /^\d+$/.test(t) ? Number(t) : t, 'spread');
+        } });
+        f.wrap.classList.add('compact');
+        return { key, f };
+      });
+      const undo = el('button', { type: 'button', onclick: () => HR.design.undo() }, 'Undo');
+      const redo = el('button', { type: 'button', onclick: () => HR.design.redo() }, 'Redo');
+      const sync = () => {
+        fields.forEach(({ key, f }) => { if (document.activeElement !== f.input) f.input.value = raw(key); });
+        undo.disabled = !HR.design.canUndo();
+        redo.disabled = !HR.design.canRedo();
+      };
+      HR.design.onChange(sync);
+      sync();
+
+      const bar = el('progress', { max: 1, value: 0, 'aria-label': 'Progress of the Monte Carlo run' });
+      const barText = el('span', { class: 'run-text', 'aria-live': 'polite' }, '');
+      const cancel = el('button', { type: 'button', class: 'cancel', onclick: () => follower.cancel() }, 'Cancel');
+      const running = el('div', { class: 'run', hidden: true }, bar, barText, cancel);
+      const now = el('button', { type: 'button', onclick: () => follower.start() }, 'Compute now');
+      const timing = el('p', { class: 'run-note' }, 'The trials run in two background workers.');
+      const problem = el('p', { class: 'error', 'aria-live': 'polite', hidden: true });
+      const staleNote = el('p', { class: 'stale-note', hidden: true });
+      const runCard = card('Tolerances', el('p', { class: 'intro' }, 'Each trial builds the stage with every part drawn at random, evenly and independently, within ± its tolerance: the stage’s resistors and capacitors, the supply, kn, kp, Vtn and Vtp. The source and the load stay as they are.'),
+        el('div', { class: 'grid-fields' }, fields.map(({ f }) => f.wrap)), running, timing,
+        el('div', { class: 'actions' }, now, undo, redo), problem, staleNote);
+      runCard.classList.add('wide');
+
+      // ---- Yield, figures and corners ---------------------------------------------
+      const yieldHead = el('p', { class: 'verdict-head', 'data-key': 'yield' });
+      const yieldText = el('p', { class: 'intro' });
+      const stats = table('Each figure at the nominal design, over the trials, and at the worst-case corners (every part at the edge of its tolerance that lowers, then raises, the figure)',
+        ['Figure', 'Nominal', 'Mean', 'Std dev', '1 % … 99 % of trials', 'Worst-case corners']);
+      const figuresCard = card('Yield and figures', yieldHead, yieldText, el('div', { class: 'scroll' }, stats.node));
+      figuresCard.classList.add('wide');
+
+      // ---- Which part to buy tighter -----------------------------------------------
+      const pick = choice({ label: 'Figure', options: FIGURES.map(([k, name]) => [k, name]), value: 'gain_db', onChange: () => drawBars() });
+      pick.wrap.classList.add('pick');
+      const bars = el('div', { class: 'bars', role: 'list' });
+      const barsNote = el('p', { class: 'plot-note' });
+      const drawBars = () => {
+        if (!last) return;
+        const [k, name, unit] = FIGURES.find((f) => f[0] === pick.select.value);
+        const rows = last.summary.swings.filter((s) => known(s.swing[k])).sort((a, b) => Math.abs(b.swing[k]) - Math.abs(a.swing[k]));
+        const top = Math.max(...rows.map((s) => Math.abs(s.swing[k]))) || 1;
+        bars.replaceChildren(...rows.map(({ quantity, swing }) => {
+          const v = swing[k];
+          return el('div', { class: 'bar-row', role: 'listitem', 'data-key': quantity }, el('span', {}, PARTS[quantity] || quantity),
+            el('span', { class: 'bar-track' }, el('span', { class: v < 0 ? 'bar low' : 'bar', style: `width:${(50 * Math.abs(v)) / top}%` })),
+            el('span', { class: 'bar-value' }, signed(v, unit)));
+        }));
+        barsNote.textContent = rows.length
+          ? `How far the ${name.toLowerCase()} moves when one part alone goes to the top of its tolerance, all else nominal: bars to the right raise it, to the left lower it. The longest bar is the part worth buying tighter.`
+          : `No trial has a ${name.toLowerCase()} to move.`;
+      };
+      const barsCard = card('Which part to buy tighter', el('div', { class: 'inputs' }, pick.wrap), bars, barsNote);
+      barsCard.classList.add('wide');
+
+      // ---- Histograms --------------------------------------------------------------
+      const histCard = card('Histograms of the trials', el('p', { class: 'intro' }, 'Hover for values; drag to zoom, double-click to reset.'));
+      histCard.classList.add('wide');
+      const row = el('div', { class: 'plots' });
+      histCard.append(row);
+      const plots = FIGURES.map(([k, name, unit]) => {
+        const c = row.appendChild(el('div', { class: 'plot-cell', 'data-key': k }));
+        const decorate = (u, ctx) => {
+          if (!last) return;
+          HR.plot.vline(u, ctx, last.summary.nominal[k], css('--plot-2'), 'nominal');
+          for (const x of lim[k] || []) HR.plot.vline(u, ctx, x, css('--bad'), 'limit', 1);
+        };
+        const plot = HR.plot.create(c, { title: name, file: `halfrail-spread-${k}`, decorate,
+          x: unit === '°' ? { label: `${name} (°)` } : { label: name, unit }, y: { label: 'Trials', unit: '' },
+          series: [{ label: 'trials', unit: '', opts: { paths: uPlot.paths.bars({ size: [1, Infinity] }), fill: css('--window') } }] });
+        return { k, unit, plot, note: c.appendChild(el('p', { class: 'plot-note' })) };
+      });
+
+      // Counts of the trials' values in bins from the smallest to the largest, with an
+      // empty bin at each end so the outer bars show whole: [centres, counts].
+      const bins = (values, { min, max, count }) => {
+        const n = Math.max(1, Math.min(40, Math.round(Math.sqrt(count))));
+        const w = (max - min) / n || Math.abs(max) * 1e-6 || 1;
+        const counts = new Array(n + 2).fill(0);
+        for (const x of values) if (known(x)) counts[1 + Math.min(n - 1, Math.floor((x - min) / w))] += 1;
+        return [counts.map((_, i) => min + (i - 0.5) * w), counts];
+      };
+
+      const render = (r, { ms }) => {
+        last = r;
+        lim = limits();
+        const s = r.summary;
+        const named = FIGURES.filter(([k]) => lim[k]);
+        const set = named.map(([k, name, unit]) => `${name.toLowerCase()} ${bound(lim[k], unit)}`);
+        // Limits the nominal design itself misses: no tolerance will fix those.
+        const misses = named.filter(([k]) => { const v = s.nominal[k]; const [lo, hi] = lim[k]; return known(v) && ((known(lo) && v < lo) || (known(hi) && v > hi)); });
+        const unsolved = `${s.unsolved ? ` ${s.unsolved} trials could not be solved and count as failing.` : ''}${misses.length
+          ? ` The nominal design itself misses the ${misses.map(([, name]) => name.toLowerCase()).join(' and the ')} limit: design the stage to the target first (Stage panel).` : ''}`;
+        yieldHead.textContent = known(s.yield) ? `Yield ${fixed(100 * s.yield, 1)} %` : 'No yield: the target sets no limits';
+        yieldText.textContent = known(s.yield)
+          ? `${Math.round(s.yield * s.trials)} of ${s.trials} trials meet the target’s limits: ${set.join(', ')}.${unsolved}`
+          : `Give the target a gain tolerance, a low corner or a limit on the supply current, noise figure or phase margin (Stage panel, Design to a target) to count the trials that meet them.${unsolved}`;
+        fillRows(stats.tbody, FIGURES.map(([k, name, unit]) => {
+          const st = s[k];
+          const corner = s.corners.find((c) => c.figure === k) || {};
+          return [name, show(s.nominal[k], unit), st ? show(st.mean, unit) : 'in no trial', st ? show(st.std, unit) : '—',
+            st ? `${show(st.p1, unit)} … ${show(st.p99, unit)}` : '—', known(corner.low) ? `${show(corner.low, unit)} … ${show(corner.high, unit)}` : '—'];
+        }));
+        for (const { k, unit, plot, note } of plots) {
+          const st = s[k];
+          plot.node.hidden = !st;
+          if (st) plot.setData(bins(r.trials[k], st));
+          note.textContent = st
+            ? `${st.count} trials: mean ${show(st.mean, unit)}, std dev ${show(st.std, unit)}. Dashed: the nominal design${lim[k] ? ` and the target’s limit (${bound(lim[k], unit)})` : ''}.`
+            : k === 'phase_margin_deg' ? 'No trial has a loop-gain crossover above f_design, so there is no phase margin to spread.' : 'No trial has this figure.';
+        }
+        drawBars();
+        timing.textContent = `${s.trials} trials computed in ${fixed(ms / 1000, 2)} s in two background workers.`;
+      };
+
+      container.append(el('h1', {}, 'Spread'),
+        el('p', { class: 'lede' }, 'What the parts’ tolerances do to the stage: many random builds (Monte Carlo), how many meet the target, how far each figure spreads and which part moves it most.'),
+        el('div', { class: 'cards' }, runCard, figuresCard, barsCard, histCard));
+
+      const follower = HR.background.follow(container, {
+        job: run,
+        render,
+        progress: (p) => {
+          running.hidden = p === null;
+          if (p === null) return;
+          bar.value = p;
+          barText.textContent = `Computing… ${fixed(100 * p, 0)} %`;
+        },
+        report: (error) => {
+          const at = error && fields.find(({ key }) => error.field === `tolerance.${key}`);
+          fields.forEach(({ f }) => f.setError(null));
+          if (at) at.f.setError(error.reason);
+          problem.textContent = error ? error.message || error.reason : '';
+          problem.hidden = !error;
+        },
+        stale: (why, rendered) => {
+          staleNote.hidden = !(why && rendered);
+          staleNote.textContent = why ? STALE[why] : '';
+          staleNote.dataset.why = why || '';
+          for (const node of [figuresCard, barsCard, row]) node.classList.toggle('stale', Boolean(why) && rendered);
+        },
+      });
+    },
+  });
+})();
