@@ -58,6 +58,9 @@ const figure = (page, key) => page.locator(`#panel-swing dd[data-key="${key}"] .
 const computed = (page) => panel(page).getAttribute('data-computed').then(Number);
 const results = (page, n) => page.waitForSelector(`#panel-swing[data-computed="${n}"]`, { timeout: 20000 });
 const runBox = (page) => page.locator('#panel-swing .run');
+// Waits for the progress box by polling every frame: a run is a few hundred ms, and
+// a locator's wait polls too slowly to be sure to see it.
+const runShown = (page) => page.waitForFunction(() => !document.querySelector('#panel-swing .run').hidden, null, { polling: 'raf' });
 const log = (page) => page.evaluate(() => window.__swing);
 
 async function openSwing(hash = '#swing') {
@@ -155,7 +158,7 @@ test('Cancel stops the run, no result of it appears, and the next run completes;
 
   // Cancel: the bar goes, the worker is ended, and the old figures stay, marked.
   await level.fill('-30');
-  await runBox(page).waitFor({ state: 'visible' });
+  await runShown(page);
   const terminated = (await log(page)).terminated;
   await page.locator('#panel-swing .run button', { hasText: 'Cancel' }).click();
   assert.equal(await runBox(page).isVisible(), false);
@@ -184,7 +187,7 @@ test('Cancel stops the run, no result of it appears, and the next run completes;
     new MutationObserver(() => window.__levels.push(cell.textContent)).observe(cell, { childList: true, characterData: true, subtree: true });
   });
   await level.fill('-20');
-  await runBox(page).waitFor({ state: 'visible' });
+  await runShown(page);
   await level.fill('-25');
   await results(page, 3);
   await page.waitForTimeout(1000);
