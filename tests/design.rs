@@ -98,3 +98,24 @@ fn matching_the_source_and_joined_resistors() {
     assert!(strict.candidates[0].meets_limits);
     assert_ne!((strict.candidates[0].r_in, strict.candidates[0].r_fb.ohms), (plain.candidates[0].r_in, plain.candidates[0].r_fb.ohms));
 }
+
+#[test]
+fn a_target_just_under_the_ceiling_is_feasible_somewhere_in_the_range() {
+    // The ceiling is the best over the r_in values searched; a target under it is met
+    // by one of them even when the stage's own r_in cannot.
+    let (part, stage) = demo();
+    let ceiling = design(&part, &stage, F, 50.0, &target(25.0)).unwrap().ceiling_db;
+    let d = design(&part, &stage, F, 50.0, &target(ceiling - 0.1)).unwrap();
+    assert!(d.continuous.is_some() && !d.candidates.is_empty(), "{:?}", d.continuous);
+}
+
+#[test]
+fn candidates_are_judged_with_the_coupling_capacitors_chosen() {
+    let (part, stage) = demo();
+    let d = design(&part, &stage, F, 50.0, &Target { f_low_hz: Some(100e3), ..target(12.0) }).unwrap();
+    let c = d.coupling.unwrap();
+    let best = &d.candidates[0];
+    let built = stage.with(Component::RInOhm, Some(best.r_in)).with(Component::RFbOhm, Some(best.r_fb.ohms)).with(Component::CInF, c.c_in_f).with(Component::COutF, c.c_out_f);
+    let again = response(&part, &built, F, &[F], 50.0, None).unwrap().design.gain_db();
+    assert!((again - best.figures.gain_db).abs() < 1e-9, "{again} vs {}", best.figures.gain_db);
+}

@@ -68,7 +68,9 @@ impl Default for Target {
 /// The answer.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Design {
-    /// The continuous r_in and r_fb that meet the gain exactly (`None` if none can).
+    /// The continuous r_in and r_fb that meet the gain exactly: at the stage's own
+    /// r_in (or the best match), else at the r_in searched nearest it (`None` if
+    /// none can).
     pub continuous: Option<(f64, f64)>,
     /// Standard-value candidates, best first.
     pub candidates: Vec<Candidate>,
@@ -129,10 +131,13 @@ pub fn design(part: &Part, c: &Components, f_design: f64, z0: f64, target: &Targ
     let mut candidates = Vec::new();
     let mut ceiling = f64::NEG_INFINITY;
     let mut guess = continuous.map_or(start * ratio, |(_, r_fb)| r_fb);
+    // Each r_in's exact r_fb, for a continuous answer when the starting r_in has none.
+    let mut exact: Vec<(f64, f64)> = Vec::new();
     for &r_in in &r_ins {
         ceiling = ceiling.max(ceiling_db(&judge, c, r_in)?);
         let Some(r_fb) = r_fb_for(&judge, c, r_in, target.gain_db, guess)? else { continue };
         guess = r_fb;
+        exact.push((r_in, r_fb));
         let mut choices: Vec<Resistor> = either_side(r_fb, target.series).into_iter().map(|ohms| Resistor { ohms, parts: None }).collect();
         if target.allow_combinations {
             choices.extend(joined_near(r_fb, target.series, 2));
@@ -141,17 +146,32 @@ pub fn design(part: &Part, c: &Components, f_design: f64, z0: f64, target: &Targ
             candidates.push(Candidate::judged(&judge, c, r_in, choice, target.gain_db, &target.limits)?);
         }
     }
+    let continuous = continuous.or_else(|| exact.iter().copied().min_by(|a, b| (a.0 / start).ln().abs().total_cmp(&(b.0 / start).ln().abs())));
     candidates.sort_by(better);
     candidates.truncate(KEEP);
+
+    // Coupling capacitors for the best pair; then every candidate judged again with
+    // them fitted, so the figures shown are the ones the applied design gives. If
+    // that changes which pair is best, the capacitors are sized again for it.
+    let mut coupling_for: Option<Coupling> = None;
+    let mut fitted = *c;
+    for _ in 0..3 {
+        let (Some(f_low), Some(best)) = (target.f_low_hz, candidates.first()) else { break };
+        let chosen = (best.r_in, best.r_fb.ohms);
+        let k = coupling(part, &with_pair(c, chosen.0, chosen.1), f_low, f_design, z0)?;
+        fitted = c.with(Component::CInF, k.c_in_f.or(c.get(Component::CInF))).with(Component::COutF, k.c_out_f.or(c.get(Component::COutF)));
+        coupling_for = Some(k);
+        candidates = candidates.iter().map(|k| Candidate::judged(&judge, &fitted, k.r_in, k.r_fb, target.gain_db, &target.limits)).collect::<Result<_>>()?;
+        candidates.sort_by(better);
+        if candidates.first().is_some_and(|b| (b.r_in, b.r_fb.ohms) == chosen) {
+            break;
+        }
+    }
+    let coupling = coupling_for;
 
     let snap = |v: f64| nearest(v, target.series).map(|n| n.nearest);
     let hand_r_in = snap(start)?;
     let hand_r_fb = Resistor { ohms: snap(hand_r_in * ratio)?, parts: None };
-    let by_hand = Candidate::judged(&judge, c, hand_r_in, hand_r_fb, target.gain_db, &target.limits)?;
-
-    let coupling = match (target.f_low_hz, candidates.first()) {
-        (Some(f_low), Some(best)) => Some(coupling(part, &with_pair(c, best.r_in, best.r_fb.ohms), f_low, f_design, z0)?),
-        _ => None,
-    };
+    let by_hand = Candidate::judged(&judge, &fitted, hand_r_in, hand_r_fb, target.gain_db, &target.limits)?;
     Ok(Design { continuous, candidates, ceiling_db: ceiling, by_hand, coupling })
 }
