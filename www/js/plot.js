@@ -179,18 +179,7 @@ HR.plot = (() => {
   const vline = (u, ctx, x, colour, label, row = 0) => {
     if (x === null || x === undefined || x < u.scales.x.min || x > u.scales.x.max) return;
     const px = u.valToPos(x, 'x', true);
-    ctx.save();
-    ctx.strokeStyle = colour;
-    ctx.fillStyle = colour;
-    ctx.setLineDash([5, 4]);
-    ctx.lineWidth = 1.5;
-    ctx.beginPath();
-    ctx.moveTo(px, u.bbox.top);
-    ctx.lineTo(px, u.bbox.top + u.bbox.height);
-    ctx.stroke();
-    ctx.font = `${12 * devicePixelRatio}px sans-serif`;
-    halo(ctx, label, px + 4, u.bbox.top + (14 + 14 * row) * devicePixelRatio);
-    ctx.restore();
+    dashed(ctx, colour, [5, 4], [px, u.bbox.top], [px, u.bbox.top + u.bbox.height], 'left', label, px + 4, u.bbox.top + (14 + 14 * row) * devicePixelRatio);
   };
 
   // A labelled horizontal line at y (a reference level: 0 dB, −180°, μ = 1), labelled
@@ -198,18 +187,24 @@ HR.plot = (() => {
   const hline = (u, ctx, y, colour, label, side = 'right') => {
     if (y === null || y === undefined || y < u.scales.y.min || y > u.scales.y.max) return;
     const py = u.valToPos(y, 'y', true);
+    const lx = side === 'left' ? u.bbox.left + 4 * devicePixelRatio : u.bbox.left + u.bbox.width - 4 * devicePixelRatio;
+    dashed(ctx, colour, [2, 3], [u.bbox.left, py], [u.bbox.left + u.bbox.width, py], side, label, lx, py - 4 * devicePixelRatio);
+  };
+
+  // A dashed reference line from `from` to `to` (canvas pixels) with its label at (lx, ly).
+  const dashed = (ctx, colour, dash, from, to, align, label, lx, ly) => {
     ctx.save();
     ctx.strokeStyle = colour;
     ctx.fillStyle = colour;
-    ctx.setLineDash([2, 3]);
+    ctx.setLineDash(dash);
     ctx.lineWidth = 1.5;
     ctx.beginPath();
-    ctx.moveTo(u.bbox.left, py);
-    ctx.lineTo(u.bbox.left + u.bbox.width, py);
+    ctx.moveTo(...from);
+    ctx.lineTo(...to);
     ctx.stroke();
     ctx.font = `${12 * devicePixelRatio}px sans-serif`;
-    ctx.textAlign = side;
-    halo(ctx, label, side === 'left' ? u.bbox.left + 4 * devicePixelRatio : u.bbox.left + u.bbox.width - 4 * devicePixelRatio, py - 4 * devicePixelRatio);
+    ctx.textAlign = align;
+    halo(ctx, label, lx, ly);
     ctx.restore();
   };
 
