@@ -230,5 +230,14 @@ HR.background = (() => {
     };
   };
 
-  return { run, follow, started: 0 };
+  // What a panel that follows the design in the background says over a result
+  // that is not for the design as it is now, by why (follow()'s `stale` reason).
+  const staleNotes = {
+    running: 'Computing for the design as it is now; the figures shown are for the design before the last change.',
+    due: 'The design has changed; these figures are for the design before the change.',
+    error: 'Showing the last valid result.',
+    cancelled: 'Run cancelled: these figures are for an earlier design. Press Compute now to bring them up to date.',
+  };
+
+  return { run, follow, staleNotes, started: 0 };
 })();

@@ -78,12 +78,6 @@
   };
   const bound = ([lo, hi], unit) => (known(lo) && known(hi) ? `${show(lo, unit)} … ${show(hi, unit)}` : known(lo) ? `≥ ${show(lo, unit)}` : `≤ ${show(hi, unit)}`);
 
-  const STALE = {
-    running: 'Computing for the design as it is now; the figures shown are for the design before the last change.',
-    due: 'The design has changed; these figures are for the design before the change.',
-    error: 'Showing the last valid result.',
-    cancelled: 'Run cancelled: these figures are for an earlier design. Press Compute now to bring them up to date.',
-  };
 
   HR.panel({
     id: 'spread',
@@ -242,7 +236,7 @@
         },
         stale: (why, rendered) => {
           staleNote.hidden = !(why && rendered);
-          staleNote.textContent = why ? STALE[why] : '';
+          staleNote.textContent = why ? HR.background.staleNotes[why] : '';
           staleNote.dataset.why = why || '';
           for (const node of [figuresCard, barsCard, row]) node.classList.toggle('stale', Boolean(why) && rendered);
         },

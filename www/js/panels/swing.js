@@ -90,12 +90,6 @@
     return uPlot.rangeNum(a, b === a ? a + 1 : b, 0.1, true);
   };
 
-  const STALE = {
-    running: 'Computing for the design as it is now; the figures shown are for the design before the last change.',
-    due: 'The design has changed; these figures are for the design before the change.',
-    error: 'Showing the last valid result.',
-    cancelled: 'Run cancelled: these figures are for an earlier design. Press Compute now to bring them up to date.',
-  };
 
   HR.panel({
     id: 'swing',
@@ -333,7 +327,7 @@
         },
         stale: (why, rendered) => {
           staleNote.hidden = !(why && rendered);
-          staleNote.textContent = why ? STALE[why] : '';
+          staleNote.textContent = why ? HR.background.staleNotes[why] : '';
           staleNote.dataset.why = why || '';
           for (const node of [readout, row]) node.classList.toggle('stale', Boolean(why) && rendered);
         },
