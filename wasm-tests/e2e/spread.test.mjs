@@ -167,7 +167,9 @@ test('the page keeps answering during a run, and the progress bar rises to compl
   const frames = l.frames.filter((t) => t >= during.t0 && t <= t1);
   const gaps = frames.slice(1).map((t, i) => t - frames[i]);
   assert.ok(frames.length >= 5, `${frames.length} frames during the run`);
-  assert.ok(Math.max(...gaps) < 200, `longest gap between frames during the run: ${Math.max(...gaps).toFixed(0)} ms`);
+  // Under 400 ms: a 12 000-trial run takes seconds if it ran on the main thread; the
+  // allowance is for drawing the result on a loaded two-core machine (200 ms was seen there).
+  assert.ok(Math.max(...gaps) < 400, `longest gap between frames during the run: ${Math.max(...gaps).toFixed(0)} ms`);
   const values = l.progress.filter(([t]) => t >= during.t0).map(([, v]) => v);
   assert.ok(values.length >= 5, `progress values: ${values}`);
   assert.equal(values[0], 0);
