@@ -227,7 +227,7 @@ fn self_biased(part: &Part) -> Result<(f64, f64)> {
     let out = *outputs.last().expect("one stage at least");
     n.add("feedback", Element::Resistor { a: g1, b: out, ohms: BENCH_FEEDBACK_OHM });
     let op = operating_point(&n, None)?;
-    let iq = op.devices.iter().flatten().map(|d| d.i_supply).sum();
+    let iq = op.supply_current();
     Ok((op.voltage(out), iq))
 }
 

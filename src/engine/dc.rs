@@ -33,6 +33,11 @@ impl OperatingPoint {
         self.layout.voltage(&self.x, node)
     }
 
+    /// The current every device draws from its supply, summed (the part's Iq).
+    pub fn supply_current(&self) -> f64 {
+        self.devices.iter().flatten().map(|d| d.i_supply).sum()
+    }
+
     /// The current through a voltage source or inductor (from its `a` to its `b`).
     pub fn branch_current(&self, element: usize) -> Option<f64> {
         self.layout.branch[element].map(|i| self.x[i])

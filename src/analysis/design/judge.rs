@@ -38,7 +38,7 @@ impl Judge<'_> {
             GainKind::Power => p.gt.map_or(f64::NEG_INFINITY, |g| 10.0 * g.log10()),
         };
         let s11_db = c.get(Component::SourceOhm).filter(|&r| r > 0.0).and_then(|rs| p.return_loss_db(rs)).map(|rl| -rl);
-        let iq_a = lin.operating_point().devices.iter().flatten().map(|d| d.i_supply).sum();
+        let iq_a = lin.operating_point().supply_current();
         Ok(Figures { gain_db, s11_db, nf_db: p.nf_db(), iq_a })
     }
 

@@ -96,7 +96,7 @@ impl Setup {
             GainKind::Voltage => Some(p.gain_db()),
             GainKind::Power => p.gt.map(|g| 10.0 * g.log10()),
         };
-        let iq = lin.operating_point().devices.iter().flatten().map(|d| d.i_supply).sum();
+        let iq = lin.operating_point().supply_current();
         let ratio = ReturnRatio::new(&lin)?;
         let t: Vec<Complex64> = self.grid.iter().map(|&f| ratio.at(f)).collect::<Result<_>>()?;
         let start = unwrap_near(t[0].arg(), self.phase_at_design);
