@@ -21,6 +21,14 @@ fn to_js<T: serde::Serialize>(value: &T) -> Result<JsValue, JsValue> {
         .map_err(|e| JsValue::from_str(&e.to_string()))
 }
 
+/// A long run's progress, handed to the page's callback as the fraction done (a
+/// callback that throws is ignored: progress is only ever a report).
+fn reporter(progress: &js_sys::Function) -> impl FnMut(f64) + '_ {
+    move |p| {
+        let _ = progress.call1(&JsValue::NULL, &JsValue::from_f64(p));
+    }
+}
+
 fn thrown(error: FieldError) -> JsValue {
     to_js(&error).unwrap_or_else(|e| e)
 }
@@ -222,11 +230,7 @@ pub fn loop_report(text: &str) -> Result<JsValue, JsValue> {
 #[wasm_bindgen(js_name = swingReport)]
 pub fn swing_report(text: &str, progress: &js_sys::Function) -> Result<JsValue, JsValue> {
     let document = doc::load(text).map_err(thrown)?;
-    let large = document
-        .large(&mut |p| {
-            let _ = progress.call1(&JsValue::NULL, &JsValue::from_f64(p));
-        })
-        .map_err(thrown)?;
+    let large = document.large(&mut reporter(progress)).map_err(thrown)?;
     to_js(&doc::SwingReport(&large))
 }
 
@@ -249,11 +253,7 @@ pub fn design_report(text: &str) -> Result<JsValue, JsValue> {
 #[wasm_bindgen(js_name = spreadReport)]
 pub fn spread_report(text: &str, progress: &js_sys::Function) -> Result<JsValue, JsValue> {
     let document = doc::load(text).map_err(thrown)?;
-    let result = document
-        .spread(&mut |p| {
-            let _ = progress.call1(&JsValue::NULL, &JsValue::from_f64(p));
-        })
-        .map_err(thrown)?;
+    let result = document.spread(&mut reporter(progress)).map_err(thrown)?;
     to_js(&doc::SpreadReport(&result))
 }
 
@@ -263,16 +263,7 @@ pub fn spread_report(text: &str, progress: &js_sys::Function) -> Result<JsValue,
 #[wasm_bindgen(js_name = spreadTrials)]
 pub fn spread_trials(text: &str, from: u32, to: u32, progress: &js_sys::Function) -> Result<JsValue, JsValue> {
     let plan = doc::load(text).and_then(|d| d.spread_plan()).map_err(thrown)?;
-    let (from, to) = (from as u64, (to as u64).min(plan.trials));
-    let mut trials = Vec::new();
-    let mut at = from;
-    while at < to {
-        let next = (at + 25).min(to);
-        trials.extend(plan.run(at..next));
-        let _ = progress.call1(&JsValue::NULL, &JsValue::from_f64((next - from) as f64 / (to - from).max(1) as f64));
-        at = next;
-    }
-    to_js(&doc::TrialColumns(&trials))
+    to_js(&doc::TrialColumns(&plan.run_reporting(from as u64..to as u64, &mut reporter(progress))))
 }
 
 /// The spread report from every trial's figures (the columns `spreadTrials`

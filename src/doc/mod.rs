@@ -243,15 +243,7 @@ impl Document {
     /// `progress` hears the fraction of trials done.
     pub fn spread(&self, progress: &mut dyn FnMut(f64)) -> Result<SpreadResult> {
         let plan = self.spread_plan()?;
-        let chunk = (plan.trials / 20).max(1);
-        let mut trials = Vec::with_capacity(plan.trials as usize);
-        let mut from = 0;
-        while from < plan.trials {
-            let to = (from + chunk).min(plan.trials);
-            trials.extend(plan.run(from..to));
-            progress(to as f64 / plan.trials as f64);
-            from = to;
-        }
+        let trials = plan.run_reporting(0..plan.trials, progress);
         plan.finish(trials)
     }
 
@@ -325,6 +317,23 @@ impl SpreadPlan {
     /// Trials `range`.
     pub fn run(&self, range: std::ops::Range<u64>) -> Vec<crate::analysis::spread::Values> {
         crate::analysis::spread::run(&self.part, &self.stage, &self.setup, &self.tolerance, self.seed, range)
+    }
+
+    /// Trials `range` in twentieths, telling `progress` the fraction of the range done
+    /// after each.
+    pub fn run_reporting(&self, range: std::ops::Range<u64>, progress: &mut dyn FnMut(f64)) -> Vec<crate::analysis::spread::Values> {
+        let (start, end) = (range.start, range.end.min(self.trials));
+        let span = end.saturating_sub(start);
+        let chunk = (span / 20).max(1);
+        let mut trials = Vec::with_capacity(span as usize);
+        let mut from = start;
+        while from < end {
+            let to = (from + chunk).min(end);
+            trials.extend(self.run(from..to));
+            progress((to - start) as f64 / span as f64);
+            from = to;
+        }
+        trials
     }
 
     /// The statistics of `trials` (all of them, in order), with swings and corners.
