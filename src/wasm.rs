@@ -324,7 +324,7 @@ pub fn bench_core(text: &str, what: &str) -> Result<usize, JsValue> {
 
 /// One two-tone record or one compression sweep of the document's stage.
 fn bench_swing(document: &doc::Document, what: &str) -> crate::error::Result<usize> {
-    use crate::analysis::swing::{compression, emf_amplitude, rail_level_dbm, Record, TimeDomain, Tone, Waveforms};
+    use crate::analysis::swing::{compression, emf_amplitude, rail_level_dbm, sweep_range_dbm, Record, TimeDomain, Waveforms};
     let (part, stage) = document.part_and_stage()?;
     let f = document.sweep()?.f_design_hz;
     let time = TimeDomain::new(&part, &stage)?;
@@ -332,11 +332,10 @@ fn bench_swing(document: &doc::Document, what: &str) -> crate::error::Result<usi
     if what == "two-tone" {
         let record = Record::two_tone(f);
         let a = emf_amplitude(-20.0, rs);
-        let tones = [Tone { amplitude: a, f_hz: 99.0 * record.resolution_hz }, Tone { amplitude: a, f_hz: 101.0 * record.resolution_hz }];
-        Ok(time.run(&tones, &record, &mut |_| {})?.out.len())
+        Ok(time.run(&record.two_tones(a), &record, &mut |_| {})?.out.len())
     } else {
-        let rail = rail_level_dbm(part.vdd, time.gain_to_last_stage(f)?, rs);
+        let (from, to) = sweep_range_dbm(rail_level_dbm(part.vdd, time.gain_to_last_stage(f)?, rs));
         let rl = stage.get(crate::stage::Component::LoadOhm).unwrap_or(1e3);
-        Ok(compression(&time, f, rail - 25.0, rail + 5.0, rs, rl, &mut |_| {})?.levels.len())
+        Ok(compression(&time, f, from, to, rs, rl, &mut |_| {})?.levels.len())
     }
 }

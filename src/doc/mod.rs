@@ -204,9 +204,7 @@ impl Document {
     pub fn wave(&self) -> Result<crate::analysis::swing::Wave> {
         let (part, stage) = self.part_and_stage()?;
         let analysis = self.sweep()?;
-        let source = stage.get(crate::stage::Component::SourceOhm).filter(|&r| r > 0.0).ok_or_else(|| {
-            FieldError::new("stage.source_ohm", "the input level is a power available from the source: fit a source resistance")
-        })?;
+        let source = crate::analysis::swing::source_resistance(&stage)?;
         let time = crate::analysis::swing::TimeDomain::new(&part, &stage)?;
         let amplitude = crate::analysis::swing::emf_amplitude(analysis.input_dbm, source);
         Ok(crate::analysis::swing::one_tone(&time, amplitude, analysis.f_design_hz, &mut |_| {})?.wave)

@@ -104,20 +104,20 @@ fn main() {
     }), None);
     // Large signal (issue 6 targets are for wasm: two-tone ≤ 150 ms, sweep ≤ 1 s).
     {
-        use halfrail::analysis::swing::{compression, emf_amplitude, rail_level_dbm, Record, TimeDomain, Tone, Waveforms};
+        use halfrail::analysis::swing::{compression, emf_amplitude, rail_level_dbm, sweep_range_dbm, Record, TimeDomain, Waveforms};
         let time = TimeDomain::new(&demo_part, &stage).unwrap();
         let f = 10.7e6;
         let record = Record::two_tone(f);
         let a = emf_amplitude(-20.0, 50.0);
-        let tones = [Tone { amplitude: a, f_hz: 99.0 * record.resolution_hz }, Tone { amplitude: a, f_hz: 101.0 * record.resolution_hz }];
+        let tones = record.two_tones(a);
         let two_tone = median_time(|| {
             black_box(time.run(&tones, &record, &mut |_| {}).unwrap());
         });
         report("two-tone steady state, demo, 2^14 samples (+2^11 warm-up)", two_tone, None);
         figures.push(("two-tone", two_tone));
-        let rail = rail_level_dbm(demo_part.vdd, time.gain_to_last_stage(f).unwrap(), 50.0);
+        let (from, to) = sweep_range_dbm(rail_level_dbm(demo_part.vdd, time.gain_to_last_stage(f).unwrap(), 50.0));
         let sweep = median_time(|| {
-            black_box(compression(&time, f, rail - 25.0, rail + 5.0, 50.0, 1e3, &mut |_| {}).unwrap());
+            black_box(compression(&time, f, from, to, 50.0, 1e3, &mut |_| {}).unwrap());
         });
         report("compression sweep, demo, 20 levels", sweep, None);
         figures.push(("compression", sweep));

@@ -49,6 +49,12 @@ impl Record {
         Record { resolution_hz: f_hz / 100.0, samples: 1 << 14, warmup: 1 << 11 }
     }
 
+    /// The two tones of a two-tone record, each of peak EMF `amplitude`, at the
+    /// bins of `TONE_BINS`.
+    pub fn two_tones(&self, amplitude: f64) -> [Tone; 2] {
+        TONE_BINS.map(|bin| Tone { amplitude, f_hz: bin as f64 * self.resolution_hz })
+    }
+
     /// The time step.
     pub fn step_s(&self) -> f64 {
         1.0 / (self.resolution_hz * self.samples as f64)
@@ -59,6 +65,11 @@ impl Record {
         (f_hz / self.resolution_hz).round() as usize
     }
 }
+
+/// The bins of a two-tone record's tones (f·(1 ± 0.01) on a resolution of f/100)
+/// and of their third-order products 2f1 − f2 and 2f2 − f1.
+pub const TONE_BINS: [usize; 2] = [99, 101];
+pub const IM3_BINS: [usize; 2] = [97, 103];
 
 /// Cycles of a single tone in its record.
 pub const SINGLE_CYCLES: usize = 4;

@@ -4,7 +4,7 @@
 //! Each works on any `Waveforms`, so the time domain and the quasi-static model
 //! are measured the same way.
 
-use super::drive::{available_dbm, emf_amplitude, power_dbm, Record, Tone};
+use super::drive::{available_dbm, emf_amplitude, power_dbm, Record, Tone, IM3_BINS, TONE_BINS};
 use super::spectrum::amplitudes;
 use super::wave::{Wave, Waveforms};
 use crate::error::{FieldError, Result};
@@ -105,14 +105,13 @@ pub struct TwoTone {
 fn two_tone(w: &dyn Waveforms, f_hz: f64, pin_dbm: f64, source_ohm: f64, load_ohm: f64, progress: &mut dyn FnMut(f64)) -> Result<TwoTone> {
     let record = Record::two_tone(f_hz);
     let amplitude = emf_amplitude(pin_dbm, source_ohm);
-    let (f1, f2) = (99.0 * record.resolution_hz, 101.0 * record.resolution_hz);
-    let wave = w.run(&[Tone { amplitude, f_hz: f1 }, Tone { amplitude, f_hz: f2 }], &record, progress)?;
+    let wave = w.run(&record.two_tones(amplitude), &record, progress)?;
     let s = amplitudes(&wave.out);
     let mean_power = |bins: [usize; 2]| {
         let p: f64 = bins.iter().map(|&b| s[b] * s[b] / (2.0 * load_ohm)).sum::<f64>() / 2.0;
         10.0 * (p / 1e-3).log10()
     };
-    Ok(TwoTone { pin_dbm, pout_dbm: mean_power([99, 101]), im3_dbm: mean_power([97, 103]) })
+    Ok(TwoTone { pin_dbm, pout_dbm: mean_power(TONE_BINS), im3_dbm: mean_power(IM3_BINS) })
 }
 
 /// The third-order intercept from two levels 5 dB apart.

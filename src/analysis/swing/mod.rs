@@ -22,7 +22,7 @@ mod series;
 mod spectrum;
 mod wave;
 
-pub use drive::{available_dbm, emf_amplitude, emf_at, power_dbm, Record, Tone, SINGLE_CYCLES};
+pub use drive::{available_dbm, emf_amplitude, emf_at, power_dbm, Record, Tone, IM3_BINS, SINGLE_CYCLES, TONE_BINS};
 pub use figures::{compression, intercept, one_tone, rail_level_dbm, Compression, Intercept, Level, ToneResult, TwoTone, COMPRESSION_LEVELS, SLOPE_TOLERANCE, THD_HARMONICS};
 pub use series::PowerSeries;
 pub use spectrum::amplitudes;
@@ -65,12 +65,24 @@ pub struct Large {
 /// Points of the transfer curve.
 pub const TRANSFER_POINTS: usize = 201;
 
+/// The source resistance the levels are available from (a large-signal level is a
+/// power available from the source, so there must be one).
+pub fn source_resistance(c: &Components) -> Result<f64> {
+    c.get(Component::SourceOhm)
+        .filter(|&r| r > 0.0)
+        .ok_or_else(|| FieldError::new("stage.source_ohm", "the large-signal levels are powers available from the source: fit a source resistance"))
+}
+
+/// The compression sweep's range of source power, dBm, around `rail_dbm` (the level
+/// that drives the output to the rails: `rail_level_dbm`).
+pub fn sweep_range_dbm(rail_dbm: f64) -> (f64, f64) {
+    (rail_dbm - SWEEP_BELOW_RAIL_DB, rail_dbm + SWEEP_ABOVE_RAIL_DB)
+}
+
 /// The large-signal analysis at `f_hz` and `input_dbm`; `progress` hears the
 /// fraction done.
 pub fn analyse(part: &Part, c: &Components, f_hz: f64, input_dbm: f64, progress: &mut dyn FnMut(f64)) -> Result<Large> {
-    let source_ohm = c.get(Component::SourceOhm).filter(|&r| r > 0.0).ok_or_else(|| {
-        FieldError::new("stage.source_ohm", "the large-signal levels are powers available from the source: fit a source resistance")
-    })?;
+    let source_ohm = source_resistance(c)?;
     let load_ohm = c.get(Component::LoadOhm);
     let time = TimeDomain::new(part, c)?;
     let still = QuasiStatic::new(part, c)?;
@@ -80,7 +92,8 @@ pub fn analyse(part: &Part, c: &Components, f_hz: f64, input_dbm: f64, progress:
     let tone = one_tone(&time, amplitude, f_hz, &mut |p| progress(0.05 * p))?;
     let (compression, intercept) = match load_ohm {
         Some(rl) => {
-            let sweep = compression(&time, f_hz, rail_dbm - SWEEP_BELOW_RAIL_DB, rail_dbm + SWEEP_ABOVE_RAIL_DB, source_ohm, rl, &mut |p| progress(0.05 + 0.45 * p))?;
+            let (from, to) = sweep_range_dbm(rail_dbm);
+            let sweep = compression(&time, f_hz, from, to, source_ohm, rl, &mut |p| progress(0.05 + 0.45 * p))?;
             let start = sweep.ip1db_dbm.unwrap_or(rail_dbm) - INTERCEPT_BELOW_P1DB_DB;
             let mut done = 0.0;
             let ip3 = intercept(&time, f_hz, start, source_ohm, rl, &mut |p| {
