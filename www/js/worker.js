@@ -239,5 +239,14 @@ HR.background = (() => {
     cancelled: 'Run cancelled: these figures are for an earlier design. Press Compute now to bring them up to date.',
   };
 
-  return { run, follow, staleNotes, started: 0 };
+  // follow()'s `stale` callback for a panel that shows `note` over a result that is
+  // not for the design as it is now and dims `nodes` while it says so.
+  const staleMarker = (note, nodes) => (why, rendered) => {
+    note.hidden = !(why && rendered);
+    note.textContent = why ? staleNotes[why] : '';
+    note.dataset.why = why || '';
+    for (const node of nodes) node.classList.toggle('stale', Boolean(why) && rendered);
+  };
+
+  return { run, follow, staleNotes, staleMarker, started: 0 };
 })();

@@ -325,12 +325,7 @@
           problem.textContent = error ? error.message || error.reason : '';
           problem.hidden = !error;
         },
-        stale: (why, rendered) => {
-          staleNote.hidden = !(why && rendered);
-          staleNote.textContent = why ? HR.background.staleNotes[why] : '';
-          staleNote.dataset.why = why || '';
-          for (const node of [readout, row]) node.classList.toggle('stale', Boolean(why) && rendered);
-        },
+        stale: HR.background.staleMarker(staleNote, [readout, row]),
       });
     },
   });
