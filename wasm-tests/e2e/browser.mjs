@@ -62,3 +62,26 @@ export async function openPanel(context, id, { computes = true } = {}) {
   if (computes) await page.waitForSelector(`#panel-${id}[data-computed]`);
   return { page, seen };
 }
+
+// Starts a run of the background panel `id` with its "Compute now" button and, two
+// frames later, types a level into the Bench panel (which must be mounted): what the
+// Bench panel answered, and whether the run was still going when it did.
+export async function editElsewhereDuringRun(page, id) {
+  return page.evaluate(async (id) => {
+    const panel = document.getElementById(`panel-${id}`);
+    const before = panel.dataset.computed;
+    const box = panel.querySelector('.run');
+    const t0 = performance.now();
+    [...panel.querySelectorAll('button')].find((b) => b.textContent === 'Compute now').click();
+    await new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)));
+    const input = [...document.querySelectorAll('#panel-bench label')].find((x) => x.textContent === 'Level').control;
+    input.value = '-45 dBm';
+    input.dispatchEvent(new Event('input'));
+    return {
+      t0,
+      vpp: document.querySelector('#panel-bench dd[data-key="vpp"]').textContent,
+      stillRunning: !box.hidden && panel.dataset.computed === before,
+      answeredMs: performance.now() - t0,
+    };
+  }, id);
+}

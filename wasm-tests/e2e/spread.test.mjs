@@ -12,7 +12,7 @@ import fs from 'fs';
 import os from 'os';
 import path from 'path';
 import { fileURLToPath } from 'url';
-import { launch, watch, ready, clearStorage, PAGE_URL } from './browser.mjs';
+import { launch, watch, ready, clearStorage, editElsewhereDuringRun, PAGE_URL } from './browser.mjs';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
 let browser;
@@ -143,21 +143,7 @@ test('the page keeps answering during a run, and the progress bar rises to compl
   // A longer run, so there is time to watch it.
   await tolerance(page, 'Trials').fill('12000');
   await results(page, 2);
-  const during = await page.evaluate(async () => {
-    const before = document.getElementById('panel-spread').dataset.computed;
-    const box = document.querySelector('#panel-spread .run');
-    const t0 = performance.now();
-    [...document.querySelectorAll('#panel-spread button')].find((b) => b.textContent === 'Compute now').click();
-    await new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)));
-    const input = [...document.querySelectorAll('#panel-bench label')].find((x) => x.textContent === 'Level').control;
-    input.value = '-45 dBm';
-    input.dispatchEvent(new Event('input'));
-    return {
-      t0,
-      vpp: document.querySelector('#panel-bench dd[data-key="vpp"]').textContent,
-      stillRunning: !box.hidden && document.getElementById('panel-spread').dataset.computed === before,
-    };
-  });
+  const during = await editElsewhereDuringRun(page, 'spread');
   // -45 dBm across 50 Ω: 3.557 mVpp (as page.test.mjs).
   assert.equal(during.vpp, '3.557 mVpp');
   assert.ok(during.stillRunning, 'the edit elsewhere was answered while the run still ran');

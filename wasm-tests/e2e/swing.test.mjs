@@ -11,7 +11,7 @@ import http from 'http';
 import os from 'os';
 import path from 'path';
 import { fileURLToPath } from 'url';
-import { launch, watch, ready, clearStorage, PAGE_PATH, PAGE_URL } from './browser.mjs';
+import { launch, watch, ready, clearStorage, editElsewhereDuringRun, PAGE_PATH, PAGE_URL } from './browser.mjs';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
 let browser;
@@ -90,22 +90,7 @@ test('from file:// the demo runs in a worker, the page stays responsive, and the
   assert.equal(await page.evaluate(() => HR.background.started), 1);
 
   // A second run, watched: the main thread handles an edit elsewhere while it runs.
-  const during = await page.evaluate(async () => {
-    const before = document.getElementById('panel-swing').dataset.computed;
-    const box = document.querySelector('#panel-swing .run');
-    const t0 = performance.now();
-    [...document.querySelectorAll('#panel-swing button')].find((b) => b.textContent === 'Compute now').click();
-    await new Promise((r) => requestAnimationFrame(() => requestAnimationFrame(r)));
-    const input = [...document.querySelectorAll('#panel-bench label')].find((x) => x.textContent === 'Level').control;
-    input.value = '-45 dBm';
-    input.dispatchEvent(new Event('input'));
-    return {
-      t0,
-      vpp: document.querySelector('#panel-bench dd[data-key="vpp"]').textContent,
-      stillRunning: !box.hidden && document.getElementById('panel-swing').dataset.computed === before,
-      answeredMs: performance.now() - t0,
-    };
-  });
+  const during = await editElsewhereDuringRun(page, 'swing');
   // -45 dBm across 50 Ω: 3.557 mVpp (as page.test.mjs).
   assert.equal(during.vpp, '3.557 mVpp');
   assert.ok(during.stillRunning, `the edit elsewhere was answered ${during.answeredMs.toFixed(0)} ms into the run, while it still ran`);
