@@ -4,11 +4,26 @@ import fs from 'fs';
 import os from 'os';
 import path from 'path';
 import { fileURLToPath } from 'url';
+import { execFileSync } from 'child_process';
 import { chromium } from 'playwright-core';
 
 const here = path.dirname(fileURLToPath(import.meta.url));
 export const PAGE_PATH = path.resolve(here, '..', '..', 'dist', 'halfrail.html');
 export const PAGE_URL = 'file://' + PAGE_PATH;
+// The native CLI the page is compared with (built by `make test-e2e`).
+export const CLI_PATH = path.resolve(here, '..', '..', 'target', 'debug', 'halfrail');
+
+// `halfrail VERB FILE` on the document `text` (written to a scratch file), as JSON.
+export function cli(verb, text) {
+  const dir = fs.mkdtempSync(path.join(os.tmpdir(), `halfrail-${verb}-`));
+  const file = path.join(dir, 'design.halfrail.json');
+  fs.writeFileSync(file, text);
+  try {
+    return JSON.parse(execFileSync(CLI_PATH, [verb, file]));
+  } finally {
+    fs.rmSync(dir, { recursive: true, force: true });
+  }
+}
 
 const FLAGS = ['--headless', '--no-sandbox', '--disable-gpu', '--disable-quic', '--no-first-run',
   '--disable-background-networking', '--disable-component-update', '--disable-sync'];

@@ -5,30 +5,15 @@
 // says so with the nearest reachable gain, and a bad target value is reported at its field.
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
-import { execFileSync } from 'child_process';
-import fs from 'fs';
-import os from 'os';
-import path from 'path';
-import { fileURLToPath } from 'url';
-import { launch, clearStorage, openPanel } from './browser.mjs';
+import { launch, clearStorage, openPanel, cli } from './browser.mjs';
 
-const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
 let browser;
 before(async () => { browser = await launch(); });
 after(async () => { await browser.close(); });
 beforeEach(() => clearStorage(browser.context));
 
 // The native CLI's design for a document (built by `make test-e2e`).
-function cliDesign(text) {
-  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'halfrail-design-'));
-  const file = path.join(dir, 'design.halfrail.json');
-  fs.writeFileSync(file, text);
-  try {
-    return JSON.parse(execFileSync(path.join(root, 'target/debug/halfrail'), ['design', file]));
-  } finally {
-    fs.rmSync(dir, { recursive: true, force: true });
-  }
-}
+const cliDesign = (text) => cli('design', text);
 
 const panel = (page) => page.locator('#panel-stage');
 const designs = (page) => panel(page).getAttribute('data-designed').then(Number);

@@ -3,14 +3,8 @@
 // applied through the design and undone; the figures agree with the native CLI.
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
-import { execFileSync } from 'child_process';
-import fs from 'fs';
-import os from 'os';
-import path from 'path';
-import { fileURLToPath } from 'url';
-import { launch, clearStorage, openPanel } from './browser.mjs';
+import { launch, clearStorage, openPanel, cli } from './browser.mjs';
 
-const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
 let browser;
 before(async () => { browser = await launch(); });
 after(async () => { await browser.close(); });
@@ -23,16 +17,7 @@ const recomputed = (page, n) => page.waitForFunction((m) => Number(document.getE
 const rfb = (page) => page.evaluate(() => String(HR.design.get('stage', 'r_fb_ohm')));
 
 // The native CLI's loop figures for a document (built by `make test-e2e`).
-function cliLoop(text) {
-  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'halfrail-loop-'));
-  const file = path.join(dir, 'design.halfrail.json');
-  fs.writeFileSync(file, text);
-  try {
-    return JSON.parse(execFileSync(path.join(root, 'target/debug/halfrail'), ['analyze', file])).loop;
-  } finally {
-    fs.rmSync(dir, { recursive: true, force: true });
-  }
-}
+const cliLoop = (text) => cli('analyze', text).loop;
 
 // How many pixels of each canvas of the panel are in the first series colour (the
 // curves, the Nyquist locus, the decaying poles): an axes-only canvas has none.

@@ -7,30 +7,15 @@
 // the design (persisted, undoable, a bad one refused at its field).
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
-import { execFileSync } from 'child_process';
-import fs from 'fs';
-import os from 'os';
-import path from 'path';
-import { fileURLToPath } from 'url';
-import { launch, watch, ready, clearStorage, editElsewhereDuringRun, PAGE_URL } from './browser.mjs';
+import { launch, watch, ready, clearStorage, editElsewhereDuringRun, PAGE_URL, cli } from './browser.mjs';
 
-const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
 let browser;
 before(async () => { browser = await launch(); });
 after(async () => { await browser.close(); });
 beforeEach(() => clearStorage(browser.context));
 
 // The native CLI's spread summary for a document (built by `make test-e2e`).
-function cliSpread(text) {
-  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'halfrail-spread-'));
-  const file = path.join(dir, 'design.halfrail.json');
-  fs.writeFileSync(file, text);
-  try {
-    return JSON.parse(execFileSync(path.join(root, 'target/debug/halfrail'), ['spread', file]));
-  } finally {
-    fs.rmSync(dir, { recursive: true, force: true });
-  }
-}
+const cliSpread = (text) => cli('spread', text);
 
 // Watches, from before the page's own scripts run: every Worker made (its name) and
 // terminated, every animation frame, and every value the progress bar shows, with its time.

@@ -5,31 +5,19 @@
 // an edit during a run supersedes it; the figures agree with the native CLI.
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
-import { execFileSync } from 'child_process';
 import fs from 'fs';
 import http from 'http';
 import os from 'os';
 import path from 'path';
-import { fileURLToPath } from 'url';
-import { launch, watch, ready, clearStorage, editElsewhereDuringRun, PAGE_PATH, PAGE_URL } from './browser.mjs';
+import { launch, watch, ready, clearStorage, editElsewhereDuringRun, PAGE_PATH, PAGE_URL, cli } from './browser.mjs';
 
-const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
 let browser;
 before(async () => { browser = await launch(); });
 after(async () => { await browser.close(); });
 beforeEach(() => clearStorage(browser.context));
 
 // The native CLI's large-signal figures for a document (built by `make test-e2e`).
-function cliLarge(text) {
-  const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'halfrail-swing-'));
-  const file = path.join(dir, 'design.halfrail.json');
-  fs.writeFileSync(file, text);
-  try {
-    return JSON.parse(execFileSync(path.join(root, 'target/debug/halfrail'), ['analyze', file])).large;
-  } finally {
-    fs.rmSync(dir, { recursive: true, force: true });
-  }
-}
+const cliLarge = (text) => cli('analyze', text).large;
 
 // Watches, from before the page's own scripts run: every Worker made (its URL) and
 // terminated, every animation frame, every value the progress bar shows and whether
