@@ -252,7 +252,8 @@ impl Document {
         let missing = |what: &str| FieldError::new("chain", format!("a stage block needs {what}"));
         let (part, stage) = self.part_and_stage()?;
         let analysis = self.sweep().map_err(|_| missing("the analysis section (its f_design_hz)"))?;
-        let response = analysis.response(&part, &stage)?;
+        // Only the design point is needed, not the sweep.
+        let response = crate::analysis::response(&part, &stage, analysis.f_design_hz, &[analysis.f_design_hz], analysis.z0_ohm, None)?;
         let gain_db = response.design.gt.map(|g| 10.0 * g.log10()).ok_or_else(|| missing("a source resistance and a load resistor (its power gain)"))?;
         let nf_db = response.design.nf_db().ok_or_else(|| missing("a source resistance (its noise figure)"))?;
         let large = analysis.large(&part, &stage, &mut |_| {})?;
