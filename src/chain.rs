@@ -82,6 +82,9 @@ pub struct Cascade {
     /// Each block's share of the chain's excess noise (F − 1), and of its 1/IIP3.
     pub noise_share: Vec<f64>,
     pub distortion_share: Vec<f64>,
+    /// Which of the chain's blocks each row stands for, first and last: one block,
+    /// or a run of stages computed as one circuit (`one_circuit`).
+    pub spans: Vec<(usize, usize)>,
 }
 
 impl Cascade {
@@ -157,5 +160,136 @@ pub fn cascade(blocks: &[Block], levels: &Levels) -> Cascade {
         noise_floor_in_dbm,
         names: blocks.iter().map(|b| b.name.clone()).collect(),
         stages,
+        spans: (0..blocks.len()).map(|i| (i, i)).collect(),
     }
+}
+
+/// Small-signal figures of a run of stages.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct RunFigures {
+    pub gain_db: f64,
+    pub nf_db: f64,
+}
+
+/// Consecutive stages coupled directly: the budget's matched-block figures for
+/// them against the figures of the one circuit they make (each stage loading the
+/// one before with its real input impedance, not 50 Ω).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct Run {
+    pub first: usize,
+    pub last: usize,
+    pub matched: RunFigures,
+    pub circuit: RunFigures,
+}
+
+/// The runs of two or more consecutive blocks for which `is_stage` holds, as
+/// (first, last).
+pub fn runs_of(is_stage: &[bool]) -> Vec<(usize, usize)> {
+    let mut runs = Vec::new();
+    let mut i = 0;
+    while i < is_stage.len() {
+        let start = i;
+        while i < is_stage.len() && is_stage[i] {
+            i += 1;
+        }
+        if i - start >= 2 {
+            runs.push((start, i - 1));
+        }
+        i = i.max(start + 1);
+    }
+    runs
+}
+
+/// The matched-block figures of `blocks[first..=last]` alone.
+pub fn matched_run(blocks: &[Block], first: usize, last: usize) -> RunFigures {
+    let alone = cascade(&blocks[first..=last], &Levels { input_dbm: 0.0, bandwidth_hz: 1.0, snr_wanted_db: 0.0 });
+    let t = alone.total().expect("a run has blocks");
+    RunFigures { gain_db: t.gain_db, nf_db: t.nf_db }
+}
+
+/// The budget with each run replaced by one block: gain and noise figure from the
+/// run's one circuit; its output intercept and 1 dB point those of the matched
+/// cascade of its stages (the one circuit is solved small-signal only, and a run's
+/// distortion is mostly its last stage's, which sees the real load either way).
+pub fn one_circuit(blocks: &[Block], runs: &[Run], levels: &Levels) -> Cascade {
+    let mut merged = Vec::with_capacity(blocks.len());
+    let mut spans = Vec::with_capacity(blocks.len());
+    let mut i = 0;
+    while i < blocks.len() {
+        match runs.iter().find(|r| r.first == i) {
+            Some(r) => {
+                let alone = cascade(&blocks[r.first..=r.last], levels).total().expect("a run has blocks");
+                let names: Vec<&str> = blocks[r.first..=r.last].iter().map(|b| b.name.as_str()).collect();
+                merged.push(Block {
+                    name: format!("{} (one circuit)", names.join(" + ")),
+                    gain_db: r.circuit.gain_db,
+                    nf_db: r.circuit.nf_db,
+                    oip3_dbm: alone.oip3_dbm,
+                    op1db_dbm: alone.ip1db_dbm.map(|p| p + alone.gain_db - 1.0),
+                    dc_w: blocks[r.first..=r.last].iter().map(|b| b.dc_w).sum(),
+                });
+                spans.push((r.first, r.last));
+                i = r.last + 1;
+            }
+            None => {
+                merged.push(blocks[i].clone());
+                spans.push((i, i));
+                i += 1;
+            }
+        }
+    }
+    Cascade { spans, ..cascade(&merged, levels) }
+}
+
+/// A chain's budget as shown: the cascade, the runs of directly coupled stages
+/// with both computations, and the warnings.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Budget {
+    pub cascade: Cascade,
+    pub runs: Vec<Run>,
+    /// Whether the runs entered the cascade as one circuit each.
+    pub one_circuit: bool,
+    pub warnings: Vec<Warning>,
+}
+
+/// Something in the budget the user should look at.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Warning {
+    /// The chain's block it is about (the first of a row's span).
+    pub block: Option<usize>,
+    pub text: String,
+}
+
+/// The warnings of a budget: a node closer than `margin_db` to its 1 dB compression
+/// point, and a noise figure set by a block behind the chain's first gain (common
+/// practice: the first gain should set the noise).
+pub fn warnings(c: &Cascade, margin_db: f64) -> Vec<Warning> {
+    let mut out = Vec::new();
+    for (i, s) in c.stages.iter().enumerate() {
+        if let Some(h) = s.headroom_db.filter(|&h| h < margin_db) {
+            let text = if h < 0.0 {
+                format!("{}: the signal is {:.1} dB past the 1 dB compression point", c.names[i], -h)
+            } else {
+                format!("{}: the signal is only {:.1} dB below the 1 dB compression point (margin {:.1} dB)", c.names[i], h, margin_db)
+            };
+            out.push(Warning { block: Some(c.spans[i].0), text });
+        }
+    }
+    let gain_before = |i: usize| if i == 0 { 0.0 } else { c.stages[i - 1].gain_db };
+    let first_gain = (0..c.stages.len()).position(|i| c.stages[i].gain_db > gain_before(i));
+    let loudest = (0..c.noise_share.len()).max_by(|&a, &b| c.noise_share[a].total_cmp(&c.noise_share[b]));
+    if let (Some(g), Some(n)) = (first_gain, loudest) {
+        if n > g && c.noise_share[n] > 0.0 {
+            out.push(Warning {
+                block: Some(c.spans[n].0),
+                text: format!(
+                    "{} sets the noise: {:.0} % of the chain's excess noise, behind the gain of {}. More gain ahead of it, or a quieter block there, would lower the noise figure",
+                    c.names[n],
+                    100.0 * c.noise_share[n],
+                    c.names[g]
+                ),
+            });
+        }
+    }
+    out
 }

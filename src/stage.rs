@@ -145,20 +145,24 @@ fn element(which: Component, a: Node, b: Node, value: f64) -> Element {
     }
 }
 
-/// Adds `which` between `a` and `b` if it is fitted.
-fn between(n: &mut Netlist, c: &Components, which: Component, a: Node, b: Node) {
+/// Adds `which` between `a` and `b` if it is fitted, named by `name` from its key.
+fn between(n: &mut Netlist, c: &Components, which: Component, a: Node, b: Node, name: &dyn Fn(&str) -> String) {
     if let Some(value) = c.fitted(which) {
-        n.add(which.key(), element(which, a, b, value));
+        n.add(name(which.key()), element(which, a, b, value));
     }
 }
 
 /// The node after a series component: a new node `to`, joined to `from` by the
 /// component if it is fitted, else `from` itself (a short).
 fn series(n: &mut Netlist, c: &Components, which: Component, from: Node, to: &str) -> Node {
+    series_named(n, c, which, from, to, &str::to_string)
+}
+
+fn series_named(n: &mut Netlist, c: &Components, which: Component, from: Node, to: &str, name: &dyn Fn(&str) -> String) -> Node {
     match c.fitted(which) {
         Some(value) => {
             let node = n.node(to);
-            n.add(which.key(), element(which, from, node, value));
+            n.add(name(which.key()), element(which, from, node, value));
             node
         }
         None => from,
@@ -167,24 +171,57 @@ fn series(n: &mut Netlist, c: &Components, which: Component, from: Node, to: &st
 
 /// Builds the stage of SPEC §3.2 around `part`.
 pub fn build(part: &Part, law: &InverterLaw, c: &Components) -> Result<StageCircuit> {
+    build_run(part, law, c, 1)
+}
+
+/// Names in copy `k` of a run: copy 1 keeps the plain names (so a run of one is the
+/// stage itself), later copies are prefixed `k:`.
+fn named(copy: usize, name: &str) -> String {
+    if copy == 1 {
+        name.to_string()
+    } else {
+        format!("{copy}:{name}")
+    }
+}
+
+/// `copies` identical stages directly coupled in a row, each one's output pin the
+/// next one's input pin (SPEC §3.2 repeated): the source drives the first, the load
+/// hangs on the last, and in between each stage loads the one before with its real
+/// input impedance — the circuit a matched-block budget only approximates. The
+/// source and load elements keep their plain names; the nodes returned are the
+/// first copy's, with `output` the last copy's output pin.
+pub fn build_run(part: &Part, law: &InverterLaw, c: &Components, copies: usize) -> Result<StageCircuit> {
     let mut n = Netlist::new();
     let emf = n.node("emf");
     let source = n.add("source EMF", Element::VoltageSource { a: emf, b: Node::GROUND, dc: 0.0, ac: 1.0 });
-    let input = series(&mut n, c, Component::SourceOhm, emf, "in");
-    between(&mut n, c, Component::ShuntOhm, input, Node::GROUND);
-    let a = series(&mut n, c, Component::CInF, input, "a");
-    let g1 = series(&mut n, c, Component::RInOhm, a, "g1");
-    let (gates, outputs) = add_part(&mut n, part, law, g1);
-    let last = *outputs.last().expect("a part has at least one stage");
-    between(&mut n, c, Component::RFbOhm, g1, last);
-    between(&mut n, c, Component::CFbF, g1, last);
-    let b = series(&mut n, c, Component::ROutOhm, last, "b");
-    let output = series(&mut n, c, Component::COutF, b, "out");
-    between(&mut n, c, Component::LoadOhm, output, Node::GROUND);
-    if c.fitted(Component::LoadOhm).is_none() && c.fitted(Component::COutF).is_some() {
-        n.add("output pin leak", Element::Resistor { a: output, b: Node::GROUND, ohms: PIN_LEAK_OHM });
+    let mut input = series(&mut n, c, Component::SourceOhm, emf, "in");
+    let mut first = None;
+    for copy in 1..=copies.max(1) {
+        let name = |s: &str| named(copy, s);
+        between(&mut n, c, Component::ShuntOhm, input, Node::GROUND, &name);
+        let a = series_named(&mut n, c, Component::CInF, input, &name("a"), &name);
+        let g1 = series_named(&mut n, c, Component::RInOhm, a, &name("g1"), &name);
+        let (gates, outputs) = add_part_named(&mut n, part, law, g1, &name);
+        let last = *outputs.last().expect("a part has at least one stage");
+        between(&mut n, c, Component::RFbOhm, g1, last, &name);
+        between(&mut n, c, Component::CFbF, g1, last, &name);
+        let b = series_named(&mut n, c, Component::ROutOhm, last, &name("b"), &name);
+        let output = series_named(&mut n, c, Component::COutF, b, &name("out"), &name);
+        if first.is_none() {
+            first = Some((input, a, gates, outputs, b));
+        }
+        // What holds this pin's DC level: the load on the last copy, the next copy's
+        // shunt in between; a pin left with only a coupling capacitor gets the leak.
+        let held = if copy == copies.max(1) { c.fitted(Component::LoadOhm) } else { c.fitted(Component::ShuntOhm) };
+        if held.is_none() && c.fitted(Component::COutF).is_some() {
+            n.add(name("output pin leak"), Element::Resistor { a: output, b: Node::GROUND, ohms: PIN_LEAK_OHM });
+        }
+        input = output;
     }
-    between(&mut n, c, Component::LoadF, output, Node::GROUND);
+    let output = input;
+    between(&mut n, c, Component::LoadOhm, output, Node::GROUND, &str::to_string);
+    between(&mut n, c, Component::LoadF, output, Node::GROUND, &str::to_string);
+    let (input, a, gates, outputs, b) = first.expect("at least one copy");
     if let Some(node) = first_floating(&n, PathKind::Dc) {
         return Err(floating_error(&n, node, &gates));
     }
@@ -195,20 +232,24 @@ pub fn build(part: &Part, law: &InverterLaw, c: &Components) -> Result<StageCirc
 /// The part's stages in series from `g1`, with their capacitances: returns the
 /// stage inputs and outputs.
 pub fn add_part(n: &mut Netlist, part: &Part, law: &InverterLaw, g1: Node) -> (Vec<Node>, Vec<Node>) {
+    add_part_named(n, part, law, g1, &str::to_string)
+}
+
+fn add_part_named(n: &mut Netlist, part: &Part, law: &InverterLaw, g1: Node, name: &dyn Fn(&str) -> String) -> (Vec<Node>, Vec<Node>) {
     let law = std::sync::Arc::new(*law);
     let mut gates = vec![g1];
     let mut outputs = Vec::new();
     for k in 1..=part.stages as usize {
         let gate = gates[k - 1];
-        let out = n.node(&format!("o{k}"));
-        n.add(format!("stage {k}"), Element::Device { input: gate, output: out, law: law.clone() });
-        for (name, a, b, farads) in [
+        let out = n.node(&name(&format!("o{k}")));
+        n.add(name(&format!("stage {k}")), Element::Device { input: gate, output: out, law: law.clone() });
+        for (cap, a, b, farads) in [
             ("cgs", gate, Node::GROUND, part.caps.cgs),
             ("cgd", gate, out, part.caps.cgd),
             ("cdb", out, Node::GROUND, part.caps.cdb),
         ] {
             if farads > 0.0 {
-                n.add(format!("{name} {k}"), Element::Capacitor { a, b, farads });
+                n.add(name(&format!("{cap} {k}")), Element::Capacitor { a, b, farads });
             }
         }
         outputs.push(out);

@@ -75,3 +75,105 @@ fn levels_shares_and_headroom() {
     // Headroom after the last block: output 1 dB point less the signal.
     assert!((t.headroom_db.unwrap() - (t.ip1db_dbm.unwrap() + t.gain_db - 1.0 - t.signal_dbm)).abs() < 1e-12);
 }
+
+mod runs {
+    use halfrail::chain::{runs_of, warnings, Block, Budget};
+    use halfrail::doc::{load, Document, StageRuns};
+    use halfrail::stage::Component;
+
+    /// A strong part (no capacitances) at 1 MHz with 1 mF coupling capacitors: the
+    /// stage's impedances are real to a few parts per million.
+    const STAGE_RUN: &str = r#"{"halfrail": 1,
+        "part": {"model": "square-law", "vdd_v": 3.3, "kn_a_per_v2": "40m", "kp_a_per_v2": "40m",
+                 "vtn_v": 0.6, "vtp_v": -0.6, "lambda_n_per_v": 0.05, "lambda_p_per_v": 0.05},
+        "stage": {"source_ohm": 50, "shunt_ohm": 100, "c_in_f": "1m", "r_in_ohm": "100R", "r_fb_ohm": "1k",
+                  "r_out_ohm": 10, "c_out_f": "1m", "load_ohm": 50},
+        "analysis": {"f_design_hz": "1 MHz"},
+        "chain": {"input_dbm": -60, "bandwidth_hz": "1 MHz",
+                  "blocks": [{"kind": "pad", "loss_db": 2}, {"kind": "stage"}, {"kind": "stage"}, {"kind": "stage"}]}}"#;
+
+    /// The stage's shunt and series output resistor set so that, between 50 Ω source
+    /// and load, Zin = Zout = 50 Ω: the shunt takes what the rest of the input lacks,
+    /// the series resistor what the output lacks, until neither moves.
+    fn matched_at_50_ohm() -> Document {
+        let mut doc = load(STAGE_RUN).unwrap();
+        let (part, _) = doc.part_and_stage().unwrap();
+        for _ in 0..60 {
+            let stage = doc.stage.unwrap();
+            let lin = halfrail::analysis::Linearised::new(&part, &stage, 50.0).unwrap();
+            let p = lin.at(1e6, &stage).unwrap();
+            let shunt = stage.get(Component::ShuntOhm).unwrap();
+            let rest = 1.0 / p.zin.unwrap() - 1.0 / shunt;
+            let r_out = stage.get(Component::ROutOhm).unwrap() + 50.0 - p.zout.re;
+            doc.stage = Some(stage.with(Component::ShuntOhm, Some(1.0 / (1.0 / 50.0 - rest.re))).with(Component::ROutOhm, Some(r_out)));
+        }
+        let stage = doc.stage.unwrap();
+        let p = halfrail::analysis::Linearised::new(&part, &stage, 50.0).unwrap().at(1e6, &stage).unwrap();
+        assert!((p.zin.unwrap() - 50.0).norm() < 1e-3 && (p.zout - 50.0).norm() < 1e-3, "not matched: {:?} {:?}", p.zin, p.zout);
+        doc
+    }
+
+    fn budget(doc: &Document) -> Budget {
+        let one = doc.stage_run(1).unwrap();
+        doc.chain(Some(Block::amp("stage", one.gain_db, one.nf_db, None, None, None))).unwrap()
+    }
+
+    #[test]
+    fn runs_are_two_or_more_consecutive_stages() {
+        assert_eq!(runs_of(&[false, true, true, false, true, true, true, false, true]), vec![(1, 2), (4, 6)]);
+        assert_eq!(runs_of(&[true]), vec![]);
+        assert_eq!(runs_of(&[]), vec![]);
+    }
+
+    #[test]
+    fn one_circuit_and_matched_blocks_agree_when_every_interface_is_50_ohm() {
+        // A linear two-port sees only the impedances at its ports: with every
+        // interface 50 Ω the stages load each other exactly as the matched budget
+        // assumes (GT = available gain, so Friis holds as written).
+        let doc = matched_at_50_ohm();
+        let b = budget(&doc);
+        let run = b.runs[0];
+        assert_eq!((run.first, run.last), (1, 3));
+        assert!((run.circuit.gain_db - run.matched.gain_db).abs() < 1e-4, "{run:?}");
+        assert!((run.circuit.nf_db - run.matched.nf_db).abs() < 1e-4, "{run:?}");
+        // And the run is three times the stage.
+        let one = doc.stage_run(1).unwrap();
+        assert!((run.circuit.gain_db - 3.0 * one.gain_db).abs() < 1e-4);
+    }
+
+    #[test]
+    fn mismatched_stages_are_far_from_the_matched_budget_and_the_option_uses_the_circuit() {
+        // The same stages with their own (unmatched) values: 100 Ω shunt, 10 Ω out.
+        let mut doc = load(STAGE_RUN).unwrap();
+        let matched = budget(&doc);
+        let run = matched.runs[0];
+        assert!((run.circuit.gain_db - run.matched.gain_db).abs() > 0.5, "{run:?}");
+        assert_eq!(matched.cascade.stages.len(), 4);
+        doc.chain.as_mut().unwrap().stage_runs = Some(StageRuns::OneCircuit);
+        let one = budget(&doc);
+        assert!(one.one_circuit);
+        assert_eq!(one.cascade.spans, vec![(0, 0), (1, 3)]);
+        let t = one.cascade.total().unwrap();
+        // The pad's loss plus the circuit's gain; the pad's NF (= loss) before the run's.
+        assert!((t.gain_db - (-2.0 + run.circuit.gain_db)).abs() < 1e-9);
+        let f = super::lin(2.0) + (super::lin(run.circuit.nf_db) - 1.0) / super::lin(-2.0);
+        assert!((t.nf_db - 10.0 * f.log10()).abs() < 1e-9);
+    }
+
+    #[test]
+    fn warnings_name_a_node_near_compression_and_a_late_noise_source() {
+        let blocks = [
+            Block::amp("lna", 15.0, 1.0, Some(20.0), Some(8.0), None),
+            Block::amp("noisy mixer", -6.0, 25.0, Some(25.0), Some(10.0), None),
+        ];
+        let levels = super::Levels { input_dbm: -10.0, bandwidth_hz: 1e6, snr_wanted_db: 10.0 };
+        let c = super::cascade(&blocks, &levels);
+        let w = warnings(&c, 6.0);
+        // After the lna the signal is at +5 dBm, 2 dB below its output 1 dB point (7 dBm).
+        assert!(w.iter().any(|w| w.block == Some(0) && w.text.contains("2.0 dB below")), "{w:?}");
+        assert!(w.iter().any(|w| w.block == Some(1) && w.text.contains("sets the noise")), "{w:?}");
+        // A quiet chain driven softly has none.
+        let quiet = super::cascade(&[Block::amp("lna", 15.0, 1.0, None, Some(8.0), None), Block::amp("if", 10.0, 6.0, None, None, None)], &super::LEVELS);
+        assert_eq!(warnings(&quiet, 6.0), vec![]);
+    }
+}

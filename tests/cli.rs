@@ -263,6 +263,10 @@ fn chain_prints_the_budget() {
     let stages = json["stages"].as_array().unwrap();
     assert_eq!(stages.len(), 4, "the demo chain has four blocks");
     assert_eq!(stages[1]["name"], "Inverter gain block");
+    assert_eq!(stages[1]["blocks"], serde_json::json!([1, 1]));
+    // One stage block: no run of directly coupled stages, and nothing to warn about.
+    assert_eq!((json["stage_runs"].as_str(), json["runs"].as_array().map(Vec::len)), (Some("matched"), Some(0)));
+    assert_eq!(json["warnings"], serde_json::json!([]));
     // The output level is the input plus the chain's gain.
     assert!((json["output_dbm"].as_f64().unwrap() - (-60.0 + json["gain_db"].as_f64().unwrap())).abs() < 1e-9);
 }

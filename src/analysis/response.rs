@@ -17,7 +17,7 @@ use super::twoport::{mu, output_noise, output_selector, resistor_noise, rollett_
 use crate::engine::{operating_point, Workspace, Element, Netlist, Node, OperatingPoint, SmallSignal};
 use crate::error::Result;
 use crate::part::Part;
-use crate::stage::{build, Component, Components, StageCircuit};
+use crate::stage::{build_run, Component, Components, StageCircuit};
 
 /// Log-spaced frequencies from `start` to `stop` with `per_decade` points per decade,
 /// both ends included.
@@ -189,8 +189,15 @@ fn remove_source(n: &mut Netlist, circuit: &StageCircuit) {
 impl Linearised {
     /// Solves the operating point and linearises the stage and its variants.
     pub fn new(part: &Part, components: &Components, z0: f64) -> Result<Self> {
+        Self::run(part, components, 1, z0)
+    }
+
+    /// The same for `copies` stages directly coupled in a row (`stage::build_run`):
+    /// the figures are the whole run's, from the first copy's input to the last
+    /// copy's output; the loop is the first copy's.
+    pub fn run(part: &Part, components: &Components, copies: usize, z0: f64) -> Result<Self> {
         let law = part.law()?;
-        let circuit = build(part, &law, components)?;
+        let circuit = build_run(part, &law, components, copies)?;
         let op = operating_point(&circuit.netlist, None)?;
         let main = SmallSignal::at(&circuit.netlist, &op)?;
         let nodes = &circuit.nodes;
@@ -325,7 +332,7 @@ fn noise_sources(part: &Part, circuit: &StageCircuit, op: &OperatingPoint) -> Ve
     let mut out = Vec::new();
     for (named, state) in circuit.netlist.elements().iter().zip(&op.devices) {
         match (&named.element, state) {
-            (Element::Resistor { a, b, ohms }, _) if !matches!(named.name.as_str(), "load_ohm" | "output pin leak") => {
+            (Element::Resistor { a, b, ohms }, _) if !(named.name == "load_ohm" || named.name.ends_with("output pin leak")) => {
                 let from_source = named.name == "source_ohm";
                 let kelvin = if from_source { T0_K } else { t_part };
                 out.push(resistor_noise(&named.name, *a, *b, *ohms, kelvin, from_source));

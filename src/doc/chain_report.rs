@@ -4,18 +4,19 @@
 
 use serde::ser::{Serialize, SerializeStruct, Serializer};
 
-use crate::chain::{Block, Cascade, Cumulative};
+use crate::chain::{Block, Budget, Cumulative, Run, RunFigures, Warning};
 
 /// `halfrail chain` output, with the blocks' names for the table.
-pub struct ChainReport<'a>(pub &'a Cascade);
+pub struct ChainReport<'a>(pub &'a Budget);
 
-struct CumulativeOut<'a>(&'a str, &'a Cumulative, f64, f64);
+struct CumulativeOut<'a>(&'a str, (usize, usize), &'a Cumulative, f64, f64);
 
 impl Serialize for CumulativeOut<'_> {
     fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let CumulativeOut(name, c, noise_share, distortion_share) = *self;
-        let mut out = serializer.serialize_struct("Cumulative", 14)?;
+        let CumulativeOut(name, (first, last), c, noise_share, distortion_share) = *self;
+        let mut out = serializer.serialize_struct("Cumulative", 15)?;
         out.serialize_field("name", name)?;
+        out.serialize_field("blocks", &[first, last])?;
         out.serialize_field("gain_db", &c.gain_db)?;
         out.serialize_field("nf_db", &c.nf_db)?;
         out.serialize_field("noise_temp_k", &c.noise_temp_k)?;
@@ -32,11 +33,48 @@ impl Serialize for CumulativeOut<'_> {
     }
 }
 
+struct FiguresOut<'a>(&'a RunFigures);
+
+impl Serialize for FiguresOut<'_> {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let mut out = serializer.serialize_struct("RunFigures", 2)?;
+        out.serialize_field("gain_db", &self.0.gain_db)?;
+        out.serialize_field("nf_db", &self.0.nf_db)?;
+        out.end()
+    }
+}
+
+struct RunOut<'a>(&'a Run);
+
+impl Serialize for RunOut<'_> {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let r = self.0;
+        let mut out = serializer.serialize_struct("Run", 4)?;
+        out.serialize_field("first", &r.first)?;
+        out.serialize_field("last", &r.last)?;
+        out.serialize_field("matched", &FiguresOut(&r.matched))?;
+        out.serialize_field("circuit", &FiguresOut(&r.circuit))?;
+        out.end()
+    }
+}
+
+struct WarningOut<'a>(&'a Warning);
+
+impl Serialize for WarningOut<'_> {
+    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
+        let mut out = serializer.serialize_struct("Warning", 2)?;
+        out.serialize_field("block", &self.0.block)?;
+        out.serialize_field("text", &self.0.text)?;
+        out.end()
+    }
+}
+
 impl Serialize for ChainReport<'_> {
     fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let c = self.0;
+        let budget = self.0;
+        let c = &budget.cascade;
         let total = c.total();
-        let mut out = serializer.serialize_struct("Chain", 14)?;
+        let mut out = serializer.serialize_struct("Chain", 17)?;
         out.serialize_field("gain_db", &total.map(|t| t.gain_db))?;
         out.serialize_field("nf_db", &total.map(|t| t.nf_db))?;
         out.serialize_field("iip3_dbm", &total.and_then(|t| t.iip3_dbm))?;
@@ -53,9 +91,12 @@ impl Serialize for ChainReport<'_> {
             .stages
             .iter()
             .enumerate()
-            .map(|(i, s)| CumulativeOut(&c.names[i], s, c.noise_share[i], c.distortion_share[i]))
+            .map(|(i, s)| CumulativeOut(&c.names[i], c.spans[i], s, c.noise_share[i], c.distortion_share[i]))
             .collect();
         out.serialize_field("stages", &stages)?;
+        out.serialize_field("stage_runs", if budget.one_circuit { "one-circuit" } else { "matched" })?;
+        out.serialize_field("runs", &budget.runs.iter().map(RunOut).collect::<Vec<_>>())?;
+        out.serialize_field("warnings", &budget.warnings.iter().map(WarningOut).collect::<Vec<_>>())?;
         out.end()
     }
 }

@@ -21,7 +21,7 @@ pub use serialize::{AcReport, AnalyzeReport, BiasReport, PartReport, ResponseRep
 mod validate;
 
 pub use sections::{
-    Analysis, Bench, Block, BlockKind, Chain, CurvePoint, Document, GainKind, GainReading, Model, Part, Target, Tolerance,
+    Analysis, Bench, Block, BlockKind, Chain, CurvePoint, Document, GainKind, GainReading, Model, Part, StageRuns, Target, Tolerance,
 };
 
 use crate::error::{FieldError, Result};
@@ -269,9 +269,11 @@ impl Document {
     }
 
     /// The `chain` section's budget; `stage` is the stage block's figures when
-    /// already known (else computed when a stage block is in the chain).
-    pub fn chain(&self, stage: Option<crate::chain::Block>) -> Result<crate::chain::Cascade> {
-        use crate::chain::{cascade, Block as Core, Levels};
+    /// already known (else computed when a stage block is in the chain). Runs of
+    /// consecutive stage blocks are also solved as one circuit, and enter the
+    /// cascade that way when `stage_runs` asks for it.
+    pub fn chain(&self, stage: Option<crate::chain::Block>) -> Result<crate::chain::Budget> {
+        use crate::chain::{cascade, matched_run, one_circuit, runs_of, warnings, Block as Core, Budget, Levels, Run};
         let chain = self.chain.as_ref().ok_or_else(|| FieldError::new("chain", "missing; a budget needs the chain of blocks"))?;
         let mut stage = stage;
         let mut blocks = Vec::with_capacity(chain.blocks.len());
@@ -288,7 +290,32 @@ impl Document {
                 BlockKind::Amp => Core::amp(&name, b.gain_db.unwrap_or(0.0), b.nf_db.unwrap_or(0.0), b.oip3_dbm, b.op1db_dbm, b.dc_w),
             });
         }
-        Ok(cascade(&blocks, &Levels { input_dbm: chain.input_dbm, bandwidth_hz: chain.bandwidth_hz, snr_wanted_db: chain.snr_wanted_db.unwrap_or(DEFAULT_SNR_DB) }))
+        let is_stage: Vec<bool> = chain.blocks.iter().map(|b| b.kind == BlockKind::Stage).collect();
+        let runs = runs_of(&is_stage)
+            .into_iter()
+            .map(|(first, last)| {
+                let circuit = self.stage_run(last - first + 1)?;
+                Ok(Run { first, last, matched: matched_run(&blocks, first, last), circuit })
+            })
+            .collect::<Result<Vec<Run>>>()?;
+        let levels = Levels { input_dbm: chain.input_dbm, bandwidth_hz: chain.bandwidth_hz, snr_wanted_db: chain.snr_wanted_db.unwrap_or(DEFAULT_SNR_DB) };
+        let one = chain.stage_runs == Some(StageRuns::OneCircuit);
+        let budget = if one { one_circuit(&blocks, &runs, &levels) } else { cascade(&blocks, &levels) };
+        let warnings = warnings(&budget, chain.headroom_warn_db.unwrap_or(DEFAULT_HEADROOM_WARN_DB));
+        Ok(Budget { cascade: budget, runs, one_circuit: one, warnings })
+    }
+
+    /// GT and NF at f_design of `copies` of this document's stage coupled directly,
+    /// solved as one circuit between the document's source and load.
+    pub fn stage_run(&self, copies: usize) -> Result<crate::chain::RunFigures> {
+        let missing = |what: &str| FieldError::new("chain", format!("a run of stages needs {what}"));
+        let (part, stage) = self.part_and_stage()?;
+        let analysis = self.sweep().map_err(|_| missing("the analysis section (its f_design_hz)"))?;
+        let lin = crate::analysis::Linearised::run(&part, &stage, copies, analysis.z0_ohm)?;
+        let point = lin.at(analysis.f_design_hz, &stage)?;
+        let gain_db = point.gt.map(|g| 10.0 * g.log10()).ok_or_else(|| missing("a source resistance and a load resistor (its power gain)"))?;
+        let nf_db = point.nf_db().ok_or_else(|| missing("a source resistance (its noise figure)"))?;
+        Ok(crate::chain::RunFigures { gain_db, nf_db })
     }
 
     /// The part fitted to the `bench` readings, starting from the document's part.
@@ -358,6 +385,10 @@ pub struct SpreadResult {
 /// The SNR of the minimum detectable signal when the chain names none (common
 /// practice: 10 dB for a usable signal).
 pub const DEFAULT_SNR_DB: f64 = 10.0;
+
+/// The headroom below which a node is warned about when the chain names none
+/// (common practice: keep a few dB clear of compression).
+pub const DEFAULT_HEADROOM_WARN_DB: f64 = 6.0;
 
 /// The largest document accepted, in bytes.
 pub const MAX_DOCUMENT_BYTES: usize = 4 << 20;

@@ -367,6 +367,22 @@ pub struct Chain {
     /// The SNR the minimum detectable signal is counted at (10 dB when absent).
     #[serde(default, deserialize_with = "optional::<Decibel, _>")]
     pub snr_wanted_db: Option<f64>,
+    /// A node closer than this to its 1 dB compression point is warned about (6 dB when absent).
+    #[serde(default, deserialize_with = "optional::<Decibel, _>")]
+    pub headroom_warn_db: Option<f64>,
+    /// How consecutive stage blocks are budgeted (matched blocks when absent).
+    #[serde(default)]
+    pub stage_runs: Option<StageRuns>,
+}
+
+/// How a run of consecutive, directly coupled stage blocks enters the budget.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum StageRuns {
+    /// Each stage a block matched to the reference impedance at both ends.
+    Matched,
+    /// The run computed as one circuit, the stages loading each other.
+    OneCircuit,
 }
 
 /// A whole design document (`"halfrail": 1`).

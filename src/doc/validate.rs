@@ -247,6 +247,7 @@ fn chain(c: &Chain) -> Result<()> {
     range("chain.input_dbm", c.input_dbm, Closed(-200.0), Closed(60.0))?;
     range("chain.bandwidth_hz", c.bandwidth_hz, Open(0.0), Closed(MAX_HZ))?;
     optional_range("chain.snr_wanted_db", c.snr_wanted_db, Closed(-20.0), Closed(100.0))?;
+    optional_range("chain.headroom_warn_db", c.headroom_warn_db, Closed(0.0), Closed(100.0))?;
     list_length("chain.blocks", c.blocks.len())?;
     for (i, b) in c.blocks.iter().enumerate() {
         block(&format!("chain.blocks[{i}]"), b)?;
