@@ -25,7 +25,7 @@ const SCRIPTS = [
   'js/panels/loop.js',
   'js/panels/swing.js',
   'js/panels/spread.js',
-  'js/panels/planned.js',
+  'js/panels/chain.js',
   'js/shell.js',
 ];
 const STYLES = ['css/base.css', 'css/panels.css'];
