@@ -26,6 +26,8 @@ const SCRIPTS = [
   'js/panels/swing.js',
   'js/panels/spread.js',
   'js/panels/chain.js',
+  'js/embed.js',
+  'js/documents.js',
   'js/shell.js',
 ];
 const STYLES = ['css/base.css', 'css/panels.css'];

@@ -3,6 +3,8 @@
 // which may hold a bad value), and the last draft the core accepted. Both are kept
 // in storage, so a reload loses nothing and still has a good design to show.
 // Every change can be undone and redone; typing into one field is one step.
+// A stored draft the page cannot read at all is kept aside under `recovered`, not
+// overwritten; in read-only mode (an embedded view) every change is refused.
 
 HR.design = (() => {
   const KEY = 'design';
@@ -12,22 +14,51 @@ HR.design = (() => {
   let lastField = null;
   let draft;
   let good;
+  let persist = true;
+  let locked = false;
+  let recovered = [];
   const HISTORY = 200;
 
-  // Remembers the draft before a change; consecutive edits of one field are one step.
+  // Remembers the draft before a change (false: read-only, no change); consecutive
+  // edits of one field are one step.
   const remember = (label, field) => {
-    if (field && field === lastField) return;
+    if (locked) return false;
+    if (field && field === lastField) return true;
     past.push({ draft: JSON.stringify(draft), label });
     if (past.length > HISTORY) past.shift();
     future.length = 0;
     lastField = field;
+    return true;
   };
 
-  const save = () => HR.store.set(KEY, { draft, good });
+  const save = () => persist && HR.store.set(KEY, { draft, good });
+
+  const plain = (v) => v !== null && typeof v === 'object' && !Array.isArray(v);
+  // Why a stored value is no draft this page can use (not JSON, not a draft's shape,
+  // a document the core cannot read at all, as one of a newer format), or '' when it
+  // is one: a bad field value is what drafts hold, and it loads as it is.
+  const unusable = (raw) => {
+    let saved;
+    try { saved = JSON.parse(raw); } catch (e) { return 'it is not JSON'; }
+    const d = saved && saved.draft;
+    if (!plain(d) || Object.entries(d).some(([k, v]) => !['halfrail', 'title', 'notes'].includes(k) && v !== null && !plain(v))) return 'it is not a design draft';
+    const r = HR.call('checkDocument', JSON.stringify(d));
+    return r.error && ['halfrail', 'document'].includes(r.error.field) ? `${r.error.field}: ${r.error.reason}` : '';
+  };
 
   const load = () => {
-    const saved = HR.store.get(KEY, null);
-    if (saved && saved.draft && typeof saved.draft === 'object') {
+    let raw = null;
+    try { raw = window.localStorage.getItem(HR.store.prefix + KEY); } catch (e) { /* no storage: the demo */ }
+    const why = raw === null ? '' : unusable(raw);
+    const kept = HR.store.get('recovered', []);
+    recovered = Array.isArray(kept) ? kept : [];
+    if (why) {
+      recovered.push({ text: raw, why });
+      // Without room for the copy, the text stays where it is and nothing is saved over it.
+      if (!HR.store.set('recovered', recovered)) persist = false;
+    }
+    if (raw !== null && !why) {
+      const saved = JSON.parse(raw);
       draft = saved.draft;
       good = typeof saved.good === 'string' ? saved.good : null;
     } else {
@@ -51,7 +82,7 @@ HR.design = (() => {
 
   // Moves one step from one history to the other: undo (past → future) or redo.
   const travel = (from, to, origin) => {
-    const step = from.pop();
+    const step = !locked && from.pop();
     if (!step) return;
     to.push({ draft: JSON.stringify(draft), label: step.label });
     draft = JSON.parse(step.draft);
@@ -61,7 +92,17 @@ HR.design = (() => {
   };
 
   return {
-    start() { load(); },
+    // `persist: false` keeps the design in this page only (an embedded one).
+    start({ persist: keep = true } = {}) { persist = keep; load(); },
+    // From now on every change is refused (a read-only view).
+    lock() { locked = true; },
+    readOnly: () => locked,
+    // Stored drafts that could not be read, [{text, why}], kept until dismissed.
+    recovered: () => recovered,
+    dismissRecovered() {
+      recovered = [];
+      try { window.localStorage.removeItem(`${HR.store.prefix}recovered`); } catch (e) { /* no storage */ }
+    },
     // The draft as text, for the core.
     text: () => JSON.stringify(draft),
     // The last text the core accepted, or null.
@@ -71,13 +112,11 @@ HR.design = (() => {
     section(name) { return draft[name]; },
     // Sets one field as typed; an empty text removes it (not fitted / default).
     set(section, key, value, origin) {
-      remember(`edit ${section}.${key}`, `${section}.${key}`);
-      put(section, { [key]: value }, origin);
+      if (remember(`edit ${section}.${key}`, `${section}.${key}`)) put(section, { [key]: value }, origin);
     },
     // Sets several fields of one section as one step: one undo takes them all back.
     setMany(section, values, label, origin) {
-      remember(label, null);
-      put(section, values, origin);
+      if (remember(label, null)) put(section, values, origin);
     },
     // A field's value in SI base units as the core reads it, or null when empty or bad.
     value(section, key, unit = '') {
@@ -87,11 +126,19 @@ HR.design = (() => {
     },
     // Replaces a whole section as one step.
     replace(name, value, label) {
-      remember(label, null);
+      if (!remember(label, null)) return;
       lastField = null;
       draft[name] = value;
       save();
       notify('replace');
+    },
+    // Replaces the whole draft with a document's text (checked by the caller) as one step.
+    load(text, label) {
+      if (!remember(label, null)) return false;
+      draft = JSON.parse(text);
+      save();
+      notify('load');
+      return true;
     },
     canUndo: () => past.length > 0,
     canRedo: () => future.length > 0,

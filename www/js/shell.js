@@ -36,7 +36,7 @@
     const rail = document.getElementById('rail');
     rail.replaceChildren(el('ul', {}, ORDER.map((id) => {
       const p = panelById(id);
-      return el('li', {}, el('a', { href: `#${id}`, 'data-panel': id, class: p.planned ? 'planned' : null },
+      return el('li', {}, el('a', { href: `#${id}${HR.documents.tail}`, 'data-panel': id, class: p.planned ? 'planned' : null },
         p.title, p.planned ? el('span', { class: 'soon' }, ' · soon') : null));
     })));
   };
@@ -50,7 +50,7 @@
       return;
     }
     HR.setStatus(`Engine ready · v${HR.version}`);
-    HR.design.start();
+    await HR.documents.start();
     const saved = HR.store.get('ui', {});
     const first = requested() || (panelById(saved.panel) ? saved.panel : DEFAULT_PANEL);
     show(first);
