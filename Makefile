@@ -13,7 +13,7 @@ APT := $(if $(filter 0,$(shell id -u)),,sudo) env DEBIAN_FRONTEND=noninteractive
 export CHROMEDRIVER ?= /usr/bin/chromedriver
 export CARGO_TARGET_WASM32_UNKNOWN_UNKNOWN_RUNNER := wasm-bindgen-test-runner
 
-.PHONY: run dist test test-native test-wasm test-e2e test-interop bench setup-rust setup-build-tools setup-node setup-python setup-browser clean
+.PHONY: run dist test lint test-native test-wasm test-e2e test-interop bench setup-rust setup-build-tools setup-node setup-python setup-browser clean
 
 run: dist
 	@echo "The page: file://$(CURDIR)/$(PAGE)"
@@ -29,8 +29,12 @@ dist: setup-rust setup-build-tools
 
 test: dist setup-node setup-browser test-native test-wasm test-e2e test-interop
 
-test-native:
+test-native: lint
 	cargo test
+
+# The core's elementary functions must come from crate::math (clippy.toml).
+lint: setup-rust
+	cargo clippy --lib -- -A clippy::all -D clippy::disallowed_methods
 
 test-wasm: setup-rust setup-browser
 	cd wasm-tests && cargo test --target wasm32-unknown-unknown
@@ -51,6 +55,7 @@ bench: dist setup-node setup-browser
 
 setup-rust:
 	@rustup target list --installed | grep -qx wasm32-unknown-unknown || rustup target add wasm32-unknown-unknown
+	@cargo clippy --version >/dev/null 2>&1 || rustup component add clippy
 	@if [ "$$(wasm-bindgen --version 2>/dev/null)" != "wasm-bindgen $(WASM_BINDGEN_VERSION)" ]; then \
 	  echo "installing wasm-bindgen-cli $(WASM_BINDGEN_VERSION) (a few minutes)"; \
 	  cargo install wasm-bindgen-cli --version $(WASM_BINDGEN_VERSION); fi

@@ -14,6 +14,7 @@
 //! assert!((c.total().unwrap().nf_db - 5.0).abs() < 1e-12);
 //! ```
 
+use crate::math;
 use crate::analysis::{BOLTZMANN, T0_K};
 
 /// One block as the cascade sees it: matched at both ends.
@@ -95,11 +96,11 @@ impl Cascade {
 }
 
 fn lin(db: f64) -> f64 {
-    10f64.powf(db / 10.0)
+    math::pow(10f64, db / 10.0)
 }
 
 fn db(x: f64) -> f64 {
-    10.0 * x.log10()
+    10.0 * math::log10(x)
 }
 
 /// kT0, W/Hz (the 2019 SI's exact k at the IEEE reference temperature).

@@ -23,6 +23,7 @@ pub mod analysis;
 pub mod chain;
 pub mod doc;
 pub mod engine;
+pub mod math;
 pub mod error;
 pub mod part;
 pub mod report;

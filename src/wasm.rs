@@ -257,6 +257,15 @@ pub fn spread_report(text: &str, progress: &js_sys::Function) -> Result<JsValue,
     to_js(&doc::SpreadReport(&result))
 }
 
+/// How many trials the document's spread runs (its `tolerance.trials`, or the
+/// core's default): what the page splits between its workers.
+#[wasm_bindgen(js_name = spreadTrialCount)]
+pub fn spread_trial_count(text: &str) -> Result<u32, JsValue> {
+    let document = doc::load(text).map_err(thrown)?;
+    let tolerance = document.tolerance.ok_or_else(|| thrown(FieldError::new("tolerance", "missing; a spread needs the tolerances")))?;
+    Ok(tolerance.trials)
+}
+
 /// Trials `from..to` of the document's spread, for splitting the Monte Carlo
 /// between workers: each trial's figures, one column per figure key (null where a
 /// figure does not exist). Trial i is the same whichever worker runs it.
@@ -301,6 +310,16 @@ pub fn bias_of(text: &str) -> Result<JsValue, JsValue> {
 #[wasm_bindgen(js_name = sweepCsv)]
 pub fn sweep_csv(text: &str) -> Result<String, JsValue> {
     Ok(crate::report::sweep_csv(&doc::load(text).and_then(|d| d.response()).map_err(thrown)?))
+}
+
+/// The design sheet as plain text, or Markdown when `markdown` (the same as
+/// `halfrail report`). It runs every analysis, the large-signal one twice when
+/// the chain has a stage block: long enough that the page should call it from a
+/// worker.
+#[wasm_bindgen(js_name = sheetText)]
+pub fn sheet_text(text: &str, markdown: bool) -> Result<String, JsValue> {
+    let style = if markdown { crate::report::Style::Markdown } else { crate::report::Style::Text };
+    Ok(doc::load(text).map_err(thrown)?.sheet().render(style))
 }
 
 

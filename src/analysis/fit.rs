@@ -8,6 +8,7 @@
 //! (supply current, bias voltage), driven at the gate around that bias into the
 //! known load (open-loop gain), and swept at the gate unloaded (transfer points).
 
+use crate::math;
 use levenberg_marquardt::{LeastSquaresProblem, LevenbergMarquardt};
 use nalgebra::{DMatrix, DVector, Dyn, Owned};
 
@@ -161,12 +162,12 @@ fn base_of(part: &Part) -> Part {
 impl Problem<'_> {
     /// The starting vector: logarithms of k, logits of Vt/VDD, and 0 for the scale factors.
     fn start(base: &Part, params: &[Param]) -> DVector<f64> {
-        let logit = |vt: f64| (vt / base.vdd / (1.0 - vt / base.vdd)).ln();
+        let logit = |vt: f64| math::ln(vt / base.vdd / (1.0 - vt / base.vdd));
         DVector::from_iterator(
             params.len(),
             params.iter().map(|p| match p {
-                Param::Kn => base.nmos.k.ln(),
-                Param::Kp => base.pmos.k.ln(),
+                Param::Kn => math::ln(base.nmos.k),
+                Param::Kp => math::ln(base.pmos.k),
                 Param::Vtn => logit(base.nmos.vt),
                 Param::Vtp => logit(base.pmos.vt),
                 Param::Lambda | Param::Cap => 0.0,
@@ -177,19 +178,19 @@ impl Problem<'_> {
     /// The part at parameter vector `x`.
     fn part_at(&self, x: &DVector<f64>) -> Part {
         let mut p = self.base.clone();
-        let threshold = |v: f64| p.vdd / (1.0 + (-v).exp());
+        let threshold = |v: f64| p.vdd / (1.0 + math::exp(-v));
         for (param, &v) in self.params.iter().zip(x.iter()) {
             match param {
-                Param::Kn => p.nmos.k = v.exp(),
-                Param::Kp => p.pmos.k = v.exp(),
+                Param::Kn => p.nmos.k = math::exp(v),
+                Param::Kp => p.pmos.k = math::exp(v),
                 Param::Vtn => p.nmos.vt = threshold(v),
                 Param::Vtp => p.pmos.vt = threshold(v),
                 Param::Lambda => {
-                    p.nmos.lambda = self.base.nmos.lambda * v.exp();
-                    p.pmos.lambda = self.base.pmos.lambda * v.exp();
+                    p.nmos.lambda = self.base.nmos.lambda * math::exp(v);
+                    p.pmos.lambda = self.base.pmos.lambda * math::exp(v);
                 }
                 Param::Cap => {
-                    let s = v.exp();
+                    let s = math::exp(v);
                     p.caps = Capacitances { cgs: self.base.caps.cgs * s, cgd: self.base.caps.cgd * s, cdb: self.base.caps.cdb * s };
                 }
             }
@@ -249,7 +250,7 @@ fn open_loop_gain(part: &Part, vbias: f64, f_hz: f64, load_ohm: Option<f64>, loa
     let op = operating_point(&n, None)?;
     let small = SmallSignal::at(&n, &op)?;
     let x = small.solve(std::f64::consts::TAU * f_hz)?;
-    Ok(small.layout.voltage(&x, out).norm())
+    Ok(math::norm(small.layout.voltage(&x, out)))
 }
 
 /// The unloaded part's output with its gate held at `vin`.

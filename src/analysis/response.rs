@@ -8,6 +8,7 @@
 //! replacing elements with opens and appending test sources, so the device states
 //! of the operating point stay aligned with their elements.
 
+use crate::math;
 use std::cell::RefCell;
 
 use nalgebra::DVector;
@@ -22,9 +23,9 @@ use crate::stage::{build_run, Component, Components, StageCircuit};
 /// Log-spaced frequencies from `start` to `stop` with `per_decade` points per decade,
 /// both ends included.
 pub fn frequencies(start: f64, stop: f64, per_decade: u32) -> Vec<f64> {
-    let decades = (stop / start).log10();
+    let decades = math::log10(stop / start);
     let steps = (decades * per_decade as f64).ceil().max(1.0) as usize;
-    (0..=steps).map(|i| start * 10f64.powf(decades * i as f64 / steps as f64)).collect()
+    (0..=steps).map(|i| start * math::pow(10f64, decades * i as f64 / steps as f64)).collect()
 }
 
 /// The figures at one frequency.
@@ -53,11 +54,11 @@ pub struct Point {
 
 impl Point {
     pub fn gain_db(&self) -> f64 {
-        20.0 * self.av.norm().log10()
+        20.0 * math::log10(math::norm(self.av))
     }
 
     pub fn phase_deg(&self) -> f64 {
-        self.av.arg().to_degrees()
+        math::arg(self.av).to_degrees()
     }
 
     pub fn rollett_k(&self) -> f64 {
@@ -70,19 +71,19 @@ impl Point {
 
     /// Spot noise figure in dB (IEEE: source at 290 K), when the source has resistance.
     pub fn nf_db(&self) -> Option<f64> {
-        (self.noise_source_v2 > 0.0).then(|| 10.0 * (self.noise_out_v2 / self.noise_source_v2).log10())
+        (self.noise_source_v2 > 0.0).then(|| 10.0 * math::log10(self.noise_out_v2 / self.noise_source_v2))
     }
 
     /// Return loss of the input against a source of `source_ohm`, dB (`None` without
     /// an input impedance; infinite for a perfect match is left out too).
     pub fn return_loss_db(&self, source_ohm: f64) -> Option<f64> {
-        let gamma = crate::units::reflection(self.zin?, source_ohm).norm();
-        (gamma > 0.0).then(|| -20.0 * gamma.log10())
+        let gamma = math::norm(crate::units::reflection(self.zin?, source_ohm));
+        (gamma > 0.0).then(|| -20.0 * math::log10(gamma))
     }
 
     /// The stage's own noise referred to the source EMF, V/√Hz (the source's own excluded).
     pub fn noise_in_v_per_rthz(&self) -> f64 {
-        ((self.noise_out_v2 - self.noise_source_v2).max(0.0)).sqrt() / self.emf_gain.norm()
+        ((self.noise_out_v2 - self.noise_source_v2).max(0.0)).sqrt() / math::norm(self.emf_gain)
     }
 }
 
@@ -157,7 +158,7 @@ pub fn z_parameters(s: &[[Complex64; 2]; 2], z0: f64) -> [[Complex64; 2]; 2] {
 fn termination(ohms: Option<f64>, farads: Option<f64>, omega: f64) -> Option<Complex64> {
     let y = ohms.map_or(Complex64::new(0.0, 0.0), |r| Complex64::new(1.0 / r, 0.0))
         + farads.map_or(Complex64::new(0.0, 0.0), |c| Complex64::new(0.0, omega * c));
-    (y.norm() > 0.0).then(|| 1.0 / y)
+    (math::norm(y) > 0.0).then(|| 1.0 / y)
 }
 
 /// A zero current source: an exact open circuit where an element is removed.
@@ -297,11 +298,11 @@ impl Linearised {
     }
 
     fn edge_from(&self, f_design: f64, factor: f64, limit: f64) -> Result<Option<f64>> {
-        let level = self.av(f_design)?.norm() / std::f64::consts::SQRT_2;
+        let level = math::norm(self.av(f_design)?) / std::f64::consts::SQRT_2;
         let mut f = f_design;
         while (factor < 1.0 && f > limit) || (factor > 1.0 && f < limit) {
             let next = f * factor;
-            if self.av(next)?.norm() < level {
+            if math::norm(self.av(next)?) < level {
                 return refine_edge(self, level, f, next).map(Some);
             }
             f = next;
@@ -389,7 +390,7 @@ fn integrated_noise(lin: &Linearised, c: &Components, low: f64, high: f64) -> Re
 fn refine_edge(lin: &Linearised, level: f64, mut inside: f64, mut outside: f64) -> Result<f64> {
     while (outside / inside - 1.0).abs() > 1e-3 {
         let mid = (inside * outside).sqrt();
-        if lin.av(mid)?.norm() >= level {
+        if math::norm(lin.av(mid)?) >= level {
             inside = mid;
         } else {
             outside = mid;
@@ -408,10 +409,10 @@ pub fn response(part: &Part, c: &Components, f_design: f64, freqs: &[f64], z0: f
 pub fn response_of(lin: &Linearised, c: &Components, f_design: f64, freqs: &[f64], noise_band: Option<(f64, f64)>) -> Result<Response> {
     let points = freqs.iter().map(|&f| lin.at(f, c)).collect::<Result<Vec<_>>>()?;
     let design = lin.at(f_design, c)?;
-    let level = design.av.norm() / std::f64::consts::SQRT_2;
+    let level = math::norm(design.av) / std::f64::consts::SQRT_2;
     let split = freqs.partition_point(|&f| f < f_design);
-    let below = (0..split).rev().find(|&i| points[i].av.norm() < level);
-    let above = (split..points.len()).find(|&i| points[i].av.norm() < level);
+    let below = (0..split).rev().find(|&i| math::norm(points[i].av) < level);
+    let above = (split..points.len()).find(|&i| math::norm(points[i].av) < level);
     let f_low_hz = match below {
         Some(i) => Some(refine_edge(lin, level, if i + 1 < split { freqs[i + 1] } else { f_design }, freqs[i])?),
         None => None,
@@ -437,13 +438,13 @@ pub fn response_of(lin: &Linearised, c: &Components, f_design: f64, freqs: &[f64
 /// whole turns to stay within half a turn of the last), then shifted by whole turns
 /// so that at `f_design` it is the principal value there.
 pub fn unwrapped_phase(points: &[Point], f_design: f64) -> Vec<f64> {
-    let mut phase: Vec<f64> = points.iter().map(|p| p.av.arg()).collect();
+    let mut phase: Vec<f64> = points.iter().map(|p| math::arg(p.av)).collect();
     for i in 1..phase.len() {
         let jump = phase[i] - phase[i - 1];
         phase[i] -= std::f64::consts::TAU * (jump / std::f64::consts::TAU).round();
     }
     if let Some(at) = points.iter().position(|p| p.f_hz >= f_design) {
-        let turns = ((phase[at] - points[at].av.arg()) / std::f64::consts::TAU).round();
+        let turns = ((phase[at] - math::arg(points[at].av)) / std::f64::consts::TAU).round();
         phase.iter_mut().for_each(|p| *p -= turns * std::f64::consts::TAU);
     }
     phase

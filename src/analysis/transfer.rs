@@ -2,6 +2,7 @@
 //! large-signal curve in band (coupling capacitors held at their operating-point
 //! voltages), each a DC sweep on the engine with every point started from the last.
 
+use crate::math;
 use crate::engine::{operating_point, DcSystem, Element, Netlist, Node, OperatingPoint, SmallSignal};
 use crate::error::{FieldError, Result};
 use crate::part::Part;
@@ -128,7 +129,7 @@ pub fn bare_curve(part: &Part, count: usize) -> Result<BareCurve> {
         vin = (vin - h / (a0 - 1.0)).clamp(p.vin_v, q.vin_v);
     }
     let nearer = if t < 0.5 { at } else { at + 1 };
-    let floor = a0.abs() * 10f64.powf(-1.0 / 20.0);
+    let floor = a0.abs() * math::pow(10f64, -1.0 / 20.0);
     Ok(BareCurve {
         bias_vin_v: vin,
         a0,
@@ -190,6 +191,6 @@ pub fn closed_loop_curve(part: &Part, components: &Components, count: usize, spa
 fn default_span(part: &Part, held: &Netlist, op: &OperatingPoint, circuit: &StageCircuit) -> Result<f64> {
     let held_op = operating_point(held, Some(&op.x))?;
     let small = SmallSignal::at(held, &held_op)?;
-    let gain = small.layout.voltage(&small.solve(0.0)?, circuit.nodes.output).norm();
+    let gain = math::norm(small.layout.voltage(&small.solve(0.0)?, circuit.nodes.output));
     Ok(if gain > 1e-6 { (0.75 * part.vdd / gain).min(part.vdd) } else { part.vdd })
 }

@@ -2,6 +2,7 @@
 //! referenced to a real z0, and noise at a node by the adjoint method. The stage's
 //! response uses them; so can any test network.
 
+use crate::math;
 use std::cell::RefCell;
 
 use nalgebra::DVector;
@@ -84,13 +85,13 @@ pub fn delta(s: &[[Complex64; 2]; 2]) -> Complex64 {
 /// Rollett's stability factor K.
 pub fn rollett_k(s: &[[Complex64; 2]; 2]) -> f64 {
     let [[s11, s12], [s21, s22]] = *s;
-    (1.0 - s11.norm_sqr() - s22.norm_sqr() + delta(s).norm_sqr()) / (2.0 * (s12 * s21).norm())
+    (1.0 - s11.norm_sqr() - s22.norm_sqr() + delta(s).norm_sqr()) / (2.0 * math::norm(s12 * s21))
 }
 
 /// Edwards–Sinsky μ: the two-port is stable with every passive source and load when μ > 1.
 pub fn mu(s: &[[Complex64; 2]; 2]) -> f64 {
     let [[s11, s12], [s21, s22]] = *s;
-    (1.0 - s11.norm_sqr()) / ((s22 - delta(s) * s11.conj()).norm() + (s12 * s21).norm())
+    (1.0 - s11.norm_sqr()) / (math::norm(s22 - delta(s) * s11.conj()) + math::norm(s12 * s21))
 }
 
 /// A noise current density between two nodes.

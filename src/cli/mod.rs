@@ -8,6 +8,7 @@ mod convert;
 mod design;
 mod fit;
 mod nearest;
+mod report;
 mod spread;
 
 use std::ffi::OsString;
@@ -63,6 +64,8 @@ enum Verb {
     Touchstone(analyze::Args),
     /// Fit the part to the bench readings of a document.
     Fit(fit::Args),
+    /// The design sheet: components, part, bias, figures, chain and cautions, as text or Markdown.
+    Report(report::Args),
 }
 
 /// Parses the command line and runs the verb.
@@ -86,6 +89,7 @@ pub fn run(args: impl IntoIterator<Item = OsString>) -> Result<String, Failure> 
         Verb::Wave(args) => analyze::run_wave(args),
         Verb::Touchstone(args) => analyze::run_touchstone(args),
         Verb::Fit(args) => fit::run(args),
+        Verb::Report(args) => report::run(args),
     }
 }
 

@@ -2,6 +2,7 @@
 //! `halfrail analyze` (SPEC §4 keys first), `LoopReport` adds what the page
 //! plots, and `SuggestionOut` is one answer of the compensation helper.
 
+use crate::math;
 use serde::ser::{Serialize, SerializeStruct, Serializer};
 
 use crate::analysis::stability::{Knob, Loop, Suggestion, Verdict};
@@ -14,7 +15,7 @@ fn finite(x: f64) -> Option<f64> {
 }
 
 fn db(x: f64) -> Option<f64> {
-    finite(20.0 * x.log10())
+    finite(20.0 * math::log10(x))
 }
 
 /// The `loop` section of `halfrail analyze`, with the compensation helper's
@@ -26,7 +27,7 @@ impl Serialize for LoopSummary<'_> {
         let l = self.0;
         let m = &l.margins;
         let mut out = serializer.serialize_struct("LoopSummary", 18)?;
-        out.serialize_field("t_mid_db", &db(m.t_mid.norm()))?;
+        out.serialize_field("t_mid_db", &db(math::norm(m.t_mid)))?;
         out.serialize_field("crossover_hz", &m.crossover_hz)?;
         out.serialize_field("phase_margin_deg", &m.phase_margin_deg)?;
         out.serialize_field("gain_margin_db", &m.gain_margin_db.and_then(finite))?;
@@ -92,7 +93,7 @@ impl Serialize for LoopReport<'_> {
         out.serialize_field("f_design_hz", &self.f_design_hz)?;
         out.serialize_field("wanted_margin_deg", &self.wanted_margin_deg)?;
         out.serialize_field("f_hz", &l.f_hz)?;
-        out.serialize_field("t_db", &l.t.iter().map(|t| db(t.norm())).collect::<Vec<_>>())?;
+        out.serialize_field("t_db", &l.t.iter().map(|t| db(math::norm(t))).collect::<Vec<_>>())?;
         out.serialize_field("t_phase_deg", &l.t_phase.iter().map(|p| p.to_degrees()).collect::<Vec<_>>())?;
         out.serialize_field("t_re", &l.t.iter().map(|t| t.re).collect::<Vec<_>>())?;
         out.serialize_field("t_im", &l.t.iter().map(|t| t.im).collect::<Vec<_>>())?;

@@ -10,6 +10,7 @@ mod swing_report;
 mod chain_report;
 mod design_report;
 mod spread_report;
+mod sheet_report;
 mod quantity;
 mod sections;
 pub use loop_report::{LoopReport, LoopSummary, SuggestionOut};
@@ -24,6 +25,7 @@ pub use sections::{
     Analysis, Bench, Block, BlockKind, Chain, CurvePoint, Document, GainKind, GainReading, Model, Part, StageRuns, Target, Tolerance,
 };
 
+use crate::math;
 use crate::error::{FieldError, Result};
 
 /// The demo design (SPEC §5): our own scenario, a 10.7 MHz IF gain block and the
@@ -254,7 +256,7 @@ impl Document {
         let analysis = self.sweep().map_err(|_| missing("the analysis section (its f_design_hz)"))?;
         // Only the design point is needed, not the sweep.
         let response = crate::analysis::response(&part, &stage, analysis.f_design_hz, &[analysis.f_design_hz], analysis.z0_ohm, None)?;
-        let gain_db = response.design.gt.map(|g| 10.0 * g.log10()).ok_or_else(|| missing("a source resistance and a load resistor (its power gain)"))?;
+        let gain_db = response.design.gt.map(|g| 10.0 * math::log10(g)).ok_or_else(|| missing("a source resistance and a load resistor (its power gain)"))?;
         let nf_db = response.design.nf_db().ok_or_else(|| missing("a source resistance (its noise figure)"))?;
         let large = analysis.large(&part, &stage, &mut |_| {})?;
         let bias = self.bias()?;
@@ -313,7 +315,7 @@ impl Document {
         let analysis = self.sweep().map_err(|_| missing("the analysis section (its f_design_hz)"))?;
         let lin = crate::analysis::Linearised::run(&part, &stage, copies, analysis.z0_ohm)?;
         let point = lin.at(analysis.f_design_hz, &stage)?;
-        let gain_db = point.gt.map(|g| 10.0 * g.log10()).ok_or_else(|| missing("a source resistance and a load resistor (its power gain)"))?;
+        let gain_db = point.gt.map(|g| 10.0 * math::log10(g)).ok_or_else(|| missing("a source resistance and a load resistor (its power gain)"))?;
         let nf_db = point.nf_db().ok_or_else(|| missing("a source resistance (its noise figure)"))?;
         Ok(crate::chain::RunFigures { gain_db, nf_db })
     }

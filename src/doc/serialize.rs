@@ -2,6 +2,7 @@
 //! of the objects the page receives. Core types stay free of serde; each mapping
 //! of key to field is written once, here.
 
+use crate::math;
 use serde::ser::{Serialize, SerializeStruct, Serializer};
 
 use crate::units::{Levels, Mismatch, Unit};
@@ -338,11 +339,11 @@ impl Serialize for AcReport<'_> {
     fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
         let r = self.0;
         let p = &r.design;
-        let db = |x: f64| (x > 0.0).then(|| 20.0 * x.log10());
+        let db = |x: f64| (x > 0.0).then(|| 20.0 * math::log10(x));
         let mut out = serializer.serialize_struct("AcReport", 20)?;
         out.serialize_field("gain_db", &p.gain_db())?;
         out.serialize_field("phase_deg", &p.phase_deg())?;
-        out.serialize_field("power_gain_db", &p.gt.map(|g| 10.0 * g.log10()))?;
+        out.serialize_field("power_gain_db", &p.gt.map(|g| 10.0 * math::log10(g)))?;
         out.serialize_field("ideal_gain_db", &r.ideal_gain.and_then(|g| db(g.abs())))?;
         out.serialize_field("f_low_hz", &r.f_low_hz)?;
         out.serialize_field("f_high_hz", &r.f_high_hz)?;
@@ -350,10 +351,10 @@ impl Serialize for AcReport<'_> {
         out.serialize_field("zin_im_ohm", &p.zin.map(|z| z.im))?;
         out.serialize_field("zout_re_ohm", &p.zout.re)?;
         out.serialize_field("zout_im_ohm", &p.zout.im)?;
-        out.serialize_field("s11_db", &db(p.s[0][0].norm()))?;
-        out.serialize_field("s21_db", &db(p.s[1][0].norm()))?;
-        out.serialize_field("s12_db", &db(p.s[0][1].norm()))?;
-        out.serialize_field("s22_db", &db(p.s[1][1].norm()))?;
+        out.serialize_field("s11_db", &db(math::norm(p.s[0][0])))?;
+        out.serialize_field("s21_db", &db(math::norm(p.s[1][0])))?;
+        out.serialize_field("s12_db", &db(math::norm(p.s[0][1])))?;
+        out.serialize_field("s22_db", &db(math::norm(p.s[1][1])))?;
         out.serialize_field("k", &p.rollett_k())?;
         out.serialize_field("mu", &p.mu())?;
         out.serialize_field("nf_db", &p.nf_db())?;
@@ -378,7 +379,7 @@ impl Serialize for ResponseReport<'_> {
         let column = |f: &dyn Fn(&crate::analysis::Point) -> Option<f64>| -> Vec<Option<f64>> {
             r.points.iter().map(|p| f(p).filter(|v| v.is_finite())).collect()
         };
-        let db = |x: f64| (x > 0.0).then(|| 20.0 * x.log10());
+        let db = |x: f64| (x > 0.0).then(|| 20.0 * math::log10(x));
         let mut out = serializer.serialize_struct("ResponseReport", 16)?;
         out.serialize_field("f_design_hz", &self.f_design_hz)?;
         out.serialize_field("design", &AcReport(r))?;
@@ -388,11 +389,11 @@ impl Serialize for ResponseReport<'_> {
         out.serialize_field("phase_deg", &column(&|p| Some(p.phase_deg())))?;
         let unwrapped = crate::analysis::unwrapped_phase(&r.points, self.f_design_hz);
         out.serialize_field("phase_unwrapped_deg", &unwrapped.iter().map(|p| p.to_degrees()).collect::<Vec<_>>())?;
-        out.serialize_field("gt_db", &column(&|p| p.gt.map(|g| 10.0 * g.log10())))?;
+        out.serialize_field("gt_db", &column(&|p| p.gt.map(|g| 10.0 * math::log10(g))))?;
         out.serialize_field("zin_re_ohm", &column(&|p| p.zin.map(|z| z.re)))?;
         out.serialize_field("zin_im_ohm", &column(&|p| p.zin.map(|z| z.im)))?;
         out.serialize_field("rl_db", &column(&|p| self.source_ohm.and_then(|rs| p.return_loss_db(rs))))?;
-        out.serialize_field("s21_db", &column(&|p| db(p.s[1][0].norm())))?;
+        out.serialize_field("s21_db", &column(&|p| db(math::norm(p.s[1][0]))))?;
         out.serialize_field("nf_db", &column(&|p| p.nf_db()))?;
         out.serialize_field("noise_in_v_per_rthz", &column(&|p| Some(p.noise_in_v_per_rthz())))?;
         out.serialize_field("mu", &column(&|p| Some(p.mu())))?;

@@ -1,6 +1,7 @@
 //! Range checks on a document that has been read: every bad field is reported by
 //! its path, with the rule it broke and the value it had.
 
+use crate::math;
 use super::sections::{Analysis, Bench, Block, BlockKind, Chain, Document, Part, Target, Tolerance};
 use crate::stage::{Component, Components, Role};
 use crate::error::{FieldError, Result};
@@ -122,7 +123,7 @@ fn analysis(a: &Analysis) -> Result<()> {
     range("analysis.f_stop_hz", a.f_stop_hz, Open(a.f_start_hz), Closed(MAX_HZ))?;
     range("analysis.f_design_hz", a.f_design_hz, Closed(a.f_start_hz), Closed(a.f_stop_hz))?;
     range("analysis.points_per_decade", a.points_per_decade as f64, Closed(1.0), Closed(1000.0))?;
-    let points = (a.f_stop_hz / a.f_start_hz).log10() * a.points_per_decade as f64 + 1.0;
+    let points = math::log10(a.f_stop_hz / a.f_start_hz) * a.points_per_decade as f64 + 1.0;
     if points > MAX_SWEEP_POINTS {
         return Err(FieldError::new(
             "analysis.points_per_decade",

@@ -7,6 +7,7 @@ mod presets;
 pub use mosfet::{ekv, saturation_voltage, square_law, Channel, Mosfet};
 pub use presets::{preset, Preset, PRESETS};
 
+use crate::math;
 use crate::engine::{DeviceState, Transconductor};
 use crate::error::{FieldError, Result};
 
@@ -66,7 +67,7 @@ impl Part {
     fn at_temperature(&self, m: &Mosfet, field: &str) -> Result<Mosfet> {
         let kelvin = self.kelvin();
         let shifted = Mosfet {
-            k: m.k * (kelvin / T_REFERENCE_K).powf(MOBILITY_EXPONENT),
+            k: m.k * math::pow(kelvin / T_REFERENCE_K, MOBILITY_EXPONENT),
             vt: m.vt + VT_DRIFT_PER_K * (kelvin - T_REFERENCE_K),
             lambda: m.lambda,
         };

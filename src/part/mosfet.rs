@@ -2,6 +2,8 @@
 //! Voltages are the device's own (Vgs, Vds for the NMOS; Vsg, Vsd for the PMOS),
 //! so one function serves both.
 
+use crate::math;
+
 /// Parameters of one device at the operating temperature.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Mosfet {
@@ -52,18 +54,18 @@ fn square_law_forward(m: &Mosfet, vgs: f64, vds: f64) -> Channel {
 /// ln(1 + eᵘ) without overflow.
 fn softplus(u: f64) -> f64 {
     if u > 30.0 {
-        u + (-u).exp()
+        u + math::exp(-u)
     } else {
-        u.exp().ln_1p()
+        math::ln_1p(math::exp(u))
     }
 }
 
 /// 1/(1 + e⁻ᵘ).
 fn logistic(u: f64) -> f64 {
     if u >= 0.0 {
-        1.0 / (1.0 + (-u).exp())
+        1.0 / (1.0 + math::exp(-u))
     } else {
-        let e = u.exp();
+        let e = math::exp(u);
         e / (1.0 + e)
     }
 }

@@ -1,10 +1,14 @@
-//! Text exports of computed results: the sweep and a waveform as CSV, and the
-//! two-port as a Touchstone file. (JSON output belongs to `doc`.)
+//! Text exports of computed results: the sweep and a waveform as CSV, the
+//! two-port as a Touchstone file, and the design sheet (plain text or Markdown).
+//! (JSON output belongs to `doc`.)
 
+mod layout;
+mod sheet;
 mod sweep_csv;
 mod touchstone;
 mod wave_csv;
 
+pub use sheet::{ChainSheet, Sheet, Style, CAUTIONS};
 pub use sweep_csv::sweep_csv;
 pub use touchstone::touchstone;
 pub use wave_csv::wave_csv;

@@ -1,6 +1,7 @@
 //! The frequency sweep as CSV: one row per frequency, a header of keys that carry
 //! their unit, an empty field where a figure does not exist.
 
+use crate::math;
 use super::cell;
 use crate::analysis::{mu, rollett_k, Response};
 
@@ -8,7 +9,7 @@ const HEADER: &str = "f_hz,gain_db,phase_deg,gt_db,group_delay_s,zin_re_ohm,zin_
 s11_db,s21_db,s12_db,s22_db,k,mu,nf_db,noise_in_v_per_rthz";
 
 fn db(x: f64) -> Option<f64> {
-    (x > 0.0).then(|| 20.0 * x.log10())
+    (x > 0.0).then(|| 20.0 * math::log10(x))
 }
 
 /// The CSV text of a swept response.
@@ -20,16 +21,16 @@ pub fn sweep_csv(response: &Response) -> String {
             Some(p.f_hz),
             Some(p.gain_db()),
             Some(p.phase_deg()),
-            p.gt.map(|g| 10.0 * g.log10()),
+            p.gt.map(|g| 10.0 * math::log10(g)),
             Some(*delay),
             p.zin.map(|z| z.re),
             p.zin.map(|z| z.im),
             Some(p.zout.re),
             Some(p.zout.im),
-            db(s11.norm()),
-            db(s21.norm()),
-            db(s12.norm()),
-            db(s22.norm()),
+            db(math::norm(s11)),
+            db(math::norm(s21)),
+            db(math::norm(s12)),
+            db(math::norm(s22)),
             Some(rollett_k(&p.s)),
             Some(mu(&p.s)),
             p.nf_db(),

@@ -2,26 +2,27 @@
 //! resistances, and the four ways of stating a mismatch (return loss, |Γ|, VSWR,
 //! mismatch loss).
 
+use crate::math;
 use crate::error::{FieldError, Result};
 
 /// 20·log10|ratio| for a voltage (or current) ratio.
 pub fn voltage_ratio_db(ratio: f64) -> f64 {
-    20.0 * ratio.abs().log10()
+    20.0 * math::log10(ratio.abs())
 }
 
 /// The voltage ratio of `db` decibels.
 pub fn db_voltage_ratio(db: f64) -> f64 {
-    10f64.powf(db / 20.0)
+    math::pow(10f64, db / 20.0)
 }
 
 /// 10·log10 of a power ratio.
 pub fn power_ratio_db(ratio: f64) -> f64 {
-    10.0 * ratio.log10()
+    10.0 * math::log10(ratio)
 }
 
 /// The power ratio of `db` decibels.
 pub fn db_power_ratio(db: f64) -> f64 {
-    10f64.powf(db / 10.0)
+    math::pow(10f64, db / 10.0)
 }
 
 /// Power gain in dB of a voltage gain `av` from an input resistance `r_in_ohm` into

@@ -2,6 +2,7 @@
 //! a value belongs to. "Nearest" is by ratio (distance in log scale), because a
 //! part's tolerance is relative (common practice).
 
+use crate::math;
 use super::series::{standard_value, Series};
 use crate::error::{FieldError, Result};
 
@@ -34,7 +35,7 @@ fn check(value: f64) -> Result<f64> {
 /// The standard values of `series` in the decade below `value`, its own and the
 /// one above, ascending: enough to bracket it whatever the rounding of log10.
 fn neighbourhood(value: f64, series: Series) -> Vec<f64> {
-    let decade = value.log10().floor() as i32;
+    let decade = math::log10(value).floor() as i32;
     let shift = 1 - series.digits() as i32;
     let mantissas = series.mantissas();
     (decade - 1..=decade + 1)

@@ -5,6 +5,8 @@
 //! E24's 2.7 … 4.7 and 8.2 and E192's 9.20 depart from the rounded geometric
 //! progression 10^(i/n); the tables hold the standard's values, not the formula's.
 
+use crate::math;
+
 /// One E-series.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum Series {
@@ -122,8 +124,8 @@ impl Series {
     /// assert_eq!(Series::E6.between(1e3, 1e4), [1e3, 1.5e3, 2.2e3, 3.3e3, 4.7e3, 6.8e3, 1e4]);
     /// ```
     pub fn between(self, low: f64, high: f64) -> Vec<f64> {
-        let first = low.log10().floor() as i32;
-        let last = high.log10().floor() as i32;
+        let first = math::log10(low).floor() as i32;
+        let last = math::log10(high).floor() as i32;
         let shift = 1 - self.digits() as i32;
         let mantissas = self.mantissas();
         (first..=last)

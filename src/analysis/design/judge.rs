@@ -1,6 +1,7 @@
 //! The figures a design is judged on, computed with the full model at f_design:
 //! the finite, complex open-loop gain and every loading effect included.
 
+use crate::math;
 use crate::analysis::Linearised;
 use crate::error::Result;
 use crate::part::Part;
@@ -35,7 +36,7 @@ impl Judge<'_> {
         let p = lin.at(self.f_design, c)?;
         let gain_db = match self.kind {
             GainKind::Voltage => p.gain_db(),
-            GainKind::Power => p.gt.map_or(f64::NEG_INFINITY, |g| 10.0 * g.log10()),
+            GainKind::Power => p.gt.map_or(f64::NEG_INFINITY, |g| 10.0 * math::log10(g)),
         };
         let s11_db = c.get(Component::SourceOhm).filter(|&r| r > 0.0).and_then(|rs| p.return_loss_db(rs)).map(|rl| -rl);
         let iq_a = lin.operating_point().supply_current();

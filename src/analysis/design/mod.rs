@@ -30,6 +30,7 @@ pub use judge::{Figures, Judge};
 pub use rank::{better, either_side, joined_near, Candidate, Joined, Limits, Resistor, GAIN_STEP_DB};
 pub use solve::{ceiling_db, matched_r_in, r_fb_for, with_pair, R_FB_MAX};
 
+use crate::math;
 use crate::error::{FieldError, Result};
 use crate::part::Part;
 use crate::stage::{Component, Components};
@@ -94,8 +95,8 @@ const R_IN_SPAN: f64 = 3.0;
 fn ideal_ratio(target: &Target, c: &Components) -> f64 {
     let db = target.gain_db;
     match (target.kind, c.get(Component::SourceOhm), c.get(Component::LoadOhm)) {
-        (GainKind::Power, Some(rs), Some(rl)) if rs > 0.0 => (10f64.powf(db / 10.0) * rl / (4.0 * rs)).sqrt(),
-        _ => 10f64.powf(db / 20.0),
+        (GainKind::Power, Some(rs), Some(rl)) if rs > 0.0 => (math::pow(10f64, db / 10.0) * rl / (4.0 * rs)).sqrt(),
+        _ => math::pow(10f64, db / 20.0),
     }
 }
 
@@ -146,7 +147,7 @@ pub fn design(part: &Part, c: &Components, f_design: f64, z0: f64, target: &Targ
             candidates.push(Candidate::judged(&judge, c, r_in, choice, target.gain_db, &target.limits)?);
         }
     }
-    let continuous = continuous.or_else(|| exact.iter().copied().min_by(|a, b| (a.0 / start).ln().abs().total_cmp(&(b.0 / start).ln().abs())));
+    let continuous = continuous.or_else(|| exact.iter().copied().min_by(|a, b| math::ln(a.0 / start).abs().total_cmp(&math::ln(b.0 / start).abs())));
     candidates.sort_by(better);
     candidates.truncate(KEEP);
 

@@ -2,6 +2,7 @@
 //! method in log r_fb (the gain rises monotonically with r_fb towards the
 //! open-loop limit), and r_in for the best input match by golden-section search.
 
+use crate::math;
 use crate::error::Result;
 use crate::stage::{Component, Components};
 
@@ -30,13 +31,13 @@ pub fn r_fb_for(judge: &Judge, c: &Components, r_in: f64, target_db: f64, guess:
     if ceiling_db(judge, c, r_in)? < target_db {
         return Ok(None);
     }
-    let error = |log_r: f64| -> Result<f64> { Ok(judge.gain_db(&with_pair(c, r_in, log_r.exp()))? - target_db) };
-    let clamp = |x: f64| x.clamp(R_MIN.ln(), R_FB_MAX.ln());
-    let (mut x0, mut x1) = (clamp(guess.ln()), clamp(guess.ln() + 0.4));
+    let error = |log_r: f64| -> Result<f64> { Ok(judge.gain_db(&with_pair(c, r_in, math::exp(log_r)))? - target_db) };
+    let clamp = |x: f64| x.clamp(math::ln(R_MIN), math::ln(R_FB_MAX));
+    let (mut x0, mut x1) = (clamp(math::ln(guess)), clamp(math::ln(guess) + 0.4));
     let (mut e0, mut e1) = (error(x0)?, error(x1)?);
     for _ in 0..MAX_ITERATIONS {
         if e1.abs() < GAIN_TOL_DB {
-            return Ok(Some(x1.exp()));
+            return Ok(Some(math::exp(x1)));
         }
         let slope = (e1 - e0) / (x1 - x0);
         // A flat or wrong-signed slope (far into the open-loop limit): step up a decade.
@@ -45,22 +46,22 @@ pub fn r_fb_for(judge: &Judge, c: &Components, r_in: f64, target_db: f64, guess:
         x1 = if (next - x0).abs() < 1e-12 { clamp(x0 + 1e-3) } else { next };
         e1 = error(x1)?;
     }
-    Ok((e1.abs() < 1e-2).then(|| x1.exp()))
+    Ok((e1.abs() < 1e-2).then(|| math::exp(x1)))
 }
 
 /// The r_in (with its r_fb meeting the gain) whose input is best matched to the
 /// source, by golden-section search on log r_in over [low, high].
 pub fn matched_r_in(judge: &Judge, c: &Components, target_db: f64, low: f64, high: f64) -> Result<Option<(f64, f64)>> {
-    let ratio = 10f64.powf(target_db / 20.0);
+    let ratio = math::pow(10f64, target_db / 20.0);
     let mismatch = |log_r: f64| -> Result<(f64, Option<f64>)> {
-        let r_in = log_r.exp();
+        let r_in = math::exp(log_r);
         match r_fb_for(judge, c, r_in, target_db, r_in * ratio)? {
             Some(r_fb) => Ok((judge.figures(&with_pair(c, r_in, r_fb))?.s11_db.unwrap_or(0.0), Some(r_fb))),
             None => Ok((f64::INFINITY, None)),
         }
     };
     let phi = (5f64.sqrt() - 1.0) / 2.0;
-    let (mut a, mut b) = (low.ln(), high.ln());
+    let (mut a, mut b) = (math::ln(low), math::ln(high));
     let (mut x1, mut x2) = (b - phi * (b - a), a + phi * (b - a));
     let (mut f1, mut f2) = (mismatch(x1)?.0, mismatch(x2)?.0);
     while b - a > 1e-4 {
@@ -75,5 +76,5 @@ pub fn matched_r_in(judge: &Judge, c: &Components, target_db: f64, low: f64, hig
         }
     }
     let best = 0.5 * (a + b);
-    Ok(mismatch(best)?.1.map(|r_fb| (best.exp(), r_fb)))
+    Ok(mismatch(best)?.1.map(|r_fb| (math::exp(best), r_fb)))
 }

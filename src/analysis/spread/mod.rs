@@ -25,6 +25,7 @@ mod stats;
 pub use draw::{draws, Quantity, Tolerance};
 pub use stats::{corners, summarise, swings, Corner, Limits, Stats, Summary, Swing};
 
+use crate::math;
 use std::ops::Range;
 
 use num_complex::Complex64;
@@ -94,12 +95,12 @@ impl Setup {
         let p = lin.at(self.f_design, c)?;
         let gain = match self.kind {
             GainKind::Voltage => Some(p.gain_db()),
-            GainKind::Power => p.gt.map(|g| 10.0 * g.log10()),
+            GainKind::Power => p.gt.map(|g| 10.0 * math::log10(g)),
         };
         let iq = lin.operating_point().supply_current();
         let ratio = ReturnRatio::new(&lin)?;
         let t: Vec<Complex64> = self.grid.iter().map(|&f| ratio.at(f)).collect::<Result<_>>()?;
-        let start = unwrap_near(t[0].arg(), self.phase_at_design);
+        let start = unwrap_near(math::arg(t[0]), self.phase_at_design);
         let pm = margins(self.f_design, &self.grid, &t, start, |f| ratio.at(f))?.phase_margin_deg;
         Ok([gain, lin.edge_below(self.f_design)?, lin.edge_above(self.f_design)?, pm, Some(iq), p.nf_db()])
     }

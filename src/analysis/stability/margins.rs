@@ -9,6 +9,7 @@
 //! +170°. So the caller gives the continuous phase at the first frequency, and
 //! the phase is carried continuously from there.
 
+use crate::math;
 use num_complex::Complex64;
 
 use crate::error::Result;
@@ -50,18 +51,18 @@ pub fn unwrap_near(angle: f64, near: f64) -> f64 {
 pub fn margins(f_design: f64, freqs: &[f64], t: &[Complex64], start_phase: f64, t_at: impl Fn(f64) -> Result<Complex64>) -> Result<Margins> {
     let t_mid = t_at(f_design)?;
     let split = freqs.partition_point(|&f| f <= f_design);
-    let mut phase = unwrap_near(t.first().map_or(t_mid.arg(), |t| t.arg()), start_phase);
+    let mut phase = unwrap_near(t.first().map_or(math::arg(t_mid), |t| math::arg(t)), start_phase);
     for t in t[..split].iter().skip(1).chain([&t_mid]) {
-        phase = unwrap_near(t.arg(), phase);
+        phase = unwrap_near(math::arg(t), phase);
     }
     // (f, T, unwrapped phase) from f_design up.
     let mut last = (f_design, t_mid, phase);
     let mut crossover: Option<(f64, f64)> = None;
     let mut phase_crossing: Option<(f64, Complex64)> = None;
     for (&f, &t) in freqs[split..].iter().zip(&t[split..]) {
-        let next = (f, t, unwrap_near(t.arg(), last.2));
-        if crossover.is_none() && last.1.norm() >= 1.0 && t.norm() < 1.0 {
-            crossover = Some(refine(last, next, &t_at, |t, _| t.norm() >= 1.0)?);
+        let next = (f, t, unwrap_near(math::arg(t), last.2));
+        if crossover.is_none() && math::norm(last.1) >= 1.0 && math::norm(t) < 1.0 {
+            crossover = Some(refine(last, next, &t_at, |t, _| math::norm(t) >= 1.0)?);
         }
         if phase_crossing.is_none() && last.2 > -std::f64::consts::PI && next.2 <= -std::f64::consts::PI {
             let (f, _) = refine(last, next, &t_at, |_, phase| phase > -std::f64::consts::PI)?;
@@ -78,7 +79,7 @@ pub fn margins(f_design: f64, freqs: &[f64], t: &[Complex64], start_phase: f64, 
         crossover_hz: crossover.map(|c| c.0),
         phase_margin_deg: crossover.map(|c| wrap_deg(180.0 + c.1.to_degrees())),
         phase_crossover_hz: phase_crossing.map(|p| p.0),
-        gain_margin_db: phase_crossing.map(|p| -20.0 * p.1.norm().log10()),
+        gain_margin_db: phase_crossing.map(|p| -20.0 * math::log10(math::norm(p.1))),
     })
 }
 
@@ -95,7 +96,7 @@ fn refine(
     while hi.0 / lo.0 - 1.0 > REFINE_TO {
         let f = (lo.0 * hi.0).sqrt();
         let t = t_at(f)?;
-        let mid = (f, t, unwrap_near(t.arg(), lo.2));
+        let mid = (f, t, unwrap_near(math::arg(t), lo.2));
         if still(t, mid.2) {
             lo = mid;
         } else {
@@ -105,5 +106,5 @@ fn refine(
     // The middle of the last, tiny bracket.
     let f = (lo.0 * hi.0).sqrt();
     let t = t_at(f)?;
-    Ok((f, unwrap_near(t.arg(), lo.2)))
+    Ok((f, unwrap_near(math::arg(t), lo.2)))
 }

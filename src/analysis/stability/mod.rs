@@ -29,6 +29,7 @@ pub use poles::{grows, least_damped_pair, natural_frequencies, Pair};
 pub use return_ratio::ReturnRatio;
 pub use step::{settling, step_response, Settling, Step, SETTLE_BAND};
 
+use crate::math;
 use num_complex::Complex64;
 
 use crate::analysis::{Linearised, Response};
@@ -106,12 +107,12 @@ pub fn analyse(lin: &Linearised, components: &Components, response: &Response, f
     let least_damped = least_damped_pair(&poles);
     let verdict = verdict(stable, &poles, &margins, least_damped);
 
-    let mid = response.design.av.norm();
+    let mid = math::norm(response.design.av);
     let peaking_db = response
         .points
         .iter()
         .filter(|p| p.f_hz >= f_design)
-        .map(|p| 20.0 * (p.av.norm() / mid).log10())
+        .map(|p| 20.0 * math::log10(math::norm(p.av) / mid))
         .fold(0.0, f64::max);
     // The step settles at the mid-band gain (the geometric middle of the band, or
     // f_design when an edge is missing), the coupling capacitors' droop being far slower.
@@ -120,10 +121,10 @@ pub fn analyse(lin: &Linearised, components: &Components, response: &Response, f
         _ => f_design,
     };
     let emf = lin.at(f_mid, components)?.emf_gain;
-    let step_target = emf.norm().copysign(emf.re);
+    let step_target = math::norm(emf).copysign(emf.re);
     // The step shows the upper band's dynamics: pairs below mid-band (the coupling
     // capacitors') only droop it, far more slowly.
-    let upper = least_damped_pair(&poles.iter().copied().filter(|p| p.norm() / std::f64::consts::TAU > f_mid).collect::<Vec<_>>());
+    let upper = least_damped_pair(&poles.iter().copied().filter(|p| math::norm(p) / std::f64::consts::TAU > f_mid).collect::<Vec<_>>());
     let t_end = step_window(response, &margins, upper, f_design);
     let step = step_response(small, lin.circuit().nodes.output, t_end, STEP_POINTS, STEP_LIMIT * step_target.abs().max(1e-3))?;
     let settling = settling(&step, step_target);
@@ -137,7 +138,7 @@ fn continuous_phase(t: &[Complex64], start: f64) -> Vec<f64> {
     let mut last = start;
     t.iter()
         .map(|t| {
-            last = unwrap_near(t.arg(), last);
+            last = unwrap_near(math::arg(t), last);
             last
         })
         .collect()
@@ -146,7 +147,7 @@ fn continuous_phase(t: &[Complex64], start: f64) -> Vec<f64> {
 fn verdict(stable: bool, poles: &[Complex64], margins: &Margins, pair: Option<Pair>) -> Verdict {
     if !stable {
         let fastest = poles.iter().filter(|&&p| grows(p)).max_by(|a, b| a.re.total_cmp(&b.re)).copied();
-        let f_hz = fastest.filter(|p| p.im.abs() > 1e-9 * p.norm()).map(|p| p.im.abs() / std::f64::consts::TAU);
+        let f_hz = fastest.filter(|p| p.im.abs() > 1e-9 * math::norm(p)).map(|p| p.im.abs() / std::f64::consts::TAU);
         return Verdict::Oscillates { f_hz };
     }
     let margin_deg = margins.phase_margin_deg;
@@ -165,7 +166,7 @@ fn step_window(response: &Response, margins: &Margins, pair: Option<Pair>, f_des
     let base = 20.0 / (std::f64::consts::TAU * f_ref);
     match pair {
         Some(p) if p.zeta.abs() < 1.0 => {
-            let omega = p.pole.norm();
+            let omega = math::norm(p.pole);
             let decay = 6.0 / (p.zeta.abs().max(1e-3) * omega);
             let periods = 40.0 * std::f64::consts::TAU / p.pole.im.abs();
             base.max(decay.min(periods))

@@ -11,6 +11,7 @@
 //! MNA's algebraic rows). The eigenvalues come from nalgebra's real Schur
 //! decomposition; the tests check them against faer's QZ on the pencil itself.
 
+use crate::math;
 use nalgebra::DMatrix;
 use num_complex::Complex64;
 
@@ -70,11 +71,11 @@ pub fn natural_frequencies(g: &DMatrix<f64>, c: &DMatrix<f64>) -> Result<Vec<Com
         let mut poles: Vec<Complex64> = schur
             .complex_eigenvalues()
             .iter()
-            .filter(|l| l.norm() > INFINITE_BELOW * size)
+            .filter(|l| math::norm(*l) > INFINITE_BELOW * size)
             .map(|l| sigma + 1.0 / l)
-            .map(|s| if s.norm() < ORIGIN_WITHIN * scale { Complex64::new(0.0, 0.0) } else { s })
+            .map(|s| if math::norm(s) < ORIGIN_WITHIN * scale { Complex64::new(0.0, 0.0) } else { s })
             .collect();
-        poles.sort_by(|a, b| a.norm().total_cmp(&b.norm()));
+        poles.sort_by(|a, b| math::norm(a).total_cmp(&math::norm(b)));
         return Ok(poles);
     }
     Err(FieldError::new("circuit", "the circuit's equations are singular at every shift tried"))
@@ -82,7 +83,7 @@ pub fn natural_frequencies(g: &DMatrix<f64>, c: &DMatrix<f64>) -> Result<Vec<Com
 
 /// Whether a natural frequency grows: a positive real part beyond rounding.
 pub fn grows(s: Complex64) -> bool {
-    s.re > 1e-9 * s.norm().max(1.0)
+    s.re > 1e-9 * math::norm(s).max(1.0)
 }
 
 /// A complex-conjugate pair described the way a designer reads it.
@@ -100,8 +101,8 @@ pub struct Pair {
 
 impl Pair {
     pub fn of(pole: Complex64) -> Self {
-        let zeta = -pole.re / pole.norm();
-        Pair { pole, f_n_hz: pole.norm() / std::f64::consts::TAU, zeta, q: 1.0 / (2.0 * zeta) }
+        let zeta = -pole.re / math::norm(pole);
+        Pair { pole, f_n_hz: math::norm(pole) / std::f64::consts::TAU, zeta, q: 1.0 / (2.0 * zeta) }
     }
 
     /// The frequency it rings (or oscillates) at, Im(s)/2π, Hz.
@@ -115,7 +116,7 @@ impl Pair {
 pub fn least_damped_pair(poles: &[Complex64]) -> Option<Pair> {
     poles
         .iter()
-        .filter(|p| p.im > 1e-9 * p.norm())
+        .filter(|p| p.im > 1e-9 * math::norm(*p))
         .map(|&p| Pair::of(p))
         .min_by(|a, b| a.zeta.total_cmp(&b.zeta))
 }

@@ -7,6 +7,7 @@
 //! circuit's determinant to the determinant with that source dead (Bode), which is
 //! what lets the Nyquist count of 1 + T and the poles be checked against each other.
 
+use crate::math;
 use std::cell::{OnceCell, RefCell};
 
 use nalgebra::DVector;
@@ -62,14 +63,14 @@ impl ReturnRatio {
         let lowest = self
             .open_loop_poles()?
             .iter()
-            .map(|p| p.norm() / std::f64::consts::TAU)
+            .map(|p| math::norm(p) / std::f64::consts::TAU)
             .find(|&f| f > 0.0)
             .unwrap_or(f_hz);
         let f0 = f_hz.min(lowest * 1e-3);
         let quarter = std::f64::consts::FRAC_PI_4;
-        let mut phase = (self.at(f0)?.arg() + quarter).rem_euclid(std::f64::consts::TAU) - quarter;
+        let mut phase = (math::arg(self.at(f0)?) + quarter).rem_euclid(std::f64::consts::TAU) - quarter;
         for f in frequencies(f0, f_hz, WALK_PER_DECADE).into_iter().skip(1) {
-            phase = unwrap_near(self.at(f)?.arg(), phase);
+            phase = unwrap_near(math::arg(self.at(f)?), phase);
         }
         Ok(phase)
     }

@@ -3,6 +3,8 @@
 //! they are sampled on (an integer number of cycles of every tone in the window,
 //! so the spectrum needs no window and leaks nothing).
 
+use crate::math;
+
 /// One cosine of the source EMF from t = 0.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Tone {
@@ -14,17 +16,17 @@ pub struct Tone {
 /// Peak EMF of a tone whose available power from `source_ohm` is `dbm`:
 /// P_av = A²/(8·Rs) (the EMF's RMS value squared over 4·Rs).
 pub fn emf_amplitude(dbm: f64, source_ohm: f64) -> f64 {
-    (8.0 * source_ohm * 1e-3 * 10f64.powf(dbm / 10.0)).sqrt()
+    (8.0 * source_ohm * 1e-3 * math::pow(10f64, dbm / 10.0)).sqrt()
 }
 
 /// The available power, dBm, of a tone of peak EMF `amplitude` from `source_ohm`.
 pub fn available_dbm(amplitude: f64, source_ohm: f64) -> f64 {
-    10.0 * (amplitude * amplitude / (8.0 * source_ohm) / 1e-3).log10()
+    10.0 * math::log10(amplitude * amplitude / (8.0 * source_ohm) / 1e-3)
 }
 
 /// Power, dBm, of a sine of peak `amplitude` volts into `ohms`.
 pub fn power_dbm(amplitude: f64, ohms: f64) -> f64 {
-    10.0 * (amplitude * amplitude / (2.0 * ohms) / 1e-3).log10()
+    10.0 * math::log10(amplitude * amplitude / (2.0 * ohms) / 1e-3)
 }
 
 /// A coherent record: `samples` (a power of two) equal steps spanning one period
@@ -76,5 +78,5 @@ pub const SINGLE_CYCLES: usize = 4;
 
 /// The tones' sum at `t`.
 pub fn emf_at(tones: &[Tone], t: f64) -> f64 {
-    tones.iter().map(|tone| tone.amplitude * (std::f64::consts::TAU * tone.f_hz * t).cos()).sum()
+    tones.iter().map(|tone| tone.amplitude * math::cos(std::f64::consts::TAU * tone.f_hz * t)).sum()
 }

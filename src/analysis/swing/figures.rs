@@ -4,6 +4,7 @@
 //! Each works on any `Waveforms`, so the time domain and the quasi-static model
 //! are measured the same way.
 
+use crate::math;
 use super::drive::{available_dbm, emf_amplitude, power_dbm, Record, Tone, IM3_BINS, TONE_BINS};
 use super::spectrum::amplitudes;
 use super::wave::{Wave, Waveforms};
@@ -26,7 +27,7 @@ pub struct ToneResult {
 }
 
 fn dbc(part: f64, carrier: f64) -> f64 {
-    20.0 * (part / carrier).log10()
+    20.0 * math::log10(part / carrier)
 }
 
 /// The stage driven by one tone of peak EMF `amplitude` at `f_hz`.
@@ -109,7 +110,7 @@ fn two_tone(w: &dyn Waveforms, f_hz: f64, pin_dbm: f64, source_ohm: f64, load_oh
     let s = amplitudes(&wave.out);
     let mean_power = |bins: [usize; 2]| {
         let p: f64 = bins.iter().map(|&b| s[b] * s[b] / (2.0 * load_ohm)).sum::<f64>() / 2.0;
-        10.0 * (p / 1e-3).log10()
+        10.0 * math::log10(p / 1e-3)
     };
     Ok(TwoTone { pin_dbm, pout_dbm: mean_power(TONE_BINS), im3_dbm: mean_power(IM3_BINS) })
 }

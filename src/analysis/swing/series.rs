@@ -4,6 +4,7 @@
 //! Microelectronics, from memory): HD2 = a2·A/(2·a1), HD3 = a3·A²/(4·a1), and the
 //! input intercept A_IP3 = √(4/3·|a1/a3|).
 
+use crate::math;
 use nalgebra::{DMatrix, DVector};
 
 use super::drive::{available_dbm, power_dbm};
@@ -26,7 +27,7 @@ pub struct PowerSeries {
 impl PowerSeries {
     /// Fits the quasi-static transfer over ±`span` volts of EMF.
     pub fn of(stage: &QuasiStatic, span: f64) -> Result<Self> {
-        let u: Vec<f64> = (0..POINTS).map(|k| (std::f64::consts::PI * (k as f64 + 0.5) / POINTS as f64).cos()).collect();
+        let u: Vec<f64> = (0..POINTS).map(|k| math::cos(std::f64::consts::PI * (k as f64 + 0.5) / POINTS as f64)).collect();
         let emfs: Vec<f64> = u.iter().map(|u| u * span).collect();
         let v = stage.transfer(&emfs)?;
         let vandermonde = DMatrix::from_fn(POINTS, DEGREE + 1, |i, j| u[i].powi(j as i32));
@@ -40,7 +41,7 @@ impl PowerSeries {
 
     /// HD2 and HD3 of a tone of peak EMF `amplitude`, dBc.
     pub fn hd_dbc(&self, amplitude: f64) -> (f64, f64) {
-        let db = |x: f64| 20.0 * x.abs().log10();
+        let db = |x: f64| 20.0 * math::log10(x.abs());
         (db(self.a2 * amplitude / (2.0 * self.a1)), db(self.a3 * amplitude * amplitude / (4.0 * self.a1)))
     }
 

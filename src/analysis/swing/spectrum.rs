@@ -1,6 +1,7 @@
 //! The spectrum of a coherent record by rustfft's radix-4 FFT (the record is a
 //! power of two long, so the planner's other algorithms would only add code).
 
+use crate::math;
 use num_complex::Complex64;
 use rustfft::algorithm::Radix4;
 use rustfft::{Fft, FftDirection};
@@ -15,6 +16,6 @@ pub fn amplitudes(samples: &[f64]) -> Vec<f64> {
     buffer[..=n / 2]
         .iter()
         .enumerate()
-        .map(|(k, x)| x.norm() * if k == 0 || k == n / 2 { 1.0 } else { 2.0 } / n as f64)
+        .map(|(k, x)| math::norm(x) * if k == 0 || k == n / 2 { 1.0 } else { 2.0 } / n as f64)
         .collect()
 }

@@ -4,6 +4,7 @@
 //! every other capacitance open) — the memoryless limit the time domain must reach
 //! at low frequency, and the source of the power-series estimate.
 
+use crate::math;
 use nalgebra::DVector;
 
 use super::drive::{emf_at, Record, Tone};
@@ -63,7 +64,7 @@ impl TimeDomain {
     /// |v(last inverter output)| per volt of EMF at `f_hz`, small-signal.
     pub fn gain_to_last_stage(&self, f_hz: f64) -> Result<f64> {
         let x = self.small.solve(std::f64::consts::TAU * f_hz)?;
-        Ok(self.small.layout.voltage(&x, *self.circuit.nodes.outputs.last().expect("a part has a stage")).norm())
+        Ok(math::norm(self.small.layout.voltage(&x, *self.circuit.nodes.outputs.last().expect("a part has a stage"))))
     }
 }
 

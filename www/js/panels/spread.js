@@ -28,8 +28,6 @@
     ['vdd_pct', 'Supply', '± %, e.g. 5'], ['k_pct', 'kn and kp', '± %, e.g. 20'], ['vt_mv', 'Thresholds', '± mV, e.g. 100'],
     ['trials', 'Trials', 'how many random builds'], ['seed', 'Seed', 'whole number: the same seed draws the same builds'],
   ];
-  const DEFAULT_TRIALS = 1000; // the core's default for tolerance.trials
-
   // Runs the spread of `text` in the background → {promise, cancel()}, as HR.background.run.
   // Two lanes: the trials in halves on two workers, then spreadFinish on the first;
   // one lane: spreadReport in one worker.
@@ -37,8 +35,9 @@
     const go = (name, args, lane, progress = () => {}) => HR.background.run(name, args, { lane, onProgress: progress });
     if (lanes === 1) return go('spreadReport', [text], 'spread-1', onProgress);
     const begun = performance.now();
-    const t = JSON.parse(text).tolerance;
-    const n = (t && t.trials) || DEFAULT_TRIALS;
+    const counted = HR.call('spreadTrialCount', text);
+    if (counted.error) return { promise: Promise.resolve({ error: counted.error }), cancel() {} };
+    const n = counted.ok;
     const half = Math.ceil(n / 2);
     const done = [0, 0];
     let stopped = false;
