@@ -137,6 +137,22 @@ test('a bad file is refused with the field and the file named, and the design is
   await clean(page, seen);
 });
 
+test('a migration entry, when the core has one, runs between reading and checking', async () => {
+  const { page, seen } = await open('#stage');
+  // A stand-in for a future core entry that reads an older format: version 0 named the section `amp`.
+  await page.evaluate(() => {
+    wasm_bindgen.migrateDocument = (text) => {
+      const { halfrail, amp, ...rest } = JSON.parse(text);
+      if (halfrail !== 0) return text;
+      return JSON.stringify({ halfrail: 1, ...rest, stage: amp });
+    };
+  });
+  await pick(page, file('old.halfrail.json', JSON.stringify({ halfrail: 0, amp: { ...DEMO.stage, r_fb_ohm: '1k5' } })));
+  await page.waitForFunction(() => HR.design.get('stage', 'r_fb_ohm') === '1k5');
+  assert.deepEqual(await draft(page), { halfrail: 1, stage: { ...DEMO.stage, r_fb_ohm: '1k5' } });
+  await clean(page, seen);
+});
+
 test('a stored draft the page cannot read is kept aside, offered for download, and the page starts on the demo', async () => {
   for (const [raw, why] of [
     ['{"draft": {"halfrail": 1, "stage": {"r_fb_ohm": "4k7"', /not JSON/],

@@ -13,13 +13,9 @@ HR.documents = (() => {
   // The fragment's parts: the panel, and the flags `embed`, `embed=view`, `d=…`
   // (base64url has no `&`).
   const parts = location.hash.slice(1).split('&');
-  const flags = new Map(parts.map((p) => {
-    const at = p.indexOf('=');
-    return at < 0 ? [p, ''] : [p.slice(0, at), p.slice(at + 1)];
-  }));
-  const embed = flags.has('embed');
-  const view = flags.get('embed') === 'view';
-  const linked = flags.get('d');
+  const view = parts.includes('embed=view');
+  const embed = view || parts.includes('embed');
+  const linked = parts.find((p) => p.startsWith('d='));
 
   const status = (text, problem) => HR.setStatus(text, problem);
   let notices;
@@ -59,8 +55,7 @@ HR.documents = (() => {
     // checkDocument also reads `[1]` as a version-1 document; only an object is one here.
     const e = r.error || (!plain(JSON.parse(m.ok)) && { field: 'document', reason: 'is not a JSON object' });
     if (e) return refuse(source, e);
-    if (!HR.design.load(m.ok, label)) return status('This view is read only.', true);
-    status(said);
+    if (HR.design.load(m.ok, label)) status(said);
   };
 
   const open = async (file) => {
@@ -179,7 +174,7 @@ HR.documents = (() => {
 
   // What is left of the fragment for the rail's links: embed mode stays on, and an
   // embedded link's design stays in the address (the frame keeps no design of its own).
-  const tail = embed ? `&embed${view ? '=view' : ''}${linked ? `&d=${linked}` : ''}` : '';
+  const tail = embed ? `&embed${view ? '=view' : ''}${linked ? `&${linked}` : ''}` : '';
 
   return {
     tail,
@@ -199,7 +194,7 @@ HR.documents = (() => {
             `Download the stored text${lost.length > 1 ? ` (${i + 1})` : ''}`)),
           () => HR.design.dismissRecovered());
       }
-      if (linked !== undefined) await fromLink(parts);
+      if (linked) await fromLink(parts);
       // A link pasted into the address of the open page (no reload: only the fragment changes).
       if (!embed) window.addEventListener('hashchange', () => { const p = location.hash.slice(1).split('&'); if (p.some((x) => x.startsWith('d='))) fromLink(p); });
       if (view) HR.design.lock();
