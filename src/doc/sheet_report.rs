@@ -1,0 +1,30 @@
+//! The design sheet's figures gathered from a document: each analysis run once,
+//! its result or its error kept, so that `report::Sheet` can write every section
+//! it can and say why of the others.
+
+use super::{Document, Part};
+use crate::report::{ChainSheet, Sheet};
+
+impl Document {
+    /// Everything the design sheet shows. Never fails as a whole: an analysis that
+    /// cannot run leaves its error in its place.
+    pub fn sheet(&self) -> Sheet {
+        // The loop comes with the response; without it the response alone may still run.
+        let (response, stability) = match self.stability() {
+            Ok((response, stability)) => (Ok(response), Ok(stability)),
+            Err(e) => (self.response(), Err(e)),
+        };
+        Sheet {
+            title: self.title.clone(),
+            notes: self.notes.clone(),
+            part: self.part.as_ref().map(Part::to_core),
+            pkg_max_w: self.part.as_ref().and_then(|p| p.pkg_max_w),
+            stage: self.stage,
+            bias: self.bias(),
+            response,
+            stability,
+            large: self.large(&mut |_| {}),
+            chain: self.chain.as_ref().map(|c| ChainSheet { input_dbm: c.input_dbm, bandwidth_hz: c.bandwidth_hz, budget: self.chain(None) }),
+        }
+    }
+}

@@ -1,0 +1,263 @@
+//! The design sheet (`halfrail report`): its figures are the other verbs' figures at
+//! the precision printed, Markdown has pipe tables, a section that cannot be
+//! computed says why without sinking the rest, and a bad document is refused as
+//! every verb refuses it.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+use std::sync::OnceLock;
+
+use halfrail::doc::load;
+use halfrail::report::{Sheet, Style, CAUTIONS};
+use halfrail::units::parse;
+use halfrail::FieldError;
+
+const DEMO: &str = include_str!("../src/doc/demo.halfrail.json");
+
+fn halfrail(args: &[&str]) -> Output {
+    Command::new(env!("CARGO_BIN_EXE_halfrail")).args(args).output().expect("the binary runs")
+}
+
+fn demo_path() -> String {
+    PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("src/doc/demo.halfrail.json").display().to_string()
+}
+
+/// A scratch file of this test run holding `text`.
+fn scratch(name: &str, text: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("halfrail-report-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join(name);
+    std::fs::write(&path, text).unwrap();
+    path
+}
+
+fn json_of(out: &Output) -> serde_json::Value {
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    serde_json::from_slice(&out.stdout).unwrap()
+}
+
+/// The demo's sheet, computed once for the tests that read it in-process.
+fn demo_sheet() -> &'static Sheet {
+    static SHEET: OnceLock<Sheet> = OnceLock::new();
+    SHEET.get_or_init(|| load(DEMO).unwrap().sheet())
+}
+
+/// The demo document without some sections.
+fn demo_without(sections: &[&str]) -> String {
+    let mut doc: serde_json::Value = serde_json::from_str(DEMO).unwrap();
+    for s in sections {
+        doc.as_object_mut().unwrap().remove(*s);
+    }
+    doc.to_string()
+}
+
+/// The value shown beside `label` in a plain-text sheet (the first line whose
+/// label column is exactly `label`).
+fn figure<'a>(sheet: &'a str, label: &str) -> &'a str {
+    sheet
+        .lines()
+        .find_map(|line| line.strip_prefix(label).filter(|rest| rest.starts_with("  ")).map(str::trim))
+        .unwrap_or_else(|| panic!("no `{label}` line in the sheet:\n{sheet}"))
+}
+
+/// How precisely a figure is printed.
+#[derive(Clone, Copy)]
+enum Shown {
+    Decimals(i32),
+    Significant(i32),
+}
+
+/// The number a shown figure stands for (its unit read by the core's own parser).
+fn number(shown: &str) -> f64 {
+    let text = shown.split(" (").next().unwrap().split(" at ").next().unwrap();
+    let text = text.trim_end_matches('°').trim_end_matches(" dBc").trim_end_matches(" V/V");
+    parse(text).unwrap_or_else(|e| panic!("`{shown}`: {e}")).value
+}
+
+/// Asserts that the sheet's `label` shows `expected` to its printed precision, or a
+/// dash when `expected` is null.
+fn agrees(sheet: &str, label: &str, expected: &serde_json::Value, precision: Shown) {
+    let shown = figure(sheet, label);
+    let Some(expected) = expected.as_f64() else {
+        assert!(expected.is_null(), "{label}: {expected}");
+        assert!(shown.starts_with('—'), "{label}: `{shown}` for a null figure");
+        return;
+    };
+    let half_step = match precision {
+        Shown::Decimals(d) => 0.5 * 10f64.powi(-d),
+        Shown::Significant(s) => 0.5 * 10f64.powi(expected.abs().log10().floor() as i32 - s + 1),
+    };
+    let got = number(shown);
+    assert!((got - expected).abs() <= half_step * (1.0 + 1e-9), "{label}: sheet `{shown}` against {expected}");
+}
+
+#[test]
+fn the_demo_sheet_shows_the_figures_of_analyze_and_chain() {
+    let demo = demo_path();
+    let report = halfrail(&["report", &demo]);
+    assert!(report.status.success(), "{}", String::from_utf8_lossy(&report.stderr));
+    assert!(report.stderr.is_empty());
+    let sheet = String::from_utf8(report.stdout).unwrap();
+    let analyze = json_of(&halfrail(&["analyze", &demo]));
+    let chain = json_of(&halfrail(&["chain", &demo]));
+    use Shown::{Decimals, Significant};
+
+    let bias = &analyze["bias"];
+    agrees(&sheet, "Gate g1 (DC)", &bias["vin_v"], Significant(3));
+    agrees(&sheet, "Supply current Iq", &bias["iq_a"], Significant(3));
+    agrees(&sheet, "Supply power", &bias["power_w"], Significant(3));
+    agrees(&sheet, "gm (stage 1)", &bias["gm_s"], Significant(3));
+    agrees(&sheet, "Open-loop gain A0", &bias["a0"], Significant(3));
+
+    let ac = &analyze["ac"];
+    agrees(&sheet, "Voltage gain Av", &ac["gain_db"], Decimals(2));
+    agrees(&sheet, "Phase of Av", &ac["phase_deg"], Decimals(1));
+    agrees(&sheet, "Power gain GT", &ac["power_gain_db"], Decimals(2));
+    agrees(&sheet, "Low band edge f_low", &ac["f_low_hz"], Significant(3));
+    agrees(&sheet, "High band edge f_high", &ac["f_high_hz"], Significant(3));
+    agrees(&sheet, "S11", &ac["s11_db"], Decimals(2));
+    agrees(&sheet, "S21", &ac["s21_db"], Decimals(2));
+    agrees(&sheet, "Noise figure NF", &ac["nf_db"], Decimals(2));
+    let zin = figure(&sheet, "Input impedance Zin");
+    let (re, im) = zin.split_once(" − j").or_else(|| zin.split_once(" + j")).expect("Zin as re ± j im");
+    let (re_json, im_json) = (ac["zin_re_ohm"].as_f64().unwrap(), ac["zin_im_ohm"].as_f64().unwrap());
+    assert!((number(re) - re_json).abs() <= 0.05, "Zin real part `{re}` against {re_json}");
+    assert!((number(im) - im_json.abs()).abs() <= 0.005 * im_json.abs(), "Zin imaginary part `{im}` against {im_json}");
+    assert_eq!(zin.contains(" − j"), im_json < 0.0, "the sign of Zin's imaginary part");
+
+    let lp = &analyze["loop"];
+    agrees(&sheet, "Loop gain T at f_design", &lp["t_mid_db"], Decimals(2));
+    agrees(&sheet, "Crossover |T| = 1", &lp["crossover_hz"], Significant(3));
+    agrees(&sheet, "Phase margin", &lp["phase_margin_deg"], Decimals(1));
+    agrees(&sheet, "Gain margin", &lp["gain_margin_db"], Decimals(2));
+    assert_eq!(figure(&sheet, "Stable"), if lp["stable"].as_bool().unwrap() { "yes" } else { "no" });
+
+    let large = &analyze["large"];
+    agrees(&sheet, "Output 1 dB compression OP1dB", &large["op1db_dbm"], Decimals(2));
+    agrees(&sheet, "Output intercept OIP3", &large["oip3_dbm"], Decimals(2));
+    agrees(&sheet, "HD2", &large["hd2_dbc"], Decimals(2));
+    agrees(&sheet, "HD3", &large["hd3_dbc"], Decimals(2));
+    agrees(&sheet, "THD", &large["thd_pct"], Significant(3));
+
+    agrees(&sheet, "Gain", &chain["gain_db"], Decimals(2));
+    agrees(&sheet, "Noise figure", &chain["nf_db"], Decimals(2));
+    agrees(&sheet, "IIP3", &chain["iip3_dbm"], Decimals(2));
+    agrees(&sheet, "SFDR", &chain["sfdr_db"], Decimals(2));
+    agrees(&sheet, "Output level", &chain["output_dbm"], Decimals(2));
+    agrees(&sheet, "DC power", &chain["dc_w"], Significant(3));
+    // One row per block of the chain, in order.
+    for stage in chain["stages"].as_array().unwrap() {
+        let name = stage["name"].as_str().unwrap();
+        assert!(sheet.lines().any(|l| l.starts_with(name)), "no chain row for {name}");
+    }
+
+    assert!(sheet.starts_with("Demo: 10.7 MHz IF gain block"), "the title first");
+    assert!(sheet.contains(&format!("Halfrail {}", env!("CARGO_PKG_VERSION"))), "the build version");
+    assert!(sheet.lines().any(|l| l.starts_with("R fb ") && l.contains("2k2") && l.contains("E3–E24")), "R fb in RKM with its series");
+    assert!(sheet.lines().any(|l| l.starts_with("C in ") && l.contains("100 nF")), "C in in engineering notation");
+    for line in sheet.lines() {
+        assert!(line.chars().count() <= 80, "wider than 80 columns: {line:?}");
+    }
+}
+
+#[test]
+fn markdown_has_headings_and_pipe_tables() {
+    let md = demo_sheet().render(Style::Markdown);
+    assert!(md.starts_with("# Demo: 10.7 MHz IF gain block"), "{md}");
+    for heading in ["## Schematic", "## Part", "## Bias point", "## Small signal at f_design", "## Loop", "## Large signal", "## Chain", "## Before you build"] {
+        assert!(md.lines().any(|l| l == heading), "no {heading:?}");
+    }
+    // Every table: a header, a rule of the same width, rows of the same width.
+    let lines: Vec<&str> = md.lines().collect();
+    let mut tables = 0;
+    for (i, line) in lines.iter().enumerate() {
+        if line.starts_with("| ---") {
+            tables += 1;
+            let columns = |l: &str| l.replace("\\|", "").matches('|').count();
+            let width = columns(lines[i - 1]);
+            assert_eq!(columns(line), width, "rule under {:?}", lines[i - 1]);
+            for row in lines[i + 1..].iter().take_while(|l| l.starts_with('|')) {
+                assert_eq!(columns(row), width, "{row:?}");
+            }
+        }
+    }
+    assert!(tables >= 8, "{tables} tables");
+    assert!(md.contains("| R fb | r_fb_ohm | 2k2 | E3–E24 | g1–o1 |"), "{md}");
+    assert!(md.contains("| --- | ---: | ---: |"), "numbers right-aligned in the chain table");
+}
+
+#[test]
+fn the_cautions_are_the_pages_footer() {
+    let page = std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join("www/index.html")).unwrap();
+    let footer = &page[page.find("<footer class=\"cautions\"").expect("the cautions footer")..];
+    let footer = &footer[..footer.find("<p class=\"build\">").expect("the build line")];
+    let mut words = String::new();
+    let mut in_tag = false;
+    for c in footer.chars() {
+        match c {
+            '<' => in_tag = true,
+            '>' => in_tag = false,
+            _ if !in_tag => words.push(c),
+            _ => {}
+        }
+    }
+    let words = words.split_whitespace().collect::<Vec<_>>().join(" ").to_lowercase();
+    let sheet = demo_sheet().render(Style::Text);
+    for caution in CAUTIONS {
+        assert!(words.contains(&caution.to_lowercase()), "the page's footer does not say {caution:?}: {words}");
+        let flat = sheet.split_whitespace().collect::<Vec<_>>().join(" ");
+        assert!(flat.contains(caution), "the sheet lacks {caution:?}");
+    }
+}
+
+#[test]
+fn a_document_without_chain_or_analysis_gives_the_sections_it_can() {
+    let path = scratch("no-chain.json", &demo_without(&["chain", "analysis"]));
+    for style in [&[][..], &["--markdown"][..]] {
+        let mut args = vec!["report", path.to_str().unwrap()];
+        args.extend_from_slice(style);
+        let out = halfrail(&args);
+        assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+        let sheet = String::from_utf8(out.stdout).unwrap();
+        assert!(sheet.contains("No chain: the document has no chain section"), "{sheet}");
+        assert!(!sheet.lines().any(|l| l == "Chain" || l == "## Chain"), "a chain heading without a chain");
+        assert!(sheet.contains("Not computed: analysis: missing"), "{sheet}");
+        assert!(sheet.contains("2k2") && sheet.contains("Supply current Iq"), "the schematic and the bias still there");
+    }
+}
+
+#[test]
+fn a_section_that_fails_says_why_and_the_rest_stands() {
+    let mut sheet = demo_sheet().clone();
+    sheet.stability = Err(FieldError::new("analysis.f_design_hz", "the loop could not be solved"));
+    sheet.chain.as_mut().unwrap().budget = Err(FieldError::new("chain.blocks[1]", "no stage figures"));
+    let text = sheet.render(Style::Text);
+    let loop_section = &text[text.find("\nLoop\n").unwrap()..text.find("\nLarge signal\n").unwrap()];
+    assert!(loop_section.contains("Not computed: analysis.f_design_hz: the loop could not be solved."), "{loop_section}");
+    assert!(text.contains("Not computed: chain.blocks[1]: no stage figures."));
+    assert!(text.contains("Voltage gain Av") && text.contains("Output intercept OIP3"), "the other sections stay");
+}
+
+#[test]
+fn a_bad_document_is_refused_naming_the_field() {
+    let path = scratch("bad.json", r#"{"halfrail": 1, "stage": {"r_fb_ohm": -3300}}"#);
+    for extra in [None, Some("--markdown")] {
+        let mut args = vec!["report", path.to_str().unwrap()];
+        args.extend(extra);
+        let out = halfrail(&args);
+        assert_eq!(out.status.code(), Some(2));
+        assert!(out.stdout.is_empty());
+        let err = String::from_utf8(out.stderr).unwrap();
+        assert_eq!(err, "halfrail: stage.r_fb_ohm: must be > 0, got -3300\n");
+    }
+}
+
+#[test]
+fn hostile_titles_stay_text_in_markdown() {
+    let mut sheet = demo_sheet().clone();
+    sheet.title = Some("A | B <script>\n# not a heading".into());
+    let md = sheet.render(Style::Markdown);
+    assert!(md.starts_with("# A | B &lt;script&gt; # not a heading\n"), "{}", md.lines().next().unwrap());
+    let text = sheet.render(Style::Text);
+    assert!(text.starts_with("A | B <script> # not a heading\n"), "plain text keeps the title as written, on one line");
+}
