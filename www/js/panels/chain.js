@@ -149,6 +149,8 @@
       const stageCache = new Map(); // stage document text → {ok} | {error}
       let stageRun = null;      // {key, handle} of the stageBlock run in flight
       const visible = () => !container.hidden && !container.closest('[hidden]');
+      // A read-only view (an embedded one) shows the chain without its editing buttons.
+      const readOnly = () => Boolean(HR.design.readOnly && HR.design.readOnly());
       const blocks = () => { const c = HR.design.section('chain'); return c && Array.isArray(c.blocks) ? c.blocks : []; };
       const chainNow = () => clone(HR.design.section('chain') || FIRST_CHAIN);
       const change = (label, edit) => {
@@ -267,7 +269,7 @@
           const tr = el('tr', { 'data-row': i, 'data-kind': b.kind },
             el('th', { scope: 'row' }, String(i + 1)), el('td', {}, name.cell),
             el('td', { class: 'kind' }, KINDS[b.kind] || String(b.kind), kindError),
-            cells.map((c) => el('td', {}, c)), el('td', { class: 'order' }, up, down), el('td', {}, remove));
+            cells.map((c) => el('td', {}, c)), el('td', { class: 'order' }, readOnly() ? null : [up, down]), el('td', {}, readOnly() ? null : remove));
           return { tr, fields, stage, kindError, buttons: { up, down, remove } };
         });
         blockTable.tbody.replaceChildren(...rows.map((r) => r.tr));
@@ -292,7 +294,8 @@
             for (const [key, f] of Object.entries(r.fields)) if (document.activeElement !== f.input) f.input.value = raw(list[i][key]);
           });
         }
-        noChain.hidden = Boolean(HR.design.section('chain'));
+        noChain.hidden = Boolean(HR.design.section('chain')) || readOnly();
+        adders.hidden = readOnly();
         blockTable.node.hidden = !list.length;
         rows.forEach((r, i) => {
           const placeholder = last && last.stages.find((s, j) => spanOf(s, j)[0] === i && spanOf(s, j)[1] === i);
@@ -344,6 +347,7 @@
       const runsNote = el('p', { class: 'plot-note' });
       const runsCard = card('Stages coupled directly', el('div', { class: 'inputs' }, runsChoice.wrap), el('div', { class: 'scroll' }, runsTable.node), runsNote);
       runsCard.hidden = true;
+      runsCard.classList.add('wide');
 
       // ---- Levels and figures after each block ---------------------------------
       const plotCard = card('Level diagram', el('p', { class: 'intro' }, 'The signal, the noise in the bandwidth, and the output 1 dB compression and intercept levels after each block; hover for values.'));
