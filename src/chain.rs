@@ -60,6 +60,8 @@ pub struct Cumulative {
     pub iip3_dbm: Option<f64>,
     pub oip3_dbm: Option<f64>,
     pub ip1db_dbm: Option<f64>,
+    /// The output 1 dB compression level after this block (IP1dB + gain − 1 dB).
+    pub op1db_dbm: Option<f64>,
     /// The signal and the noise over the bandwidth after this block, dBm.
     pub signal_dbm: f64,
     pub noise_dbm: f64,
@@ -76,6 +78,9 @@ pub struct Cascade {
     pub stages: Vec<Cumulative>,
     /// kT0·B·F of the whole chain, referred to its input, dBm.
     pub noise_floor_in_dbm: f64,
+    /// The signal and the noise (kT0·B) at the chain's input, dBm.
+    pub input_dbm: f64,
+    pub input_noise_dbm: f64,
     pub sfdr_db: Option<f64>,
     /// The input level giving the wanted SNR.
     pub mds_dbm: f64,
@@ -141,6 +146,7 @@ pub fn cascade(blocks: &[Block], levels: &Levels) -> Cascade {
             iip3_dbm,
             oip3_dbm: iip3_dbm.map(|i| i + gain_db),
             ip1db_dbm,
+            op1db_dbm: ip1db_dbm.map(|p| p + gain_db - 1.0),
             signal_dbm,
             noise_dbm,
             snr_db: signal_dbm - noise_dbm,
@@ -159,6 +165,8 @@ pub fn cascade(blocks: &[Block], levels: &Levels) -> Cascade {
         noise_share: share(&noise_terms, total_f - 1.0),
         distortion_share: share(&distortion_terms, inv_iip3),
         noise_floor_in_dbm,
+        input_dbm: levels.input_dbm,
+        input_noise_dbm: floor_per_f_dbm,
         names: blocks.iter().map(|b| b.name.clone()).collect(),
         stages,
         spans: (0..blocks.len()).map(|i| (i, i)).collect(),

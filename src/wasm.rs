@@ -257,6 +257,13 @@ pub fn spread_report(text: &str, progress: &js_sys::Function) -> Result<JsValue,
     to_js(&doc::SpreadReport(&result))
 }
 
+/// Panics on purpose: the page's recovery from a trap (report it, keep the design,
+/// start a fresh module) is tested with it. Nothing in the page calls it.
+#[wasm_bindgen(js_name = trapForTest)]
+pub fn trap_for_test() {
+    panic!("trapForTest: a deliberate trap");
+}
+
 /// How many trials the document's spread runs (its `tolerance.trials`, or the
 /// core's default): what the page splits between its workers.
 #[wasm_bindgen(js_name = spreadTrialCount)]

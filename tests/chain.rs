@@ -73,7 +73,11 @@ fn levels_shares_and_headroom() {
     // SFDR = ⅔(IIP3 − floor).
     assert!((c.sfdr_db.unwrap() - 2.0 / 3.0 * (t.iip3_dbm.unwrap() - c.noise_floor_in_dbm)).abs() < 1e-12);
     // Headroom after the last block: output 1 dB point less the signal.
-    assert!((t.headroom_db.unwrap() - (t.ip1db_dbm.unwrap() + t.gain_db - 1.0 - t.signal_dbm)).abs() < 1e-12);
+    assert!((t.op1db_dbm.unwrap() - (t.ip1db_dbm.unwrap() + t.gain_db - 1.0)).abs() < 1e-12);
+    assert!((t.headroom_db.unwrap() - (t.op1db_dbm.unwrap() - t.signal_dbm)).abs() < 1e-12);
+    // The input: the level asked for and kT0·B (1 MHz: 60 dB above kT0).
+    assert_eq!(c.input_dbm, -70.0);
+    assert!((c.input_noise_dbm - (10.0 * (kt0_w_per_hz() / 1e-3).log10() + 60.0)).abs() < 1e-9);
 }
 
 mod runs {

@@ -14,7 +14,7 @@ struct CumulativeOut<'a>(&'a str, (usize, usize), &'a Cumulative, f64, f64);
 impl Serialize for CumulativeOut<'_> {
     fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
         let CumulativeOut(name, (first, last), c, noise_share, distortion_share) = *self;
-        let mut out = serializer.serialize_struct("Cumulative", 15)?;
+        let mut out = serializer.serialize_struct("Cumulative", 16)?;
         out.serialize_field("name", name)?;
         out.serialize_field("blocks", &[first, last])?;
         out.serialize_field("gain_db", &c.gain_db)?;
@@ -23,6 +23,7 @@ impl Serialize for CumulativeOut<'_> {
         out.serialize_field("iip3_dbm", &c.iip3_dbm)?;
         out.serialize_field("oip3_dbm", &c.oip3_dbm)?;
         out.serialize_field("ip1db_dbm", &c.ip1db_dbm)?;
+        out.serialize_field("op1db_dbm", &c.op1db_dbm)?;
         out.serialize_field("signal_dbm", &c.signal_dbm)?;
         out.serialize_field("noise_dbm", &c.noise_dbm)?;
         out.serialize_field("snr_db", &c.snr_db)?;
@@ -74,13 +75,15 @@ impl Serialize for ChainReport<'_> {
         let budget = self.0;
         let c = &budget.cascade;
         let total = c.total();
-        let mut out = serializer.serialize_struct("Chain", 17)?;
+        let mut out = serializer.serialize_struct("Chain", 19)?;
         out.serialize_field("gain_db", &total.map(|t| t.gain_db))?;
         out.serialize_field("nf_db", &total.map(|t| t.nf_db))?;
         out.serialize_field("iip3_dbm", &total.and_then(|t| t.iip3_dbm))?;
         out.serialize_field("oip3_dbm", &total.and_then(|t| t.oip3_dbm))?;
         out.serialize_field("ip1db_dbm", &total.and_then(|t| t.ip1db_dbm))?;
         out.serialize_field("noise_floor_in_dbm", &c.noise_floor_in_dbm)?;
+        out.serialize_field("input_dbm", &c.input_dbm)?;
+        out.serialize_field("input_noise_dbm", &c.input_noise_dbm)?;
         out.serialize_field("snr_db", &total.map(|t| t.snr_db))?;
         out.serialize_field("sfdr_db", &c.sfdr_db)?;
         out.serialize_field("output_dbm", &total.map(|t| t.signal_dbm))?;

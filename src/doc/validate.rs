@@ -224,14 +224,15 @@ fn block(at: &str, b: &Block) -> Result<()> {
     ];
     let (required, allowed) = block_fields(b.kind);
     let kind_name = format!("{:?}", b.kind).to_ascii_lowercase();
+    let a = if kind_name.starts_with(['a', 'e', 'i', 'o', 'u']) { "an" } else { "a" };
     for (key, value) in present {
         let known = required.contains(&key) || allowed.contains(&key);
         match (known, value) {
             (false, Some(_)) => {
-                return Err(FieldError::new(format!("{at}.{key}"), format!("a {kind_name} block takes no {key}")))
+                return Err(FieldError::new(format!("{at}.{key}"), format!("{a} {kind_name} block takes no {key}")))
             }
             (true, Option::None) if required.contains(&key) => {
-                return Err(FieldError::new(format!("{at}.{key}"), format!("missing; a {kind_name} block needs it")))
+                return Err(FieldError::new(format!("{at}.{key}"), format!("missing; {a} {kind_name} block needs it")))
             }
             _ => {}
         }

@@ -24,14 +24,36 @@ HR.start = async () => {
   HR.version = wasm_bindgen.buildVersion();
 };
 
+// A fresh instance of the compiled module, in place of one that trapped (its memory
+// may be half-updated). The glue declares a global `let wasm_bindgen`, which cannot be
+// declared twice, so its text runs again inside a function and the new binding is
+// put in the old one's place. The design lives in the page, so nothing is lost.
+HR.restart = () => {
+  const script = document.createElement('script');
+  script.textContent = `(() => {${document.getElementById('hr-glue').textContent}\n;HR.fresh = wasm_bindgen;})();`;
+  document.head.append(script);
+  script.remove();
+  HR.fresh.initSync({ module: HR.module });
+  wasm_bindgen = HR.fresh;
+  delete HR.fresh;
+  HR.restarts = (HR.restarts || 0) + 1;
+};
+
 // Calls the core. Returns {ok: value} or {error: {field, reason, message}}; a trap
-// (a bug in the core) is reported in the status line and returned as an error.
+// (a bug in the core) is reported in the status line, returned as an error, and the
+// module restarted for the next call.
 HR.call = (name, ...args) => {
   try {
     return { ok: wasm_bindgen[name](...args) };
   } catch (e) {
     if (e && typeof e === 'object' && 'reason' in e) return { error: e };
-    const message = `The calculation engine failed (${e && e.message ? e.message : e}). Your inputs are kept; reload the page to restart it.`;
+    let message = `The calculation engine failed (${e && e.message ? e.message : e}). Your inputs are kept`;
+    try {
+      HR.restart();
+      message += '; the engine was restarted.';
+    } catch (again) {
+      message += `, but the engine could not be restarted (${again && again.message ? again.message : again}): reload the page.`;
+    }
     HR.setStatus(message, true);
     return { error: { field: '', reason: message, message } };
   }

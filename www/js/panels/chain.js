@@ -402,16 +402,14 @@
             : 'No two stage blocks sit next to each other, so there is nothing to compare.';
         }
 
-        // Node 0 is the chain's input (the signal only: the noise is counted from the
-        // first block's output); node n is after block n.
-        const input = HR.call('parseValue', raw(JSON.parse(text).chain.input_dbm), 'dBm', 'chain.input_dbm');
+        // Node 0 is the chain's input (the signal and kT0·B); node n is after block n.
         const labels = ['input', ...r.stages.map((s) => s.name)];
         plot.setData(labels, [labels.map((_, i) => i),
-          [input.ok ? input.ok.value : null, ...r.stages.map((s) => s.signal_dbm)],
-          [null, ...r.stages.map((s) => s.noise_dbm)],
-          [null, ...r.stages.map((s) => (known(s.ip1db_dbm) ? s.ip1db_dbm + s.gain_db - 1 : null))],
+          [r.input_dbm, ...r.stages.map((s) => s.signal_dbm)],
+          [r.input_noise_dbm, ...r.stages.map((s) => s.noise_dbm)],
+          [null, ...r.stages.map((s) => s.op1db_dbm)],
           [null, ...r.stages.map((s) => s.oip3_dbm)]]);
-        plotNote.textContent = 'Node 0 is the chain’s input; the noise is counted from the first block’s output on. The compression and intercept levels start at the first block that has them (pads and filters distort nothing); where the signal comes within a few dB of the compression level, that node has little headroom.';
+        plotNote.textContent = 'Node 0 is the chain’s input, where the noise is kT₀B. The compression and intercept levels start at the first block that has them (pads and filters distort nothing); where the signal comes within a few dB of the compression level, that node has little headroom.';
         syncRows();
       };
 
