@@ -361,8 +361,10 @@ ${markup.split(PAGE_URL).join('halfrail.html')}${extra}`);
   return { dir, file, design, frameUrl: `file://${path.join(dir, 'halfrail.html')}` };
 }
 
-test('embedded in a frame: compact chrome, the cautions as one line, the height posted to the host', async () => {
-  const { dir, file, design, frameUrl } = await host('Editable');
+// The host page of `host(label)` opened, once its frame has started and shows the
+// link's design.
+async function openHost(label) {
+  const { dir, file, design, frameUrl } = await host(label);
   const page = await browser.context.newPage();
   const seen = watch(page, [`file://${file}`, frameUrl]);
   await page.goto(`file://${file}`);
@@ -370,6 +372,11 @@ test('embedded in a frame: compact chrome, the cautions as one line, the height 
   await frame.locator('html[data-ready="true"]').waitFor({ timeout: 15000 });
   const inner = await (await page.locator('#halfrail').elementHandle()).contentFrame();
   assert.deepEqual(JSON.parse(await inner.evaluate(() => HR.design.text())), design);
+  return { dir, design, page, seen, frame, inner };
+}
+
+test('embedded in a frame: compact chrome, the cautions as one line, the height posted to the host', async () => {
+  const { dir, design, page, seen, frame, inner } = await openHost('Editable');
   assert.equal(await frame.locator('#engine-status').textContent(), 'Showing the design in the link; changes stay in this frame.');
   await frame.locator('#panel-response[data-computed]').waitFor();
   // Compact: no tagline, the rail one row above the panel, the cautions one line that opens.
@@ -412,14 +419,7 @@ test('embedded in a frame: compact chrome, the cautions as one line, the height 
 });
 
 test('the read-only view shows the design and its figures with nothing to edit', async () => {
-  const { dir, file, design, frameUrl } = await host('Read only');
-  const page = await browser.context.newPage();
-  const seen = watch(page, [`file://${file}`, frameUrl]);
-  await page.goto(`file://${file}`);
-  const frame = page.frameLocator('#halfrail');
-  await frame.locator('html[data-ready="true"]').waitFor({ timeout: 15000 });
-  const inner = await (await page.locator('#halfrail').elementHandle()).contentFrame();
-  assert.deepEqual(JSON.parse(await inner.evaluate(() => HR.design.text())), design);
+  const { dir, design, page, seen, frame, inner } = await openHost('Read only');
   assert.equal(await frame.locator('#engine-status').textContent(), 'Showing the design in the link, read only.');
   await frame.locator('#panel-response[data-computed]').waitFor();
   assert.ok(await frame.locator('#panel-response canvas').count() > 0, 'the plots are drawn');
