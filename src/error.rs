@@ -12,9 +12,18 @@ pub struct FieldError {
     pub reason: String,
 }
 
+/// `text` with its control characters escaped (`\n`, `\u{1b}`): a message quotes
+/// what the user typed, and must stay one line that cannot drive a terminal.
+fn one_line(text: String) -> String {
+    if !text.chars().any(char::is_control) {
+        return text;
+    }
+    text.chars().map(|c| if c.is_control() { c.escape_debug().to_string() } else { c.to_string() }).collect()
+}
+
 impl FieldError {
     pub fn new(field: impl Into<String>, reason: impl Into<String>) -> Self {
-        FieldError { field: field.into(), reason: reason.into() }
+        FieldError { field: one_line(field.into()), reason: one_line(reason.into()) }
     }
 
     /// The same reason, attributed to a field further out (`r_fb_ohm` → `stage.r_fb_ohm`).

@@ -109,6 +109,9 @@ pub(crate) fn read_document(path: &std::path::Path) -> Result<halfrail::doc::Doc
             halfrail::doc::MAX_DOCUMENT_BYTES
         )));
     }
-    let text = std::fs::read_to_string(path).map_err(|e| Failure::Input(format!("{}: cannot read: {e}", path.display())))?;
+    let bytes = std::fs::read(path).map_err(|e| Failure::Input(format!("{}: cannot read: {e}", path.display())))?;
+    let text = String::from_utf8(bytes).map_err(|e| {
+        Failure::Input(format!("document: {} is not UTF-8 text (a bad byte at offset {})", path.display(), e.utf8_error().valid_up_to()))
+    })?;
     Ok(halfrail::doc::load(&text)?)
 }

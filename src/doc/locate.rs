@@ -18,18 +18,18 @@ fn offset_of(text: &str, line: usize, column: usize) -> usize {
     (start + column).min(text.len())
 }
 
-/// The string starting at the quote at `at`, and the offset after its closing quote.
+/// The string starting at the quote at `at`, its escapes decoded, and the offset
+/// after its closing quote.
 fn string_at(bytes: &[u8], at: usize) -> (String, usize) {
-    let mut out = Vec::new();
     let mut i = at + 1;
     while i < bytes.len() && bytes[i] != b'"' {
-        if bytes[i] == b'\\' && i + 1 < bytes.len() {
-            i += 1;
-        }
-        out.push(bytes[i]);
-        i += 1;
+        i += if bytes[i] == b'\\' { 2 } else { 1 };
     }
-    (String::from_utf8_lossy(&out).into_owned(), (i + 1).min(bytes.len()))
+    let end = (i + 1).min(bytes.len());
+    let raw = &bytes[at..end];
+    let inner = || String::from_utf8_lossy(&raw[1..raw.len().saturating_sub(1).max(1)]).into_owned();
+    let text = if raw.contains(&b'\\') { serde_json::from_slice::<String>(raw).unwrap_or_else(|_| inner()) } else { inner() };
+    (text, end)
 }
 
 /// The path of the value being read at `line`, `column` of `text`.

@@ -404,16 +404,45 @@ fn reason_of(error: &serde_json::Error) -> String {
     }
 }
 
-/// Reads the format version first, so that a document from a newer build is
-/// refused for that reason rather than for a key this build does not know.
+/// serde_json's nesting limit (its default, kept on): deeper text is refused.
+pub const MAX_NESTING: usize = 128;
+
+/// A JSON error named by the field it is in (`document` at the top level, and for
+/// text cut short). Past the nesting limit — serde_json's, or deeper still in a
+/// value skipped unread — the path would be thousands of levels long: the
+/// section is named instead.
+fn json_error(text: &str, error: &serde_json::Error) -> FieldError {
+    let path = locate::path_at(text, error.line(), error.column());
+    let levels = path.matches(['.', '[']).count() + 1;
+    if reason_of(error) == "recursion limit exceeded" || levels > MAX_NESTING {
+        let section = path.split(['.', '[']).next().filter(|s| !s.is_empty()).unwrap_or("document");
+        return FieldError::new(section, format!("nested more than {MAX_NESTING} levels deep"));
+    }
+    if error.classify() == serde_json::error::Category::Eof {
+        let inside = if path.is_empty() { String::new() } else { format!(", inside {path}") };
+        return FieldError::new("document", format!("ends before the JSON is complete{inside} ({})", reason_of(error)));
+    }
+    FieldError::new(if path.is_empty() { "document".to_string() } else { path }, reason_of(error))
+}
+
+/// The whole of `text` as one JSON value of type `T`.
+fn read_whole<'a, T: serde::Deserialize<'a>>(text: &'a str) -> Result<T> {
+    let mut reader = serde_json::Deserializer::from_str(text);
+    let value = T::deserialize(&mut reader).map_err(|e| json_error(text, &e))?;
+    reader
+        .end()
+        .map_err(|e| FieldError::new("document", format!("has text after the JSON object: {}", reason_of(&e))))?;
+    Ok(value)
+}
+
+/// The format version, read before anything else so that a document from a newer
+/// build is refused for that reason rather than for a key this build does not know.
 fn check_version(text: &str) -> Result<()> {
     #[derive(serde::Deserialize)]
     struct Header {
         halfrail: Option<serde_json::Value>,
     }
-    let header: Header = serde_json::from_str(text)
-        .map_err(|e| FieldError::new("document", format!("is not a JSON object: {}", reason_of(&e))))?;
-    match header.halfrail {
+    match read_whole::<Header>(text)?.halfrail {
         None => Err(FieldError::new("halfrail", "missing; a design document starts with \"halfrail\": 1")),
         Some(serde_json::Value::Number(n)) if n.as_u64() == Some(FORMAT_VERSION as u64) => Ok(()),
         Some(serde_json::Value::Number(n)) if n.as_u64().is_some_and(|v| v > FORMAT_VERSION as u64) => {
@@ -443,15 +472,14 @@ pub fn load(text: &str) -> Result<Document> {
             format!("is {} bytes; at most {} are accepted", text.len(), MAX_DOCUMENT_BYTES),
         ));
     }
+    let not_object = |what: &str| FieldError::new("document", format!("is not a JSON object ({what})"));
+    match text.trim_start().chars().next() {
+        None => return Err(not_object("it is empty")),
+        Some('{') => {}
+        Some(_) => return Err(not_object("a design document starts with {")),
+    }
     check_version(text)?;
-    let mut reader = serde_json::Deserializer::from_str(text);
-    let document: Document = serde::Deserialize::deserialize(&mut reader).map_err(|e| {
-        let field = locate::path_at(text, e.line(), e.column());
-        FieldError::new(if field.is_empty() { "document".to_string() } else { field }, reason_of(&e))
-    })?;
-    reader
-        .end()
-        .map_err(|e| FieldError::new("document", format!("has text after the JSON object: {}", reason_of(&e))))?;
+    let document: Document = read_whole(text)?;
     validate::document(&document)?;
     Ok(document)
 }

@@ -1,11 +1,51 @@
 //! The sections of a design document (SPEC §4), as read. Keys carry their unit;
 //! `validate` checks the ranges once everything is read.
 
-use serde::Deserialize;
+use std::marker::PhantomData;
+
+use serde::de::{MapAccess, Visitor};
+use serde::{Deserialize, Deserializer};
 
 use super::quantity::{next_optional, optional, value, Ampere, Celsius, Decibel, DecibelMilliwatt, Farad, Hertz, Millivolt, Ohm, Percent, Plain, Volt, Watt};
 use crate::stage::{Component, Components, Role};
 use crate::values::Series;
+
+/// A struct read only from a JSON object. serde's derived structs also take an
+/// array, field by field in order, which the format does not allow: a section, a
+/// block, a reading is an object of named keys.
+struct Object<T>(T);
+
+struct ObjectVisitor<T>(PhantomData<T>);
+
+impl<'de, T: Deserialize<'de>> Visitor<'de> for ObjectVisitor<T> {
+    type Value = Object<T>;
+
+    fn expecting(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.write_str("an object")
+    }
+
+    fn visit_map<A: MapAccess<'de>>(self, map: A) -> Result<Object<T>, A::Error> {
+        T::deserialize(serde::de::value::MapAccessDeserializer::new(map)).map(Object)
+    }
+}
+
+impl<'de, T: Deserialize<'de>> Deserialize<'de> for Object<T> {
+    fn deserialize<D: Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        // `any`, not `map`: serde_json then steps into a wrong value before refusing
+        // it, so the error's position names it (`chain.blocks[0]`, not `chain.blocks`).
+        d.deserialize_any(ObjectVisitor(PhantomData))
+    }
+}
+
+/// An optional section: absent or `null` is `None`, anything else an object.
+fn section<'de, D: Deserializer<'de>, T: Deserialize<'de>>(d: D) -> Result<Option<T>, D::Error> {
+    Option::<Object<T>>::deserialize(d).map(|o| o.map(|o| o.0))
+}
+
+/// A list of objects.
+fn objects<'de, D: Deserializer<'de>, T: Deserialize<'de>>(d: D) -> Result<Vec<T>, D::Error> {
+    Vec::<Object<T>>::deserialize(d).map(|v| v.into_iter().map(|o| o.0).collect())
+}
 
 /// The transistor model of the part.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize)]
@@ -310,9 +350,9 @@ pub struct Bench {
     pub load_ohm: Option<f64>,
     #[serde(default, deserialize_with = "optional::<Farad, _>")]
     pub load_f: Option<f64>,
-    #[serde(default)]
+    #[serde(default, deserialize_with = "objects")]
     pub gains: Vec<GainReading>,
-    #[serde(default)]
+    #[serde(default, deserialize_with = "objects")]
     pub curve: Vec<CurvePoint>,
     /// The parameters to fit (kn, kp, vtn, vtp, lambda, cap); absent: what the readings determine.
     #[serde(default)]
@@ -363,6 +403,7 @@ pub struct Chain {
     pub input_dbm: f64,
     #[serde(deserialize_with = "value::<Hertz, _>")]
     pub bandwidth_hz: f64,
+    #[serde(deserialize_with = "objects")]
     pub blocks: Vec<Block>,
     /// The SNR the minimum detectable signal is counted at (10 dB when absent).
     #[serde(default, deserialize_with = "optional::<Decibel, _>")]
@@ -395,18 +436,18 @@ pub struct Document {
     pub title: Option<String>,
     #[serde(default)]
     pub notes: Option<String>,
-    #[serde(default)]
+    #[serde(default, deserialize_with = "section")]
     pub part: Option<Part>,
     #[serde(default, deserialize_with = "components")]
     pub stage: Option<Components>,
-    #[serde(default)]
+    #[serde(default, deserialize_with = "section")]
     pub analysis: Option<Analysis>,
-    #[serde(default)]
+    #[serde(default, deserialize_with = "section")]
     pub target: Option<Target>,
-    #[serde(default)]
+    #[serde(default, deserialize_with = "section")]
     pub tolerance: Option<Tolerance>,
-    #[serde(default)]
+    #[serde(default, deserialize_with = "section")]
     pub bench: Option<Bench>,
-    #[serde(default)]
+    #[serde(default, deserialize_with = "section")]
     pub chain: Option<Chain>,
 }

@@ -182,7 +182,13 @@ pub fn text(page: &Page) -> String {
         }
     }
     out.push(String::new());
-    out.join("\n")
+    shown(&out.join("\n"))
+}
+
+/// Control characters (a terminal's escape sequences among them) written as
+/// U+FFFD, so a document's text cannot drive the terminal it is printed on.
+fn shown(text: &str) -> String {
+    text.chars().map(|c| if c.is_control() && c != '\n' { '\u{FFFD}' } else { c }).collect()
 }
 
 /// Line breaks and runs of space made single spaces (for a heading or a cell).
@@ -232,7 +238,7 @@ pub fn markdown(page: &Page) -> String {
         }
     }
     out.push(String::new());
-    out.join("\n")
+    shown(&out.join("\n"))
 }
 
 #[cfg(test)]
@@ -258,6 +264,15 @@ mod tests {
         text_table(&mut out, &head, &[false, true], &rows);
         assert!(out.iter().all(|l| width(l) <= WIDTH), "{out:?}");
         assert!(out[2].contains('…'));
+    }
+
+    #[test]
+    fn control_characters_do_not_reach_the_terminal() {
+        let page = Page { title: "a\u{1b}[2Jb".into(), subtitle: String::new(), blocks: vec![Block::Paragraph("x\u{7}y".into())] };
+        for out in [text(&page), markdown(&page)] {
+            assert!(!out.chars().any(|c| c.is_control() && c != '\n'), "{out:?}");
+            assert!(out.contains("a\u{FFFD}[2Jb") && out.contains("x\u{FFFD}y"), "{out:?}");
+        }
     }
 
     #[test]

