@@ -70,7 +70,7 @@ setup-build-tools:
 	  [ -f www/node_modules/xz-decompress/dist/package/xz-decompress.min.js ] && [ -d www/node_modules/terser ] || (cd www && npm ci --no-audit --no-fund)
 
 setup-node: setup-build-tools
-	@[ -d wasm-tests/node_modules/playwright-core ] || (cd wasm-tests && npm ci --no-audit --no-fund)
+	@[ -d wasm-tests/node_modules/playwright-core ] && [ -d wasm-tests/node_modules/pdfjs-dist ] || (cd wasm-tests && npm ci --no-audit --no-fund)
 
 # A virtual environment with scikit-rf, the independent Touchstone reader.
 setup-python:

@@ -28,6 +28,7 @@ const SCRIPTS = [
   'js/panels/chain.js',
   'js/embed.js',
   'js/documents.js',
+  'js/sheet.js',
   'js/shell.js',
 ];
 const STYLES = ['css/base.css', 'css/panels.css'];

@@ -1,6 +1,6 @@
 'use strict';
 // Design documents in and out of the page: the header's Design bar (Save, Open, Copy
-// link, Embed, Load the demo), opening a file dropped on the page, the link that holds
+// link, Embed, Load the demo, Print sheet), opening a file dropped on the page, the link that holds
 // the whole draft (`#panel&d=…`, deflate-raw and base64url), and the notice when the
 // stored draft could not be read. Whatever is opened is migrated (when the core has a
 // migration), then checked by the core; a refused one leaves the design as it was, a
@@ -94,14 +94,15 @@ HR.documents = (() => {
   };
   const panel = () => (document.querySelector('#rail a[aria-current]') || { dataset: {} }).dataset.panel || 'part';
   // The address of this page on the current panel with `extra` flags and the draft,
-  // or null (said why) when the draft has a bad value or the address would be too long.
-  const address = async (extra = '') => {
+  // or null (why is `say`'d, by default in the status line) when the draft has a bad
+  // value or the address would be too long.
+  const address = async (extra = '', say = status) => {
     const text = HR.design.text();
     const r = HR.call('checkDocument', text);
-    if (r.error) { status(`A link would not open while ${r.error.field} is bad (${r.error.reason}); fix it first.`, true); return null; }
+    if (r.error) { say(`A link would not open while ${r.error.field} is bad (${r.error.reason}); fix it first.`, true); return null; }
     const url = `${location.href.split('#')[0]}#${panel()}${extra}&d=${await deflate(text)}`;
     if (url.length <= MAX_LINK) return url;
-    status(`This design is too long for a link (${url.length} characters; at most ${MAX_LINK}): save it as a file instead.`, true);
+    say(`This design is too long for a link (${url.length} characters; at most ${MAX_LINK}): save it as a file instead.`, true);
     return null;
   };
   const copyLink = async () => {
@@ -139,7 +140,8 @@ HR.documents = (() => {
     const button = (text, onclick) => el('button', { type: 'button', onclick }, text);
     document.getElementById('docbar').replaceChildren(el('span', {}, 'Design'),
       button('Save', save), view ? null : button('Open…', () => picker.click()), button('Copy link', copyLink),
-      view ? null : button('Embed…', embedDialog), view ? null : button('Load the demo', demo), view ? null : picker);
+      view ? null : button('Embed…', embedDialog), view ? null : button('Load the demo', demo), button('Print sheet', () => HR.sheet.print()),
+      view ? null : picker);
   };
 
   // Files dragged over the page: the hint shows; one dropped is opened. The page's
@@ -178,6 +180,8 @@ HR.documents = (() => {
 
   return {
     tail,
+    // The link to the draft: address(extra, say) above (the design sheet prints it).
+    link: address,
     // The stored (or linked) design, the Design bar, and embed mode; before the first panel.
     async start() {
       notices = el('div', { class: 'notices' });

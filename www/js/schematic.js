@@ -44,14 +44,14 @@ HR.schematic = (() => {
     }
   };
 
-  // draw(canvas, label(key) → {text, short} or null, stages) → [{key, x, y, text}] label
+  // draw(canvas, label(key) → {text, short} or null, stages, ratio) → [{key, x, y, text}] label
   // anchors (CSS px). A fitted series part marked `short` (0 Ω) is drawn as a wire.
-  const draw = (canvas, describe, stages) => {
+  // `ratio`: canvas pixels a CSS pixel (the screen's by default; more for paper).
+  const draw = (canvas, describe, stages, ratio = window.devicePixelRatio || 1) => {
     const label = (key) => { const d = describe(key); return d && !d.short ? d.text : null; };
     const text = (key) => { const d = describe(key); return d ? d.text : null; };
     const width = 52 * U;
     const height = 14 * U;
-    const ratio = window.devicePixelRatio || 1;
     canvas.width = width * ratio;
     canvas.height = height * ratio;
     canvas.style.width = `${width}px`;

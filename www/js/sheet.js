@@ -1,0 +1,268 @@
+'use strict';
+// The printed design sheet: what Print sheet (the Design bar) and the browser's own
+// print (Ctrl+P, `beforeprint`) put on paper or in a PDF, in a container that only
+// `@media print` shows. Its words and figures are the core's sheetText (the same sheet
+// as `halfrail report`, read from its Markdown), laid out with the schematic and its
+// values, the gain and phase and the loop gain drawn for paper, the permalink
+// (HR.documents.link), the build and the date. sheetText runs every analysis, the
+// large-signal one too: Print sheet runs it in the background; Ctrl+P, which cannot
+// wait, uses the one Print sheet made for this design, or else runs it at once.
+
+HR.sheet = (() => {
+  const { el } = HR.ui;
+  const INK = '#1b1f1d';
+  const GRID = '#d3d8d4';
+  const [C1, C2, C3] = ['#0b6e5f', '#b34700', '#5b3fa6'];
+  const K = 2; // plots and schematic are drawn at this many canvas pixels a CSS pixel (and more on a dense screen)
+  const sheets = new Map(); // design text → {ok: Markdown} | {error}
+  let link = { text: null, url: null, why: '' };
+  let node = null;
+  let shownFor = null;
+
+  // ---- sheetText's Markdown as DOM (text only) -----------------------------------
+  const plain = (s) => s.replace(/&lt;/g, '<').replace(/&gt;/g, '>').replace(/&amp;/g, '&');
+  const cells = (line) => line.slice(2, -2).split(' | ').map((c) => plain(c.replace(/\\\|/g, '|')).trim());
+  const isRule = (line) => /^\| -{3}/.test(line || '');
+  const chunk = (md) => md.trim().split(/\n(?:[ \t]*\n)+/).map((b) => b.split('\n')).filter((b) => b[0].trim());
+  const table = (lines) => {
+    const right = cells(lines[1]).map((c) => c.endsWith(':'));
+    const row = (tag, line) => el('tr', {}, cells(line).map((c, i) => el(tag, right[i] ? { class: 'num' } : {}, c)));
+    return el('table', {}, el('thead', {}, row('th', lines[0])), el('tbody', {}, lines.slice(2).map((l) => row('td', l))));
+  };
+  const block = (lines) => {
+    if (lines[0].startsWith('| ') && isRule(lines[1])) return table(lines);
+    if (lines.every((l) => l.startsWith('- '))) return el('ul', {}, lines.map((l) => el('li', {}, plain(l.slice(2)))));
+    const text = lines.map((l) => plain(l.replace(/ {2}$/, '')));
+    return el('p', {}, text.flatMap((t, i) => (i ? [el('br'), t] : [t])));
+  };
+  // → {title, sub, lead: [nodes], sections: [{head, nodes, wide}], rows: {key: [cells]}}
+  const read = (md) => {
+    const out = { title: '', sub: '', lead: [], sections: [], rows: {} };
+    for (const lines of chunk(md)) {
+      const first = lines[0];
+      const last = out.sections[out.sections.length - 1];
+      if (first.startsWith('# ')) out.title = plain(first.slice(2));
+      else if (first.startsWith('## ')) out.sections.push({ head: plain(first.slice(3)), nodes: [], wide: false });
+      else if (!out.sub && !last && /^\*.+\*$/.test(first)) out.sub = plain(first.slice(1, -1));
+      else {
+        const b = block(lines);
+        if (last) {
+          last.nodes.push(b);
+          if (b.tagName === 'UL' || (b.tagName === 'TABLE' && cells(lines[0]).length > 2)) last.wide = true;
+        } else out.lead.push(b);
+        // Component rows (ref, key, value, …) label the schematic.
+        if (b.tagName === 'TABLE') for (const l of lines.slice(2)) { const c = cells(l); if (/_(ohm|f)$/.test(c[1])) out.rows[c[1]] = c; }
+      }
+    }
+    return out;
+  };
+
+  // ---- Drawings for paper ----------------------------------------------------------
+  const ratio = () => K * Math.max(1, window.devicePixelRatio || 1);
+  // A drawing as an image: what prints the same everywhere (a canvas may print as vectors).
+  const image = (canvas, alt) => el('img', { src: canvas.toDataURL('image/png'), alt });
+
+  // The stage's schematic (HR.schematic) at print resolution in one ink, with each fitted
+  // component's reference and value (from the sheet's table) where the Stage panel puts them.
+  const schematic = (doc, rows) => {
+    const canvas = el('canvas');
+    const stage = doc.stage || {};
+    const describe = (key) => {
+      const v = stage[key];
+      if (v === undefined || v === null || v === '' || !rows[key]) return null;
+      const p = HR.call('parseValue', String(v), key.endsWith('_ohm') ? 'Ω' : 'F', '');
+      return { text: `${rows[key][0]} ${rows[key][2]}`, short: p.ok !== undefined && p.ok.value === 0 };
+    };
+    const anchors = HR.schematic.draw(canvas, describe, Number((doc.part || {}).stages) || 1, ratio());
+    const ctx = canvas.getContext('2d');
+    ctx.save();
+    ctx.globalCompositeOperation = 'source-in'; // the theme's ink, whatever the theme, made the paper's
+    ctx.fillStyle = INK;
+    ctx.fillRect(0, 0, canvas.width, canvas.height);
+    ctx.restore();
+    ctx.font = '13px sans-serif';
+    ctx.textAlign = 'center';
+    ctx.textBaseline = 'middle';
+    for (const a of anchors) {
+      if (!a.text || (describe(a.key) || {}).short) continue;
+      const w = ctx.measureText(a.text).width + 8;
+      ctx.fillStyle = '#fff';
+      ctx.fillRect(a.x - w / 2, a.y - 9, w, 18);
+      ctx.strokeStyle = GRID;
+      ctx.strokeRect(a.x - w / 2, a.y - 9, w, 18);
+      ctx.fillStyle = INK;
+      ctx.fillText(a.text, a.x, a.y);
+    }
+    return image(canvas, 'Schematic of the stage with its component values');
+  };
+
+  // A Bode-style plot of two curves against frequency (log), dB on the left and degrees
+  // on the right, with dashed marks [x, label] and reference levels [y, scale, label].
+  // uPlot draws it once, synchronously, at K times the size, for an image.
+  const decade = (v) => v > 0 && Math.abs(Math.log10(v) - Math.round(Math.log10(v))) < 1e-9;
+  const bode = (title, f, [a, b], marks, levels) => {
+    const px = (n) => `${n * K}px`;
+    const font = `${px(11)} sans-serif`;
+    const axis = (scale, label, side) => ({ scale, label, side, stroke: INK, font, labelFont: `bold ${font}`, size: (side === 2 ? 24 : 50) * K, gap: 3 * K,
+      labelSize: 18 * K, grid: { show: side !== 1, stroke: GRID, width: K }, ticks: { stroke: GRID, width: K, size: 4 * K },
+      values: (u, ticks) => ticks.map((v) => (scale === 'x' && !decade(v) ? '' : HR.fmt(v, '', 3))) });
+    const dashed = (u, x0, y0, x1, y1, colour, text, tx, ty, align) => {
+      const c = u.ctx;
+      c.save();
+      c.strokeStyle = c.fillStyle = colour;
+      c.lineWidth = K;
+      c.setLineDash([5 * K, 4 * K]);
+      c.beginPath(); c.moveTo(x0, y0); c.lineTo(x1, y1); c.stroke();
+      c.font = font;
+      c.textAlign = align;
+      c.fillText(text, tx, ty);
+      c.restore();
+    };
+    const draw = (u) => {
+      const { left, top, width, height } = u.bbox;
+      marks.forEach(([x, text], i) => {
+        if (!HR.known(x) || x < u.scales.x.min || x > u.scales.x.max) return;
+        const p = u.valToPos(x, 'x', true);
+        dashed(u, p, top, p, top + height, C3, text, p + 4 * K, top + (13 + 13 * i) * K, 'left');
+      });
+      for (const [y, scale, text] of levels) {
+        if (y < u.scales[scale].min || y > u.scales[scale].max) continue;
+        const p = u.valToPos(y, scale, true);
+        dashed(u, left, p, left + width, p, INK, text, left + 4 * K, p - 4 * K, 'left');
+      }
+    };
+    const series = (s, scale, colour, dash) => ({ label: s.label, scale, stroke: colour, width: 1.6 * K, dash, points: { show: false } });
+    let canvas = null;
+    new uPlot({
+      width: 340 * K, height: 185 * K, legend: { show: false }, cursor: { show: false }, select: { show: false },
+      scales: { x: { time: false, distr: 3, log: 10 }, l: {}, r: {} },
+      axes: [axis('x', 'Frequency (Hz)', 2), axis('l', `${a.label} (dB)`, 3), axis('r', `${b.label} (°)`, 1)],
+      series: [{}, series(a, 'l', C1), series(b, 'r', C2, [6 * K, 3 * K])],
+      hooks: { draw: [draw] },
+    }, [f, a.y, b.y], (u, init) => { u.batch(init); canvas = u.ctx.canvas; u.destroy(); });
+    const key = (s, colour, dash) => el('span', { class: `key${dash ? ' dash' : ''}`, style: `border-color:${colour}` }, s.label);
+    return el('figure', {}, el('figcaption', {}, title, ' ', key(a, C1), ' ', key(b, C2, true)), image(canvas, title));
+  };
+
+  const plots = (text) => {
+    const out = [];
+    const r = HR.call('responseReport', text);
+    if (r.ok) {
+      const d = r.ok.design;
+      out.push(bode('Voltage gain and phase', r.ok.f_hz, [{ label: 'Av', y: r.ok.gain_db }, { label: 'phase', y: r.ok.phase_unwrapped_deg }],
+        [[r.ok.f_design_hz, 'f_design'], [d.f_low_hz, 'f_low'], [d.f_high_hz, 'f_high']], []));
+    }
+    const l = HR.call('loopReport', text);
+    if (l.ok) {
+      const s = l.ok.summary;
+      out.push(bode('Loop gain T', l.ok.f_hz, [{ label: '|T|', y: l.ok.t_db }, { label: '∠T', y: l.ok.t_phase_deg }],
+        [[s.crossover_hz, 'crossover'], [s.phase_crossover_hz, '−180°']], [[0, 'l', '|T| = 1'], [-180, 'r', '∠T = −180°']]));
+    }
+    return out;
+  };
+
+  // ---- The sheet -------------------------------------------------------------------
+  // A long table of figures (two columns) across the page, as two tables side by side.
+  const halves = (t) => {
+    const rows = t.tagName === 'TABLE' ? [...t.tBodies[0].rows] : [];
+    if (rows.length < 7 || t.tHead.rows[0].cells.length !== 2) return t;
+    const n = Math.ceil(rows.length / 2);
+    const b = t.cloneNode(true);
+    rows.slice(n).forEach((r) => r.remove());
+    [...b.tBodies[0].rows].slice(0, n).forEach((r) => r.remove());
+    return el('div', { class: 'halves' }, t, b);
+  };
+  const today = () => {
+    const d = new Date();
+    const two = (n) => String(n).padStart(2, '0');
+    return `${d.getFullYear()}-${two(d.getMonth() + 1)}-${two(d.getDate())}`;
+  };
+
+  // The design the sheet is of: the draft, or the last good one while the draft has a
+  // bad value (said on the sheet).
+  const source = () => {
+    const text = HR.design.text();
+    const check = HR.call('checkDocument', text);
+    const good = HR.design.lastGood();
+    if (!check.error || !good) return { text, problem: check.error };
+    return { text: good, problem: check.error, older: true };
+  };
+
+  const build = ({ text, problem, older }) => {
+    if (!sheets.has(text)) sheets.set(text, HR.call('sheetText', text, true));
+    while (sheets.size > 4) sheets.delete(sheets.keys().next().value);
+    const md = sheets.get(text);
+    const url = link.text === text && link.url;
+    const linkText = url || (link.text === text ? `none: ${link.why}` : older ? 'none while the design on the page has a bad value' : 'not made yet: print again');
+    const key = `${text}\n${linkText}`;
+    if (shownFor === key) return;
+    const sheet = md.ok ? read(md.ok) : { title: '', sub: '', lead: [], sections: [], rows: {} };
+    const doc = JSON.parse(text);
+    const parts = [];
+    let flow = null;
+    let drawn = false;
+    const drawings = () => { drawn = true; return el('div', { class: 'plots' }, plots(text)); };
+    for (const s of sheet.sections) {
+      const first = !parts.length && Object.keys(sheet.rows).length;
+      const sec = el('section', {}, el('h2', {}, s.head), first ? schematic(doc, sheet.rows) : null, ...(s.wide ? s.nodes.map(halves) : s.nodes));
+      if (s.wide) {
+        if (flow && !drawn) parts.push(drawings());
+        flow = null;
+        parts.push(sec);
+      } else {
+        if (!flow) parts.push((flow = el('div', { class: 'flow' })));
+        flow.append(sec);
+      }
+    }
+    if (md.ok && !drawn) parts.push(drawings());
+    if (!node) document.body.append((node = el('div', { class: 'sheet', id: 'sheet' })));
+    const warn = (t) => el('p', { class: 'warn' }, t);
+    node.replaceChildren(...[
+      el('header', {}, el('h1', {}, sheet.title || String(doc.title || 'Design sheet')), el('p', { class: 'sub' }, sheet.sub)),
+      problem ? warn(older ? `The design on the page has a bad value (${problem.field}: ${problem.reason}); this sheet is of the last design without one.`
+        : `This design has a bad value (${problem.field}: ${problem.reason}).`) : null,
+      md.error ? warn(`The sheet could not be made: ${md.error.field}: ${md.error.reason}.`) : null,
+      ...sheet.lead, ...parts,
+      el('footer', {}, el('p', {}, `Halfrail ${HR.version} · printed ${today()}`),
+        el('p', { class: 'link' }, 'Link to this design: ', url ? el('a', { href: url }, url) : linkText))].filter(Boolean));
+    shownFor = key;
+  };
+
+  // The link of the design as it is now, kept for a sheet that cannot wait for it.
+  const refreshLink = () => {
+    const text = HR.design.text();
+    let why = '';
+    return HR.documents.link('', (said) => { why = said; }).then((url) => {
+      if (HR.design.text() === text) link = { text, url, why };
+    });
+  };
+  HR.design.onChange(HR.ui.coalesce(refreshLink));
+  new MutationObserver((m, o) => {
+    if (document.documentElement.dataset.ready) { o.disconnect(); refreshLink(); }
+  }).observe(document.documentElement, { attributes: true, attributeFilter: ['data-ready'] });
+
+  // Print sheet: the sheet's text from a background run (the page keeps answering),
+  // then the sheet, then the browser's print dialog.
+  let pending = null;
+  const print = async () => {
+    const from = source();
+    if (!sheets.has(from.text)) {
+      HR.setStatus('Preparing the design sheet (every analysis, the large-signal one too)…');
+      if (pending) pending.cancel();
+      pending = HR.background.run('sheetText', [from.text, true], { lane: 'sheet' });
+      const r = await pending.promise;
+      pending = null;
+      if (r.cancelled) return;
+      sheets.set(from.text, r.error ? { error: r.error } : { ok: r.ok });
+    }
+    if (link.text !== HR.design.text()) await refreshLink();
+    build(from);
+    await Promise.all([...node.querySelectorAll('img')].map((i) => i.decode().catch(() => {})));
+    HR.setStatus('Design sheet ready: printing it, or saving it as PDF from the print dialog.');
+    node.dataset.printed = String(Number(node.dataset.printed || 0) + 1);
+    window.print();
+  };
+  window.addEventListener('beforeprint', () => { if (document.documentElement.dataset.ready) build(source()); });
+
+  return { print };
+})();
