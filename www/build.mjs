@@ -17,6 +17,7 @@ const SCRIPTS = [
   'js/design.js',
   'js/worker.js',
   'js/plot.js',
+  'js/compare.js',
   'js/schematic.js',
   'js/panels/part.js',
   'js/panels/stage.js',

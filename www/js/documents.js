@@ -141,7 +141,7 @@ HR.documents = (() => {
     document.getElementById('docbar').replaceChildren(el('span', {}, 'Design'),
       button('Save', save), view ? null : button('Open…', () => picker.click()), button('Copy link', copyLink),
       view ? null : button('Embed…', embedDialog), view ? null : button('Load the demo', demo), button('Print sheet', () => HR.sheet.print()),
-      view ? null : picker);
+      view ? null : picker, ...HR.compare.controls(embed));
   };
 
   // Files dragged over the page: the hint shows; one dropped is opened. The page's

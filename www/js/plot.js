@@ -104,11 +104,57 @@ HR.plot = (() => {
     png.setAttribute('aria-label', `Save “${spec.title}” as PNG`);
     return {
       node: wrap,
-      setData(data) {
-        if (!chart) chart = new uPlot(opts, data, wrap);
-        else chart.setData(data);
-      },
+      // `ref`: the reference design's [xs, ...ys] for the first series, or null.
+      setData(data, ref = null) { chart = draw(chart, wrap, opts, data, ref, spec.logX); },
     };
+  };
+
+  // The reference design under a plot. uPlot takes one x array per plot, so the
+  // reference's values are put on the plot's x: as they are when the two x arrays are
+  // equal (the same analysis section, the same curve grid), else interpolated linearly
+  // (in log x on a log axis) at the plot's x — for display; the figures are the core's —
+  // with its points beyond the plot's x range added at the ends, where this design's
+  // series are empty. (uPlot's mode 2, an x per series, would lose the shared cursor
+  // read-out.) → [x, ...ys, ...the reference's ys], and whether the x was shared.
+  const merge = (data, ref, log) => {
+    const [xs, ...ys] = data;
+    const [rx, ...rys] = ref;
+    if (xs.length === rx.length && xs.every((v, i) => v === rx[i])) return [[...data, ...rys], true];
+    const before = rx.filter((v) => v < xs[0]);
+    const after = rx.filter((v) => v > xs[xs.length - 1]);
+    const x = [...before, ...xs, ...after];
+    const t = log ? Math.log : (v) => v;
+    const at = (ry) => {
+      let j = 0;
+      return x.map((v) => {
+        while (j < rx.length - 2 && rx[j + 1] < v) j += 1;
+        const [x0, x1, y0, y1] = [rx[j], rx[j + 1], ry[j], ry[j + 1]];
+        if (v === x0 || v === x1) return v === x0 ? y0 : y1;
+        if (!(v > x0 && v < x1) || !HR.known(y0) || !HR.known(y1)) return null;
+        return y0 + ((y1 - y0) * (t(v) - t(x0))) / (t(x1) - t(x0));
+      });
+    };
+    const pad = (y) => [...before.map(() => null), ...y, ...after.map(() => null)];
+    return [[x, ...ys.map(pad), ...rys.map(at)], false];
+  };
+
+  // Draws `data` with the reference `ref` (or none) in the uPlot `chart` (null: none
+  // yet) on `wrap`, made again when the reference's series come or go; → the chart.
+  // The reference's series: muted, dashed, "reference" in the legend.
+  const draw = (chart, wrap, opts, data, ref, log = false) => {
+    const n = ref ? ref.length - 1 : 0;
+    const [all, same] = ref ? merge(data, ref, log) : [data];
+    wrap.dataset.reference = ref ? (same ? 'same-x' : 'resampled') : '';
+    if (chart && chart.series.length === data.length + n) {
+      chart.setData(all);
+      return chart;
+    }
+    if (chart) chart.destroy();
+    const muted = css('--muted');
+    const twins = opts.series.slice(1, n + 1).map((s, i) => ({ ...s, label: n > 1 ? `reference ${s.label}` : 'reference',
+      stroke: muted, width: 1.5, dash: i % 2 ? [2, 3] : [6, 4], fill: undefined, points: { ...s.points, stroke: muted, fill: muted } }));
+    wrap.uplot = new uPlot({ ...opts, width: Math.max(320, wrap.clientWidth || opts.width), series: [...opts.series, ...twins] }, all, wrap);
+    return wrap.uplot;
   };
 
   // Fills a horizontal band between two y values (e.g. a linear window).
@@ -208,5 +254,5 @@ HR.plot = (() => {
     ctx.restore();
   };
 
-  return { create, band, vband, marker, label, vline, hline, css };
+  return { create, draw, band, vband, marker, label, vline, hline, css };
 })();

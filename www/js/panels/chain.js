@@ -128,13 +128,13 @@
     wrap.querySelector('figcaption').append(' ', png);
     return {
       node: wrap,
-      // `labels`: the nodes' names; `data`: [x, ...the series' values].
-      setData(labels, data) {
+      // `labels`: the nodes' names; `data`: [x, ...the series' values]; `ref`: the
+      // reference's, or null.
+      setData(labels, data, ref = null) {
         names = labels;
         wrap.dataset.series = SERIES.map(([label]) => label).join('|');
         wrap.dataset.nodes = String(labels.length);
-        if (!chart) chart = new uPlot(opts, data, wrap);
-        else chart.setData(data);
+        chart = HR.plot.draw(chart, wrap, opts, data, ref);
       },
     };
   };
@@ -147,7 +147,7 @@
       let rendered = false;
       let due = false;          // changed while hidden
       const stageCache = new Map(); // stage document text → {ok} | {error}
-      let stageRun = null;      // {key, handle} of the stageBlock run in flight
+      const runs = {};          // lane → {key, handle} of the stageBlock run in flight there
       const visible = () => !container.hidden && !container.closest('[hidden]');
       // A read-only view (an embedded one) shows the chain without its editing buttons.
       const readOnly = () => Boolean(HR.design.readOnly && HR.design.readOnly());
@@ -307,7 +307,7 @@
       const showStage = () => {
         const key = stageDocOf(JSON.parse(HR.design.text()));
         const got = stageCache.get(key);
-        const running = stageRun && stageRun.key === key;
+        const running = (runs['chain-stage'] || {}).key === key;
         rows.forEach((r) => {
           if (!Object.keys(r.stage).length) return;
           const f = got && got.ok;
@@ -368,6 +368,11 @@
         rendered = true;
         csv.disabled = !r.stages.length;
         for (const [k, , show] of TOTALS) totals[k].textContent = show(r[k]);
+        // The reference's budget (its stage figures computed in their own lane).
+        const refText = HR.compare.text();
+        const ref = refText && budget(refText, 'chain-reference').ok;
+        HR.compare.figures(totals, (x) => Object.fromEntries(TOTALS.map(([k, , show]) => [k, show(x[k])])),
+          Object.fromEntries(TOTALS.map(([k]) => [k, (x) => [[x[k], { noise_temp_k: 'K', dc_w: 'W' }[k] || 'dB']]])), r, ref);
         // Which block sets the noise and which the distortion: the largest shares.
         const top = (key) => r.stages.reduce((best, s) => (known(s[key]) && s[key] > 0 && (!best || s[key] > best[key]) ? s : best), null);
         const [noisy, distorting] = [top('noise_share'), top('distortion_share')];
@@ -403,12 +408,12 @@
         }
 
         // Node 0 is the chain's input (the signal and kT0·B); node n is after block n.
-        const labels = ['input', ...r.stages.map((s) => s.name)];
-        plot.setData(labels, [labels.map((_, i) => i),
-          [r.input_dbm, ...r.stages.map((s) => s.signal_dbm)],
-          [r.input_noise_dbm, ...r.stages.map((s) => s.noise_dbm)],
-          [null, ...r.stages.map((s) => s.op1db_dbm)],
-          [null, ...r.stages.map((s) => s.oip3_dbm)]]);
+        const levels = (x) => [[0, ...x.stages.map((_, i) => i + 1)],
+          [x.input_dbm, ...x.stages.map((s) => s.signal_dbm)],
+          [x.input_noise_dbm, ...x.stages.map((s) => s.noise_dbm)],
+          [null, ...x.stages.map((s) => s.op1db_dbm)],
+          [null, ...x.stages.map((s) => s.oip3_dbm)]];
+        plot.setData(['input', ...r.stages.map((s) => s.name)], levels(r), ref && levels(ref));
         plotNote.textContent = 'Node 0 is the chain’s input, where the noise is kT₀B. The compression and intercept levels start at the first block that has them (pads and filters distort nothing); where the signal comes within a few dB of the compression level, that node has little headroom.';
         syncRows();
       };
@@ -440,14 +445,15 @@
       };
 
       // The stage block's figures for the stage document `key`, in the background.
-      const startStage = (key) => {
-        if (stageRun && stageRun.key === key) return;
-        const handle = HR.background.run('stageBlock', [key], { lane: 'chain-stage' });
+      // In lane 'chain-stage', or 'chain-reference' for the reference's.
+      const startStage = (key, lane = 'chain-stage') => {
+        if (Object.values(runs).some((x) => x && x.key === key)) return;
+        const handle = HR.background.run('stageBlock', [key], { lane });
         const mine = { key, handle };
-        stageRun = mine;
+        runs[lane] = mine;
         handle.promise.then((r) => {
-          if (stageRun !== mine) return;
-          stageRun = null;
+          if (runs[lane] !== mine) return;
+          runs[lane] = null;
           if (r.cancelled) return;
           stageCache.set(key, r.error ? { error: r.error } : { ok: r.ok });
           if (stageCache.size > 16) stageCache.delete(stageCache.keys().next().value);
@@ -457,7 +463,7 @@
 
       // The budget of the document `text`: {ok}, {error}, or {pending} while the
       // stage's own figures compute.
-      const budget = (text) => {
+      const budget = (text, lane) => {
         const check = HR.call('checkDocument', text);
         if (check.error) return check;
         const doc = JSON.parse(text);
@@ -466,7 +472,7 @@
         if (list.some((b) => b && b.kind === 'stage')) {
           const key = stageDocOf(doc);
           const got = stageCache.get(key);
-          if (!got) { startStage(key); return { pending: true }; }
+          if (!got) { startStage(key, lane); return { pending: true }; }
           if (got.error) return { error: got.error };
           stageJson = JSON.stringify(got.ok);
         }
@@ -504,6 +510,7 @@
         redo.disabled = !HR.design.canRedo();
       };
       HR.design.onChange(() => { syncInputs(); schedule(); });
+      HR.compare.onChange(schedule);
       new MutationObserver(() => { if (visible() && due) schedule(); }).observe(container, { attributes: true, attributeFilter: ['hidden'] });
 
       container.append(el('h1', {}, 'Chain'),

@@ -85,6 +85,15 @@
     };
   };
 
+  // What the reference comparison subtracts: [value, how] (HR.compare.figures).
+  const DIFFS = {
+    t_mid: ({ summary: s }) => [[s.t_mid_db, 'dB'], [s.t_mid_phase_deg, '°']], crossover: ({ summary: s }) => [[s.crossover_hz, '×']],
+    pm: ({ summary: s }) => [[s.phase_margin_deg, '°']], gm: ({ summary: s }) => [[s.gain_margin_db, 'dB']],
+    peaking: ({ summary: s }) => [[s.peaking_db, 'dB']], pair: ({ summary: s }) => [[s.least_damped && s.least_damped.f_n_hz, '×']],
+    overshoot: ({ summary: s }) => [[s.overshoot_pct, '%']], settling: ({ summary: s }) => [[s.settling_s, '×']],
+    mu_min: ({ summary: s }) => [[s.mu_min, '']],
+  };
+
   // ---- The compensation helper -------------------------------------------------
 
   const KNOBS = { c_fb_f: ['F', 'C', 'C fb'], r_out_ohm: ['Ω', 'R', 'R out'], r_fb_ohm: ['Ω', 'R', 'R fb'] };
@@ -216,6 +225,7 @@
       node: wrap,
       setData(d) {
         data = d;
+        wrap.dataset.reference = d.ref ? String(d.ref.length) : '';
         view = spec.home(d);
         draw();
         idle();
@@ -300,7 +310,7 @@
     idle: () => 'Hover the curve for f, |T| and ∠T.',
     home: (d) => {
       let [x0, x1, y0, y1] = [-1.2, 1.2, -1.2, 1.2];
-      for (const p of d.points) {
+      for (const p of [...d.points, ...(d.ref || [])]) {
         if (!p) continue;
         x0 = Math.min(x0, p[0]); x1 = Math.max(x1, p[0]);
         y0 = Math.min(y0, p[1], -p[1]); y1 = Math.max(y1, p[1], -p[1]);
@@ -337,14 +347,14 @@
       ctx.stroke();
       ctx.restore();
       // Negative frequencies (the mirror image), then the sweep itself.
-      const path = (sign, colour, dash, width) => {
+      const path = (sign, colour, dash, width, points = d.points) => {
         ctx.save();
         ctx.strokeStyle = colour;
         ctx.lineWidth = width;
         ctx.setLineDash(dash);
         ctx.beginPath();
         let pen = false;
-        for (const p of d.points) {
+        for (const p of points) {
           if (!p) { pen = false; continue; }
           const [x, y] = [P.x(p[0]), P.y(sign * p[1])];
           if (pen) ctx.lineTo(x, y); else ctx.moveTo(x, y);
@@ -353,6 +363,11 @@
         ctx.stroke();
         ctx.restore();
       };
+      // The reference's T (positive frequencies), under this design's.
+      if (d.ref) {
+        path(1, muted, [6, 4], 1.5, d.ref);
+        label(ctx, '- - reference', P.box.l + 6, P.box.t + 16, muted);
+      }
       path(-1, css('--plot-3'), [5, 4], 1.5);
       path(1, css('--plot-1'), [], 2);
       // Arrowheads where the frequency passes each decade: the way the sweep runs.
@@ -480,6 +495,9 @@
       ctx.moveTo(P.box.l, P.y(0)); ctx.lineTo(P.box.l + P.box.w, P.y(0));
       ctx.stroke();
       ctx.restore();
+      // The reference's poles, small and muted, under this design's.
+      for (const [re, im] of d.ref || []) cross(ctx, P.x(sc.fwd(re)), P.y(sc.fwd(im)), 4, css('--muted'), 1.5);
+      if (d.ref) label(ctx, 'small ×: reference', P.box.l + 6, P.box.t + 16, css('--muted'));
       for (const [re, im] of d.poles) {
         cross(ctx, P.x(sc.fwd(re)), P.y(sc.fwd(im)), 5, re > 0 ? css('--bad') : css('--plot-1'), 2.5);
       }
@@ -739,8 +757,9 @@
         }));
       };
 
-      const render = (r) => {
+      const render = HR.compare.rerender((r) => {
         last = r;
+        const ref = HR.compare.report('loopReport');
         const s = r.summary;
         const v = verdictOf(r);
         verdictBox.dataset.kind = s.verdict.kind;
@@ -753,13 +772,15 @@
           : '';
         const texts = figureTexts(r);
         for (const [k] of FIGURES) cells[k].textContent = texts[k];
+        HR.compare.figures(cells, figureTexts, DIFFS, r, ref);
         renderHelper(r);
 
-        magPlot.setData([r.f_hz, r.t_db]);
-        phasePlot.setData([r.f_hz, r.t_phase_deg]);
-        state.nyquist.setData({ r, points: nyquistPoints(r) });
-        const scale = poleScale(s.poles_hz);
-        polePlot.setData({ r, poles: s.poles_hz, scale, ticks: poleTicks(scale) });
+        magPlot.setData([r.f_hz, r.t_db], ref && [ref.f_hz, ref.t_db]);
+        phasePlot.setData([r.f_hz, r.t_phase_deg], ref && [ref.f_hz, ref.t_phase_deg]);
+        state.nyquist.setData({ r, points: nyquistPoints(r), ref: ref && nyquistPoints(ref) });
+        const refPoles = ref && ref.summary.poles_hz;
+        const scale = poleScale([...s.poles_hz, ...(refPoles || [])]);
+        polePlot.setData({ r, poles: s.poles_hz, ref: refPoles, scale, ticks: poleTicks(scale) });
         poleNote.textContent = `The closed loop’s natural frequencies s/2π (×). In the shaded right half-plane they grow; the further left, the faster they decay. Both axes are logarithmic either side of 0, linear within ±${fmt(scale.L, 'Hz', 1)}.`;
         const n = Math.min(r.step_t_s.length, r.step_v.length);
         // A growing step would squash the target out of sight: the plot stops at three
@@ -769,9 +790,10 @@
         stepNote.textContent = s.stable
           ? 'Output of the closed loop for a 1 V step of the source EMF (small signal, linear model). Dashed: the level it should settle at; shaded: ±2 % of it.'
           : 'Output for a 1 V step of the source EMF: it grows without settling and leaves the plot, which stops at three times the target level (dashed). The model is linear; a real stage swings into its rails.';
-        stepPlot.setData([r.step_t_s.slice(0, n), r.step_v.slice(0, n)]);
-        muPlot.setData([r.f_hz, r.mu]);
-      };
+        const m = ref && Math.min(ref.step_t_s.length, ref.step_v.length);
+        stepPlot.setData([r.step_t_s.slice(0, n), r.step_v.slice(0, n)], ref && [ref.step_t_s.slice(0, m), ref.step_v.slice(0, m)]);
+        muPlot.setData([r.f_hz, r.mu], ref && [ref.f_hz, ref.mu]);
+      });
 
       container.append(el('h1', {}, 'Loop'),
         el('p', { class: 'lede' }, 'Whether the stage’s feedback loop settles, rings or oscillates: the loop gain with its crossover and margins, the Nyquist plot, the closed-loop poles, the step response and μ, with one-component changes that buy the phase margin.'),

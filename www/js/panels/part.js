@@ -158,8 +158,10 @@
     });
     const render = (r) => {
       last = r;
-      bare.setData([r.bare.points.map((p) => p.vin_v), r.bare.points.map((p) => p.vout_v)]);
-      closed.setData([r.closed.map((p) => p.vin_v), r.closed.map((p) => p.vout_v)]);
+      const ref = HR.compare.report('partReport', POINTS);
+      const curve = (points) => [points.map((p) => p.vin_v), points.map((p) => p.vout_v)];
+      bare.setData(curve(r.bare.points), ref && curve(ref.bare.points));
+      closed.setData(curve(r.closed), ref && curve(ref.closed));
     };
     return { node, render };
   };
@@ -244,7 +246,7 @@
         el('div', { class: 'cards' }, part.node, bias.node, curves.node, fit.node));
       HR.design.follow(container, {
         compute: (text) => { part.refresh(); return HR.call('partReport', text, POINTS); },
-        render: (r) => { bias.render(r); curves.render(r); },
+        render: HR.compare.rerender((r) => { bias.render(r); curves.render(r); }),
         report: (error) => routeError(error, problem),
         stale: (isStale, rendered) => {
           bias.output.classList.toggle('stale', isStale);

@@ -59,23 +59,39 @@
         [HR.plot.create(row, { title: 'Input-referred noise of the stage', file: 'halfrail-input-noise', x: freq, y: { label: 'Density', unit: 'V/√Hz' }, logX: true, decorate: marks,
           series: [{ label: 'en', unit: 'V/√Hz' }] }), (r) => [r.noise_in_v_per_rthz]],
       ];
-      const render = (r) => {
-        last = { ...r, f_design: r.f_design_hz };
+      const texts = (r) => {
         const d = r.design;
         const fmt = HR.fmt;
-        cells.gain.textContent = `${fmt(d.gain_db, 'dB')} (${fmt(d.phase_deg, '', 4)}°)`;
-        cells.ideal.textContent = d.ideal_gain_db === null ? '—' : fmt(d.ideal_gain_db, 'dB');
-        cells.gt.textContent = d.power_gain_db === null ? 'needs source and load resistance' : fmt(d.power_gain_db, 'dB');
-        cells.band.textContent = `${d.f_low_hz === null ? 'below the sweep' : fmt(d.f_low_hz, 'Hz', 3)} … ${d.f_high_hz === null ? 'above the sweep' : fmt(d.f_high_hz, 'Hz', 3)}`;
-        cells.zin.textContent = d.zin_re_ohm === null ? '—' : `${fmt(d.zin_re_ohm, 'Ω', 4)} ${d.zin_im_ohm < 0 ? '−' : '+'} j${fmt(Math.abs(d.zin_im_ohm), 'Ω', 3)}`;
-        cells.rl.textContent = r.return_loss_db === null ? '—' : fmt(r.return_loss_db, 'dB');
-        cells.nf.textContent = d.nf_db === null ? 'needs a source resistance' : fmt(d.nf_db, 'dB');
-        cells.en.textContent = `${fmt(d.noise_in_v_per_rthz, 'V', 3)}/√Hz`;
-        cells.band_noise.textContent = d.integrated_noise_v === null ? 'set analysis.noise_f_low_hz and noise_f_high_hz' : fmt(d.integrated_noise_v, 'Vrms', 3);
-        cells.mu.textContent = `${wasm_bindgen.formatFixed(d.mu, 3)} ${d.mu > 1 ? '(unconditionally stable)' : '(some source or load can make it oscillate)'}`;
-        fillRows(shares.tbody, r.noise_shares.slice(0, 6).map((s) => [s.name, HR.fmt(100 * s.share, '%')]));
-        for (const [plot, ys] of plots) plot.setData([r.f_hz, ...ys(r)]);
+        return {
+          gain: `${fmt(d.gain_db, 'dB')} (${fmt(d.phase_deg, '', 4)}°)`,
+          ideal: d.ideal_gain_db === null ? '—' : fmt(d.ideal_gain_db, 'dB'),
+          gt: d.power_gain_db === null ? 'needs source and load resistance' : fmt(d.power_gain_db, 'dB'),
+          band: `${d.f_low_hz === null ? 'below the sweep' : fmt(d.f_low_hz, 'Hz', 3)} … ${d.f_high_hz === null ? 'above the sweep' : fmt(d.f_high_hz, 'Hz', 3)}`,
+          zin: d.zin_re_ohm === null ? '—' : `${fmt(d.zin_re_ohm, 'Ω', 4)} ${d.zin_im_ohm < 0 ? '−' : '+'} j${fmt(Math.abs(d.zin_im_ohm), 'Ω', 3)}`,
+          rl: r.return_loss_db === null ? '—' : fmt(r.return_loss_db, 'dB'),
+          nf: d.nf_db === null ? 'needs a source resistance' : fmt(d.nf_db, 'dB'),
+          en: `${fmt(d.noise_in_v_per_rthz, 'V', 3)}/√Hz`,
+          band_noise: d.integrated_noise_v === null ? 'set analysis.noise_f_low_hz and noise_f_high_hz' : fmt(d.integrated_noise_v, 'Vrms', 3),
+          mu: `${wasm_bindgen.formatFixed(d.mu, 3)} ${d.mu > 1 ? '(unconditionally stable)' : '(some source or load can make it oscillate)'}`,
+        };
       };
+      // What the reference comparison subtracts: [value, how] (HR.compare.figures).
+      const DIFFS = {
+        gain: ({ design: d }) => [[d.gain_db, 'dB'], [d.phase_deg, '°']], ideal: ({ design: d }) => [[d.ideal_gain_db, 'dB']],
+        gt: ({ design: d }) => [[d.power_gain_db, 'dB']], band: ({ design: d }) => [[d.f_low_hz, '×'], [d.f_high_hz, '×']],
+        zin: ({ design: d }) => [[d.zin_re_ohm, 'Ω'], [d.zin_im_ohm, 'Ω']], rl: (r) => [[r.return_loss_db, 'dB']],
+        nf: ({ design: d }) => [[d.nf_db, 'dB']], en: ({ design: d }) => [[d.noise_in_v_per_rthz, '×']],
+        band_noise: ({ design: d }) => [[d.integrated_noise_v, '×']], mu: ({ design: d }) => [[d.mu, '']],
+      };
+      const render = HR.compare.rerender((r) => {
+        last = { ...r, f_design: r.f_design_hz };
+        const t = texts(r);
+        for (const [k] of FIGURES) cells[k].textContent = t[k];
+        const ref = HR.compare.report('responseReport');
+        HR.compare.figures(cells, texts, DIFFS, r, ref);
+        fillRows(shares.tbody, r.noise_shares.slice(0, 6).map((s) => [s.name, HR.fmt(100 * s.share, '%')]));
+        for (const [plot, ys] of plots) plot.setData([r.f_hz, ...ys(r)], ref && [ref.f_hz, ...ys(ref)]);
+      });
       container.append(el('h1', {}, 'Response'),
         el('p', { class: 'lede' }, 'The stage’s small-signal response over the analysis range of the design, with the finite, falling open-loop gain of the part included.'),
         el('div', { class: 'cards' }, figures, plotsCard));

@@ -127,7 +127,8 @@
       const yieldText = el('p', { class: 'intro' });
       const stats = table('Each figure at the nominal design, over the trials, and at the worst-case corners (every part at the edge of its tolerance that lowers, then raises, the figure)',
         ['Figure', 'Nominal', 'Mean', 'Std dev', '1 % … 99 % of trials', 'Worst-case corners']);
-      const figuresCard = card('Yield and figures', yieldHead, yieldText, el('div', { class: 'scroll' }, stats.node));
+      const reference = HR.compare.slow('spreadReport', () => render.again());
+      const figuresCard = card('Yield and figures', reference.node, yieldHead, yieldText, el('div', { class: 'scroll' }, stats.node));
       figuresCard.classList.add('wide');
 
       // ---- Which part to buy tighter -----------------------------------------------
@@ -181,7 +182,19 @@
         return [counts.map((_, i) => min + (i - 0.5) * w), counts];
       };
 
-      const render = (r, { ms }) => {
+      // The reference's yield and each figure's mean (in the Mean column), when it is at hand.
+      const yieldOf = (s) => (known(s.yield) ? `${fixed(100 * s.yield, 1)} %` : 'none');
+      const compare = (r, text) => {
+        reference.offer(text, r);
+        const ref = reference.result();
+        const means = Object.fromEntries(FIGURES.map(([k], i) => [k, stats.tbody.rows[i].cells[2]]));
+        const mean = (k, unit) => (x) => [[x.summary[k] && x.summary[k].mean, unit === 'Hz' ? '×' : unit]];
+        HR.compare.figures({ yield: yieldHead, ...means },
+          (x) => ({ yield: yieldOf(x.summary), ...Object.fromEntries(FIGURES.map(([k, , unit]) => [k, x.summary[k] ? show(x.summary[k].mean, unit) : '—'])) }),
+          { yield: (x) => [[x.summary.yield && 100 * x.summary.yield, '%']], ...Object.fromEntries(FIGURES.map(([k, , unit]) => [k, mean(k, unit)])) }, r, ref);
+      };
+
+      const render = HR.compare.rerender((r, { ms, text }) => {
         last = r;
         lim = limits();
         const s = r.summary;
@@ -191,7 +204,7 @@
         const misses = named.filter(([k]) => { const v = s.nominal[k]; const [lo, hi] = lim[k]; return known(v) && ((known(lo) && v < lo) || (known(hi) && v > hi)); });
         const unsolved = `${s.unsolved ? ` ${s.unsolved} trials could not be solved and count as failing.` : ''}${misses.length
           ? ` The nominal design itself misses the ${misses.map(([, name]) => name.toLowerCase()).join(' and the ')} limit: design the stage to the target first (Stage panel).` : ''}`;
-        yieldHead.textContent = known(s.yield) ? `Yield ${fixed(100 * s.yield, 1)} %` : 'No yield: the target sets no limits';
+        yieldHead.textContent = known(s.yield) ? `Yield ${yieldOf(s)}` : 'No yield: the target sets no limits';
         yieldText.textContent = known(s.yield)
           ? `${Math.round(s.yield * s.trials)} of ${s.trials} trials meet the target’s limits: ${set.join(', ')}.${unsolved}`
           : `Give the target a gain tolerance, a low corner or a limit on the supply current, noise figure or phase margin (Stage panel, Design to a target) to count the trials that meet them.${unsolved}`;
@@ -211,7 +224,8 @@
         }
         drawBars();
         timing.textContent = `${s.trials} trials computed in ${fixed(ms / 1000, 2)} s in two background workers.`;
-      };
+        compare(r, text);
+      });
 
       container.append(el('h1', {}, 'Spread'),
         el('p', { class: 'lede' }, 'What the parts’ tolerances do to the stage: many random builds (Monte Carlo), how many meet the target, how far each figure spreads and which part moves it most.'),

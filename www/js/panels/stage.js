@@ -225,18 +225,33 @@
         return el('div', {}, el('dt', {}, text), cells[k]);
       }));
       const stale = el('p', { class: 'stale-note', hidden: true }, 'Showing the last valid result.');
-      const render = (r, b) => {
+      const texts = ({ r, b }) => {
         const d = r.design;
         const fmt = HR.fmt;
-        cells.gain.textContent = `${fmt(d.gain_db, 'dB')}${d.ideal_gain_db === null ? '' : ` (ideal ${fmt(d.ideal_gain_db, 'dB')})`}`;
-        cells.gt.textContent = d.power_gain_db === null ? 'needs source and load resistance' : fmt(d.power_gain_db, 'dB');
-        cells.band.textContent = `${d.f_low_hz === null ? 'below the sweep' : fmt(d.f_low_hz, 'Hz')} … ${d.f_high_hz === null ? 'above the sweep' : fmt(d.f_high_hz, 'Hz')}`;
-        cells.zin.textContent = d.zin_re_ohm === null ? '—' : `${fmt(d.zin_re_ohm, 'Ω', 4)} ${d.zin_im_ohm < 0 ? '−' : '+'} j${fmt(Math.abs(d.zin_im_ohm), 'Ω', 3)}`;
-        cells.rl.textContent = r.return_loss_db === null ? '—' : fmt(r.return_loss_db, 'dB');
-        cells.nf.textContent = d.nf_db === null ? 'needs a source resistance' : fmt(d.nf_db, 'dB');
-        cells.iq.textContent = fmt(b.iq_a, 'A');
-        cells.diss.textContent = fmt(b.dissipation_w, 'W');
+        return {
+          gain: `${fmt(d.gain_db, 'dB')}${d.ideal_gain_db === null ? '' : ` (ideal ${fmt(d.ideal_gain_db, 'dB')})`}`,
+          gt: d.power_gain_db === null ? 'needs source and load resistance' : fmt(d.power_gain_db, 'dB'),
+          band: `${d.f_low_hz === null ? 'below the sweep' : fmt(d.f_low_hz, 'Hz')} … ${d.f_high_hz === null ? 'above the sweep' : fmt(d.f_high_hz, 'Hz')}`,
+          zin: d.zin_re_ohm === null ? '—' : `${fmt(d.zin_re_ohm, 'Ω', 4)} ${d.zin_im_ohm < 0 ? '−' : '+'} j${fmt(Math.abs(d.zin_im_ohm), 'Ω', 3)}`,
+          rl: r.return_loss_db === null ? '—' : fmt(r.return_loss_db, 'dB'),
+          nf: d.nf_db === null ? 'needs a source resistance' : fmt(d.nf_db, 'dB'),
+          iq: fmt(b.iq_a, 'A'),
+          diss: fmt(b.dissipation_w, 'W'),
+        };
       };
+      // What the reference comparison subtracts: [value, how] (HR.compare.figures).
+      const DIFFS = {
+        gain: ({ r }) => [[r.design.gain_db, 'dB']], gt: ({ r }) => [[r.design.power_gain_db, 'dB']],
+        band: ({ r }) => [[r.design.f_low_hz, '×'], [r.design.f_high_hz, '×']],
+        zin: ({ r }) => [[r.design.zin_re_ohm, 'Ω'], [r.design.zin_im_ohm, 'Ω']], rl: ({ r }) => [[r.return_loss_db, 'dB']],
+        nf: ({ r }) => [[r.design.nf_db, 'dB']], iq: ({ b }) => [[b.iq_a, 'A']], diss: ({ b }) => [[b.dissipation_w, 'W']],
+      };
+      const render = HR.compare.rerender((now) => {
+        const t = texts(now);
+        for (const [k] of FIGURES) cells[k].textContent = t[k];
+        const [r, b] = [HR.compare.report('responseReport'), HR.compare.report('biasOf')];
+        HR.compare.figures(cells, texts, DIFFS, now, r && b && { r, b });
+      });
 
       const target = designCard(container);
       container.append(el('h1', {}, 'Stage'),
@@ -260,7 +275,7 @@
           const b = r.ok ? HR.call('biasOf', text) : r;
           return r.error || b.error ? { error: r.error || b.error } : { ok: { r: r.ok, b: b.ok } };
         },
-        render: ({ r, b }) => render(r, b),
+        render,
         report: (error) => { refresh(error); target.route(error); problem.textContent = error ? error.message || error.reason : ''; },
         stale: (isStale, rendered) => {
           readout.classList.toggle('stale', isStale);

@@ -28,6 +28,11 @@
     ['iip3', 'Input intercept (IIP3)'], ['slope', 'IM3 slope (two tones)'], ['swing', 'Last inverter’s output swing'],
   ];
 
+  // What the reference comparison subtracts: [value, how] (HR.compare.figures).
+  const DIFFS = Object.fromEntries([['hd2', 'hd2_dbc', 'dB'], ['hd3', 'hd3_dbc', 'dB'], ['thd', 'thd_pct', '×'], ['op1db', 'op1db_dbm', 'dB'],
+    ['ip1db', 'ip1db_dbm', 'dB'], ['psat', 'psat_dbm', 'dB'], ['gt', 'gt_small_db', 'dB'], ['oip3', 'oip3_dbm', 'dB'],
+    ['iip3', 'iip3_dbm', 'dB'], ['slope', 'im3_slope', '']].map(([k, key, how]) => [k, (r) => [[r.summary[key], how]]]));
+
   // "series …" beside a figure, when the power series gives one.
   const series = (v, format) => (known(v) ? `series ${format(v)}` : null);
 
@@ -129,15 +134,18 @@
 
       // ---- Figures ------------------------------------------------------------------
       const cells = {};
+      const dds = {};
       const readout = el('dl', { class: 'readout swing-figures' }, FIGURES.map(([k, text]) => {
         cells[k] = { value: el('span', { class: 'value' }, '—'), aside: el('span', { class: 'aside' }) };
-        return el('div', {}, el('dt', {}, text), el('dd', { 'data-key': k }, cells[k].value, cells[k].aside));
+        dds[k] = el('dd', { 'data-key': k }, cells[k].value, cells[k].aside);
+        return el('div', {}, el('dt', {}, text), dds[k]);
       }));
+      const reference = HR.compare.slow('swingReport', () => render.again());
       const shape = el('p', { class: 'swing-shape', hidden: true });
       const slopeWarn = el('p', { class: 'warning', hidden: true });
       const overdriven = el('p', { class: 'warning', hidden: true });
       const estimate = el('p', { class: 'plot-note' });
-      const figuresCard = card('Large-signal figures', readout, overdriven, shape, slopeWarn, estimate);
+      const figuresCard = card('Large-signal figures', reference.node, readout, overdriven, shape, slopeWarn, estimate);
       figuresCard.classList.add('wide');
 
       // ---- Plots --------------------------------------------------------------------
@@ -266,7 +274,7 @@
           x.map((v) => (im3.has(v) && known(im3.get(v)) ? im3.get(v) : null))];
       };
 
-      const render = (r, { ms, text }) => {
+      const render = HR.compare.rerender((r, { ms, text }) => {
         last = r;
         shownText = text;
         csv.disabled = false;
@@ -276,6 +284,8 @@
           cells[k].value.textContent = texts[k][0];
           cells[k].aside.textContent = texts[k][1] || '';
         }
+        reference.offer(text, r);
+        HR.compare.figures(dds, (x) => Object.fromEntries(Object.entries(figureTexts(x)).map(([k, [v]]) => [k, v])), DIFFS, r, reference.result());
         const shapeText = shapeNote(s);
         shape.textContent = shapeText;
         shape.hidden = !shapeText;
@@ -303,7 +313,7 @@
         poutNote.textContent = hasSweep
           ? `Solid: the output power of one tone against the available input power. Dashed: the fundamental’s 1:1 line and the third-order products’ 3:1 line through the two-tone measurements (dots, per tone), extrapolated until they meet at OIP3${s.im3_slope_ok ? '' : ' (the measured slope was not 3: see the figures)'}. Ring: the 1 dB compression point.`
           : 'Output power against input power needs a load resistor (stage.load_ohm): without one there is no output power to sweep or intercept to find.';
-      };
+      });
 
       container.append(el('h1', {}, 'Swing'),
         el('p', { class: 'lede' }, 'How big a signal the stage takes at f_design: the same circuit simulated in time, from the design’s input level up into compression, with its harmonics, its 1 dB compression point and its third-order intercept.'),
