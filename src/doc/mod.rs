@@ -451,7 +451,13 @@ fn check_version(text: &str) -> Result<()> {
                 format!("this document is format version {n}, newer than this build reads ({FORMAT_VERSION}); open it with a newer Halfrail"),
             ))
         }
-        Some(other) => Err(FieldError::new("halfrail", format!("must be {FORMAT_VERSION}, got {other}"))),
+        Some(other) => {
+            let mut got = other.to_string();
+            if got.chars().count() > 40 {
+                got = format!("{}…", got.chars().take(39).collect::<String>());
+            }
+            Err(FieldError::new("halfrail", format!("must be {FORMAT_VERSION}, got {got}")))
+        }
     }
 }
 
