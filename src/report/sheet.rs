@@ -207,7 +207,7 @@ fn marking(c: Component, value: Option<f64>) -> String {
         None if c == Component::SourceOhm => "none (ideal source)".into(),
         None if absent_is_short(c) => "short (not fitted)".into(),
         None => "open (not fitted)".into(),
-        Some(v) if v == 0.0 => "0 (short)".into(),
+        Some(0.0) => "0 (short)".into(),
         Some(v) => match c.role() {
             Role::Resistor => format_rkm(v, RkmKind::Resistance).unwrap_or_else(|| eng(v, Unit::Ohm)),
             Role::Capacitor => eng(v, Unit::Farad),
