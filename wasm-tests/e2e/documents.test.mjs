@@ -293,6 +293,7 @@ test('a design too long for a link says so; without a clipboard the link is show
   // Incompressible notes make the link longer than 8000 characters.
   await page.evaluate(() => HR.design.replace('notes', [...crypto.getRandomValues(new Uint8Array(8000))].map((b) => b.toString(36)).join(''), 'notes'));
   await bar(page, 'Copy link').click();
+  await page.waitForFunction(() => /too long/.test(document.getElementById('engine-status').textContent)); // said once the link is made
   assert.match(await status(page), /^This design is too long for a link \(\d+ characters; at most 8000\): save it as a file instead\.$/);
   assert.equal(await page.getByRole('dialog').count(), 0);
   await clean(page, seen);
@@ -423,8 +424,8 @@ test('the read-only view shows the design and its figures with nothing to edit',
   assert.equal(await frame.locator('#engine-status').textContent(), 'Showing the design in the link, read only.');
   await frame.locator('#panel-response[data-computed]').waitFor();
   assert.ok(await frame.locator('#panel-response canvas').count() > 0, 'the plots are drawn');
-  // Only Save and Copy link in the Design bar.
-  assert.deepEqual(await frame.locator('#docbar button').allTextContents(), ['Save', 'Copy link']);
+  // Only Save, Copy link and Print sheet in the Design bar.
+  assert.deepEqual(await frame.locator('#docbar button').allTextContents(), ['Save', 'Copy link', 'Print sheet']);
   // Every panel, once shown: no input takes typing, no edit control shows.
   for (const id of ['part', 'stage', 'loop', 'swing', 'spread', 'chain', 'bench', 'response']) {
     await frame.locator(`#rail a[data-panel="${id}"]`).click();

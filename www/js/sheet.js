@@ -194,7 +194,7 @@ HR.sheet = (() => {
     const md = sheets.get(text);
     const url = link.text === text && link.url;
     const linkText = url || (link.text === text ? `none: ${link.why}` : older ? 'none while the design on the page has a bad value' : 'not made yet: print again');
-    const key = `${text}\n${linkText}`;
+    const key = JSON.stringify([text, linkText, problem || null]);
     if (shownFor === key) return;
     const sheet = md.ok ? read(md.ok) : { title: '', sub: '', lead: [], sections: [], rows: {} };
     const doc = JSON.parse(text);
@@ -236,7 +236,8 @@ HR.sheet = (() => {
       if (HR.design.text() === text) link = { text, url, why };
     });
   };
-  HR.design.onChange(HR.ui.coalesce(refreshLink));
+  let linkTimer = null; // a pause after the last edit, as the panels' background runs wait
+  HR.design.onChange(() => { clearTimeout(linkTimer); linkTimer = setTimeout(refreshLink, 300); });
   new MutationObserver((m, o) => {
     if (document.documentElement.dataset.ready) { o.disconnect(); refreshLink(); }
   }).observe(document.documentElement, { attributes: true, attributeFilter: ['data-ready'] });
