@@ -41,7 +41,7 @@ HR.sheet = (() => {
     for (const lines of chunk(md)) {
       const first = lines[0];
       const last = out.sections[out.sections.length - 1];
-      if (first.startsWith('# ')) out.title = plain(first.slice(2));
+      if (!out.title && first.startsWith('# ')) out.title = plain(first.slice(2));
       else if (first.startsWith('## ')) out.sections.push({ head: plain(first.slice(3)), nodes: [], wide: false });
       else if (!out.sub && !last && /^\*.+\*$/.test(first)) out.sub = plain(first.slice(1, -1));
       else {
