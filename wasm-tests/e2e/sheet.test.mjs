@@ -7,29 +7,14 @@
 // word for word; the schematic and the two plots are images; no network request.
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
-import { getDocument, OPS } from 'pdfjs-dist/legacy/build/pdf.mjs';
 import { launch, openPanel, clearStorage } from './browser.mjs';
+import { readPdf, squash } from './pdf.mjs';
 
 let browser;
 before(async () => { browser = await launch(); });
 after(async () => { await browser.close(); });
 beforeEach(() => clearStorage(browser.context));
 
-// The PDF's pages: their text (NFKC, whitespace made single spaces) and image count.
-async function readPdf(bytes) {
-  const doc = await getDocument({ data: new Uint8Array(bytes), isEvalSupported: false }).promise;
-  const pages = [];
-  for (let i = 1; i <= doc.numPages; i++) {
-    const page = await doc.getPage(i);
-    const text = (await page.getTextContent()).items.map((t) => t.str + (t.hasEOL ? ' ' : '')).join('').normalize('NFKC').replace(/\s+/g, ' ');
-    const ops = await page.getOperatorList();
-    pages.push({ text, images: ops.fnArray.filter((f) => f === OPS.paintImageXObject).length });
-  }
-  await doc.destroy();
-  return { pages, text: pages.map((p) => p.text).join(' '), images: pages.reduce((n, p) => n + p.images, 0) };
-}
-// NFKC: the PDF's fonts give µ (micro) back as μ (mu), and so on.
-const squash = (s) => s.normalize('NFKC').replace(/\s+/g, ' ').trim();
 
 // Stubs window.print (headless has no dialog) to count calls, presses Print sheet and
 // waits for the print.
