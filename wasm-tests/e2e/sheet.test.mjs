@@ -15,7 +15,6 @@ before(async () => { browser = await launch(); });
 after(async () => { await browser.close(); });
 beforeEach(() => clearStorage(browser.context));
 
-
 // Stubs window.print (headless has no dialog) to count calls, presses Print sheet and
 // waits for the print.
 async function pressPrint(page) {
