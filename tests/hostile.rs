@@ -188,6 +188,15 @@ fn the_file_itself_is_refused_by_name() {
     refused("no-version.json", no_version.to_string().as_bytes(), "halfrail: missing");
     let twice = DEMO.replacen("\"halfrail\": 1,", "\"halfrail\": 1, \"halfrail\": 1,", 1);
     refused("version-twice.json", twice.as_bytes(), "halfrail: duplicate field `halfrail`");
+    // A key given twice in a section is refused by its path, not silently read
+    // as the last one; in a list's object too, and among many keys (sorted there).
+    let stage_twice = DEMO.replacen("\"r_fb_ohm\": \"2k2\",", "\"r_fb_ohm\": \"2k2\", \"r_fb_ohm\": \"4k7\",", 1);
+    refused("stage-twice.json", stage_twice.as_bytes(), "stage.r_fb_ohm: duplicate field `r_fb_ohm`");
+    let block_twice = DEMO.replacen("\"kind\":", "\"kind\": \"pad\", \"kind\":", 1);
+    refused("block-twice.json", block_twice.as_bytes(), "chain.blocks[0].kind: duplicate field `kind`");
+    let many: String = (0..40).map(|i| format!("\"k{i}\": {i}, ")).collect();
+    let many_twice = format!("{{\"halfrail\": 1, \"notes\": {{{many}\"k7\": 0}}}}");
+    refused("many-twice.json", many_twice.as_bytes(), "notes.k7: duplicate field `k7`");
 }
 
 #[test]
@@ -199,14 +208,14 @@ fn deep_nesting_stops_at_the_limit_quickly() {
     let inside = format!("{{\"halfrail\": 1, \"notes\": {deep}");
     refused("deep-notes.json", inside.as_bytes(), "notes: nested more than 128 levels deep");
     let closed = format!("{{\"halfrail\": 1, \"notes\": {deep}{}}}", "]".repeat(100_000));
-    refused("deep-closed.json", closed.as_bytes(), "notes: invalid type: sequence, expected a string");
+    refused("deep-closed.json", closed.as_bytes(), "notes: nested more than 128 levels deep");
     let bad_inside = format!("{{\"halfrail\": 1, \"notes\": {deep}x{}}}", "]".repeat(100_000));
     refused("deep-syntax.json", bad_inside.as_bytes(), "notes: nested more than 128 levels deep");
-    // Objects: the version is read into a JSON value, which stops at the limit; a
-    // section refuses its first unknown key before looking deeper.
+    // Objects: the whole text is read into a JSON value before any section, and
+    // that stops at the limit, in the version or in a section.
     let objects = |key: &str| format!("{{\"halfrail\": 1, \"{key}\": {}1{}}}", "{\"a\": ".repeat(100_000), "}".repeat(100_000));
     refused("deep-version.json", objects("halfrail").replacen("\"halfrail\": 1, ", "", 1).as_bytes(), "halfrail: nested more than 128 levels deep");
-    refused("deep-objects.json", objects("chain").as_bytes(), "chain.a: unknown field `a`");
+    refused("deep-objects.json", objects("chain").as_bytes(), "chain: nested more than 128 levels deep");
     // Just inside the limit, the nesting is read and then refused for its type.
     let shallow = format!("{{\"halfrail\": 1, \"notes\": {}{}}}", "[".repeat(100), "]".repeat(100));
     refused("nested-100.json", shallow.as_bytes(), "notes: invalid type: sequence");

@@ -122,14 +122,13 @@ impl Serialize for StageBlock<'_> {
 
 /// The stage block back from `StageBlock`'s JSON text (the field named is `stage`).
 pub fn stage_block_from(text: &str) -> crate::error::Result<Block> {
-    #[derive(serde::Deserialize)]
-    struct Figures {
-        gain_db: f64,
-        nf_db: f64,
-        oip3_dbm: Option<f64>,
-        op1db_dbm: Option<f64>,
-        dc_w: Option<f64>,
-    }
-    let f: Figures = serde_json::from_str(text).map_err(|e| crate::error::FieldError::new("stage", e.to_string()))?;
-    Ok(Block { name: "stage".into(), gain_db: f.gain_db, nf_db: f.nf_db, oip3_dbm: f.oip3_dbm, op1db_dbm: f.op1db_dbm, dc_w: f.dc_w })
+    use super::quantity::FieldUnit as U;
+    super::read_returned(text, "stage", |f| Block {
+        name: "stage".into(),
+        gain_db: f.required_quantity("gain_db", U::DB),
+        nf_db: f.required_quantity("nf_db", U::DB),
+        oip3_dbm: f.quantity("oip3_dbm", U::DBM),
+        op1db_dbm: f.quantity("op1db_dbm", U::DBM),
+        dc_w: f.quantity("dc_w", U::WATT),
+    })
 }

@@ -1,10 +1,14 @@
 //! The design document (SPEC §4): the only module that knows JSON. It reads a
-//! document into typed sections, naming the path of any bad field, and gives the
+//! document into typed sections, naming the path of any bad field — the text
+//! parsed once into a JSON value (`parse`), each section's keys read from it by
+//! type (`read`, `sections`), the ranges checked (`validate`) — and gives the
 //! core's results their serialised form (`serialize`).
 
 #[macro_use]
 mod serialize;
-mod locate;
+mod parse;
+mod read;
+pub use parse::MAX_NESTING;
 mod loop_report;
 mod swing_report;
 mod chain_report;
@@ -395,70 +399,41 @@ pub const DEFAULT_HEADROOM_WARN_DB: f64 = 6.0;
 /// The largest document accepted, in bytes.
 pub const MAX_DOCUMENT_BYTES: usize = 4 << 20;
 
-/// The message of a JSON error without serde_json's " at line L column C".
-fn reason_of(error: &serde_json::Error) -> String {
-    let text = error.to_string();
-    match text.rfind(" at line ") {
-        Some(at) if error.line() > 0 => text[..at].to_string(),
-        _ => text,
-    }
-}
-
-/// serde_json's nesting limit (its default, kept on): deeper text is refused.
-pub const MAX_NESTING: usize = 128;
-
-/// A JSON error named by the field it is in (`document` at the top level, and for
-/// text cut short). Past the nesting limit — serde_json's, or deeper still in a
-/// value skipped unread — the path would be thousands of levels long: the
-/// section is named instead.
-fn json_error(text: &str, error: &serde_json::Error) -> FieldError {
-    let path = locate::path_at(text, error.line(), error.column());
-    let levels = path.matches(['.', '[']).count() + 1;
-    if reason_of(error) == "recursion limit exceeded" || levels > MAX_NESTING {
-        let section = path.split(['.', '[']).next().filter(|s| !s.is_empty()).unwrap_or("document");
-        return FieldError::new(section, format!("nested more than {MAX_NESTING} levels deep"));
-    }
-    if error.classify() == serde_json::error::Category::Eof {
-        let inside = if path.is_empty() { String::new() } else { format!(", inside {path}") };
-        return FieldError::new("document", format!("ends before the JSON is complete{inside} ({})", reason_of(error)));
-    }
-    FieldError::new(if path.is_empty() { "document".to_string() } else { path }, reason_of(error))
-}
-
-/// The whole of `text` as one JSON value of type `T`.
-fn read_whole<'a, T: serde::Deserialize<'a>>(text: &'a str) -> Result<T> {
-    let mut reader = serde_json::Deserializer::from_str(text);
-    let value = T::deserialize(&mut reader).map_err(|e| json_error(text, &e))?;
-    reader
-        .end()
-        .map_err(|e| FieldError::new("document", format!("has text after the JSON object: {}", reason_of(&e))))?;
-    Ok(value)
-}
-
-/// The format version, read before anything else so that a document from a newer
-/// build is refused for that reason rather than for a key this build does not know.
-fn check_version(text: &str) -> Result<()> {
-    #[derive(serde::Deserialize)]
-    struct Header {
-        halfrail: Option<serde_json::Value>,
-    }
-    match read_whole::<Header>(text)?.halfrail {
+/// The format version, checked before any section is read so that a document from
+/// a newer build is refused for that reason rather than for a key this build does
+/// not know. A wrong version is quoted (a list or an object named by its kind).
+fn check_version(root: &parse::Json) -> Result<()> {
+    match root.get("halfrail") {
         None => Err(FieldError::new("halfrail", "missing; a design document starts with \"halfrail\": 1")),
-        Some(serde_json::Value::Number(n)) if n.as_u64() == Some(FORMAT_VERSION as u64) => Ok(()),
-        Some(serde_json::Value::Number(n)) if n.as_u64().is_some_and(|v| v > FORMAT_VERSION as u64) => {
+        Some(parse::Json::Number(n)) if n.as_u64() == Some(FORMAT_VERSION as u64) => Ok(()),
+        Some(parse::Json::Number(n)) if n.as_u64().is_some_and(|v| v > FORMAT_VERSION as u64) => {
             Err(FieldError::new(
                 "halfrail",
                 format!("this document is format version {n}, newer than this build reads ({FORMAT_VERSION}); open it with a newer Halfrail"),
             ))
         }
         Some(other) => {
-            let mut got = other.to_string();
+            let mut got = match other {
+                parse::Json::String(text) => format!("{text:?}"),
+                parse::Json::Array(_) => "a list".to_string(),
+                parse::Json::Object(_) => "an object".to_string(),
+                parse::Json::Number(n) => n.to_string(),
+                parse::Json::Bool(b) => b.to_string(),
+                parse::Json::Null => "null".to_string(),
+            };
             if got.chars().count() > 40 {
                 got = format!("{}…", got.chars().take(39).collect::<String>());
             }
             Err(FieldError::new("halfrail", format!("must be {FORMAT_VERSION}, got {got}")))
         }
     }
+}
+
+/// JSON `text` the page hands back (a result it was given earlier), read as one
+/// object by `read`; every error is named under `field`.
+fn read_returned<T>(text: &str, field: &str, read: impl FnOnce(&mut read::Fields) -> T) -> Result<T> {
+    let value = parse::json(text).map_err(|e| FieldError::new(field, e.reason))?;
+    read::object(&value, read).map_err(|e| e.within(field))
 }
 
 /// Reads and checks a design document.
@@ -484,8 +459,9 @@ pub fn load(text: &str) -> Result<Document> {
         Some('{') => {}
         Some(_) => return Err(not_object("a design document starts with {")),
     }
-    check_version(text)?;
-    let document: Document = read_whole(text)?;
+    let root = parse::json(text)?;
+    check_version(&root)?;
+    let document = Document::read(&root)?;
     validate::document(&document)?;
     Ok(document)
 }

@@ -91,22 +91,10 @@ impl Serialize for TrialColumns<'_> {
 /// Trials back from their columns (JSON text of `TrialColumns`, possibly joined
 /// from several runs): the field named is `trials` when the text is not that.
 pub fn trials_from_columns(text: &str) -> crate::error::Result<Vec<crate::analysis::spread::Values>> {
-    #[derive(serde::Deserialize)]
-    struct Columns {
-        gain_db: Vec<Option<f64>>,
-        f_low_hz: Vec<Option<f64>>,
-        f_high_hz: Vec<Option<f64>>,
-        phase_margin_deg: Vec<Option<f64>>,
-        iq_a: Vec<Option<f64>>,
-        nf_db: Vec<Option<f64>>,
-    }
-    let bad = |why: String| crate::error::FieldError::new("trials", why);
-    let c: Columns = serde_json::from_str(text).map_err(|e| bad(e.to_string()))?;
-    // In `Figure::ALL` order.
-    let columns = [&c.gain_db, &c.f_low_hz, &c.f_high_hz, &c.phase_margin_deg, &c.iq_a, &c.nf_db];
+    let columns = super::read_returned(text, "trials", |f| Figure::ALL.map(|figure| f.numbers(figure.key()).unwrap_or_else(|| f.missing(figure.key(), Vec::new()))))?;
     let n = columns[0].len();
     if columns.iter().any(|c| c.len() != n) {
-        return Err(bad("the columns differ in length".into()));
+        return Err(crate::error::FieldError::new("trials", "the columns differ in length"));
     }
     Ok((0..n).map(|i| std::array::from_fn(|k| columns[k][i])).collect())
 }
