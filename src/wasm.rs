@@ -152,6 +152,14 @@ pub fn check_document(text: &str) -> Result<JsValue, JsValue> {
     to_js(&doc::summary(&doc::load(text).map_err(thrown)?))
 }
 
+/// A document's text brought up to this build's format version (the text as it
+/// was when it is current), so that the page edits and saves the current form.
+#[wasm_bindgen(js_name = migrateDocument)]
+pub fn migrate_document(text: &str) -> Result<String, JsValue> {
+    use doc::migrate::{migrated_text, STEPS};
+    Ok(migrated_text(text, STEPS, doc::FORMAT_VERSION).map_err(thrown)?.unwrap_or_else(|| text.to_string()))
+}
+
 /// The demo design document (our own scenario), as text.
 #[wasm_bindgen(js_name = demoDocument)]
 pub fn demo_document() -> String {

@@ -1,6 +1,7 @@
 //! The design document (SPEC §4): the only module that knows JSON. It reads a
 //! document into typed sections, naming the path of any bad field — the text
-//! parsed once into a JSON value (`parse`), each section's keys read from it by
+//! parsed once into a JSON value (`parse`), brought up from an older format
+//! version (`migrate`), each section's keys read from it by
 //! type (`read`, `sections`), the ranges checked (`validate`) — and gives the
 //! core's results their serialised form (`serialize`).
 
@@ -8,7 +9,8 @@
 mod serialize;
 mod parse;
 mod read;
-pub use parse::MAX_NESTING;
+pub use parse::{Json, MAX_NESTING};
+pub mod migrate;
 mod loop_report;
 mod swing_report;
 mod chain_report;
@@ -436,6 +438,23 @@ fn read_returned<T>(text: &str, field: &str, read: impl FnOnce(&mut read::Fields
     read::object(&value, read).map_err(|e| e.within(field))
 }
 
+/// The text of a document as one JSON tree, refused unread when it is too big or
+/// not an object.
+pub(crate) fn tree(text: &str) -> Result<Json<'_>> {
+    if text.len() > MAX_DOCUMENT_BYTES {
+        return Err(FieldError::new(
+            "document",
+            format!("is {} bytes; at most {} are accepted", text.len(), MAX_DOCUMENT_BYTES),
+        ));
+    }
+    let not_object = |what: &str| FieldError::new("document", format!("is not a JSON object ({what})"));
+    match text.trim_start().chars().next() {
+        None => Err(not_object("it is empty")),
+        Some('{') => parse::json(text),
+        Some(_) => Err(not_object("a design document starts with {")),
+    }
+}
+
 /// Reads and checks a design document.
 ///
 /// ```
@@ -447,19 +466,8 @@ fn read_returned<T>(text: &str, field: &str, read: impl FnOnce(&mut read::Fields
 /// assert_eq!(bad.to_string(), "stage.r_fb_ohm: must be > 0, got -3300");
 /// ```
 pub fn load(text: &str) -> Result<Document> {
-    if text.len() > MAX_DOCUMENT_BYTES {
-        return Err(FieldError::new(
-            "document",
-            format!("is {} bytes; at most {} are accepted", text.len(), MAX_DOCUMENT_BYTES),
-        ));
-    }
-    let not_object = |what: &str| FieldError::new("document", format!("is not a JSON object ({what})"));
-    match text.trim_start().chars().next() {
-        None => return Err(not_object("it is empty")),
-        Some('{') => {}
-        Some(_) => return Err(not_object("a design document starts with {")),
-    }
-    let root = parse::json(text)?;
+    let mut root = tree(text)?;
+    migrate::up(&mut root, migrate::STEPS, FORMAT_VERSION)?;
     check_version(&root)?;
     let document = Document::read(&root)?;
     validate::document(&document)?;

@@ -54,6 +54,27 @@ impl<'t> Json<'t> {
     }
 }
 
+/// Written back as JSON (a migrated document), entries in their order.
+impl serde::Serialize for Json<'_> {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> std::result::Result<S::Ok, S::Error> {
+        use serde::ser::SerializeMap;
+        match self {
+            Json::Null => s.serialize_unit(),
+            Json::Bool(b) => s.serialize_bool(*b),
+            Json::Number(n) => n.serialize(s),
+            Json::String(text) => s.serialize_str(text),
+            Json::Array(items) => s.collect_seq(items),
+            Json::Object(entries) => {
+                let mut map = s.serialize_map(Some(entries.len()))?;
+                for (key, value) in entries {
+                    map.serialize_entry(key.as_ref(), value)?;
+                }
+                map.end()
+            }
+        }
+    }
+}
+
 /// serde_json's nesting limit (its default, kept on): deeper text is refused.
 pub const MAX_NESTING: usize = 128;
 

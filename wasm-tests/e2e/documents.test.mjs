@@ -137,9 +137,12 @@ test('a bad file is refused with the field and the file named, and the design is
   await clean(page, seen);
 });
 
-test('a migration entry, when the core has one, runs between reading and checking', async () => {
+test('an older format is brought up by the core\'s migration between reading and checking, and the user is told', async () => {
   const { page, seen } = await open('#stage');
-  // A stand-in for a future core entry that reads an older format: version 0 named the section `amp`.
+  // This build has no older format: its core refuses version 0 by name.
+  assert.deepEqual(await page.evaluate(() => HR.call('migrateDocument', '{"halfrail": 0}').error.field), 'halfrail');
+  assert.equal(await page.evaluate(() => HR.call('migrateDocument', '{"halfrail": 1, "title": "x"}').ok), '{"halfrail": 1, "title": "x"}');
+  // A stand-in for a future step from an older format: version 0 named the section `amp`.
   await page.evaluate(() => {
     wasm_bindgen.migrateDocument = (text) => {
       const { halfrail, amp, ...rest } = JSON.parse(text);
@@ -150,6 +153,7 @@ test('a migration entry, when the core has one, runs between reading and checkin
   await pick(page, file('old.halfrail.json', JSON.stringify({ halfrail: 0, amp: { ...DEMO.stage, r_fb_ohm: '1k5' } })));
   await page.waitForFunction(() => HR.design.get('stage', 'r_fb_ohm') === '1k5');
   assert.deepEqual(await draft(page), { halfrail: 1, stage: { ...DEMO.stage, r_fb_ohm: '1k5' } });
+  assert.match(await status(page), /^Opened old\.halfrail\.json — .*\(brought up from format 0 to 1; saving writes the new format\)$/);
   await clean(page, seen);
 });
 

@@ -23,6 +23,7 @@ const HOSTILE = [
   ['overflow in the prefix', withStage({ r_fb_ohm: '1e308 G' })],
   ['NaN', withStage({ r_fb_ohm: 'NaN' })],
   ['inf', JSON.stringify({ ...DEMO, analysis: { ...DEMO.analysis, f_design_hz: 'inf' } })],
+  ['older format', JSON.stringify({ ...DEMO, halfrail: 0 })],
   ['unknown key', JSON.stringify({ ...DEMO, extra: 1 })],
   ['unknown nested key', withStage({ r_feedback: '2k2' })],
   ['huge array', JSON.stringify({ ...DEMO, chain: { ...DEMO.chain, blocks: Array(100000).fill({ kind: 'pad', loss_db: 1 }) } })],

@@ -59,8 +59,12 @@ HR.design = (() => {
     }
     if (raw !== null && !why) {
       const saved = JSON.parse(raw);
-      draft = saved.draft;
+      // A draft stored by an older build comes back in the current format.
+      const m = HR.call('migrateDocument', JSON.stringify(saved.draft));
+      draft = m.error ? saved.draft : JSON.parse(m.ok);
       good = typeof saved.good === 'string' ? saved.good : null;
+      const g = good && HR.call('migrateDocument', good);
+      if (g) good = g.error ? null : g.ok;
     } else {
       good = wasm_bindgen.demoDocument();
       draft = JSON.parse(good);

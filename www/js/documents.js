@@ -50,12 +50,13 @@ HR.documents = (() => {
   // Reading (done), migrating, checking and loading a document's text: the one path
   // for a file, a dropped file and a link. A refused document changes nothing.
   const take = (text, source, label, said = `Opened ${source} — Undo brings back your previous design.`) => {
-    const m = wasm_bindgen.migrateDocument ? HR.call('migrateDocument', text) : { ok: text };
+    const m = HR.call('migrateDocument', text);
     const r = m.error ? m : HR.call('checkDocument', m.ok);
     // checkDocument also reads `[1]` as a version-1 document; only an object is one here.
     const e = r.error || (!plain(JSON.parse(m.ok)) && { field: 'document', reason: 'is not a JSON object' });
     if (e) return refuse(source, e);
-    if (HR.design.load(m.ok, label)) status(said);
+    const from = m.ok === text ? '' : ` (brought up from format ${JSON.parse(text).halfrail} to ${JSON.parse(m.ok).halfrail}; saving writes the new format)`;
+    if (HR.design.load(m.ok, label)) status(said + from);
   };
 
   const open = async (file) => {
