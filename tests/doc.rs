@@ -152,7 +152,7 @@ fn versions_and_shapes() {
     assert_eq!(error_of(r#"{"part": {}}"#), "halfrail: missing; a design document starts with \"halfrail\": 1");
     assert!(error_of(r#"{"halfrail": 2}"#).starts_with("halfrail: this document is format version 2, newer than this build reads"));
     assert_eq!(error_of(r#"{"halfrail": "1"}"#), "halfrail: must be 1, got \"1\"");
-    assert_eq!(error_of(r#"{"halfrail": 0}"#), "halfrail: must be 1, got 0");
+    assert_eq!(error_of(r#"{"halfrail": 0}"#), "halfrail: this document is format version 0, older than the oldest this build reads (1)");
     assert!(error_of("[1, 2]").starts_with("document: is not a JSON object"));
     assert!(error_of("").starts_with("document: is not a JSON object"));
     assert!(error_of(r#"{"halfrail": 1} trailing"#).starts_with("document:"));

@@ -180,7 +180,7 @@ fn the_file_itself_is_refused_by_name() {
     refused("latin1.json", &latin1, "document: ");
     refused("bom16.json", b"\xff\xfe{\x00}\x00", "document: ");
     refused("newer.json", &demo_with("/halfrail", json!(2)), "halfrail: this document is format version 2, newer than this build reads (1)");
-    refused("older.json", &demo_with("/halfrail", json!(0)), "halfrail: this document is format version 0, older than any this build reads (1)");
+    refused("older.json", &demo_with("/halfrail", json!(0)), "halfrail: this document is format version 0, older than the oldest this build reads (1)");
     refused("version-text.json", &demo_with("/halfrail", json!("1")), "halfrail: must be 1, got \"1\"");
     refused("version-float.json", &demo_with("/halfrail", json!(1.5)), "halfrail: must be 1, got 1.5");
     refused("version-huge.json", &demo_with("/halfrail", json!(u64::MAX)), "halfrail: this document is format version 18446744073709551615");

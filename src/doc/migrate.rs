@@ -4,7 +4,7 @@
 //! split), the version field then set by [`up`], not by the step.
 //!
 //! Format 1 is the first there has been, so [`STEPS`] is empty and a version below
-//! it is refused as older than any this build reads. The first change to the
+//! it is refused as older than the oldest this build reads. The first change to the
 //! format adds `Step { from: 1, rewrite }` here and raises `FORMAT_VERSION`;
 //! nothing else in the reader changes.
 //!
@@ -47,13 +47,16 @@ fn older(root: &Json, current: u32) -> Option<u32> {
 pub fn up(root: &mut Json, steps: &[Step], current: u32) -> Result<Option<u32>> {
     let Some(start) = older(root, current) else { return Ok(None) };
     let Json::Object(entries) = root else { return Ok(None) };
+    let step_from = |version: u32| steps.iter().find(|s| s.from == version);
+    let oldest = (0..current).rev().take_while(|&v| step_from(v).is_some()).last().unwrap_or(current);
+    if start < oldest {
+        return Err(FieldError::new(
+            "halfrail",
+            format!("this document is format version {start}, older than the oldest this build reads ({oldest})"),
+        ));
+    }
     for version in start..current {
-        let step = steps.iter().find(|s| s.from == version).ok_or_else(|| {
-            FieldError::new(
-                "halfrail",
-                format!("this document is format version {start}, older than any this build reads ({current}); no step from {version}"),
-            )
-        })?;
+        let step = step_from(version).expect("a step from every version from the oldest on");
         (step.rewrite)(entries)?;
         // `older` found the version, and a step leaves it alone.
         if let Some((_, value)) = entries.iter_mut().find(|(k, _)| k == "halfrail") {
@@ -118,7 +121,7 @@ mod tests {
     #[test]
     fn a_missing_step_or_a_step_that_cannot_rewrite_is_refused_by_field() {
         let e = migrated_text(r#"{"halfrail": 0}"#, HISTORY, 3).unwrap_err();
-        assert_eq!(e.to_string(), "halfrail: this document is format version 0, older than any this build reads (3); no step from 0");
+        assert_eq!(e.to_string(), "halfrail: this document is format version 0, older than the oldest this build reads (1)");
         let e = migrated_text(r#"{"halfrail": 1, "gain": "loud"}"#, HISTORY, 3).unwrap_err();
         assert_eq!(e.to_string(), "gain_db: must be a number to move to format 3");
         let e = migrated_text(r#"{"halfrail": 1, "gain": 1,}"#, HISTORY, 3).unwrap_err();
@@ -131,6 +134,6 @@ mod tests {
     fn this_build_has_no_older_format() {
         assert!(STEPS.is_empty());
         let e = migrated_text(r#"{"halfrail": 0}"#, STEPS, super::super::FORMAT_VERSION).unwrap_err();
-        assert!(e.reason.starts_with("this document is format version 0, older than any this build reads (1)"), "{e}");
+        assert!(e.reason.starts_with("this document is format version 0, older than the oldest this build reads (1)"), "{e}");
     }
 }
