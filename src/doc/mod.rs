@@ -257,6 +257,12 @@ impl Document {
     /// from the large-signal analysis, DC power from the bias (the slow part of a
     /// chain: the page computes it once, off the main thread).
     pub fn stage_block(&self) -> Result<crate::chain::Block> {
+        self.stage_block_with(None)
+    }
+
+    /// The stage block, from the large-signal analysis when it has been run already
+    /// (the slowest part of the block's figures).
+    pub fn stage_block_with(&self, large: Option<&crate::analysis::swing::Large>) -> Result<crate::chain::Block> {
         let missing = |what: &str| FieldError::new("chain", format!("a stage block needs {what}"));
         let (part, stage) = self.part_and_stage()?;
         let analysis = self.sweep().map_err(|_| missing("the analysis section (its f_design_hz)"))?;
@@ -264,14 +270,21 @@ impl Document {
         let response = crate::analysis::response(&part, &stage, analysis.f_design_hz, &[analysis.f_design_hz], analysis.z0_ohm, None)?;
         let gain_db = response.design.gt.map(|g| 10.0 * math::log10(g)).ok_or_else(|| missing("a source resistance and a load resistor (its power gain)"))?;
         let nf_db = response.design.nf_db().ok_or_else(|| missing("a source resistance (its noise figure)"))?;
-        let large = analysis.large(&part, &stage, &mut |_| {})?;
+        let computed;
+        let large = match large {
+            Some(large) => large,
+            None => {
+                computed = analysis.large(&part, &stage, &mut |_| {})?;
+                &computed
+            }
+        };
         let bias = self.bias()?;
         Ok(crate::chain::Block {
             name: "stage".into(),
             gain_db,
             nf_db,
             oip3_dbm: large.intercept.map(|i| i.oip3_dbm),
-            op1db_dbm: large.compression.and_then(|c| c.op1db_dbm),
+            op1db_dbm: large.compression.as_ref().and_then(|c| c.op1db_dbm),
             dc_w: Some(bias.power_w),
         })
     }

@@ -14,6 +14,16 @@ impl Document {
             Ok((response, stability)) => (Ok(response), Ok(stability)),
             Err(e) => (self.response(), Err(e)),
         };
+        // The large-signal analysis, the slowest, is run once for its section and
+        // for the chain's stage block.
+        let large = self.large(&mut |_| {});
+        let budget = |c: &super::Chain| {
+            let has_stage = c.blocks.iter().any(|b| b.kind == super::BlockKind::Stage);
+            match (&large, has_stage) {
+                (Ok(large), true) => self.stage_block_with(Some(large)).and_then(|block| self.chain(Some(block))),
+                _ => self.chain(None),
+            }
+        };
         Sheet {
             title: self.title.clone(),
             notes: self.notes.clone(),
@@ -23,8 +33,8 @@ impl Document {
             bias: self.bias(),
             response,
             stability,
-            large: self.large(&mut |_| {}),
-            chain: self.chain.as_ref().map(|c| ChainSheet { input_dbm: c.input_dbm, bandwidth_hz: c.bandwidth_hz, budget: self.chain(None) }),
+            chain: self.chain.as_ref().map(|c| ChainSheet { input_dbm: c.input_dbm, bandwidth_hz: c.bandwidth_hz, budget: budget(c) }),
+            large,
         }
     }
 }
