@@ -143,3 +143,16 @@ fn a_field_rejects_a_value_in_another_unit() {
     let err = parse_as("2.2 uF", Unit::Ohm).unwrap_err();
     assert_eq!(err.reason, "`2.2 uF` is in F, expected Ω");
 }
+
+#[test]
+fn a_long_input_is_quoted_cut_short() {
+    let long = "x".repeat(300);
+    let e = parse(&long).unwrap_err();
+    assert_eq!(e.reason, format!("`{}…` is not a number", "x".repeat(32)));
+    let e = parse(&format!("12 {}", "q".repeat(300))).unwrap_err();
+    assert_eq!(e.reason.matches('…').count(), 2, "{}", e.reason);
+    assert!(e.reason.chars().count() < 160, "{}", e.reason);
+    // Up to 32 characters are quoted whole.
+    let e = parse("12 qqqq").unwrap_err();
+    assert!(e.reason.starts_with("`12 qqqq`: `qqqq` is not a unit"), "{}", e.reason);
+}

@@ -32,6 +32,8 @@ pub fn parse(text: &str) -> Result<Parsed> {
     if trimmed.is_empty() {
         return Err(reason("is empty"));
     }
+    // Quoted in a message only when there is one.
+    let shown = || quoted(trimmed);
     let (negative, body) = split_sign(trimmed);
     let number = scan_number(body);
     let tail = &body[number.len..];
@@ -41,7 +43,8 @@ pub fn parse(text: &str) -> Result<Parsed> {
         let unit = match (rkm.implied, unit) {
             (Some(implied), Some(u)) if implied != u => {
                 return Err(reason(format!(
-                    "`{trimmed}`: the RKM letter means {}, but the unit says {}",
+                    "`{}`: the RKM letter means {}, but the unit says {}",
+                    shown(),
                     implied.symbol(),
                     u.symbol()
                 )))
@@ -51,7 +54,7 @@ pub fn parse(text: &str) -> Result<Parsed> {
         (rkm.exponent, unit, decimal(number.int, rkm.fraction))
     } else {
         if number.int.is_empty() && number.frac.is_empty() {
-            return Err(reason(format!("`{trimmed}` is not a number")));
+            return Err(reason(format!("`{}` is not a number", shown())));
         }
         let (shift, unit) = split_prefix_unit(tail.trim_start(), trimmed)?;
         (shift, unit, decimal(number.int, number.frac))
@@ -60,16 +63,16 @@ pub fn parse(text: &str) -> Result<Parsed> {
     let exponent = number
         .exponent
         .checked_add(exponent_shift)
-        .ok_or_else(|| reason(format!("`{trimmed}`: exponent out of range")))?;
+        .ok_or_else(|| reason(format!("`{}`: exponent out of range", shown())))?;
     let literal = format!("{}{}e{}", if negative { "-" } else { "" }, digits, exponent);
     let value: f64 = literal
         .parse()
-        .map_err(|_| reason(format!("`{trimmed}` is not a number")))?;
+        .map_err(|_| reason(format!("`{}` is not a number", shown())))?;
     if !value.is_finite() {
-        return Err(reason(format!("`{trimmed}` is too large")));
+        return Err(reason(format!("`{}` is too large", shown())));
     }
     if value == 0.0 && digits.bytes().any(|b| (b'1'..=b'9').contains(&b)) {
-        return Err(reason(format!("`{trimmed}` is too small")));
+        return Err(reason(format!("`{}` is too small", shown())));
     }
     Ok(Parsed { value, unit })
 }
@@ -209,6 +212,16 @@ fn scan_rkm<'a>(number: &Number<'_>, tail: &'a str) -> Option<Rkm<'a>> {
     })
 }
 
+/// What the user typed, as a message quotes it: cut to its first 32 characters
+/// and `…` when longer, so that a pasted page stays a one-line message.
+fn quoted(text: &str) -> String {
+    const SHOWN: usize = 32;
+    match text.char_indices().nth(SHOWN) {
+        Some((cut, _)) => format!("{}…", &text[..cut]),
+        None => text.to_string(),
+    }
+}
+
 /// The unit spelled by what follows an RKM code (no prefix allowed there).
 fn suffix_unit(suffix: &str, whole: &str) -> Result<Option<Unit>> {
     if suffix.is_empty() {
@@ -216,7 +229,7 @@ fn suffix_unit(suffix: &str, whole: &str) -> Result<Option<Unit>> {
     }
     Unit::from_spelling(suffix)
         .map(Some)
-        .ok_or_else(|| reason(format!("`{whole}`: `{suffix}` is not a unit")))
+        .ok_or_else(|| reason(format!("`{}`: `{}` is not a unit", quoted(whole), quoted(suffix))))
 }
 
 /// Splits `kΩ`, `mVpp`, `dBm`, `m`, `` into a power of ten and a unit.
@@ -228,7 +241,7 @@ fn split_prefix_unit(suffix: &str, whole: &str) -> Result<(i32, Option<Unit>)> {
         return Ok((0, Some(unit)));
     }
     if suffix.starts_with(',') {
-        return Err(reason(format!("`{whole}`: use `.` as the decimal point")));
+        return Err(reason(format!("`{}`: use `.` as the decimal point", quoted(whole))));
     }
     let first_len = suffix.chars().next().map_or(0, char::len_utf8);
     let (head, rest) = suffix.split_at(first_len);
@@ -239,10 +252,10 @@ fn split_prefix_unit(suffix: &str, whole: &str) -> Result<(i32, Option<Unit>)> {
         match Unit::from_spelling(rest) {
             Some(unit) if unit.takes_prefix() => return Ok((exponent, Some(unit))),
             Some(unit) => {
-                return Err(reason(format!("`{whole}`: {} takes no prefix", unit.symbol())))
+                return Err(reason(format!("`{}`: {} takes no prefix", quoted(whole), unit.symbol())))
             }
             None => {}
         }
     }
-    Err(reason(format!("`{whole}`: `{suffix}` is not a unit or SI prefix (prefixes are case-sensitive: m milli, M mega)")))
+    Err(reason(format!("`{}`: `{}` is not a unit or SI prefix (prefixes are case-sensitive: m milli, M mega)", quoted(whole), quoted(suffix))))
 }
