@@ -24,6 +24,7 @@ pub mod chain;
 pub mod doc;
 pub mod engine;
 pub mod math;
+pub mod order;
 pub mod error;
 pub mod part;
 pub mod report;

@@ -320,7 +320,7 @@ impl Linearised {
             .zip(densities)
             .map(|(n, d)| (n.name.clone(), if total > 0.0 { d / total } else { 0.0 }))
             .collect();
-        shares.sort_by(|a, b| b.1.total_cmp(&a.1));
+        crate::order::sort_by(&mut shares, |a, b| b.1.total_cmp(&a.1));
         Ok(shares)
     }
 }

@@ -233,7 +233,7 @@ fn repeated<'e>(entries: &'e [(Cow<'_, str>, Json<'_>)]) -> Option<&'e str> {
         return entries.iter().enumerate().find(|(i, (k, _))| entries[..*i].iter().any(|(e, _)| e == k)).map(|(_, (k, _))| k.as_ref());
     }
     let mut keys: Vec<&str> = entries.iter().map(|(k, _)| k.as_ref()).collect();
-    keys.sort_unstable();
+    crate::order::sort_by(&mut keys, |a, b| a.cmp(b));
     keys.windows(2).find(|pair| pair[0] == pair[1]).map(|pair| pair[0])
 }
 

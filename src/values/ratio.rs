@@ -37,7 +37,7 @@ pub fn ratio_pairs(wanted: f64, series: Series, count: usize) -> Result<Vec<Rati
             Ok(RatioPair { numerator, denominator, ratio, error_pct: (ratio - wanted) / wanted * 100.0 })
         })
         .collect::<Result<Vec<_>>>()?;
-    pairs.sort_by(|a, b| a.error_pct.abs().total_cmp(&b.error_pct.abs()).then(a.denominator.total_cmp(&b.denominator)));
+    crate::order::sort_by(&mut pairs, |a, b| a.error_pct.abs().total_cmp(&b.error_pct.abs()).then(a.denominator.total_cmp(&b.denominator)));
     pairs.truncate(count);
     Ok(pairs)
 }

@@ -126,7 +126,7 @@ pub fn design(part: &Part, c: &Components, f_design: f64, z0: f64, target: &Targ
     let stride = all.len().div_ceil(R_IN_TRIES).max(1);
     let mut r_ins: Vec<f64> = all.iter().copied().step_by(stride).collect();
     r_ins.extend(either_side(centre, target.series));
-    r_ins.sort_by(f64::total_cmp);
+    crate::order::sort_numbers(&mut r_ins);
     r_ins.dedup();
 
     let mut candidates = Vec::new();
@@ -148,7 +148,7 @@ pub fn design(part: &Part, c: &Components, f_design: f64, z0: f64, target: &Targ
         }
     }
     let continuous = continuous.or_else(|| exact.iter().copied().min_by(|a, b| math::ln(a.0 / start).abs().total_cmp(&math::ln(b.0 / start).abs())));
-    candidates.sort_by(better);
+    crate::order::sort_by(&mut candidates, better);
     candidates.truncate(KEEP);
 
     // Coupling capacitors for the best pair; then every candidate judged again with
@@ -163,7 +163,7 @@ pub fn design(part: &Part, c: &Components, f_design: f64, z0: f64, target: &Targ
         fitted = c.with(Component::CInF, k.c_in_f.or(c.get(Component::CInF))).with(Component::COutF, k.c_out_f.or(c.get(Component::COutF)));
         coupling_for = Some(k);
         candidates = candidates.iter().map(|k| Candidate::judged(&judge, &fitted, k.r_in, k.r_fb, target.gain_db, &target.limits)).collect::<Result<_>>()?;
-        candidates.sort_by(better);
+        crate::order::sort_by(&mut candidates, better);
         if candidates.first().is_some_and(|b| (b.r_in, b.r_fb.ohms) == chosen) {
             break;
         }

@@ -96,7 +96,7 @@ pub fn joined_near(ohms: f64, series: Series, count: usize) -> Vec<Resistor> {
             found.push(Resistor { ohms: a * b / (a + b), parts: Some((a, b, Joined::Parallel)) });
         }
     }
-    found.sort_by(|x, y| (x.ohms / ohms - 1.0).abs().total_cmp(&(y.ohms / ohms - 1.0).abs()));
+    crate::order::sort_by(&mut found, |x, y| (x.ohms / ohms - 1.0).abs().total_cmp(&(y.ohms / ohms - 1.0).abs()));
     found.truncate(count);
     found
 }

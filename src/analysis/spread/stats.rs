@@ -25,7 +25,7 @@ impl Stats {
         if n == 0 {
             return None;
         }
-        values.sort_by(f64::total_cmp);
+        crate::order::sort_numbers(values);
         let mean = values.iter().sum::<f64>() / n as f64;
         let var = if n > 1 { values.iter().map(|v| (v - mean).powi(2)).sum::<f64>() / (n - 1) as f64 } else { 0.0 };
         let rank = |p: f64| values[((p * n as f64).ceil() as usize).clamp(1, n) - 1];

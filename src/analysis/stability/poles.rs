@@ -75,7 +75,7 @@ pub fn natural_frequencies(g: &DMatrix<f64>, c: &DMatrix<f64>) -> Result<Vec<Com
             .map(|l| sigma + 1.0 / l)
             .map(|s| if math::norm(s) < ORIGIN_WITHIN * scale { Complex64::new(0.0, 0.0) } else { s })
             .collect();
-        poles.sort_by(|a, b| math::norm(a).total_cmp(&math::norm(b)));
+        crate::order::sort_by(&mut poles, |a, b| math::norm(a).total_cmp(&math::norm(b)));
         return Ok(poles);
     }
     Err(FieldError::new("circuit", "the circuit's equations are singular at every shift tried"))
