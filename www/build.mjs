@@ -1,5 +1,7 @@
 // Builds dist/halfrail.html: one self-contained file with the CSS, the wasm-bindgen
-// glue, the app's scripts and the wasm module (xz, then base64) inlined.
+// glue, xz-decompress and the boot script inlined, and the payload — the app's
+// scripts (with uPlot) and the wasm module, xz-packed together, then base64'd —
+// that boot.js unpacks and runs.
 // Usage: node www/build.mjs BINDGEN_DIR OUT_FILE   (run by `make dist`)
 import fs from 'fs';
 import path from 'path';
@@ -33,11 +35,12 @@ const SCRIPTS = [
   'js/shell.js',
 ];
 const STYLES = ['css/base.css', 'css/panels.css'];
-// Third-party code inlined as is, ahead of the app (its licence travels with it).
-const VENDOR_SCRIPTS = ['node_modules/uplot/dist/uPlot.iife.min.js', 'node_modules/xz-decompress/dist/package/xz-decompress.min.js'];
+// Third-party code: uPlot goes in the payload with the app; xz-decompress, which
+// unpacks it, is inlined as is. Their licence travels with them.
+const PAYLOAD_VENDOR = ['node_modules/uplot/dist/uPlot.iife.min.js'];
+const INLINE_VENDOR = ['node_modules/xz-decompress/dist/package/xz-decompress.min.js'];
 const VENDOR_STYLES = ['node_modules/uplot/dist/uPlot.min.css'];
 const VENDOR_NOTICE = '/* uPlot © Leon Sorokin, MIT licence (https://opensource.org/license/mit); xz-decompress (HTTP Toolkit, after xzwasm © Steve Sanderson), MIT licence, with xz-embedded (public domain) */';
-
 const read = (p) => fs.readFileSync(p, 'utf8');
 // Inline scripts must not contain a closing script tag.
 const scriptSafe = (text) => text.replace(/<\/script/gi, '<\\/script');
@@ -48,24 +51,29 @@ const squeeze = async (code) => (await minify(code, { compress: true, mangle: tr
 const glue = read(path.join(bindgenDir, 'halfrail.js'));
 const glueMin = await squeeze(glue);
 const wasm = fs.readFileSync(path.join(bindgenDir, 'halfrail_bg.opt.wasm'));
-// xz (LZMA2) packs the module about a fifth smaller than gzip -9, which is what
-// keeps the page's gzip size in budget; the CRC32 check is one xz-embedded reads.
-const packed = execFileSync('xz', ['--format=xz', '--check=crc32', '-9e', '--stdout'], { input: wasm, maxBuffer: 1 << 26 });
-const vendor = [VENDOR_NOTICE, ...VENDOR_SCRIPTS.map((s) => read(path.join(here, s)))].join('\n');
-const app = [vendor, await squeeze(SCRIPTS.map((s) => read(path.join(here, s))).join('\n'))].join('\n');
+const vendor = (files) => [VENDOR_NOTICE, ...files.map((s) => read(path.join(here, s)))].join('\n');
+const app = Buffer.from([vendor(PAYLOAD_VENDOR), await squeeze(SCRIPTS.map((s) => read(path.join(here, s))).join('\n'))].join('\n'));
+const boot = [vendor(INLINE_VENDOR), await squeeze(read(path.join(here, 'js/boot.js')))].join('\n');
+// The payload: the scripts' length, the scripts, the module (boot.js reads it so).
+const length = Buffer.alloc(4);
+length.writeUInt32LE(app.length);
+// xz (LZMA2) packs the module about a fifth smaller than gzip -9, and the scripts an
+// eighth, which is what keeps the page's gzip size in budget (base64 of packed bytes
+// does not compress again); the CRC32 check is one xz-embedded reads.
+const packed = execFileSync('xz', ['--format=xz', '--check=crc32', '-9e', '--stdout'], { input: Buffer.concat([length, app, wasm]), maxBuffer: 1 << 26 });
 const css = [...VENDOR_STYLES, ...STYLES].map((s) => read(path.join(here, s))).join('\n');
 const version = (read(path.join(here, '..', 'Cargo.toml')).match(/^version = "([^"]+)"/m) || [])[1] || '0';
 
 const html = read(path.join(here, 'index.html'))
   .replace('/*@STYLE@*/', () => css)
   .replace('/*@GLUE@*/', () => scriptSafe(glueMin))
-  .replace('/*@APP@*/', () => scriptSafe(app))
-  .replace('@WASM@', () => packed.toString('base64'))
+  .replace('/*@BOOT@*/', () => scriptSafe(boot))
+  .replace('@PAYLOAD@', () => packed.toString('base64'))
   .replace(/@VERSION@/g, () => version);
 
-for (const marker of ['/*@STYLE@*/', '/*@GLUE@*/', '/*@APP@*/', '@WASM@', '@VERSION@']) {
+for (const marker of ['/*@STYLE@*/', '/*@GLUE@*/', '/*@BOOT@*/', '@PAYLOAD@', '@VERSION@']) {
   if (html.includes(marker)) throw new Error(`build: marker ${marker} left in the page`);
 }
 fs.mkdirSync(path.dirname(outFile), { recursive: true });
 fs.writeFileSync(outFile, html);
-console.log(`${outFile}: ${html.length} bytes (wasm ${wasm.length} bytes, ${packed.length} xz)`);
+console.log(`${outFile}: ${html.length} bytes (wasm ${wasm.length} bytes and scripts ${app.length} bytes, ${packed.length} xz)`);

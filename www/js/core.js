@@ -8,16 +8,11 @@ const HR = { panels: [] };
 // Registers a panel: {id, title, summary, mount(container)}. The shell lays them out.
 HR.panel = (spec) => { HR.panels.push(spec); };
 
-// Starts the wasm module: the bytes are xz-packed and base64'd in the page, so this
-// unpacks them with the inlined xz-decompress, compiles once and keeps the compiled
-// module (a worker can be handed it later).
+// Starts the wasm module from the bytes boot.js unpacked: compiles once and keeps
+// the compiled module (a worker can be handed it later).
 HR.start = async () => {
-  performance.mark('hr-wasm-start');
-  const text = document.getElementById('hr-wasm').textContent.trim();
-  const raw = Uint8Array.from(atob(text), (c) => c.charCodeAt(0));
-  const inflated = new Response(new self['xz-decompress'].XzReadableStream(new Blob([raw]).stream()));
-  const bytes = new Uint8Array(await inflated.arrayBuffer());
-  HR.module = new WebAssembly.Module(bytes);
+  HR.module = new WebAssembly.Module(self.halfrailWasm);
+  delete self.halfrailWasm;
   wasm_bindgen.initSync({ module: HR.module });
   performance.mark('hr-wasm-ready');
   performance.measure('hr-wasm-instantiate', 'hr-wasm-start', 'hr-wasm-ready');
