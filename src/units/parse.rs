@@ -2,10 +2,11 @@
 //! and unit (`2.2 uF`, `1.5 GHz`, `-30 dBm`), or an IEC 60062 RKM code (`8k2`, `4R7`,
 //! `R47`, `4n7`, `2M2`).
 //!
-//! The decimal digits are handed to Rust's correctly rounded float parser with the
-//! prefix folded into the exponent, so `4.7n` is exactly the double nearest 4.7e-9
+//! The decimal digits are rounded once, with the prefix folded into the exponent
+//! (`decimal::nearest_double`), so `4.7n` is exactly the double nearest 4.7e-9
 //! (the same double a standard-value table produces).
 
+use super::decimal::nearest_double;
 use super::prefix;
 use super::Unit;
 use crate::error::{FieldError, Result};
@@ -38,7 +39,7 @@ pub fn parse(text: &str) -> Result<Parsed> {
     let number = scan_number(body);
     let tail = &body[number.len..];
 
-    let (exponent_shift, unit, digits) = if let Some(rkm) = scan_rkm(&number, tail) {
+    let (exponent_shift, unit, (int, frac)) = if let Some(rkm) = scan_rkm(&number, tail) {
         let unit = suffix_unit(rkm.suffix, trimmed)?;
         let unit = match (rkm.implied, unit) {
             (Some(implied), Some(u)) if implied != u => {
@@ -51,27 +52,27 @@ pub fn parse(text: &str) -> Result<Parsed> {
             }
             (implied, u) => u.or(implied),
         };
-        (rkm.exponent, unit, decimal(number.int, rkm.fraction))
+        (rkm.exponent, unit, (number.int, rkm.fraction))
     } else {
         if number.int.is_empty() && number.frac.is_empty() {
             return Err(reason(format!("`{}` is not a number", shown())));
         }
         let (shift, unit) = split_prefix_unit(tail.trim_start(), trimmed)?;
-        (shift, unit, decimal(number.int, number.frac))
+        (shift, unit, (number.int, number.frac))
     };
 
-    let exponent = number
-        .exponent
-        .checked_add(exponent_shift)
+    // The digits as one integer, the prefix and the fraction folded into its exponent.
+    let exponent = i32::try_from(frac.len())
+        .ok()
+        .and_then(|places| number.exponent.checked_add(exponent_shift)?.checked_sub(places))
         .ok_or_else(|| reason(format!("`{}`: exponent out of range", shown())))?;
-    let literal = format!("{}{}e{}", if negative { "-" } else { "" }, digits, exponent);
-    let value: f64 = literal
-        .parse()
-        .map_err(|_| reason(format!("`{}` is not a number", shown())))?;
+    let digits = [int.as_bytes(), frac.as_bytes()].concat();
+    let magnitude = nearest_double(&digits, exponent);
+    let value = if negative { -magnitude } else { magnitude };
     if !value.is_finite() {
         return Err(reason(format!("`{}` is too large", shown())));
     }
-    if value == 0.0 && digits.bytes().any(|b| (b'1'..=b'9').contains(&b)) {
+    if value == 0.0 && digits.iter().any(|b| (b'1'..=b'9').contains(b)) {
         return Err(reason(format!("`{}` is too small", shown())));
     }
     Ok(Parsed { value, unit })
@@ -96,11 +97,6 @@ pub fn parse_as(text: &str, expected: Unit) -> Result<f64> {
         ))),
         _ => Ok(parsed.value),
     }
-}
-
-/// Digits in a form Rust's float parser always takes (`0.5`, `04.0`).
-fn decimal(int: &str, frac: &str) -> String {
-    format!("0{int}.{}", if frac.is_empty() { "0" } else { frac })
 }
 
 fn reason(text: impl Into<String>) -> FieldError {

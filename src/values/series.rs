@@ -140,8 +140,8 @@ impl Series {
     }
 }
 
-/// `mantissa × 10^exponent`, built from its decimal digits so it is the double
-/// nearest the exact value (the same double the value parser gives for it).
+/// `mantissa × 10^exponent`, rounded once from its decimal digits so it is the
+/// double nearest the exact value (the same double the value parser gives for it).
 pub fn standard_value(mantissa: u16, exponent: i32) -> f64 {
-    format!("{mantissa}e{exponent}").parse().expect("an integer and an exponent always parse")
+    crate::units::nearest_double(mantissa.to_string().as_bytes(), exponent)
 }
