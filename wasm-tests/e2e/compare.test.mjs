@@ -92,6 +92,13 @@ test('a pinned reference is drawn under every plot, and the figures show it and 
     [p.closed.map((q) => q.vin_v), p.closed.map((q) => q.vout_v)]]);
   assert.deepEqual(r.problems, []);
   assert.deepEqual(await page.evaluate(() => [...document.querySelectorAll('#panel-part figure.plot')].map((f) => f.dataset.reference)), ['same-x', 'resampled']);
+  // Part: the operating point's figures carry the reference's and the difference.
+  const op = await page.evaluate(() => [HR.call('partReport', HR.design.text(), 501).ok.bias, HR.call('partReport', HR.compare.text(), 501).ok.bias]);
+  const vinLine = await page.locator('#panel-part dd[data-key="vin"] .vs').textContent();
+  assert.ok(vinLine.startsWith(`ref ${await page.evaluate((v) => HR.fmt(v, 'V', 4), op[1].vin_v)}`), vinLine);
+  assert.ok(vinLine.endsWith(`Δ ${await expectedDelta(page, op[0].vin_v, op[1].vin_v, 'V')}`), vinLine);
+  assert.ok((await page.locator('#panel-part dd[data-key="iq"] .vs').textContent()).endsWith(`Δ ${await expectedDelta(page, op[0].iq_a, op[1].iq_a, 'A')}`));
+  assert.match(await page.locator('#panel-part dd[data-key="sat"] .vs').textContent(), /^ref \S.* … /);
 
   // Response: six plots on the same analysis frequencies, exactly the core's values.
   await show(page, 'response');

@@ -92,6 +92,26 @@
     ['selfbias', 'Self-bias (source and load off)'], ['sat', 'Both saturated, output'], ['db1', 'Gain within 1 dB, output'],
   ];
 
+  // The read-out's texts for a report (this design's or the reference's).
+  const texts = (r) => {
+    const b = r.bias;
+    const fmt = HR.fmt;
+    const window = (w) => (w ? `${fmt(w.low_v, 'V', 3)} … ${fmt(w.high_v, 'V', 3)}` : 'none at the bias');
+    return {
+      vin: fmt(b.vin_v, 'V', 4), vout: fmt(b.vout_v, 'V', 4), iq: fmt(b.iq_a, 'A', 3), power: fmt(b.power_w, 'W', 3),
+      dissipation: fmt(b.dissipation_w, 'W', 3), gm: fmt(b.gm_s, 'S', 3), gds: fmt(b.gds_s, 'S', 3),
+      a0: `${fmt(b.a0, '', 4)} V/V`, selfbias: fmt(b.self_bias_v, 'V', 4),
+      sat: window(b.window_saturated), db1: window(b.window_1db),
+    };
+  };
+  // What the reference comparison subtracts: [value, how] (HR.compare.figures).
+  const DIFFS = {
+    vin: (r) => [[r.bias.vin_v, 'V']], vout: (r) => [[r.bias.vout_v, 'V']], iq: (r) => [[r.bias.iq_a, 'A']],
+    power: (r) => [[r.bias.power_w, 'W']], dissipation: (r) => [[r.bias.dissipation_w, 'W']],
+    gm: (r) => [[r.bias.gm_s, '×']], gds: (r) => [[r.bias.gds_s, '×']], a0: (r) => [[r.bias.a0, '']],
+    selfbias: (r) => [[r.bias.self_bias_v, 'V']],
+  };
+
   const biasCard = () => {
     const cells = {};
     const readout = el('dl', { class: 'readout' }, READOUT.map(([k, label]) => {
@@ -106,18 +126,9 @@
     const render = (r) => {
       const b = r.bias;
       const fmt = HR.fmt;
-      const window = (w) => (w ? `${fmt(w.low_v, 'V', 3)} … ${fmt(w.high_v, 'V', 3)}` : 'none at the bias');
-      cells.vin.textContent = fmt(b.vin_v, 'V', 4);
-      cells.vout.textContent = fmt(b.vout_v, 'V', 4);
-      cells.iq.textContent = fmt(b.iq_a, 'A', 3);
-      cells.power.textContent = fmt(b.power_w, 'W', 3);
-      cells.dissipation.textContent = fmt(b.dissipation_w, 'W', 3);
-      cells.gm.textContent = fmt(b.gm_s, 'S', 3);
-      cells.gds.textContent = fmt(b.gds_s, 'S', 3);
-      cells.a0.textContent = `${fmt(b.a0, '', 4)} V/V`;
-      cells.selfbias.textContent = fmt(b.self_bias_v, 'V', 4);
-      cells.sat.textContent = window(b.window_saturated);
-      cells.db1.textContent = window(b.window_1db);
+      const shown = texts(r);
+      for (const [k, cell] of Object.entries(cells)) cell.textContent = shown[k];
+      HR.compare.figures(cells, texts, DIFFS, r, HR.compare.report('partReport', POINTS));
       stagesWrap.hidden = b.stages.length < 2;
       fillRows(stages.tbody, b.stages.map((s, i) => [String(i + 1), fmt(s.vin_v, 'V', 4), fmt(s.vout_v, 'V', 4),
         fmt(s.id_a, 'A', 3), fmt(s.gm_s, 'S', 3), fmt(s.gds_s, 'S', 3), fmt(s.gain, '', 3)]));
