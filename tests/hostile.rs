@@ -195,6 +195,9 @@ fn the_file_itself_is_refused_by_name() {
     refused("stage-twice.json", stage_twice.as_bytes(), "stage.r_fb_ohm: duplicate field `r_fb_ohm`");
     let block_twice = DEMO.replacen("\"kind\":", "\"kind\": \"pad\", \"kind\":", 1);
     refused("block-twice.json", block_twice.as_bytes(), "chain.blocks[0].kind: duplicate field `kind`");
+    // A key written as "" is named by the object it is in (found by `make fuzz`).
+    refused("empty-key.json", br#"{"halfrail": 1, "": 0}"#, "document: unknown field ``, expected one of `halfrail`");
+    refused("empty-stage-key.json", br#"{"halfrail": 1, "stage": {"": 1}}"#, "stage: unknown field ``");
     let many: String = (0..40).map(|i| format!("\"k{i}\": {i}, ")).collect();
     let many_twice = format!("{{\"halfrail\": 1, \"notes\": {{{many}\"k7\": 0}}}}");
     refused("many-twice.json", many_twice.as_bytes(), "notes.k7: duplicate field `k7`");

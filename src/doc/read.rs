@@ -221,6 +221,7 @@ impl<'a> Fields<'a> {
         if self.found < self.entries.len() {
             let asked = &self.asked;
             let (key, _) = self.entries.iter().find(|(k, _)| !asked.contains(&k.as_ref())).expect("a key not asked for");
+            // A key written as "" is named by the object it is in (the field left empty).
             return Err(FieldError::new(key.as_ref(), format!("unknown field `{key}`, expected {}", one_of(asked))));
         }
         if let Some(error) = self.error {

@@ -361,6 +361,8 @@ pub struct Document {
 impl Document {
     /// The document from its JSON value (whose version has been checked).
     pub(super) fn read(root: &Json) -> Result<Document> {
+        // An error of the document itself (an unknown key written as "") names it.
+        let named = |e: crate::error::FieldError| if e.field.is_empty() { e.within("document") } else { e };
         object(root, |f| Document {
             halfrail: f.count("halfrail", 0),
             title: f.string("title"),
@@ -373,5 +375,6 @@ impl Document {
             bench: f.section("bench", Bench::read),
             chain: f.section("chain", Chain::read),
         })
+        .map_err(named)
     }
 }
