@@ -217,6 +217,24 @@ test('the reference survives a reload; Clear takes every overlay away; a bad dra
   await page.close();
 });
 
+test('a reference pinned or cleared in another tab shows here too', async () => {
+  const { page: here, seen } = await openPanel(browser.context, 'response');
+  const { page: there } = await openPanel(browser.context, 'stage');
+  await there.getByRole('button', { name: 'Pin as reference' }).click();
+  await here.waitForFunction(() => HR.compare.text() !== null);
+  assert.equal(await here.evaluate(() => HR.compare.text()), await there.evaluate(() => HR.compare.text()));
+  assert.equal(await here.locator('.ref-badge').isVisible(), true);
+  await here.waitForFunction(() => document.querySelectorAll('#panel-response .vs').length === 10);
+  assert.deepEqual(await referenceSeries(here, 'response'), [2, 1, 2, 1, 1, 1]);
+  await there.getByRole('button', { name: 'Clear reference' }).click();
+  await here.waitForFunction(() => HR.compare.text() === null);
+  assert.equal(await here.locator('.ref-badge').isVisible(), false);
+  assert.equal(await here.locator('#panel-response .vs').count(), 0);
+  assert.deepEqual(seen.errors, []);
+  await there.close();
+  await here.close();
+});
+
 test('Swing and Spread compute the reference only when asked, in a lane of their own', async () => {
   const { page, seen } = await openPanel(browser.context, 'part');
   await page.getByRole('button', { name: 'Pin as reference' }).click();

@@ -150,6 +150,13 @@ HR.compare = (() => {
     ref = stored && typeof stored.text === 'string' ? stored : null;
     badge = el('span', { class: 'ref-badge', role: 'status' });
     clear = el('button', { type: 'button', onclick: () => { keep(null); HR.setStatus('Reference cleared.'); } }, 'Clear reference');
+    // Another tab of this page pinned or cleared the reference: show what it stored.
+    window.addEventListener('storage', (e) => {
+      if (e.key !== `${HR.store.prefix}reference`) return;
+      const now = HR.store.get('reference', null);
+      ref = now && typeof now.text === 'string' ? now : null;
+      changed();
+    });
     changed();
     return [el('button', { type: 'button', onclick: pin }, 'Pin as reference'), clear, badge];
   };
