@@ -8,14 +8,16 @@
 
 HR.embed = (() => {
   const { el } = HR.ui;
-  // The buttons that change the design, by their text.
-  const EDITS = /^(Undo|Redo|Apply|Use|Load preset)\b/;
+  // The panels' buttons that only show, compute or export, by their text: in a
+  // read-only view every other button is hidden, so a button added later that edits
+  // the design is hidden without being listed here (the design refuses it anyway).
+  const VIEWS = /^(PNG|Save as CSV|Compute now|Cancel|Compute the reference too|Design|Fit the part|Near −1)$/;
 
   const freeze = (root) => {
     for (const n of root.querySelectorAll('input, select, textarea, button')) {
       if (n.tagName === 'BUTTON') {
         if (n.classList.contains('value')) n.disabled = true;
-        else if (EDITS.test(n.textContent)) n.hidden = true;
+        else if (!VIEWS.test(n.textContent.trim())) n.hidden = true;
       } else if (n.tagName === 'SELECT' || /^(checkbox|radio|file|range|color)$/.test(n.type)) n.disabled = true;
       else n.readOnly = true;
     }
