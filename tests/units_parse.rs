@@ -156,3 +156,16 @@ fn a_long_input_is_quoted_cut_short() {
     let e = parse("12 qqqq").unwrap_err();
     assert!(e.reason.starts_with("`12 qqqq`: `qqqq` is not a unit"), "{}", e.reason);
 }
+
+#[test]
+fn exponents_at_the_ends_of_the_range_are_too_small_or_too_large() {
+    // Reviewed edge: the fraction's length taken off an exponent near i32::MIN.
+    for text in ["1.5e-2147483648", "0.5e-2147483648", "1e-2147483648p", "1e-99999999999"] {
+        assert!(parse(text).unwrap_err().reason.ends_with("is too small"), "{text}: {}", parse(text).unwrap_err());
+    }
+    for text in ["1e2147483647", "1.5e2147483647k", "1e99999999999"] {
+        assert!(parse(text).unwrap_err().reason.ends_with("is too large"), "{text}: {}", parse(text).unwrap_err());
+    }
+    let e = halfrail::units::parse_as(&format!("1.{} uF", "0".repeat(300)), Unit::Ohm).unwrap_err();
+    assert!(e.reason.chars().count() < 80, "{}", e.reason);
+}

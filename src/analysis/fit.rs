@@ -380,8 +380,8 @@ fn natural_value(part: &Part, p: Param) -> f64 {
 /// values and directions come from the symmetric JᵀJ (its eigenvalues are their
 /// squares, its eigenvectors the directions) by nalgebra's real Schur
 /// decomposition, which the pole finder links anyway — an SVD would add 12 KB to
-/// the wasm. A ratio of 1e-7 in σ is 1e-14 in σ², still a hundred times the
-/// rounding of JᵀJ's eigenvalues (n·ε of the largest).
+/// the wasm. A ratio of 1e-7 in σ is 1e-14 in σ², still some ten times the
+/// rounding of JᵀJ's eigenvalues (n·ε of the largest, n ≤ 6).
 fn check_determined(j: &DMatrix<f64>, params: &[Param]) -> Result<()> {
     let undetermined = || FieldError::new("bench", "the readings cannot determine these parameters");
     let (vectors, form) = nalgebra::linalg::Schur::try_new(j.transpose() * j, f64::EPSILON, 1000).ok_or_else(undetermined)?.unpack();

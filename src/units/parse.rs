@@ -61,11 +61,10 @@ pub fn parse(text: &str) -> Result<Parsed> {
         (shift, unit, (number.int, number.frac))
     };
 
-    // The digits as one integer, the prefix and the fraction folded into its exponent.
-    let exponent = i32::try_from(frac.len())
-        .ok()
-        .and_then(|places| number.exponent.checked_add(exponent_shift)?.checked_sub(places))
-        .ok_or_else(|| reason(format!("`{}`: exponent out of range", shown())))?;
+    // The digits as one integer, the prefix and the fraction folded into its exponent
+    // (in i64, then held to i32: nearest_double takes any i32, and past that range
+    // the value is too large or too small either way).
+    let exponent = (i64::from(number.exponent) + i64::from(exponent_shift) - frac.len() as i64).clamp(i32::MIN.into(), i32::MAX.into()) as i32;
     let digits = [int.as_bytes(), frac.as_bytes()].concat();
     let magnitude = nearest_double(&digits, exponent);
     let value = if negative { -magnitude } else { magnitude };
@@ -91,7 +90,7 @@ pub fn parse_as(text: &str, expected: Unit) -> Result<f64> {
     match parsed.unit {
         Some(u) if u != expected => Err(reason(format!(
             "`{}` is in {}, expected {}",
-            text.trim(),
+            quoted(text.trim()),
             u.symbol(),
             expected.symbol()
         ))),

@@ -6,6 +6,13 @@
 // UTF-8 length (4 bytes, little-endian), the scripts, the module.
 (async () => {
   performance.mark('hr-wasm-start');
+  const failed = (e) => {
+    const status = document.getElementById('engine-status');
+    status.textContent = `This page could not start in this browser (${e && e.message ? e.message : e}).`;
+    status.classList.add('problem');
+  };
+  // An error in the scripts' own first run reaches `error`, not the catch below.
+  const thrown = (e) => failed(e.error || e);
   try {
     const text = document.getElementById('hr-payload').textContent.trim();
     const packed = Uint8Array.from(atob(text), (c) => c.charCodeAt(0));
@@ -16,10 +23,10 @@
     const app = document.createElement('script');
     app.id = 'hr-app';
     app.textContent = new TextDecoder().decode(bytes.subarray(4, 4 + length));
+    window.addEventListener('error', thrown);
     document.body.append(app);
+    window.removeEventListener('error', thrown);
   } catch (e) {
-    const status = document.getElementById('engine-status');
-    status.textContent = `This page could not unpack itself in this browser (${e && e.message ? e.message : e}).`;
-    status.classList.add('problem');
+    failed(e);
   }
 })();
