@@ -34,41 +34,11 @@ impl Serialize for CumulativeOut<'_> {
     }
 }
 
-struct FiguresOut<'a>(&'a RunFigures);
+serialize_fields!(RunFigures { "gain_db" => gain_db, "nf_db" => nf_db });
 
-impl Serialize for FiguresOut<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let mut out = serializer.serialize_struct("RunFigures", 2)?;
-        out.serialize_field("gain_db", &self.0.gain_db)?;
-        out.serialize_field("nf_db", &self.0.nf_db)?;
-        out.end()
-    }
-}
+serialize_fields!(Run { "first" => first, "last" => last, "matched" => matched, "circuit" => circuit });
 
-struct RunOut<'a>(&'a Run);
-
-impl Serialize for RunOut<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let r = self.0;
-        let mut out = serializer.serialize_struct("Run", 4)?;
-        out.serialize_field("first", &r.first)?;
-        out.serialize_field("last", &r.last)?;
-        out.serialize_field("matched", &FiguresOut(&r.matched))?;
-        out.serialize_field("circuit", &FiguresOut(&r.circuit))?;
-        out.end()
-    }
-}
-
-struct WarningOut<'a>(&'a Warning);
-
-impl Serialize for WarningOut<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let mut out = serializer.serialize_struct("Warning", 2)?;
-        out.serialize_field("block", &self.0.block)?;
-        out.serialize_field("text", &self.0.text)?;
-        out.end()
-    }
-}
+serialize_fields!(Warning { "block" => block, "text" => text });
 
 impl Serialize for ChainReport<'_> {
     fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
@@ -98,8 +68,8 @@ impl Serialize for ChainReport<'_> {
             .collect();
         out.serialize_field("stages", &stages)?;
         out.serialize_field("stage_runs", if budget.one_circuit { "one-circuit" } else { "matched" })?;
-        out.serialize_field("runs", &budget.runs.iter().map(RunOut).collect::<Vec<_>>())?;
-        out.serialize_field("warnings", &budget.warnings.iter().map(WarningOut).collect::<Vec<_>>())?;
+        out.serialize_field("runs", &budget.runs)?;
+        out.serialize_field("warnings", &budget.warnings)?;
         out.end()
     }
 }
