@@ -234,7 +234,7 @@ pub fn one_circuit(blocks: &[Block], runs: &[Run], levels: &Levels) -> Cascade {
                     gain_db: r.circuit.gain_db,
                     nf_db: r.circuit.nf_db,
                     oip3_dbm: alone.oip3_dbm,
-                    op1db_dbm: alone.ip1db_dbm.map(|p| p + alone.gain_db - 1.0),
+                    op1db_dbm: alone.op1db_dbm,
                     dc_w: blocks[r.first..=r.last].iter().map(|b| b.dc_w).sum(),
                 });
                 spans.push((r.first, r.last));

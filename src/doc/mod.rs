@@ -31,6 +31,7 @@ pub use sections::{
     Analysis, Bench, Block, BlockKind, Chain, CurvePoint, Document, GainKind, GainReading, Model, Part, StageRuns, Target, Tolerance,
 };
 
+use crate::chain::RunFigures;
 use crate::math;
 use crate::error::{FieldError, Result};
 
@@ -268,8 +269,7 @@ impl Document {
         let analysis = self.sweep().map_err(|_| missing("the analysis section (its f_design_hz)"))?;
         // Only the design point is needed, not the sweep.
         let response = crate::analysis::response(&part, &stage, analysis.f_design_hz, &[analysis.f_design_hz], analysis.z0_ohm, None)?;
-        let gain_db = response.design.gt.map(|g| 10.0 * math::log10(g)).ok_or_else(|| missing("a source resistance and a load resistor (its power gain)"))?;
-        let nf_db = response.design.nf_db().ok_or_else(|| missing("a source resistance (its noise figure)"))?;
+        let RunFigures { gain_db, nf_db } = gain_and_noise(&response.design, missing)?;
         let computed;
         let large = match large {
             Some(large) => large,
@@ -294,16 +294,23 @@ impl Document {
     /// consecutive stage blocks are also solved as one circuit, and enter the
     /// cascade that way when `stage_runs` asks for it.
     pub fn chain(&self, stage: Option<crate::chain::Block>) -> Result<crate::chain::Budget> {
+        self.chain_with(|| stage.map_or_else(|| self.stage_block(), Ok))
+    }
+
+    /// The same, the stage block's figures from `stage_block`, called only when
+    /// the chain has a stage block.
+    pub fn chain_with(&self, stage_block: impl FnOnce() -> Result<crate::chain::Block>) -> Result<crate::chain::Budget> {
         use crate::chain::{cascade, matched_run, one_circuit, runs_of, warnings, Block as Core, Budget, Levels, Run};
         let chain = self.chain.as_ref().ok_or_else(|| FieldError::new("chain", "missing; a budget needs the chain of blocks"))?;
-        let mut stage = stage;
+        let mut stage_block = Some(stage_block);
+        let mut stage = None;
         let mut blocks = Vec::with_capacity(chain.blocks.len());
         for (i, b) in chain.blocks.iter().enumerate() {
             let name = b.name.clone().unwrap_or_else(|| format!("{:?} {}", b.kind, i + 1).to_ascii_lowercase());
             blocks.push(match b.kind {
                 BlockKind::Stage => {
-                    if stage.is_none() {
-                        stage = Some(self.stage_block()?);
+                    if let Some(compute) = stage_block.take() {
+                        stage = Some(compute()?);
                     }
                     Core { name, ..stage.clone().expect("just computed") }
                 }
@@ -328,15 +335,12 @@ impl Document {
 
     /// GT and NF at f_design of `copies` of this document's stage coupled directly,
     /// solved as one circuit between the document's source and load.
-    pub fn stage_run(&self, copies: usize) -> Result<crate::chain::RunFigures> {
+    pub fn stage_run(&self, copies: usize) -> Result<RunFigures> {
         let missing = |what: &str| FieldError::new("chain", format!("a run of stages needs {what}"));
         let (part, stage) = self.part_and_stage()?;
         let analysis = self.sweep().map_err(|_| missing("the analysis section (its f_design_hz)"))?;
         let lin = crate::analysis::Linearised::run(&part, &stage, copies, analysis.z0_ohm)?;
-        let point = lin.at(analysis.f_design_hz, &stage)?;
-        let gain_db = point.gt.map(|g| 10.0 * math::log10(g)).ok_or_else(|| missing("a source resistance and a load resistor (its power gain)"))?;
-        let nf_db = point.nf_db().ok_or_else(|| missing("a source resistance (its noise figure)"))?;
-        Ok(crate::chain::RunFigures { gain_db, nf_db })
+        gain_and_noise(&lin.at(analysis.f_design_hz, &stage)?, missing)
     }
 
     /// The part fitted to the `bench` readings, starting from the document's part.
@@ -401,6 +405,14 @@ pub struct SpreadResult {
     pub corners: Vec<crate::analysis::spread::Corner>,
     /// Every trial's figures (the histograms).
     pub trials: Vec<crate::analysis::spread::Values>,
+}
+
+/// GT and NF of a chain block from its design point; `missing` words what the
+/// document lacks when either cannot be had.
+fn gain_and_noise(point: &crate::analysis::Point, missing: impl Fn(&str) -> FieldError) -> Result<RunFigures> {
+    let gain_db = point.gt.map(|g| 10.0 * math::log10(g)).ok_or_else(|| missing("a source resistance and a load resistor (its power gain)"))?;
+    let nf_db = point.nf_db().ok_or_else(|| missing("a source resistance (its noise figure)"))?;
+    Ok(RunFigures { gain_db, nf_db })
 }
 
 /// The SNR of the minimum detectable signal when the chain names none (common

@@ -17,13 +17,7 @@ impl Document {
         // The large-signal analysis, the slowest, is run once for its section and
         // for the chain's stage block.
         let large = self.large(&mut |_| {});
-        let budget = |c: &super::Chain| {
-            let has_stage = c.blocks.iter().any(|b| b.kind == super::BlockKind::Stage);
-            match (&large, has_stage) {
-                (Ok(large), true) => self.stage_block_with(Some(large)).and_then(|block| self.chain(Some(block))),
-                _ => self.chain(None),
-            }
-        };
+        let budget = || self.chain_with(|| self.stage_block_with(large.as_ref().ok()));
         Sheet {
             title: self.title.clone(),
             notes: self.notes.clone(),
@@ -33,7 +27,7 @@ impl Document {
             bias: self.bias(),
             response,
             stability,
-            chain: self.chain.as_ref().map(|c| ChainSheet { input_dbm: c.input_dbm, bandwidth_hz: c.bandwidth_hz, budget: budget(c) }),
+            chain: self.chain.as_ref().map(|c| ChainSheet { input_dbm: c.input_dbm, bandwidth_hz: c.bandwidth_hz, budget: budget() }),
             large,
         }
     }
