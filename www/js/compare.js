@@ -26,6 +26,11 @@ HR.compare = (() => {
     }
     listeners.forEach((fn) => fn());
   };
+  // The reference kept in storage, when it is one.
+  const stored = () => {
+    const kept = HR.store.get('reference', null);
+    return kept && typeof kept.text === 'string' ? kept : null;
+  };
   const keep = (value) => { ref = value; HR.store.set('reference', value); changed(); };
 
   // Pins the draft, when the core accepts it; says why not otherwise.
@@ -146,15 +151,13 @@ HR.compare = (() => {
   const controls = (embed) => {
     off = embed;
     if (embed) return [];
-    const stored = HR.store.get('reference', null);
-    ref = stored && typeof stored.text === 'string' ? stored : null;
+    ref = stored();
     badge = el('span', { class: 'ref-badge', role: 'status' });
     clear = el('button', { type: 'button', onclick: () => { keep(null); HR.setStatus('Reference cleared.'); } }, 'Clear reference');
     // Another tab of this page pinned or cleared the reference: show what it stored.
     window.addEventListener('storage', (e) => {
       if (e.key !== `${HR.store.prefix}reference`) return;
-      const now = HR.store.get('reference', null);
-      ref = now && typeof now.text === 'string' ? now : null;
+      ref = stored();
       changed();
     });
     changed();

@@ -53,9 +53,10 @@ HR.documents = (() => {
     const m = HR.call('migrateDocument', text);
     const r = m.error ? m : HR.call('checkDocument', m.ok);
     // checkDocument also reads `[1]` as a version-1 document; only an object is one here.
-    const e = r.error || (!plain(JSON.parse(m.ok)) && { field: 'document', reason: 'is not a JSON object' });
+    const opened = !m.error && JSON.parse(m.ok);
+    const e = r.error || (!plain(opened) && { field: 'document', reason: 'is not a JSON object' });
     if (e) return refuse(source, e);
-    const from = m.ok === text ? '' : ` (brought up from format ${JSON.parse(text).halfrail} to ${JSON.parse(m.ok).halfrail}; saving writes the new format)`;
+    const from = m.ok === text ? '' : ` (brought up from format ${JSON.parse(text).halfrail} to ${opened.halfrail}; saving writes the new format)`;
     if (HR.design.load(m.ok, label)) status(said + from);
   };
 
