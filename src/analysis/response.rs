@@ -421,7 +421,10 @@ pub fn response_of(lin: &Linearised, c: &Components, f_design: f64, freqs: &[f64
         Some(i) => Some(refine_edge(lin, level, if i > split { freqs[i - 1] } else { f_design }, freqs[i])?),
         None => None,
     };
-    let series_in = c.get(Component::RInOhm).filter(|&r| r > 0.0).or(c.get(Component::SourceOhm).filter(|&r| r > 0.0));
+    // Av is taken at the input pin, so the ideal ratio is −r_fb/r_in alone: with r_in
+    // a short the pin drives the gate and the resistors set no gain there (the
+    // source resistance would give the gain from the EMF, a different figure).
+    let series_in = c.get(Component::RInOhm).filter(|&r| r > 0.0);
     let ideal_gain = match (c.get(Component::RFbOhm), series_in) {
         (Some(rf), Some(ri)) => Some(-rf / ri),
         _ => None,

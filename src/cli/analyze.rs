@@ -5,6 +5,7 @@
 
 use std::path::PathBuf;
 
+use halfrail::analysis::swing::source_resistance;
 use halfrail::analysis::{bare_curve, BARE_POINTS};
 use halfrail::doc::{to_json, AcReport, AnalyzeReport, BiasReport, LargeSummary, LoopSummary};
 use halfrail::report::{sweep_csv, touchstone, wave_csv};
@@ -29,16 +30,23 @@ pub struct SweepArgs {
 pub fn run(args: Args) -> Result<String, Failure> {
     let document = read_document(&args.file)?;
     let bias = document.bias()?;
-    let curve = bare_curve(&document.part_and_stage()?.0, BARE_POINTS)?;
+    let (part, stage) = document.part_and_stage()?;
+    let curve = bare_curve(&part, BARE_POINTS)?;
     let small_signal = match document.analysis {
-        Some(_) => Some((document.stability()?, document.compensation()?, document.large(&mut |_| {})?)),
+        Some(_) => Some((document.stability()?, document.compensation()?)),
         None => None,
+    };
+    // Large-signal levels are powers available from a source: with none fitted there
+    // are no such figures (null), while the rest of the report stands.
+    let large = match (&document.analysis, source_resistance(&stage)) {
+        (Some(_), Ok(_)) => Some(document.large(&mut |_| {})?),
+        _ => None,
     };
     let report = AnalyzeReport {
         bias: BiasReport { bias: &bias, curve: &curve },
-        ac: small_signal.as_ref().map(|((response, _), _, _)| AcReport(response)),
-        stability: small_signal.as_ref().map(|((_, stability), suggestions, _)| LoopSummary(stability, Some(suggestions))),
-        large: small_signal.as_ref().map(|(_, _, large)| LargeSummary(large)),
+        ac: small_signal.as_ref().map(|((response, _), _)| AcReport(response)),
+        stability: small_signal.as_ref().map(|((_, stability), suggestions)| LoopSummary(stability, Some(suggestions))),
+        large: large.as_ref().map(LargeSummary),
     };
     Ok(format!("{}\n", to_json(&report)))
 }

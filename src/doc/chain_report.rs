@@ -46,20 +46,20 @@ impl Serialize for ChainReport<'_> {
         let c = &budget.cascade;
         let total = c.total();
         let mut out = serializer.serialize_struct("Chain", 19)?;
-        out.serialize_field("gain_db", &total.map(|t| t.gain_db))?;
-        out.serialize_field("nf_db", &total.map(|t| t.nf_db))?;
-        out.serialize_field("iip3_dbm", &total.and_then(|t| t.iip3_dbm))?;
-        out.serialize_field("oip3_dbm", &total.and_then(|t| t.oip3_dbm))?;
-        out.serialize_field("ip1db_dbm", &total.and_then(|t| t.ip1db_dbm))?;
+        out.serialize_field("gain_db", &total.gain_db)?;
+        out.serialize_field("nf_db", &total.nf_db)?;
+        out.serialize_field("iip3_dbm", &total.iip3_dbm)?;
+        out.serialize_field("oip3_dbm", &total.oip3_dbm)?;
+        out.serialize_field("ip1db_dbm", &total.ip1db_dbm)?;
         out.serialize_field("noise_floor_in_dbm", &c.noise_floor_in_dbm)?;
         out.serialize_field("input_dbm", &c.input_dbm)?;
         out.serialize_field("input_noise_dbm", &c.input_noise_dbm)?;
-        out.serialize_field("snr_db", &total.map(|t| t.snr_db))?;
+        out.serialize_field("snr_db", &total.snr_db)?;
         out.serialize_field("sfdr_db", &c.sfdr_db)?;
-        out.serialize_field("output_dbm", &total.map(|t| t.signal_dbm))?;
+        out.serialize_field("output_dbm", &total.signal_dbm)?;
         out.serialize_field("dc_w", &c.dc_w)?;
         out.serialize_field("mds_dbm", &c.mds_dbm)?;
-        out.serialize_field("noise_temp_k", &total.map(|t| t.noise_temp_k))?;
+        out.serialize_field("noise_temp_k", &total.noise_temp_k)?;
         let stages: Vec<CumulativeOut> = c
             .stages
             .iter()

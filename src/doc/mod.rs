@@ -319,10 +319,16 @@ impl Document {
             });
         }
         let is_stage: Vec<bool> = chain.blocks.iter().map(|b| b.kind == BlockKind::Stage).collect();
+        // Runs of the same length are the same circuit: each length is solved once.
+        let mut solved = std::collections::BTreeMap::new();
         let runs = runs_of(&is_stage)
             .into_iter()
             .map(|(first, last)| {
-                let circuit = self.stage_run(last - first + 1)?;
+                let copies = last - first + 1;
+                let circuit = match solved.get(&copies) {
+                    Some(&figures) => figures,
+                    None => *solved.entry(copies).or_insert(self.stage_run(copies)?),
+                };
                 Ok(Run { first, last, matched: matched_run(&blocks, first, last), circuit })
             })
             .collect::<Result<Vec<Run>>>()?;
@@ -422,6 +428,10 @@ pub const DEFAULT_SNR_DB: f64 = 10.0;
 /// The headroom below which a node is warned about when the chain names none
 /// (common practice: keep a few dB clear of compression).
 pub const DEFAULT_HEADROOM_WARN_DB: f64 = 6.0;
+
+/// The most stage blocks in a row: each run is solved as one dense circuit, whose
+/// cost grows with the cube of its length (64 stages take about 0.1 s natively).
+pub const MAX_RUN_STAGES: usize = 64;
 
 /// The largest document accepted, in bytes.
 pub const MAX_DOCUMENT_BYTES: usize = 4 << 20;

@@ -55,6 +55,9 @@ fn optional_range(path: &str, value: Option<f64>, low: End, high: End) -> Result
 const MAX_OHM: f64 = 1e12;
 const MAX_F: f64 = 1.0;
 const MAX_HZ: f64 = 1e12;
+/// The lowest frequency an analysis or noise band starts at: nothing of a stage
+/// moves below it, and with `MAX_HZ` it keeps every ratio of frequencies finite.
+const MIN_HZ: f64 = 1e-3;
 /// Readings or blocks a list may hold.
 const MAX_LIST: usize = 1000;
 
@@ -119,7 +122,7 @@ fn stage(s: &Components) -> Result<()> {
 pub const MAX_SWEEP_POINTS: f64 = 100_001.0;
 
 fn analysis(a: &Analysis) -> Result<()> {
-    range("analysis.f_start_hz", a.f_start_hz, Open(0.0), Open(MAX_HZ))?;
+    range("analysis.f_start_hz", a.f_start_hz, Closed(MIN_HZ), Open(MAX_HZ))?;
     range("analysis.f_stop_hz", a.f_stop_hz, Open(a.f_start_hz), Closed(MAX_HZ))?;
     range("analysis.f_design_hz", a.f_design_hz, Closed(a.f_start_hz), Closed(a.f_stop_hz))?;
     range("analysis.points_per_decade", a.points_per_decade as f64, Closed(1.0), Closed(1000.0))?;
@@ -134,7 +137,7 @@ fn analysis(a: &Analysis) -> Result<()> {
     range("analysis.input_dbm", a.input_dbm, Closed(-200.0), Closed(60.0))?;
     match (a.noise_f_low_hz, a.noise_f_high_hz) {
         (Some(low), Some(high)) => {
-            range("analysis.noise_f_low_hz", low, Open(0.0), Open(MAX_HZ))?;
+            range("analysis.noise_f_low_hz", low, Closed(MIN_HZ), Open(MAX_HZ))?;
             range("analysis.noise_f_high_hz", high, Open(low), Closed(MAX_HZ))
         }
         (None, None) => Ok(()),
@@ -251,8 +254,20 @@ fn chain(c: &Chain) -> Result<()> {
     optional_range("chain.snr_wanted_db", c.snr_wanted_db, Closed(-20.0), Closed(100.0))?;
     optional_range("chain.headroom_warn_db", c.headroom_warn_db, Closed(0.0), Closed(100.0))?;
     list_length("chain.blocks", c.blocks.len())?;
+    let mut in_a_row = 0;
     for (i, b) in c.blocks.iter().enumerate() {
         block(&format!("chain.blocks[{i}]"), b)?;
+        in_a_row = if b.kind == BlockKind::Stage { in_a_row + 1 } else { 0 };
+        if in_a_row > super::MAX_RUN_STAGES {
+            return Err(FieldError::new(
+                format!("chain.blocks[{i}]"),
+                format!(
+                    "more than {} stage blocks in a row: a run of directly coupled stages is solved as one circuit, of {} stages at most; put a pad, a filter or an amp between them",
+                    super::MAX_RUN_STAGES,
+                    super::MAX_RUN_STAGES
+                ),
+            ));
+        }
     }
     Ok(())
 }

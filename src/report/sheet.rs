@@ -425,10 +425,10 @@ fn chain(blocks: &mut Vec<Block>, c: &ChainSheet, budget: &Budget) {
     let mut right = vec![true; head.len()];
     right[0] = false;
     blocks.push(Block::Table { head, right, rows });
-    let Some(total) = budget.total() else {
-        blocks.push(Block::Paragraph("The chain has no blocks.".into()));
-        return;
-    };
+    if budget.stages.is_empty() {
+        blocks.push(Block::Paragraph("The chain has no blocks: its output is its input.".into()));
+    }
+    let total = budget.total();
     let none = "no block distorts";
     let mut rows = vec![
         ("Gain", db(total.gain_db)),

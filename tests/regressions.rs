@@ -1,0 +1,125 @@
+//! Each a design a little away from the demo that once gave a wrong figure, a
+//! panic or a refusal naming no field, on its minimal document, with the right
+//! answer computed here independently.
+
+use halfrail::chain::{cascade, Block, Levels};
+use halfrail::doc::{load, ChainReport};
+use serde_json::{json, Value};
+
+/// An ordinary 3.3 V unbuffered stage at 10.7 MHz, the base every case changes.
+fn base() -> Value {
+    json!({"halfrail":1,
+        "part":{"vdd_v":3.3,"kn_a_per_v2":"6m","kp_a_per_v2":"3m","vtn_v":0.55,"vtp_v":-0.6,"lambda_n_per_v":0.08,"lambda_p_per_v":0.1,"cgs_f":"4p","cgd_f":"1p2","cdb_f":"3p"},
+        "stage":{"source_ohm":50,"shunt_ohm":"56R","c_in_f":"100n","r_in_ohm":"220R","r_fb_ohm":"2k2","c_out_f":"100n","load_ohm":"1k","load_f":"5p"},
+        "analysis":{"f_design_hz":"10.7 MHz","f_start_hz":"1 kHz","f_stop_hz":"1 GHz"}})
+}
+
+fn refusal(doc: &Value) -> String {
+    match load(&doc.to_string()) {
+        Ok(_) => panic!("accepted: {doc}"),
+        Err(e) => e.to_string(),
+    }
+}
+
+fn chain_json(doc: &Value) -> Value {
+    let d = load(&doc.to_string()).unwrap();
+    serde_json::from_str(&halfrail::doc::to_json(&ChainReport(&d.chain(None).unwrap()))).unwrap()
+}
+
+const LEVELS: Levels = Levels { input_dbm: -40.0, bandwidth_hz: 1e4, snr_wanted_db: 10.0 };
+
+#[test]
+fn a_blocks_input_1db_point_is_its_output_one_less_its_gain_plus_1db() {
+    // At its 1 dB point a block's gain is 1 dB down, so IP1dB = OP1dB − G + 1 dB
+    // (the definition of the 1 dB compression point; SPEC §3.3).
+    let t = cascade(&[Block::amp("amp", 20.0, 3.0, None, Some(20.0), None)], &LEVELS).total();
+    assert!((t.ip1db_dbm.unwrap() - 1.0).abs() < 1e-12, "{t:?}");
+    // A one-block chain equals its block.
+    assert!((t.op1db_dbm.unwrap() - 20.0).abs() < 1e-12, "{t:?}");
+    // Two blocks: the same sum as the intercepts, over each block's input 1 dB point
+    // (linear mW): 1/P = 1/P1 + G1/P2.
+    let (p1, p2) = (10f64.powf((10.0 - 12.0 + 1.0) / 10.0), 10f64.powf((15.0 - 20.0 + 1.0) / 10.0));
+    let g1 = 10f64.powf(1.2);
+    let want = 10.0 * (1.0 / (1.0 / p1 + g1 / p2)).log10();
+    let two = cascade(&[Block::amp("a", 12.0, 2.0, None, Some(10.0), None), Block::amp("b", 20.0, 6.0, None, Some(15.0), None)], &LEVELS).total();
+    assert!((two.ip1db_dbm.unwrap() - want).abs() < 1e-12, "{two:?} vs {want}");
+}
+
+#[test]
+fn a_one_circuit_run_keeps_its_blocks_1db_point() {
+    // The correction is made once: a run entering the cascade as one block keeps the
+    // output 1 dB point of its matched cascade.
+    let mut doc = base();
+    doc["chain"] = json!({"input_dbm":-40,"bandwidth_hz":1e4,"blocks":[{"kind":"stage"},{"kind":"stage"}]});
+    let matched = chain_json(&doc);
+    doc["chain"]["stage_runs"] = json!("one-circuit");
+    let one = chain_json(&doc);
+    let (m, o) = (matched["stages"][1]["op1db_dbm"].as_f64().unwrap(), one["stages"][0]["op1db_dbm"].as_f64().unwrap());
+    assert!((m - o).abs() < 1e-9, "matched {m} against one circuit {o}");
+}
+
+#[test]
+fn an_empty_chain_is_its_input() {
+    let mut doc = base();
+    doc["chain"] = json!({"input_dbm":-40,"bandwidth_hz":1e4,"blocks":[]});
+    let c = chain_json(&doc);
+    assert_eq!(c["gain_db"], json!(0.0));
+    assert_eq!(c["nf_db"], json!(0.0));
+    assert_eq!(c["output_dbm"], json!(-40.0));
+    // +0, not −0.0: std's float sum starts at −0.0.
+    let text = c["dc_w"].to_string();
+    assert_eq!(text, "0.0");
+}
+
+#[test]
+fn a_long_run_of_stage_blocks_is_refused_at_the_first_block_past_the_limit() {
+    let mut doc = base();
+    let limit = halfrail::doc::MAX_RUN_STAGES;
+    doc["chain"] = json!({"input_dbm":-40,"bandwidth_hz":1e4,"blocks": vec![json!({"kind":"stage"}); limit + 1]});
+    let e = refusal(&doc);
+    assert!(e.starts_with(&format!("chain.blocks[{limit}]: ")), "{e}");
+    // Broken by a pad, the same stages are a chain of two runs, each solved once.
+    let mut blocks = vec![json!({"kind":"stage"}); limit];
+    blocks.push(json!({"kind":"pad","loss_db":1}));
+    blocks.push(json!({"kind":"stage"}));
+    blocks.push(json!({"kind":"stage"}));
+    doc["chain"]["blocks"] = json!(blocks);
+    let c = chain_json(&doc);
+    assert_eq!(c["runs"].as_array().unwrap().len(), 2);
+    assert!(c["gain_db"].as_f64().unwrap().is_finite());
+}
+
+#[test]
+fn a_noise_band_from_almost_zero_is_refused_naming_its_low_end() {
+    let mut doc = base();
+    doc["analysis"]["noise_f_low_hz"] = json!(1e-300);
+    doc["analysis"]["noise_f_high_hz"] = json!(1e12);
+    assert!(refusal(&doc).starts_with("analysis.noise_f_low_hz: "));
+    // And the sweep's start the same way.
+    let mut doc = base();
+    doc["analysis"]["f_start_hz"] = json!(1e-300);
+    assert!(refusal(&doc).starts_with("analysis.f_start_hz: "));
+}
+
+#[test]
+fn without_a_source_the_report_keeps_bias_and_small_signal() {
+    let mut doc = base();
+    doc["stage"].as_object_mut().unwrap().remove("source_ohm");
+    let d = load(&doc.to_string()).unwrap();
+    assert!(d.bias().is_ok());
+    let r = d.response().unwrap();
+    // The gain at the pin needs no source; the noise figure does.
+    assert!(r.design.av.norm().is_finite() && r.design.nf_db().is_none());
+}
+
+#[test]
+fn with_r_in_a_short_there_is_no_ideal_ratio() {
+    // Av is taken at the pin: with R in a short the resistors set no gain there, and
+    // the ratio with the source resistance would be the gain from the EMF instead.
+    let mut doc = base();
+    doc["stage"]["r_in_ohm"] = json!(0);
+    let r = load(&doc.to_string()).unwrap().response().unwrap();
+    assert_eq!(r.ideal_gain, None);
+    let r = load(&base().to_string()).unwrap().response().unwrap();
+    assert_eq!(r.ideal_gain, Some(-10.0));
+}
