@@ -1,0 +1,290 @@
+//! The whole legal domain: random documents (tests/common/domain.rs) through every
+//! verb of the `halfrail` command. Each verb finishes, and prints finite figures or
+//! exits 2 with one line naming a document field; and the figures agree with each
+//! other — the sweep at f_design with `analyze`, `stable` with the poles, a negative
+//! phase margin never with a plain "stable" verdict, OIP3 − IIP3 = GT, THD with its
+//! harmonics, a one-block chain with its block, a spread without tolerances with
+//! the nominal design, design's top pair with its own re-analysis, and the
+//! transient's fundamental at a small level with the small-signal gain.
+//!
+//! `cargo test` runs `HALFRAIL_DOMAIN_DOCS` documents (12 by default) from
+//! `HALFRAIL_DOMAIN_SEED` (a fixed seed by default); `make fuzz` runs 20 000. A
+//! failure prints the seed of its document: rerun it alone with
+//! `HALFRAIL_DOMAIN_SEED=<seed> HALFRAIL_DOMAIN_DOCS=1`.
+
+#[path = "common/domain.rs"]
+mod domain;
+
+use std::io::Write;
+use std::process::{Command, Stdio};
+use std::time::{Duration, Instant};
+
+use serde_json::{json, Value};
+
+/// A verb still running after this long has hung (a generous guard for a debug
+/// build on a loaded machine; the benchmarks hold the real speed targets).
+const HANG: Duration = Duration::from_secs(600);
+
+/// The sections a refusal may name.
+const SECTIONS: [&str; 7] = ["part", "stage", "analysis", "target", "tolerance", "chain", "document"];
+
+enum Outcome {
+    Printed(String),
+    Refused(String),
+}
+
+/// Runs `halfrail VERB doc [extra]`, waiting for it to end (bounded by `HANG`).
+fn run(verb: &str, doc: &Value, extra: &[&str], seed: u64) -> Outcome {
+    let dir = std::env::temp_dir().join(format!("halfrail-domain-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join(format!("{seed}-{verb}.json"));
+    std::fs::File::create(&path).unwrap().write_all(doc.to_string().as_bytes()).unwrap();
+    let mut child = Command::new(env!("CARGO_BIN_EXE_halfrail"))
+        .arg(verb)
+        .arg(&path)
+        .args(extra)
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    let started = Instant::now();
+    // Wait for the process to end; the pipes are drained by wait_with_output.
+    let reader = std::thread::spawn(move || {
+        let out = child.wait_with_output();
+        out
+    });
+    while !reader.is_finished() {
+        assert!(started.elapsed() < HANG, "seed {seed}: `halfrail {verb}` did not finish within {HANG:?}");
+        std::thread::sleep(Duration::from_millis(5));
+    }
+    let out = reader.join().unwrap().unwrap();
+    let _ = std::fs::remove_file(&path);
+    let stderr = String::from_utf8_lossy(&out.stderr).into_owned();
+    match out.status.code() {
+        Some(0) => Outcome::Printed(String::from_utf8(out.stdout).unwrap()),
+        Some(2) => {
+            let line = stderr.trim_end();
+            assert_eq!(line.lines().count(), 1, "seed {seed}: `{verb}` refused with more than one line: {stderr}");
+            let field = line.strip_prefix("halfrail: ").and_then(|rest| rest.split(": ").next()).unwrap_or("");
+            let section = field.split(['.', '[']).next().unwrap_or("");
+            assert!(SECTIONS.contains(&section), "seed {seed}: `{verb}` refused naming no document field: {line}");
+            Outcome::Refused(line.to_string())
+        }
+        other => panic!("seed {seed}: `halfrail {verb}` ended with {other:?}: {stderr}"),
+    }
+}
+
+fn printed(verb: &str, doc: &Value, seed: u64) -> Option<Value> {
+    match run(verb, doc, &[], seed) {
+        Outcome::Printed(text) => Some(serde_json::from_str(&text).unwrap_or_else(|e| panic!("seed {seed}: `{verb}` printed no JSON ({e})"))),
+        Outcome::Refused(_) => None,
+    }
+}
+
+fn num(v: &Value, path: &str, seed: u64) -> f64 {
+    let mut at = v;
+    for key in path.split('.') {
+        at = &at[key];
+    }
+    at.as_f64().unwrap_or_else(|| panic!("seed {seed}: `{path}` is {at}, not a number"))
+}
+
+/// Every number in `v` is finite (serde_json writes NaN as null, so the figures a
+/// verb must give are also checked present by `num`).
+fn all_finite(v: &Value, seed: u64, at: &str) {
+    match v {
+        Value::Number(n) => assert!(n.as_f64().is_some_and(f64::is_finite), "seed {seed}: {at} = {n}"),
+        Value::Array(items) => items.iter().enumerate().for_each(|(i, x)| all_finite(x, seed, &format!("{at}[{i}]"))),
+        Value::Object(map) => map.iter().for_each(|(k, x)| all_finite(x, seed, &format!("{at}.{k}"))),
+        _ => {}
+    }
+}
+
+fn close(a: f64, b: f64, tol: f64, what: &str, seed: u64) {
+    assert!((a - b).abs() <= tol, "seed {seed}: {what}: {a} against {b} (tolerance {tol})");
+}
+
+/// The sweep's row at f_design carries the same gain as `analyze`.
+fn sweep_agrees(doc: &Value, design_index: usize, gain_db: f64, seed: u64) {
+    let Outcome::Printed(csv) = run("sweep", doc, &["--csv"], seed) else {
+        panic!("seed {seed}: analyze printed but sweep refused");
+    };
+    let mut lines = csv.lines();
+    let head: Vec<&str> = lines.next().unwrap().split(',').collect();
+    let col = |name: &str| head.iter().position(|h| *h == name).unwrap();
+    let row: Vec<f64> = lines.nth(design_index).unwrap().split(',').map(|x| x.parse().unwrap_or(f64::NAN)).collect();
+    let f_design = num(doc, "analysis.f_design_hz", seed);
+    close(row[col("f_hz")] / f_design, 1.0, 1e-9, "the sweep's frequency at f_design", seed);
+    close(row[col("gain_db")], gain_db, 1e-6, "the sweep's gain at f_design against analyze", seed);
+}
+
+/// The closed-loop poles and `stable` say the same; a negative margin is never
+/// called plainly stable.
+fn loop_agrees(report: &Value, seed: u64) {
+    let lp = &report["loop"];
+    let stable = lp["stable"].as_bool().unwrap_or_else(|| panic!("seed {seed}: loop.stable missing"));
+    let poles = lp["poles_hz"].as_array().unwrap();
+    let right_half = poles.iter().any(|p| p[0].as_f64().unwrap() > 0.0);
+    assert_eq!(stable, !right_half, "seed {seed}: stable {stable} with poles {poles:?}");
+    if let Some(pm) = lp["phase_margin_deg"].as_f64() {
+        if pm < 0.0 && stable {
+            assert_ne!(lp["verdict"]["kind"], json!("stable"), "seed {seed}: negative margin {pm}° called plainly stable");
+        }
+    }
+}
+
+/// The large-signal figures agree with each other and with the small signal.
+fn large_agrees(report: &Value, seed: u64) {
+    let large = &report["large"];
+    if large.is_null() || report["loop"]["stable"] == json!(false) {
+        return;
+    }
+    if let (Some(oip3), Some(iip3), Some(gt)) = (large["oip3_dbm"].as_f64(), large["iip3_dbm"].as_f64(), report["ac"]["power_gain_db"].as_f64()) {
+        close(oip3 - iip3, gt, 0.05, "OIP3 − IIP3 against GT", seed);
+    }
+    if let (Some(thd), Some(hd2), Some(hd3)) = (large["thd_pct"].as_f64(), large["hd2_dbc"].as_f64(), large["hd3_dbc"].as_f64()) {
+        let rss = 100.0 * (10f64.powf(hd2 / 10.0) + 10f64.powf(hd3 / 10.0)).sqrt();
+        assert!(thd >= rss * (1.0 - 1e-6), "seed {seed}: THD {thd} % below HD2 and HD3 together ({rss} %)");
+    }
+}
+
+/// The fundamental of the steady-state waveform at a small level against |Av|.
+fn transient_agrees(doc: &Value, gain_db: f64, seed: u64) {
+    let mut small = doc.clone();
+    small["analysis"]["input_dbm"] = json!(-80.0);
+    let Outcome::Printed(csv) = run("wave", &small, &["--csv"], seed) else {
+        return;
+    };
+    let rows: Vec<Vec<f64>> = csv.lines().skip(1).map(|l| l.split(',').map(|x| x.parse().unwrap()).collect()).collect();
+    let f = num(doc, "analysis.f_design_hz", seed);
+    // The record is whole periods: one DFT bin at f gives each fundamental.
+    let bin = |col: usize| {
+        let (mut re, mut im) = (0.0, 0.0);
+        for r in &rows {
+            let phase = std::f64::consts::TAU * f * r[0];
+            re += r[col] * phase.cos();
+            im += r[col] * phase.sin();
+        }
+        (re * re + im * im).sqrt()
+    };
+    let measured = 20.0 * (bin(2) / bin(1)).log10();
+    close(measured, gain_db, 0.05, "the transient's fundamental at −80 dBm against the small-signal gain", seed);
+}
+
+/// Design's top pair, put into the stage, gives the gain design reports.
+fn design_agrees(doc: &Value, seed: u64) {
+    let Some(design) = printed("design", doc, seed) else { return };
+    all_finite(&design, seed, "design");
+    let Some(top) = design["candidates"].as_array().and_then(|c| c.first()) else { return };
+    let mut built = doc.clone();
+    built["stage"]["r_in_ohm"] = top["r_in_ohm"].clone();
+    built["stage"]["r_fb_ohm"] = top["r_fb_ohm"].clone();
+    for key in ["c_in_f", "c_out_f"] {
+        if let Some(c) = design[key].as_f64() {
+            built["stage"][key] = json!(c);
+        }
+    }
+    built.as_object_mut().unwrap().remove("chain");
+    let Some(report) = printed("analyze", &built, seed) else {
+        panic!("seed {seed}: design's top pair is refused by analyze");
+    };
+    let power = doc["target"]["gain_kind"] == json!("power");
+    let got = num(&report, if power { "ac.power_gain_db" } else { "ac.gain_db" }, seed);
+    close(got, num(top, "gain_db", seed), 1e-6, "design's top pair re-analysed", seed);
+}
+
+/// A spread with every tolerance zero gives the nominal figures in every trial.
+fn spread_agrees(doc: &Value, gain_db: f64, seed: u64) {
+    let Some(spread) = printed("spread", doc, seed) else { return };
+    all_finite(&spread, seed, "spread");
+    let t = &doc["tolerance"];
+    let zero = ["resistor_pct", "capacitor_pct", "vdd_pct", "k_pct", "vt_mv"].iter().all(|k| t[k].as_f64() == Some(0.0));
+    if zero {
+        close(num(&spread, "gain_db.min", seed), gain_db, 1e-9, "a spread without tolerances (min)", seed);
+        close(num(&spread, "gain_db.max", seed), gain_db, 1e-9, "a spread without tolerances (max)", seed);
+    }
+}
+
+/// A chain of the stage alone equals the stage's GT and NF.
+fn chain_agrees(doc: &Value, report: &Value, seed: u64) {
+    let Some(chain) = printed("chain", doc, seed) else { return };
+    all_finite(&chain, seed, "chain");
+    let mut alone = doc.clone();
+    alone["chain"]["blocks"] = json!([{"kind": "stage"}]);
+    let (Some(one), Some(gt), Some(nf)) = (printed("chain", &alone, seed), report["ac"]["power_gain_db"].as_f64(), report["ac"]["nf_db"].as_f64()) else {
+        return;
+    };
+    close(num(&one, "gain_db", seed), gt, 1e-9, "a one-block chain's gain against the stage's GT", seed);
+    close(num(&one, "nf_db", seed), nf, 1e-9, "a one-block chain's NF against the stage's", seed);
+}
+
+fn report_agrees(doc: &Value, seed: u64) {
+    if let Outcome::Printed(text) = run("report", doc, &[], seed) {
+        for bad in ["NaN", "inf "] {
+            assert!(!text.contains(bad), "seed {seed}: the sheet shows {bad}");
+        }
+    }
+}
+
+/// Every verb on the document of `seed`, and every agreement between them.
+fn check_document(seed: u64) {
+    let drawn = domain::draw(seed);
+    let doc = &drawn.doc;
+    if let Outcome::Refused(_) = run("check", doc, &[], seed) {
+        return;
+    }
+    let Some(report) = printed("analyze", doc, seed) else {
+        // Refused for a reason of its own, with a field named (checked by `run`);
+        // the other verbs must refuse or answer the same way.
+        for verb in ["design", "spread", "chain", "report"] {
+            let _ = run(verb, doc, &[], seed);
+        }
+        return;
+    };
+    all_finite(&report, seed, "analyze");
+    for key in ["bias.vin_v", "bias.vout_v", "bias.iq_a", "bias.gm_s", "bias.a0", "ac.gain_db", "ac.phase_deg"] {
+        num(&report, key, seed);
+    }
+    let gain_db = num(&report, "ac.gain_db", seed);
+    sweep_agrees(doc, drawn.design_index, gain_db, seed);
+    loop_agrees(&report, seed);
+    large_agrees(&report, seed);
+    if report["loop"]["stable"] == json!(true) && doc["stage"].get("source_ohm").is_some() && seed % 3 == 0 {
+        transient_agrees(doc, gain_db, seed);
+    }
+    design_agrees(doc, seed);
+    spread_agrees(doc, gain_db, seed);
+    chain_agrees(doc, &report, seed);
+    report_agrees(doc, seed);
+}
+
+fn env_or(name: &str, default: u64) -> u64 {
+    std::env::var(name).ok().and_then(|v| v.parse().ok()).unwrap_or(default)
+}
+
+/// The documents from `first` taken by one worker of `workers`, each checked to
+/// the end; the failures as (seed, message).
+fn check_share(first: u64, count: u64, worker: u64, workers: u64) -> Vec<(u64, String)> {
+    (first + worker..first + count)
+        .step_by(workers as usize)
+        .filter_map(|seed| {
+            std::panic::catch_unwind(|| check_document(seed)).err().map(|e| {
+                let text = e.downcast_ref::<String>().cloned().or_else(|| e.downcast_ref::<&str>().map(|s| s.to_string()));
+                (seed, text.unwrap_or_default())
+            })
+        })
+        .collect()
+}
+
+#[test]
+fn every_verb_on_random_legal_documents() {
+    let first = env_or("HALFRAIL_DOMAIN_SEED", 0x5eed_0000);
+    let count = env_or("HALFRAIL_DOMAIN_DOCS", 12);
+    let workers = std::thread::available_parallelism().map_or(1, |n| n.get()).min(count.max(1) as usize) as u64;
+    let failures: Vec<(u64, String)> = std::thread::scope(|scope| {
+        let handles: Vec<_> = (0..workers).map(|w| scope.spawn(move || check_share(first, count, w, workers))).collect();
+        handles.into_iter().flat_map(|h| h.join().unwrap()).collect()
+    });
+    let list: Vec<String> = failures.iter().map(|(seed, text)| format!("  seed {seed}: {text}")).collect();
+    assert!(failures.is_empty(), "{} of {count} documents failed:\n{}", failures.len(), list.join("\n"));
+}
