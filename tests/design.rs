@@ -365,3 +365,35 @@ mod dominance {
         }
     }
 }
+
+#[test]
+fn a_low_corner_whose_capacitors_take_the_gain_is_refused_by_name() {
+    use serde_json::json;
+    // 5 MHz at f_design 10.7 MHz is inside the f_design/2 rule. At 12 dB there are
+    // pairs that keep it with their capacitors: the top one, built and analysed,
+    // has the gain reported and the corner.
+    let doc = base(&[("target", "f_low_hz", json!("5 MHz"))]);
+    let d = doc.design().unwrap();
+    let (part, stage) = doc.part_and_stage().unwrap();
+    let (k, best) = (d.coupling.unwrap(), &d.candidates[0]);
+    let built = stage.with(Component::RInOhm, Some(best.r_in)).with(Component::RFbOhm, Some(best.r_fb.ohms)).with(Component::CInF, k.c_in_f).with(Component::COutF, k.c_out_f);
+    let r = response(&part, &built, F, &frequencies(1e5, 1e9, 200), 50.0, None).unwrap();
+    assert!((r.design.gain_db() - best.figures.gain_db).abs() < 1e-6 && r.f_low_hz.unwrap() <= 5e6 * 1.002, "{} dB, edge {:?}", r.design.gain_db(), r.f_low_hz);
+    // At 15 dB the E12 capacitors for the corner cost the part so much gain at
+    // f_design that no pair reaches it: a refusal naming the corner, not an empty list.
+    let doc = base(&[("target", "f_low_hz", json!("5 MHz")), ("target", "gain_db", json!(15))]);
+    let err = doc.design().unwrap_err();
+    assert_eq!(err.field, "target.f_low_hz", "{err}");
+    // The claim checked: with the capacitors for the best pair without a corner, no
+    // r_in in range reaches 15 dB even with the largest r_fb allowed (10 MΩ; the
+    // gain rises with r_fb towards the open loop).
+    let best = &design(&part, &stage, F, 50.0, &target(15.0)).unwrap().candidates[0];
+    let pair = stage.with(Component::RInOhm, Some(best.r_in)).with(Component::RFbOhm, Some(best.r_fb.ohms));
+    let k = halfrail::analysis::design::coupling(&part, &pair, 5e6, F, 50.0).unwrap();
+    let fitted = stage.with(Component::CInF, k.c_in_f).with(Component::COutF, k.c_out_f);
+    let judge = Judge { part: &part, f_design: F, z0: 50.0, kind: GainKind::Voltage };
+    for r in r_in_values(&target(15.0)) {
+        let most = judge.gain_db(&fitted.with(Component::RInOhm, Some(r)).with(Component::RFbOhm, Some(10e6))).unwrap();
+        assert!(most < 15.0, "{r} Ω reaches {most} dB");
+    }
+}

@@ -174,22 +174,47 @@ pub fn design(part: &Part, c: &Components, f_design: f64, z0: f64, target: &Targ
             let Some(best) = found.candidates.first() else { break };
             let k = coupling(part, &with_pair(c, best.r_in, best.r_fb.ohms), f_low, f_design, z0)?;
             let next = c.with(Component::CInF, k.c_in_f.or(c.get(Component::CInF))).with(Component::COutF, k.c_out_f.or(c.get(Component::COutF)));
-            // The same capacitors the pairs were solved with: nothing to solve again.
-            let settled = next == fitted;
-            coupling_for = Some(k);
-            if settled {
+            if next == fitted {
+                // The capacitors the pairs were solved with: nothing to solve again.
+                coupling_for = Some(k);
                 break;
             }
-            fitted = next;
-            found = Search::run(&judge, &fitted, target)?;
-        }
-        // The corner the best pair gets with the capacitors fitted, as reported.
-        if let (Some(k), Some(best)) = (coupling_for.as_mut(), found.candidates.first()) {
-            let edge = crate::analysis::Linearised::new(part, &with_pair(&fitted, best.r_in, best.r_fb.ohms), z0)?.edge_below(f_design)?;
-            if edge.is_some_and(|e| e > f_low * 1.001) {
-                return Err(FieldError::new("target.f_low_hz", "the coupling capacitors and the resistors did not settle on a pair that keeps this low corner; widen it a little"));
+            let again = Search::run(&judge, &next, target)?;
+            if again.candidates.is_empty() {
+                // These capacitors take so much gain at f_design that no pair in
+                // range reaches the target: keep the last ones that left pairs.
+                if coupling_for.is_none() {
+                    return Err(FieldError::new(
+                        "target.f_low_hz",
+                        format!(
+                            "coupling capacitors for this low corner take gain at f_design: with them no pair of resistors in range reaches {:.2} dB there (at most {:.2} dB with r_fb open at the r_in values tried); lower the corner or the gain",
+                            target.gain_db, again.ceiling_db
+                        ),
+                    ));
+                }
+                break;
             }
-            k.f_low_hz = edge;
+            (fitted, found, coupling_for) = (next, again, Some(k));
+        }
+        // Only pairs that keep the corner with the capacitors fitted stay; the
+        // corner reported is the best pair's.
+        if let Some(k) = coupling_for.as_mut() {
+            let mut kept = Vec::new();
+            let mut top_edge = None;
+            for pair in std::mem::take(&mut found.candidates) {
+                let edge = crate::analysis::Linearised::new(part, &with_pair(&fitted, pair.r_in, pair.r_fb.ohms), z0)?.edge_below(f_design)?;
+                if edge.is_none_or(|e| e <= f_low * (1.0 + 1e-9)) {
+                    if kept.is_empty() {
+                        top_edge = edge;
+                    }
+                    kept.push(pair);
+                }
+            }
+            if kept.is_empty() {
+                return Err(FieldError::new("target.f_low_hz", "no pair keeps this low corner with the coupling capacitors chosen; lower the corner a little"));
+            }
+            found.candidates = kept;
+            k.f_low_hz = top_edge;
         }
     }
 
