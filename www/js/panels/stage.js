@@ -120,7 +120,7 @@
       warn.textContent = d.feasible ? '' : `This part cannot reach ${db(target)} at f_design (${HR.fmt(HR.design.value('analysis', 'f_design_hz', 'Hz'), 'Hz', 4)}): its open-loop gain there allows at most ${db(d.ceiling_db)}. The nearest target it can meet is ${db(d.ceiling_db)}; or lower f_design, or take a faster part.`;
       best.textContent = top ? `Best ${series} pair: R in ${rkm(top.r_in_ohm)}, R fb ${rfb(top)}, giving ${db(top.gain_db)}.${known(d.continuous_r_fb_ohm) ? ` Exact values: R in ${HR.fmt(d.continuous_r_in_ohm, 'Ω', 4)}, R fb ${HR.fmt(d.continuous_r_fb_ohm, 'Ω', 4)}.` : ''}${top.notes.length ? ` Note: ${top.notes.join('; ')}.` : ''}${top.stable ? '' : ' No pair in range gives a stable loop: compensate the loop (Loop panel) or take fewer stages.'}` : `No ${series} pair comes near the target.`;
       const bh = d.by_hand;
-      const rows = [[`By hand: −R fb/R in = the gain, in ${series}`, rkm(bh.r_in_ohm), rfb(bh), db(bh.gain_db), off(bh.error_db)]];
+      const rows = [[`By hand: the ideal ratio (−R fb/R in = the gain; for a power gain with the source divider), in ${series}`, rkm(bh.r_in_ohm), rfb(bh), db(bh.gain_db), off(bh.error_db)]];
       if (top) rows.push([`Designed with the part’s gain, in ${series}`, rkm(top.r_in_ohm), rfb(top), db(top.gain_db), off(top.error_db)]);
       HR.ui.fillRows(hand.tbody, rows);
       handNote.textContent = `The ideal ratio assumes a part of endless gain. This part’s open-loop gain is finite and falls with frequency, so at f_design the by-hand pair gives ${db(bh.gain_db)}, ${db(Math.abs(bh.error_db))} ${bh.error_db < 0 ? 'short of' : 'over'} the target; the design counts the real gain, phase and all.`;
@@ -144,7 +144,7 @@
         } }, 'Use')]));
     };
 
-    // Design once asked, then again a pause after each change (5 to 15 ms a call).
+    // Design once asked, then again a pause after each change (some 20–60 ms a call natively on the demo, more with a low corner, as the pairs are solved again with the capacitors fitted).
     let asked = false;
     let timer = null;
     const design = () => {
