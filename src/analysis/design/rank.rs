@@ -100,8 +100,8 @@ impl Candidate {
         }
         if self.part_sets_gain {
             notes.push(format!(
-                "the part, not the resistors, sets this gain: the loop gain at f_design is {} (below {})",
-                crate::units::format_eng(self.figures.loop_gain.unwrap_or(0.0), None, 3),
+                "the part, not the resistors, sets this gain: the loop gain |T| at f_design is {} (below {})",
+                crate::units::format_fixed(self.figures.loop_gain.unwrap_or(0.0), 2),
                 IN_CHARGE_LOOP_GAIN
             ));
         }
