@@ -171,30 +171,44 @@ pub fn design(part: &Part, c: &Components, f_design: f64, z0: f64, target: &Targ
     let mut coupling_for: Option<Coupling> = None;
     if let Some(f_low) = target.f_low_hz {
         for _ in 0..COUPLING_ROUNDS {
-            let Some(best) = found.candidates.first() else { break };
-            let k = coupling(part, &with_pair(c, best.r_in, best.r_fb.ohms), f_low, f_design, z0)?;
-            let next = c.with(Component::CInF, k.c_in_f.or(c.get(Component::CInF))).with(Component::COutF, k.c_out_f.or(c.get(Component::COutF)));
-            if next == fitted {
-                // The capacitors the pairs were solved with: nothing to solve again.
-                coupling_for = Some(k);
+            // Capacitors sized for the best pair; when with them no pair in range
+            // reaches the target any more (they take too much gain at f_design),
+            // those for the next best, and so on (at most `KEEP` tries).
+            let mut accepted = None;
+            let mut settled = false;
+            let mut ceiling = f64::NEG_INFINITY;
+            for pair in &found.candidates {
+                let k = coupling(part, &with_pair(c, pair.r_in, pair.r_fb.ohms), f_low, f_design, z0)?;
+                let next = c.with(Component::CInF, k.c_in_f.or(c.get(Component::CInF))).with(Component::COutF, k.c_out_f.or(c.get(Component::COutF)));
+                if next == fitted {
+                    // The capacitors the pairs were solved with: nothing to solve again.
+                    (settled, coupling_for) = (true, Some(k));
+                    break;
+                }
+                let again = Search::run(&judge, &next, target)?;
+                if !again.candidates.is_empty() {
+                    accepted = Some((next, again, k));
+                    break;
+                }
+                ceiling = ceiling.max(again.ceiling_db);
+            }
+            if settled {
                 break;
             }
-            let again = Search::run(&judge, &next, target)?;
-            if again.candidates.is_empty() {
-                // These capacitors take so much gain at f_design that no pair in
-                // range reaches the target: keep the last ones that left pairs.
-                if coupling_for.is_none() {
+            match accepted {
+                Some((next, again, k)) => (fitted, found, coupling_for) = (next, again, Some(k)),
+                // Keep the last capacitors that left pairs; with none, refuse.
+                None if coupling_for.is_some() || found.candidates.is_empty() => break,
+                None => {
                     return Err(FieldError::new(
                         "target.f_low_hz",
                         format!(
-                            "coupling capacitors for this low corner take gain at f_design: with them no pair of resistors in range reaches {:.2} dB there (at most {:.2} dB with r_fb open at the r_in values tried); lower the corner or the gain",
-                            target.gain_db, again.ceiling_db
+                            "coupling capacitors for this low corner take gain at f_design: with those sized for any of the best pairs, no pair of resistors in range reaches {:.2} dB there (at most {:.2} dB with r_fb open at the r_in values tried); lower the corner or the gain",
+                            target.gain_db, ceiling
                         ),
-                    ));
+                    ))
                 }
-                break;
             }
-            (fitted, found, coupling_for) = (next, again, Some(k));
         }
         // Only pairs that keep the corner with the capacitors fitted stay; the
         // corner reported is the best pair's.
