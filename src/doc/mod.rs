@@ -73,10 +73,12 @@ impl Target {
                 GainKind::Power => Kind::Power,
             },
             series: self.series,
-            limits: Limits { s11_max_db: self.s11_max_db, nf_max_db: self.nf_max_db, iq_max_a: self.iq_max_a },
+            limits: Limits { s11_max_db: self.s11_max_db, return_loss_min_db: self.return_loss_min_db, nf_max_db: self.nf_max_db, iq_max_a: self.iq_max_a },
             match_source: self.match_source,
             f_low_hz: self.f_low_hz,
             allow_combinations: self.allow_combinations,
+            r_min_ohm: self.r_min_ohm.unwrap_or(crate::analysis::design::R_MIN_OHM),
+            r_max_ohm: self.r_max_ohm.unwrap_or(crate::analysis::design::R_MAX_OHM),
         }
     }
 }

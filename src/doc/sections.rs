@@ -134,8 +134,12 @@ pub struct Target {
     pub gain_db: f64,
     pub gain_kind: GainKind,
     pub series: Series,
-    /// Largest acceptable S11 (a negative number of dB).
+    /// Largest acceptable two-port S11 at z0 (a negative number of dB; the `s11_db`
+    /// of `analyze`).
     pub s11_max_db: Option<f64>,
+    /// Smallest acceptable input return loss against the source resistance (a
+    /// positive number of dB; the `return_loss_db` of `analyze`).
+    pub return_loss_min_db: Option<f64>,
     /// Make the input resistance equal the source resistance.
     pub match_source: bool,
     /// The low corner wanted; coupling capacitors are chosen for it.
@@ -148,6 +152,9 @@ pub struct Target {
     pub pm_min_deg: Option<f64>,
     /// Allow a resistor to be two standard values in series or parallel.
     pub allow_combinations: bool,
+    /// The range the design's resistors lie in (default 10 Ω to 10 MΩ).
+    pub r_min_ohm: Option<f64>,
+    pub r_max_ohm: Option<f64>,
 }
 
 impl Target {
@@ -157,6 +164,7 @@ impl Target {
             gain_kind: f.choice("gain_kind", GAIN_KINDS).unwrap_or(GainKind::Voltage),
             series: f.parsed("series", "a series name such as \"E24\"", series).unwrap_or(Series::E24),
             s11_max_db: f.quantity("s11_max_db", U::DB),
+            return_loss_min_db: f.quantity("return_loss_min_db", U::DB),
             match_source: f.flag("match_source"),
             f_low_hz: f.quantity("f_low_hz", U::HERTZ),
             iq_max_a: f.quantity("iq_max_a", U::AMPERE),
@@ -164,6 +172,8 @@ impl Target {
             gain_tol_db: f.quantity("gain_tol_db", U::DB),
             pm_min_deg: f.quantity("pm_min_deg", U::PLAIN),
             allow_combinations: f.flag("allow_combinations"),
+            r_min_ohm: f.quantity("r_min_ohm", U::OHM),
+            r_max_ohm: f.quantity("r_max_ohm", U::OHM),
         }
     }
 }

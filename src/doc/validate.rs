@@ -149,6 +149,16 @@ fn analysis(a: &Analysis) -> Result<()> {
 fn target(t: &Target) -> Result<()> {
     range("target.gain_db", t.gain_db, Closed(-60.0), Closed(100.0))?;
     optional_range("target.s11_max_db", t.s11_max_db, Closed(-100.0), Open(0.0))?;
+    optional_range("target.return_loss_min_db", t.return_loss_min_db, Open(0.0), Closed(100.0))?;
+    optional_range("target.r_min_ohm", t.r_min_ohm, Closed(0.1), Closed(MAX_OHM))?;
+    optional_range("target.r_max_ohm", t.r_max_ohm, Closed(1.0), Closed(MAX_OHM))?;
+    let (low, high) = (t.r_min_ohm.unwrap_or(crate::analysis::design::R_MIN_OHM), t.r_max_ohm.unwrap_or(crate::analysis::design::R_MAX_OHM));
+    if low >= high {
+        return Err(FieldError::new(
+            if t.r_max_ohm.is_some() { "target.r_max_ohm" } else { "target.r_min_ohm" },
+            format!("the resistor range must not be empty: r_min_ohm {} is not below r_max_ohm {}", shown(low), shown(high)),
+        ));
+    }
     optional_range("target.f_low_hz", t.f_low_hz, Open(0.0), Closed(MAX_HZ))?;
     optional_range("target.iq_max_a", t.iq_max_a, Open(0.0), Closed(10.0))?;
     optional_range("target.nf_max_db", t.nf_max_db, Closed(0.0), Closed(100.0))?;

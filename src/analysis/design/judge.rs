@@ -1,7 +1,9 @@
 //! The figures a design is judged on, computed with the full model at f_design:
-//! the finite, complex open-loop gain and every loading effect included.
+//! the finite, complex open-loop gain and every loading effect included — and,
+//! for a candidate, whether its closed loop is stable at all.
 
 use crate::math;
+use crate::analysis::stability::{grows, natural_frequencies};
 use crate::analysis::Linearised;
 use crate::error::Result;
 use crate::part::Part;
@@ -14,12 +16,29 @@ use super::GainKind;
 pub struct Figures {
     /// The gain the target means (|Av| or GT), dB.
     pub gain_db: f64,
-    /// |Γ| of the input against the source resistance, dB (≤ 0; `None` without a
-    /// source resistance or an input impedance).
-    pub s11_db: Option<f64>,
+    /// The two-port S11 referenced to z0, dB (SPEC §3.3: `s11_db` is always this one).
+    pub s11_db: f64,
+    /// The input return loss against the real source resistance, dB (≥ 0; `None`
+    /// without a source resistance or an input impedance, or for a perfect match).
+    /// A different figure from S11: the source is `source_ohm`, not z0, and the
+    /// stage's own shunt and load are in place.
+    pub return_loss_db: Option<f64>,
     pub nf_db: Option<f64>,
     /// Supply current of the part, A.
     pub iq_a: f64,
+    /// |T|, the loop gain (Bode's return ratio of stage 1) at f_design (`None`
+    /// without a loop).
+    pub loop_gain: Option<f64>,
+}
+
+/// Whether a closed loop is stable: its natural frequencies, as the Loop panel
+/// computes them (`stability::natural_frequencies`, `stability::grows`).
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Stability {
+    Stable,
+    /// A natural frequency grows: the loop oscillates at about `f_hz`, or runs
+    /// away (a real pole in the right half-plane) when `f_hz` is `None`.
+    Oscillates { f_hz: Option<f64> },
 }
 
 /// Judges stages of one part at one frequency.
@@ -33,18 +52,41 @@ pub struct Judge<'a> {
 impl Judge<'_> {
     pub fn figures(&self, c: &Components) -> Result<Figures> {
         let lin = Linearised::new(self.part, c, self.z0)?;
+        self.figures_of(&lin, c)
+    }
+
+    fn figures_of(&self, lin: &Linearised, c: &Components) -> Result<Figures> {
         let p = lin.at(self.f_design, c)?;
         let gain_db = match self.kind {
             GainKind::Voltage => p.gain_db(),
             GainKind::Power => p.gt.map_or(f64::NEG_INFINITY, |g| 10.0 * math::log10(g)),
         };
-        let s11_db = c.get(Component::SourceOhm).filter(|&r| r > 0.0).and_then(|rs| p.return_loss_db(rs)).map(|rl| -rl);
+        let return_loss_db = c.get(Component::SourceOhm).filter(|&r| r > 0.0).and_then(|rs| p.return_loss_db(rs));
+        let s11_db = 20.0 * math::log10(math::norm(p.s[0][0]));
         let iq_a = lin.operating_point().supply_current();
-        Ok(Figures { gain_db, s11_db, nf_db: p.nf_db(), iq_a })
+        Ok(Figures { gain_db, s11_db, return_loss_db, nf_db: p.nf_db(), iq_a, loop_gain: p.loop_gain.map(|t| math::norm(t)) })
+    }
+
+    /// The figures and the loop's stability (what a candidate is judged on).
+    pub fn assess(&self, c: &Components) -> Result<(Figures, Stability)> {
+        let lin = Linearised::new(self.part, c, self.z0)?;
+        Ok((self.figures_of(&lin, c)?, stability(&lin)?))
     }
 
     /// The gain alone (what the solves iterate on).
     pub fn gain_db(&self, c: &Components) -> Result<f64> {
         self.figures(c).map(|f| f.gain_db)
     }
+}
+
+/// The closed loop's verdict from its natural frequencies: the fastest-growing one
+/// names the oscillation.
+pub fn stability(lin: &Linearised) -> Result<Stability> {
+    let small = lin.small_signal();
+    let poles = natural_frequencies(&small.g, &small.c)?;
+    let worst = poles.iter().copied().filter(|&p| grows(p)).max_by(|a, b| a.re.total_cmp(&b.re));
+    Ok(match worst {
+        None => Stability::Stable,
+        Some(p) => Stability::Oscillates { f_hz: (p.im != 0.0).then(|| p.im.abs() / std::f64::consts::TAU) },
+    })
 }

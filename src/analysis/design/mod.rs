@@ -1,9 +1,11 @@
 //! Design to target: the r_in and r_fb that give a wanted gain at f_design with
 //! the full model — the finite, complex, falling open-loop gain and every loading
-//! effect included — then the standard-value pairs around that answer, ranked
-//! (limits met, gain error, match, noise, current), coupling capacitors for a low
-//! corner, and the by-hand answer (the ideal ratio) beside it to show what the
-//! correction is worth.
+//! effect included — then standard-value pairs over every decade of r_in where the
+//! target can be met (within the resistor range an engineer would fit), ranked
+//! (a stable loop and the limits met, the resistors in charge, gain error, noise,
+//! match, current), coupling capacitors for a low corner with the pairs solved
+//! again once they are fitted, and the by-hand answer (the ideal ratio) beside it
+//! to show what the correction is worth.
 //!
 //! ```
 //! use halfrail::analysis::design::{design, GainKind, Target};
@@ -23,12 +25,14 @@
 mod coupling;
 mod judge;
 mod rank;
+mod search;
 mod solve;
 
-pub use coupling::{coupling, Coupling};
-pub use judge::{Figures, Judge};
-pub use rank::{better, either_side, joined_near, Candidate, Joined, Limits, Resistor, GAIN_STEP_DB};
-pub use solve::{ceiling_db, matched_r_in, r_fb_for, with_pair, R_FB_MAX};
+pub use coupling::{check_corner, coupling, Coupling, F_LOW_MAX_OF_DESIGN};
+pub use judge::{stability, Figures, Judge, Stability};
+pub use rank::{better, better_matched, either_side, joined_near, Candidate, Joined, Limits, Resistor, GAIN_STEP_DB, IN_CHARGE_LOOP_GAIN};
+pub use search::{r_in_values, Search};
+pub use solve::{ceiling_db, matched_r_in, r_fb_for, r_fb_under_ceiling, with_pair, R_FB_MAX};
 
 use crate::math;
 use crate::error::{FieldError, Result};
@@ -46,6 +50,12 @@ pub enum GainKind {
     Power,
 }
 
+/// The resistor values an engineer fits without a reason: below 10 Ω the part's
+/// own output and the wiring matter, above 10 MΩ leakage and the gate's
+/// capacitance do (common practice).
+pub const R_MIN_OHM: f64 = 10.0;
+pub const R_MAX_OHM: f64 = 10e6;
+
 /// What the design is to achieve.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Target {
@@ -53,126 +63,194 @@ pub struct Target {
     pub kind: GainKind,
     pub series: Series,
     pub limits: Limits,
-    /// Make the input match the source (least |S11| against the source resistance).
+    /// Make the input match the source (most return loss against the source
+    /// resistance), ranked before noise.
     pub match_source: bool,
     pub f_low_hz: Option<f64>,
     /// Allow r_fb to be two standard values in series or parallel.
     pub allow_combinations: bool,
+    /// The range every resistor of a candidate lies in (each part of a joined one too).
+    pub r_min_ohm: f64,
+    pub r_max_ohm: f64,
 }
 
 impl Default for Target {
     fn default() -> Self {
-        Target { gain_db: 0.0, kind: GainKind::Voltage, series: Series::E24, limits: Limits::default(), match_source: false, f_low_hz: None, allow_combinations: false }
+        Target {
+            gain_db: 0.0,
+            kind: GainKind::Voltage,
+            series: Series::E24,
+            limits: Limits::default(),
+            match_source: false,
+            f_low_hz: None,
+            allow_combinations: false,
+            r_min_ohm: R_MIN_OHM,
+            r_max_ohm: R_MAX_OHM,
+        }
     }
 }
 
 /// The answer.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Design {
-    /// The continuous r_in and r_fb that meet the gain exactly: at the stage's own
-    /// r_in (or the best match), else at the r_in searched nearest it (`None` if
-    /// none can).
+    /// The continuous r_in and r_fb that meet the gain exactly (coupling capacitors
+    /// fitted): at the stage's own r_in (or the best match), else at the r_in
+    /// searched nearest it (`None` if none can).
     pub continuous: Option<(f64, f64)>,
-    /// Standard-value candidates, best first.
+    /// Standard-value candidates, best first, no two the same.
     pub candidates: Vec<Candidate>,
     /// The largest gain this part reaches at f_design with the r_in values tried
     /// (r_fb open): the nearest feasible target when the one asked for is not.
     pub ceiling_db: f64,
-    /// The ideal ratio −r_fb/r_in (or its power-gain equivalent) snapped to the
-    /// series, and what it really gives.
+    /// The ideal ratio (see `ideal_ratio`) snapped to the series, and what it
+    /// really gives.
     pub by_hand: Candidate,
     pub coupling: Option<Coupling>,
 }
 
 /// Candidates kept.
 pub const KEEP: usize = 12;
-/// Standard r_in values tried at most (spread evenly over the range).
-const R_IN_TRIES: usize = 24;
-/// The r_in range searched around the starting value, as a factor either side.
-const R_IN_SPAN: f64 = 3.0;
+/// Rounds of sizing the coupling capacitors for the best pair and solving the
+/// pairs again with them fitted, at most (the second almost always agrees).
+const COUPLING_ROUNDS: usize = 3;
 
-/// The gain ratio by the ideal formula: |Av| = r_fb/r_in, or from GT = |Av|²·4Rs/RL.
-fn ideal_ratio(target: &Target, c: &Components) -> f64 {
-    let db = target.gain_db;
+/// The ratio r_fb/r_in an ideal inverting amplifier (endless gain, g1 a virtual
+/// ground, zero output resistance at oN) needs for the target, for a given r_in.
+///
+/// Voltage: v(out) = −(r_fb/r_in)·v(in)·RL/(RL + r_out) (r_out into the load; 1
+/// without a load), so r_fb/r_in = 10^(G/20)·(RL + r_out)/RL.
+///
+/// Power (SPEC §3.3: GT = (|v(out)|²/RL)/(|Vs|²/(4·Rs))): with g1 a virtual ground
+/// the input pin sees Zin = shunt ∥ r_in (c_in a short), so v(in) = Vs·Zin/(Rs + Zin)
+/// and v(out) = −(r_fb/r_in)·v(in)·RL/(RL + r_out). Then
+///   GT = (r_fb/r_in)²·(Zin/(Rs + Zin))²·(RL/(RL + r_out))²·4·Rs/RL,
+/// so r_fb/r_in = √(GT·RL/(4·Rs))·(Rs + Zin)/Zin·(RL + r_out)/RL. The divider
+/// (Rs + Zin)/Zin is what a ratio from GT = |Av|²·4Rs/RL alone misses: 6 dB when
+/// the input is matched (Zin = Rs).
+pub fn ideal_ratio(target: &Target, c: &Components, r_in: f64) -> f64 {
+    let r_out = c.get(Component::ROutOhm).unwrap_or(0.0);
+    let out_divider = c.get(Component::LoadOhm).filter(|&rl| rl > 0.0).map_or(1.0, |rl| (rl + r_out) / rl);
     match (target.kind, c.get(Component::SourceOhm), c.get(Component::LoadOhm)) {
-        (GainKind::Power, Some(rs), Some(rl)) if rs > 0.0 => (math::pow(10f64, db / 10.0) * rl / (4.0 * rs)).sqrt(),
-        _ => math::pow(10f64, db / 20.0),
+        (GainKind::Power, Some(rs), Some(rl)) if rs > 0.0 && rl > 0.0 => {
+            let zin = match c.get(Component::ShuntOhm) {
+                Some(shunt) if shunt > 0.0 => shunt * r_in / (shunt + r_in),
+                _ => r_in,
+            };
+            (math::pow(10f64, target.gain_db / 10.0) * rl / (4.0 * rs)).sqrt() * (rs + zin) / zin * out_divider
+        }
+        _ => math::pow(10f64, target.gain_db / 20.0) * out_divider,
     }
 }
 
-/// Designs the stage `c` (its source, load and part as they are) to `target` at
-/// `f_design`.
-pub fn design(part: &Part, c: &Components, f_design: f64, z0: f64, target: &Target) -> Result<Design> {
-    if target.kind == GainKind::Power && (c.get(Component::SourceOhm).is_none_or(|r| r <= 0.0) || c.get(Component::LoadOhm).is_none()) {
+/// Refuses a target the design cannot take, naming its field.
+fn check(target: &Target, c: &Components, f_design: f64) -> Result<()> {
+    if target.kind == GainKind::Power && (c.get(Component::SourceOhm).is_none_or(|r| r <= 0.0) || c.get(Component::LoadOhm).is_none_or(|r| r <= 0.0)) {
         return Err(FieldError::new("target.gain_kind", "a power gain needs a source resistance and a load resistor"));
     }
+    if !(target.r_min_ohm > 0.0 && target.r_min_ohm < target.r_max_ohm) {
+        return Err(FieldError::new("target.r_max_ohm", format!("must be above target.r_min_ohm ({}), got {}", target.r_min_ohm, target.r_max_ohm)));
+    }
+    if target.match_source && c.get(Component::SourceOhm).is_none_or(|r| r <= 0.0) {
+        return Err(FieldError::new("target.match_source", "there is no source resistance to match"));
+    }
+    target.f_low_hz.map_or(Ok(()), |f| check_corner(f, f_design))
+}
+
+/// Designs the stage `c` (its source, load and part as they are) to `target` at
+/// `f_design`. A stage r_in of 0 (a short) leaves r_in to the design.
+pub fn design(part: &Part, c: &Components, f_design: f64, z0: f64, target: &Target) -> Result<Design> {
+    check(target, c, f_design)?;
     let judge = Judge { part, f_design, z0, kind: target.kind };
-    let ratio = ideal_ratio(target, c);
-    let rs = c.get(Component::SourceOhm).filter(|&r| r > 0.0);
+    let own_r_in = c.get(Component::RInOhm).filter(|&r| r > 0.0);
 
-    // Where to look for r_in: the best match to the source, else the stage's own r_in.
-    let start = c.get(Component::RInOhm).or(rs).unwrap_or(1e3);
-    let continuous = if target.match_source {
-        let rs = rs.ok_or_else(|| FieldError::new("target.match_source", "there is no source resistance to match"))?;
-        matched_r_in(&judge, c, target.gain_db, rs / 100.0, rs * 100.0)?
-    } else {
-        r_fb_for(&judge, c, start, target.gain_db, start * ratio)?.map(|r_fb| (start, r_fb))
-    };
-    let centre = continuous.map_or(start, |(r_in, _)| r_in);
-
-    // Standard r_in values around it, each with the r_fb either side of its own
-    // continuous answer (or joined pairs, where allowed).
-    let all = target.series.between(centre / R_IN_SPAN, centre * R_IN_SPAN);
-    let stride = all.len().div_ceil(R_IN_TRIES).max(1);
-    let mut r_ins: Vec<f64> = all.iter().copied().step_by(stride).collect();
-    r_ins.extend(either_side(centre, target.series));
-    crate::order::sort_numbers(&mut r_ins);
-    r_ins.dedup();
-
-    let mut candidates = Vec::new();
-    let mut ceiling = f64::NEG_INFINITY;
-    let mut guess = continuous.map_or(start * ratio, |(_, r_fb)| r_fb);
-    // Each r_in's exact r_fb, for a continuous answer when the starting r_in has none.
-    let mut exact: Vec<(f64, f64)> = Vec::new();
-    for &r_in in &r_ins {
-        ceiling = ceiling.max(ceiling_db(&judge, c, r_in)?);
-        let Some(r_fb) = r_fb_for(&judge, c, r_in, target.gain_db, guess)? else { continue };
-        guess = r_fb;
-        exact.push((r_in, r_fb));
-        let mut choices: Vec<Resistor> = either_side(r_fb, target.series).into_iter().map(|ohms| Resistor { ohms, parts: None }).collect();
-        if target.allow_combinations {
-            choices.extend(joined_near(r_fb, target.series, 2));
-        }
-        for choice in choices {
-            candidates.push(Candidate::judged(&judge, c, r_in, choice, target.gain_db, &target.limits)?);
-        }
-    }
-    let continuous = continuous.or_else(|| exact.iter().copied().min_by(|a, b| math::ln(a.0 / start).abs().total_cmp(&math::ln(b.0 / start).abs())));
-    crate::order::sort_by(&mut candidates, better);
-    candidates.truncate(KEEP);
-
-    // Coupling capacitors for the best pair; then every candidate judged again with
-    // them fitted, so the figures shown are the ones the applied design gives. If
-    // that changes which pair is best, the capacitors are sized again for it.
-    let mut coupling_for: Option<Coupling> = None;
+    // The pairs with the stage's capacitors; then, for a low corner, capacitors
+    // sized for the best pair and every pair solved again with them fitted, until
+    // the best pair's capacitors are the ones fitted.
     let mut fitted = *c;
-    for _ in 0..3 {
-        let (Some(f_low), Some(best)) = (target.f_low_hz, candidates.first()) else { break };
-        let chosen = (best.r_in, best.r_fb.ohms);
-        let k = coupling(part, &with_pair(c, chosen.0, chosen.1), f_low, f_design, z0)?;
-        fitted = c.with(Component::CInF, k.c_in_f.or(c.get(Component::CInF))).with(Component::COutF, k.c_out_f.or(c.get(Component::COutF)));
-        coupling_for = Some(k);
-        candidates = candidates.iter().map(|k| Candidate::judged(&judge, &fitted, k.r_in, k.r_fb, target.gain_db, &target.limits)).collect::<Result<_>>()?;
-        crate::order::sort_by(&mut candidates, better);
-        if candidates.first().is_some_and(|b| (b.r_in, b.r_fb.ohms) == chosen) {
-            break;
+    let mut found = Search::run(&judge, &fitted, target)?;
+    let mut coupling_for: Option<Coupling> = None;
+    if let Some(f_low) = target.f_low_hz {
+        for _ in 0..COUPLING_ROUNDS {
+            // Capacitors sized for the best pair; when with them no pair in range
+            // reaches the target any more (they take too much gain at f_design),
+            // those for the next best, and so on (at most `KEEP` tries).
+            let mut accepted = None;
+            let mut settled = false;
+            let mut ceiling = f64::NEG_INFINITY;
+            for pair in &found.candidates {
+                let k = coupling(part, &with_pair(c, pair.r_in, pair.r_fb.ohms), f_low, f_design, z0)?;
+                let next = c.with(Component::CInF, k.c_in_f.or(c.get(Component::CInF))).with(Component::COutF, k.c_out_f.or(c.get(Component::COutF)));
+                if next == fitted {
+                    // The capacitors the pairs were solved with: nothing to solve again.
+                    (settled, coupling_for) = (true, Some(k));
+                    break;
+                }
+                let again = Search::run(&judge, &next, target)?;
+                if !again.candidates.is_empty() {
+                    accepted = Some((next, again, k));
+                    break;
+                }
+                ceiling = ceiling.max(again.ceiling_db);
+            }
+            if settled {
+                break;
+            }
+            match accepted {
+                Some((next, again, k)) => (fitted, found, coupling_for) = (next, again, Some(k)),
+                // Keep the last capacitors that left pairs; with none, refuse.
+                None if coupling_for.is_some() || found.candidates.is_empty() => break,
+                None => {
+                    return Err(FieldError::new(
+                        "target.f_low_hz",
+                        format!(
+                            "coupling capacitors for this low corner take gain at f_design: with those sized for any of the best pairs, no pair of resistors in range reaches {:.2} dB there (at most {:.2} dB with r_fb open at the r_in values tried); lower the corner or the gain",
+                            target.gain_db, ceiling
+                        ),
+                    ))
+                }
+            }
+        }
+        // Only pairs that keep the corner with the capacitors fitted stay; the
+        // corner reported is the best pair's.
+        if let Some(k) = coupling_for.as_mut() {
+            let mut kept = Vec::new();
+            let mut top_edge = None;
+            for pair in std::mem::take(&mut found.candidates) {
+                let edge = crate::analysis::Linearised::new(part, &with_pair(&fitted, pair.r_in, pair.r_fb.ohms), z0)?.edge_below(f_design)?;
+                if edge.is_none_or(|e| e <= f_low * (1.0 + 1e-9)) {
+                    if kept.is_empty() {
+                        top_edge = edge;
+                    }
+                    kept.push(pair);
+                }
+            }
+            if kept.is_empty() {
+                return Err(FieldError::new("target.f_low_hz", "no pair keeps this low corner with the coupling capacitors chosen; lower the corner a little"));
+            }
+            found.candidates = kept;
+            k.f_low_hz = top_edge;
         }
     }
-    let coupling = coupling_for;
 
+    let top_r_in = found.candidates.first().map(|k| k.r_in);
+    let continuous = if target.match_source {
+        let rs = c.get(Component::SourceOhm).unwrap_or(0.0);
+        matched_r_in(&judge, &fitted, target.gain_db, (rs / 100.0).max(target.r_min_ohm), (rs * 100.0).min(target.r_max_ohm))?
+    } else {
+        match own_r_in {
+            Some(r_in) => r_fb_for(&judge, &fitted, r_in, target.gain_db, r_in * ideal_ratio(target, &fitted, r_in))?.map(|r_fb| (r_in, r_fb)),
+            None => None,
+        }
+    };
+    // Else the exact answer at the r_in searched nearest the stage's own (or the best pair's).
+    let near = own_r_in.or(top_r_in).unwrap_or(1e3);
+    let continuous = continuous.or_else(|| found.exact.iter().copied().min_by(|a, b| math::ln(a.0 / near).abs().total_cmp(&math::ln(b.0 / near).abs())));
+
+    // By hand: the stage's own r_in (or, when it leaves r_in to the design, the
+    // best pair's, else the source's), and the ideal ratio, both snapped.
     let snap = |v: f64| nearest(v, target.series).map(|n| n.nearest);
-    let hand_r_in = snap(start)?;
-    let hand_r_fb = Resistor { ohms: snap(hand_r_in * ratio)?, parts: None };
+    let hand_r_in = snap(own_r_in.or(top_r_in).or(c.get(Component::SourceOhm).filter(|&r| r > 0.0)).unwrap_or(1e3))?;
+    let hand_r_fb = Resistor { ohms: snap(hand_r_in * ideal_ratio(target, &fitted, hand_r_in))?, parts: None };
     let by_hand = Candidate::judged(&judge, &fitted, hand_r_in, hand_r_fb, target.gain_db, &target.limits)?;
-    Ok(Design { continuous, candidates, ceiling_db: ceiling, by_hand, coupling })
+    Ok(Design { continuous, candidates: found.candidates, ceiling_db: found.ceiling_db, by_hand, coupling: coupling_for })
 }

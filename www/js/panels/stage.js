@@ -52,9 +52,12 @@
   };
   const TARGET = [
     ['gain_db', 'Gain wanted', 'dB at f_design, e.g. 12'], ['f_low_hz', 'Low corner', 'Hz, optional: picks C in and C out'],
-    ['s11_max_db', 'S11 at most', 'dB, optional, e.g. -15'], ['iq_max_a', 'Supply current at most', 'A, optional'],
+    ['s11_max_db', 'S11 at most', 'dB, two-port S11 at z0 (as the Response panel), optional, e.g. -15'],
+    ['return_loss_min_db', 'Return loss at least', 'dB against the source resistance, optional, e.g. 15'],
+    ['iq_max_a', 'Supply current at most', 'A, optional'],
     ['nf_max_db', 'Noise figure at most', 'dB, optional'], ['gain_tol_db', 'Gain tolerance', '± dB, optional (for the Spread yield)'],
     ['pm_min_deg', 'Phase margin at least', '°, optional (for the Spread yield)'],
+    ['r_min_ohm', 'Resistors from', 'Ω, optional (10 Ω unless widened)'], ['r_max_ohm', 'Resistors up to', 'Ω, optional (10 MΩ unless widened)'],
   ];
 
   // The form (the design's `target` section, so it persists and undoes) and the
@@ -104,7 +107,7 @@
     const hand = HR.ui.table('The ideal ratio against the part’s real gain', ['', 'R in', 'R fb', 'Gives', 'Off target']);
     const handNote = el('p', { class: 'plot-note' });
     const capsNote = el('p', { class: 'intro' });
-    const list = HR.ui.table('', ['#', 'R in', 'R fb', 'Gain', 'Off target', 'S11', 'NF', 'Supply current', 'Limits met', '']);
+    const list = HR.ui.table('', ['#', 'R in', 'R fb', 'Gain', 'Off target', 'S11', 'Return loss', 'NF', 'Supply current', 'Loop gain', 'Limits met', 'Notes', '']);
     list.node.classList.add('candidates');
     const out = el('div', { class: 'design-out', hidden: true }, warn, best,
       el('div', { class: 'scroll' }, hand.node), handNote, capsNote, caps.wrap, el('div', { class: 'scroll' }, list.node));
@@ -115,9 +118,9 @@
       const top = d.candidates[0];
       warn.hidden = d.feasible;
       warn.textContent = d.feasible ? '' : `This part cannot reach ${db(target)} at f_design (${HR.fmt(HR.design.value('analysis', 'f_design_hz', 'Hz'), 'Hz', 4)}): its open-loop gain there allows at most ${db(d.ceiling_db)}. The nearest target it can meet is ${db(d.ceiling_db)}; or lower f_design, or take a faster part.`;
-      best.textContent = top ? `Best ${series} pair: R in ${rkm(top.r_in_ohm)}, R fb ${rfb(top)}, giving ${db(top.gain_db)}.${known(d.continuous_r_fb_ohm) ? ` Exact values: R in ${HR.fmt(d.continuous_r_in_ohm, 'Ω', 4)}, R fb ${HR.fmt(d.continuous_r_fb_ohm, 'Ω', 4)}.` : ''}` : `No ${series} pair comes near the target.`;
+      best.textContent = top ? `Best ${series} pair: R in ${rkm(top.r_in_ohm)}, R fb ${rfb(top)}, giving ${db(top.gain_db)}.${known(d.continuous_r_fb_ohm) ? ` Exact values: R in ${HR.fmt(d.continuous_r_in_ohm, 'Ω', 4)}, R fb ${HR.fmt(d.continuous_r_fb_ohm, 'Ω', 4)}.` : ''}${top.notes.length ? ` Note: ${top.notes.join('; ')}.` : ''}${top.stable ? '' : ' No pair in range gives a stable loop: compensate the loop (Loop panel) or take fewer stages.'}` : `No ${series} pair comes near the target.`;
       const bh = d.by_hand;
-      const rows = [[`By hand: −R fb/R in = the gain, in ${series}`, rkm(bh.r_in_ohm), rfb(bh), db(bh.gain_db), off(bh.error_db)]];
+      const rows = [[`By hand: the ideal ratio (−R fb/R in = the gain; for a power gain with the source divider), in ${series}`, rkm(bh.r_in_ohm), rfb(bh), db(bh.gain_db), off(bh.error_db)]];
       if (top) rows.push([`Designed with the part’s gain, in ${series}`, rkm(top.r_in_ohm), rfb(top), db(top.gain_db), off(top.error_db)]);
       HR.ui.fillRows(hand.tbody, rows);
       handNote.textContent = `The ideal ratio assumes a part of endless gain. This part’s open-loop gain is finite and falls with frequency, so at f_design the by-hand pair gives ${db(bh.gain_db)}, ${db(Math.abs(bh.error_db))} ${bh.error_db < 0 ? 'short of' : 'over'} the target; the design counts the real gain, phase and all.`;
@@ -127,10 +130,10 @@
         : 'Give a low corner to have the coupling capacitors chosen; Use then leaves them as they are.';
       caps.wrap.hidden = !hasCaps;
       capsNote.hidden = !top;
-      list.node.querySelector('caption').textContent = `${d.candidates.length} standard pairs from ${series}, best first (Off target: gain minus the target; S11: against the source resistance; Limits: the target’s S11, current and NF limits)`;
+      list.node.querySelector('caption').textContent = `${d.candidates.length} standard pairs from ${series}, best first (Off target: gain minus the target; S11: the two-port’s at z0; Return loss: of the input against the source resistance; Loop gain: |T| at f_design; Limits: a stable loop and the target’s S11, return loss, current and NF limits)`;
       list.node.hidden = !top;
       HR.ui.fillRows(list.tbody, d.candidates.map((c, i) => [String(i + 1), rkm(c.r_in_ohm), rfb(c), db(c.gain_db), off(c.error_db), db(c.s11_db),
-        db(c.nf_db), HR.fmt(c.iq_a, 'A', 3), c.meets_limits ? 'yes' : 'no',
+        db(c.return_loss_db), db(c.nf_db), HR.fmt(c.iq_a, 'A', 3), known(c.loop_gain) ? HR.fmt(c.loop_gain, '', 3) : '—', c.meets_limits ? 'yes' : 'no', c.notes.join('; '),
         el('button', { type: 'button', class: 'apply', 'aria-label': `Use R in ${rkm(c.r_in_ohm)} and R fb ${rfb(c)}`, onclick: () => {
           const values = { r_in_ohm: asText(c.r_in_ohm, 'R', 'Ω'), r_fb_ohm: asText(c.r_fb_ohm, 'R', 'Ω') };
           if (hasCaps && caps.box.checked) {
@@ -141,7 +144,7 @@
         } }, 'Use')]));
     };
 
-    // Design once asked, then again a pause after each change (5 to 15 ms a call).
+    // Design once asked, then again a pause after each change (some 20–60 ms a call natively on the demo, more with a low corner, as the pairs are solved again with the capacitors fitted).
     let asked = false;
     let timer = null;
     const design = () => {
@@ -164,7 +167,7 @@
       timer = setTimeout(design, 300);
     });
     const node = card('Design to a target',
-      el('p', { class: 'intro' }, 'The gain you want at f_design; Design finds the standard resistor pairs that give it with this part’s real, finite gain, ranked by gain error, match, noise and current. Use puts a pair in the stage (one step to undo).'),
+      el('p', { class: 'intro' }, 'The gain you want at f_design; Design finds the standard resistor pairs that give it with this part’s real, finite gain, ranked by a stable loop and the limits met, the resistors in charge of the gain (loop gain 3 or more), gain error, noise, match and current. Use puts a pair in the stage (one step to undo).'),
       el('div', { class: 'grid-fields' }, fields.slice(0, 1).map(([, f]) => f.wrap), selects.map(([, c]) => c.wrap), fields.slice(1).map(([, f]) => f.wrap)),
       el('div', { class: 'inputs' }, ticks.map((t) => t.wrap)),
       el('div', { class: 'actions' }, el('button', { type: 'button', onclick: design }, 'Design')), problem, out);
