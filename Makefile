@@ -57,6 +57,7 @@ fuzz:
 
 bench: dist setup-node setup-browser
 	cargo bench --bench core
+	cargo bench --bench domain
 	node wasm-tests/bench/page.mjs $(PAGE)
 
 setup-rust:

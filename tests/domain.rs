@@ -288,3 +288,11 @@ fn every_verb_on_random_legal_documents() {
     let list: Vec<String> = failures.iter().map(|(seed, text)| format!("  seed {seed}: {text}")).collect();
     assert!(failures.is_empty(), "{} of {count} documents failed:\n{}", failures.len(), list.join("\n"));
 }
+
+/// Prints the document of `HALFRAIL_DOMAIN_SEED`, to replay a failure by hand:
+/// `cargo test --test domain print_document -- --ignored --nocapture`.
+#[test]
+#[ignore]
+fn print_document() {
+    println!("{}", domain::draw(env_or("HALFRAIL_DOMAIN_SEED", 0x5eed_0000)).doc);
+}

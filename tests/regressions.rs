@@ -123,3 +123,20 @@ fn with_r_in_a_short_there_is_no_ideal_ratio() {
     let r = load(&base().to_string()).unwrap().response().unwrap();
     assert_eq!(r.ideal_gain, Some(-10.0));
 }
+
+#[test]
+fn whole_number_fields_take_what_a_person_types() {
+    // The page sends what was typed, as text: "3" stages, " 5 ", "2k" trials.
+    let mut doc = base();
+    doc["part"]["stages"] = json!("3");
+    doc["tolerance"] = json!({"trials": "2k", "seed": " 7 "});
+    let d = load(&doc.to_string()).unwrap();
+    assert_eq!(d.part.unwrap().stages, 3);
+    let t = d.tolerance.unwrap();
+    assert_eq!((t.trials, t.seed), (2000, 7));
+    for (bad, why) in [("1.5", "1.5"), ("-1", "-1"), ("3 V", "has a unit"), ("three", "not a number")] {
+        doc["part"]["stages"] = json!(bad);
+        let e = refusal(&doc);
+        assert!(e.starts_with("part.stages: ") && e.contains(why), "{bad}: {e}");
+    }
+}

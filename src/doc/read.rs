@@ -47,6 +47,19 @@ fn one_of(names: &[&str]) -> String {
 }
 
 /// A value field (see `quantity`).
+/// A whole number from 0 to `max` written as text, or why it is not one.
+fn whole_number(text: &str, max: u64) -> std::result::Result<u64, String> {
+    let parsed = crate::units::parse(text).map_err(|e| e.reason)?;
+    let value = parsed.value;
+    if parsed.unit.is_some() {
+        Err(format!("invalid value: `{}` has a unit", text.trim()))
+    } else if value < 0.0 || value > max as f64 || value.fract() != 0.0 {
+        Err(format!("invalid value: {value}"))
+    } else {
+        Ok(value as u64)
+    }
+}
+
 fn quantity(value: &Json, unit: FieldUnit) -> Result<f64> {
     let read = match value {
         Json::Number(n) => unit.number(n.as_f64().unwrap_or(f64::NAN)),
@@ -139,12 +152,14 @@ impl<'a> Fields<'a> {
     }
 
     /// A whole number from 0 to `max`, `default` when absent; a fraction (even
-    /// `1.0`), a negative number or null is refused.
+    /// `1.0`), a negative number or null is refused. Written as text it may take a
+    /// prefix as any value does (`"3"`, `"2k"` trials), but no unit.
     pub fn integer(&mut self, key: &'static str, default: u64, max: u64) -> u64 {
         let expected = || format!("a whole number from 0 to {max}");
         let read = |v: &Json| match v {
             Json::Number(n) if n.is_f64() => wrong_type(v, &expected()),
             Json::Number(n) => n.as_u64().filter(|&n| n <= max).map_or_else(|| refused(format!("invalid value: integer `{n}`, expected {}", expected())), Ok),
+            Json::String(text) => whole_number(text, max).or_else(|reason| refused(format!("{reason}, expected {}", expected()))),
             other => wrong_type(other, &expected()),
         };
         self.typed(key, false, read).unwrap_or(default)
