@@ -51,9 +51,12 @@ test-e2e: dist setup-node setup-browser
 
 # The long fuzz run of the value parser and the document loader (tests/fuzz.rs;
 # `cargo test` runs 256 cases a property), in a release build: some fifteen times faster.
+# The whole-domain property suite (tests/domain.rs) over DOMAIN_DOCS random documents.
 FUZZ_CASES ?= 200000
+DOMAIN_DOCS ?= 20000
 fuzz:
 	HALFRAIL_FUZZ_CASES=$(FUZZ_CASES) cargo test --release --test fuzz
+	HALFRAIL_DOMAIN_DOCS=$(DOMAIN_DOCS) cargo test --release --test domain
 
 bench: dist setup-node setup-browser
 	cargo bench --bench core
