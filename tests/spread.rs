@@ -9,7 +9,7 @@ use halfrail::doc::{load, DEMO};
 
 fn demo() -> (halfrail::part::Part, halfrail::stage::Components, Setup) {
     let (part, stage) = load(DEMO).unwrap().part_and_stage().unwrap();
-    let setup = Setup::new(&part, &stage, 10.7e6, 1e9, 50.0, GainKind::Voltage).unwrap();
+    let setup = Setup::new(&part, &stage, 10.7e6, (1e3, 1e9), 50.0, GainKind::Voltage).unwrap();
     (part, stage, setup)
 }
 
@@ -51,7 +51,7 @@ fn the_same_seed_repeats_and_another_seed_agrees_statistically() {
     assert_eq!(a, split);
     let b = run(&part, &stage, &setup, &SHOP, 8, 0..300);
     assert_ne!(a, b);
-    let stat = |t: &[halfrail::analysis::spread::Values]| summarise(t, &Limits::default()).stats[0].unwrap();
+    let stat = |t: &[halfrail::analysis::spread::Trial]| summarise(t, &Limits::default()).stats[0].unwrap();
     let (sa, sb) = (stat(&a), stat(&b));
     let se = (sa.std.powi(2) / 300.0 + sb.std.powi(2) / 300.0).sqrt();
     assert!((sa.mean - sb.mean).abs() < 4.0 * se, "means {} and {} (se {se})", sa.mean, sb.mean);
@@ -66,7 +66,7 @@ fn yield_counts_the_trials_that_pass() {
     let nobody = Limits { iq_max_a: Some(1e-9), ..Limits::default() };
     assert_eq!(summarise(&trials, &nobody).yield_fraction, Some(0.0));
     let some = Limits { gain: Some((10.0, 0.3)), ..Limits::default() };
-    let counted = trials.iter().filter(|v| v[0].is_some_and(|g| (g - 10.0).abs() <= 0.3)).count() as f64 / 200.0;
+    let counted = trials.iter().filter(|v| v.values[0].is_some_and(|g| (g - 10.0).abs() <= 0.3)).count() as f64 / 200.0;
     assert_eq!(summarise(&trials, &some).yield_fraction, Some(counted));
     assert!(counted > 0.0 && counted < 1.0);
     assert_eq!(summarise(&trials, &Limits::default()).yield_fraction, None);
