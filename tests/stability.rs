@@ -167,6 +167,93 @@ fn margins_on_a_grid_too_coarse_to_see_the_crossing_point() {
     assert!((m.phase_margin_deg.unwrap() - (180.0 - 3.0 * (wc / p).atan().to_degrees())).abs() < 0.05, "{:?}", m);
 }
 
+/// The root of `g` between `lo` and `hi` (Hz, `g` changing sign between them), by the
+/// test's own bisection in log frequency to 1e-12 relative.
+fn root(g: impl Fn(f64) -> f64, mut lo: f64, mut hi: f64) -> f64 {
+    let below = g(lo) > 0.0;
+    assert_ne!(below, g(hi) > 0.0, "no sign change between {lo} and {hi}");
+    while hi / lo - 1.0 > 1e-12 {
+        let mid = (lo * hi).sqrt();
+        if (g(mid) > 0.0) == below {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    (lo * hi).sqrt()
+}
+
+#[test]
+fn a_crossover_below_f_design_is_found() {
+    // The two-pole loop of `two_pole_loop_margins` with f_design a hundred times above
+    // its crossover: SPEC §3.3 carries the phase up from the bottom of the sweep, so
+    // the crossover below f_design is found (the earlier walk from f_design up found
+    // none and reported no margin at all — issue item 5).
+    let freqs = frequencies(1.0, 1e10, 20);
+    let (a0, f1, f2) = (100.0, 1e4, 1e5);
+    let (p1, p2) = (TAU * f1, TAU * f2);
+    let t = move |f: f64| Complex64::new(a0, 0.0) / ((1.0 + s_of(f) / p1) * (1.0 + s_of(f) / p2));
+    let (a, b, c) = (1.0 / (p1 * p1 * p2 * p2), 1.0 / (p1 * p1) + 1.0 / (p2 * p2), 1.0 - a0 * a0);
+    let wc = (2.0 * c / (-b - (b * b - 4.0 * a * c).sqrt())).sqrt();
+    let m = margins_of(100.0 * wc / TAU, &freqs, t);
+    let fc = m.crossover_hz.expect("the crossover below f_design");
+    assert!((fc / (wc / TAU) - 1.0).abs() < 1e-3, "crossover {fc} vs {}", wc / TAU);
+    let pm = 180.0 - (wc / p1).atan().to_degrees() - (wc / p2).atan().to_degrees();
+    assert!((m.phase_margin_deg.unwrap() - pm).abs() < 0.05, "{m:?} vs {pm}");
+    assert_eq!((m.crossovers, m.no_crossover), (1, None));
+}
+
+#[test]
+fn every_crossover_counts_and_the_worst_sets_the_margin() {
+    // T = 30·(1 + s/z)² / ((1 + s/p1)(1 + s/p2)⁴), p1 = 2π·1 kHz, z = 2π·100 kHz,
+    // p2 = 2π·3 MHz: |T| falls through 1 near 30 kHz, rises again above 1 past the
+    // double zero and falls through 1 a second time above 3 MHz, with far less phase
+    // to spare. The phase of each factor is its own atan (continuous, in (−90°, 90°)),
+    // so ∠T = 2·atan(ω/z) − atan(ω/p1) − 4·atan(ω/p2) exactly, and the crossings are
+    // found here by bisection on the closed form (Bode's asymptotes, any
+    // control-systems text, from memory, say where to look).
+    let (p1, z, p2) = (TAU * 1e3, TAU * 1e5, TAU * 3e6);
+    let t = move |f: f64| {
+        let s = s_of(f);
+        30.0 * (1.0 + s / z).powi(2) / ((1.0 + s / p1) * (1.0 + s / p2).powi(4))
+    };
+    let phase = move |f: f64| (2.0 * (TAU * f / z).atan() - (TAU * f / p1).atan() - 4.0 * (TAU * f / p2).atan()).to_degrees();
+    let log_mag = move |f: f64| t(f).norm().ln();
+    let first = root(log_mag, 1e3, 1e5);
+    let rise = root(log_mag, 1e5, 1e6);
+    let second = root(log_mag, 3e6, 1e8);
+    assert!(first < rise && rise < second);
+    let (pm1, pm2) = (180.0 + phase(first), 180.0 + phase(second));
+    assert!(pm2 < pm1 - 30.0, "the second crossover is the worse: {pm1} and {pm2}");
+    let f180 = root(|f| phase(f) + 180.0, 3e6, 1e9);
+    let gm = -20.0 * t(f180).norm().log10();
+    for f_design in [3e2, 3e5, 3e7] {
+        let m = margins_of(f_design, &frequencies(10.0, 1e10, 20), t);
+        assert_eq!(m.crossovers, 2, "f_design {f_design}: {m:?}");
+        let fc = m.crossover_hz.unwrap();
+        assert!((fc / second - 1.0).abs() < 1e-3, "f_design {f_design}: crossover {fc} vs {second}");
+        assert!((m.phase_margin_deg.unwrap() - pm2).abs() < 0.05, "f_design {f_design}: {m:?} vs {pm2}");
+        let f_gm = m.phase_crossover_hz.unwrap();
+        assert!((f_gm / f180 - 1.0).abs() < 1e-3, "{f_gm} vs {f180}");
+        assert!((m.gain_margin_db.unwrap() - gm).abs() < 0.01, "{m:?} vs GM {gm}");
+        assert!((m.phase_mid_deg - phase(f_design)).abs() < 1e-6, "phase at f_design {} vs {}", m.phase_mid_deg, phase(f_design));
+    }
+}
+
+#[test]
+fn no_crossover_is_named_and_is_not_margin() {
+    // |T| = 0.5/(1 + s/p) stays below 1; |T| = 1e3/(1 + s/p) with p above the sweep
+    // stays above 1 to its top. Neither has a crossover or a phase margin.
+    let freqs = frequencies(1.0, 1e6, 20);
+    let below = |f: f64| Complex64::new(0.5, 0.0) / (1.0 + s_of(f) / (TAU * 1e3));
+    let m = margins_of(1e3, &freqs, below);
+    assert_eq!((m.crossover_hz, m.phase_margin_deg, m.no_crossover), (None, None, Some(stability::NoCrossover::BelowOne)));
+    assert_eq!(m.gain_margin_db, None, "one pole never reaches −180°");
+    let above = |f: f64| Complex64::new(1e3, 0.0) / (1.0 + s_of(f) / (TAU * 1e8));
+    let m = margins_of(1e3, &freqs, above);
+    assert_eq!((m.crossover_hz, m.phase_margin_deg, m.no_crossover), (None, None, Some(stability::NoCrossover::AboveAtTop)));
+}
+
 // ---------------------------------------------------------------------------
 // 2. Phase margin and damping of the second-order loop
 // ---------------------------------------------------------------------------
@@ -805,4 +892,111 @@ fn one_stage_demo_is_stable_and_steps_cleanly() {
 
 
 
+
+
+// ---------------------------------------------------------------------------
+// 6. The core's own Nyquist count and `stable` against faer's poles, 1–9 stages
+// ---------------------------------------------------------------------------
+
+#[derive(Default)]
+struct LoopTally {
+    cases: Cell<usize>,
+    unbiased: Cell<usize>,
+    marginal: Cell<usize>,
+    unstable: Cell<usize>,
+    conditional: Cell<usize>,
+    negative_margin: Cell<usize>,
+}
+
+/// Whether some pole of `poles` lies on the jω axis at the resolution the counts can
+/// tell (the verdict is marginal either way there): within 1e-6 of it in angle, or
+/// within 1e-9 of the pencil's frequency scale `scale` of the origin, where the core
+/// takes a pole as the origin itself. Many stages in a row make such poles: a real
+/// one of a fraction of a rad/s (a loop gain of 10¹⁰ through one capacitor), whose
+/// sign the two solvers give differently at 10⁻¹⁵ of the scale.
+fn near_axis(poles: &[Complex64], scale: f64) -> bool {
+    poles.iter().any(|p| p.re.abs() < 1e-6 * p.norm() || p.norm() < 1e-9 * scale)
+}
+
+/// One random design through `stability::analyse`: its Nyquist count, its pole count
+/// and `stable` against the growing poles faer's QZ finds on the same pencil; a
+/// negative phase margin with `stable` only as a conditionally stable verdict, said
+/// in words.
+fn loop_case(seed: u64, tally: &LoopTally) -> std::result::Result<(), TestCaseError> {
+    let mut rng = Xorshift::new(seed);
+    let stages = [1, 3, 5, 7, 9][rng.below(5)];
+    let part = Part { stages, ..random_part(&mut rng) };
+    let stage = random_stage(&mut rng);
+    bump(&tally.cases);
+    let Ok(lin) = Linearised::new(&part, &stage, 50.0) else {
+        bump(&tally.unbiased);
+        return Ok(());
+    };
+    let fail = |what: &str, e: halfrail::error::FieldError| TestCaseError::fail(format!("{what}: {e}\n{part:?}\n{stage:?}"));
+    let small = lin.small_signal();
+    let scale = small.g.amax() / small.c.amax();
+    let closed = faer_poles(&small.g, &small.c, 1e9 * scale);
+    let ratio = ReturnRatio::new(&lin).map_err(|e| fail("return ratio", e))?;
+    let open_circuit = ratio.open_loop();
+    let open = faer_poles(&open_circuit.g, &open_circuit.c, 1e9 * open_circuit.g.amax() / open_circuit.c.amax());
+    let open_scale = open_circuit.g.amax() / open_circuit.c.amax();
+    if near_axis(&closed, scale) || near_axis(&open, open_scale) {
+        bump(&tally.marginal);
+        return Ok(());
+    }
+    let growing = closed.iter().filter(|p| p.re > 0.0).count();
+    let freqs = frequencies(1e3, 1e9, 10);
+    let response = response_of(&lin, &stage, 10.7e6, &freqs, None).map_err(|e| fail("response", e))?;
+    let l = stability::analyse(&lin, &stage, &response, 10.7e6, &freqs).map_err(|e| fail("analyse", e))?;
+    let n = l.nyquist.ok_or_else(|| TestCaseError::fail(format!("the Nyquist count did not resolve\n{part:?}\n{stage:?}")))?;
+    let mut ours_open = natural_frequencies(&open_circuit.g, &open_circuit.c).map_err(|e| fail("open-loop poles", e))?;
+    ours_open.retain(|p| p.re > 0.0);
+    prop_assert_eq!(n.open_growing, open.iter().filter(|p| p.re > 0.0).count(), "open-loop growing: ours {:?}\nfaer {:?}", ours_open, open);
+    prop_assert_eq!(n.growing, growing, "Nyquist Z (turns {}, P {}) vs faer's growing poles {:?}\n{:?}\n{:?}", n.turns, n.open_growing, closed, part, stage);
+    prop_assert_eq!(l.poles_growing, growing, "the core's poles vs faer's");
+    prop_assert_eq!(l.stable, growing == 0);
+    let words = serde_json::to_value(halfrail::doc::LoopSummary(&l, None)).unwrap()["verdict"]["words"].as_str().unwrap().to_string();
+    let pm = l.margins.phase_margin_deg;
+    if pm.is_some_and(|m| m < 0.0) {
+        bump(&tally.negative_margin);
+    }
+    match l.verdict {
+        Verdict::Oscillates { .. } => {
+            prop_assert!(!l.stable);
+            bump(&tally.unstable);
+        }
+        Verdict::Stable { conditional, .. } | Verdict::Rings { conditional, .. } => {
+            prop_assert!(l.stable);
+            let negative = pm.is_some_and(|m| m < 0.0) || l.margins.gain_margin_db.is_some_and(|g| g < 0.0);
+            prop_assert_eq!(conditional, negative, "{:?} {:?}", l.verdict, l.margins);
+            if conditional {
+                bump(&tally.conditional);
+                prop_assert!(words.starts_with("Conditionally stable"), "{}", words);
+            }
+        }
+    }
+    Ok(())
+}
+
+#[test]
+fn the_loops_nyquist_count_and_stable_agree_with_the_poles_on_designs_of_1_to_9_stages() {
+    const CASES: u32 = 300;
+    let tally = LoopTally::default();
+    let mut runner = TestRunner::new(Config { cases: CASES, failure_persistence: None, ..Config::default() });
+    if let Err(e) = runner.run(&any::<u64>(), |seed| loop_case(seed, &tally)) {
+        panic!("{e}");
+    }
+    let (cases, unbiased, marginal, unstable) = (tally.cases.get(), tally.unbiased.get(), tally.marginal.get(), tally.unstable.get());
+    eprintln!(
+        "loop: {cases} cases, {unbiased} not biased, {marginal} marginal (skipped), {unstable} unstable, {} negative PM, {} conditionally stable",
+        tally.negative_margin.get(),
+        tally.conditional.get()
+    );
+    assert!(unbiased * 10 <= cases, "{unbiased} of {cases} random parts did not bias");
+    // Seven and nine stages make real poles near the origin (measured: 15 of 200
+    // cases skipped, nearly all of them so).
+    assert!(marginal * 8 <= cases, "{marginal} of {cases} skipped as marginal");
+    let judged = cases - unbiased - marginal;
+    assert!(unstable * 10 >= judged && unstable * 10 <= judged * 9, "{unstable} unstable of {judged}");
+}
 
