@@ -87,3 +87,72 @@ fn the_corners_bracket_the_trials() {
         assert!(low <= min + slack && high >= max - slack, "{}: corners {low}…{high}, trials {min}…{max}", figure.key());
     }
 }
+
+/// The issue's BASE design with `change` made to its JSON.
+fn base_with(change: impl FnOnce(&mut serde_json::Value)) -> halfrail::doc::Document {
+    let mut doc: serde_json::Value = serde_json::from_str(
+        r#"{"halfrail":1,"part":{"vdd_v":3.3,"kn_a_per_v2":"6m","kp_a_per_v2":"3m","vtn_v":0.55,"vtp_v":-0.6,"lambda_n_per_v":0.08,"lambda_p_per_v":0.1,"cgs_f":"4p","cgd_f":"1p2","cdb_f":"3p"},"stage":{"source_ohm":50,"shunt_ohm":"56R","c_in_f":"100n","r_in_ohm":"220R","r_fb_ohm":"2k2","c_out_f":"100n","load_ohm":"1k","load_f":"5p"},"analysis":{"f_design_hz":"10.7 MHz","f_start_hz":"1 kHz","f_stop_hz":"1 GHz"}}"#,
+    )
+    .unwrap();
+    change(&mut doc);
+    load(&doc.to_string()).unwrap()
+}
+
+#[test]
+fn trials_that_oscillate_fail_the_yield() {
+    // Issue item 4 (/tmp/rep/i4.json): three stages under the BASE feedback oscillate
+    // (the loop analysis' poles, its own code path, say so for the nominal design), and
+    // so does every trial; the yield against a gain of 20 ± 1 dB was 1.0, and is 0.
+    let doc = base_with(|d| {
+        d["part"]["stages"] = 3.into();
+        d["target"] = serde_json::json!({"gain_db": 20, "gain_tol_db": 1});
+        d["tolerance"] = serde_json::json!({"trials": 40});
+    });
+    let (_, l) = doc.stability().unwrap();
+    assert!(!l.stable && l.poles_growing > 0, "{:?}", l.verdict);
+    let r = doc.spread(&mut |_| {}).unwrap();
+    assert_eq!(r.nominal.growing, Some(l.poles_growing));
+    assert!(r.nominal.oscillates());
+    assert_eq!((r.summary.trials, r.summary.oscillating, r.summary.unsolved), (40, 40, 0));
+    assert_eq!(r.summary.yield_fraction, Some(0.0));
+    // The gain alone would have passed most of them: the yield fell for the oscillation.
+    let in_gain = r.trials.iter().filter(|t| t.values[0].is_some_and(|g| (g - 20.0).abs() <= 1.0)).count();
+    assert!(in_gain > 20, "{in_gain} of 40 within the gain limits");
+    let json = serde_json::to_value(halfrail::doc::SpreadSummary(&r)).unwrap();
+    assert_eq!(json["oscillating"], 40);
+    assert_eq!(json["nominal_oscillates"], true);
+    // A trial that does not grow passes the same limits on its figures alone.
+    let mut calm = r.trials[0];
+    calm.growing = Some(0);
+    let limits = Limits { gain: Some((20.0, 50.0)), ..Limits::default() };
+    assert!(limits.pass(&calm) && !limits.pass(&r.trials[0]));
+    // The columns the page joins carry the count back (the figures to the last bit
+    // or so: the document reader's numbers are its own).
+    let text = serde_json::to_string(&halfrail::doc::TrialColumns(&r.trials)).unwrap();
+    let back = halfrail::doc::trials_from_columns(&text).unwrap();
+    assert_eq!(back.iter().map(|t| t.growing).collect::<Vec<_>>(), r.trials.iter().map(|t| t.growing).collect::<Vec<_>>());
+    for (a, b) in back.iter().zip(&r.trials) {
+        for (x, y) in a.values.iter().zip(&b.values) {
+            assert!(x.zip(*y).is_none_or(|(x, y)| (x - y).abs() <= 1e-14 * y.abs()) && x.is_some() == y.is_some(), "{x:?} vs {y:?}");
+        }
+    }
+}
+
+#[test]
+fn zero_tolerances_give_every_trial_the_nominal_figures_exactly() {
+    let (part, stage, setup) = demo();
+    let zero = Tolerance { resistor_pct: 0.0, capacitor_pct: 0.0, vdd_pct: 0.0, k_pct: 0.0, vt_v: 0.0 };
+    let nominal = setup.figures(&part, &stage).unwrap();
+    assert!(nominal.values.iter().filter(|v| v.is_some()).count() >= 5, "{nominal:?}");
+    let trials = run(&part, &stage, &setup, &zero, 5, 0..30);
+    assert!(trials.iter().all(|t| *t == nominal), "{:?} vs {nominal:?}", trials.iter().find(|t| **t != nominal));
+    // Through the document too: every statistic has no spread.
+    let mut doc: serde_json::Value = serde_json::from_str(DEMO).unwrap();
+    doc["tolerance"] = serde_json::json!({"trials": 20, "resistor_pct": 0, "capacitor_pct": 0, "vdd_pct": 0, "k_pct": 0, "vt_mv": 0});
+    let r = load(&doc.to_string()).unwrap().spread(&mut |_| {}).unwrap();
+    for (k, stats) in r.summary.stats.iter().enumerate() {
+        if let Some(s) = stats {
+            assert_eq!((s.min, s.max, s.std), (r.nominal.values[k].unwrap(), r.nominal.values[k].unwrap(), 0.0), "{}", Figure::ALL[k].key());
+        }
+    }
+}

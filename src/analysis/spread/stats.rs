@@ -26,7 +26,10 @@ impl Stats {
             return None;
         }
         crate::order::sort_numbers(values);
-        let mean = values.iter().sum::<f64>() / n as f64;
+        // The mean as the smallest value plus the mean excess over it: exact when
+        // every trial has the same value (a spread with zero tolerances), where a
+        // plain sum / n can miss by an ulp and show a spread that is not there.
+        let mean = values[0] + values.iter().map(|v| v - values[0]).sum::<f64>() / n as f64;
         let var = if n > 1 { values.iter().map(|v| (v - mean).powi(2)).sum::<f64>() / (n - 1) as f64 } else { 0.0 };
         let rank = |p: f64| values[((p * n as f64).ceil() as usize).clamp(1, n) - 1];
         Some(Stats { count: n, mean, std: var.sqrt(), min: values[0], max: values[n - 1], p1: rank(0.01), p99: rank(0.99) })
