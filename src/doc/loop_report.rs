@@ -205,7 +205,7 @@ pub fn helper_words(l: &Loop, suggestions: &[Suggestion], wanted_deg: f64) -> St
     let wanted = format!("{}°", format_fixed(wanted_deg, 0));
     if suggestions.is_empty() {
         return match (l.margins.phase_margin_deg, l.stable) {
-            (Some(pm), _) => format!("The loop already has the wanted {wanted} phase margin ({}): no change needed.", deg(pm)),
+            (Some(pm), _) => format!("The loop already meets the wanted {wanted} phase margin (it has {}): no change needed.", deg(pm)),
             (None, true) => "No crossover: |T| stays below 1 over the whole sweep, so there is no loop gain to compensate.".into(),
             (None, false) => "The closed loop grows, and no change was tried.".into(),
         };
