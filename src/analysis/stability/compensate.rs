@@ -171,15 +171,22 @@ struct Search<'a> {
 }
 
 impl Search<'_> {
-    /// The margin of `tried` when it meets the wanted one on both grids.
-    fn reaches(&self, tried: &Components) -> Option<(Linearised, Option<f64>)> {
+    /// `tried`, linearised, when it meets the wanted margin on the coarse grid.
+    fn coarse(&self, tried: &Components) -> Option<Linearised> {
         // A candidate the engine cannot bias or solve is simply not an answer.
         let lin = Linearised::new(self.part, tried, self.z0).ok()?;
-        if !judge(&lin, self.f_design, &self.grid).ok()?.meets(self.wanted) {
-            return None;
-        }
+        judge(&lin, self.f_design, &self.grid).ok()?.meets(self.wanted).then_some(lin)
+    }
+
+    /// Its margin on the analysis' own frequencies, when it meets the wanted one there too.
+    fn confirm(&self, lin: Linearised) -> Option<(Linearised, Option<f64>)> {
         let confirmed = judge(&lin, self.f_design, self.sweep).ok()?;
         confirmed.meets(self.wanted).then_some((lin, confirmed.margin_deg))
+    }
+
+    /// The margin of `tried` when it meets the wanted one on both grids.
+    fn reaches(&self, tried: &Components) -> Option<(Linearised, Option<f64>)> {
+        self.confirm(self.coarse(tried)?)
     }
 }
 
@@ -229,17 +236,31 @@ pub fn compensate(
         out.push(answer(knob, found)?);
     }
     if !out.iter().any(|s| s.values.is_some() && s.within_tolerance()) {
+        // The first pair that reaches the margin with the gain within the tolerance;
+        // failing that, the first that reaches it at all (flagged by its gain change).
         let (resistors, capacitors) = pair_candidates();
         let mut found = None;
+        let mut fallback = None;
         'pairs: for &r in &resistors {
             for &cap in &capacitors {
                 let tried = c.with(Component::CFbF, Some(cap)).with(Component::ROutOhm, Some(r));
-                if let Some((lin, margin)) = search.reaches(&tried) {
-                    found = Some((vec![cap, r], tried, lin, margin));
+                let Some(lin) = search.coarse(&tried) else { continue };
+                // The gain first (one point): a pair that moves it is confirmed only
+                // while there is no fallback yet.
+                let keeps = lin.at(f_design, &tried).is_ok_and(|p| (p.gain_db() - was_gain_db).abs() <= gain_tol_db);
+                if !keeps && fallback.is_some() {
+                    continue;
+                }
+                let Some((lin, margin)) = search.confirm(lin) else { continue };
+                let pair = (vec![cap, r], tried, lin, margin);
+                if keeps {
+                    found = Some(pair);
                     break 'pairs;
                 }
+                fallback.get_or_insert(pair);
             }
         }
+        let found = found.or(fallback);
         if found.is_some() {
             out.push(answer(Knob::FeedbackCapacitorAndOutputResistor, found)?);
         }
