@@ -200,3 +200,39 @@ fn step_window(response: &Response, margins: &Margins, pair: Option<Pair>, f_des
         _ => base,
     }
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn margins(pm: Option<f64>, gm: Option<f64>) -> Margins {
+        Margins {
+            t_mid: Complex64::new(1.0, 0.0),
+            phase_mid_deg: 0.0,
+            crossover_hz: pm.map(|_| 1e6),
+            phase_margin_deg: pm,
+            crossovers: usize::from(pm.is_some()),
+            no_crossover: None,
+            phase_crossover_hz: gm.map(|_| 2e6),
+            gain_margin_db: gm,
+        }
+    }
+
+    /// SPEC §3.3: `stable` is the poles' (and Nyquist's) answer, not the margin's. A
+    /// negative margin with every pole decaying is a conditionally stable loop, and
+    /// the verdict says so; with a pole growing it oscillates whatever the margin.
+    #[test]
+    fn a_negative_margin_with_decaying_poles_is_conditionally_stable() {
+        let decaying = [Complex64::new(-1e6, 5e6), Complex64::new(-1e6, -5e6)];
+        let pair = least_damped_pair(&decaying);
+        // ζ = 0.196: the pair rings; the margin is negative, so it is conditional.
+        assert!(matches!(verdict(true, &decaying, &margins(Some(-20.0), Some(6.0)), pair), Verdict::Rings { conditional: true, .. }));
+        assert!(matches!(verdict(true, &[Complex64::new(-1e6, 0.0)], &margins(Some(70.0), Some(-3.0)), None), Verdict::Stable { conditional: true, .. }));
+        assert!(matches!(verdict(true, &[Complex64::new(-1e6, 0.0)], &margins(Some(70.0), Some(12.0)), None), Verdict::Stable { conditional: false, .. }));
+        // No crossover is not a negative margin.
+        assert!(matches!(verdict(true, &[Complex64::new(-1e6, 0.0)], &margins(None, None), None), Verdict::Stable { conditional: false, margin_deg: None }));
+        let growing = [Complex64::new(1e5, 5e6), Complex64::new(1e5, -5e6)];
+        let v = verdict(false, &growing, &margins(Some(20.0), Some(6.0)), least_damped_pair(&growing));
+        assert!(matches!(v, Verdict::Oscillates { f_hz: Some(f) } if (f - 5e6 / std::f64::consts::TAU).abs() < 1e-6), "{v:?}");
+    }
+}
