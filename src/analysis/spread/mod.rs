@@ -102,8 +102,8 @@ const GRID_PER_DECADE: u32 = 20;
 impl Setup {
     /// `span`: the analysis sweep (f_start, f_stop), over which the margins are read.
     pub fn new(part: &Part, c: &Components, f_design: f64, span: (f64, f64), z0: f64, kind: GainKind) -> Result<Self> {
-        // The nominal design must solve: its error is the spread's.
-        Linearised::new(part, c, z0)?;
+        // The nominal design and its loop must solve: their error is the spread's.
+        ReturnRatio::new(&Linearised::new(part, c, z0)?)?;
         Ok(Setup { f_design, z0, kind, grid: frequencies(span.0, span.1, GRID_PER_DECADE) })
     }
 
