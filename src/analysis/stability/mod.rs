@@ -1,7 +1,8 @@
 //! Does the feedback loop ring? The loop gain (Bode's return ratio of stage 1),
-//! its margins, the closed loop's natural frequencies and the verdict drawn from
-//! them, the small-signal step response, and a helper that finds the component
-//! change that buys a wanted phase margin.
+//! its margins (SPEC §3.3: every crossover from the bottom of the sweep up), the
+//! closed loop's natural frequencies and the Nyquist count of 1 + T that checks
+//! them, the verdict drawn from them, the small-signal step response, and a helper
+//! that finds the component change that buys a wanted phase margin.
 //!
 //! ```
 //! use halfrail::analysis::{frequencies, response_of, stability, Linearised};
