@@ -9,7 +9,7 @@ use halfrail::doc::{load, DEMO};
 
 fn demo() -> (halfrail::part::Part, halfrail::stage::Components, Setup) {
     let (part, stage) = load(DEMO).unwrap().part_and_stage().unwrap();
-    let setup = Setup::new(&part, &stage, 10.7e6, 1e9, 50.0, GainKind::Voltage).unwrap();
+    let setup = Setup::new(&part, &stage, 10.7e6, (1e3, 1e9), 50.0, GainKind::Voltage).unwrap();
     (part, stage, setup)
 }
 
@@ -51,7 +51,7 @@ fn the_same_seed_repeats_and_another_seed_agrees_statistically() {
     assert_eq!(a, split);
     let b = run(&part, &stage, &setup, &SHOP, 8, 0..300);
     assert_ne!(a, b);
-    let stat = |t: &[halfrail::analysis::spread::Values]| summarise(t, &Limits::default()).stats[0].unwrap();
+    let stat = |t: &[halfrail::analysis::spread::Trial]| summarise(t, &Limits::default()).stats[0].unwrap();
     let (sa, sb) = (stat(&a), stat(&b));
     let se = (sa.std.powi(2) / 300.0 + sb.std.powi(2) / 300.0).sqrt();
     assert!((sa.mean - sb.mean).abs() < 4.0 * se, "means {} and {} (se {se})", sa.mean, sb.mean);
@@ -66,7 +66,7 @@ fn yield_counts_the_trials_that_pass() {
     let nobody = Limits { iq_max_a: Some(1e-9), ..Limits::default() };
     assert_eq!(summarise(&trials, &nobody).yield_fraction, Some(0.0));
     let some = Limits { gain: Some((10.0, 0.3)), ..Limits::default() };
-    let counted = trials.iter().filter(|v| v[0].is_some_and(|g| (g - 10.0).abs() <= 0.3)).count() as f64 / 200.0;
+    let counted = trials.iter().filter(|v| v.values[0].is_some_and(|g| (g - 10.0).abs() <= 0.3)).count() as f64 / 200.0;
     assert_eq!(summarise(&trials, &some).yield_fraction, Some(counted));
     assert!(counted > 0.0 && counted < 1.0);
     assert_eq!(summarise(&trials, &Limits::default()).yield_fraction, None);
@@ -85,5 +85,74 @@ fn the_corners_bracket_the_trials() {
         // Within a small allowance for curvature the corners are the extremes.
         let slack = 0.02 * (high - low).abs();
         assert!(low <= min + slack && high >= max - slack, "{}: corners {low}…{high}, trials {min}…{max}", figure.key());
+    }
+}
+
+/// The issue's BASE design with `change` made to its JSON.
+fn base_with(change: impl FnOnce(&mut serde_json::Value)) -> halfrail::doc::Document {
+    let mut doc: serde_json::Value = serde_json::from_str(
+        r#"{"halfrail":1,"part":{"vdd_v":3.3,"kn_a_per_v2":"6m","kp_a_per_v2":"3m","vtn_v":0.55,"vtp_v":-0.6,"lambda_n_per_v":0.08,"lambda_p_per_v":0.1,"cgs_f":"4p","cgd_f":"1p2","cdb_f":"3p"},"stage":{"source_ohm":50,"shunt_ohm":"56R","c_in_f":"100n","r_in_ohm":"220R","r_fb_ohm":"2k2","c_out_f":"100n","load_ohm":"1k","load_f":"5p"},"analysis":{"f_design_hz":"10.7 MHz","f_start_hz":"1 kHz","f_stop_hz":"1 GHz"}}"#,
+    )
+    .unwrap();
+    change(&mut doc);
+    load(&doc.to_string()).unwrap()
+}
+
+#[test]
+fn trials_that_oscillate_fail_the_yield() {
+    // Issue item 4 (/tmp/rep/i4.json): three stages under the BASE feedback oscillate
+    // (the loop analysis' poles, its own code path, say so for the nominal design), and
+    // so does every trial; the yield against a gain of 20 ± 1 dB was 1.0, and is 0.
+    let doc = base_with(|d| {
+        d["part"]["stages"] = 3.into();
+        d["target"] = serde_json::json!({"gain_db": 20, "gain_tol_db": 1});
+        d["tolerance"] = serde_json::json!({"trials": 40});
+    });
+    let (_, l) = doc.stability().unwrap();
+    assert!(!l.stable && l.poles_growing > 0, "{:?}", l.verdict);
+    let r = doc.spread(&mut |_| {}).unwrap();
+    assert_eq!(r.nominal.growing, Some(l.poles_growing));
+    assert!(r.nominal.oscillates());
+    assert_eq!((r.summary.trials, r.summary.oscillating, r.summary.unsolved), (40, 40, 0));
+    assert_eq!(r.summary.yield_fraction, Some(0.0));
+    // The gain alone would have passed most of them: the yield fell for the oscillation.
+    let in_gain = r.trials.iter().filter(|t| t.values[0].is_some_and(|g| (g - 20.0).abs() <= 1.0)).count();
+    assert!(in_gain > 20, "{in_gain} of 40 within the gain limits");
+    let json = serde_json::to_value(halfrail::doc::SpreadSummary(&r)).unwrap();
+    assert_eq!(json["oscillating"], 40);
+    assert_eq!(json["nominal_oscillates"], true);
+    // A trial that does not grow passes the same limits on its figures alone.
+    let mut calm = r.trials[0];
+    calm.growing = Some(0);
+    let limits = Limits { gain: Some((20.0, 50.0)), ..Limits::default() };
+    assert!(limits.pass(&calm) && !limits.pass(&r.trials[0]));
+    // The columns the page joins carry the count back (the figures to the last bit
+    // or so: the document reader's numbers are its own).
+    let text = serde_json::to_string(&halfrail::doc::TrialColumns(&r.trials)).unwrap();
+    let back = halfrail::doc::trials_from_columns(&text).unwrap();
+    assert_eq!(back.iter().map(|t| t.growing).collect::<Vec<_>>(), r.trials.iter().map(|t| t.growing).collect::<Vec<_>>());
+    for (a, b) in back.iter().zip(&r.trials) {
+        for (x, y) in a.values.iter().zip(&b.values) {
+            assert!(x.zip(*y).is_none_or(|(x, y)| (x - y).abs() <= 1e-14 * y.abs()) && x.is_some() == y.is_some(), "{x:?} vs {y:?}");
+        }
+    }
+}
+
+#[test]
+fn zero_tolerances_give_every_trial_the_nominal_figures_exactly() {
+    let (part, stage, setup) = demo();
+    let zero = Tolerance { resistor_pct: 0.0, capacitor_pct: 0.0, vdd_pct: 0.0, k_pct: 0.0, vt_v: 0.0 };
+    let nominal = setup.figures(&part, &stage).unwrap();
+    assert!(nominal.values.iter().filter(|v| v.is_some()).count() >= 5, "{nominal:?}");
+    let trials = run(&part, &stage, &setup, &zero, 5, 0..30);
+    assert!(trials.iter().all(|t| *t == nominal), "{:?} vs {nominal:?}", trials.iter().find(|t| **t != nominal));
+    // Through the document too: every statistic has no spread.
+    let mut doc: serde_json::Value = serde_json::from_str(DEMO).unwrap();
+    doc["tolerance"] = serde_json::json!({"trials": 20, "resistor_pct": 0, "capacitor_pct": 0, "vdd_pct": 0, "k_pct": 0, "vt_mv": 0});
+    let r = load(&doc.to_string()).unwrap().spread(&mut |_| {}).unwrap();
+    for (k, stats) in r.summary.stats.iter().enumerate() {
+        if let Some(s) = stats {
+            assert_eq!((s.min, s.max, s.std), (r.nominal.values[k].unwrap(), r.nominal.values[k].unwrap(), 0.0), "{}", Figure::ALL[k].key());
+        }
     }
 }

@@ -5,7 +5,8 @@
 use crate::math;
 use serde::ser::{Serialize, SerializeStruct, Serializer};
 
-use crate::analysis::stability::{Knob, Loop, Suggestion, Verdict};
+use crate::analysis::stability::{Knob, Loop, NoCrossover, Suggestion, Verdict};
+use crate::units::{format_eng, format_fixed, Unit};
 
 const TAU: f64 = std::f64::consts::TAU;
 
@@ -37,7 +38,15 @@ impl Serialize for LoopSummary<'_> {
         out.serialize_field("phase_crossover_hz", &m.phase_crossover_hz)?;
         out.serialize_field("peaking_db", &l.peaking_db)?;
         out.serialize_field("open_loop_growing", &l.open_loop_growing)?;
-        out.serialize_field("verdict", &VerdictOut(l.verdict))?;
+        out.serialize_field("crossovers", &m.crossovers)?;
+        out.serialize_field("no_crossover", &m.no_crossover.map(|n| match n {
+            NoCrossover::BelowOne => "below_one",
+            NoCrossover::AboveAtTop => "above_at_top",
+        }))?;
+        out.serialize_field("margin_words", &margin_words(l))?;
+        out.serialize_field("poles_growing", &l.poles_growing)?;
+        out.serialize_field("nyquist", &l.nyquist.map(|n| NyquistOut { turns: n.turns, open_growing: n.open_growing, growing: n.growing }))?;
+        out.serialize_field("verdict", &VerdictOut(l))?;
         out.serialize_field("least_damped", &l.least_damped.map(|p| PairOut { f_n_hz: p.f_n_hz, zeta: p.zeta, q: finite(p.q) }))?;
         out.serialize_field("overshoot_pct", &l.settling.overshoot_pct)?;
         out.serialize_field("settling_s", &l.settling.settling_s)?;
@@ -58,22 +67,104 @@ struct PairOut {
 
 serialize_fields!(PairOut { "f_n_hz" => f_n_hz, "zeta" => zeta, "q" => q });
 
-struct VerdictOut(Verdict);
+struct NyquistOut {
+    turns: i64,
+    open_growing: usize,
+    growing: usize,
+}
 
-impl Serialize for VerdictOut {
+serialize_fields!(NyquistOut { "turns" => turns, "open_growing" => open_growing, "growing" => growing });
+
+struct VerdictOut<'a>(&'a Loop);
+
+impl Serialize for VerdictOut<'_> {
     fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let (kind, margin, f_hz, q) = match self.0 {
-            Verdict::Stable { margin_deg } => ("stable", margin_deg, None, None),
-            Verdict::Rings { margin_deg, f_hz, q } => ("rings", margin_deg, Some(f_hz), finite(q)),
-            Verdict::Oscillates { f_hz } => ("oscillates", None, f_hz, None),
+        let (kind, margin, f_hz, q, conditional) = match self.0.verdict {
+            Verdict::Stable { margin_deg, conditional } => ("stable", margin_deg, None, None, conditional),
+            Verdict::Rings { margin_deg, f_hz, q, conditional } => ("rings", margin_deg, Some(f_hz), finite(q), conditional),
+            Verdict::Oscillates { f_hz } => ("oscillates", None, f_hz, None, false),
         };
-        let mut out = serializer.serialize_struct("Verdict", 4)?;
+        let mut out = serializer.serialize_struct("Verdict", 6)?;
         out.serialize_field("kind", kind)?;
         out.serialize_field("margin_deg", &margin)?;
         out.serialize_field("f_hz", &f_hz)?;
         out.serialize_field("q", &q)?;
+        out.serialize_field("conditional", &conditional)?;
+        out.serialize_field("words", &stability_words(self.0))?;
         out.end()
     }
+}
+
+fn hz(f: f64) -> String {
+    format_eng(f, Some(Unit::Hertz), 3)
+}
+
+fn deg(x: f64) -> String {
+    format!("{}°", format_fixed(x, 1))
+}
+
+/// What the crossover and the margins say, in words: the crossover and its
+/// margin, or why there is none (which is not margin).
+pub fn margin_words(l: &Loop) -> String {
+    let m = &l.margins;
+    match (m.crossover_hz, m.phase_margin_deg, m.no_crossover) {
+        (Some(f), Some(pm), _) => {
+            let many = if m.crossovers > 1 { format!("|T| falls through 1 at {} frequencies of the sweep; the worst, at {}", m.crossovers, hz(f)) } else { format!("|T| falls through 1 at {}", hz(f)) };
+            let what = if pm < 0.0 { format!("a negative phase margin, {} (∠T is past −180° there)", deg(pm)) } else { format!("{} of phase margin", deg(pm)) };
+            format!("{many}, with {what}; ∠T is carried up from the bottom of the sweep.")
+        }
+        (_, _, Some(NoCrossover::BelowOne)) => {
+            "No crossover: |T| stays below 1 over the whole sweep, so there is no phase margin to measure (that is not margin); the gain margin and the poles say how stable the loop is.".into()
+        }
+        (_, _, Some(NoCrossover::AboveAtTop)) => {
+            "No crossover within the sweep: |T| is still at or above 1 at its top, so no phase margin is measured (that is not margin); widen the sweep to find it.".into()
+        }
+        _ => "No crossover: the sweep is empty.".into(),
+    }
+}
+
+/// The verdict in words, with what the poles and the Nyquist count each say when
+/// it matters: a conditionally stable loop (a negative margin that the poles say
+/// is stable), counts that disagree, or a count that does not resolve.
+pub fn stability_words(l: &Loop) -> String {
+    let circles = |turns: i64| match turns {
+        0 => "does not encircle 0 net".to_string(),
+        t if t > 0 => format!("encircles 0 {t} time{} counter-clockwise", if t == 1 { "" } else { "s" }),
+        t => format!("encircles 0 {} time{} clockwise", -t, if t == -1 { "" } else { "s" }),
+    };
+    let nyquist = match l.nyquist {
+        Some(n) => format!(
+            "The Nyquist count agrees: F = 1 + T {}{}, so {} closed-loop natural frequenc{} grow{}.",
+            circles(n.turns),
+            if n.open_growing > 0 { format!(" against {} growing open-loop natural frequencies", n.open_growing) } else { String::new() },
+            if n.growing == 0 { "no".to_string() } else { n.growing.to_string() },
+            if n.growing == 1 { "y" } else { "ies" },
+            if n.growing == 1 { "s" } else { "" },
+        ),
+        None => "The Nyquist count of F = 1 + T does not resolve: a natural frequency lies on (or too near) the jω axis, so the loop is on the edge of oscillation.".into(),
+    };
+    let nyquist = match l.nyquist {
+        Some(n) if n.growing != l.poles_growing => format!(
+            "The poles and the Nyquist count disagree ({} against {} growing): a natural frequency lies on (or at the resolution of doubles near) the jω axis, so the loop is on the edge of oscillation and is not called stable.",
+            l.poles_growing, n.growing
+        ),
+        _ => nyquist,
+    };
+    let head = match l.verdict {
+        Verdict::Oscillates { f_hz: Some(f) } => format!("A closed-loop pair grows: the stage oscillates at about {} by itself, until the output clips.", hz(f)),
+        Verdict::Oscillates { f_hz: None } => "A real closed-loop pole grows: the output runs away to a rail.".into(),
+        Verdict::Stable { conditional: true, .. } | Verdict::Rings { conditional: true, .. } => format!(
+            "Conditionally stable: every closed-loop pole decays, although {}. With less loop gain (at start-up, in overload, with a weaker part) it can oscillate.",
+            match (l.margins.phase_margin_deg, l.margins.gain_margin_db) {
+                (Some(pm), _) if pm < 0.0 => format!("the phase margin is negative ({}): ∠T is past −180° where |T| falls through 1, yet the Nyquist plot of T does not encircle −1 net", deg(pm)),
+                (_, Some(gm)) => format!("the gain margin is negative ({} dB): |T| is above 1 where ∠T passes −180°", format_fixed(gm, 1)),
+                _ => "a margin is negative".into(),
+            }
+        ),
+        Verdict::Rings { f_hz, q, .. } => format!("Stable, but the least-damped pair rings at about {} (Q {}).", hz(f_hz), format_fixed(q, 2)),
+        Verdict::Stable { .. } => "Stable: every closed-loop pole decays.".into(),
+    };
+    format!("{head} {nyquist}")
 }
 
 /// Everything the Loop panel draws: the summary, the sweep of T (magnitude,
@@ -102,9 +193,41 @@ impl Serialize for LoopReport<'_> {
         out.serialize_field("step_v", &l.step.v)?;
         out.serialize_field("step_target_v", &l.step_target)?;
         out.serialize_field("suggestions", &self.suggestions.iter().map(SuggestionOut).collect::<Vec<_>>())?;
+        out.serialize_field("helper_words", &helper_words(l, self.suggestions, self.wanted_margin_deg))?;
         out.end()
     }
 }
+
+/// What the compensation helper found, in words: nothing needed, nothing to
+/// compensate, or — when no change keeps the gain within its tolerance — that this
+/// gain needs another part at this frequency.
+pub fn helper_words(l: &Loop, suggestions: &[Suggestion], wanted_deg: f64) -> String {
+    let wanted = format!("{}°", format_fixed(wanted_deg, 0));
+    if suggestions.is_empty() {
+        return match (l.margins.phase_margin_deg, l.stable) {
+            (Some(pm), _) => format!("The loop already meets the wanted {wanted} phase margin (it has {}): no change needed.", deg(pm)),
+            (None, true) => "No crossover: |T| stays below 1 over the whole sweep, so there is no loop gain to compensate.".into(),
+            (None, false) => "The closed loop grows, and no change was tried.".into(),
+        };
+    }
+    let tol = suggestions[0].gain_tol_db;
+    if suggestions.iter().any(|s| s.values.is_some() && s.within_tolerance()) {
+        return format!("Changes that keep the gain at f_design within ±{} dB come first; a change that moves it more is flagged.", format_fixed(tol, 1));
+    }
+    format!(
+        "No change of C fb, R out or both keeps the gain at f_design within ±{} dB and reaches {wanted}: at this frequency this gain needs an unbuffered part (one stage, less phase lag in the loop). {}",
+        format_fixed(tol, 1),
+        if suggestions.iter().any(|s| s.values.is_some()) { "What reaches the margin moves the gain, as flagged." } else { "Nothing tried reaches the margin." }
+    )
+}
+
+/// A change as the page applies it: the document key and the value.
+struct ChangeOut {
+    key: &'static str,
+    value: f64,
+}
+
+serialize_fields!(ChangeOut { "key" => key, "value" => value });
 
 /// One helper answer, naming the component by its document key.
 pub struct SuggestionOut<'a>(pub &'a Suggestion);
@@ -115,12 +238,31 @@ impl Serialize for SuggestionOut<'_> {
         let kind = match s.knob {
             Knob::FeedbackCapacitor => "feedback capacitor",
             Knob::OutputResistor => "series output resistor",
+            Knob::FeedbackCapacitorAndOutputResistor => "feedback capacitor and series output resistor",
             Knob::LowerGain => "higher r_fb (lower loop gain)",
         };
-        let mut out = serializer.serialize_struct("Suggestion", 8)?;
-        out.serialize_field("key", s.knob.component().key())?;
+        let key = s.knob.components().iter().map(|c| c.key()).collect::<Vec<_>>().join("+");
+        let changes: Vec<ChangeOut> = match &s.values {
+            Some(values) => s.knob.components().iter().zip(values).map(|(c, &value)| ChangeOut { key: c.key(), value }).collect(),
+            None => Vec::new(),
+        };
+        let flag = match s.gain_change_db() {
+            Some(d) if !s.within_tolerance() => Some(format!(
+                "moves the gain at f_design by {} dB, beyond the ±{} dB tolerance",
+                format!("{}{}", if d > 0.0 { "+" } else { "" }, format_fixed(d, 1)),
+                format_fixed(s.gain_tol_db, 1)
+            )),
+            _ => None,
+        };
+        let mut out = serializer.serialize_struct("Suggestion", 13)?;
+        out.serialize_field("key", &key)?;
         out.serialize_field("what", kind)?;
-        out.serialize_field("value", &s.value)?;
+        out.serialize_field("value", &s.value())?;
+        out.serialize_field("changes", &changes)?;
+        out.serialize_field("gain_change_db", &s.gain_change_db())?;
+        out.serialize_field("within_tolerance", &s.within_tolerance())?;
+        out.serialize_field("gain_tol_db", &s.gain_tol_db)?;
+        out.serialize_field("flag", &flag)?;
         out.serialize_field("phase_margin_deg", &s.phase_margin_deg)?;
         out.serialize_field("gain_db", &s.gain_db)?;
         out.serialize_field("f_high_hz", &s.f_high_hz)?;

@@ -140,9 +140,18 @@ impl Analysis {
         Ok((response, stability))
     }
 
-    /// The compensation helper's answers for a `wanted` margin, resistors from `series`.
-    pub fn compensation(&self, part: &crate::part::Part, stage: &crate::stage::Components, wanted: f64, series: crate::values::Series) -> Result<Vec<crate::analysis::stability::Suggestion>> {
-        crate::analysis::stability::compensate(part, stage, self.f_design_hz, (self.f_start_hz, self.f_stop_hz), self.z0_ohm, wanted, series)
+    /// The compensation helper's answers for a `wanted` margin, resistors from
+    /// `series`, a gain change beyond `gain_tol_db` flagged; confirmed on this sweep.
+    pub fn compensation(
+        &self,
+        part: &crate::part::Part,
+        stage: &crate::stage::Components,
+        wanted: f64,
+        series: crate::values::Series,
+        gain_tol_db: f64,
+    ) -> Result<Vec<crate::analysis::stability::Suggestion>> {
+        let span = (self.f_start_hz, self.f_stop_hz);
+        crate::analysis::stability::compensate(part, stage, self.f_design_hz, span, &self.frequencies(), self.z0_ohm, wanted, series, gain_tol_db)
     }
 
     /// The large-signal analysis at f_design and `input_dbm`.
@@ -197,12 +206,18 @@ impl Document {
         self.target.as_ref().and_then(|t| t.pm_min_deg).unwrap_or(crate::analysis::stability::WANTED_MARGIN_DEG)
     }
 
+    /// The gain change the compensation helper may make unflagged: the target's
+    /// `gain_tol_db`, else 1 dB.
+    pub fn gain_tol_db(&self) -> f64 {
+        self.target.as_ref().and_then(|t| t.gain_tol_db).unwrap_or(crate::analysis::stability::DEFAULT_GAIN_TOL_DB)
+    }
+
     /// The compensation helper for the document's stage: resistors from the target's
     /// series (E24 without a target).
     pub fn compensation(&self) -> Result<Vec<crate::analysis::stability::Suggestion>> {
         let (part, stage) = self.part_and_stage()?;
         let series = self.target.as_ref().map_or(crate::values::Series::E24, |t| t.series);
-        self.sweep()?.compensation(&part, &stage, self.wanted_margin_deg(), series)
+        self.sweep()?.compensation(&part, &stage, self.wanted_margin_deg(), series, self.gain_tol_db())
     }
 
     /// The large-signal analysis over the `analysis` section's f_design and level.
@@ -236,7 +251,7 @@ impl Document {
         let analysis = self.sweep()?;
         let tolerance = self.tolerance.as_ref().ok_or_else(|| FieldError::new("tolerance", "missing; a spread needs the tolerances"))?;
         let kind = self.target.as_ref().map_or(crate::analysis::design::GainKind::Voltage, |t| t.to_core().kind);
-        let setup = Setup::new(&part, &stage, analysis.f_design_hz, analysis.f_stop_hz, analysis.z0_ohm, kind)?;
+        let setup = Setup::new(&part, &stage, analysis.f_design_hz, (analysis.f_start_hz, analysis.f_stop_hz), analysis.z0_ohm, kind)?;
         let tolerance_core = Core { resistor_pct: tolerance.resistor_pct, capacitor_pct: tolerance.capacitor_pct, vdd_pct: tolerance.vdd_pct, k_pct: tolerance.k_pct, vt_v: tolerance.vt_mv / 1e3 };
         let limits = self.target.as_ref().map_or(Limits::default(), |t| Limits {
             gain: t.gain_tol_db.map(|tol| (t.gain_db, tol)),
@@ -374,13 +389,13 @@ pub struct SpreadPlan {
 
 impl SpreadPlan {
     /// Trials `range`.
-    pub fn run(&self, range: std::ops::Range<u64>) -> Vec<crate::analysis::spread::Values> {
+    pub fn run(&self, range: std::ops::Range<u64>) -> Vec<crate::analysis::spread::Trial> {
         crate::analysis::spread::run(&self.part, &self.stage, &self.setup, &self.tolerance, self.seed, range)
     }
 
     /// Trials `range` in twentieths, telling `progress` the fraction of the range done
     /// after each.
-    pub fn run_reporting(&self, range: std::ops::Range<u64>, progress: &mut dyn FnMut(f64)) -> Vec<crate::analysis::spread::Values> {
+    pub fn run_reporting(&self, range: std::ops::Range<u64>, progress: &mut dyn FnMut(f64)) -> Vec<crate::analysis::spread::Trial> {
         let (start, end) = (range.start, range.end.min(self.trials));
         let span = end.saturating_sub(start);
         let chunk = (span / 20).max(1);
@@ -396,7 +411,7 @@ impl SpreadPlan {
     }
 
     /// The statistics of `trials` (all of them, in order), with swings and corners.
-    pub fn finish(&self, trials: Vec<crate::analysis::spread::Values>) -> Result<SpreadResult> {
+    pub fn finish(&self, trials: Vec<crate::analysis::spread::Trial>) -> Result<SpreadResult> {
         use crate::analysis::spread::{corners, summarise, swings};
         let swings = swings(&self.part, &self.stage, &self.setup, &self.tolerance)?;
         let corners = corners(&self.part, &self.stage, &self.setup, &self.tolerance, &swings)?;
@@ -407,12 +422,12 @@ impl SpreadPlan {
 /// A spread and everything reported with it.
 #[derive(Debug, Clone, PartialEq)]
 pub struct SpreadResult {
-    pub nominal: crate::analysis::spread::Values,
+    pub nominal: crate::analysis::spread::Trial,
     pub summary: crate::analysis::spread::Summary,
     pub swings: Vec<crate::analysis::spread::Swing>,
     pub corners: Vec<crate::analysis::spread::Corner>,
     /// Every trial's figures (the histograms).
-    pub trials: Vec<crate::analysis::spread::Values>,
+    pub trials: Vec<crate::analysis::spread::Trial>,
 }
 
 /// GT and NF of a chain block from its design point; `missing` words what the

@@ -1,13 +1,21 @@
-//! Loop margins read from a sampled loop gain T(f) (SPEC §3.3): the phase of T is
-//! unwrapped from f_design upward; crossover is the first frequency above f_design
-//! where |T| falls through 1, phase margin = 180° + ∠T there, and gain margin =
-//! −20·log10|T| where ∠T first reaches −180°. Both crossings are refined on T
-//! itself (bisection in log frequency), not read off the grid.
+//! Loop margins read from a sampled loop gain T(f) (SPEC §3.3, "Loop gain"):
 //!
-//! Which whole turn the phase is on matters once a loop has more than 180° of
-//! lag by f_design (a three-stage part): the principal value would read −190° as
-//! +170°. So the caller gives the continuous phase at the first frequency, and
-//! the phase is carried continuously from there.
+//! - the phase φ of T is unwrapped continuously from the bottom of the sweep upward,
+//!   φ at the first frequency taken in (−180°, 180°];
+//! - every frequency where |T| falls through 1 is a crossover; the phase margin is
+//!   the smallest 180° + φ over them, and `crossover_hz` is where it occurs;
+//! - the gain margin is −20·log10|T| at the frequency nearest that crossover (on a
+//!   log scale) where φ passes through −180°, null when φ never does;
+//! - where |T| never falls through 1, crossover and phase margin are null, and
+//!   `no_crossover` says why (that is not margin).
+//!
+//! Earlier the phase was carried up from f_design only, which missed a crossover
+//! below f_design (a three-stage part with a large r_fb crosses at ~10 MHz with
+//! 49° and rings, and was reported as having no crossover at all).
+//!
+//! Between two samples the phase is carried by bisection in log frequency until no
+//! step turns it by more than `MAX_STEP` (a sharp resonance between two samples
+//! cannot jump a whole turn unseen), and every crossing is refined on T itself.
 
 use crate::math;
 use num_complex::Complex64;
@@ -16,6 +24,21 @@ use crate::error::Result;
 
 /// Relative width in frequency the crossings are refined to.
 const REFINE_TO: f64 = 1e-4;
+/// The largest phase step (radians) taken between two samples without looking
+/// between them.
+const MAX_STEP: f64 = 0.5;
+/// Halvings of one interval before its phase step is taken as it is.
+const MAX_DEPTH: u32 = 40;
+
+/// Why a loop has no phase margin: |T| never falls through 1 inside the sweep.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum NoCrossover {
+    /// |T| < 1 at every frequency of the sweep: the loop never has gain to ring with.
+    BelowOne,
+    /// |T| is still at or above 1 at the top of the sweep: a crossover, if any, lies
+    /// above it.
+    AboveAtTop,
+}
 
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Margins {
@@ -23,22 +46,15 @@ pub struct Margins {
     pub t_mid: Complex64,
     pub phase_mid_deg: f64,
     pub crossover_hz: Option<f64>,
-    /// Unwrapped ∠T at crossover + 180°, in (−180°, 180°].
+    /// 180° + the unwrapped ∠T at the crossover: the smallest over every crossover.
     pub phase_margin_deg: Option<f64>,
-    /// Where the unwrapped ∠T first reaches −180°.
+    /// How many crossovers (|T| falling through 1) the sweep has.
+    pub crossovers: usize,
+    /// Why there is no crossover (`None` when there is one).
+    pub no_crossover: Option<NoCrossover>,
+    /// Where the unwrapped ∠T passes through −180° nearest the crossover.
     pub phase_crossover_hz: Option<f64>,
     pub gain_margin_db: Option<f64>,
-}
-
-/// Degrees taken into (−180°, 180°]: a margin past a whole turn of phase is the
-/// same margin.
-fn wrap_deg(deg: f64) -> f64 {
-    let wrapped = (deg + 180.0).rem_euclid(360.0) - 180.0;
-    if wrapped == -180.0 {
-        180.0
-    } else {
-        wrapped
-    }
 }
 
 /// `angle` moved by whole turns to lie within half a turn of `near`.
@@ -46,57 +62,121 @@ pub fn unwrap_near(angle: f64, near: f64) -> f64 {
     angle - std::f64::consts::TAU * ((angle - near) / std::f64::consts::TAU).round()
 }
 
-/// The margins of the loop whose gain is `t_at(f)`, sampled as `t` at `freqs`
-/// (sorted, Hz), with `start_phase` the continuous ∠T at `freqs[0]` (radians).
-pub fn margins(f_design: f64, freqs: &[f64], t: &[Complex64], start_phase: f64, t_at: impl Fn(f64) -> Result<Complex64>) -> Result<Margins> {
-    let t_mid = t_at(f_design)?;
-    let split = freqs.partition_point(|&f| f <= f_design);
-    let mut phase = unwrap_near(t.first().map_or(math::arg(t_mid), |t| math::arg(t)), start_phase);
-    for t in t[..split].iter().skip(1).chain([&t_mid]) {
-        phase = unwrap_near(math::arg(t), phase);
+/// One sample: frequency, T, continuous phase (radians).
+type Sample = (f64, Complex64, f64);
+
+/// The continuous phase at `f` (with T there), carried from the sample `from`.
+fn carry(from: Sample, f: f64, t: Complex64, t_at: &impl Fn(f64) -> Result<Complex64>) -> Result<f64> {
+    let step = step_between((from.0, from.1), (f, t), t_at, 0)?;
+    Ok(from.2 + step)
+}
+
+/// The continuous change of ∠T from `a` to `b`, bisected until no step exceeds
+/// `MAX_STEP` (or `MAX_DEPTH` halvings, then the principal change).
+fn step_between(a: (f64, Complex64), b: (f64, Complex64), t_at: &impl Fn(f64) -> Result<Complex64>, depth: u32) -> Result<f64> {
+    let d = math::arg(b.1 / a.1);
+    if !d.is_finite() {
+        return Ok(0.0);
     }
-    // (f, T, unwrapped phase) from f_design up.
-    let mut last = (f_design, t_mid, phase);
-    let mut crossover: Option<(f64, f64)> = None;
-    let mut phase_crossing: Option<(f64, Complex64)> = None;
-    for (&f, &t) in freqs[split..].iter().zip(&t[split..]) {
-        let next = (f, t, unwrap_near(math::arg(t), last.2));
-        if crossover.is_none() && math::norm(last.1) >= 1.0 && math::norm(t) < 1.0 {
-            crossover = Some(refine(last, next, &t_at, |t, _| math::norm(t) >= 1.0)?);
+    if d.abs() <= MAX_STEP || depth >= MAX_DEPTH {
+        return Ok(d);
+    }
+    let f = (a.0 * b.0).sqrt();
+    let mid = (f, t_at(f)?);
+    Ok(step_between(a, mid, t_at, depth + 1)? + step_between(mid, b, t_at, depth + 1)?)
+}
+
+/// ∠T at each of `freqs` (sorted, Hz), sampled as `t`: continuous from the first,
+/// which is taken in (−π, π] (radians).
+pub fn continuous_phase(freqs: &[f64], t: &[Complex64], t_at: impl Fn(f64) -> Result<Complex64>) -> Result<Vec<f64>> {
+    let mut phase = Vec::with_capacity(t.len());
+    let Some(&first) = t.first() else { return Ok(phase) };
+    phase.push(math::arg(first));
+    for i in 1..t.len().min(freqs.len()) {
+        let last = (freqs[i - 1], t[i - 1], phase[i - 1]);
+        phase.push(carry(last, freqs[i], t[i], &t_at)?);
+    }
+    Ok(phase)
+}
+
+/// The margins of the loop whose gain is `t_at(f)`, sampled as `t` at `freqs`
+/// (sorted, Hz), with `phase` its continuous phase there (`continuous_phase`).
+pub fn margins(f_design: f64, freqs: &[f64], t: &[Complex64], phase: &[f64], t_at: impl Fn(f64) -> Result<Complex64>) -> Result<Margins> {
+    let n = freqs.len().min(t.len()).min(phase.len());
+    let sample = |i: usize| (freqs[i], t[i], phase[i]);
+    let t_mid = t_at(f_design)?;
+    // The phase at f_design, carried from the nearest sample at or below it (or the first).
+    let phase_mid = match n {
+        0 => math::arg(t_mid),
+        _ => carry(sample(freqs[..n].partition_point(|&f| f <= f_design).saturating_sub(1)), f_design, t_mid, &t_at)?,
+    };
+
+    // Every crossover, refined: (f, 180° + φ).
+    let mut crossovers: Vec<(f64, f64)> = Vec::new();
+    // Every passage of φ through −180°, refined: f.
+    let mut phase_crossings: Vec<f64> = Vec::new();
+    let minus_pi = -std::f64::consts::PI;
+    for i in 1..n {
+        let (below, above) = (sample(i - 1), sample(i));
+        if math::norm(below.1) >= 1.0 && math::norm(above.1) < 1.0 {
+            let (f, phase) = refine(below, above, &t_at, |t, _| math::norm(t) >= 1.0)?;
+            crossovers.push((f, 180.0 + phase.to_degrees()));
         }
-        if phase_crossing.is_none() && last.2 > -std::f64::consts::PI && next.2 <= -std::f64::consts::PI {
-            let (f, _) = refine(last, next, &t_at, |_, phase| phase > -std::f64::consts::PI)?;
-            phase_crossing = Some((f, t_at(f)?));
+        let over = |p: f64| p > minus_pi;
+        if over(below.2) != over(above.2) {
+            let side = over(below.2);
+            let (f, _) = refine(below, above, &t_at, |_, p| over(p) == side)?;
+            phase_crossings.push(f);
         }
-        if crossover.is_some() && phase_crossing.is_some() {
-            break;
+    }
+
+    let worst = crossovers.iter().copied().min_by(|a, b| a.1.total_cmp(&b.1));
+    let no_crossover = match (worst, n) {
+        (Some(_), _) | (None, 0) => None,
+        (None, _) if math::norm(t[n - 1]) >= 1.0 => Some(NoCrossover::AboveAtTop),
+        (None, _) => Some(NoCrossover::BelowOne),
+    };
+    // The phase crossing nearest the crossover on a log scale; with no crossover, the
+    // one where |T| is largest (the least gain margin).
+    let gain_db = |f: f64| -> Result<f64> { Ok(-20.0 * math::log10(math::norm(t_at(f)?))) };
+    let mut chosen: Option<(f64, f64)> = None;
+    for &f in &phase_crossings {
+        let gm = gain_db(f)?;
+        let better = match (chosen, worst) {
+            (None, _) => true,
+            (Some((g, _)), Some((fc, _))) => math::ln(f / fc).abs() < math::ln(g / fc).abs(),
+            (Some((_, best)), None) => gm < best,
+        };
+        if better {
+            chosen = Some((f, gm));
         }
-        last = next;
     }
     Ok(Margins {
         t_mid,
-        phase_mid_deg: phase.to_degrees(),
-        crossover_hz: crossover.map(|c| c.0),
-        phase_margin_deg: crossover.map(|c| wrap_deg(180.0 + c.1.to_degrees())),
-        phase_crossover_hz: phase_crossing.map(|p| p.0),
-        gain_margin_db: phase_crossing.map(|p| -20.0 * math::log10(math::norm(p.1))),
+        phase_mid_deg: phase_mid.to_degrees(),
+        crossover_hz: worst.map(|c| c.0),
+        phase_margin_deg: worst.map(|c| c.1),
+        crossovers: crossovers.len(),
+        no_crossover,
+        phase_crossover_hz: chosen.map(|c| c.0),
+        gain_margin_db: chosen.map(|c| c.1),
     })
 }
 
 /// Bisects in log frequency between `below` (where `still` holds) and `above`
-/// (where it does not), the phase unwrapped from the lower end at each step.
-/// Returns the frequency and the unwrapped phase there.
-fn refine(
-    below: (f64, Complex64, f64),
-    above: (f64, Complex64, f64),
-    t_at: &impl Fn(f64) -> Result<Complex64>,
-    still: impl Fn(Complex64, f64) -> bool,
-) -> Result<(f64, f64)> {
+/// (where it does not), the phase carried continuously from the lower end.
+/// Returns the frequency and the continuous phase there.
+fn refine(below: Sample, above: Sample, t_at: &impl Fn(f64) -> Result<Complex64>, still: impl Fn(Complex64, f64) -> bool) -> Result<(f64, f64)> {
     let (mut lo, mut hi) = (below, above);
-    while hi.0 / lo.0 - 1.0 > REFINE_TO {
+    // Each halving halves log(hi/lo): 64 of them take any bracket of doubles below
+    // REFINE_TO.
+    for _ in 0..64 {
+        if hi.0 / lo.0 - 1.0 <= REFINE_TO {
+            break;
+        }
         let f = (lo.0 * hi.0).sqrt();
         let t = t_at(f)?;
-        let mid = (f, t, unwrap_near(math::arg(t), lo.2));
+        let mid = (f, t, carry(lo, f, t, t_at)?);
         if still(t, mid.2) {
             lo = mid;
         } else {
@@ -106,5 +186,5 @@ fn refine(
     // The middle of the last, tiny bracket.
     let f = (lo.0 * hi.0).sqrt();
     let t = t_at(f)?;
-    Ok((f, unwrap_near(math::arg(t), lo.2)))
+    Ok((f, carry(lo, f, t, t_at)?))
 }

@@ -1,7 +1,8 @@
 //! Does the feedback loop ring? The loop gain (Bode's return ratio of stage 1),
-//! its margins, the closed loop's natural frequencies and the verdict drawn from
-//! them, the small-signal step response, and a helper that finds the component
-//! change that buys a wanted phase margin.
+//! its margins (SPEC §3.3: every crossover from the bottom of the sweep up), the
+//! closed loop's natural frequencies and the Nyquist count of 1 + T that checks
+//! them, the verdict drawn from them, the small-signal step response, and a helper
+//! that finds the component change that buys a wanted phase margin.
 //!
 //! ```
 //! use halfrail::analysis::{frequencies, response_of, stability, Linearised};
@@ -19,12 +20,14 @@
 
 mod compensate;
 mod margins;
+mod nyquist;
 mod poles;
 mod return_ratio;
 mod step;
 
-pub use compensate::{compensate, Knob, Suggestion, WANTED_MARGIN_DEG};
-pub use margins::{margins, unwrap_near, Margins};
+pub use compensate::{compensate, Knob, Suggestion, DEFAULT_GAIN_TOL_DB, WANTED_MARGIN_DEG};
+pub use margins::{continuous_phase, margins, unwrap_near, Margins, NoCrossover};
+pub use nyquist::{encirclement, Encirclement};
 pub use poles::{grows, least_damped_pair, natural_frequencies, Pair};
 pub use return_ratio::ReturnRatio;
 pub use step::{settling, step_response, Settling, Step, SETTLE_BAND};
@@ -48,10 +51,12 @@ pub const STEP_POINTS: usize = 2000;
 /// What the loop will do, in the terms the page states it.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub enum Verdict {
-    /// Settles cleanly; the margin, when there is a crossover at all.
-    Stable { margin_deg: Option<f64> },
+    /// Settles cleanly; the margin, when there is a crossover at all. `conditional`:
+    /// stable although the phase or gain margin is negative (every closed-loop
+    /// pole decays, but less loop gain would make it grow).
+    Stable { margin_deg: Option<f64>, conditional: bool },
     /// Stable but underdamped: rings at about `f_hz` with quality factor `q`.
-    Rings { margin_deg: Option<f64>, f_hz: f64, q: f64 },
+    Rings { margin_deg: Option<f64>, f_hz: f64, q: f64, conditional: bool },
     /// A natural frequency grows: oscillates at about `f_hz`, or runs away (a real
     /// pole in the right half-plane) when `f_hz` is `None`.
     Oscillates { f_hz: Option<f64> },
@@ -61,7 +66,8 @@ pub enum Verdict {
 #[derive(Debug, Clone, PartialEq)]
 pub struct Loop {
     pub f_hz: Vec<f64>,
-    /// T at each frequency, and its phase carried continuously up from DC (radians).
+    /// T at each frequency, and its phase carried continuously up from the bottom of
+    /// the sweep, where it is taken in (−π, π] (radians): the branch the margins use.
     pub t: Vec<Complex64>,
     pub t_phase: Vec<f64>,
     pub margins: Margins,
@@ -69,7 +75,14 @@ pub struct Loop {
     pub peaking_db: f64,
     /// Closed-loop natural frequencies, rad/s.
     pub poles: Vec<Complex64>,
+    /// No closed-loop natural frequency grows: the poles say so and the Nyquist
+    /// count, when it resolves, agrees.
     pub stable: bool,
+    /// Closed-loop natural frequencies with a positive real part.
+    pub poles_growing: usize,
+    /// The Nyquist count of F = 1 + T (`None`: not resolved, a natural frequency
+    /// on the jω axis).
+    pub nyquist: Option<Encirclement>,
     /// Natural frequencies of the circuit with the loop broken at stage 1 that grow:
     /// an inner loop (through the part's capacitances) that is unstable by itself.
     /// When there are any, the margins do not describe stability (Nyquist: Z = N + P);
@@ -97,13 +110,17 @@ pub fn analyse(lin: &Linearised, components: &Components, response: &Response, f
         Some(t) => t,
         None => freqs.iter().map(|&f| ratio.at(f)).collect::<Result<Vec<_>>>()?,
     };
-    let start_phase = ratio.phase_from_dc(freqs[0])?;
-    let margins = margins(f_design, freqs, &t, start_phase, |f| ratio.at(f))?;
-    let t_phase = continuous_phase(&t, start_phase);
+    let t_phase = continuous_phase(freqs, &t, |f| ratio.at(f))?;
+    let margins = margins(f_design, freqs, &t, &t_phase, |f| ratio.at(f))?;
     let small = lin.small_signal();
     let poles = natural_frequencies(&small.g, &small.c)?;
-    let open_loop_growing = ratio.open_loop_poles()?.iter().filter(|&&p| grows(p)).count();
-    let stable = !poles.iter().any(|&p| grows(p));
+    let open_poles = ratio.open_loop_poles()?;
+    let open_loop_growing = open_poles.iter().filter(|&&p| grows(p)).count();
+    let poles_growing = poles.iter().filter(|&&p| grows(p)).count();
+    let nyquist = encirclement(&ratio, &poles, open_poles, open_loop_growing)?;
+    // Either count finding a growing natural frequency makes the loop unstable; they
+    // differ only for one on (or at the resolution of doubles near) the jω axis.
+    let stable = poles_growing == 0 && nyquist.is_none_or(|n| n.growing == 0);
     let least_damped = least_damped_pair(&poles);
     let verdict = verdict(stable, &poles, &margins, least_damped);
 
@@ -130,31 +147,41 @@ pub fn analyse(lin: &Linearised, components: &Components, response: &Response, f
     let settling = settling(&step, step_target);
     let mu: Vec<f64> = response.points.iter().map(|p| p.mu()).collect();
     let mu_min = mu.iter().copied().filter(|m| m.is_finite()).reduce(f64::min);
-    Ok(Loop { f_hz: freqs.to_vec(), t, t_phase, margins, peaking_db, poles, stable, open_loop_growing, least_damped, verdict, step, step_target, settling, mu, mu_min })
-}
-
-/// The phases of `t` made continuous, the first on the branch of `start`.
-fn continuous_phase(t: &[Complex64], start: f64) -> Vec<f64> {
-    let mut last = start;
-    t.iter()
-        .map(|t| {
-            last = unwrap_near(math::arg(t), last);
-            last
-        })
-        .collect()
+    Ok(Loop {
+        f_hz: freqs.to_vec(),
+        t,
+        t_phase,
+        margins,
+        peaking_db,
+        poles,
+        stable,
+        poles_growing,
+        nyquist,
+        open_loop_growing,
+        least_damped,
+        verdict,
+        step,
+        step_target,
+        settling,
+        mu,
+        mu_min,
+    })
 }
 
 fn verdict(stable: bool, poles: &[Complex64], margins: &Margins, pair: Option<Pair>) -> Verdict {
     if !stable {
-        let fastest = poles.iter().filter(|&&p| grows(p)).max_by(|a, b| a.re.total_cmp(&b.re)).copied();
+        // The fastest-growing pole; with none growing (the Nyquist count found one the
+        // poles place on the axis), the least-damped pair.
+        let fastest = poles.iter().filter(|&&p| grows(p)).max_by(|a, b| a.re.total_cmp(&b.re)).copied().or(pair.map(|p| p.pole));
         let f_hz = fastest.filter(|p| p.im.abs() > 1e-9 * math::norm(p)).map(|p| p.im.abs() / std::f64::consts::TAU);
         return Verdict::Oscillates { f_hz };
     }
     let margin_deg = margins.phase_margin_deg;
+    let conditional = margin_deg.is_some_and(|m| m < 0.0) || margins.gain_margin_db.is_some_and(|g| g < 0.0);
     let low_margin = margin_deg.is_some_and(|m| m < RINGING_BELOW_DEG);
     match pair {
-        Some(p) if low_margin || p.q > RINGING_Q => Verdict::Rings { margin_deg, f_hz: p.f_ring_hz(), q: p.q },
-        _ => Verdict::Stable { margin_deg },
+        Some(p) if low_margin || p.q > RINGING_Q => Verdict::Rings { margin_deg, f_hz: p.f_ring_hz(), q: p.q, conditional },
+        _ => Verdict::Stable { margin_deg, conditional },
     }
 }
 
@@ -172,5 +199,41 @@ fn step_window(response: &Response, margins: &Margins, pair: Option<Pair>, f_des
             base.max(decay.min(periods))
         }
         _ => base,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn margins(pm: Option<f64>, gm: Option<f64>) -> Margins {
+        Margins {
+            t_mid: Complex64::new(1.0, 0.0),
+            phase_mid_deg: 0.0,
+            crossover_hz: pm.map(|_| 1e6),
+            phase_margin_deg: pm,
+            crossovers: usize::from(pm.is_some()),
+            no_crossover: None,
+            phase_crossover_hz: gm.map(|_| 2e6),
+            gain_margin_db: gm,
+        }
+    }
+
+    /// SPEC §3.3: `stable` is the poles' (and Nyquist's) answer, not the margin's. A
+    /// negative margin with every pole decaying is a conditionally stable loop, and
+    /// the verdict says so; with a pole growing it oscillates whatever the margin.
+    #[test]
+    fn a_negative_margin_with_decaying_poles_is_conditionally_stable() {
+        let decaying = [Complex64::new(-1e6, 5e6), Complex64::new(-1e6, -5e6)];
+        let pair = least_damped_pair(&decaying);
+        // ζ = 0.196: the pair rings; the margin is negative, so it is conditional.
+        assert!(matches!(verdict(true, &decaying, &margins(Some(-20.0), Some(6.0)), pair), Verdict::Rings { conditional: true, .. }));
+        assert!(matches!(verdict(true, &[Complex64::new(-1e6, 0.0)], &margins(Some(70.0), Some(-3.0)), None), Verdict::Stable { conditional: true, .. }));
+        assert!(matches!(verdict(true, &[Complex64::new(-1e6, 0.0)], &margins(Some(70.0), Some(12.0)), None), Verdict::Stable { conditional: false, .. }));
+        // No crossover is not a negative margin.
+        assert!(matches!(verdict(true, &[Complex64::new(-1e6, 0.0)], &margins(None, None), None), Verdict::Stable { conditional: false, margin_deg: None }));
+        let growing = [Complex64::new(1e5, 5e6), Complex64::new(1e5, -5e6)];
+        let v = verdict(false, &growing, &margins(Some(20.0), Some(6.0)), least_damped_pair(&growing));
+        assert!(matches!(v, Verdict::Oscillates { f_hz: Some(f) } if (f - 5e6 / std::f64::consts::TAU).abs() < 1e-6), "{v:?}");
     }
 }

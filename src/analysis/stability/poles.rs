@@ -65,11 +65,21 @@ pub fn natural_frequencies(g: &DMatrix<f64>, c: &DMatrix<f64>) -> Result<Vec<Com
             continue;
         }
         let a = -(inverse * &c);
-        let size = a.amax();
-        let schur = nalgebra::linalg::Schur::try_new(a, f64::EPSILON, MAX_ITERATIONS)
-            .ok_or_else(|| FieldError::new("circuit", "the natural frequencies did not converge"))?;
-        let mut poles: Vec<Complex64> = schur
-            .complex_eigenvalues()
+        // Balanced first, as LAPACK's eigen-solvers do: a chain of high-gain stages
+        // makes entries differ by the chain's gain (10¹⁰ for nine stages), and
+        // unbalanced, the finite eigenvalues fell below the cut-off taken from the
+        // largest entry and were dropped as poles at infinity (nine stages: 8 of 11).
+        // Where the balanced matrix does not converge (stages decoupled by a
+        // missing cgd, repeated eigenvalues), the matrix as it is.
+        let mut balanced = a.clone();
+        balance(&mut balanced);
+        let Some((size, eigenvalues)) = [balanced, a].into_iter().find_map(|a| {
+            let size = a.amax();
+            nalgebra::linalg::Schur::try_new(a, f64::EPSILON, MAX_ITERATIONS).map(|s| (size, s.complex_eigenvalues()))
+        }) else {
+            return Err(FieldError::new("circuit", "the natural frequencies did not converge"));
+        };
+        let mut poles: Vec<Complex64> = eigenvalues
             .iter()
             .filter(|l| math::norm(*l) > INFINITE_BELOW * size)
             .map(|l| sigma + 1.0 / l)
@@ -79,6 +89,58 @@ pub fn natural_frequencies(g: &DMatrix<f64>, c: &DMatrix<f64>) -> Result<Vec<Com
         return Ok(poles);
     }
     Err(FieldError::new("circuit", "the circuit's equations are singular at every shift tried"))
+}
+
+/// Sweeps of the balancing before it stops (it converges in a few).
+const BALANCE_SWEEPS: usize = 100;
+
+/// Balances `a` in place by a diagonal similarity D⁻¹·A·D of powers of two (so
+/// the eigenvalues are unchanged, bit for bit in the scaling): each row and its
+/// column brought to about the same size (Parlett and Reinsch, "Balancing a matrix
+/// for calculation of eigenvalues and eigenvectors", Numer. Math. 13, 1969, from
+/// memory; the algorithm of LAPACK's xGEBAL without the permutations).
+fn balance(a: &mut DMatrix<f64>) {
+    let n = a.nrows();
+    for _ in 0..BALANCE_SWEEPS {
+        let mut converged = true;
+        for i in 0..n {
+            let column: f64 = (0..n).filter(|&k| k != i).map(|k| a[(k, i)].abs()).sum();
+            let row: f64 = (0..n).filter(|&k| k != i).map(|k| a[(i, k)].abs()).sum();
+            if column == 0.0 || row == 0.0 {
+                continue;
+            }
+            let mut f = 1.0;
+            let (mut c, mut r) = (column, row);
+            let sum = c + r;
+            // Bounded: each pass moves f by a factor of 2, and f stays within 2^±1000.
+            for _ in 0..1000 {
+                if c >= r / 2.0 {
+                    break;
+                }
+                c *= 2.0;
+                r /= 2.0;
+                f *= 2.0;
+            }
+            for _ in 0..1000 {
+                if c < r * 2.0 {
+                    break;
+                }
+                c /= 2.0;
+                r *= 2.0;
+                f /= 2.0;
+            }
+            if c + r < 0.95 * sum {
+                converged = false;
+                for k in 0..n {
+                    a[(i, k)] /= f;
+                    a[(k, i)] *= f;
+                }
+            }
+        }
+        if converged {
+            break;
+        }
+    }
 }
 
 /// Whether a natural frequency grows: a positive real part beyond rounding.

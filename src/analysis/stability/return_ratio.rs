@@ -7,19 +7,15 @@
 //! circuit's determinant to the determinant with that source dead (Bode), which is
 //! what lets the Nyquist count of 1 + T and the poles be checked against each other.
 
-use crate::math;
 use std::cell::{OnceCell, RefCell};
 
 use nalgebra::DVector;
 use num_complex::Complex64;
 
-use super::{natural_frequencies, unwrap_near};
-use crate::analysis::{frequencies, Linearised};
+use super::natural_frequencies;
+use crate::analysis::Linearised;
 use crate::engine::{Node, SmallSignal, Workspace};
 use crate::error::{FieldError, Result};
-
-/// Points per decade of the walk up from near DC.
-const WALK_PER_DECADE: u32 = 20;
 
 /// The stage with stage 1's gm broken out, ready to return T at any frequency.
 pub struct ReturnRatio {
@@ -53,26 +49,6 @@ impl ReturnRatio {
         let work = &mut *self.work.borrow_mut();
         self.small.solve_in(std::f64::consts::TAU * f_hz, &self.small.b, None, work)?;
         Ok(-self.small.layout.voltage(&work.x, self.control))
-    }
-
-    /// The continuous phase of T at `f_hz` (radians). Far below the loop's lowest
-    /// natural frequency T → K·(jω)^m, m the coupling capacitors in the loop, so
-    /// the phase there is m·90° (0 for a DC-coupled negative-feedback loop): taken
-    /// in [−45°, 315°) and carried up continuously from there.
-    pub fn phase_from_dc(&self, f_hz: f64) -> Result<f64> {
-        let lowest = self
-            .open_loop_poles()?
-            .iter()
-            .map(|p| math::norm(p) / std::f64::consts::TAU)
-            .find(|&f| f > 0.0)
-            .unwrap_or(f_hz);
-        let f0 = f_hz.min(lowest * 1e-3);
-        let quarter = std::f64::consts::FRAC_PI_4;
-        let mut phase = (math::arg(self.at(f0)?) + quarter).rem_euclid(std::f64::consts::TAU) - quarter;
-        for f in frequencies(f0, f_hz, WALK_PER_DECADE).into_iter().skip(1) {
-            phase = unwrap_near(math::arg(self.at(f)?), phase);
-        }
-        Ok(phase)
     }
 
     /// The natural frequencies of the circuit with the loop broken (rad/s).

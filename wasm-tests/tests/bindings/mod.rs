@@ -183,7 +183,7 @@ fn spread_trials_split_and_joined_give_the_whole_spread() {
     let a = wasm::spread_trials(&document, 0, 4, &quiet).unwrap();
     let b = wasm::spread_trials(&document, 4, 6, &quiet).unwrap();
     let joined = js_sys::Object::new();
-    for key in ["gain_db", "f_low_hz", "f_high_hz", "phase_margin_deg", "iq_a", "nf_db"] {
+    for key in ["gain_db", "f_low_hz", "f_high_hz", "phase_margin_deg", "iq_a", "nf_db", "growing"] {
         let column = Array::from(&get(&a, key)).concat(&Array::from(&get(&b, key)));
         assert_eq!(column.length(), 6, "{key}");
         Reflect::set(&joined, &JsValue::from_str(key), &column).unwrap();

@@ -35,6 +35,10 @@
       return { head: `Oscillates at about ${about(v.f_hz)}`,
         why: `A pair of closed-loop poles lies in the right half-plane: the stage oscillates by itself, with or without a signal, until the output clips${known(s.phase_margin_deg) ? ` (phase margin ${deg(s.phase_margin_deg)})` : ''}.` };
     }
+    if (v.conditional) {
+      // A negative margin with every closed-loop pole decaying: the core's words say why.
+      return { head: `Conditionally stable: ${known(v.margin_deg) ? `${fixed(v.margin_deg, 0)}° phase margin` : 'a negative gain margin'}`, why: v.words };
+    }
     if (v.kind === 'rings') {
       const margin = known(v.margin_deg) ? `${fixed(v.margin_deg, 0)}° margin, ` : '';
       return { head: `Rings: ${margin}Q ${fixed(v.q, 1)} at about ${about(v.f_hz)}`,
@@ -44,9 +48,9 @@
       return { head: `Stable: ${fixed(v.margin_deg, 0)}° phase margin`,
         why: `The loop gain falls through 1 at ${hz(s.crossover_hz)} with ${deg(v.margin_deg)} of phase to spare before −180°; every closed-loop pole decays.` };
     }
-    return s.t_mid_db <= 0
-      ? { head: 'Stable, no crossover: the loop gain stays below 1 above f_design', why: 'With |T| below 1 there is no crossover to measure a margin at; every closed-loop pole decays.' }
-      : { head: 'Stable, no crossover within the sweep', why: 'The loop gain is still above 1 at the top of the sweep, so no margin is measured; every closed-loop pole decays.' };
+    return s.no_crossover === 'below_one'
+      ? { head: 'Stable, no crossover: the loop gain stays below 1 over the sweep', why: `${s.margin_words} Every closed-loop pole decays.` }
+      : { head: 'Stable, no crossover within the sweep', why: `${s.margin_words} Every closed-loop pole decays.` };
   };
 
   // μ to three decimals, or five when that close to 1 (so "μ > 1" never reads "1.000").
@@ -74,7 +78,7 @@
     const p = s.least_damped;
     return {
       t_mid: `${known(s.t_mid_db) ? fmt(s.t_mid_db, 'dB') : '—'} ∠ ${deg(s.t_mid_phase_deg)}`,
-      crossover: known(s.crossover_hz) ? hz(s.crossover_hz) : 'none above f_design',
+      crossover: known(s.crossover_hz) ? `${hz(s.crossover_hz)}${s.crossovers > 1 ? ` (worst of ${s.crossovers})` : ''}` : (s.no_crossover === 'below_one' ? 'none (|T| < 1 over the sweep)' : 'none within the sweep'),
       pm: known(s.phase_margin_deg) ? deg(s.phase_margin_deg) : '— (no crossover)',
       gm: known(s.gain_margin_db) ? `${fmt(s.gain_margin_db, 'dB')} at ${hz(s.phase_crossover_hz)}` : '— (phase stays above −180°)',
       peaking: known(s.peaking_db) ? fmt(s.peaking_db, 'dB') : '—',
@@ -640,7 +644,7 @@
       const helperIntro = el('p', { class: 'intro' });
       const helperBody = el('tbody');
       const helperTable = el('table', { class: 'helper' },
-        el('caption', {}, 'Each change tried alone on the stage as it is, with the smallest standard value that reaches the margin'),
+        el('caption', {}, 'Changes that keep the gain within its tolerance first (each alone, then a feedback capacitor with an output resistor), then those that move it, flagged; each the smallest standard value that reaches the margin'),
         el('thead', {}, el('tr', {}, ['Change', 'Value', 'Phase margin', 'Gain at f_design', 'Upper band edge', ''].map((h) => el('th', { scope: 'col' }, h)))),
         helperBody);
       const helperWrap = el('div', { class: 'scroll' }, helperTable);
@@ -709,7 +713,7 @@
       const magCell = cell();
       const magPlot = HR.plot.create(magCell, { title: 'Loop gain |T|', file: 'halfrail-loop-gain', x: freq, logX: true,
         y: { label: '|T|', unit: 'dB', range: including(0) }, decorate: magMarks, series: [{ label: '|T|', unit: 'dB' }] });
-      note(magCell, '|T| against frequency. The crossover is where |T| falls through 0 dB above f_design; GM is how far |T| is below 0 dB where the phase reaches −180°.');
+      note(magCell, '|T| against frequency. A crossover is where |T| falls through 0 dB (anywhere in the sweep; the one with the least phase margin is marked); GM is how far |T| is below 0 dB where the phase passes −180° nearest it.');
       const phaseCell = cell();
       const phasePlot = HR.plot.create(phaseCell, { title: 'Phase of the loop gain ∠T', file: 'halfrail-loop-phase', x: freq, logX: true,
         y: { label: '∠T', unit: '°', range: including(-180) }, decorate: phaseMarks, series: [{ label: '∠T (°)', unit: '' }] });
@@ -736,22 +740,28 @@
         const wanted = `${fixed(r.wanted_margin_deg, 0)}°`;
         helperWrap.hidden = r.suggestions.length === 0;
         if (!r.suggestions.length) {
-          helperIntro.textContent = `The loop already meets the wanted ${wanted} phase margin${known(s.phase_margin_deg) ? ` (it has ${deg(s.phase_margin_deg)})` : ''}: no change needed. The margin asked for is the target’s pm_min_deg, or 60° when the target sets none.`;
+          helperIntro.textContent = `${r.helper_words} The margin asked for is the target’s pm_min_deg, or 60° when the target sets none.`;
           helperBody.replaceChildren();
           return;
         }
-        helperIntro.textContent = `The loop has ${known(s.phase_margin_deg) ? deg(s.phase_margin_deg) : 'no measurable'} phase margin; ${wanted} is wanted (the target’s pm_min_deg, or 60° when it sets none). Apply puts the value into the stage; Undo takes it back.`;
+        helperIntro.textContent = `The loop has ${known(s.phase_margin_deg) ? deg(s.phase_margin_deg) : 'no measurable'} phase margin; ${wanted} is wanted (the target’s pm_min_deg, or 60° when it sets none). ${r.helper_words} Apply puts the values into the stage; Undo takes them back.`;
         const pmNow = known(s.phase_margin_deg) ? deg(s.phase_margin_deg) : (s.stable ? 'no crossover' : 'unstable');
         helperBody.replaceChildren(...r.suggestions.map((g) => {
-          const found = known(g.value);
-          const v = found ? valueOf(g.key, g.value) : null;
-          const apply = found ? el('button', { type: 'button', class: 'apply', 'aria-label': `Apply ${(KNOBS[g.key] || [])[2] || g.key} = ${v.shown}`,
-            onclick: () => HR.design.set('stage', g.key, v.text, 'loop') }, 'Apply') : '';
-          return el('tr', { 'data-key': g.key },
+          const found = g.changes.length > 0;
+          // Each change of the suggestion (two for a pair), shown and as the text to set.
+          const vs = g.changes.map((c) => ({ key: c.key, ...valueOf(c.key, c.value) }));
+          const shown = vs.map((v) => (vs.length > 1 ? `${(KNOBS[v.key] || [])[2] || v.key} ${v.shown}` : v.shown)).join(' + ');
+          const label = vs.map((v) => `${(KNOBS[v.key] || [])[2] || v.key} = ${v.shown}`).join(', ');
+          const apply = found ? el('button', { type: 'button', class: 'apply', 'aria-label': `Apply ${label}`,
+            onclick: () => (vs.length === 1
+              ? HR.design.set('stage', vs[0].key, vs[0].text, 'loop')
+              : HR.design.setMany('stage', Object.fromEntries(vs.map((v) => [v.key, v.text])), `apply ${label}`, 'loop')) }, 'Apply') : '';
+          const gain = found ? change(fmt(g.was_gain_db, 'dB'), known(g.gain_db) ? fmt(g.gain_db, 'dB') : '—') : '—';
+          return el('tr', { 'data-key': g.key, 'data-flagged': g.flag ? 'true' : 'false' },
             el('th', { scope: 'row' }, capitalised(g.what)),
-            el('td', {}, found ? v.shown : 'none in range'),
+            el('td', {}, found ? shown : 'none in range'),
             el('td', {}, found ? change(pmNow, known(g.phase_margin_deg) ? deg(g.phase_margin_deg) : 'no crossover') : '—'),
-            el('td', {}, found ? change(fmt(g.was_gain_db, 'dB'), known(g.gain_db) ? fmt(g.gain_db, 'dB') : '—') : '—'),
+            el('td', {}, g.flag ? `${gain} — ${g.flag}` : gain),
             el('td', {}, found ? change(known(g.was_f_high_hz) ? hz(g.was_f_high_hz) : 'above the sweep', known(g.f_high_hz) ? hz(g.f_high_hz) : 'above the sweep') : '—'),
             el('td', {}, apply));
         }));

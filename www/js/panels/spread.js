@@ -202,7 +202,7 @@
         const set = named.map(([k, name, unit]) => `${name.toLowerCase()} ${bound(lim[k], unit)}`);
         // Limits the nominal design itself misses: no tolerance will fix those.
         const misses = named.filter(([k]) => { const v = s.nominal[k]; const [lo, hi] = lim[k]; return known(v) && ((known(lo) && v < lo) || (known(hi) && v > hi)); });
-        const unsolved = `${s.unsolved ? ` ${s.unsolved} trials could not be solved and count as failing.` : ''}${misses.length
+        const unsolved = `${s.oscillating ? ` ${s.oscillating} of ${s.trials} trials oscillate (a closed-loop pole grows) and count as failing, whatever their figures.` : ''}${s.unsolved ? ` ${s.unsolved} trials could not be solved and count as failing.` : ''}${misses.length
           ? ` The nominal design itself misses the ${misses.map(([, name]) => name.toLowerCase()).join(' and the ')} limit: design the stage to the target first (Stage panel).` : ''}`;
         yieldHead.textContent = known(s.yield) ? `Yield ${yieldOf(s)}` : 'No yield: the target sets no limits';
         yieldText.textContent = known(s.yield)
@@ -220,7 +220,7 @@
           if (st) plot.setData(bins(r.trials[k], st));
           note.textContent = st
             ? `${st.count} trials: mean ${show(st.mean, unit)}, std dev ${show(st.std, unit)}. Dashed: the nominal design${lim[k] ? ` and the target’s limit (${bound(lim[k], unit)})` : ''}.`
-            : k === 'phase_margin_deg' ? 'No trial has a loop-gain crossover above f_design, so there is no phase margin to spread.' : 'No trial has this figure.';
+            : k === 'phase_margin_deg' ? 'No trial has a loop-gain crossover in the sweep, so there is no phase margin to spread.' : 'No trial has this figure.';
         }
         drawBars();
         timing.textContent = `${s.trials} trials computed in ${fixed(ms / 1000, 2)} s in two background workers.`;
