@@ -6,7 +6,7 @@
 //! sheet stands. `layout` turns the page into plain text or Markdown.
 
 use super::layout::{self, Block, Page};
-use crate::analysis::stability::{Loop, Verdict};
+use crate::analysis::stability::{Loop, NoCrossover, Verdict};
 use crate::analysis::swing::{Large, SLOPE_TOLERANCE};
 use crate::analysis::{Bias, Response};
 use crate::chain::Budget;
@@ -343,6 +343,7 @@ fn verdict(l: &Loop) -> String {
         Verdict::Oscillates { f_hz: Some(f) } => format!("oscillates at about {}", eng(f, Unit::Hertz)),
         Verdict::Oscillates { f_hz: None } => "runs away to a rail (a real closed-loop pole grows)".into(),
         Verdict::Rings { f_hz, q, .. } => format!("stable, but rings at about {} (Q {})", eng(f_hz, Unit::Hertz), significant(q, 2)),
+        Verdict::Stable { conditional: true, .. } => "stable, but only conditionally: every closed-loop pole decays though a margin is negative, so less gain could make it oscillate".into(),
         Verdict::Stable { .. } => "stable: every closed-loop pole decays".into(),
     }
 }
@@ -350,11 +351,14 @@ fn verdict(l: &Loop) -> String {
 fn feedback_loop(blocks: &mut Vec<Block>, l: &Loop) {
     let m = &l.margins;
     let t_mid_db = db_of(magnitude(m.t_mid));
-    let no_crossover = if t_mid_db.is_some_and(|t| t <= 0.0) { "|T| stays below 1 above f_design" } else { "none within the sweep" };
+    let no_crossover = match m.no_crossover {
+        Some(NoCrossover::AboveAtTop) => "none: |T| is still above 1 at the top of the sweep",
+        _ => "none: |T| stays below 1 over the sweep",
+    };
     let rows = vec![
         ("Loop gain T at f_design", or_why(t_mid_db, db, "zero")),
         ("Crossover |T| = 1", or_why(m.crossover_hz, |f| eng(f, Unit::Hertz), no_crossover)),
-        ("Phase margin", or_why(m.phase_margin_deg, degrees, "no crossover")),
+        ("Phase margin", or_why(m.phase_margin_deg, degrees, "no crossover, so none (that is not margin)")),
         ("Gain margin", or_why(m.gain_margin_db, db, "the phase never reaches −180°")),
         ("Stable", if l.stable { "yes".into() } else { "no".into() }),
         ("Verdict", verdict(l)),
