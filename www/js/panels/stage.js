@@ -144,20 +144,33 @@
         } }, 'Use')]));
     };
 
-    // Design once asked, then again a pause after each change (some 20–60 ms a call natively on the demo, more with a low corner, as the pairs are solved again with the capacitors fitted).
+    // Design once asked, then again a pause after each change. It runs in a background
+    // worker (20–60 ms natively on the demo, up to half a second for a hard target), so
+    // the page keeps answering; Cancel stops it, and a new run replaces the one before.
     let asked = false;
     let timer = null;
+    let running = null;
+    const busy = el('p', { class: 'busy', hidden: true, role: 'status' }, 'Designing… ',
+      el('button', { type: 'button', onclick: () => running && running.cancel() }, 'Cancel'));
     const design = () => {
       clearTimeout(timer);
       asked = true;
-      const r = HR.call('designReport', HR.design.text());
-      const atField = route(r.error);
-      problem.textContent = r.error && !atField ? r.error.message || r.error.reason : '';
-      out.classList.toggle('stale', Boolean(r.error));
-      if (r.error) return;
-      render(r.ok);
-      out.hidden = false;
-      container.dataset.designed = String(Number(container.dataset.designed || 0) + 1);
+      busy.hidden = false;
+      running = HR.background.run('designReport', [HR.design.text()], { lane: 'design' });
+      const mine = running;
+      mine.promise.then((r) => {
+        if (running !== mine) return;
+        running = null;
+        busy.hidden = true;
+        if (r.cancelled) return;
+        const atField = route(r.error);
+        problem.textContent = r.error && !atField ? r.error.message || r.error.reason : '';
+        out.classList.toggle('stale', Boolean(r.error));
+        if (r.error) return;
+        render(r.ok);
+        out.hidden = false;
+        container.dataset.designed = String(Number(container.dataset.designed || 0) + 1);
+      });
     };
     HR.design.onChange(() => {
       sync();
@@ -170,7 +183,7 @@
       el('p', { class: 'intro' }, 'The gain you want at f_design; Design finds the standard resistor pairs that give it with this part’s real, finite gain, ranked by a stable loop and the limits met, the resistors in charge of the gain (loop gain 3 or more), gain error, noise, match and current. Use puts a pair in the stage (one step to undo).'),
       el('div', { class: 'grid-fields' }, fields.slice(0, 1).map(([, f]) => f.wrap), selects.map(([, c]) => c.wrap), fields.slice(1).map(([, f]) => f.wrap)),
       el('div', { class: 'inputs' }, ticks.map((t) => t.wrap)),
-      el('div', { class: 'actions' }, el('button', { type: 'button', onclick: design }, 'Design')), problem, out);
+      el('div', { class: 'actions' }, el('button', { type: 'button', onclick: design }, 'Design')), busy, problem, out);
     node.classList.add('wide');
     return { node, route };
   };
