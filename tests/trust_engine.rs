@@ -213,3 +213,20 @@ fn with_large_coupling_capacitors_the_fundamental_is_the_small_signal_gain() {
         }
     }
 }
+
+#[test]
+fn an_input_beyond_the_supply_is_refused_naming_the_level() {
+    let (part, stage) = base("", Some("100n"), "100n", "10.7 MHz");
+    let e = swing::analyse(&part, &stage, 10.7e6, 40.0, &mut |_| {}).unwrap_err();
+    assert_eq!(e.field, "analysis.input_dbm");
+    assert!(e.reason.contains("beyond what the supply allows"), "{}", e.reason);
+    // The ceiling: the EMF whose share at the pin (small-signal) is twice VDD.
+    let time = TimeDomain::new(&part, &stage).unwrap();
+    let pin = time.gain_to_input(10.7e6).unwrap();
+    let ceiling = swing::available_dbm(2.0 * part.vdd / pin, 50.0);
+    assert!(swing::analyse(&part, &stage, 10.7e6, ceiling + 0.1, &mut |_| {}).unwrap_err().field == "analysis.input_dbm");
+    match swing::analyse(&part, &stage, 10.7e6, ceiling - 0.5, &mut |_| {}) {
+        Ok(large) => assert!(large.tone.thd_pct.is_finite()),
+        Err(e) => assert_eq!(e.field, "analysis.input_dbm", "{e}"),
+    }
+}

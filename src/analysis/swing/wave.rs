@@ -68,6 +68,11 @@ impl TimeDomain {
         self.gain_to(*self.circuit.nodes.outputs.last().expect("a part has a stage"), f_hz)
     }
 
+    /// |v(in)| at the input pin per volt of EMF at `f_hz`, small-signal.
+    pub fn gain_to_input(&self, f_hz: f64) -> Result<f64> {
+        self.gain_to(self.circuit.nodes.input, f_hz)
+    }
+
     /// |v(out)| at the load per volt of EMF at `f_hz`, small-signal.
     pub fn gain_to_output(&self, f_hz: f64) -> Result<f64> {
         self.gain_to(self.circuit.nodes.output, f_hz)
