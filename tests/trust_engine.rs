@@ -230,3 +230,30 @@ fn an_input_beyond_the_supply_is_refused_naming_the_level() {
         Err(e) => assert_eq!(e.field, "analysis.input_dbm", "{e}"),
     }
 }
+
+/// A transconductor switched fully off: no current and no derivative.
+#[derive(Debug)]
+struct Off;
+
+impl halfrail::engine::Transconductor for Off {
+    fn evaluate(&self, _: f64, _: f64, _: f64) -> halfrail::engine::DeviceState {
+        halfrail::engine::DeviceState::default()
+    }
+}
+
+#[test]
+fn a_singular_small_signal_system_names_the_node_and_its_elements() {
+    use halfrail::engine::{Element, Netlist, Node, OperatingPoint, SmallSignal};
+    // `hang` is held only by a device that is off: the topology sees a path (a
+    // device's output is tied to the rails), the equations have none.
+    let mut n = Netlist::new();
+    let (top, hang) = (n.node("top"), n.node("hang"));
+    n.add("V1", Element::VoltageSource { a: top, b: Node::GROUND, dc: 1.0, ac: 1.0 });
+    n.add("R1", Element::Resistor { a: top, b: Node::GROUND, ohms: 1e3 });
+    n.add("X1", Element::Device { input: top, output: hang, law: std::sync::Arc::new(Off) });
+    n.add("C1", Element::Capacitor { a: hang, b: Node::GROUND, farads: 0.0 });
+    let layout = halfrail::engine::Layout::new(&n);
+    let op = OperatingPoint { x: nalgebra::DVector::from_vec(vec![1.0, 0.0, -1e-3]), devices: vec![None, None, Some(Default::default()), None], layout, iterations: 0, method: halfrail::engine::Method::Newton };
+    let e = SmallSignal::at(&n, &op).unwrap().solve(1.0).unwrap_err();
+    assert!(e.reason.contains("node `hang`") && e.reason.contains("X1") && e.reason.contains("C1"), "{}", e.reason);
+}

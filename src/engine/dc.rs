@@ -284,14 +284,15 @@ impl<'a> DcSystem<'a> {
         if scale >= 1.0 {
             return Ok(finish(x, total, Method::SourceStepping, true));
         }
-        let name = if last_worst < layout.nodes {
-            self.netlist.node_name(Node(last_worst + 1)).to_string()
+        let at = if last_worst < layout.nodes {
+            format!("node `{}`", self.netlist.node_name(Node(last_worst + 1)))
         } else {
-            "a branch".into()
+            let element = layout.branch.iter().position(|b| *b == Some(last_worst));
+            element.map_or("a branch".into(), |k| format!("the branch of `{}`", self.netlist.elements()[k].name))
         };
         Err(FieldError::new(
             "circuit",
-            format!("the operating point did not converge (Newton, gmin and source stepping all failed; the largest imbalance was at node `{name}`)"),
+            format!("the operating point did not converge (Newton, gmin and source stepping all failed; the largest imbalance was at {at})"),
         ))
     }
 }
