@@ -172,7 +172,7 @@ fn the_supply_floor_is_taken_at_the_parts_temperature() {
 
 #[test]
 fn buffered_parts_run_the_large_signal_analysis() {
-    for stages in [1, 3, 5, 7] {
+    for stages in [1, 3, 5, 7, 9] {
         let (part, stage) = with_stages(stages);
         let large = swing::analyse(&part, &stage, 10.7e6, -30.0, &mut |_| {}).unwrap_or_else(|e| panic!("{stages} stages: {e}"));
         assert!(large.tone.harmonics.iter().all(|h| h.is_finite()), "{stages}");

@@ -183,7 +183,9 @@ impl<'a> DcSystem<'a> {
     /// converges from the last (continuation on the source value; common
     /// practice). A part of several stages inside its loop swings its inner nodes
     /// rail to rail over a tiny part of a step once its output reaches a rail,
-    /// and Newton cannot cross that from the step's start. When even
+    /// and Newton cannot cross that from the step's start. A piece that will not
+    /// converge exactly is taken with GMIN on every node (1e-12 S, SPICE's
+    /// standing shunt; a nine-stage part's inner nodes need it there). When even
     /// `MIN_FRACTION` of the move fails, the full solve (`solve`) from the last
     /// solution decides.
     pub fn continue_to(&mut self, element: usize, from: f64, x: &DVector<f64>, to: f64) -> Result<OperatingPoint> {
@@ -193,7 +195,10 @@ impl<'a> DcSystem<'a> {
         for _ in 0..MAX_PIECES {
             let target = if (to - at).abs() <= stride.abs() { to } else { at + stride };
             self.set_voltage(element, target);
-            match self.problem().newton_within(&last, 1.0, 0.0, PIECE_ITERATIONS) {
+            let problem = self.problem();
+            // Exact first; else with GMIN on every node, as `solve` accepts too.
+            let piece = problem.newton_within(&last, 1.0, 0.0, PIECE_ITERATIONS).or_else(|_| problem.newton_within(&last, 1.0, GMIN, PIECE_ITERATIONS));
+            match piece {
                 Ok((next, n)) => {
                     iterations += n;
                     (at, last) = (target, next);
