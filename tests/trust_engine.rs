@@ -257,3 +257,14 @@ fn a_singular_small_signal_system_names_the_node_and_its_elements() {
     let e = SmallSignal::at(&n, &op).unwrap().solve(1.0).unwrap_err();
     assert!(e.reason.contains("node `hang`") && e.reason.contains("X1") && e.reason.contains("C1"), "{}", e.reason);
 }
+
+#[test]
+fn a_feedback_resistor_of_a_teraohm_still_biases() {
+    // The gate hangs on 1 TΩ alone at DC (c_in_f blocks the source): no current
+    // flows in it, so the bias is the self-bias all the same.
+    let (part, stage) = base("", Some("100n"), "100n", "10.7 MHz");
+    let stage = stage.with(Component::RFbOhm, Some(1e12));
+    let b = bias(&part, &stage, None).unwrap();
+    let (v, _) = one_stage_bias(&part);
+    assert!((b.vin_v - v).abs() < 1e-6 && (b.vout_v - v).abs() < 1e-5, "{} {} vs {v}", b.vin_v, b.vout_v);
+}

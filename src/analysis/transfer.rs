@@ -118,9 +118,10 @@ impl SelfBias {
 }
 
 /// Steps of Vin − Vout on each side of the self-bias in the window search, and the
-/// bisections that then place each edge (to VDD/64/2^40 of Vin − Vout).
-const WINDOW_STEPS: usize = 64;
-const EDGE_BISECTIONS: usize = 40;
+/// bisections that then place each edge (to VDD/32/2^24, some 4 nV, of Vin − Vout:
+/// the output to about as much).
+const WINDOW_STEPS: usize = 32;
+const EDGE_BISECTIONS: usize = 24;
 
 /// The output window around the self-bias over which `keep` holds, on the bare
 /// curve traced by Vin − Vout (`SelfBias`): stepped outward on each side until
