@@ -183,15 +183,36 @@ fn buffered_parts_run_the_large_signal_analysis() {
     QuasiStatic::new(&part, &stage).unwrap();
 }
 
+/// The demo document with both coupling capacitors `c` and f_design `f`.
+fn demo_with(c: &str, f: &str) -> halfrail::doc::Document {
+    let mut json: serde_json::Value = serde_json::from_str(halfrail::doc::DEMO).unwrap();
+    json["stage"]["c_in_f"] = c.into();
+    json["stage"]["c_out_f"] = c.into();
+    json["analysis"]["f_design_hz"] = f.into();
+    load(&json.to_string()).unwrap()
+}
+
+#[test]
+fn the_demo_runs_its_large_signal_analysis_with_any_coupling() {
+    for c in ["1p", "10u", "1"] {
+        for f in ["1 kHz", "10.7 MHz", "500 MHz"] {
+            let large = demo_with(c, f).large(&mut |_| {}).unwrap_or_else(|e| panic!("{c} at {f}: {e}"));
+            assert!(large.tone.harmonics.iter().chain(&large.transfer.1).all(|v| v.is_finite()), "{c} at {f}");
+            assert!(large.compression.iter().flat_map(|c| &c.levels).all(|l| l.pout_dbm.is_finite()), "{c} at {f}");
+        }
+    }
+}
+
 #[test]
 fn large_coupling_capacitors_work_at_every_design_frequency() {
     for c in ["1p", "10u", "1"] {
         for f in ["1 kHz", "10.7 MHz", "500 MHz"] {
             let (part, stage) = base("", Some(c), c, f);
             let f_hz = halfrail::units::parse(f).unwrap().value;
-            let time = TimeDomain::new(&part, &stage).unwrap();
-            let tone = one_tone(&time, 0.01, f_hz, &mut |_| {}).unwrap_or_else(|e| panic!("{c} at {f}: {e}"));
+            let large = swing::analyse(&part, &stage, f_hz, -30.0, &mut |_| {}).unwrap_or_else(|e| panic!("{c} at {f}: {e}"));
+            let tone = &large.tone;
             assert!(tone.harmonics.iter().all(|h| h.is_finite()) && tone.thd_pct.is_finite(), "{c} at {f}");
+            assert!(large.intercept.iter().all(|i| i.oip3_dbm.is_finite()) && large.series.a1.is_finite(), "{c} at {f}");
         }
     }
 }
