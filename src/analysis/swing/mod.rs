@@ -62,9 +62,10 @@ pub struct Large {
     pub amplitude: f64,
 }
 
-/// The largest peak at the input pin the analysis drives, in supplies: beyond
-/// it the pin would swing a whole supply past a rail, which no real part takes
-/// without its protection diodes conducting (and the model has none).
+/// The largest peak at the input pin the analysis drives, in supplies: twice
+/// the supply is far beyond the rails, where a real part's protection diodes
+/// would clamp long before (the model has none, and its Newton steps would chase
+/// tens of volts).
 pub const PIN_LIMIT_VDD: f64 = 2.0;
 
 /// The available source power, dBm, whose tone puts `PIN_LIMIT_VDD`·`vdd` peak on
