@@ -2,8 +2,9 @@
 //! amplifier, the supply current and dissipation, the small-signal parameters,
 //! the part's open-loop gain and the warnings a user must see.
 
-use crate::engine::{operating_point, Element, OperatingPoint};
-use crate::error::{FieldError, Result};
+use super::transfer::SelfBias;
+use crate::engine::{carry_over, operating_point, Element, OperatingPoint};
+use crate::error::Result;
 use crate::part::{InverterLaw, Model, Part};
 use crate::stage::{build, Component, Components, StageCircuit};
 
@@ -102,17 +103,13 @@ fn resistor_power(circuit: &StageCircuit, op: &OperatingPoint) -> f64 {
         .sum()
 }
 
-/// The components with the DC paths to the source and load removed where they are
-/// not already blocked by a coupling capacitor: the stage's self-bias.
-fn isolated(c: &Components) -> Components {
-    let mut isolated = *c;
-    if c.get(Component::CInF).is_none() {
-        isolated = isolated.with(Component::SourceOhm, None).with(Component::ShuntOhm, None);
-    }
-    if c.get(Component::COutF).is_none() {
-        isolated = isolated.with(Component::LoadOhm, None);
-    }
-    isolated
+/// What reaches the part at DC besides its feedback resistor: the source (its EMF
+/// is 0 V at DC) when there is no input coupling capacitor, the load when there is
+/// no output one.
+fn dc_coupled(c: &Components) -> (bool, bool) {
+    let source = c.get(Component::CInF).is_none();
+    let load = c.get(Component::COutF).is_none() && c.fitted(Component::LoadOhm).is_some();
+    (source, load)
 }
 
 impl Bias {
@@ -127,38 +124,24 @@ impl Bias {
     }
 }
 
-/// The least supply with which a square-law stage conducts at its switching point.
-fn conduction_floor(part: &Part) -> f64 {
-    part.nmos.vt + part.pmos.vt
-}
-
 /// Solves the stage's operating point and reports it.
 ///
 /// `package_max_w` is the dissipation limit to warn against, if the user set one.
 pub fn bias(part: &Part, components: &Components, package_max_w: Option<f64>) -> Result<Bias> {
-    if part.model == Model::SquareLaw && part.vdd <= conduction_floor(part) {
-        return Err(FieldError::new(
-            "part.vdd_v",
-            format!(
-                "at {} V a square-law part cannot conduct at its bias: the supply must exceed vtn + |vtp| = {:.3} V \
-                 (the EKV model describes a part this close to threshold)",
-                part.vdd,
-                conduction_floor(part)
-            ),
-        ));
-    }
+    part.check_supply()?;
     let law = part.law()?;
     let circuit = build(part, &law, components)?;
-    let self_circuit = build(part, &law, &isolated(components))?;
-    let self_op = operating_point(&self_circuit.netlist, None)?;
-    // Start the full circuit from the self-bias: it is usually close.
-    let guess = (self_circuit.netlist.node_count() == circuit.netlist.node_count()).then_some(&self_op.x);
-    let op = operating_point(&circuit.netlist, guess)?;
+    // The self-bias is the part with only its feedback resistor around it (SPEC
+    // §3.2: no DC current flows in it, so the output sits where Vout = Vin).
+    let isolated = SelfBias::new(part, &law);
+    let self_op = isolated.solve(part.vdd)?;
+    // Start the full circuit from the self-bias, node by node: it is usually close.
+    let op = operating_point(&circuit.netlist, Some(&carry_over(&isolated.netlist, &self_op.x, &circuit.netlist)))?;
 
     let stages = stages_of(&circuit, &op, &law);
     let iq: f64 = stages.iter().map(|s| s.id_a).sum();
     let last = stages.last().expect("a part has at least one stage");
-    let self_bias_v = self_op.voltage(*self_circuit.nodes.outputs.last().expect("one stage at least"));
+    let self_bias_v = isolated.output(&self_op);
     let power = part.vdd * iq;
     let external = resistor_power(&circuit, &op);
     let mut report = Bias {
@@ -173,19 +156,24 @@ pub fn bias(part: &Part, components: &Components, package_max_w: Option<f64>) ->
         warnings: Vec::new(),
         stages,
     };
-    report.warnings = warnings(part, &report, package_max_w);
+    report.warnings = warnings(part, &report, dc_coupled(components), package_max_w);
     Ok(report)
 }
 
-fn warnings(part: &Part, b: &Bias, package_max_w: Option<f64>) -> Vec<Warning> {
+fn warnings(part: &Part, b: &Bias, (source, load): (bool, bool), package_max_w: Option<f64>) -> Vec<Warning> {
     let mut out = Vec::new();
     let mut warn = |code, text: String| out.push(Warning { code, text });
     if b.shift_v.abs() > SHIFT_WARN_V {
+        let (what, cure) = match (source, load) {
+            (true, false) => ("source", "An input coupling capacitor (c_in_f)"),
+            (false, true) => ("load", "An output coupling capacitor (c_out_f)"),
+            _ => ("source and load", "Coupling capacitors (c_in_f, c_out_f)"),
+        };
         warn(
             "bias-shift",
             format!(
-                "The DC-coupled source or load moves the output bias from {:.3} V to {:.3} V ({:+.0} mV). \
-                 A coupling capacitor keeps the self-bias.",
+                "The DC-coupled {what} moves the output bias from its self-bias {:.3} V to {:.3} V ({:+.0} mV). \
+                 {cure} would keep the self-bias.",
                 b.self_bias_v,
                 b.vout_v,
                 b.shift_v * 1e3

@@ -2,11 +2,13 @@
 //! large-signal curve in band (coupling capacitors held at their operating-point
 //! voltages), each a DC sweep on the engine with every point started from the last.
 
+use nalgebra::DVector;
+
 use crate::math;
-use crate::engine::{operating_point, DcSystem, Element, Netlist, Node, OperatingPoint, SmallSignal};
+use crate::engine::{carry_over, operating_point, DcSystem, Element, Netlist, Node, OperatingPoint, SmallSignal};
 use crate::error::{FieldError, Result};
-use crate::part::Part;
-use crate::stage::{add_part, build, Components, StageCircuit};
+use crate::part::{InverterLaw, Part};
+use crate::stage::{add_part, build, Component, Components, StageCircuit};
 
 /// One point of the bare part's curve.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -44,43 +46,124 @@ pub struct BareCurve {
 pub const BARE_POINTS: usize = 501;
 
 /// DC solves of `netlist` with the voltage source `source` set to each value in
-/// turn. Each starts from the straight-line extrapolation of the two before it (a
-/// secant predictor; common continuation practice), falling back to the last
-/// solution alone if that fails.
-fn sweep(netlist: &Netlist, source: usize, values: impl Iterator<Item = f64>) -> Result<Vec<OperatingPoint>> {
+/// turn, each continued from the one before (`DcSystem::continue_to`), the first
+/// from `start` (a value of the source and its solution) or, without one, solved
+/// from nothing.
+fn sweep(netlist: &Netlist, source: usize, start: Option<(f64, &DVector<f64>)>, values: impl Iterator<Item = f64>) -> Result<Vec<OperatingPoint>> {
     let mut system = DcSystem::new(netlist)?;
     let mut ops: Vec<OperatingPoint> = Vec::new();
+    let mut from = start.map(|(v, x)| (v, x.clone()));
     for v in values {
-        system.set_voltage(source, v);
-        let op = match ops.as_slice() {
-            [.., a, b] => system.solve(Some(&(&b.x * 2.0 - &a.x))).or_else(|_| system.solve(Some(&b.x)))?,
-            [b] => system.solve(Some(&b.x))?,
-            [] => system.solve(None)?,
+        let op = match from {
+            Some((at, ref x)) => system.continue_to(source, at, x, v)?,
+            None => {
+                system.set_voltage(source, v);
+                system.solve(None)?
+            }
         };
+        from = Some((v, op.x.clone()));
         ops.push(op);
     }
     Ok(ops)
 }
 
-/// The contiguous run of `points` around index `at` for which `keep` holds, as an
-/// output-voltage window.
-fn window_around(points: &[BarePoint], at: usize, keep: impl Fn(&BarePoint) -> bool) -> Option<Window> {
-    if !keep(points.get(at)?) {
-        return None;
-    }
-    let mut lo = at;
-    while lo > 0 && keep(&points[lo - 1]) {
-        lo -= 1;
-    }
-    let mut hi = at;
-    while hi + 1 < points.len() && keep(&points[hi + 1]) {
-        hi += 1;
-    }
-    let (a, b) = (points[lo].vout_v, points[hi].vout_v);
-    Some(Window { low_v: a.min(b), high_v: a.max(b) })
+/// The part alone with its output tied back to its input through a voltage source
+/// `offset` (v(g1) − v(oN) = its value), with its stage inputs and outputs.
+///
+/// At offset 0 this is the part's self-bias: with a feedback resistor and nothing
+/// else around the part no DC current flows in the resistor, so its value does
+/// not matter and the source stands for it. Swept over the offset it traces the
+/// bare curve by Vin − Vout instead of by Vin: the loop's own feedback makes every
+/// solve well conditioned however steep the part (a nine-stage part's output
+/// crosses the supply within a fraction of a picovolt of input).
+pub struct SelfBias {
+    pub netlist: Netlist,
+    pub offset: usize,
+    pub gates: Vec<Node>,
+    pub outputs: Vec<Node>,
 }
 
-/// The bare part's transfer curve with `count` points from 0 to VDD.
+impl SelfBias {
+    pub fn new(part: &Part, law: &InverterLaw) -> Self {
+        let mut netlist = Netlist::new();
+        let g1 = netlist.node("g1");
+        let (gates, outputs) = add_part(&mut netlist, part, law, g1);
+        let last = *outputs.last().expect("one stage at least");
+        let offset = netlist.add("offset", Element::VoltageSource { a: g1, b: last, dc: 0.0, ac: 0.0 });
+        SelfBias { netlist, offset, gates, outputs }
+    }
+
+    /// A starting guess with every node at half the supply (near where a
+    /// self-biased part sits) and no branch current.
+    pub fn guess(&self, vdd: f64) -> DVector<f64> {
+        let layout = crate::engine::Layout::new(&self.netlist);
+        DVector::from_fn(layout.size, |i, _| if i < layout.nodes { 0.5 * vdd } else { 0.0 })
+    }
+
+    /// The self-bias operating point (offset 0).
+    pub fn solve(&self, vdd: f64) -> Result<OperatingPoint> {
+        DcSystem::new(&self.netlist)?.solve(Some(&self.guess(vdd)))
+    }
+
+    /// The output of the last stage at a solved point.
+    pub fn output(&self, op: &OperatingPoint) -> f64 {
+        op.voltage(*self.outputs.last().expect("one stage at least"))
+    }
+
+    fn point(&self, op: &OperatingPoint, law: &InverterLaw) -> BarePoint {
+        let gate = *self.gates.last().expect("one stage at least");
+        let out = self.output(op);
+        BarePoint { vin_v: op.voltage(self.gates[0]), vout_v: out, gain: stage_gain(op), saturated: law.both_saturated(op.voltage(gate), out) }
+    }
+}
+
+/// Steps of Vin − Vout on each side of the self-bias in the window search, and the
+/// bisections that then place each edge (to VDD/32/2^24, some 4 nV, of Vin − Vout:
+/// the output to about as much).
+const WINDOW_STEPS: usize = 32;
+const EDGE_BISECTIONS: usize = 24;
+
+/// The output window around the self-bias over which `keep` holds, on the bare
+/// curve traced by Vin − Vout (`SelfBias`): stepped outward on each side until
+/// `keep` fails, the edge then bisected. `None` when it fails at the bias itself.
+fn window(bias: &SelfBias, law: &InverterLaw, at_bias: &OperatingPoint, keep: &dyn Fn(&BarePoint) -> bool) -> Result<Option<Window>> {
+    if !keep(&bias.point(at_bias, law)) {
+        return Ok(None);
+    }
+    let mut system = DcSystem::new(&bias.netlist)?;
+    let mut solve = |offset: f64, from: (f64, &DVector<f64>)| system.continue_to(bias.offset, from.0, from.1, offset);
+    let mut edges = [0.0; 2];
+    for (edge, side) in edges.iter_mut().zip([-1.0, 1.0]) {
+        let stride = side * law.vdd / WINDOW_STEPS as f64;
+        let (mut good, mut good_op) = (0.0, at_bias.clone());
+        let mut bad = None;
+        for k in 1..=WINDOW_STEPS {
+            let op = solve(stride * k as f64, (good, &good_op.x))?;
+            if !keep(&bias.point(&op, law)) {
+                bad = Some(stride * k as f64);
+                break;
+            }
+            (good, good_op) = (stride * k as f64, op);
+        }
+        if let Some(mut bad) = bad {
+            for _ in 0..EDGE_BISECTIONS {
+                let mid = 0.5 * (good + bad);
+                let op = solve(mid, (good, &good_op.x))?;
+                if keep(&bias.point(&op, law)) {
+                    (good, good_op) = (mid, op);
+                } else {
+                    bad = mid;
+                }
+            }
+        }
+        *edge = bias.output(&good_op);
+    }
+    Ok(Some(Window { low_v: edges[0].min(edges[1]), high_v: edges[0].max(edges[1]) }))
+}
+
+/// The bare part's transfer curve with `count` points from 0 to VDD, its
+/// self-bias and gain there, and its windows (each found on the curve traced by
+/// Vin − Vout, so a steep part's are resolved however narrow they are in Vin).
 pub fn bare_curve(part: &Part, count: usize) -> Result<BareCurve> {
     if count < 3 {
         return Err(FieldError::new("points", format!("a curve needs at least 3 points, got {count}")));
@@ -91,50 +174,28 @@ pub fn bare_curve(part: &Part, count: usize) -> Result<BareCurve> {
     let source = n.add("input", Element::VoltageSource { a: g1, b: Node::GROUND, dc: 0.0, ac: 0.0 });
     let (gates, outputs) = add_part(&mut n, part, &law, g1);
     let step = part.vdd / (count - 1) as f64;
-    let ops = sweep(&n, source, (0..count).map(|i| i as f64 * step))?;
+    let ops = sweep(&n, source, None, (0..count).map(|i| i as f64 * step))?;
     let last_gate = *gates.last().expect("one stage at least");
     let last_out = *outputs.last().expect("one stage at least");
     let points: Vec<BarePoint> = ops
         .iter()
         .enumerate()
-        .map(|(i, op)| {
-            BarePoint {
-                vin_v: i as f64 * step,
-                vout_v: op.voltage(last_out),
-                gain: stage_gain(op),
-                saturated: law.both_saturated(op.voltage(last_gate), op.voltage(last_out)),
-            }
+        .map(|(i, op)| BarePoint {
+            vin_v: i as f64 * step,
+            vout_v: op.voltage(last_out),
+            gain: stage_gain(op),
+            saturated: law.both_saturated(op.voltage(last_gate), op.voltage(last_out)),
         })
         .collect();
-    // The self-bias: where the curve falls through Vout = Vin. Bracket it on the
-    // grid, then refine with Newton steps on Vin (the slope is the gain − 1), since
-    // a steep part's gain changes a lot within one grid step.
-    let cross = points.windows(2).position(|w| (w[0].vout_v - w[0].vin_v) * (w[1].vout_v - w[1].vin_v) <= 0.0);
-    let at = cross.ok_or_else(|| FieldError::new("part", "the transfer curve never crosses Vout = Vin"))?;
-    let (p, q) = (points[at], points[at + 1]);
-    let t = (p.vout_v - p.vin_v) / ((p.vout_v - p.vin_v) - (q.vout_v - q.vin_v));
-    let (mut vin, mut guess) = (p.vin_v + t * (q.vin_v - p.vin_v), ops[at].x.clone());
-    let mut a0 = p.gain;
-    let mut system = DcSystem::new(&n)?;
-    for _ in 0..40 {
-        system.set_voltage(source, vin);
-        let op = system.solve(Some(&guess))?;
-        a0 = stage_gain(&op);
-        let h = op.voltage(last_out) - vin;
-        guess = op.x;
-        // Within 0.1 µV at the output: the input is then known to 0.1 µV/|A0|.
-        if h.abs() < 1e-7 {
-            break;
-        }
-        vin = (vin - h / (a0 - 1.0)).clamp(p.vin_v, q.vin_v);
-    }
-    let nearer = if t < 0.5 { at } else { at + 1 };
-    let floor = a0.abs() * math::pow(10f64, -1.0 / 20.0);
+    let self_bias = SelfBias::new(part, &law);
+    let at_bias = self_bias.solve(part.vdd)?;
+    let here = self_bias.point(&at_bias, &law);
+    let floor = here.gain.abs() * math::pow(10f64, -1.0 / 20.0);
     Ok(BareCurve {
-        bias_vin_v: vin,
-        a0,
-        saturated: window_around(&points, nearer, |p| p.saturated),
-        within_1db: window_around(&points, nearer, |p| p.gain.abs() >= floor),
+        bias_vin_v: here.vin_v,
+        a0: here.gain,
+        saturated: window(&self_bias, &law, &at_bias, &|p| p.saturated)?,
+        within_1db: window(&self_bias, &law, &at_bias, &|p| p.gain.abs() >= floor)?,
         points,
     })
 }
@@ -152,45 +213,59 @@ pub struct LoopPoint {
     pub vout_v: f64,
 }
 
+/// The stage with its coupling capacitors held: each replaced by a source at its
+/// operating-point voltage (what it holds through a signal far above its corner),
+/// the network then memoryless at DC. The held circuit's operating point is the
+/// stage's own, solved from it carried over by name (`carry_over`): the sources
+/// add unknowns, so a guess by position would be lost.
+pub struct Held {
+    pub netlist: Netlist,
+    pub op: OperatingPoint,
+}
+
+impl Held {
+    pub fn new(circuit: &StageCircuit, op: &OperatingPoint) -> Result<Self> {
+        let mut netlist = circuit.netlist.clone();
+        for coupling in [Component::CInF, Component::COutF] {
+            if let Some(i) = netlist.element_index(coupling.key()) {
+                if let Element::Capacitor { a, b, .. } = netlist.elements()[i].element {
+                    netlist.replace(i, Element::VoltageSource { a, b, dc: op.voltage(a) - op.voltage(b), ac: 0.0 });
+                }
+            }
+        }
+        let op = operating_point(&netlist, Some(&carry_over(&circuit.netlist, &op.x, &netlist)))?;
+        Ok(Held { netlist, op })
+    }
+}
+
 /// The closed-loop stage driven by its source over ±`span_v` of EMF about its
 /// operating point, with `count` points; the coupling capacitors keep their bias.
 pub fn closed_loop_curve(part: &Part, components: &Components, count: usize, span_v: Option<f64>) -> Result<Vec<LoopPoint>> {
     if count < 3 {
         return Err(FieldError::new("points", format!("a curve needs at least 3 points, got {count}")));
     }
+    part.check_supply()?;
     let law = part.law()?;
     let circuit = build(part, &law, components)?;
     let op = operating_point(&circuit.netlist, None)?;
-    // Coupling capacitors become batteries at their operating-point voltage.
-    let mut held = circuit.netlist.clone();
-    for name in ["c_in_f", "c_out_f"] {
-        if let Some(i) = held.element_index(name) {
-            if let Element::Capacitor { a, b, .. } = held.elements()[i].element {
-                held.replace(i, Element::VoltageSource { a, b, dc: op.voltage(a) - op.voltage(b), ac: 0.0 });
-            }
-        }
-    }
+    let held = Held::new(&circuit, &op)?;
     let span = match span_v {
         Some(s) if s.is_finite() && s > 0.0 => s,
         Some(s) => return Err(FieldError::new("span_v", format!("must be > 0, got {s}"))),
-        None => default_span(part, &held, &op, &circuit)?,
+        None => default_span(part, &held, &circuit)?,
     };
-    let ops = sweep(&held, circuit.source, (0..count).map(|i| -span + 2.0 * span * i as f64 / (count - 1) as f64))?;
+    let emf = |i: usize| -span + 2.0 * span * i as f64 / (count - 1) as f64;
+    let ops = sweep(&held.netlist, circuit.source, Some((0.0, &held.op.x)), (0..count).map(emf))?;
     Ok(ops
         .iter()
         .enumerate()
-        .map(|(i, o)| LoopPoint {
-            emf_v: -span + 2.0 * span * i as f64 / (count - 1) as f64,
-            vin_v: o.voltage(circuit.nodes.input),
-            vout_v: o.voltage(circuit.nodes.output),
-        })
+        .map(|(i, o)| LoopPoint { emf_v: emf(i), vin_v: o.voltage(circuit.nodes.input), vout_v: o.voltage(circuit.nodes.output) })
         .collect())
 }
 
 /// An EMF span that drives the output about ±0.75·VDD: enough to show both rails.
-fn default_span(part: &Part, held: &Netlist, op: &OperatingPoint, circuit: &StageCircuit) -> Result<f64> {
-    let held_op = operating_point(held, Some(&op.x))?;
-    let small = SmallSignal::at(held, &held_op)?;
+fn default_span(part: &Part, held: &Held, circuit: &StageCircuit) -> Result<f64> {
+    let small = SmallSignal::at(&held.netlist, &held.op)?;
     let gain = math::norm(small.layout.voltage(&small.solve(0.0)?, circuit.nodes.output));
     Ok(if gain > 1e-6 { (0.75 * part.vdd / gain).min(part.vdd) } else { part.vdd })
 }

@@ -8,7 +8,7 @@ use num_complex::Complex64;
 use super::dc::OperatingPoint;
 use super::lu::ComplexLu;
 use super::mna::{ac_sources, linear_stamps, stamp_devices, Layout};
-use super::netlist::Netlist;
+use super::netlist::{Element, Netlist, Node};
 use super::topology::{first_floating, PathKind};
 use crate::error::{FieldError, Result};
 
@@ -48,6 +48,9 @@ pub struct SmallSignal {
     pub c: DMatrix<f64>,
     /// The small-signal excitation of the independent sources.
     pub b: DVector<Complex64>,
+    /// What each unknown is, in words, for naming the one a singular system
+    /// leaves undetermined: a node with the elements at it, or a branch.
+    unknowns: Vec<String>,
 }
 
 impl SmallSignal {
@@ -63,7 +66,8 @@ impl SmallSignal {
         let (mut g, c) = linear_stamps(netlist, &layout);
         stamp_devices(netlist, &layout, &op.devices, None, &mut g);
         let b = ac_sources(netlist, &layout);
-        Ok(SmallSignal { layout, g, c, b })
+        let unknowns = describe_unknowns(netlist, &layout);
+        Ok(SmallSignal { layout, g, c, b, unknowns })
     }
 
     /// G + jωC.
@@ -99,7 +103,16 @@ impl SmallSignal {
         if lu.refactor(&self.g, &self.c, omega) {
             Ok(())
         } else {
-            Err(singular(omega))
+            Err(match lu.singular_column().and_then(|k| self.unknowns.get(k)) {
+                Some(what) => FieldError::new(
+                    "circuit",
+                    format!(
+                        "the small-signal equations are singular at {:.4e} Hz: nothing fixes {what}; check the value of the components there",
+                        omega / std::f64::consts::TAU
+                    ),
+                ),
+                None => singular(omega),
+            })
         }
     }
 
@@ -117,6 +130,32 @@ impl SmallSignal {
     /// solution gives every source's transfer to one output at once (noise).
     pub fn solve_adjoint(&self, omega: f64, rhs: &DVector<Complex64>) -> Result<DVector<Complex64>> {
         checked(self.factor(omega)?.solve_transpose(rhs), omega)
+    }
+}
+
+/// Each unknown of `layout` in words: "the voltage of node `g1` (at r_in_ohm,
+/// r_fb_ohm, …)" or "the current of `source EMF`".
+fn describe_unknowns(netlist: &Netlist, layout: &Layout) -> Vec<String> {
+    let mut out: Vec<String> = (1..netlist.node_count()).map(|k| {
+        let node = Node(k);
+        let at: Vec<&str> = netlist.elements().iter().filter(|e| touches(&e.element, node)).map(|e| e.name.as_str()).collect();
+        format!("the voltage of node `{}` (at {})", netlist.node_name(node), at.join(", "))
+    }).collect();
+    out.resize(layout.size, String::new());
+    for (k, named) in netlist.elements().iter().enumerate() {
+        if let Some(i) = layout.branch[k] {
+            out[i] = format!("the current of `{}`", named.name);
+        }
+    }
+    out
+}
+
+/// Whether `element` has a terminal at `node`.
+fn touches(element: &Element, node: Node) -> bool {
+    match *element {
+        Element::Resistor { a, b, .. } | Element::Capacitor { a, b, .. } | Element::Inductor { a, b, .. } | Element::VoltageSource { a, b, .. } | Element::CurrentSource { a, b, .. } => a == node || b == node,
+        Element::Vccs { a, b, cp, cn, .. } => [a, b, cp, cn].contains(&node),
+        Element::Device { input, output, .. } => input == node || output == node,
     }
 }
 

@@ -49,6 +49,8 @@ pub struct Lu<T> {
     rows: Vec<usize>,
     /// Room for the transposed solve's intermediate vector.
     scratch: Vec<T>,
+    /// The column with no usable pivot when the last factorisation failed.
+    singular_at: Option<usize>,
 }
 
 /// The small-signal systems' factorisation.
@@ -94,7 +96,14 @@ impl<T: Entry> Lu<T> {
         self.factor()
     }
 
+    /// The unknown (column) with no usable pivot when the last factorisation
+    /// failed: the one the equations leave undetermined.
+    pub fn singular_column(&self) -> Option<usize> {
+        self.singular_at
+    }
+
     fn factor(&mut self) -> bool {
+        self.singular_at = None;
         let (n, lu) = (self.n, &mut self.lu);
         self.rows.clear();
         self.rows.extend(0..n);
@@ -103,6 +112,7 @@ impl<T: Entry> Lu<T> {
             let p = lu[pivot * n + k];
             let size = p.magnitude2();
             if !(size > 0.0 && size.is_finite()) {
+                self.singular_at = Some(k);
                 return false;
             }
             if pivot != k {

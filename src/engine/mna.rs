@@ -227,3 +227,16 @@ pub fn evaluate_into(
         }
     }
 }
+
+/// Whether every row of F(x) is balanced within `abs` plus `rel` times the size
+/// of the terms it sums, Σ_j |J_ij·x_j| (SPICE's reltol/abstol on the KCL
+/// currents; common practice). Rounding leaves a row with large terms — a
+/// capacitor's C/h in a short time step, a branch carrying a supply current —
+/// unbalanced by far more than a fixed number of amperes; a row of small terms is
+/// held to `abs`.
+pub fn balanced(residual: &DVector<f64>, jacobian: &DMatrix<f64>, x: &DVector<f64>, abs: f64, rel: f64) -> bool {
+    (0..residual.len()).all(|i| {
+        let terms: f64 = (0..x.len()).map(|j| (jacobian[(i, j)] * x[j]).abs()).sum();
+        residual[i].abs() <= abs + rel * terms
+    })
+}

@@ -4,6 +4,7 @@
 //! `G`/`C`/device stamps here rather than on a solver of their own.
 
 mod ac;
+mod carry;
 mod dc;
 mod lu;
 mod mna;
@@ -11,6 +12,7 @@ mod netlist;
 mod topology;
 mod transient;
 
+pub use carry::carry_over;
 pub use ac::{check_finite, SmallSignal, Workspace};
 pub use lu::{ComplexLu, RealLu};
 pub use dc::{operating_point, DcSystem, Method, OperatingPoint};

@@ -5,35 +5,113 @@
 //! BDF2 is L-stable: the algebraic rows of MNA and the part's fast poles are
 //! damped instead of ringing, which the trapezoidal rule would not do.
 //!
-//! The step is fixed (chosen from the signal by the caller), so the matrices
-//! G + C/h and G + 3C/(2h) are formed once and every buffer is reused: a run of
-//! tens of thousands of steps allocates nothing after it starts.
+//! A capacitor enters as its companion model. A small one is a conductance
+//! α·C/h with a current source (Norton); a large one — C/h above
+//! `THEVENIN_ABOVE_S`, a coupling capacitor of microfarads to farads in a step of
+//! nanoseconds — is a small resistance h/(α·C) with a voltage source (Thevenin),
+//! its current one more unknown. As a conductance of 10^9 S it would make every
+//! KCL row at its nodes a difference of currents of 10^9 A, and the signal's
+//! microamperes would drown in their rounding; as a branch its current is solved
+//! for directly and only its voltage, a few volts, is rounded.
+//!
+//! The step is fixed (chosen from the signal by the caller), so the matrices are
+//! formed once and every buffer is reused: a run of tens of thousands of steps
+//! allocates nothing after it starts.
 
 use nalgebra::{DMatrix, DVector};
 
 use super::lu::RealLu;
-use super::mna::{dc_sources, device_slots, evaluate_into, linear_stamps, DeviceSlot, Layout};
+use super::mna::{balanced, dc_sources, device_slots, evaluate_into, linear_stamps, DeviceSlot, Layout};
 use super::netlist::{Element, Netlist};
 use crate::error::{FieldError, Result};
 
 /// Largest change of a node voltage in one Newton iteration, volts (as the DC solve).
 const MAX_STEP_V: f64 = 0.5;
 const MAX_ITERATIONS: usize = 60;
-/// Converged when no unknown moved by more than this (plus a relative part) and no
-/// KCL row is out of balance by more than `RESIDUAL_TOL` amperes.
+/// The Newton update counts as small below this (plus a relative part); a row is
+/// balanced within `RESIDUAL_TOL` amperes plus `RESIDUAL_RELTOL` of its terms
+/// (`mna::balanced`).
 const STEP_TOL: f64 = 1e-12;
 const STEP_RELTOL: f64 = 1e-10;
 const RESIDUAL_TOL: f64 = 1e-10;
+const RESIDUAL_RELTOL: f64 = 1e-9;
+/// A capacitor whose C/h exceeds this many siemens is stamped as a branch
+/// (Thevenin): well above any conductance of the stage, so the demo's own
+/// coupling capacitors at their design frequency stay conductances.
+const THEVENIN_ABOVE_S: f64 = 1e3;
+
+/// A capacitor stamped as a branch: its nodes' unknowns and its value.
+#[derive(Debug, Clone, Copy)]
+struct Large {
+    a: Option<usize>,
+    b: Option<usize>,
+    farads: f64,
+}
 
 /// A circuit prepared for time-domain runs with one voltage source driven.
 pub struct Transient<'a> {
     pub layout: Layout,
     g: DMatrix<f64>,
+    /// The capacitors' stamps, and each capacitor alone (to take the large ones out).
     c: DMatrix<f64>,
+    capacitors: Vec<Large>,
     b: DVector<f64>,
     devices: Vec<DeviceSlot<'a>>,
     /// The branch row of the driven source.
     driven: usize,
+}
+
+/// The matrices of one run: the large capacitors as branches after the circuit's
+/// own unknowns.
+struct Companion {
+    large: Vec<Large>,
+    /// C of the small capacitors, bordered with zeros to the run's size.
+    c: DMatrix<f64>,
+    euler: DMatrix<f64>,
+    gear: DMatrix<f64>,
+}
+
+impl Companion {
+    fn new(t: &Transient, h: f64) -> Self {
+        let n = t.layout.size;
+        let large: Vec<Large> = t.capacitors.iter().copied().filter(|c| c.farads / h > THEVENIN_ABOVE_S).collect();
+        let size = n + large.len();
+        let mut c = DMatrix::zeros(size, size);
+        c.view_mut((0, 0), (n, n)).copy_from(&t.c);
+        for cap in &large {
+            stamp(&mut c, cap.a, cap.b, -cap.farads);
+        }
+        let mut g = DMatrix::zeros(size, size);
+        g.view_mut((0, 0), (n, n)).copy_from(&t.g);
+        for (k, cap) in large.iter().enumerate() {
+            let br = n + k;
+            // The branch current leaves `a` and enters `b`.
+            for (node, sign) in [(cap.a, 1.0), (cap.b, -1.0)] {
+                if let Some(i) = node {
+                    g[(i, br)] += sign;
+                    g[(br, i)] += sign;
+                }
+            }
+        }
+        let with = |alpha: f64| {
+            let mut m = &g + &c * (alpha / h);
+            for (k, cap) in large.iter().enumerate() {
+                m[(n + k, n + k)] -= h / (alpha * cap.farads);
+            }
+            m
+        };
+        let (euler, gear) = (with(1.0), with(1.5));
+        Companion { large, c, euler, gear }
+    }
+}
+
+/// Adds a capacitance `farads` between two unknowns of `c`.
+fn stamp(c: &mut DMatrix<f64>, a: Option<usize>, b: Option<usize>, farads: f64) {
+    for (i, j, v) in [(a, a, farads), (b, b, farads), (a, b, -farads), (b, a, -farads)] {
+        if let (Some(i), Some(j)) = (i, j) {
+            c[(i, j)] += v;
+        }
+    }
 }
 
 impl<'a> Transient<'a> {
@@ -46,42 +124,63 @@ impl<'a> Transient<'a> {
             _ => return Err(FieldError::new("circuit", "the driven element is not a voltage source")),
         };
         let (g, c) = linear_stamps(netlist, &layout);
+        let capacitors = netlist
+            .elements()
+            .iter()
+            .filter_map(|e| match e.element {
+                Element::Capacitor { a, b, farads } => Some(Large { a: layout.index(a), b: layout.index(b), farads }),
+                _ => None,
+            })
+            .collect();
         let b = dc_sources(netlist, &layout, 1.0);
         let devices = device_slots(netlist, &layout);
-        Ok(Transient { layout, g, c, b, devices, driven: row })
+        Ok(Transient { layout, g, c, capacitors, b, devices, driven: row })
     }
 
     /// Integrates from `x0` (a consistent state, such as the operating point) for
     /// `steps` steps of `h` seconds, the driven source at its DC value plus
-    /// `drive(t)`. After each step `each(k, t, x)` sees the solution; returning
-    /// `false` stops the run early (a cancel).
+    /// `drive(t)`. After each step `each(k, t, x)` sees the solution (the
+    /// circuit's unknowns, laid out as `layout`); returning `false` stops the run
+    /// early (a cancel).
     pub fn run(&self, x0: &DVector<f64>, h: f64, steps: usize, drive: impl Fn(f64) -> f64, mut each: impl FnMut(usize, f64, &DVector<f64>) -> bool) -> Result<()> {
         let n = self.layout.size;
-        let euler = &self.g + &self.c / h;
-        let gear = &self.g + &self.c * (1.5 / h);
-        let (mut before, mut now) = (x0.clone(), x0.clone());
-        let mut x = DVector::zeros(n);
-        let mut history = DVector::zeros(n);
-        let mut rhs = DVector::zeros(n);
-        let mut residual = DVector::zeros(n);
-        let mut jacobian = DMatrix::zeros(n, n);
-        let mut step = DVector::zeros(n);
+        let companion = Companion::new(self, h);
+        let size = n + companion.large.len();
+        // The large capacitors' currents start at zero: Newton finds them in the
+        // first step (they enter linearly).
+        let mut start = DVector::zeros(size);
+        start.rows_mut(0, n).copy_from(x0);
+        let (mut before, mut now) = (start.clone(), start);
+        let mut x = DVector::zeros(size);
+        let mut history = DVector::zeros(size);
+        let mut rhs = DVector::zeros(size);
+        let mut residual = DVector::zeros(size);
+        let mut jacobian = DMatrix::zeros(size, size);
+        let mut step = DVector::zeros(size);
+        let mut seen = DVector::zeros(n);
+        let mut b = DVector::zeros(size);
+        b.rows_mut(0, n).copy_from(&self.b);
         let mut lu = RealLu::default();
         let dc_drive = self.b[self.driven];
         for k in 1..=steps {
             let t = k as f64 * h;
-            // The integrator's memory: C·x/h for Euler, C·(2x − x₋/2)/h for BDF2.
+            // The integrator's memory: C·x/h for Euler, C·(2x − x₋/2)/h for BDF2;
+            // for a capacitor as a branch, the same voltages over α.
             history.copy_from(&now);
-            let a = if k == 1 {
-                &euler
+            let (a, alpha) = if k == 1 {
+                (&companion.euler, 1.0)
             } else {
                 history.axpy(-0.25, &before, 1.0);
                 history *= 2.0;
-                &gear
+                (&companion.gear, 1.5)
             };
-            rhs.copy_from(&self.b);
+            rhs.copy_from(&b);
             rhs[self.driven] = dc_drive + drive(t);
-            rhs.gemv(1.0 / h, &self.c, &history, 1.0);
+            rhs.gemv(1.0 / h, &companion.c, &history, 1.0);
+            for (j, cap) in companion.large.iter().enumerate() {
+                let at = |i: Option<usize>| i.map_or(0.0, |i| history[i]);
+                rhs[n + j] = (at(cap.a) - at(cap.b)) / alpha;
+            }
             // Predict by extrapolating the last two points, then Newton.
             x.copy_from(&now);
             if k > 1 {
@@ -99,11 +198,21 @@ impl<'a> Transient<'a> {
                     break;
                 }
                 let largest = step.rows(0, self.layout.nodes).amax();
-                if largest > MAX_STEP_V {
+                let clamped = largest > MAX_STEP_V;
+                if clamped {
                     step *= MAX_STEP_V / largest;
                 }
+                // The imbalance is judged at the point the step starts from,
+                // against each row's own terms.
+                let balanced_before = balanced(&residual, &jacobian, &x, RESIDUAL_TOL, RESIDUAL_RELTOL);
                 x -= &step;
-                if step.amax() <= STEP_TOL + STEP_RELTOL * x.amax() && residual.amax() <= RESIDUAL_TOL.max(1e-9 * rhs.amax()) {
+                // Converged when the update is small against the solution (SPICE's
+                // reltol/abstol on the Newton update); or when a full step was taken
+                // from a point already balanced: it then only corrects what the
+                // linearisation left, quadratically, and rounding keeps the update
+                // from shrinking further.
+                let small = step.amax() <= STEP_TOL + STEP_RELTOL * x.amax();
+                if balanced_before && (small || !clamped) {
                     converged = true;
                     break;
                 }
@@ -113,7 +222,8 @@ impl<'a> Transient<'a> {
             }
             std::mem::swap(&mut before, &mut now);
             now.copy_from(&x);
-            if !each(k, t, &now) {
+            seen.copy_from(&now.rows(0, n));
+            if !each(k, t, &seen) {
                 break;
             }
         }

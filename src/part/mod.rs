@@ -80,6 +80,35 @@ impl Part {
         Ok(shifted)
     }
 
+    /// The least supply with which a square-law stage conducts at its switching
+    /// point, vtn + |vtp| with both thresholds at the operating temperature (below
+    /// it the two devices are never on together, so nothing holds a self-biased
+    /// output); `None` for the EKV model, which conducts below threshold.
+    pub fn supply_floor(&self) -> Result<Option<f64>> {
+        match self.model {
+            Model::SquareLaw => {
+                let law = self.law()?;
+                Ok(Some(law.nmos.vt + law.pmos.vt))
+            }
+            Model::Ekv { .. } => Ok(None),
+        }
+    }
+
+    /// Refuses a supply at or below `supply_floor`, naming `part.vdd_v`.
+    pub fn check_supply(&self) -> Result<()> {
+        match self.supply_floor()? {
+            Some(floor) if self.vdd <= floor => Err(FieldError::new(
+                "part.vdd_v",
+                format!(
+                    "at {} V and {} °C a square-law part cannot conduct at its bias: the supply must exceed vtn + |vtp| = {:.3} V \
+                     at that temperature (the EKV model describes a part this close to threshold)",
+                    self.vdd, self.temp_c, floor
+                ),
+            )),
+            _ => Ok(()),
+        }
+    }
+
     /// The law of one stage at the operating temperature, for the engine.
     pub fn law(&self) -> Result<InverterLaw> {
         Ok(InverterLaw {

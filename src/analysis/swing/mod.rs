@@ -62,6 +62,18 @@ pub struct Large {
     pub amplitude: f64,
 }
 
+/// The largest peak at the input pin the analysis drives, in supplies: twice
+/// the supply is far beyond the rails, where a real part's protection diodes
+/// would clamp long before (the model has none, and its Newton steps would chase
+/// tens of volts).
+pub const PIN_LIMIT_VDD: f64 = 2.0;
+
+/// The available source power, dBm, whose tone puts `PIN_LIMIT_VDD`·`vdd` peak on
+/// the input pin, from the pin's small-signal share of the EMF `pin_per_emf`.
+pub fn pin_ceiling_dbm(vdd: f64, pin_per_emf: f64, source_ohm: f64) -> f64 {
+    available_dbm(PIN_LIMIT_VDD * vdd / pin_per_emf.max(1e-300), source_ohm)
+}
+
 /// Points of the transfer curve.
 pub const TRANSFER_POINTS: usize = 201;
 
@@ -85,11 +97,31 @@ pub fn analyse(part: &Part, c: &Components, f_hz: f64, input_dbm: f64, progress:
     let source_ohm = source_resistance(c)?;
     let load_ohm = c.get(Component::LoadOhm);
     let time = TimeDomain::new(part, c)?;
-    let still = QuasiStatic::new(part, c)?;
-    let rail_dbm = rail_level_dbm(part.vdd, time.gain_to_last_stage(f_hz)?, source_ohm);
-
     let amplitude = emf_amplitude(input_dbm, source_ohm);
-    let tone = one_tone(&time, amplitude, f_hz, &mut |p| progress(0.05 * p))?;
+    let ceiling_dbm = pin_ceiling_dbm(part.vdd, time.gain_to_input(f_hz)?, source_ohm);
+    if input_dbm > ceiling_dbm {
+        return Err(FieldError::new(
+            "analysis.input_dbm",
+            format!(
+                "the input level is beyond what the supply allows: {input_dbm} dBm from {source_ohm} Ω puts more than {PIN_LIMIT_VDD} times \
+                 the {} V supply on the input pin at {f_hz} Hz, where a real part's protection diodes would conduct; at most {ceiling_dbm:.1} dBm",
+                part.vdd
+            ),
+        ));
+    }
+    let still = QuasiStatic::new(part, c)?;
+    // The sweep runs up to `SWEEP_ABOVE_RAIL_DB` above the rail level, and never
+    // past the ceiling: a stage with little gain (coupling capacitors far too
+    // small for f_design) would otherwise be driven with kilovolts.
+    let rail_dbm = rail_level_dbm(part.vdd, time.gain_to_last_stage(f_hz)?, source_ohm).min(ceiling_dbm - SWEEP_ABOVE_RAIL_DB);
+
+    let tone = one_tone(&time, amplitude, f_hz, &mut |p| progress(0.05 * p)).map_err(|e| {
+        if e.field == "circuit" {
+            FieldError::new("analysis.input_dbm", format!("at {input_dbm} dBm: {}", e.reason))
+        } else {
+            e
+        }
+    })?;
     let (compression, intercept) = match load_ohm {
         Some(rl) => {
             let (from, to) = sweep_range_dbm(rail_dbm);

@@ -8,10 +8,11 @@ use crate::math;
 use nalgebra::DVector;
 
 use super::drive::{emf_at, Record, Tone};
-use crate::engine::{operating_point, DcSystem, Element, Netlist, Node, OperatingPoint, SmallSignal, Transient};
+use crate::analysis::Held;
+use crate::engine::{operating_point, DcSystem, Netlist, Node, OperatingPoint, SmallSignal, Transient};
 use crate::error::{FieldError, Result};
 use crate::part::Part;
-use crate::stage::{build, Component, Components, StageCircuit};
+use crate::stage::{build, Components, StageCircuit};
 
 /// The sampled record: time, v(out) at the load, v(in), and the last inverter's
 /// output (what runs into the rails).
@@ -52,6 +53,7 @@ pub struct TimeDomain {
 
 impl TimeDomain {
     pub fn new(part: &Part, c: &Components) -> Result<Self> {
+        part.check_supply()?;
         let law = part.law()?;
         let circuit = build(part, &law, c)?;
         let op = operating_point(&circuit.netlist, None)?;
@@ -63,8 +65,22 @@ impl TimeDomain {
 impl TimeDomain {
     /// |v(last inverter output)| per volt of EMF at `f_hz`, small-signal.
     pub fn gain_to_last_stage(&self, f_hz: f64) -> Result<f64> {
+        self.gain_to(*self.circuit.nodes.outputs.last().expect("a part has a stage"), f_hz)
+    }
+
+    /// |v(in)| at the input pin per volt of EMF at `f_hz`, small-signal.
+    pub fn gain_to_input(&self, f_hz: f64) -> Result<f64> {
+        self.gain_to(self.circuit.nodes.input, f_hz)
+    }
+
+    /// |v(out)| at the load per volt of EMF at `f_hz`, small-signal.
+    pub fn gain_to_output(&self, f_hz: f64) -> Result<f64> {
+        self.gain_to(self.circuit.nodes.output, f_hz)
+    }
+
+    fn gain_to(&self, node: Node, f_hz: f64) -> Result<f64> {
         let x = self.small.solve(std::f64::consts::TAU * f_hz)?;
-        Ok(math::norm(self.small.layout.voltage(&x, *self.circuit.nodes.outputs.last().expect("a part has a stage"))))
+        Ok(math::norm(self.small.layout.voltage(&x, node)))
     }
 }
 
@@ -125,30 +141,22 @@ pub struct QuasiStatic {
 
 impl QuasiStatic {
     pub fn new(part: &Part, c: &Components) -> Result<Self> {
+        part.check_supply()?;
         let law = part.law()?;
         let circuit = build(part, &law, c)?;
         let op = operating_point(&circuit.netlist, None)?;
-        let mut netlist = circuit.netlist.clone();
-        for coupling in [Component::CInF, Component::COutF] {
-            if let Some(i) = netlist.element_index(coupling.key()) {
-                if let Element::Capacitor { a, b, .. } = netlist.elements()[i].element {
-                    netlist.replace(i, Element::VoltageSource { a, b, dc: op.voltage(a) - op.voltage(b), ac: 0.0 });
-                }
-            }
-        }
-        let op = operating_point(&netlist, Some(&op.x))?;
+        let Held { netlist, op } = Held::new(&circuit, &op)?;
         Ok(QuasiStatic { netlist, source: circuit.source, nodes: circuit.nodes, op })
     }
 
     /// v(out) against a DC EMF `e` (the closed-loop transfer at the held bias).
     pub fn transfer(&self, emfs: &[f64]) -> Result<Vec<f64>> {
         let mut system = DcSystem::new(&self.netlist)?;
-        let mut guess = self.op.x.clone();
+        let (mut from, mut guess) = (0.0, self.op.x.clone());
         emfs.iter()
             .map(|&e| {
-                system.set_voltage(self.source, e);
-                let op = system.solve(Some(&guess))?;
-                guess = op.x.clone();
+                let op = system.continue_to(self.source, from, &guess, e)?;
+                (from, guess) = (e, op.x.clone());
                 Ok(op.voltage(self.nodes.output))
             })
             .collect()
@@ -173,14 +181,14 @@ impl QuasiStatic {
 impl Waveforms for QuasiStatic {
     fn run(&self, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave> {
         let mut system = DcSystem::new(&self.netlist)?;
-        let mut guess = self.op.x.clone();
+        let (mut from, mut guess) = (0.0, self.op.x.clone());
         let mut wave = Wave::with_capacity(record.samples);
         for k in 0..record.samples {
             let t = k as f64 * record.step_s();
-            system.set_voltage(self.source, emf_at(tones, t));
-            let op = system.solve(Some(&guess)).map_err(|e| FieldError::new(e.field, format!("{} (quasi-static, t = {t:.4e} s)", e.reason)))?;
+            let emf = emf_at(tones, t);
+            let op = system.continue_to(self.source, from, &guess, emf).map_err(|e| FieldError::new(e.field, format!("{} (quasi-static, t = {t:.4e} s)", e.reason)))?;
             wave.push(t, |n| op.voltage(n), &self.nodes);
-            guess = op.x;
+            (from, guess) = (emf, op.x);
             if (k + 1) % PROGRESS_EVERY == 0 {
                 progress((k + 1) as f64 / record.samples as f64);
             }
