@@ -251,6 +251,7 @@ impl Document {
         let analysis = self.sweep()?;
         let tolerance = self.tolerance.as_ref().ok_or_else(|| FieldError::new("tolerance", "missing; a spread needs the tolerances"))?;
         let kind = self.target.as_ref().map_or(crate::analysis::design::GainKind::Voltage, |t| t.to_core().kind);
+        kind.measurable(&stage)?;
         let setup = Setup::new(&part, &stage, analysis.f_design_hz, (analysis.f_start_hz, analysis.f_stop_hz), analysis.z0_ohm, kind)?;
         let tolerance_core = Core { resistor_pct: tolerance.resistor_pct, capacitor_pct: tolerance.capacitor_pct, vdd_pct: tolerance.vdd_pct, k_pct: tolerance.k_pct, vt_v: tolerance.vt_mv / 1e3 };
         let limits = self.target.as_ref().map_or(Limits::default(), |t| Limits {

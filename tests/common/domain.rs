@@ -100,7 +100,8 @@ pub fn draw(seed: u64) -> Drawn {
     let stop = (f_design * log_uniform(rng, 3.0, 1e3)).min(1e12);
     let per_decade = rng.random_range(5..=50);
     let freqs = grid(start, stop, per_decade);
-    let design_index = rng.random_range(0..freqs.len());
+    // f_design on the grid point nearest the one drawn (so the sweep has a row there).
+    let design_index = freqs.partition_point(|&f| f < f_design).min(freqs.len() - 1);
     let analysis = json!({
         "f_design_hz": freqs[design_index],
         "f_start_hz": start,

@@ -142,11 +142,21 @@ pub fn ideal_ratio(target: &Target, c: &Components, r_in: f64) -> f64 {
     }
 }
 
+impl GainKind {
+    /// Refuses, naming `target.gain_kind`, a gain this stage does not have: a power
+    /// gain (GT) needs a resistive source and load.
+    pub fn measurable(self, c: &Components) -> Result<()> {
+        let fitted = |part| c.get(part).is_some_and(|r| r > 0.0);
+        if self == GainKind::Power && !(fitted(Component::SourceOhm) && fitted(Component::LoadOhm)) {
+            return Err(FieldError::new("target.gain_kind", "a power gain needs a source resistance and a load resistor"));
+        }
+        Ok(())
+    }
+}
+
 /// Refuses a target the design cannot take, naming its field.
 fn check(target: &Target, c: &Components, f_design: f64) -> Result<()> {
-    if target.kind == GainKind::Power && (c.get(Component::SourceOhm).is_none_or(|r| r <= 0.0) || c.get(Component::LoadOhm).is_none_or(|r| r <= 0.0)) {
-        return Err(FieldError::new("target.gain_kind", "a power gain needs a source resistance and a load resistor"));
-    }
+    target.kind.measurable(c)?;
     if !(target.r_min_ohm > 0.0 && target.r_min_ohm < target.r_max_ohm) {
         return Err(FieldError::new("target.r_max_ohm", format!("must be above target.r_min_ohm ({}), got {}", target.r_min_ohm, target.r_max_ohm)));
     }
