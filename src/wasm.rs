@@ -30,7 +30,7 @@ fn reporter(progress: &js_sys::Function) -> impl FnMut(f64) + '_ {
 }
 
 fn thrown(error: FieldError) -> JsValue {
-    to_js(&error).unwrap_or_else(|e| e)
+    to_js(&crate::doc::located(error)).unwrap_or_else(|e| e)
 }
 
 fn unit_named(field: &str, name: &str) -> Result<Unit, JsValue> {

@@ -91,7 +91,7 @@ proptest! {
         let c = DMatrix::from_fn(size, size, |_, _| next() * 1e-12);
         let b = DVector::from_fn(size, |_, _| Complex64::new(next(), next()));
         let layout = halfrail::engine::Layout { nodes: size, branch: vec![], size };
-        let small = SmallSignal { layout, g, c, b: b.clone() };
+        let small = SmallSignal::of_matrices(layout, g, c, b.clone());
         let omega = 10f64.powf(log_omega);
         let ours = small.solve(omega).unwrap();
         let theirs = faer_solve(&small.matrix(omega), &b);

@@ -140,3 +140,18 @@ fn whole_number_fields_take_what_a_person_types() {
         assert!(e.starts_with("part.stages: ") && e.contains(why), "{bad}: {e}");
     }
 }
+
+#[test]
+fn an_engine_error_is_placed_in_the_document() {
+    use halfrail::doc::located;
+    use halfrail::FieldError;
+    // The engine names elements by their stage keys; copies in a run as `2:key`.
+    let e = located(FieldError::new("circuit", "the operating point did not converge (… at the branch of `c_in_f`)"));
+    assert_eq!((e.field.as_str(), e.reason.contains("c_in_f")), ("stage.c_in_f", true));
+    let e = located(FieldError::new("circuit", "node `a` is undetermined: `2:r_in_ohm`, `2:c_in_f`"));
+    assert_eq!(e.field, "stage.r_in_ohm");
+    // Nothing of the stage named: the stage as a whole.
+    assert_eq!(located(FieldError::new("circuit", "the transient did not converge at t = 1e-9 s")).field, "stage");
+    // A field already in the document stays.
+    assert_eq!(located(FieldError::new("stage.r_fb_ohm", "must be > 0")).field, "stage.r_fb_ohm");
+}

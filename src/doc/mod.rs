@@ -451,6 +451,20 @@ pub const DEFAULT_HEADROOM_WARN_DB: f64 = 6.0;
 /// cost grows with the cube of its length (64 stages take about 0.1 s natively).
 pub const MAX_RUN_STAGES: usize = 64;
 
+/// An error of the circuit engine, which knows no document, placed in the
+/// document: the engine names the stage's elements by their keys (`r_fb_ohm`), so
+/// the first component it names is the field; otherwise the error is the stage's
+/// as a whole. Both faces pass every error through here.
+pub fn located(e: FieldError) -> FieldError {
+    if e.field != "circuit" {
+        return e;
+    }
+    let at = |c: &crate::stage::Component| [format!("`{}`", c.key()), format!(":{}`", c.key())].iter().filter_map(|k| e.reason.find(k.as_str())).min();
+    let named = crate::stage::Component::ALL.into_iter().filter_map(|c| at(&c).map(|i| (i, c))).min_by_key(|&(i, _)| i).map(|(_, c)| c);
+    let field = named.map_or_else(|| "stage".to_string(), |c| format!("stage.{}", c.key()));
+    FieldError::new(field, e.reason)
+}
+
 /// The largest document accepted, in bytes.
 pub const MAX_DOCUMENT_BYTES: usize = 4 << 20;
 

@@ -54,6 +54,13 @@ pub struct SmallSignal {
 }
 
 impl SmallSignal {
+    /// A linear system given by its matrices (no netlist: its unknowns are named by
+    /// number), for checking the solver against another.
+    pub fn of_matrices(layout: Layout, g: DMatrix<f64>, c: DMatrix<f64>, b: DVector<Complex64>) -> Self {
+        let unknowns = (0..layout.size).map(|k| format!("unknown {k}")).collect();
+        SmallSignal { layout, g, c, b, unknowns }
+    }
+
     /// Linearises `netlist` at `op`.
     pub fn at(netlist: &Netlist, op: &OperatingPoint) -> Result<Self> {
         if let Some(node) = first_floating(netlist, PathKind::Ac) {
