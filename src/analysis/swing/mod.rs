@@ -23,7 +23,7 @@ mod spectrum;
 mod wave;
 
 pub use drive::{available_dbm, emf_amplitude, emf_at, power_dbm, Record, Tone, IM3_BINS, SINGLE_CYCLES, TONE_BINS};
-pub use figures::{compression, intercept, one_tone, rail_level_dbm, Compression, Intercept, Level, ToneResult, TwoTone, COMPRESSION_LEVELS, SLOPE_TOLERANCE, THD_HARMONICS};
+pub use figures::{compression, intercept, one_tone, rail_level_dbm, small_signal_gt_db, Compression, Intercept, Level, ToneResult, TwoTone, COMPRESSION_LEVELS, SLOPE_TOLERANCE, THD_HARMONICS};
 pub use series::PowerSeries;
 pub use spectrum::amplitudes;
 pub use wave::{QuasiStatic, TimeDomain, Wave, Waveforms};

@@ -42,6 +42,12 @@ pub trait Waveforms {
     /// The record of v(out) and friends for `tones` on `record`; `progress` hears
     /// the fraction done now and then.
     fn run(&self, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave>;
+
+    /// |v(out)| per volt of EMF at `f_hz` in the small-signal limit: the slope-1
+    /// line the intercepts and the compression point are counted from (SPEC
+    /// §3.3). Each way gives it from its own linearisation, never from a record
+    /// at some level, which would carry that level's compression or expansion.
+    fn small_signal_gain(&self, f_hz: f64) -> Result<f64>;
 }
 
 /// The stage in the time domain.
@@ -103,6 +109,10 @@ impl TimeDomain {
 const PROGRESS_EVERY: usize = 1024;
 
 impl Waveforms for TimeDomain {
+    fn small_signal_gain(&self, f_hz: f64) -> Result<f64> {
+        self.gain_to_output(f_hz)
+    }
+
     fn run(&self, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave> {
         // Start on the linearised steady state of the tones (each a cosine from
         // t = 0): the coupling capacitors are then already charged as the signal
@@ -179,6 +189,13 @@ impl QuasiStatic {
 }
 
 impl Waveforms for QuasiStatic {
+    /// The slope of the transfer at the operating point (memoryless: the same at
+    /// every frequency).
+    fn small_signal_gain(&self, _f_hz: f64) -> Result<f64> {
+        let small = SmallSignal::at(&self.netlist, &self.op)?;
+        Ok(math::norm(small.layout.voltage(&small.solve(0.0)?, self.nodes.output)))
+    }
+
     fn run(&self, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave> {
         let mut system = DcSystem::new(&self.netlist)?;
         let (mut from, mut guess) = (0.0, self.op.x.clone());
