@@ -52,6 +52,7 @@ pub trait Waveforms {
 
 /// The stage in the time domain.
 pub struct TimeDomain {
+    vdd: f64,
     circuit: StageCircuit,
     op: OperatingPoint,
     small: SmallSignal,
@@ -64,7 +65,7 @@ impl TimeDomain {
         let circuit = build(part, &law, c)?;
         let op = operating_point(&circuit.netlist, None)?;
         let small = SmallSignal::at(&circuit.netlist, &op)?;
-        Ok(TimeDomain { circuit, op, small })
+        Ok(TimeDomain { vdd: part.vdd, circuit, op, small })
     }
 }
 
@@ -117,11 +118,25 @@ impl Waveforms for TimeDomain {
         // Start on the linearised steady state of the tones (each a cosine from
         // t = 0): the coupling capacitors are then already charged as the signal
         // wants, and only the nonlinearity and the integrator have to settle.
-        let mut x0 = self.op.x.clone();
+        // A level the linearisation would swing past the rails starts on that
+        // steady state scaled down until every inverter output stays between
+        // them: a start volts beyond a rail leaves Newton nothing to converge
+        // from in a part of many stages (a small level is not scaled at all).
+        let mut signal = DVector::zeros(self.op.x.len());
+        let mut peak = vec![0.0; self.circuit.nodes.outputs.len()];
         for tone in tones {
             let phasor = self.small.solve(std::f64::consts::TAU * tone.f_hz)?;
-            x0 += phasor.map(|v| v.re * tone.amplitude);
+            signal += phasor.map(|v| v.re * tone.amplitude);
+            for (p, &node) in peak.iter_mut().zip(&self.circuit.nodes.outputs) {
+                *p += tone.amplitude * math::norm(self.small.layout.voltage(&phasor, node));
+            }
         }
+        let scale = self.circuit.nodes.outputs.iter().zip(&peak).fold(1.0f64, |s, (&node, &p)| {
+            let v = self.op.voltage(node);
+            let headroom = v.min(self.vdd - v).max(0.0);
+            if p > headroom { s.min(headroom / p) } else { s }
+        });
+        let x0 = &self.op.x + signal * scale;
         let transient = Transient::new(&self.circuit.netlist, self.circuit.source)?;
         let total = record.warmup + record.samples;
         let mut wave = Wave::with_capacity(record.samples);
