@@ -118,10 +118,12 @@ impl Waveforms for TimeDomain {
         // Start on the linearised steady state of the tones (each a cosine from
         // t = 0): the coupling capacitors are then already charged as the signal
         // wants, and only the nonlinearity and the integrator have to settle.
-        // A level the linearisation would swing past the rails starts on that
-        // steady state scaled down until every inverter output stays between
-        // them: a start volts beyond a rail leaves Newton nothing to converge
-        // from in a part of many stages (a small level is not scaled at all).
+        // A level the linearisation swings past the rails may leave Newton
+        // nothing to converge from in a part of many stages (a start volts beyond
+        // a rail): then the run starts again on that steady state scaled down
+        // until every inverter output starts between the rails. The unscaled
+        // start goes first: it charges the coupling capacitors as the signal
+        // wants, and a small level is never scaled.
         let mut signal = DVector::zeros(self.op.x.len());
         let mut peak = vec![0.0; self.circuit.nodes.outputs.len()];
         for tone in tones {
@@ -136,13 +138,22 @@ impl Waveforms for TimeDomain {
             let headroom = v.min(self.vdd - v).max(0.0);
             if p > headroom { s.min(headroom / p) } else { s }
         });
-        let x0 = &self.op.x + signal * scale;
+        match self.run_from(&(&self.op.x + &signal), tones, record, progress) {
+            Err(e) if e.field == "circuit" && scale < 1.0 => self.run_from(&(&self.op.x + signal * scale), tones, record, progress),
+            done => done,
+        }
+    }
+}
+
+impl TimeDomain {
+    /// The record of `tones` from the state `x0` at t = 0.
+    fn run_from(&self, x0: &DVector<f64>, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave> {
         let transient = Transient::new(&self.circuit.netlist, self.circuit.source)?;
         let total = record.warmup + record.samples;
         let mut wave = Wave::with_capacity(record.samples);
         let nodes = &self.circuit.nodes;
         let t0 = record.warmup as f64 * record.step_s();
-        transient.run(&x0, record.step_s(), total, |t| emf_at(tones, t), |k, t, x: &DVector<f64>| {
+        transient.run(x0, record.step_s(), total, |t| emf_at(tones, t), |k, t, x: &DVector<f64>| {
             if k > record.warmup {
                 wave.push(t - t0, |n| transient.layout.voltage(x, n), nodes);
             }
