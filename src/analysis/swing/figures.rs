@@ -131,13 +131,17 @@ pub struct Intercept {
     pub lower: TwoTone,
     /// dB of IM3 per dB of input between the two levels (3 for a true third-order product).
     pub slope: f64,
+    /// Where the extrapolated small-signal fundamental (slope 1, gain GT_small,
+    /// `small_signal_gt_db`) meets the extrapolated IM3 line (slope 3 through the
+    /// measured product): with P_lin = Pin + GT_small, OIP3 = P_lin + (P_lin −
+    /// P_IM3)/2 (the usual Pout + ΔIM/2, with the fundamental taken on its
+    /// small-signal line rather than as measured, which a stage that compresses
+    /// or expands at the two-tone level would carry into both intercepts).
     pub oip3_dbm: f64,
-    /// OIP3 − GT_small, the small-signal transducer gain (`small_signal_gt_db`):
-    /// the intercept lies on the extrapolated small-signal fundamental (slope 1),
-    /// so input and output intercepts differ by exactly that gain. Not the gain
-    /// at the two-tone level, which a stage that compresses or expands there (one
-    /// biased at a rail gains tens of dB once the tones turn it on) would carry
-    /// into IIP3.
+    /// OIP3 − GT_small: the intercept lies on the small-signal line, so the input
+    /// and output intercepts differ by exactly the small-signal transducer gain
+    /// (the AC analysis's `power_gain_db`). Not the gain at the two-tone level:
+    /// a stage biased at a rail gains tens of dB once the tones turn it on.
     pub iip3_dbm: f64,
 }
 
@@ -149,7 +153,7 @@ pub const SLOPE_STEP_DB: f64 = 5.0;
 const STEP_DOWN_DB: f64 = 10.0;
 const TRIES: usize = 4;
 
-/// OIP3 = Pout + (Pout − P_IM3)/2 extrapolated from a level, starting at
+/// OIP3 = P_lin + (P_lin − P_IM3)/2 extrapolated from a level (see `Intercept`), starting at
 /// `start_dbm` and stepping down until the IM3 slope is 3 within the tolerance.
 /// Returns the last try when none passes (the caller reports the slope).
 pub fn intercept(w: &dyn Waveforms, f_hz: f64, start_dbm: f64, source_ohm: f64, load_ohm: f64, progress: &mut dyn FnMut(f64)) -> Result<Intercept> {
@@ -160,7 +164,8 @@ pub fn intercept(w: &dyn Waveforms, f_hz: f64, start_dbm: f64, source_ohm: f64, 
         let upper = two_tone(w, f_hz, level, source_ohm, load_ohm, progress)?;
         let lower = two_tone(w, f_hz, level - SLOPE_STEP_DB, source_ohm, load_ohm, progress)?;
         let slope = (upper.im3_dbm - lower.im3_dbm) / SLOPE_STEP_DB;
-        let oip3_dbm = upper.pout_dbm + (upper.pout_dbm - upper.im3_dbm) / 2.0;
+        let linear_dbm = upper.pin_dbm + gt_small_db;
+        let oip3_dbm = linear_dbm + (linear_dbm - upper.im3_dbm) / 2.0;
         let found = Intercept { upper, lower, slope, oip3_dbm, iip3_dbm: oip3_dbm - gt_small_db };
         if (slope - 3.0).abs() <= SLOPE_TOLERANCE {
             return Ok(found);
