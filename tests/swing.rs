@@ -50,6 +50,10 @@ struct Cubic {
 }
 
 impl Waveforms for Cubic {
+    fn small_signal_gain(&self, _f_hz: f64) -> Result<f64> {
+        Ok(self.a1.abs())
+    }
+
     fn run(&self, tones: &[Tone], record: &Record, _: &mut dyn FnMut(f64)) -> Result<Wave> {
         let mut w = Wave::default();
         for k in 0..record.samples {

@@ -154,13 +154,10 @@ impl<'a> Transient<'a> {
         let mut x = DVector::zeros(size);
         let mut history = DVector::zeros(size);
         let mut rhs = DVector::zeros(size);
-        let mut residual = DVector::zeros(size);
-        let mut jacobian = DMatrix::zeros(size, size);
-        let mut step = DVector::zeros(size);
+        let mut scratch = Scratch::new(size);
         let mut seen = DVector::zeros(n);
         let mut b = DVector::zeros(size);
         b.rows_mut(0, n).copy_from(&self.b);
-        let mut lu = RealLu::default();
         let dc_drive = self.b[self.driven];
         for k in 1..=steps {
             let t = k as f64 * h;
@@ -187,35 +184,13 @@ impl<'a> Transient<'a> {
                 x *= 2.0;
                 x.axpy(-1.0, &before, 1.0);
             }
-            let mut converged = false;
-            for _ in 0..MAX_ITERATIONS {
-                evaluate_into(a, &rhs, &self.devices, &x, 1.0, &mut residual, &mut jacobian);
-                if !lu.refactor_matrix(&jacobian) {
-                    break;
-                }
-                lu.solve_into(&residual, &mut step);
-                if !step.iter().all(|v| v.is_finite()) {
-                    break;
-                }
-                let largest = step.rows(0, self.layout.nodes).amax();
-                let clamped = largest > MAX_STEP_V;
-                if clamped {
-                    step *= MAX_STEP_V / largest;
-                }
-                // The imbalance is judged at the point the step starts from,
-                // against each row's own terms.
-                let balanced_before = balanced(&residual, &jacobian, &x, RESIDUAL_TOL, RESIDUAL_RELTOL);
-                x -= &step;
-                // Converged when the update is small against the solution (SPICE's
-                // reltol/abstol on the Newton update); or when a full step was taken
-                // from a point already balanced: it then only corrects what the
-                // linearisation left, quadratically, and rounding keeps the update
-                // from shrinking further.
-                let small = step.amax() <= STEP_TOL + STEP_RELTOL * x.amax();
-                if balanced_before && (small || !clamped) {
-                    converged = true;
-                    break;
-                }
+            let mut converged = self.newton(a, &rhs, &mut x, &mut scratch);
+            if !converged {
+                // The step crossed something Newton could not (a part of many stages
+                // switching its inner nodes rail to rail within it): cross it again in
+                // backward-Euler sub-steps from the last point.
+                let t_before = t - h;
+                converged = self.substeps(&now, t_before, h, &drive, &mut x);
             }
             if !converged {
                 return Err(FieldError::new("circuit", format!("the transient did not converge at t = {t:.4e} s")));
@@ -228,5 +203,94 @@ impl<'a> Transient<'a> {
             }
         }
         Ok(())
+    }
+
+    /// Newton on one step's system `a`·x − i(x) = `rhs` from `x`, in place; true
+    /// when it converged (the tests of the DC solve, `MAX_ITERATIONS` at most).
+    fn newton(&self, a: &DMatrix<f64>, rhs: &DVector<f64>, x: &mut DVector<f64>, s: &mut Scratch) -> bool {
+        for _ in 0..MAX_ITERATIONS {
+            evaluate_into(a, rhs, &self.devices, x, 1.0, &mut s.residual, &mut s.jacobian);
+            if !s.lu.refactor_matrix(&s.jacobian) {
+                return false;
+            }
+            s.lu.solve_into(&s.residual, &mut s.step);
+            if !s.step.iter().all(|v| v.is_finite()) {
+                return false;
+            }
+            let largest = s.step.rows(0, self.layout.nodes).amax();
+            let clamped = largest > MAX_STEP_V;
+            if clamped {
+                s.step *= MAX_STEP_V / largest;
+            }
+            // The imbalance is judged at the point the step starts from,
+            // against each row's own terms.
+            let balanced_before = balanced(&s.residual, &s.jacobian, x, RESIDUAL_TOL, RESIDUAL_RELTOL);
+            *x -= &s.step;
+            // Converged when the update is small against the solution (SPICE's
+            // reltol/abstol on the Newton update); or when a full step was taken
+            // from a point already balanced: it then only corrects what the
+            // linearisation left, quadratically, and rounding keeps the update
+            // from shrinking further.
+            let small = s.step.amax() <= STEP_TOL + STEP_RELTOL * x.amax();
+            if balanced_before && (small || !clamped) {
+                return true;
+            }
+        }
+        false
+    }
+
+    /// The step from `from` at `t0` to `t0 + h` again, in `SUBSTEPS` backward-Euler
+    /// sub-steps of each count in turn (first order, but over a fraction of the
+    /// step, and each sub-step starts next to its answer); on success the node
+    /// voltages at `t0 + h` go into `x`. Rare (a sharp switching edge), so its
+    /// matrices are formed when needed.
+    fn substeps(&self, from: &DVector<f64>, t0: f64, h: f64, drive: &impl Fn(f64) -> f64, x: &mut DVector<f64>) -> bool {
+        let n = self.layout.size;
+        'count: for &m in SUBSTEPS {
+            let hs = h / m as f64;
+            let companion = Companion::new(self, hs);
+            let size = n + companion.large.len();
+            let mut scratch = Scratch::new(size);
+            let mut b = DVector::zeros(size);
+            b.rows_mut(0, n).copy_from(&self.b);
+            let dc_drive = self.b[self.driven];
+            let mut state = DVector::zeros(size);
+            state.rows_mut(0, n).copy_from(&from.rows(0, n));
+            let mut rhs = DVector::zeros(size);
+            for j in 1..=m {
+                rhs.copy_from(&b);
+                rhs[self.driven] = dc_drive + drive(t0 + j as f64 * hs);
+                rhs.gemv(1.0 / hs, &companion.c, &state, 1.0);
+                for (k, cap) in companion.large.iter().enumerate() {
+                    let at = |i: Option<usize>| i.map_or(0.0, |i| state[i]);
+                    rhs[n + k] = at(cap.a) - at(cap.b);
+                }
+                let mut next = state.clone();
+                if !self.newton(&companion.euler, &rhs, &mut next, &mut scratch) {
+                    continue 'count;
+                }
+                state = next;
+            }
+            x.rows_mut(0, n).copy_from(&state.rows(0, n));
+            return true;
+        }
+        false
+    }
+}
+
+/// Sub-step counts tried, in turn, on a step Newton cannot take whole.
+const SUBSTEPS: &[usize] = &[4, 16, 64];
+
+/// The buffers of Newton on a system of one size.
+struct Scratch {
+    residual: DVector<f64>,
+    jacobian: DMatrix<f64>,
+    step: DVector<f64>,
+    lu: RealLu,
+}
+
+impl Scratch {
+    fn new(size: usize) -> Self {
+        Scratch { residual: DVector::zeros(size), jacobian: DMatrix::zeros(size, size), step: DVector::zeros(size), lu: RealLu::default() }
     }
 }

@@ -56,7 +56,9 @@ pub struct Level {
 #[derive(Debug, Clone, PartialEq)]
 pub struct Compression {
     pub levels: Vec<Level>,
-    /// GT at the lowest level: the small-signal value the 1 dB is counted from.
+    /// The small-signal GT (`small_signal_gt_db`) the 1 dB is counted from: the
+    /// linearisation's, not the sweep's lowest level, which a stage biased near a
+    /// rail or strongly nonlinear from the start already compresses or expands.
     pub gt_small_db: f64,
     /// Source and output power where GT is 1 dB below it (`None` if it never is).
     pub ip1db_dbm: Option<f64>,
@@ -67,6 +69,13 @@ pub struct Compression {
 
 /// Levels of the compression sweep.
 pub const COMPRESSION_LEVELS: usize = 20;
+
+/// The small-signal transducer gain, dB, into `load_ohm` from `source_ohm` (SPEC
+/// §3.3: GT = (|v(out)|²/R_L)/(|E|²/(4·R_S)), the AC analysis's `power_gain_db`).
+pub fn small_signal_gt_db(w: &dyn Waveforms, f_hz: f64, source_ohm: f64, load_ohm: f64) -> Result<f64> {
+    let gain = w.small_signal_gain(f_hz)?;
+    Ok(20.0 * math::log10(gain) + 10.0 * math::log10(4.0 * source_ohm / load_ohm))
+}
 
 /// GT over `COMPRESSION_LEVELS` source powers from `from_dbm` to `to_dbm`.
 pub fn compression(w: &dyn Waveforms, f_hz: f64, from_dbm: f64, to_dbm: f64, source_ohm: f64, load_ohm: f64, progress: &mut dyn FnMut(f64)) -> Result<Compression> {
@@ -81,7 +90,7 @@ pub fn compression(w: &dyn Waveforms, f_hz: f64, from_dbm: f64, to_dbm: f64, sou
         levels.push(Level { pin_dbm, pout_dbm, gt_db: pout_dbm - pin_dbm });
         progress((i + 1) as f64 / COMPRESSION_LEVELS as f64);
     }
-    let gt_small_db = levels[0].gt_db;
+    let gt_small_db = small_signal_gt_db(w, f_hz, source_ohm, load_ohm)?;
     let psat_dbm = levels.iter().map(|l| l.pout_dbm).fold(f64::NEG_INFINITY, f64::max);
     // The first level 1 dB down, interpolated linearly in dB from the one before.
     let ip1db_dbm = levels.windows(2).find(|w| w[1].gt_db <= gt_small_db - 1.0).map(|w| {
@@ -122,7 +131,17 @@ pub struct Intercept {
     pub lower: TwoTone,
     /// dB of IM3 per dB of input between the two levels (3 for a true third-order product).
     pub slope: f64,
+    /// Where the extrapolated small-signal fundamental (slope 1, gain GT_small,
+    /// `small_signal_gt_db`) meets the extrapolated IM3 line (slope 3 through the
+    /// measured product): with P_lin = Pin + GT_small, OIP3 = P_lin + (P_lin −
+    /// P_IM3)/2 (the usual Pout + ΔIM/2, with the fundamental taken on its
+    /// small-signal line rather than as measured, which a stage that compresses
+    /// or expands at the two-tone level would carry into both intercepts).
     pub oip3_dbm: f64,
+    /// OIP3 − GT_small: the intercept lies on the small-signal line, so the input
+    /// and output intercepts differ by exactly the small-signal transducer gain
+    /// (the AC analysis's `power_gain_db`). Not the gain at the two-tone level:
+    /// a stage biased at a rail gains tens of dB once the tones turn it on.
     pub iip3_dbm: f64,
 }
 
@@ -134,18 +153,20 @@ pub const SLOPE_STEP_DB: f64 = 5.0;
 const STEP_DOWN_DB: f64 = 10.0;
 const TRIES: usize = 4;
 
-/// OIP3 = Pout + (Pout − P_IM3)/2 extrapolated from a level, starting at
+/// OIP3 = P_lin + (P_lin − P_IM3)/2 extrapolated from a level (see `Intercept`), starting at
 /// `start_dbm` and stepping down until the IM3 slope is 3 within the tolerance.
 /// Returns the last try when none passes (the caller reports the slope).
 pub fn intercept(w: &dyn Waveforms, f_hz: f64, start_dbm: f64, source_ohm: f64, load_ohm: f64, progress: &mut dyn FnMut(f64)) -> Result<Intercept> {
+    let gt_small_db = small_signal_gt_db(w, f_hz, source_ohm, load_ohm)?;
     let mut last = None;
     for k in 0..TRIES {
         let level = start_dbm - STEP_DOWN_DB * k as f64;
         let upper = two_tone(w, f_hz, level, source_ohm, load_ohm, progress)?;
         let lower = two_tone(w, f_hz, level - SLOPE_STEP_DB, source_ohm, load_ohm, progress)?;
         let slope = (upper.im3_dbm - lower.im3_dbm) / SLOPE_STEP_DB;
-        let oip3_dbm = upper.pout_dbm + (upper.pout_dbm - upper.im3_dbm) / 2.0;
-        let found = Intercept { upper, lower, slope, oip3_dbm, iip3_dbm: oip3_dbm - (upper.pout_dbm - upper.pin_dbm) };
+        let linear_dbm = upper.pin_dbm + gt_small_db;
+        let oip3_dbm = linear_dbm + (linear_dbm - upper.im3_dbm) / 2.0;
+        let found = Intercept { upper, lower, slope, oip3_dbm, iip3_dbm: oip3_dbm - gt_small_db };
         if (slope - 3.0).abs() <= SLOPE_TOLERANCE {
             return Ok(found);
         }

@@ -23,7 +23,7 @@ mod spectrum;
 mod wave;
 
 pub use drive::{available_dbm, emf_amplitude, emf_at, power_dbm, Record, Tone, IM3_BINS, SINGLE_CYCLES, TONE_BINS};
-pub use figures::{compression, intercept, one_tone, rail_level_dbm, Compression, Intercept, Level, ToneResult, TwoTone, COMPRESSION_LEVELS, SLOPE_TOLERANCE, THD_HARMONICS};
+pub use figures::{compression, intercept, one_tone, rail_level_dbm, small_signal_gt_db, Compression, Intercept, Level, ToneResult, TwoTone, COMPRESSION_LEVELS, SLOPE_TOLERANCE, THD_HARMONICS};
 pub use series::PowerSeries;
 pub use spectrum::amplitudes;
 pub use wave::{QuasiStatic, TimeDomain, Wave, Waveforms};
@@ -91,6 +91,18 @@ pub fn sweep_range_dbm(rail_dbm: f64) -> (f64, f64) {
     (rail_dbm - SWEEP_BELOW_RAIL_DB, rail_dbm + SWEEP_ABOVE_RAIL_DB)
 }
 
+/// A failure of the engine inside the large-signal analysis (field `circuit`),
+/// named as the document field that asks for that analysis, `analysis.input_dbm`,
+/// with the step that failed in words: the document is then refused for its
+/// large-signal level, never with a field it does not have.
+fn named(e: FieldError, doing: &str) -> FieldError {
+    if e.field == "circuit" {
+        FieldError::new("analysis.input_dbm", format!("the large-signal analysis could not follow the stage in {doing}: {}", e.reason))
+    } else {
+        e
+    }
+}
+
 /// The large-signal analysis at `f_hz` and `input_dbm`; `progress` hears the
 /// fraction done.
 pub fn analyse(part: &Part, c: &Components, f_hz: f64, input_dbm: f64, progress: &mut dyn FnMut(f64)) -> Result<Large> {
@@ -115,30 +127,26 @@ pub fn analyse(part: &Part, c: &Components, f_hz: f64, input_dbm: f64, progress:
     // small for f_design) would otherwise be driven with kilovolts.
     let rail_dbm = rail_level_dbm(part.vdd, time.gain_to_last_stage(f_hz)?, source_ohm).min(ceiling_dbm - SWEEP_ABOVE_RAIL_DB);
 
-    let tone = one_tone(&time, amplitude, f_hz, &mut |p| progress(0.05 * p)).map_err(|e| {
-        if e.field == "circuit" {
-            FieldError::new("analysis.input_dbm", format!("at {input_dbm} dBm: {}", e.reason))
-        } else {
-            e
-        }
-    })?;
+    let tone = one_tone(&time, amplitude, f_hz, &mut |p| progress(0.05 * p)).map_err(|e| named(e, &format!("the tone at {input_dbm} dBm")))?;
     let (compression, intercept) = match load_ohm {
         Some(rl) => {
             let (from, to) = sweep_range_dbm(rail_dbm);
-            let sweep = compression(&time, f_hz, from, to, source_ohm, rl, &mut |p| progress(0.05 + 0.45 * p))?;
+            let sweep = compression(&time, f_hz, from, to, source_ohm, rl, &mut |p| progress(0.05 + 0.45 * p))
+                .map_err(|e| named(e, &format!("the compression sweep from {from:.1} to {to:.1} dBm")))?;
             let start = sweep.ip1db_dbm.unwrap_or(rail_dbm) - INTERCEPT_BELOW_P1DB_DB;
             let mut done = 0.0;
             let ip3 = intercept(&time, f_hz, start, source_ohm, rl, &mut |p| {
                 done = (done + p / 8.0).min(1.0);
                 progress(0.5 + 0.5 * done)
-            })?;
+            })
+            .map_err(|e| named(e, &format!("the two-tone test from {start:.1} dBm down")))?;
             (Some(sweep), Some(ip3))
         }
         None => (None, None),
     };
     let span = emf_amplitude(rail_dbm, source_ohm) / 4.0;
-    let series = PowerSeries::of(&still, span)?;
-    let transfer = still.transfer_curve(6.0 * span, TRANSFER_POINTS)?;
+    let series = PowerSeries::of(&still, span).map_err(|e| named(e, "the power series of the transfer curve"))?;
+    let transfer = still.transfer_curve(6.0 * span, TRANSFER_POINTS).map_err(|e| named(e, "the transfer curve"))?;
     progress(1.0);
     Ok(Large {
         f_hz,

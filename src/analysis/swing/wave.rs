@@ -42,10 +42,17 @@ pub trait Waveforms {
     /// The record of v(out) and friends for `tones` on `record`; `progress` hears
     /// the fraction done now and then.
     fn run(&self, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave>;
+
+    /// |v(out)| per volt of EMF at `f_hz` in the small-signal limit: the slope-1
+    /// line the intercepts and the compression point are counted from (SPEC
+    /// §3.3). Each way gives it from its own linearisation, never from a record
+    /// at some level, which would carry that level's compression or expansion.
+    fn small_signal_gain(&self, f_hz: f64) -> Result<f64>;
 }
 
 /// The stage in the time domain.
 pub struct TimeDomain {
+    vdd: f64,
     circuit: StageCircuit,
     op: OperatingPoint,
     small: SmallSignal,
@@ -58,7 +65,7 @@ impl TimeDomain {
         let circuit = build(part, &law, c)?;
         let op = operating_point(&circuit.netlist, None)?;
         let small = SmallSignal::at(&circuit.netlist, &op)?;
-        Ok(TimeDomain { circuit, op, small })
+        Ok(TimeDomain { vdd: part.vdd, circuit, op, small })
     }
 }
 
@@ -103,21 +110,50 @@ impl TimeDomain {
 const PROGRESS_EVERY: usize = 1024;
 
 impl Waveforms for TimeDomain {
+    fn small_signal_gain(&self, f_hz: f64) -> Result<f64> {
+        self.gain_to_output(f_hz)
+    }
+
     fn run(&self, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave> {
         // Start on the linearised steady state of the tones (each a cosine from
         // t = 0): the coupling capacitors are then already charged as the signal
         // wants, and only the nonlinearity and the integrator have to settle.
-        let mut x0 = self.op.x.clone();
+        // A level the linearisation swings past the rails may leave Newton
+        // nothing to converge from in a part of many stages (a start volts beyond
+        // a rail): then the run starts again on that steady state scaled down
+        // until every inverter output starts between the rails. The unscaled
+        // start goes first: it charges the coupling capacitors as the signal
+        // wants, and a small level is never scaled.
+        let mut signal = DVector::zeros(self.op.x.len());
+        let mut peak = vec![0.0; self.circuit.nodes.outputs.len()];
         for tone in tones {
             let phasor = self.small.solve(std::f64::consts::TAU * tone.f_hz)?;
-            x0 += phasor.map(|v| v.re * tone.amplitude);
+            signal += phasor.map(|v| v.re * tone.amplitude);
+            for (p, &node) in peak.iter_mut().zip(&self.circuit.nodes.outputs) {
+                *p += tone.amplitude * math::norm(self.small.layout.voltage(&phasor, node));
+            }
         }
+        let scale = self.circuit.nodes.outputs.iter().zip(&peak).fold(1.0f64, |s, (&node, &p)| {
+            let v = self.op.voltage(node);
+            let headroom = v.min(self.vdd - v).max(0.0);
+            if p > headroom { s.min(headroom / p) } else { s }
+        });
+        match self.run_from(&(&self.op.x + &signal), tones, record, progress) {
+            Err(e) if e.field == "circuit" && scale < 1.0 => self.run_from(&(&self.op.x + signal * scale), tones, record, progress),
+            done => done,
+        }
+    }
+}
+
+impl TimeDomain {
+    /// The record of `tones` from the state `x0` at t = 0.
+    fn run_from(&self, x0: &DVector<f64>, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave> {
         let transient = Transient::new(&self.circuit.netlist, self.circuit.source)?;
         let total = record.warmup + record.samples;
         let mut wave = Wave::with_capacity(record.samples);
         let nodes = &self.circuit.nodes;
         let t0 = record.warmup as f64 * record.step_s();
-        transient.run(&x0, record.step_s(), total, |t| emf_at(tones, t), |k, t, x: &DVector<f64>| {
+        transient.run(x0, record.step_s(), total, |t| emf_at(tones, t), |k, t, x: &DVector<f64>| {
             if k > record.warmup {
                 wave.push(t - t0, |n| transient.layout.voltage(x, n), nodes);
             }
@@ -179,6 +215,13 @@ impl QuasiStatic {
 }
 
 impl Waveforms for QuasiStatic {
+    /// The slope of the transfer at the operating point (memoryless: the same at
+    /// every frequency).
+    fn small_signal_gain(&self, _f_hz: f64) -> Result<f64> {
+        let small = SmallSignal::at(&self.netlist, &self.op)?;
+        Ok(math::norm(small.layout.voltage(&small.solve(0.0)?, self.nodes.output)))
+    }
+
     fn run(&self, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave> {
         let mut system = DcSystem::new(&self.netlist)?;
         let (mut from, mut guess) = (0.0, self.op.x.clone());
