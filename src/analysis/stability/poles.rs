@@ -32,11 +32,18 @@ const TRUSTED_TO: f64 = 1e-5;
 
 /// A pole within this fraction of the pencil's scale |G|/|C| of the origin is at
 /// the origin: a perturbation of G by its rounding moves a pole that near 0 by about
-/// ε·|G|/|C| times the conditioning, so its sign is not in the doubles (measured:
-/// seven stages under 46 MΩ feedback, a pole of the broken loop at 5·10⁻¹⁵ of the
-/// scale, −5.6·10⁻⁷ rad/s by faer's QZ and +1.4·10⁻⁴ here). Resolvable ones lie far
-/// above it (the domain's: 1.4·10⁻¹² of the scale, agreeing with faer's to 10⁻⁸).
-pub const ORIGIN_TOL: f64 = 1e-13;
+/// ε·|G|/|C|, so its sign is not in the doubles. Genuine poles come much nearer than
+/// one would think (a 1 F coupling capacitor into 100 MΩ beside a 1 Ω resistor:
+/// 10⁻¹² of the scale, agreeing with faer's QZ to 10⁻⁸); the ones the rounding decides
+/// further out are found by the transposed pass (`SAME_WITHIN`).
+pub const ORIGIN_TOL: f64 = 1e-15;
+
+/// A real pole below this fraction of the fastest is slow: the transposed pass checks
+/// those (fast ones it gives less accurately itself).
+const SLOW: f64 = 1e-6;
+/// How near (relative) the transposed pencil's pass must find a slow real pole for
+/// its sign to be trusted.
+const SAME_WITHIN: f64 = 0.1;
 
 /// Schur iterations before giving up.
 const MAX_ITERATIONS: usize = 10_000;
@@ -63,19 +70,15 @@ fn reduced(g: &DMatrix<f64>, c: &DMatrix<f64>) -> (DMatrix<f64>, DMatrix<f64>) {
 struct Pass {
     sigma: f64,
     size: f64,
-    /// ‖G + σC‖·‖(G + σC)⁻¹‖ (max-entry norms times the order): how much the shifted
-    /// matrix amplifies its own rounding.
-    condition: f64,
     poles: Vec<Complex64>,
 }
 
 fn pass(g: &DMatrix<f64>, c: &DMatrix<f64>, sigma: f64) -> Result<Option<Pass>> {
     let shifted = g + c * sigma;
-    let Some(inverse) = shifted.clone().lu().try_inverse() else { return Ok(None) };
+    let Some(inverse) = shifted.lu().try_inverse() else { return Ok(None) };
     if !inverse.iter().all(|v| v.is_finite()) {
         return Ok(None);
     }
-    let condition = shifted.amax() * inverse.amax() * shifted.nrows() as f64;
     let a = -(inverse * c);
     // Balanced first, as LAPACK's eigen-solvers do: a chain of high-gain stages
     // makes entries differ by the chain's gain (10¹⁰ for nine stages), and
@@ -97,7 +100,7 @@ fn pass(g: &DMatrix<f64>, c: &DMatrix<f64>, sigma: f64) -> Result<Option<Pass>> 
         .map(|l| sigma + 1.0 / l)
         .map(|s| if sigma != 0.0 && math::norm(s) < ORIGIN_WITHIN * sigma.abs() { Complex64::new(0.0, 0.0) } else { s })
         .collect();
-    Ok(Some(Pass { sigma, size, condition, poles }))
+    Ok(Some(Pass { sigma, size, poles }))
 }
 
 /// The finite natural frequencies of the pencil (G, C), in rad/s, sorted by
@@ -141,17 +144,28 @@ pub fn natural_frequencies(g: &DMatrix<f64>, c: &DMatrix<f64>) -> Result<Vec<Com
     if fast.is_finite() && fast / BAND > low_up_to {
         poles = ladder(&g, &c, &low, low_up_to, fast)?.unwrap_or(poles);
     }
-    // At the origin at the pencil's resolution: exactly there, on the axis. Besides
-    // the pencil's scale, the conditioning of G: the slowest pole is 1/λ of the largest
-    // eigenvalue of G⁻¹C, which carries G's rounding amplified by its condition number,
-    // a relative error of about ε·κ(G) (nine stages with a DC loop gain of 4·10¹⁵,
-    // κ ≈ 10¹⁵: the broken loop's slowest pole came out +3.4·10⁻⁵ here and −9.1·10⁻⁵
-    // from faer's QZ). Beyond a tenth of its size it has no sign.
-    let slowest = low.poles.iter().map(|p| math::norm(p)).fold(f64::INFINITY, f64::min);
-    let unsure = if low.sigma == 0.0 && 10.0 * f64::EPSILON * low.condition > 1.0 { 10.0 * f64::EPSILON * low.condition * slowest } else { 0.0 };
-    let zone = (ORIGIN_TOL * scale).max(unsure);
+    // Far above the fastest node: the rounding of poles at infinity (C singular, two of
+    // them as a defective pair: ±6·10¹⁷ rad/s beside a fastest pole of 1.9·10¹⁰).
+    if fast.is_finite() {
+        poles.retain(|p| math::norm(p) < CEILING * fast);
+    }
+    // At the origin at the pencil's resolution: exactly there, on the axis. That is,
+    // within `ORIGIN_TOL` of the pencil's scale, or a real pole of the low pass whose
+    // value the rounding decides: G⁻¹ carries G's rounding amplified by its condition
+    // number, and nine stages in a row (a DC loop gain of 4·10¹⁵) make a slow real pole
+    // of the broken loop come out +3.4·10⁻⁵ rad/s here and −9.1·10⁻⁵ from faer's QZ.
+    // The same pass on the transposed pencil (the same poles, other roundings) tells
+    // them: a slow real pole it does not find within `SAME_WITHIN` has no sign in doubles.
+    let twin = if low.sigma == 0.0 { pass(&g.transpose(), &c.transpose(), 0.0)? } else { None };
+    let fastest = poles.iter().map(|p| math::norm(p)).fold(0.0, f64::max);
     for p in &mut poles {
-        if math::norm(*p) < zone {
+        let m = math::norm(*p);
+        let real = p.im.abs() <= ON_AXIS_WITHIN * m;
+        let unsure = real
+            && m < SLOW * fastest
+            && low.poles.contains(p)
+            && twin.as_ref().is_some_and(|t| !t.poles.iter().any(|q| math::norm(*q - *p) <= SAME_WITHIN * m));
+        if m < ORIGIN_TOL * scale || unsure {
             *p = Complex64::new(0.0, 0.0);
         }
     }
@@ -164,6 +178,9 @@ pub fn natural_frequencies(g: &DMatrix<f64>, c: &DMatrix<f64>) -> Result<Vec<Com
 /// about ε·σ·|C|/|C|min (measured with a 0.7 F coupling capacitor beside 0.15 pF:
 /// −1.5·10⁻⁶ rad/s came out as −1.0·10⁶ from σ = 9.4·10⁹), a long way below σ/30.
 const BAND: f64 = 30.0;
+/// Natural frequencies more than this times the fastest node's G/C are poles at
+/// infinity.
+const CEILING: f64 = 1e4;
 /// Ratio of one shift of the ladder to the next below.
 const RUNG: f64 = 1e3;
 /// Shifts of the ladder at most (fifteen decades of 10¹⁵ rad/s … 1 rad/s).
@@ -177,9 +194,13 @@ const MAX_RUNGS: usize = 6;
 /// all), or a shift lands on a pole every time.
 fn ladder(g: &DMatrix<f64>, c: &DMatrix<f64>, low: &Pass, low_up_to: f64, fast: f64) -> Result<Option<Vec<Complex64>>> {
     let mut poles = Vec::new();
-    let mut top = f64::INFINITY;
+    // Nothing is faster than `fast` by much; above that, the rounding of poles at
+    // infinity (measured: ±7.9·10¹⁹ rad/s beside a fastest pole of 5.4·10¹⁰).
+    let mut top = CEILING * fast;
     let mut sigma = 0.61 * fast;
     let mut total = None;
+    // The highest pass's poles, all of them: what is given when the bands do not add up.
+    let mut first: Option<Vec<Complex64>> = None;
     for _ in 0..MAX_RUNGS {
         let mut pass_at = None;
         for k in [1.0, 1.7, 0.29] {
@@ -189,7 +210,10 @@ fn ladder(g: &DMatrix<f64>, c: &DMatrix<f64>, low: &Pass, low_up_to: f64, fast: 
             }
         }
         let Some(p) = pass_at else { return Ok(None) };
-        total.get_or_insert(p.poles.len());
+        if first.is_none() {
+            first = Some(p.poles.iter().copied().filter(|s| math::norm(s) < top).collect::<Vec<_>>());
+        }
+        total.get_or_insert(p.poles.iter().filter(|s| math::norm(*s) < top).count());
         let bottom = p.sigma / BAND;
         poles.extend(p.poles.iter().filter(|s| math::norm(*s) >= bottom && math::norm(*s) < top));
         top = bottom;
@@ -199,7 +223,7 @@ fn ladder(g: &DMatrix<f64>, c: &DMatrix<f64>, low: &Pass, low_up_to: f64, fast: 
         sigma /= RUNG;
     }
     poles.extend(low.poles.iter().filter(|s| math::norm(*s) < top));
-    Ok((Some(poles.len()) == total).then_some(poles))
+    Ok((Some(poles.len()) == total).then_some(poles).or(first))
 }
 
 /// Sweeps of the balancing before it stops (it converges in a few).
