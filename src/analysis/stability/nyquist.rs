@@ -16,7 +16,12 @@
 //! The walk samples a log grid from far below the lowest natural frequency to far
 //! above the highest, adds the points where each complex one (open or closed)
 //! turns the phase fastest (ω = |Im s| and |Im s| ± |Re s|), and bisects any step
-//! that turns the phase by more than `MAX_STEP`.
+//! that turns the phase by more than `MAX_STEP`. It depends on the natural
+//! frequencies only, never on the user's sweep. Natural frequencies the pole solver
+//! puts at the origin (their sign is not in the doubles) are walked round on the
+//! standard indent into the right half-plane: counted in neither P nor Z, and the
+//! walk starts a decade below the lowest other one with F ≈ K·s^order turning by
+//! order·π/2 on the indent.
 
 use crate::math;
 use num_complex::Complex64;

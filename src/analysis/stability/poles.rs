@@ -106,15 +106,15 @@ fn pass(g: &DMatrix<f64>, c: &DMatrix<f64>, sigma: f64) -> Result<Option<Pass>> 
 /// The finite natural frequencies of the pencil (G, C), in rad/s, sorted by
 /// magnitude. Complex ones come in conjugate pairs.
 ///
-/// Two passes, because one shift cannot see natural frequencies that differ by more
-/// than about 10¹² (a 1 F coupling capacitor into 100 MΩ, 10⁻⁸ rad/s, beside a part's
-/// picofarads, 10¹¹ rad/s): with σ = 0 the eigenvalues −1/s of the fast ones fall
-/// below the rounding of the slow ones' and were dropped as poles at infinity (seven
-/// stages with 77 mF: 8 of 9 poles lost, four of them growing). The low pass (σ = 0,
-/// or a shift at the pencil's scale when G is singular) gives the slow ones to full
-/// relative accuracy; the high pass (σ at the fastest node's G/C) gives the fast ones,
-/// whose relative error there is ε·σ/|s|. Each pole is taken from the pass that is
-/// trusted at its magnitude, split where both are and both count the same poles below.
+/// Several passes, because one shift cannot see natural frequencies that differ by
+/// more than about 10¹² (a 1 F coupling capacitor into 100 MΩ, 10⁻⁸ rad/s, beside a
+/// part's picofarads, 10¹¹ rad/s): with σ = 0 the eigenvalues −1/s of the fast ones
+/// fall below the rounding of the slow ones' and were dropped as poles at infinity
+/// (seven stages with 77 mF: 8 of 9 poles lost, four of them growing). The low pass
+/// (σ = 0, or a shift at the pencil's scale when G is singular) gives the slow ones to
+/// full relative accuracy up to where its rounding reaches `TRUSTED_TO`; above that, a
+/// ladder of shifts down from the fastest node's G/C (`ladder`) gives the rest, each
+/// pass the poles in its own band.
 pub fn natural_frequencies(g: &DMatrix<f64>, c: &DMatrix<f64>) -> Result<Vec<Complex64>> {
     if c.amax() == 0.0 {
         return Ok(Vec::new());
