@@ -186,21 +186,20 @@ const RUNG: f64 = 1e3;
 /// Shifts of the ladder at most (fifteen decades of 10¹⁵ rad/s … 1 rad/s).
 const MAX_RUNGS: usize = 6;
 
+/// How near (relative) a neighbouring pass must find a pole of the ladder to confirm it.
+const CONFIRMED_WITHIN: f64 = 1e-3;
+
 /// The natural frequencies from a ladder of shifts: the highest at `fast`, each next one
 /// `RUNG` below, until the low pass (trusted up to `low_up_to`) covers what is left.
-/// Each pass gives the poles in its band, [σ/`BAND`, the band of the pass above); the
-/// low pass those below the lowest band. `None` when the bands do not add up to the
-/// highest pass's count of finite poles (a pole on a band edge, counted twice or not at
-/// all), or a shift lands on a pole every time.
+/// Each pass gives the poles in its band, [σ/`BAND`, the band of the pass above), that a
+/// neighbouring pass (the one below, else the one above) also finds: the images of poles
+/// far below a shift come out anywhere, even a seventh of σ (a −4.6·10⁻⁵ rad/s pole
+/// came out as +5.1·10¹⁰ from σ = 3.6·10¹¹), but differently from each shift. The low
+/// pass gives the poles below the lowest band. `None` when a shift lands on a pole
+/// every time.
 fn ladder(g: &DMatrix<f64>, c: &DMatrix<f64>, low: &Pass, low_up_to: f64, fast: f64) -> Result<Option<Vec<Complex64>>> {
-    let mut poles = Vec::new();
-    // Nothing is faster than `fast` by much; above that, the rounding of poles at
-    // infinity (measured: ±7.9·10¹⁹ rad/s beside a fastest pole of 5.4·10¹⁰).
-    let mut top = CEILING * fast;
+    let mut passes = Vec::new();
     let mut sigma = 0.61 * fast;
-    let mut total = None;
-    // The highest pass's poles, all of them: what is given when the bands do not add up.
-    let mut first: Option<Vec<Complex64>> = None;
     for _ in 0..MAX_RUNGS {
         let mut pass_at = None;
         for k in [1.0, 1.7, 0.29] {
@@ -210,20 +209,39 @@ fn ladder(g: &DMatrix<f64>, c: &DMatrix<f64>, low: &Pass, low_up_to: f64, fast: 
             }
         }
         let Some(p) = pass_at else { return Ok(None) };
-        if first.is_none() {
-            first = Some(p.poles.iter().copied().filter(|s| math::norm(s) < top).collect::<Vec<_>>());
-        }
-        total.get_or_insert(p.poles.iter().filter(|s| math::norm(*s) < top).count());
         let bottom = p.sigma / BAND;
-        poles.extend(p.poles.iter().filter(|s| math::norm(*s) >= bottom && math::norm(*s) < top));
-        top = bottom;
-        if top <= low_up_to {
+        passes.push(p);
+        if bottom <= low_up_to {
             break;
         }
         sigma /= RUNG;
     }
+    let found = |p: &Pass, s: &Complex64| p.poles.iter().any(|q| math::norm(*q - *s) <= CONFIRMED_WITHIN * math::norm(s));
+    // The band a magnitude belongs to: the index of the lowest-shift pass whose band's
+    // bottom it reaches (`passes.len()`: the low pass's).
+    let home = |m: f64| passes.iter().position(|p| m >= p.sigma / BAND).unwrap_or(passes.len());
+    let mut poles = Vec::new();
+    // Nothing is faster than `fast` by much; above that, the rounding of poles at
+    // infinity (measured: ±7.9·10¹⁹ rad/s beside a fastest pole of 5.4·10¹⁰).
+    let ceiling = CEILING * fast;
+    for (k, p) in passes.iter().enumerate() {
+        for s in p.poles.iter().filter(|s| math::norm(*s) < ceiling) {
+            let h = home(math::norm(s));
+            if h == passes.len() {
+                continue;
+            }
+            // Kept from the pass nearest its band among those that find it, when at
+            // least one other does.
+            let holders: Vec<usize> = (0..passes.len()).filter(|&i| i == k || found(&passes[i], s)).collect();
+            let best = holders.iter().copied().min_by_key(|&i| (i.abs_diff(h), usize::MAX - i));
+            if (holders.len() > 1 || passes.len() == 1) && best == Some(k) {
+                poles.push(*s);
+            }
+        }
+    }
+    let top = passes.last().map_or(f64::INFINITY, |p| p.sigma / BAND);
     poles.extend(low.poles.iter().filter(|s| math::norm(*s) < top));
-    Ok((Some(poles.len()) == total).then_some(poles).or(first))
+    Ok(Some(poles))
 }
 
 /// Sweeps of the balancing before it stops (it converges in a few).
