@@ -19,6 +19,10 @@ use num_complex::Complex64;
 use proptest::prelude::*;
 use proptest::test_runner::{Config, TestCaseError, TestRunner};
 
+#[path = "common/domain.rs"]
+#[allow(dead_code)]
+mod domain_gen;
+
 // ---------------------------------------------------------------------------
 // Helpers
 // ---------------------------------------------------------------------------
@@ -902,60 +906,108 @@ fn one_stage_demo_is_stable_and_steps_cleanly() {
 struct LoopTally {
     cases: Cell<usize>,
     unbiased: Cell<usize>,
-    marginal: Cell<usize>,
+    near_axis: Cell<usize>,
+    at_origin: Cell<usize>,
+    slow_open: Cell<usize>,
+    undetermined: Cell<usize>,
     unstable: Cell<usize>,
+    huge_coupling: Cell<usize>,
     conditional: Cell<usize>,
     negative_margin: Cell<usize>,
 }
 
 /// Whether some pole of `poles` lies on the jω axis at the resolution the counts can
-/// tell (the verdict is marginal either way there): within 1e-6 of it in angle, or
-/// within 1e-9 of the pencil's frequency scale `scale` of the origin, where the core
-/// takes a pole as the origin itself. Many stages in a row make such poles: a real
-/// one of a fraction of a rad/s (a loop gain of 10¹⁰ through one capacitor), whose
-/// sign the two solvers give differently at 10⁻¹⁵ of the scale.
-fn near_axis(poles: &[Complex64], scale: f64) -> bool {
-    poles.iter().any(|p| p.re.abs() < 1e-6 * p.norm() || p.norm() < 1e-9 * scale)
+/// tell: within 1e-6 of it in angle (a thousand times the core's `ON_AXIS_WITHIN`,
+/// for the two solvers' rounding), or within 1e-13 of the pencil's scale |G|/|C| of
+/// the origin (a hundred times the core's `ORIGIN_TOL`), where neither solver has
+/// its sign in doubles.
+fn near_axis(poles: &[Complex64], g: &DMatrix<f64>, c: &DMatrix<f64>) -> bool {
+    let zone = 1e-13 * g.amax() / c.amax();
+    poles.iter().any(|p| p.re.abs() <= 1e-6 * p.norm() || p.norm() < zone)
 }
 
-/// One random design through `stability::analyse`: its Nyquist count, its pole count
-/// and `stable` against the growing poles faer's QZ finds on the same pencil; a
-/// negative phase margin with `stable` only as a conditionally stable verdict, said
-/// in words.
+/// The magnitude above which faer's eigenvalues of (G, C) are poles at infinity: a
+/// million times the fastest a node can be (its largest conductance over the smallest
+/// capacitance on C's diagonal). The pencil's G/C scale is no bound: a 1 F coupling
+/// capacitor makes it 10¹² times too small.
+fn faer_cutoff(g: &DMatrix<f64>, c: &DMatrix<f64>) -> f64 {
+    let c_min = (0..c.nrows()).map(|i| c[(i, i)].abs()).filter(|&v| v > 0.0).fold(f64::INFINITY, f64::min);
+    1e6 * g.amax() / c_min
+}
+
+/// One random legal document (tests/common/domain.rs: 1–9 stages, resistors 1 Ω–100 MΩ,
+/// capacitors 1 pF–1 F, f_design 1 kHz–500 MHz) through the document's loop analysis:
+/// its Nyquist count, its pole count and `stable` against the growing poles faer's QZ
+/// finds on the same pencils (closed loop and loop broken); a negative phase margin
+/// with `stable` only as a conditionally stable verdict, said in words. No case is
+/// skipped: where a pole lies within 1e-6 of the axis (in angle) the counts may
+/// differ from faer's, and only there may the Nyquist count come out undetermined,
+/// which the words must then say.
 fn loop_case(seed: u64, tally: &LoopTally) -> std::result::Result<(), TestCaseError> {
-    let mut rng = Xorshift::new(seed);
-    let stages = [1, 3, 5, 7, 9][rng.below(5)];
-    let part = Part { stages, ..random_part(&mut rng) };
-    let stage = random_stage(&mut rng);
+    let drawn = domain_gen::draw(seed);
     bump(&tally.cases);
-    let Ok(lin) = Linearised::new(&part, &stage, 50.0) else {
+    // The generator now and then puts f_design a rounding above f_stop (its grid's
+    // last point); the loader refuses that, and the case is counted with the unbiased.
+    let Ok(doc) = halfrail::doc::load(&drawn.doc.to_string()) else {
         bump(&tally.unbiased);
         return Ok(());
     };
-    let fail = |what: &str, e: halfrail::error::FieldError| TestCaseError::fail(format!("{what}: {e}\n{part:?}\n{stage:?}"));
+    let (part, stage) = doc.part_and_stage().map_err(|e| TestCaseError::fail(format!("{e}")))?;
+    let Ok(lin) = Linearised::new(&part, &stage, doc.sweep().unwrap().z0_ohm) else {
+        bump(&tally.unbiased);
+        return Ok(());
+    };
+    let fail = |what: &str, e: halfrail::error::FieldError| TestCaseError::fail(format!("seed {seed} {what}: {e}\n{}", drawn.doc));
     let small = lin.small_signal();
-    let scale = small.g.amax() / small.c.amax();
-    let closed = faer_poles(&small.g, &small.c, 1e9 * scale);
+    let closed = faer_poles(&small.g, &small.c, faer_cutoff(&small.g, &small.c));
     let ratio = ReturnRatio::new(&lin).map_err(|e| fail("return ratio", e))?;
     let open_circuit = ratio.open_loop();
-    let open = faer_poles(&open_circuit.g, &open_circuit.c, 1e9 * open_circuit.g.amax() / open_circuit.c.amax());
-    let open_scale = open_circuit.g.amax() / open_circuit.c.amax();
-    if near_axis(&closed, scale) || near_axis(&open, open_scale) {
-        bump(&tally.marginal);
-        return Ok(());
+    let open = faer_poles(&open_circuit.g, &open_circuit.c, faer_cutoff(&open_circuit.g, &open_circuit.c));
+    if closed.iter().chain(&open).any(|p| p.norm() < 1e-3) {
+        bump(&tally.huge_coupling);
+    }
+    // The core puts a pole at the origin when its sign is not in the doubles (the
+    // pencil's scale and G's conditioning say so): faer's sign for it may be either.
+    let ours_open = ratio.open_loop_poles().map_err(|e| fail("open-loop poles", e))?.to_vec();
+    let ours_closed = natural_frequencies(&small.g, &small.c).map_err(|e| fail("closed-loop poles", e))?;
+    let at_origin = ours_open.iter().chain(&ours_closed).any(|p| p.norm() == 0.0);
+    if at_origin {
+        bump(&tally.at_origin);
+    }
+    let marginal = at_origin || near_axis(&closed, &small.g, &small.c) || near_axis(&open, &open_circuit.g, &open_circuit.c);
+    if marginal {
+        bump(&tally.near_axis);
     }
     let growing = closed.iter().filter(|p| p.re > 0.0).count();
-    let freqs = frequencies(1e3, 1e9, 10);
-    let response = response_of(&lin, &stage, 10.7e6, &freqs, None).map_err(|e| fail("response", e))?;
-    let l = stability::analyse(&lin, &stage, &response, 10.7e6, &freqs).map_err(|e| fail("analyse", e))?;
-    let n = l.nyquist.ok_or_else(|| TestCaseError::fail(format!("the Nyquist count did not resolve\n{part:?}\n{stage:?}")))?;
-    let mut ours_open = natural_frequencies(&open_circuit.g, &open_circuit.c).map_err(|e| fail("open-loop poles", e))?;
-    ours_open.retain(|p| p.re > 0.0);
-    prop_assert_eq!(n.open_growing, open.iter().filter(|p| p.re > 0.0).count(), "open-loop growing: ours {:?}\nfaer {:?}", ours_open, open);
-    prop_assert_eq!(n.growing, growing, "Nyquist Z (turns {}, P {}) vs faer's growing poles {:?}\n{:?}\n{:?}", n.turns, n.open_growing, closed, part, stage);
-    prop_assert_eq!(l.poles_growing, growing, "the core's poles vs faer's");
-    prop_assert_eq!(l.stable, growing == 0);
+    let open_growing = open.iter().filter(|p| p.re > 0.0).count();
+    let (_, l) = doc.stability().map_err(|e| fail("analyse", e))?;
     let words = serde_json::to_value(halfrail::doc::LoopSummary(&l, None)).unwrap()["verdict"]["words"].as_str().unwrap().to_string();
+    let context = || format!("seed {seed}\nfaer closed {closed:?}\nfaer open {open:?}\nours {:?}\nnyquist {:?}\n{}", l.poles, l.nyquist, drawn.doc);
+    match l.nyquist {
+        None => {
+            bump(&tally.undetermined);
+            prop_assert!(marginal, "the Nyquist count did not resolve with no pole near the axis\n{}", context());
+            prop_assert!(words.contains("undetermined"), "{}", words);
+        }
+        Some(n) if !marginal => {
+            // P may differ from faer's by one (counted, and rare): many stages make a
+            // slow real pole of the broken loop (the inner loop through the first cgd
+            // with a DC gain of 10¹⁵), whose sign faer's QZ and the core's shift-invert
+            // give differently. There the core's P is the one its own Nyquist walk of
+            // T (an LU solve per frequency, independent of either eigen-solver) matches:
+            // Z = P − turns agrees with faer's closed-loop count, asserted below.
+            if n.open_growing != open_growing {
+                bump(&tally.slow_open);
+                prop_assert!(n.open_growing.abs_diff(open_growing) == 1, "open-loop growing {} vs faer's {}\n{}", n.open_growing, open_growing, context());
+            }
+            prop_assert_eq!(n.growing, growing, "Nyquist Z (turns {}, P {}) vs faer's growing poles\n{}", n.turns, n.open_growing, context());
+        }
+        Some(_) => {}
+    }
+    if !marginal {
+        prop_assert_eq!(l.poles_growing, growing, "the core's poles vs faer's\n{}", context());
+        prop_assert_eq!(l.stable, growing == 0, "{}", context());
+    }
     let pm = l.margins.phase_margin_deg;
     if pm.is_some_and(|m| m < 0.0) {
         bump(&tally.negative_margin);
@@ -980,26 +1032,52 @@ fn loop_case(seed: u64, tally: &LoopTally) -> std::result::Result<(), TestCaseEr
 
 #[test]
 fn the_loops_nyquist_count_and_stable_agree_with_the_poles_on_designs_of_1_to_9_stages() {
-    const CASES: u32 = 300;
+    const CASES: u32 = 200;
     let tally = LoopTally::default();
     let mut runner = TestRunner::new(Config { cases: CASES, failure_persistence: None, ..Config::default() });
     if let Err(e) = runner.run(&any::<u64>(), |seed| loop_case(seed, &tally)) {
         panic!("{e}");
     }
-    let (cases, unbiased, marginal, unstable) = (tally.cases.get(), tally.unbiased.get(), tally.marginal.get(), tally.unstable.get());
+    let (cases, unbiased, unstable) = (tally.cases.get(), tally.unbiased.get(), tally.unstable.get());
     eprintln!(
-        "loop: {cases} cases, {unbiased} not biased, {marginal} marginal (skipped), {unstable} unstable, {} negative PM, {} conditionally stable",
+        "loop: {cases} cases, {unbiased} not biased, {} with a pole within 1e-6 of the axis ({} put at the origin by the core), {} with a slow real open-loop pole, {} undetermined, {} with a pole below 1e-3 rad/s, {unstable} unstable, {} negative PM, {} conditionally stable",
+        tally.near_axis.get(),
+        tally.at_origin.get(),
+        tally.slow_open.get(),
+        tally.undetermined.get(),
+        tally.huge_coupling.get(),
         tally.negative_margin.get(),
         tally.conditional.get()
     );
-    assert!(unbiased * 10 <= cases, "{unbiased} of {cases} random parts did not bias");
-    // Seven and nine stages make real poles near the origin (measured: 15 of 200
-    // cases skipped, nearly all of them so).
-    assert!(marginal * 8 <= cases, "{marginal} of {cases} skipped as marginal");
-    let judged = cases - unbiased - marginal;
+    assert!(unbiased * 10 <= cases, "{unbiased} of {cases} random documents did not load or bias");
+    // Poles whose sign the doubles do not hold, and so counts faer may differ from,
+    // only now and then (nine stages in a row with a DC loop gain of 10¹⁵ make them).
+    assert!(tally.slow_open.get() * 10 <= cases, "{} of {cases} with P differing from faer's", tally.slow_open.get());
+    assert!(tally.near_axis.get() * 10 <= cases, "{} of {cases} with a pole at the axis", tally.near_axis.get());
+    // Undetermined only rarely (and, checked per case, only with a pole at the axis).
+    assert!(tally.undetermined.get() * 50 <= cases, "{} of {cases} undetermined", tally.undetermined.get());
+    // The domain's huge coupling capacitors are exercised, and both verdicts.
+    assert!(tally.huge_coupling.get() * 10 >= cases, "{} of {cases} with a pole below 1e-3 rad/s", tally.huge_coupling.get());
+    let judged = cases - unbiased;
     assert!(unstable * 10 >= judged && unstable * 10 <= judged * 9, "{unstable} unstable of {judged}");
 }
 
+/// The three documents the domain suite found with the poles and the Nyquist count
+/// disagreeing (/tmp/rep/seed_1592590336, …357, …347, trimmed to part and stage):
+/// seven stages with a 77 mF output coupling capacitor into 3.8 MΩ, where one shift
+/// of the eigen-solver lost 8 of 9 poles (four of them growing) beside the
+/// −3.4·10⁻⁶ rad/s one, and two whose loop broken at stage 1 has a slow growing real
+/// pole (11.6 and 0.23 rad/s, an inner loop through the first cgd) that was snapped
+/// to the origin. Checked against faer's QZ on the same pencils.
+#[test]
+fn the_domain_suites_disagreeing_documents_now_agree_with_faer() {
+    for seed in [1592590336u64, 1592590357, 1592590347] {
+        let tally = LoopTally::default();
+        if let Err(e) = loop_case(seed, &tally) {
+            panic!("{e}");
+        }
+    }
+}
 
 // ---------------------------------------------------------------------------
 // 7. The designs: a crossover below f_design, and the helper's answers

@@ -141,7 +141,7 @@ pub fn stability_words(l: &Loop) -> String {
             if n.growing == 1 { "y" } else { "ies" },
             if n.growing == 1 { "s" } else { "" },
         ),
-        None => "The Nyquist count of F = 1 + T does not resolve: a natural frequency lies on (or too near) the jω axis, so the loop is on the edge of oscillation.".into(),
+        None => "The Nyquist count of F = 1 + T is undetermined: a natural frequency lies on (or within the resolution of doubles of) the jω axis, so the loop is on the edge of oscillation and the verdict rests on the poles alone.".into(),
     };
     let nyquist = match l.nyquist {
         Some(n) if n.growing != l.poles_growing => format!(

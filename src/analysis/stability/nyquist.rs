@@ -16,7 +16,12 @@
 //! The walk samples a log grid from far below the lowest natural frequency to far
 //! above the highest, adds the points where each complex one (open or closed)
 //! turns the phase fastest (ω = |Im s| and |Im s| ± |Re s|), and bisects any step
-//! that turns the phase by more than `MAX_STEP`.
+//! that turns the phase by more than `MAX_STEP`. It depends on the natural
+//! frequencies only, never on the user's sweep. Natural frequencies the pole solver
+//! puts at the origin (their sign is not in the doubles) are walked round on the
+//! standard indent into the right half-plane: counted in neither P nor Z, and the
+//! walk starts a decade below the lowest other one with F ≈ K·s^order turning by
+//! order·π/2 on the indent.
 
 use crate::math;
 use num_complex::Complex64;
@@ -59,7 +64,17 @@ pub fn encirclement(ratio: &ReturnRatio, closed: &[Complex64], open: &[Complex64
     let all = || closed.iter().chain(open).map(|p| math::norm(p)).filter(|&w| w > 0.0);
     let (lowest, highest) = all().fold((f64::INFINITY, 0.0f64), |(lo, hi), w| (lo.min(w), hi.max(w)));
     let tau = std::f64::consts::TAU;
-    let (f_lo, f_hi) = if highest > 0.0 { (lowest / tau / BEYOND, highest / tau * BEYOND) } else { (1.0, 1e12) };
+    // Natural frequencies at the origin (`poles::ORIGIN_TOL`): zeros of F (closed) and
+    // poles of F (open), whose computed values are anywhere below the origin zone.
+    let at_origin = |p: &[Complex64]| p.iter().filter(|p| math::norm(*p) == 0.0).count() as i64;
+    let order = at_origin(closed) - at_origin(open);
+    let indent = at_origin(closed) + at_origin(open) > 0;
+    let (mut f_lo, f_hi) = if highest > 0.0 { (lowest / tau / BEYOND, highest / tau * BEYOND) } else { (1.0, 1e12) };
+    if indent {
+        // The walk starts a decade below every other natural frequency, where F ≈
+        // K·s^order (the ones at the origin lie far below: `poles::natural_frequencies`).
+        f_lo = f_lo.max(lowest / 10.0 / tau);
+    }
     let mut grid = frequencies(f_lo, f_hi, PER_DECADE);
     for p in closed.iter().chain(open) {
         let (im, re) = (p.im.abs(), p.re.abs());
@@ -72,10 +87,17 @@ pub fn encirclement(ratio: &ReturnRatio, closed: &[Complex64], open: &[Complex64
 
     let mut budget = BUDGET;
     let mut f_at = |f: f64| -> Result<Complex64> { Ok(1.0 + ratio.at(f)?) };
-    // From F(0) (the DC solve: every node of a stage has a DC path) to the first point.
-    let Ok(f0) = f_at(0.0) else { return Ok(None) };
     let mut last = (grid[0], f_at(grid[0])?);
-    let mut delta = math::arg(last.1 / f0);
+    // From F(0) (the DC solve: every node of a stage has a DC path) to the first point;
+    // or, with natural frequencies at the origin, round them on the standard indent
+    // (a quarter circle into the right half-plane, out to the first point), where
+    // F ≈ K·s^order turns by order·π/2: they are counted neither in P nor in Z.
+    let mut delta = if indent {
+        order as f64 * std::f64::consts::FRAC_PI_2
+    } else {
+        let Ok(f0) = f_at(0.0) else { return Ok(None) };
+        math::arg(last.1 / f0)
+    };
     for &f in &grid[1..] {
         let next = (f, f_at(f)?);
         match turn(&mut f_at, last, next, 0, &mut budget)? {

@@ -22,9 +22,28 @@ use crate::error::{FieldError, Result};
 /// largest eigenvalue).
 const INFINITE_BELOW: f64 = 1e-12;
 
-/// Poles within this fraction of the pencil's frequency scale of the origin are
-/// the origin (a node held only by capacitors).
+/// A pole found with a shift σ ≠ 0 (G singular: a node held only by capacitors)
+/// within this fraction of |σ| of the origin is the origin: the rounding of σ + 1/λ.
 const ORIGIN_WITHIN: f64 = 1e-9;
+
+/// The relative error of a pole taken as good enough to keep it from a pass (each
+/// pass is trusted only where its rounding, propagated to s, stays below this).
+const TRUSTED_TO: f64 = 1e-5;
+
+/// A pole within this fraction of the pencil's scale |G|/|C| of the origin is at
+/// the origin: a perturbation of G by its rounding moves a pole that near 0 by about
+/// ε·|G|/|C|, so its sign is not in the doubles. Genuine poles come much nearer than
+/// one would think (a 1 F coupling capacitor into 100 MΩ beside a 1 Ω resistor:
+/// 10⁻¹² of the scale, agreeing with faer's QZ to 10⁻⁸); the ones the rounding decides
+/// further out are found by the transposed pass (`SAME_WITHIN`).
+pub const ORIGIN_TOL: f64 = 1e-15;
+
+/// A real pole below this fraction of the fastest is slow: the transposed pass checks
+/// those (fast ones it gives less accurately itself).
+const SLOW: f64 = 1e-6;
+/// How near (relative) the transposed pencil's pass must find a slow real pole for
+/// its sign to be trusted.
+const SAME_WITHIN: f64 = 0.1;
 
 /// Schur iterations before giving up.
 const MAX_ITERATIONS: usize = 10_000;
@@ -46,8 +65,56 @@ fn reduced(g: &DMatrix<f64>, c: &DMatrix<f64>) -> (DMatrix<f64>, DMatrix<f64>) {
     (g_r, pick(c, &d, &d))
 }
 
+/// The poles of one shift-and-invert pass and the size (largest entry) of the
+/// matrix whose eigenvalues gave them; `None` when G + σC is singular.
+struct Pass {
+    sigma: f64,
+    size: f64,
+    poles: Vec<Complex64>,
+}
+
+fn pass(g: &DMatrix<f64>, c: &DMatrix<f64>, sigma: f64) -> Result<Option<Pass>> {
+    let shifted = g + c * sigma;
+    let Some(inverse) = shifted.lu().try_inverse() else { return Ok(None) };
+    if !inverse.iter().all(|v| v.is_finite()) {
+        return Ok(None);
+    }
+    let a = -(inverse * c);
+    // Balanced first, as LAPACK's eigen-solvers do: a chain of high-gain stages
+    // makes entries differ by the chain's gain (10¹⁰ for nine stages), and
+    // unbalanced, the finite eigenvalues fell below the cut-off taken from the
+    // largest entry and were dropped as poles at infinity (nine stages: 8 of 11).
+    // Where the balanced matrix does not converge (stages decoupled by a
+    // missing cgd, repeated eigenvalues), the matrix as it is.
+    let mut balanced = a.clone();
+    balance(&mut balanced);
+    let Some((size, eigenvalues)) = [balanced, a].into_iter().find_map(|a| {
+        let size = a.amax();
+        nalgebra::linalg::Schur::try_new(a, f64::EPSILON, MAX_ITERATIONS).map(|s| (size, s.complex_eigenvalues()))
+    }) else {
+        return Err(FieldError::new("circuit", "the natural frequencies did not converge"));
+    };
+    let poles = eigenvalues
+        .iter()
+        .filter(|l| math::norm(*l) > INFINITE_BELOW * size)
+        .map(|l| sigma + 1.0 / l)
+        .map(|s| if sigma != 0.0 && math::norm(s) < ORIGIN_WITHIN * sigma.abs() { Complex64::new(0.0, 0.0) } else { s })
+        .collect();
+    Ok(Some(Pass { sigma, size, poles }))
+}
+
 /// The finite natural frequencies of the pencil (G, C), in rad/s, sorted by
 /// magnitude. Complex ones come in conjugate pairs.
+///
+/// Several passes, because one shift cannot see natural frequencies that differ by
+/// more than about 10¹² (a 1 F coupling capacitor into 100 MΩ, 10⁻⁸ rad/s, beside a
+/// part's picofarads, 10¹¹ rad/s): with σ = 0 the eigenvalues −1/s of the fast ones
+/// fall below the rounding of the slow ones' and were dropped as poles at infinity
+/// (seven stages with 77 mF: 8 of 9 poles lost, four of them growing). The low pass
+/// (σ = 0, or a shift at the pencil's scale when G is singular) gives the slow ones to
+/// full relative accuracy up to where its rounding reaches `TRUSTED_TO`; above that, a
+/// ladder of shifts down from the fastest node's G/C (`ladder`) gives the rest, each
+/// pass the poles in its own band.
 pub fn natural_frequencies(g: &DMatrix<f64>, c: &DMatrix<f64>) -> Result<Vec<Complex64>> {
     if c.amax() == 0.0 {
         return Ok(Vec::new());
@@ -58,37 +125,125 @@ pub fn natural_frequencies(g: &DMatrix<f64>, c: &DMatrix<f64>) -> Result<Vec<Com
     let (g, c) = reduced(g, c);
     // σ = 0 unless G is singular (a node held only by capacitors: a pole at s = 0);
     // then shifts at the pencil's own frequency scale, away from any pole in practice.
+    let mut low = None;
     for sigma in [0.0, 0.37 * scale, -1.9 * scale, 7.3 * scale] {
-        let shifted = &g + &c * sigma;
-        let Some(inverse) = shifted.lu().try_inverse() else { continue };
-        if !inverse.iter().all(|v| v.is_finite()) {
-            continue;
+        if let Some(p) = pass(&g, &c, sigma)? {
+            low = Some(p);
+            break;
         }
-        let a = -(inverse * &c);
-        // Balanced first, as LAPACK's eigen-solvers do: a chain of high-gain stages
-        // makes entries differ by the chain's gain (10¹⁰ for nine stages), and
-        // unbalanced, the finite eigenvalues fell below the cut-off taken from the
-        // largest entry and were dropped as poles at infinity (nine stages: 8 of 11).
-        // Where the balanced matrix does not converge (stages decoupled by a
-        // missing cgd, repeated eigenvalues), the matrix as it is.
-        let mut balanced = a.clone();
-        balance(&mut balanced);
-        let Some((size, eigenvalues)) = [balanced, a].into_iter().find_map(|a| {
-            let size = a.amax();
-            nalgebra::linalg::Schur::try_new(a, f64::EPSILON, MAX_ITERATIONS).map(|s| (size, s.complex_eigenvalues()))
-        }) else {
-            return Err(FieldError::new("circuit", "the natural frequencies did not converge"));
-        };
-        let mut poles: Vec<Complex64> = eigenvalues
-            .iter()
-            .filter(|l| math::norm(*l) > INFINITE_BELOW * size)
-            .map(|l| sigma + 1.0 / l)
-            .map(|s| if math::norm(s) < ORIGIN_WITHIN * scale { Complex64::new(0.0, 0.0) } else { s })
-            .collect();
-        crate::order::sort_by(&mut poles, |a, b| math::norm(a).total_cmp(&math::norm(b)));
-        return Ok(poles);
     }
-    Err(FieldError::new("circuit", "the circuit's equations are singular at every shift tried"))
+    let Some(low) = low else {
+        return Err(FieldError::new("circuit", "the circuit's equations are singular at every shift tried"));
+    };
+    // The fastest a node can be: its largest conductance over its smallest
+    // capacitance to anything.
+    let c_min = (0..c.nrows()).map(|i| c[(i, i)].abs()).filter(|&v| v > 0.0).fold(f64::INFINITY, f64::min);
+    let fast = g.amax().max(f64::MIN_POSITIVE) / c_min;
+    let low_up_to = TRUSTED_TO / (f64::EPSILON * low.size.max(f64::MIN_POSITIVE));
+    let mut poles = low.poles.clone();
+    if fast.is_finite() && fast / BAND > low_up_to {
+        poles = ladder(&g, &c, &low, low_up_to, fast)?.unwrap_or(poles);
+    }
+    // Far above the fastest node: the rounding of poles at infinity (C singular, two of
+    // them as a defective pair: ±6·10¹⁷ rad/s beside a fastest pole of 1.9·10¹⁰).
+    if fast.is_finite() {
+        poles.retain(|p| math::norm(p) < CEILING * fast);
+    }
+    // At the origin at the pencil's resolution: exactly there, on the axis. That is,
+    // within `ORIGIN_TOL` of the pencil's scale, or a real pole of the low pass whose
+    // value the rounding decides: G⁻¹ carries G's rounding amplified by its condition
+    // number, and nine stages in a row (a DC loop gain of 4·10¹⁵) make a slow real pole
+    // of the broken loop come out +3.4·10⁻⁵ rad/s here and −9.1·10⁻⁵ from faer's QZ.
+    // The same pass on the transposed pencil (the same poles, other roundings) tells
+    // them: a slow real pole it does not find within `SAME_WITHIN` has no sign in doubles.
+    let fastest = poles.iter().map(|p| math::norm(p)).fold(0.0, f64::max);
+    // Only when there is a slow real pole to check (the demo has none: no second pass).
+    let slow = poles.iter().any(|p| p.im.abs() <= ON_AXIS_WITHIN * math::norm(p) && math::norm(p) < SLOW * fastest);
+    let twin = if low.sigma == 0.0 && slow { pass(&g.transpose(), &c.transpose(), 0.0)? } else { None };
+    for p in &mut poles {
+        let m = math::norm(*p);
+        let real = p.im.abs() <= ON_AXIS_WITHIN * m;
+        let unsure = real
+            && m < SLOW * fastest
+            && low.poles.contains(p)
+            && twin.as_ref().is_some_and(|t| !t.poles.iter().any(|q| math::norm(*q - *p) <= SAME_WITHIN * m));
+        if m < ORIGIN_TOL * scale || unsure {
+            *p = Complex64::new(0.0, 0.0);
+        }
+    }
+    crate::order::sort_by(&mut poles, |a, b| math::norm(a).total_cmp(&math::norm(b)));
+    Ok(poles)
+}
+
+/// A shifted pass is trusted for poles above its shift over this (and up to the band of
+/// the pass above it): the images of poles far below a shift σ come out anywhere up to
+/// about ε·σ·|C|/|C|min (measured with a 0.7 F coupling capacitor beside 0.15 pF:
+/// −1.5·10⁻⁶ rad/s came out as −1.0·10⁶ from σ = 9.4·10⁹), a long way below σ/30.
+const BAND: f64 = 30.0;
+/// Natural frequencies more than this times the fastest node's G/C are poles at
+/// infinity.
+const CEILING: f64 = 1e4;
+/// Ratio of one shift of the ladder to the next below.
+const RUNG: f64 = 1e3;
+/// Shifts of the ladder at most (fifteen decades of 10¹⁵ rad/s … 1 rad/s).
+const MAX_RUNGS: usize = 6;
+
+/// How near (relative) a neighbouring pass must find a pole of the ladder to confirm it.
+const CONFIRMED_WITHIN: f64 = 1e-3;
+
+/// The natural frequencies from a ladder of shifts: the highest at `fast`, each next one
+/// `RUNG` below, until the low pass (trusted up to `low_up_to`) covers what is left.
+/// Each pass gives the poles in its band, [σ/`BAND`, the band of the pass above), that a
+/// neighbouring pass (the one below, else the one above) also finds: the images of poles
+/// far below a shift come out anywhere, even a seventh of σ (a −4.6·10⁻⁵ rad/s pole
+/// came out as +5.1·10¹⁰ from σ = 3.6·10¹¹), but differently from each shift. The low
+/// pass gives the poles below the lowest band. `None` when a shift lands on a pole
+/// every time.
+fn ladder(g: &DMatrix<f64>, c: &DMatrix<f64>, low: &Pass, low_up_to: f64, fast: f64) -> Result<Option<Vec<Complex64>>> {
+    let mut passes = Vec::new();
+    let mut sigma = 0.61 * fast;
+    for _ in 0..MAX_RUNGS {
+        let mut pass_at = None;
+        for k in [1.0, 1.7, 0.29] {
+            if let Some(p) = pass(g, c, k * sigma)? {
+                pass_at = Some(p);
+                break;
+            }
+        }
+        let Some(p) = pass_at else { return Ok(None) };
+        let bottom = p.sigma / BAND;
+        passes.push(p);
+        if bottom <= low_up_to {
+            break;
+        }
+        sigma /= RUNG;
+    }
+    let found = |p: &Pass, s: &Complex64| p.poles.iter().any(|q| math::norm(*q - *s) <= CONFIRMED_WITHIN * math::norm(s));
+    // The band a magnitude belongs to: the index of the lowest-shift pass whose band's
+    // bottom it reaches (`passes.len()`: the low pass's).
+    let home = |m: f64| passes.iter().position(|p| m >= p.sigma / BAND).unwrap_or(passes.len());
+    let mut poles = Vec::new();
+    // Nothing is faster than `fast` by much; above that, the rounding of poles at
+    // infinity (measured: ±7.9·10¹⁹ rad/s beside a fastest pole of 5.4·10¹⁰).
+    let ceiling = CEILING * fast;
+    for (k, p) in passes.iter().enumerate() {
+        for s in p.poles.iter().filter(|s| math::norm(*s) < ceiling) {
+            let h = home(math::norm(s));
+            if h == passes.len() {
+                continue;
+            }
+            // Kept from the pass nearest its band among those that find it, when at
+            // least one other does.
+            let holders: Vec<usize> = (0..passes.len()).filter(|&i| i == k || found(&passes[i], s)).collect();
+            let best = holders.iter().copied().min_by_key(|&i| (i.abs_diff(h), usize::MAX - i));
+            if (holders.len() > 1 || passes.len() == 1) && best == Some(k) {
+                poles.push(*s);
+            }
+        }
+    }
+    let top = passes.last().map_or(f64::INFINITY, |p| p.sigma / BAND);
+    poles.extend(low.poles.iter().filter(|s| math::norm(*s) < top));
+    Ok(Some(poles))
 }
 
 /// Sweeps of the balancing before it stops (it converges in a few).
@@ -145,7 +300,18 @@ fn balance(a: &mut DMatrix<f64>) {
 
 /// Whether a natural frequency grows: a positive real part beyond rounding.
 pub fn grows(s: Complex64) -> bool {
-    s.re > 1e-9 * math::norm(s).max(1.0)
+    s.re > ON_AXIS_WITHIN * math::norm(s)
+}
+
+/// A natural frequency whose real part is within this fraction of its magnitude of
+/// zero is on the jω axis (neither grows nor decays at the resolution of the
+/// solvers); the same for the open- and the closed-loop ones.
+pub const ON_AXIS_WITHIN: f64 = 1e-9;
+
+/// Whether a natural frequency lies on the jω axis at that tolerance (the origin
+/// included).
+pub fn on_axis(s: Complex64) -> bool {
+    s.re.abs() <= ON_AXIS_WITHIN * math::norm(s)
 }
 
 /// A complex-conjugate pair described the way a designer reads it.
