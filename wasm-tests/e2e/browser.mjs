@@ -100,3 +100,10 @@ export async function editElsewhereDuringRun(page, id) {
     };
   }, id);
 }
+
+// Waits until the page (or frame) has drawn `n` more frames: long enough for anything
+// an event queued to have happened, with no fixed time to be wrong on a busy machine.
+export const framesDrawn = (frameOrPage, n = 2) => frameOrPage.evaluate((count) => new Promise((done) => {
+  const step = (left) => (left === 0 ? done() : requestAnimationFrame(() => step(left - 1)));
+  step(count);
+}), n);

@@ -12,7 +12,7 @@ import fs from 'fs';
 import os from 'os';
 import path from 'path';
 import { execFileSync } from 'child_process';
-import { launch, watch, ready, clearStorage, PAGE_PATH, PAGE_URL, CLI_PATH } from './browser.mjs';
+import { launch, watch, ready, clearStorage, PAGE_PATH, PAGE_URL, CLI_PATH, framesDrawn } from './browser.mjs';
 
 let browser;
 before(async () => { browser = await launch(); });
@@ -411,7 +411,8 @@ test('embedded in a frame: compact chrome, the cautions as one line, the height 
   assert.ok(heights[heights.length - 1].height > 600, 'the whole Response panel');
   // The frame settles at its height (it does not grow with the frame it is given).
   const settled = heights.length;
-  await page.waitForTimeout(500);
+  await framesDrawn(inner, 4);
+  await framesDrawn(page, 2);
   assert.equal((await page.evaluate(() => window.heights)).length, settled);
   // The rail's links keep embed mode and the link's design; the frame's design is not stored.
   assert.match(await frame.locator('#rail a[data-panel="loop"]').getAttribute('href'), /^#loop&embed&d=[A-Za-z0-9_-]+$/);
@@ -433,8 +434,8 @@ test('the read-only view shows the design and its figures with nothing to edit',
   // Every panel, once shown: no input takes typing, no edit control shows.
   for (const id of ['part', 'stage', 'loop', 'swing', 'spread', 'chain', 'bench', 'response']) {
     await frame.locator(`#rail a[data-panel="${id}"]`).click();
-    await frame.locator(`#panel-${id}`).waitFor();
-    await page.waitForTimeout(100);
+    // Each panel's first figures (the Bench panel computes only on demand).
+    await frame.locator(id === 'bench' ? '#panel-bench' : `#panel-${id}[data-computed]`).waitFor();
   }
   await frame.locator('#panel-stage .value').first().waitFor({ state: 'attached' });
   const editable = await inner.evaluate(() => [...document.querySelectorAll('input, select, textarea')]
@@ -461,7 +462,7 @@ test('the read-only view shows the design and its figures with nothing to edit',
     document.body.dispatchEvent(new DragEvent('drop', { dataTransfer: dt, bubbles: true, cancelable: true }));
     return HR.design.text();
   });
-  await page.waitForTimeout(100);
+  await framesDrawn(inner);
   assert.deepEqual(JSON.parse(after), design);
   assert.deepEqual(JSON.parse(await inner.evaluate(() => HR.design.text())), design);
   assert.match(await frame.locator('#rail a[data-panel="loop"]').getAttribute('href'), /^#loop&embed=view&d=/);

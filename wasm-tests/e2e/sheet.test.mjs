@@ -75,7 +75,7 @@ test('The browser’s own print gives the same sheet, for the design as it is wh
 
   // An edit, then Ctrl+P (page.pdf fires beforeprint): the sheet follows the edit.
   await page.evaluate(() => HR.design.set('stage', 'r_fb_ohm', '3k3'));
-  await page.waitForTimeout(1000); // the link to the edited design: made 300 ms after the edit, in a few ms
+  await page.waitForFunction(() => HR.sheet.linkIsCurrent()); // made 300 ms after the edit
   const gain = await page.evaluate(() => HR.fmt(wasm_bindgen.responseReport(HR.design.text()).design.gain_db, 'dB'));
   const edited = await readPdf(await page.pdf({ format: 'A4' }));
   assert.ok(edited.text.includes('3k3') && !edited.text.includes(' 2k2 '), 'the edited R fb is printed');

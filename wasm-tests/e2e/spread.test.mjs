@@ -42,6 +42,8 @@ const runBox = (page) => page.locator('#panel-spread .run');
 // Polled every frame (a locator's waitFor polls every half second once it has waited a while).
 const runShown = (page) => page.waitForFunction(() => !document.querySelector('#panel-spread .run').hidden);
 const log = (page) => page.evaluate(() => window.__spread);
+// Waits until the panel's background follower is in `state` (worker.js's follow()).
+const settledAs = (page, state) => page.waitForSelector(`#panel-spread[data-follow="${state}"]`, { state: 'attached' });
 const figureRow = (page, name) => page.locator('#panel-spread table tbody tr').filter({ hasText: name }).locator('td').allTextContents();
 const tolerance = (page, label) => page.locator('#panel-spread').getByLabel(label, { exact: true });
 
@@ -167,7 +169,8 @@ test('Cancel ends both workers and no result of the run lands; an edit supersede
   assert.equal(await runBox(page).isVisible(), false);
   assert.equal((await log(page)).terminated, terminated + 2, 'both workers were terminated');
   assert.equal(await page.locator('#panel-spread .stale-note').getAttribute('data-why'), 'cancelled');
-  await page.waitForTimeout(3000); // longer than the run would take: a cancelled one must never land
+  // Held, its workers ended: nothing of the cancelled run can land.
+  await settledAs(page, 'held');
   assert.equal(await computed(page), 1);
   assert.equal((await figureRow(page, 'Gain at f_design'))[1], mean);
   assert.equal(await runBox(page).isVisible(), false, 'a cancelled run is not restarted by itself');
@@ -185,7 +188,7 @@ test('Cancel ends both workers and no result of the run lands; an edit supersede
   await runShown(page);
   await trials.fill('4000');
   await results(page, 3);
-  await page.waitForTimeout(1000);
+  await settledAs(page, 'settled');
   assert.equal(await computed(page), 3, 'one result for the two edits');
   assert.deepEqual((await page.evaluate(() => window.__notes)).map((t) => t.split(' ')[0]), ['4000']);
   assert.equal(await page.locator('#panel-spread .stale-note').isVisible(), false);
@@ -204,7 +207,7 @@ test('the tolerances are part of the design: a bad one is refused at its field w
   assert.equal(await resistors.getAttribute('aria-invalid'), 'true');
   assert.match(await page.locator('#panel-spread p.error').textContent(), /^tolerance\.resistor_pct: /);
   assert.equal(await page.locator('#panel-spread .stale-note').isVisible(), true);
-  await page.waitForTimeout(600);
+  await settledAs(page, 'settled');
   assert.equal(await runBox(page).isVisible(), false, 'no run for a draft the core refuses');
   assert.equal(await computed(page), 1);
 

@@ -265,5 +265,8 @@ HR.sheet = (() => {
   };
   window.addEventListener('beforeprint', () => { if (document.documentElement.dataset.ready) build(source()); });
 
-  return { print };
+  // Whether the kept link is of the design as it is now (a test waits for it).
+  const linkIsCurrent = () => link.text === HR.design.text();
+
+  return { print, linkIsCurrent };
 })();

@@ -133,7 +133,11 @@ HR.background = (() => {
   //   or, for a run of several calls (in several lanes), `job(text, onProgress)` in
   //   place of name and args, returning what run() returns: {promise, cancel()}.
   //   `why`: 'running', 'error', 'cancelled' or 'due' (changed while hidden or held).
-  // Returns {start() (run now), cancel()}. `panel.dataset.computed` counts results.
+  // Returns {start() (run now), cancel()}. `panel.dataset.computed` counts results, and
+  // `panel.dataset.follow` says what the panel waits for, so a test can wait for a state
+  // rather than a time: 'waiting' (an edit, before its run), 'running', 'due' (changed
+  // while hidden), 'held' (cancelled), or 'settled' (the last result or error is final:
+  // nothing more will land until the next edit).
   const follow = (panel, spec) => {
     const { name, args, lane = name, delay = 300, render, report, stale, progress,
       job: begin = (text, onProgress) => run(name, args(text), { lane, onProgress }) } = spec;
@@ -142,8 +146,10 @@ HR.background = (() => {
     let timer = null;
     let held = false;       // cancelled by the user: wait for an edit or start()
     const visible = () => !panel.hidden && !panel.closest('[hidden]');
+    const mark = (state) => { panel.dataset.follow = state; };
 
     const finish = (text, r) => {
+      mark('settled');
       if (r.error) {
         report(r.error);
         // Nothing on show yet: show the last design the core accepted, marked stale.
@@ -167,6 +173,7 @@ HR.background = (() => {
     const launch = (text, fallback = false) => {
       const mine = begin(text, (p) => progress(p));
       job = mine;
+      mark('running');
       progress(0);
       if (!fallback) stale('running', shownText !== null);
       mine.promise.then((r) => {
@@ -205,12 +212,16 @@ HR.background = (() => {
       timer = null;
       held = false;
       if (HR.design.text() === shownText) {
+        mark('settled');
         report(null);
         stale(null, true);
         return;
       }
       stale('due', shownText !== null);
-      if (visible()) timer = setTimeout(start, delay);
+      if (!visible()) { mark('due'); return; }
+      mark('waiting');
+      // Hidden before the delay ran out: the run waits until the panel is shown.
+      timer = setTimeout(() => { timer = null; if (visible()) start(); else mark('due'); }, delay);
     };
 
     HR.design.onChange(changed);
@@ -225,6 +236,7 @@ HR.background = (() => {
         if (!job) return;
         cancelJob();
         held = true;
+        mark('held');
         stale('cancelled', shownText !== null);
       },
     };
