@@ -184,6 +184,14 @@ fn named(copy: usize, name: &str) -> String {
     }
 }
 
+/// A node's or element's name within its copy of a run: `named` undone.
+pub fn unnamed(name: &str) -> &str {
+    match name.split_once(':') {
+        Some((copy, rest)) if !copy.is_empty() && copy.bytes().all(|b| b.is_ascii_digit()) => rest,
+        _ => name,
+    }
+}
+
 /// `copies` identical stages directly coupled in a row, each one's output pin the
 /// next one's input pin (SPEC §3.2 repeated): the source drives the first, the load
 /// hangs on the last, and in between each stage loads the one before with its real

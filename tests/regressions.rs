@@ -74,7 +74,9 @@ fn an_empty_chain_is_its_input() {
 #[test]
 fn a_long_run_of_stage_blocks_is_refused_at_the_first_block_past_the_limit() {
     let mut doc = base();
-    let limit = halfrail::doc::MAX_RUN_STAGES;
+    // One inverter in BASE's part: 64 stage blocks in a row (a run of 64 inverters).
+    let limit = halfrail::doc::max_run_stages(1);
+    assert_eq!(limit, halfrail::doc::MAX_RUN_INVERTERS);
     doc["chain"] = json!({"input_dbm":-40,"bandwidth_hz":1e4,"blocks": vec![json!({"kind":"stage"}); limit + 1]});
     let e = refusal(&doc);
     assert!(e.starts_with(&format!("chain.blocks[{limit}]: ")), "{e}");
@@ -87,6 +89,12 @@ fn a_long_run_of_stage_blocks_is_refused_at_the_first_block_past_the_limit() {
     let c = chain_json(&doc);
     assert_eq!(c["runs"].as_array().unwrap().len(), 2);
     assert!(c["gain_db"].as_f64().unwrap().is_finite());
+
+    // A part of seven inverters: 9 stage blocks in a row (63 inverters) at most.
+    doc["part"]["stages"] = json!(7);
+    doc["chain"]["blocks"] = json!(vec![json!({"kind":"stage"}); 10]);
+    let e = refusal(&doc);
+    assert!(e.starts_with("chain.blocks[9]: more than 9 stage blocks in a row") && e.contains("64 inverters"), "{e}");
 }
 
 #[test]

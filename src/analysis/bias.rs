@@ -3,7 +3,7 @@
 //! the part's open-loop gain and the warnings a user must see.
 
 use super::transfer::SelfBias;
-use crate::engine::{carry_over, operating_point, Element, OperatingPoint};
+use crate::engine::{operating_point, Element, OperatingPoint};
 use crate::error::Result;
 use crate::part::{InverterLaw, Model, Part};
 use crate::stage::{build, Component, Components, StageCircuit};
@@ -136,7 +136,7 @@ pub fn bias(part: &Part, components: &Components, package_max_w: Option<f64>) ->
     let isolated = SelfBias::new(part, &law);
     let self_op = isolated.solve(part.vdd)?;
     // Start the full circuit from the self-bias, node by node: it is usually close.
-    let op = operating_point(&circuit.netlist, Some(&carry_over(&isolated.netlist, &self_op.x, &circuit.netlist)))?;
+    let op = operating_point(&circuit.netlist, Some(&isolated.start_for(Some(&self_op), part.vdd, &circuit.netlist)))?;
 
     let stages = stages_of(&circuit, &op, &law);
     let iq: f64 = stages.iter().map(|s| s.id_a).sum();

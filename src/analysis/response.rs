@@ -15,7 +15,8 @@ use nalgebra::DVector;
 use num_complex::Complex64;
 
 use super::twoport::{mu, output_noise, output_selector, resistor_noise, rollett_k, NoiseSource, TwoPort, BOLTZMANN, T0_K};
-use crate::engine::{operating_point, Workspace, Element, Netlist, Node, OperatingPoint, SmallSignal};
+use super::transfer::stage_operating_point;
+use crate::engine::{Workspace, Element, Netlist, Node, OperatingPoint, SmallSignal};
 use crate::error::Result;
 use crate::part::Part;
 use crate::stage::{build_run, Component, Components, StageCircuit};
@@ -199,7 +200,7 @@ impl Linearised {
     pub fn run(part: &Part, components: &Components, copies: usize, z0: f64) -> Result<Self> {
         let law = part.law()?;
         let circuit = build_run(part, &law, components, copies)?;
-        let op = operating_point(&circuit.netlist, None)?;
+        let op = stage_operating_point(part, &law, &circuit.netlist)?;
         let main = SmallSignal::at(&circuit.netlist, &op)?;
         let nodes = &circuit.nodes;
 

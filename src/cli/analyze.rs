@@ -1,6 +1,7 @@
 //! `halfrail analyze FILE` (the SPEC §4 sections: `bias`, and `ac`, `loop` — with
 //! the compensation helper's answers — and `large` when the document has an
-//! `analysis` section), `halfrail sweep FILE --csv`, `halfrail wave FILE --csv` and
+//! `analysis` section and its stage settles; `large_withheld` says why not when it
+//! oscillates), `halfrail sweep FILE --csv`, `halfrail wave FILE --csv` and
 //! `halfrail touchstone FILE`.
 
 use std::path::PathBuf;
@@ -37,16 +38,23 @@ pub fn run(args: Args) -> Result<String, Failure> {
         None => None,
     };
     // Large-signal levels are powers available from a source: with none fitted there
-    // are no such figures (null), while the rest of the report stands.
-    let large = match (&document.analysis, source_resistance(&stage)) {
-        (Some(_), Ok(_)) => Some(document.large(&mut |_| {})?),
-        _ => None,
+    // are no such figures (null), while the rest of the report stands. A stage
+    // whose loop grows by itself gets none either, and is told why.
+    let grows = small_signal.as_ref().is_some_and(|((_, stability), _)| stability.poles_growing > 0);
+    let (large, withheld) = match (&document.analysis, source_resistance(&stage)) {
+        (Some(_), Ok(_)) => match document.large(&mut |_| {}) {
+            Ok(large) => (Some(large), None),
+            Err(refusal) if grows => (None, Some(refusal.reason)),
+            Err(e) => return Err(e.into()),
+        },
+        _ => (None, None),
     };
     let report = AnalyzeReport {
         bias: BiasReport { bias: &bias, curve: &curve },
         ac: small_signal.as_ref().map(|((response, _), _)| AcReport(response)),
         stability: small_signal.as_ref().map(|((_, stability), suggestions)| LoopSummary(stability, Some(suggestions))),
         large: large.as_ref().map(LargeSummary),
+        large_withheld: withheld.as_deref(),
     };
     Ok(format!("{}\n", to_json(&report)))
 }

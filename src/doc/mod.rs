@@ -447,9 +447,16 @@ pub const DEFAULT_SNR_DB: f64 = 10.0;
 /// (common practice: keep a few dB clear of compression).
 pub const DEFAULT_HEADROOM_WARN_DB: f64 = 6.0;
 
-/// The most stage blocks in a row: each run is solved as one dense circuit, whose
-/// cost grows with the cube of its length (64 stages take about 0.1 s natively).
-pub const MAX_RUN_STAGES: usize = 64;
+/// The most inverters in a run of stage blocks: each run is solved as one dense
+/// circuit, whose cost grows with the cube of its size and whose operating point is
+/// the harder to find the more inverters are coupled directly (a 1000-block chain of
+/// runs of 64 seven-inverter stages took 30 s natively; of 9, 0.6 s).
+pub const MAX_RUN_INVERTERS: usize = 64;
+
+/// The most stage blocks in a row for a part of `part_stages` inverters.
+pub fn max_run_stages(part_stages: u32) -> usize {
+    (MAX_RUN_INVERTERS / part_stages.max(1) as usize).max(1)
+}
 
 /// An error of the circuit engine, which knows no document, placed in the
 /// document: the engine names the stage's elements by their keys (`r_fb_ohm`), so

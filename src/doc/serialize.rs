@@ -242,15 +242,19 @@ pub struct AnalyzeReport<'a> {
     pub ac: Option<AcReport<'a>>,
     pub stability: Option<super::LoopSummary<'a>>,
     pub large: Option<super::LargeSummary<'a>>,
+    /// Why `large` is null for a stage that has a source and an `analysis`
+    /// section: its loop grows by itself, so large-signal figures mean nothing.
+    pub large_withheld: Option<&'a str>,
 }
 
 impl Serialize for AnalyzeReport<'_> {
     fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let mut out = serializer.serialize_struct("AnalyzeReport", 4)?;
+        let mut out = serializer.serialize_struct("AnalyzeReport", 5)?;
         out.serialize_field("bias", &self.bias)?;
         out.serialize_field("ac", &self.ac)?;
         out.serialize_field("loop", &self.stability)?;
         out.serialize_field("large", &self.large)?;
+        out.serialize_field("large_withheld", &self.large_withheld)?;
         out.end()
     }
 }

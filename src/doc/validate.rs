@@ -258,23 +258,26 @@ fn block(at: &str, b: &Block) -> Result<()> {
     optional_range(&format!("{at}.dc_w"), b.dc_w, Closed(0.0), Closed(1e3))
 }
 
-fn chain(c: &Chain) -> Result<()> {
+/// `part_stages`: the inverters in the part, which bound how many stage blocks a
+/// run may hold (`super::max_run_stages`).
+fn chain(c: &Chain, part_stages: u32) -> Result<()> {
     range("chain.input_dbm", c.input_dbm, Closed(-200.0), Closed(60.0))?;
     range("chain.bandwidth_hz", c.bandwidth_hz, Open(0.0), Closed(MAX_HZ))?;
     optional_range("chain.snr_wanted_db", c.snr_wanted_db, Closed(-20.0), Closed(100.0))?;
     optional_range("chain.headroom_warn_db", c.headroom_warn_db, Closed(0.0), Closed(100.0))?;
     list_length("chain.blocks", c.blocks.len())?;
+    let most = super::max_run_stages(part_stages);
     let mut in_a_row = 0;
     for (i, b) in c.blocks.iter().enumerate() {
         block(&format!("chain.blocks[{i}]"), b)?;
         in_a_row = if b.kind == BlockKind::Stage { in_a_row + 1 } else { 0 };
-        if in_a_row > super::MAX_RUN_STAGES {
+        if in_a_row > most {
             return Err(FieldError::new(
                 format!("chain.blocks[{i}]"),
                 format!(
-                    "more than {} stage blocks in a row: a run of directly coupled stages is solved as one circuit, of {} stages at most; put a pad, a filter or an amp between them",
-                    super::MAX_RUN_STAGES,
-                    super::MAX_RUN_STAGES
+                    "more than {most} stage blocks in a row: a run of directly coupled stages is solved as one circuit, of {} inverters at most \
+                     ({most} stages of this {part_stages}-inverter part); put a pad, a filter or an amp between them",
+                    super::MAX_RUN_INVERTERS
                 ),
             ));
         }
@@ -296,5 +299,5 @@ pub fn document(d: &Document) -> Result<()> {
     d.target.as_ref().map_or(Ok(()), target)?;
     d.tolerance.as_ref().map_or(Ok(()), tolerance)?;
     d.bench.as_ref().map_or(Ok(()), bench)?;
-    d.chain.as_ref().map_or(Ok(()), chain)
+    d.chain.as_ref().map_or(Ok(()), |c| chain(c, d.part.as_ref().map_or(1, |p| p.stages)))
 }

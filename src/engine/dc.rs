@@ -107,21 +107,39 @@ impl Problem<'_> {
             }
             let largest = step.rows(0, self.layout.nodes).amax();
             let clamped = largest > MAX_STEP_V;
+            let norm = residual.norm();
+            // A long step is first tried with each node's move clamped on its own:
+            // scaling the whole step down by its largest move can leave every other
+            // node where it was (a part of many stages whose last node must cross
+            // the supply crawled 0.5 V at a time along one node and stalled). If that
+            // does not lower the imbalance, the step scaled down as a whole, a
+            // descent direction, is taken instead, with backtracking.
+            let own_clamp = clamped.then(|| {
+                let mut each = step.clone();
+                for v in each.rows_mut(0, self.layout.nodes).iter_mut() {
+                    *v = v.clamp(-MAX_STEP_V, MAX_STEP_V);
+                }
+                let trial = &x + each;
+                let (r, j) = self.evaluate(&trial, scale, gmin);
+                (trial, r, j)
+            });
             if clamped {
                 step *= MAX_STEP_V / largest;
             }
             // Backtrack until the imbalance falls (or accept the smallest step tried);
             // once the imbalance is within tolerance, rounding decides whether it
             // falls further, so the full step is taken.
-            let norm = residual.norm();
             let mut alpha = 1.0;
-            let (next, next_residual, next_jacobian) = loop {
-                let trial = &x + &step * alpha;
-                let (r, j) = self.evaluate(&trial, scale, gmin);
-                if settled || r.norm() < norm || alpha < 1e-3 {
-                    break (trial, r, j);
-                }
-                alpha *= 0.5;
+            let (next, next_residual, next_jacobian) = match own_clamp {
+                Some((trial, r, j)) if r.norm() < norm => (trial, r, j),
+                _ => loop {
+                    let trial = &x + &step * alpha;
+                    let (r, j) = self.evaluate(&trial, scale, gmin);
+                    if settled || r.norm() < norm || alpha < 1e-3 {
+                        break (trial, r, j);
+                    }
+                    alpha *= 0.5;
+                },
             };
             let moved = (&next - &x).amax();
             x = next;

@@ -70,7 +70,8 @@ fn main() {
         let mut doc: Value = domain::draw(seed).doc;
         doc["tolerance"]["trials"] = json!(2000);
         // 1000 blocks: runs of stages as long as the format allows, pads between.
-        let run = halfrail::doc::MAX_RUN_STAGES;
+        let stages = doc["part"]["stages"].as_u64().unwrap_or(1) as u32;
+        let run = halfrail::doc::max_run_stages(stages);
         let blocks: Vec<Value> = (0..1000).map(|i| if i % (run + 1) == run { json!({"kind": "pad", "loss_db": 1}) } else { json!({"kind": "stage"}) }).collect();
         doc["chain"]["blocks"] = json!(blocks);
         let Ok(d) = load(&doc.to_string()) else { continue };

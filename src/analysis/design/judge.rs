@@ -3,7 +3,7 @@
 //! for a candidate, whether its closed loop is stable at all.
 
 use crate::math;
-use crate::analysis::stability::{grows, natural_frequencies};
+use crate::analysis::stability::{fastest_growing, growth_hz};
 use crate::analysis::Linearised;
 use crate::error::Result;
 use crate::part::Part;
@@ -82,11 +82,8 @@ impl Judge<'_> {
 /// The closed loop's verdict from its natural frequencies: the fastest-growing one
 /// names the oscillation.
 pub fn stability(lin: &Linearised) -> Result<Stability> {
-    let small = lin.small_signal();
-    let poles = natural_frequencies(&small.g, &small.c)?;
-    let worst = poles.iter().copied().filter(|&p| grows(p)).max_by(|a, b| a.re.total_cmp(&b.re));
-    Ok(match worst {
+    Ok(match fastest_growing(lin.small_signal())? {
         None => Stability::Stable,
-        Some(p) => Stability::Oscillates { f_hz: (p.im != 0.0).then(|| p.im.abs() / std::f64::consts::TAU) },
+        Some(p) => Stability::Oscillates { f_hz: growth_hz(p) },
     })
 }

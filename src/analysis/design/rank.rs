@@ -93,10 +93,7 @@ impl Candidate {
     pub fn notes(&self) -> Vec<String> {
         let mut notes = Vec::new();
         if let Stability::Oscillates { f_hz } = self.stability {
-            notes.push(match f_hz {
-                Some(f) => format!("the loop oscillates: a natural frequency grows at about {}", crate::units::format_eng(f, Some(crate::units::Unit::Hertz), 3)),
-                None => "the loop runs away: a real natural frequency grows".to_string(),
-            });
+            notes.push(crate::analysis::stability::growth_words(f_hz));
         }
         if self.part_sets_gain {
             notes.push(format!(

@@ -22,7 +22,7 @@ use crate::part::Part;
 use crate::stage::{Component, Components};
 use crate::values::Series;
 
-use super::{continuous_phase, grows, margins, natural_frequencies, NoCrossover, ReturnRatio};
+use super::{continuous_phase, fastest_growing, margins, NoCrossover, ReturnRatio};
 
 /// The margin asked for when the user says nothing (common practice: 60°, a step
 /// response with a few per cent of overshoot).
@@ -142,8 +142,7 @@ impl Judged {
 /// The loop of `lin` judged over `grid`: the poles first (most candidates of a loop
 /// that needs help are still unstable, and then the margin is not worth sweeping for).
 fn judge(lin: &Linearised, f_design: f64, grid: &[f64]) -> Result<Judged> {
-    let small = lin.small_signal();
-    if natural_frequencies(&small.g, &small.c)?.iter().any(|&p| grows(p)) {
+    if fastest_growing(lin.small_signal())?.is_some() {
         return Ok(Judged { stable: false, margin_deg: None, no_crossover: None });
     }
     let ratio = ReturnRatio::new(lin)?;

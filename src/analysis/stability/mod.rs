@@ -28,7 +28,7 @@ mod step;
 pub use compensate::{compensate, Knob, Suggestion, DEFAULT_GAIN_TOL_DB, WANTED_MARGIN_DEG};
 pub use margins::{continuous_phase, margins, unwrap_near, Margins, NoCrossover};
 pub use nyquist::{encirclement, Encirclement};
-pub use poles::{grows, least_damped_pair, natural_frequencies, on_axis, Pair, ON_AXIS_WITHIN};
+pub use poles::{fastest_growing, growth_hz, growth_words, grows, least_damped_pair, natural_frequencies, on_axis, Pair, ON_AXIS_WITHIN};
 pub use return_ratio::ReturnRatio;
 pub use step::{settling, step_response, Settling, Step, SETTLE_BAND};
 

@@ -298,6 +298,27 @@ fn balance(a: &mut DMatrix<f64>) {
     }
 }
 
+/// The closed loop's fastest-growing natural frequency, if one grows: the one that
+/// names the oscillation.
+pub fn fastest_growing(small: &crate::engine::SmallSignal) -> Result<Option<Complex64>> {
+    let poles = natural_frequencies(&small.g, &small.c)?;
+    Ok(poles.into_iter().filter(|&p| grows(p)).max_by(|a, b| a.re.total_cmp(&b.re)))
+}
+
+/// The frequency a growing natural frequency `p` oscillates at (`None` for a real
+/// one, which runs away instead).
+pub fn growth_hz(p: Complex64) -> Option<f64> {
+    (p.im != 0.0).then(|| p.im.abs() / std::f64::consts::TAU)
+}
+
+/// What a growing natural frequency does to the loop, in words, by `growth_hz`.
+pub fn growth_words(f_hz: Option<f64>) -> String {
+    match f_hz {
+        Some(f) => format!("the loop oscillates: a natural frequency grows at about {}", crate::units::format_eng(f, Some(crate::units::Unit::Hertz), 3)),
+        None => "the loop runs away: a real natural frequency grows".to_string(),
+    }
+}
+
 /// Whether a natural frequency grows: a positive real part beyond rounding.
 pub fn grows(s: Complex64) -> bool {
     s.re > ON_AXIS_WITHIN * math::norm(s)

@@ -109,6 +109,7 @@ pub fn analyse(part: &Part, c: &Components, f_hz: f64, input_dbm: f64, progress:
     let source_ohm = source_resistance(c)?;
     let load_ohm = c.get(Component::LoadOhm);
     let time = TimeDomain::new(part, c)?;
+    time.check_settles()?;
     let amplitude = emf_amplitude(input_dbm, source_ohm);
     let ceiling_dbm = pin_ceiling_dbm(part.vdd, time.gain_to_input(f_hz)?, source_ohm);
     if input_dbm > ceiling_dbm {

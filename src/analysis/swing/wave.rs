@@ -8,8 +8,9 @@ use crate::math;
 use nalgebra::DVector;
 
 use super::drive::{emf_at, Record, Tone};
-use crate::analysis::Held;
-use crate::engine::{operating_point, DcSystem, Netlist, Node, OperatingPoint, SmallSignal, Transient};
+use crate::analysis::stability::{fastest_growing, growth_hz, growth_words};
+use crate::analysis::{stage_operating_point, Held};
+use crate::engine::{DcSystem, Netlist, Node, OperatingPoint, SmallSignal, Transient};
 use crate::error::{FieldError, Result};
 use crate::part::Part;
 use crate::stage::{build, Components, StageCircuit};
@@ -63,13 +64,30 @@ impl TimeDomain {
         part.check_supply()?;
         let law = part.law()?;
         let circuit = build(part, &law, c)?;
-        let op = operating_point(&circuit.netlist, None)?;
+        let op = stage_operating_point(part, &law, &circuit.netlist)?;
         let small = SmallSignal::at(&circuit.netlist, &op)?;
         Ok(TimeDomain { vdd: part.vdd, circuit, op, small })
     }
 }
 
 impl TimeDomain {
+    /// Refuses a stage whose closed loop grows by itself: its output would be the
+    /// oscillation, not the signal, so no large-signal figure would mean anything
+    /// (and the transient of an oscillator is the slowest run there is: 7.5 s for one
+    /// nine-stage document of the property suite).
+    pub fn check_settles(&self) -> Result<()> {
+        match fastest_growing(&self.small)? {
+            None => Ok(()),
+            Some(p) => Err(FieldError::new(
+                "stage",
+                format!(
+                    "{}, so the stage's output is its own oscillation, not the signal: no large-signal figures (the loop analysis shows where it grows and how to compensate it)",
+                    growth_words(growth_hz(p))
+                ),
+            )),
+        }
+    }
+
     /// |v(last inverter output)| per volt of EMF at `f_hz`, small-signal.
     pub fn gain_to_last_stage(&self, f_hz: f64) -> Result<f64> {
         self.gain_to(*self.circuit.nodes.outputs.last().expect("a part has a stage"), f_hz)
@@ -180,7 +198,7 @@ impl QuasiStatic {
         part.check_supply()?;
         let law = part.law()?;
         let circuit = build(part, &law, c)?;
-        let op = operating_point(&circuit.netlist, None)?;
+        let op = stage_operating_point(part, &law, &circuit.netlist)?;
         let Held { netlist, op } = Held::new(&circuit, &op)?;
         Ok(QuasiStatic { netlist, source: circuit.source, nodes: circuit.nodes, op })
     }
