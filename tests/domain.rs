@@ -140,6 +140,14 @@ fn loop_agrees(report: &Value, seed: u64) {
 /// The large-signal figures agree with each other and with the small signal.
 fn large_agrees(report: &Value, seed: u64) {
     let large = &report["large"];
+    // A loop that grows by itself gets no large-signal figures, only the reason.
+    let grows = report["loop"]["poles_growing"].as_u64().is_some_and(|n| n > 0);
+    let withheld = report["large_withheld"].as_str();
+    if grows {
+        assert!(large.is_null(), "seed {seed}: large-signal figures for a loop that grows: {large}");
+    } else {
+        assert!(withheld.is_none(), "seed {seed}: large-signal figures withheld from a loop that settles: {withheld:?}");
+    }
     if large.is_null() || report["loop"]["stable"] == json!(false) {
         return;
     }

@@ -163,3 +163,48 @@ fn an_engine_error_is_placed_in_the_document() {
     // A field already in the document stays.
     assert_eq!(located(FieldError::new("stage.r_fb_ohm", "must be > 0")).field, "stage.r_fb_ohm");
 }
+
+#[test]
+fn a_stage_whose_loop_grows_gets_no_large_signal_figures_but_the_reason() {
+    // BASE with three inverters and 180R/1k8: the loop oscillates (item 4's pair).
+    let mut doc = base();
+    doc["part"]["stages"] = json!(3);
+    doc["stage"]["r_in_ohm"] = json!("180R");
+    doc["stage"]["r_fb_ohm"] = json!("1k8");
+    let d = load(&doc.to_string()).unwrap();
+    let (_, stability) = d.stability().unwrap();
+    assert!(stability.poles_growing > 0, "{:?}", stability.verdict);
+    let e = d.large(&mut |_| {}).unwrap_err();
+    assert_eq!(e.field, "stage");
+    assert!(e.reason.starts_with("the loop oscillates: a natural frequency grows at about ") && e.reason.contains("no large-signal figures"), "{e}");
+    // The same stage compensated to settle keeps its figures.
+    doc["stage"]["r_fb_ohm"] = json!("2k2");
+    doc["part"]["stages"] = json!(1);
+    let d = load(&doc.to_string()).unwrap();
+    assert_eq!(d.stability().unwrap().1.poles_growing, 0);
+    assert!(d.large(&mut |_| {}).unwrap().intercept.is_some());
+}
+
+#[test]
+fn a_nine_inverter_stage_at_the_open_loop_limit_biases_by_newton_from_its_self_bias() {
+    // Found as the slowest design of the property suite (seed 12451973): a
+    // nine-inverter EKV part, 10 MΩ feedback (design's open-loop ceiling) and a 25 Ω
+    // DC-coupled load. Started from zero, or with the whole Newton step scaled to its
+    // largest move, every solve needed source stepping (25 ms each, 147 per design).
+    let doc = json!({"halfrail":1,
+        "part":{"model":"ekv","n_slope":1.76,"stages":9,"vdd_v":4.93,"kn_a_per_v2":1.045e-3,"kp_a_per_v2":2.11e-4,"vtn_v":0.686,"vtp_v":-0.355,
+                "lambda_n_per_v":0.124,"lambda_p_per_v":0.142,"cgs_f":1.16e-12,"cgd_f":1.19e-14,"cdb_f":1.2e-12,"temp_c":-4.0},
+        "stage":{"source_ohm":16113,"shunt_ohm":2.17e7,"c_in_f":0.156,"r_in_ohm":29536,"r_fb_ohm":1e7,"load_ohm":24.9,"load_f":7.3e-13},
+        "analysis":{"f_design_hz":8.5e7,"f_start_hz":8.2e4,"f_stop_hz":9.2e8}});
+    let d = load(&doc.to_string()).unwrap();
+    let (part, stage) = d.part_and_stage().unwrap();
+    let lin = halfrail::analysis::Linearised::new(&part, &stage, 50.0).unwrap();
+    let op = lin.operating_point();
+    assert_eq!(op.method, halfrail::engine::Method::Newton, "{} iterations", op.iterations);
+    // The last inverter cannot pull 25 Ω up: its output sits low and every node is
+    // finite and within the rails.
+    let vdd = 4.93;
+    assert!(op.x.iter().take(20).all(|v| v.is_finite()));
+    let out = op.voltage(*lin.circuit().nodes.outputs.last().unwrap());
+    assert!((0.0..vdd / 2.0).contains(&out), "{out}");
+}
