@@ -9,6 +9,7 @@
 //! of the operating point stay aligned with their elements.
 
 use crate::math;
+use crate::units::power_ratio_db;
 use std::cell::RefCell;
 
 use nalgebra::DVector;
@@ -68,6 +69,11 @@ impl Point {
 
     pub fn mu(&self) -> f64 {
         mu(&self.s)
+    }
+
+    /// Transducer power gain GT in dB, when `gt` is known.
+    pub fn gt_db(&self) -> Option<f64> {
+        self.gt.map(power_ratio_db)
     }
 
     /// Spot noise figure in dB (IEEE: source at 290 K), when the source has resistance.

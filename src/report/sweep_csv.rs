@@ -21,7 +21,7 @@ pub fn sweep_csv(response: &Response) -> String {
             Some(p.f_hz),
             Some(p.gain_db()),
             Some(p.phase_deg()),
-            p.gt.map(|g| 10.0 * math::log10(g)),
+            p.gt_db(),
             Some(*delay),
             p.zin.map(|z| z.re),
             p.zin.map(|z| z.im),

@@ -59,7 +59,7 @@ impl Judge<'_> {
         let p = lin.at(self.f_design, c)?;
         let gain_db = match self.kind {
             GainKind::Voltage => p.gain_db(),
-            GainKind::Power => p.gt.map_or(f64::NEG_INFINITY, |g| 10.0 * math::log10(g)),
+            GainKind::Power => p.gt_db().unwrap_or(f64::NEG_INFINITY),
         };
         let return_loss_db = c.get(Component::SourceOhm).filter(|&r| r > 0.0).and_then(|rs| p.return_loss_db(rs));
         let s11_db = 20.0 * math::log10(math::norm(p.s[0][0]));
