@@ -5,7 +5,7 @@
 use crate::math;
 use serde::ser::{Serialize, SerializeStruct, Serializer};
 
-use crate::units::{Levels, Mismatch, Unit};
+use crate::units::{voltage_ratio_db, Levels, Mismatch, Unit};
 use crate::values::{Nearest, RatioPair, Series};
 
 /// `impl Serialize` for a core struct as a map of `"key" => field`.
@@ -343,7 +343,7 @@ impl Serialize for AcReport<'_> {
     fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
         let r = self.0;
         let p = &r.design;
-        let db = |x: f64| (x > 0.0).then(|| 20.0 * math::log10(x));
+        let db = |x: f64| (x > 0.0).then(|| voltage_ratio_db(x));
         let mut out = serializer.serialize_struct("AcReport", 20)?;
         out.serialize_field("gain_db", &p.gain_db())?;
         out.serialize_field("phase_deg", &p.phase_deg())?;
@@ -383,7 +383,7 @@ impl Serialize for ResponseReport<'_> {
         let column = |f: &dyn Fn(&crate::analysis::Point) -> Option<f64>| -> Vec<Option<f64>> {
             r.points.iter().map(|p| f(p).filter(|v| v.is_finite())).collect()
         };
-        let db = |x: f64| (x > 0.0).then(|| 20.0 * math::log10(x));
+        let db = |x: f64| (x > 0.0).then(|| voltage_ratio_db(x));
         let mut out = serializer.serialize_struct("ResponseReport", 16)?;
         out.serialize_field("f_design_hz", &self.f_design_hz)?;
         out.serialize_field("design", &AcReport(r))?;
