@@ -15,7 +15,7 @@
 //! assert!((c.total().nf_db - 5.0).abs() < 1e-12);
 //! ```
 
-use crate::math;
+use crate::units::{db_power_ratio, power_ratio_db};
 use crate::analysis::{BOLTZMANN, T0_K};
 
 /// One block as the cascade sees it: matched at both ends.
@@ -117,14 +117,6 @@ impl Cascade {
 /// How far a block's gain has fallen at its 1 dB compression point, dB.
 const COMPRESSION_DB: f64 = 1.0;
 
-fn lin(db: f64) -> f64 {
-    math::pow(10f64, db / 10.0)
-}
-
-fn db(x: f64) -> f64 {
-    10.0 * math::log10(x)
-}
-
 /// kT0, W/Hz (the 2019 SI's exact k at the IEEE reference temperature).
 pub fn kt0_w_per_hz() -> f64 {
     BOLTZMANN * T0_K
@@ -132,7 +124,7 @@ pub fn kt0_w_per_hz() -> f64 {
 
 /// The budget of `blocks` driven at `levels`.
 pub fn cascade(blocks: &[Block], levels: &Levels) -> Cascade {
-    let floor_per_f_dbm = db(kt0_w_per_hz() * levels.bandwidth_hz / 1e-3);
+    let floor_per_f_dbm = power_ratio_db(kt0_w_per_hz() * levels.bandwidth_hz / 1e-3);
     let mut gain = 1.0; // linear, before the block
     let mut f = 1.0;
     let mut inv_iip3 = 0.0; // 1/mW
@@ -141,25 +133,25 @@ pub fn cascade(blocks: &[Block], levels: &Levels) -> Cascade {
     let mut distortion_terms = Vec::with_capacity(blocks.len());
     let mut stages = Vec::with_capacity(blocks.len());
     for b in blocks {
-        let (g, fb) = (lin(b.gain_db), lin(b.nf_db));
+        let (g, fb) = (db_power_ratio(b.gain_db), db_power_ratio(b.nf_db));
         let noise_term = (fb - 1.0) / gain;
         f += noise_term;
         noise_terms.push(noise_term);
         // A block's input intercept is its output one less its gain.
-        let term = b.oip3_dbm.map_or(0.0, |o| gain / (lin(o) / g));
+        let term = b.oip3_dbm.map_or(0.0, |o| gain / (db_power_ratio(o) / g));
         inv_iip3 += term;
         distortion_terms.push(term);
         // At its 1 dB point a block's gain is 1 dB down: IP1dB = OP1dB − G + 1 dB.
-        inv_ip1 += b.op1db_dbm.map_or(0.0, |o| gain / (lin(o) / g * lin(COMPRESSION_DB)));
+        inv_ip1 += b.op1db_dbm.map_or(0.0, |o| gain / (db_power_ratio(o) / g * db_power_ratio(COMPRESSION_DB)));
         gain *= g;
-        let gain_db = db(gain);
-        let iip3_dbm = (inv_iip3 > 0.0).then(|| db(1.0 / inv_iip3));
-        let ip1db_dbm = (inv_ip1 > 0.0).then(|| db(1.0 / inv_ip1));
+        let gain_db = power_ratio_db(gain);
+        let iip3_dbm = (inv_iip3 > 0.0).then(|| power_ratio_db(1.0 / inv_iip3));
+        let ip1db_dbm = (inv_ip1 > 0.0).then(|| power_ratio_db(1.0 / inv_ip1));
         let signal_dbm = levels.input_dbm + gain_db;
-        let noise_dbm = floor_per_f_dbm + db(f) + gain_db;
+        let noise_dbm = floor_per_f_dbm + power_ratio_db(f) + gain_db;
         stages.push(Cumulative {
             gain_db,
-            nf_db: db(f),
+            nf_db: power_ratio_db(f),
             noise_temp_k: T0_K * (f - 1.0),
             iip3_dbm,
             oip3_dbm: iip3_dbm.map(|i| i + gain_db),
@@ -173,8 +165,8 @@ pub fn cascade(blocks: &[Block], levels: &Levels) -> Cascade {
         });
     }
     let total_f = f;
-    let noise_floor_in_dbm = floor_per_f_dbm + db(total_f);
-    let iip3 = (inv_iip3 > 0.0).then(|| db(1.0 / inv_iip3));
+    let noise_floor_in_dbm = floor_per_f_dbm + power_ratio_db(total_f);
+    let iip3 = (inv_iip3 > 0.0).then(|| power_ratio_db(1.0 / inv_iip3));
     let share = |terms: &[f64], total: f64| terms.iter().map(|t| if total > 0.0 { t / total } else { 0.0 }).collect();
     Cascade {
         sfdr_db: iip3.map(|i| 2.0 / 3.0 * (i - noise_floor_in_dbm)),

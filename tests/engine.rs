@@ -5,6 +5,11 @@ use halfrail::engine::{operating_point, Element, Netlist, Node, SmallSignal};
 use nalgebra::{DMatrix, DVector};
 use num_complex::Complex64;
 use proptest::prelude::*;
+use rand::Rng;
+
+#[path = "common/rng.rs"]
+#[allow(dead_code)]
+mod draw;
 
 #[test]
 fn divider_and_current_source() {
@@ -84,8 +89,8 @@ proptest! {
     /// ways, agrees with faer's.
     #[test]
     fn complex_solve_matches_faer(size in 2usize..12, seed in any::<u64>(), log_omega in 0.0f64..10.0) {
-        let mut state = seed | 1;
-        let mut next = || { state ^= state << 13; state ^= state >> 7; state ^= state << 17; (state % 20_000) as f64 / 10_000.0 - 1.0 };
+        let mut rng = draw::seeded(seed);
+        let mut next = || rng.random_range(-1.0..1.0);
         let mut g = DMatrix::from_fn(size, size, |_, _| next() * 1e-3);
         for i in 0..size { g[(i, i)] += 2e-2; }
         let c = DMatrix::from_fn(size, size, |_, _| next() * 1e-12);
@@ -115,8 +120,8 @@ proptest! {
     /// reported singular rather than solved.
     #[test]
     fn pivoting_lu_matches_faer(size in 2usize..10, seed in any::<u64>()) {
-        let mut state = seed | 1;
-        let mut next = || { state ^= state << 13; state ^= state >> 7; state ^= state << 17; (state % 20_000) as f64 / 10_000.0 - 1.0 };
+        let mut rng = draw::seeded(seed);
+        let mut next = || rng.random_range(-1.0..1.0);
         let mut a = DMatrix::from_fn(size, size, |_, _| Complex64::new(next(), next()));
         a[(0, 0)] = Complex64::new(0.0, 0.0);
         let b = DVector::from_fn(size, |_, _| Complex64::new(next(), next()));
@@ -141,8 +146,8 @@ proptest! {
     #[test]
     fn real_lu_matches_faer(size in 2usize..10, seed in any::<u64>()) {
         use faer::linalg::solvers::Solve;
-        let mut state = seed | 1;
-        let mut next = || { state ^= state << 13; state ^= state >> 7; state ^= state << 17; (state % 20_000) as f64 / 10_000.0 - 1.0 };
+        let mut rng = draw::seeded(seed);
+        let mut next = || rng.random_range(-1.0..1.0);
         let mut a = DMatrix::from_fn(size, size, |_, _| next());
         a[(0, 0)] = 0.0;
         let b = DVector::from_fn(size, |_, _| next());

@@ -4,31 +4,20 @@
 
 use halfrail::analysis::{default_params, fit, predict, Param, Readings};
 use halfrail::part::{preset, Part};
+use rand_chacha::ChaCha8Rng;
 
-/// A small deterministic PRNG for the synthetic noise (xorshift; the fit itself uses none).
-struct Noise(u64);
-impl Noise {
-    /// Approximately standard normal: the sum of 12 uniforms less 6.
-    fn normal(&mut self) -> f64 {
-        (0..12)
-            .map(|_| {
-                self.0 ^= self.0 << 13;
-                self.0 ^= self.0 >> 7;
-                self.0 ^= self.0 << 17;
-                (self.0 >> 11) as f64 / (1u64 << 53) as f64
-            })
-            .sum::<f64>()
-            - 6.0
-    }
-}
+/// The seeded generator of the synthetic noise (the fit itself uses none).
+#[path = "common/rng.rs"]
+#[allow(dead_code)]
+mod draw;
 
 /// The readings a bench would give for `truth`, with each perturbed by `amount`·σ
 /// of normal noise (σ taken at the noiseless reading, as the fit takes it).
-fn synthesise(truth: &Part, template: &Readings, noise: &mut Noise, amount: f64) -> Readings {
+fn synthesise(truth: &Part, template: &Readings, noise: &mut ChaCha8Rng, amount: f64) -> Readings {
     let exact = if amount == 0.0 { template.clone() } else { synthesise(truth, template, noise, 0.0) };
     let rows = predict(truth, &exact).unwrap();
     let mut r = exact.clone();
-    let mut it = rows.iter().map(|(_, _, fitted, sigma)| fitted + amount * noise.normal() * sigma);
+    let mut it = rows.iter().map(|(_, _, fitted, sigma)| fitted + amount * draw::normal(noise) * sigma);
     if r.idd_a.is_some() {
         r.idd_a = it.next();
     }
@@ -70,7 +59,7 @@ fn truth() -> Part {
 #[test]
 fn noiseless_readings_are_fitted_exactly() {
     let truth = truth();
-    let readings = synthesise(&truth, &template(), &mut Noise(1), 0.0);
+    let readings = synthesise(&truth, &template(), &mut draw::seeded(1), 0.0);
     let start = preset("unbuffered-5v").unwrap().part.clone();
     let params = default_params(&readings);
     assert_eq!(params, [Param::Kn, Param::Kp, Param::Lambda, Param::Cap]);
@@ -90,7 +79,7 @@ fn noisy_readings_are_fitted_within_the_reported_uncertainty() {
     let truths = [truth.nmos.k, truth.pmos.k, truth.nmos.lambda, truth.caps.cgs + truth.caps.cgd + truth.caps.cdb];
     // Over several noise draws, each parameter lands within 3σ of the truth.
     for seed in 1..=6 {
-        let readings = synthesise(&truth, &template(), &mut Noise(seed * 7919), 1.0);
+        let readings = synthesise(&truth, &template(), &mut draw::seeded(seed * 7919), 1.0);
         let f = fit(&start, &readings, &default_params(&readings)).unwrap();
         for (p, t) in f.parameters.iter().zip(truths) {
             assert!(p.sigma > 0.0 && p.sigma.is_finite(), "{}", p.name);
@@ -105,7 +94,7 @@ fn thresholds_from_transfer_points() {
     let truth = truth();
     let mut t = template();
     t.curve = vec![(2.0, 1.0), (2.3, 1.0), (2.6, 1.0)];
-    let readings = synthesise(&truth, &t, &mut Noise(3), 0.0);
+    let readings = synthesise(&truth, &t, &mut draw::seeded(3), 0.0);
     let start = preset("unbuffered-5v").unwrap().part.clone();
     let params = default_params(&readings);
     assert_eq!(params.len(), 6);

@@ -18,46 +18,20 @@ use nalgebra::DMatrix;
 use num_complex::Complex64;
 use proptest::prelude::*;
 use proptest::test_runner::{Config, TestCaseError, TestRunner};
+use rand::Rng;
+use rand_chacha::ChaCha8Rng;
 
 #[path = "common/domain.rs"]
 #[allow(dead_code)]
 mod domain_gen;
 
+#[path = "common/rng.rs"]
+#[allow(dead_code)]
+mod draw;
+
 // ---------------------------------------------------------------------------
 // Helpers
 // ---------------------------------------------------------------------------
-
-/// The deterministic xorshift of tests/engine.rs, giving uniform numbers in [0, 1).
-struct Xorshift(u64);
-
-impl Xorshift {
-    fn new(seed: u64) -> Self {
-        Xorshift(seed | 1)
-    }
-    fn next_u64(&mut self) -> u64 {
-        let s = &mut self.0;
-        *s ^= *s << 13;
-        *s ^= *s >> 7;
-        *s ^= *s << 17;
-        *s
-    }
-    fn unit(&mut self) -> f64 {
-        (self.next_u64() >> 11) as f64 / (1u64 << 53) as f64
-    }
-    fn uniform(&mut self, lo: f64, hi: f64) -> f64 {
-        lo + (hi - lo) * self.unit()
-    }
-    /// Log-uniform between `lo` and `hi`.
-    fn log(&mut self, lo: f64, hi: f64) -> f64 {
-        (lo.ln() + (hi.ln() - lo.ln()) * self.unit()).exp()
-    }
-    fn chance(&mut self, p: f64) -> bool {
-        self.unit() < p
-    }
-    fn below(&mut self, n: usize) -> usize {
-        (self.next_u64() % n as u64) as usize
-    }
-}
 
 /// T sampled at `freqs` from a closure of f (Hz).
 fn sampled(freqs: &[f64], t: &impl Fn(f64) -> Complex64) -> Vec<Complex64> {
@@ -355,7 +329,7 @@ fn faer_poles(g: &DMatrix<f64>, c: &DMatrix<f64>, infinite_above: f64) -> Vec<Co
 /// infinity); without, every node has a capacitor to ground. Returns the network and,
 /// for its operating point, the same network with the held node also held at DC by
 /// a resistor (element for element, so the layouts agree).
-fn random_network(rng: &mut Xorshift, size: usize, held: bool, algebraic: bool) -> (Netlist, Netlist) {
+fn random_network(rng: &mut ChaCha8Rng, size: usize, held: bool, algebraic: bool) -> (Netlist, Netlist) {
     let mut n = Netlist::new();
     let nodes: Vec<Node> = (0..size).map(|k| n.node(&format!("n{k}"))).collect();
     let held_node = held.then(|| nodes[size - 1]);
@@ -366,39 +340,39 @@ fn random_network(rng: &mut Xorshift, size: usize, held: bool, algebraic: bool) 
         format!("{kind}{count}")
     };
     for &x in &resistive {
-        let ohms = rng.log(100.0, 100e3);
+        let ohms = draw::log_uniform(rng, 100.0, 100e3);
         n.add(name("Rg"), Element::Resistor { a: x, b: Node::GROUND, ohms });
     }
     for i in 0..resistive.len() {
         for j in i + 1..resistive.len() {
-            if rng.chance(0.4) {
-                let ohms = rng.log(100.0, 100e3);
+            if rng.random_bool(0.4) {
+                let ohms = draw::log_uniform(rng, 100.0, 100e3);
                 n.add(name("R"), Element::Resistor { a: resistive[i], b: resistive[j], ohms });
             }
         }
     }
     for &x in &nodes {
-        if Some(x) == held_node || !algebraic || rng.chance(0.7) {
-            let farads = rng.log(1e-12, 1e-9);
+        if Some(x) == held_node || !algebraic || rng.random_bool(0.7) {
+            let farads = draw::log_uniform(rng, 1e-12, 1e-9);
             n.add(name("Cg"), Element::Capacitor { a: x, b: Node::GROUND, farads });
         }
     }
     for i in 0..size {
         for j in i + 1..size {
-            if rng.chance(0.25) {
-                let farads = rng.log(1e-12, 1e-9);
+            if rng.random_bool(0.25) {
+                let farads = draw::log_uniform(rng, 1e-12, 1e-9);
                 n.add(name("C"), Element::Capacitor { a: nodes[i], b: nodes[j], farads });
             }
         }
     }
     // Transconductors drive resistive nodes (so the held node's row of G stays zero)
     // and read any node, the held one included.
-    let any = |rng: &mut Xorshift| if rng.chance(0.2) { Node::GROUND } else { nodes[rng.below(size)] };
-    for _ in 0..1 + rng.below(3) {
-        let a = resistive[rng.below(resistive.len())];
-        let b = if rng.chance(0.6) { Node::GROUND } else { resistive[rng.below(resistive.len())] };
+    let any = |rng: &mut ChaCha8Rng| if rng.random_bool(0.2) { Node::GROUND } else { nodes[rng.random_range(0..size)] };
+    for _ in 0..1 + rng.random_range(0..3) {
+        let a = resistive[rng.random_range(0..resistive.len())];
+        let b = if rng.random_bool(0.6) { Node::GROUND } else { resistive[rng.random_range(0..resistive.len())] };
         let (cp, cn) = (any(rng), any(rng));
-        let gm = rng.log(1e-4, 1e-2);
+        let gm = draw::log_uniform(rng, 1e-4, 1e-2);
         n.add(name("G"), Element::Vccs { a, b, cp, cn, gm });
     }
     let mut dc = n.clone();
@@ -432,7 +406,7 @@ fn worst_match(ours: &[Complex64], theirs: &[Complex64], absolute: f64) -> f64 {
 }
 
 fn check_poles_against_faer(seed: u64, size: usize, held: bool, algebraic: bool) -> std::result::Result<(), TestCaseError> {
-    let mut rng = Xorshift::new(seed);
+    let mut rng = draw::seeded(seed);
     let (ac, dc) = random_network(&mut rng, size, held, algebraic);
     let op = operating_point(&dc, None).map_err(|e| TestCaseError::fail(format!("operating point: {e}")))?;
     let small = SmallSignal::at(&ac, &op).map_err(|e| TestCaseError::fail(format!("linearise: {e}")))?;
@@ -615,20 +589,20 @@ fn arg_change(f: &impl Fn(f64) -> Result<Complex64>, a: (f64, Complex64), b: (f6
 
 /// A random part (1 or 3 stages) with the supply well above the two thresholds so it
 /// biases; parameters in the ranges of the presets (src/part/presets.rs) and beyond.
-fn random_part(rng: &mut Xorshift) -> Part {
-    let (vtn, vtp) = (rng.uniform(0.4, 1.0), rng.uniform(0.4, 1.0));
-    let model = if rng.chance(0.25) { Model::Ekv { slope: rng.uniform(1.2, 1.5) } } else { Model::SquareLaw };
+fn random_part(rng: &mut ChaCha8Rng) -> Part {
+    let (vtn, vtp) = (rng.random_range(0.4..1.0), rng.random_range(0.4..1.0));
+    let model = if rng.random_bool(0.25) { Model::Ekv { slope: rng.random_range(1.2..1.5) } } else { Model::SquareLaw };
     Part {
         model,
-        vdd: rng.uniform(vtn + vtp + 0.5, 5.5),
-        stages: if rng.chance(0.5) { 1 } else { 3 },
-        nmos: Mosfet { k: rng.log(0.5e-3, 10e-3), vt: vtn, lambda: rng.uniform(0.02, 0.15) },
-        pmos: Mosfet { k: rng.log(0.5e-3, 10e-3), vt: vtp, lambda: rng.uniform(0.02, 0.15) },
+        vdd: rng.random_range(vtn + vtp + 0.5..5.5),
+        stages: if rng.random_bool(0.5) { 1 } else { 3 },
+        nmos: Mosfet { k: draw::log_uniform(rng, 0.5e-3, 10e-3), vt: vtn, lambda: rng.random_range(0.02..0.15) },
+        pmos: Mosfet { k: draw::log_uniform(rng, 0.5e-3, 10e-3), vt: vtp, lambda: rng.random_range(0.02..0.15) },
         // Now and then a capacitance left out (0 F is a valid part: no element at all).
         caps: Capacitances {
-            cgs: rng.log(0.5e-12, 5e-12),
-            cgd: if rng.chance(0.15) { 0.0 } else { rng.log(0.2e-12, 2e-12) },
-            cdb: if rng.chance(0.15) { 0.0 } else { rng.log(0.5e-12, 5e-12) },
+            cgs: draw::log_uniform(rng, 0.5e-12, 5e-12),
+            cgd: if rng.random_bool(0.15) { 0.0 } else { draw::log_uniform(rng, 0.2e-12, 2e-12) },
+            cdb: if rng.random_bool(0.15) { 0.0 } else { draw::log_uniform(rng, 0.5e-12, 5e-12) },
         },
         gamma: 2.0 / 3.0,
         temp_c: 25.0,
@@ -637,21 +611,21 @@ fn random_part(rng: &mut Xorshift) -> Part {
 
 /// Random stage components around the demo's (src/doc/demo.halfrail.json): 50 Ω
 /// source, r_in, r_fb, optional input coupling, feedback capacitor, load R and C.
-fn random_stage(rng: &mut Xorshift) -> Components {
+fn random_stage(rng: &mut ChaCha8Rng) -> Components {
     let mut c = Components::default().with(Component::SourceOhm, Some(50.0));
-    if rng.chance(0.7) {
-        c.set(Component::CInF, Some(rng.log(10e-9, 1e-6)));
+    if rng.random_bool(0.7) {
+        c.set(Component::CInF, Some(draw::log_uniform(rng, 10e-9, 1e-6)));
     }
-    c.set(Component::RInOhm, Some(if rng.chance(0.1) { 0.0 } else { rng.log(50.0, 2e3) }));
-    c.set(Component::RFbOhm, Some(rng.log(500.0, 50e3)));
-    if rng.chance(0.4) {
-        c.set(Component::CFbF, Some(rng.log(0.5e-12, 20e-12)));
+    c.set(Component::RInOhm, Some(if rng.random_bool(0.1) { 0.0 } else { draw::log_uniform(rng, 50.0, 2e3) }));
+    c.set(Component::RFbOhm, Some(draw::log_uniform(rng, 500.0, 50e3)));
+    if rng.random_bool(0.4) {
+        c.set(Component::CFbF, Some(draw::log_uniform(rng, 0.5e-12, 20e-12)));
     }
-    if rng.chance(0.5) {
-        c.set(Component::LoadOhm, Some(rng.log(100.0, 10e3)));
+    if rng.random_bool(0.5) {
+        c.set(Component::LoadOhm, Some(draw::log_uniform(rng, 100.0, 10e3)));
     }
-    if rng.chance(0.5) {
-        c.set(Component::LoadF, Some(rng.log(1e-12, 50e-12)));
+    if rng.random_bool(0.5) {
+        c.set(Component::LoadF, Some(draw::log_uniform(rng, 1e-12, 50e-12)));
     }
     c
 }
@@ -671,7 +645,7 @@ fn bump(c: &Cell<usize>) {
 
 /// One random stage: the Nyquist count of F = 1 + T against the closed-loop poles.
 fn nyquist_case(seed: u64, tally: &Tally) -> std::result::Result<(), TestCaseError> {
-    let mut rng = Xorshift::new(seed);
+    let mut rng = draw::seeded(seed);
     let part = random_part(&mut rng);
     let stage = random_stage(&mut rng);
     bump(&tally.cases);

@@ -8,6 +8,11 @@ use halfrail::doc::{load, DEMO};
 use halfrail::error::Result;
 use halfrail::stage::Component;
 use proptest::prelude::*;
+use rand::Rng;
+
+#[path = "common/rng.rs"]
+#[allow(dead_code)]
+mod draw;
 
 /// |X_k| by the DFT's definition, scaled as `amplitudes` scales it.
 fn direct(samples: &[f64]) -> Vec<f64> {
@@ -30,8 +35,8 @@ proptest! {
     #[test]
     fn fft_matches_the_dft_and_keeps_energy(log2 in 1u32..9, seed in any::<u64>()) {
         let n = 1usize << log2;
-        let mut state = seed | 1;
-        let samples: Vec<f64> = (0..n).map(|_| { state ^= state << 13; state ^= state >> 7; state ^= state << 17; (state % 20_000) as f64 / 10_000.0 - 1.0 }).collect();
+        let mut rng = draw::seeded(seed);
+        let samples: Vec<f64> = (0..n).map(|_| rng.random_range(-1.0..1.0)).collect();
         let ours = amplitudes(&samples);
         for (a, b) in ours.iter().zip(direct(&samples)) {
             prop_assert!((a - b).abs() < 1e-9, "{a} vs {b}");

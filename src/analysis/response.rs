@@ -9,6 +9,7 @@
 //! of the operating point stay aligned with their elements.
 
 use crate::math;
+use crate::units::{power_ratio_db, voltage_ratio_db};
 use std::cell::RefCell;
 
 use nalgebra::DVector;
@@ -55,7 +56,7 @@ pub struct Point {
 
 impl Point {
     pub fn gain_db(&self) -> f64 {
-        20.0 * math::log10(math::norm(self.av))
+        voltage_ratio_db(math::norm(self.av))
     }
 
     pub fn phase_deg(&self) -> f64 {
@@ -70,16 +71,21 @@ impl Point {
         mu(&self.s)
     }
 
+    /// Transducer power gain GT in dB, when `gt` is known.
+    pub fn gt_db(&self) -> Option<f64> {
+        self.gt.map(power_ratio_db)
+    }
+
     /// Spot noise figure in dB (IEEE: source at 290 K), when the source has resistance.
     pub fn nf_db(&self) -> Option<f64> {
-        (self.noise_source_v2 > 0.0).then(|| 10.0 * math::log10(self.noise_out_v2 / self.noise_source_v2))
+        (self.noise_source_v2 > 0.0).then(|| power_ratio_db(self.noise_out_v2 / self.noise_source_v2))
     }
 
     /// Return loss of the input against a source of `source_ohm`, dB (`None` without
     /// an input impedance; infinite for a perfect match is left out too).
     pub fn return_loss_db(&self, source_ohm: f64) -> Option<f64> {
         let gamma = math::norm(crate::units::reflection(self.zin?, source_ohm));
-        (gamma > 0.0).then(|| -20.0 * math::log10(gamma))
+        (gamma > 0.0).then(|| -voltage_ratio_db(gamma))
     }
 
     /// The stage's own noise referred to the source EMF, V/√Hz (the source's own excluded).

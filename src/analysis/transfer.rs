@@ -5,6 +5,7 @@
 use nalgebra::DVector;
 
 use crate::math;
+use crate::units::db_voltage_ratio;
 use crate::engine::{carry_over, operating_point, DcSystem, Element, Netlist, Node, OperatingPoint, SmallSignal};
 use crate::error::{FieldError, Result};
 use crate::part::{InverterLaw, Part};
@@ -207,7 +208,7 @@ pub fn bare_curve(part: &Part, count: usize) -> Result<BareCurve> {
     let self_bias = SelfBias::new(part, &law);
     let at_bias = self_bias.solve(part.vdd)?;
     let here = self_bias.point(&at_bias, &law);
-    let floor = here.gain.abs() * math::pow(10f64, -1.0 / 20.0);
+    let floor = here.gain.abs() * db_voltage_ratio(-1.0);
     Ok(BareCurve {
         bias_vin_v: here.vin_v,
         a0: here.gain,

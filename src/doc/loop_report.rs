@@ -6,7 +6,7 @@ use crate::math;
 use serde::ser::{Serialize, SerializeStruct, Serializer};
 
 use crate::analysis::stability::{Knob, Loop, NoCrossover, Suggestion, Verdict};
-use crate::units::{format_eng, format_fixed, Unit};
+use crate::units::{format_eng, format_fixed, voltage_ratio_db, Unit};
 
 const TAU: f64 = std::f64::consts::TAU;
 
@@ -16,7 +16,7 @@ fn finite(x: f64) -> Option<f64> {
 }
 
 fn db(x: f64) -> Option<f64> {
-    finite(20.0 * math::log10(x))
+    finite(voltage_ratio_db(x))
 }
 
 /// The `loop` section of `halfrail analyze`, with the compensation helper's

@@ -32,7 +32,6 @@ pub use sections::{
 };
 
 use crate::chain::RunFigures;
-use crate::math;
 use crate::error::{FieldError, Result};
 
 /// The demo design (SPEC §5): our own scenario, a 10.7 MHz IF gain block and the
@@ -434,7 +433,7 @@ pub struct SpreadResult {
 /// GT and NF of a chain block from its design point; `missing` words what the
 /// document lacks when either cannot be had.
 fn gain_and_noise(point: &crate::analysis::Point, missing: impl Fn(&str) -> FieldError) -> Result<RunFigures> {
-    let gain_db = point.gt.map(|g| 10.0 * math::log10(g)).ok_or_else(|| missing("a source resistance and a load resistor (its power gain)"))?;
+    let gain_db = point.gt_db().ok_or_else(|| missing("a source resistance and a load resistor (its power gain)"))?;
     let nf_db = point.nf_db().ok_or_else(|| missing("a source resistance (its noise figure)"))?;
     Ok(RunFigures { gain_db, nf_db })
 }

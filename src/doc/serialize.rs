@@ -5,7 +5,7 @@
 use crate::math;
 use serde::ser::{Serialize, SerializeStruct, Serializer};
 
-use crate::units::{Levels, Mismatch, Unit};
+use crate::units::{voltage_ratio_db, Levels, Mismatch, Unit};
 use crate::values::{Nearest, RatioPair, Series};
 
 /// `impl Serialize` for a core struct as a map of `"key" => field`.
@@ -343,11 +343,11 @@ impl Serialize for AcReport<'_> {
     fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
         let r = self.0;
         let p = &r.design;
-        let db = |x: f64| (x > 0.0).then(|| 20.0 * math::log10(x));
+        let db = |x: f64| (x > 0.0).then(|| voltage_ratio_db(x));
         let mut out = serializer.serialize_struct("AcReport", 20)?;
         out.serialize_field("gain_db", &p.gain_db())?;
         out.serialize_field("phase_deg", &p.phase_deg())?;
-        out.serialize_field("power_gain_db", &p.gt.map(|g| 10.0 * math::log10(g)))?;
+        out.serialize_field("power_gain_db", &p.gt_db())?;
         out.serialize_field("ideal_gain_db", &r.ideal_gain.and_then(|g| db(g.abs())))?;
         out.serialize_field("f_low_hz", &r.f_low_hz)?;
         out.serialize_field("f_high_hz", &r.f_high_hz)?;
@@ -383,7 +383,7 @@ impl Serialize for ResponseReport<'_> {
         let column = |f: &dyn Fn(&crate::analysis::Point) -> Option<f64>| -> Vec<Option<f64>> {
             r.points.iter().map(|p| f(p).filter(|v| v.is_finite())).collect()
         };
-        let db = |x: f64| (x > 0.0).then(|| 20.0 * math::log10(x));
+        let db = |x: f64| (x > 0.0).then(|| voltage_ratio_db(x));
         let mut out = serializer.serialize_struct("ResponseReport", 16)?;
         out.serialize_field("f_design_hz", &self.f_design_hz)?;
         out.serialize_field("design", &AcReport(r))?;
@@ -393,7 +393,7 @@ impl Serialize for ResponseReport<'_> {
         out.serialize_field("phase_deg", &column(&|p| Some(p.phase_deg())))?;
         let unwrapped = crate::analysis::unwrapped_phase(&r.points, self.f_design_hz);
         out.serialize_field("phase_unwrapped_deg", &unwrapped.iter().map(|p| p.to_degrees()).collect::<Vec<_>>())?;
-        out.serialize_field("gt_db", &column(&|p| p.gt.map(|g| 10.0 * math::log10(g))))?;
+        out.serialize_field("gt_db", &column(&|p| p.gt_db()))?;
         out.serialize_field("zin_re_ohm", &column(&|p| p.zin.map(|z| z.re)))?;
         out.serialize_field("zin_im_ohm", &column(&|p| p.zin.map(|z| z.im)))?;
         out.serialize_field("rl_db", &column(&|p| self.source_ohm.and_then(|rs| p.return_loss_db(rs))))?;

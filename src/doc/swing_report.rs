@@ -2,7 +2,7 @@
 //! `halfrail analyze` (SPEC §4 keys first); `SwingReport` adds what the Swing
 //! panel draws.
 
-use crate::math;
+use crate::units::voltage_ratio_db;
 use serde::ser::{Serialize, SerializeStruct, Serializer};
 
 use crate::analysis::swing::{amplitudes, Large, Record, THD_HARMONICS};
@@ -63,7 +63,7 @@ impl Serialize for SwingReport<'_> {
         // The output spectrum in dBc up to the last harmonic counted in THD.
         let top = (THD_HARMONICS + 1) * record.bin(l.f_hz);
         let spectrum_f: Vec<f64> = (1..=top.min(spectrum.len() - 1)).map(|k| k as f64 * record.resolution_hz).collect();
-        let spectrum_dbc: Vec<Option<f64>> = (1..=top.min(spectrum.len() - 1)).map(|k| finite(20.0 * math::log10(spectrum[k] / carrier)).map(|d| d.max(-200.0))).collect();
+        let spectrum_dbc: Vec<Option<f64>> = (1..=top.min(spectrum.len() - 1)).map(|k| finite(voltage_ratio_db(spectrum[k] / carrier)).map(|d| d.max(-200.0))).collect();
         let mut out = serializer.serialize_struct("SwingReport", 14)?;
         out.serialize_field("summary", &LargeSummary(l))?;
         out.serialize_field("amplitude_v", &l.amplitude)?;

@@ -13,7 +13,7 @@ use crate::chain::Budget;
 use crate::error::Result;
 use crate::part::{Model, Part};
 use crate::stage::{Component, Components, Role};
-use crate::units::{format_eng, format_fixed, format_rkm, power_ratio_db, voltage_ratio_db, RkmKind, Unit, DEFAULT_DIGITS};
+use crate::units::{format_eng, format_fixed, format_rkm, voltage_ratio_db, RkmKind, Unit, DEFAULT_DIGITS};
 use crate::values::series_of;
 
 /// The cautions of SPEC §5, worded as the page's footer words them.
@@ -321,7 +321,7 @@ fn small_signal(blocks: &mut Vec<Block>, r: &Response) {
         ("Voltage gain Av", db(p.gain_db())),
         ("Phase of Av", degrees(p.phase_deg())),
         ("Ideal −R fb/R in", or_why(r.ideal_gain.and_then(|g| db_of(g.abs())), db, "no feedback ratio")),
-        ("Power gain GT", or_why(p.gt.map(power_ratio_db), db, "needs a source and a load resistor")),
+        ("Power gain GT", or_why(p.gt_db(), db, "needs a source and a load resistor")),
         ("Low band edge f_low", or_why(r.f_low_hz, |f| eng(f, Unit::Hertz), "outside the sweep")),
         ("High band edge f_high", or_why(r.f_high_hz, |f| eng(f, Unit::Hertz), "outside the sweep")),
         ("Input impedance Zin", zin.unwrap_or_else(|| "— (only the source reaches the input)".into())),

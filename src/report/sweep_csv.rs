@@ -2,6 +2,7 @@
 //! their unit, an empty field where a figure does not exist.
 
 use crate::math;
+use crate::units::voltage_ratio_db;
 use super::cell;
 use crate::analysis::{mu, rollett_k, Response};
 
@@ -9,7 +10,7 @@ const HEADER: &str = "f_hz,gain_db,phase_deg,gt_db,group_delay_s,zin_re_ohm,zin_
 s11_db,s21_db,s12_db,s22_db,k,mu,nf_db,noise_in_v_per_rthz";
 
 fn db(x: f64) -> Option<f64> {
-    (x > 0.0).then(|| 20.0 * math::log10(x))
+    (x > 0.0).then(|| voltage_ratio_db(x))
 }
 
 /// The CSV text of a swept response.
@@ -21,7 +22,7 @@ pub fn sweep_csv(response: &Response) -> String {
             Some(p.f_hz),
             Some(p.gain_db()),
             Some(p.phase_deg()),
-            p.gt.map(|g| 10.0 * math::log10(g)),
+            p.gt_db(),
             Some(*delay),
             p.zin.map(|z| z.re),
             p.zin.map(|z| z.im),

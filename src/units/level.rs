@@ -4,7 +4,7 @@
 //! P = Vrms² / R; Vpk = √2·Vrms and Vpp = 2·Vpk hold for a sine (common practice).
 //! A bare `V` is read as RMS.
 
-use crate::math;
+use super::ratio::{db_power_ratio, db_voltage_ratio, power_ratio_db, voltage_ratio_db};
 use super::Unit;
 use crate::error::{FieldError, Result};
 
@@ -34,7 +34,7 @@ pub fn is_level_unit(unit: Unit) -> bool {
 
 /// The RMS voltage of a level given in any level unit.
 fn to_vrms(value: f64, unit: Unit, impedance_ohm: f64) -> Result<f64> {
-    let from_db = |db: f64, reference: f64| reference * math::pow(10f64, db / 20.0);
+    let from_db = |db: f64, reference: f64| reference * db_voltage_ratio(db);
     let from_power = |watts: f64| (watts * impedance_ohm).sqrt();
     let linear = |v: f64| {
         if v > 0.0 {
@@ -45,8 +45,8 @@ fn to_vrms(value: f64, unit: Unit, impedance_ohm: f64) -> Result<f64> {
     };
     let vrms = match unit {
         Unit::Watt => from_power(linear(value)?),
-        Unit::Dbm => from_power(1e-3 * math::pow(10f64, value / 10.0)),
-        Unit::Dbw => from_power(math::pow(10f64, value / 10.0)),
+        Unit::Dbm => from_power(1e-3 * db_power_ratio(value)),
+        Unit::Dbw => from_power(db_power_ratio(value)),
         Unit::Volt | Unit::Vrms => linear(value)?,
         Unit::Vpk => linear(value)? / std::f64::consts::SQRT_2,
         Unit::Vpp => linear(value)? / (2.0 * std::f64::consts::SQRT_2),
@@ -89,13 +89,13 @@ pub fn levels(value: f64, unit: Unit, impedance_ohm: f64) -> Result<Levels> {
     let all = Levels {
         impedance_ohm,
         watts,
-        dbm: 10.0 * math::log10(watts / 1e-3),
-        dbw: 10.0 * math::log10(watts),
+        dbm: power_ratio_db(watts / 1e-3),
+        dbw: power_ratio_db(watts),
         vrms,
         vpk: vrms * std::f64::consts::SQRT_2,
         vpp: 2.0 * std::f64::consts::SQRT_2 * vrms,
-        dbv: 20.0 * math::log10(vrms),
-        dbuv: 20.0 * math::log10(vrms / 1e-6),
+        dbv: voltage_ratio_db(vrms),
+        dbuv: voltage_ratio_db(vrms / 1e-6),
     };
     if all.watts.is_finite() && all.watts > 0.0 {
         Ok(all)

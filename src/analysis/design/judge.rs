@@ -3,6 +3,7 @@
 //! for a candidate, whether its closed loop is stable at all.
 
 use crate::math;
+use crate::units::voltage_ratio_db;
 use crate::analysis::stability::{fastest_growing, growth_hz};
 use crate::analysis::Linearised;
 use crate::error::Result;
@@ -59,10 +60,10 @@ impl Judge<'_> {
         let p = lin.at(self.f_design, c)?;
         let gain_db = match self.kind {
             GainKind::Voltage => p.gain_db(),
-            GainKind::Power => p.gt.map_or(f64::NEG_INFINITY, |g| 10.0 * math::log10(g)),
+            GainKind::Power => p.gt_db().unwrap_or(f64::NEG_INFINITY),
         };
         let return_loss_db = c.get(Component::SourceOhm).filter(|&r| r > 0.0).and_then(|rs| p.return_loss_db(rs));
-        let s11_db = 20.0 * math::log10(math::norm(p.s[0][0]));
+        let s11_db = voltage_ratio_db(math::norm(p.s[0][0]));
         let iq_a = lin.operating_point().supply_current();
         Ok(Figures { gain_db, s11_db, return_loss_db, nf_db: p.nf_db(), iq_a, loop_gain: p.loop_gain.map(|t| math::norm(t)) })
     }

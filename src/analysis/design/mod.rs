@@ -35,6 +35,7 @@ pub use search::{r_in_values, Search};
 pub use solve::{ceiling_db, matched_r_in, r_fb_for, r_fb_under_ceiling, with_pair, R_FB_MAX};
 
 use crate::math;
+use crate::units::{db_power_ratio, db_voltage_ratio};
 use crate::error::{FieldError, Result};
 use crate::part::Part;
 use crate::stage::{Component, Components};
@@ -136,9 +137,9 @@ pub fn ideal_ratio(target: &Target, c: &Components, r_in: f64) -> f64 {
                 Some(shunt) if shunt > 0.0 => shunt * r_in / (shunt + r_in),
                 _ => r_in,
             };
-            (math::pow(10f64, target.gain_db / 10.0) * rl / (4.0 * rs)).sqrt() * (rs + zin) / zin * out_divider
+            (db_power_ratio(target.gain_db) * rl / (4.0 * rs)).sqrt() * (rs + zin) / zin * out_divider
         }
-        _ => math::pow(10f64, target.gain_db / 20.0) * out_divider,
+        _ => db_voltage_ratio(target.gain_db) * out_divider,
     }
 }
 

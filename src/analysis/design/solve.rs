@@ -3,6 +3,7 @@
 //! open-loop limit), and r_in for the best input match by golden-section search.
 
 use crate::math;
+use crate::units::db_voltage_ratio;
 use crate::error::Result;
 use crate::stage::{Component, Components};
 
@@ -60,7 +61,7 @@ pub fn r_fb_under_ceiling(judge: &Judge, c: &Components, r_in: f64, target_db: f
 /// source (the most return loss against it), by golden-section search on log r_in
 /// over [low, high].
 pub fn matched_r_in(judge: &Judge, c: &Components, target_db: f64, low: f64, high: f64) -> Result<Option<(f64, f64)>> {
-    let ratio = math::pow(10f64, target_db / 20.0);
+    let ratio = db_voltage_ratio(target_db);
     let mismatch = |log_r: f64| -> Result<(f64, Option<f64>)> {
         let r_in = math::exp(log_r);
         match r_fb_for(judge, c, r_in, target_db, r_in * ratio)? {

@@ -26,7 +26,6 @@ mod stats;
 pub use draw::{draws, Quantity, Tolerance};
 pub use stats::{corners, summarise, swings, Corner, Limits, Stats, Summary, Swing};
 
-use crate::math;
 use std::ops::Range;
 
 use num_complex::Complex64;
@@ -113,7 +112,7 @@ impl Setup {
         let p = lin.at(self.f_design, c)?;
         let gain = match self.kind {
             GainKind::Voltage => Some(p.gain_db()),
-            GainKind::Power => p.gt.map(|g| 10.0 * math::log10(g)),
+            GainKind::Power => p.gt_db(),
         };
         let iq = lin.operating_point().supply_current();
         let small = lin.small_signal();

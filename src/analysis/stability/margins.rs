@@ -18,6 +18,7 @@
 //! cannot jump a whole turn unseen), and every crossing is refined on T itself.
 
 use crate::math;
+use crate::units::voltage_ratio_db;
 use num_complex::Complex64;
 
 use crate::error::Result;
@@ -138,7 +139,7 @@ pub fn margins(f_design: f64, freqs: &[f64], t: &[Complex64], phase: &[f64], t_a
     };
     // The phase crossing nearest the crossover on a log scale; with no crossover, the
     // one where |T| is largest (the least gain margin).
-    let gain_db = |f: f64| -> Result<f64> { Ok(-20.0 * math::log10(math::norm(t_at(f)?))) };
+    let gain_db = |f: f64| -> Result<f64> { Ok(-voltage_ratio_db(math::norm(t_at(f)?))) };
     let mut chosen: Option<(f64, f64)> = None;
     for &f in &phase_crossings {
         let gm = gain_db(f)?;

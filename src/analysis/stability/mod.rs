@@ -33,6 +33,7 @@ pub use return_ratio::ReturnRatio;
 pub use step::{settling, step_response, Settling, Step, SETTLE_BAND};
 
 use crate::math;
+use crate::units::voltage_ratio_db;
 use num_complex::Complex64;
 
 use crate::analysis::{Linearised, Response};
@@ -129,7 +130,7 @@ pub fn analyse(lin: &Linearised, components: &Components, response: &Response, f
         .points
         .iter()
         .filter(|p| p.f_hz >= f_design)
-        .map(|p| 20.0 * math::log10(math::norm(p.av) / mid))
+        .map(|p| voltage_ratio_db(math::norm(p.av) / mid))
         .fold(0.0, f64::max);
     // The step settles at the mid-band gain (the geometric middle of the band, or
     // f_design when an edge is missing), the coupling capacitors' droop being far slower.

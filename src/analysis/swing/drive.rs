@@ -4,6 +4,7 @@
 //! so the spectrum needs no window and leaks nothing).
 
 use crate::math;
+use crate::units::{db_power_ratio, power_ratio_db};
 
 /// One cosine of the source EMF from t = 0.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -16,17 +17,17 @@ pub struct Tone {
 /// Peak EMF of a tone whose available power from `source_ohm` is `dbm`:
 /// P_av = A²/(8·Rs) (the EMF's RMS value squared over 4·Rs).
 pub fn emf_amplitude(dbm: f64, source_ohm: f64) -> f64 {
-    (8.0 * source_ohm * 1e-3 * math::pow(10f64, dbm / 10.0)).sqrt()
+    (8.0 * source_ohm * 1e-3 * db_power_ratio(dbm)).sqrt()
 }
 
 /// The available power, dBm, of a tone of peak EMF `amplitude` from `source_ohm`.
 pub fn available_dbm(amplitude: f64, source_ohm: f64) -> f64 {
-    10.0 * math::log10(amplitude * amplitude / (8.0 * source_ohm) / 1e-3)
+    power_ratio_db(amplitude * amplitude / (8.0 * source_ohm) / 1e-3)
 }
 
 /// Power, dBm, of a sine of peak `amplitude` volts into `ohms`.
 pub fn power_dbm(amplitude: f64, ohms: f64) -> f64 {
-    10.0 * math::log10(amplitude * amplitude / (2.0 * ohms) / 1e-3)
+    power_ratio_db(amplitude * amplitude / (2.0 * ohms) / 1e-3)
 }
 
 /// A coherent record: `samples` (a power of two) equal steps spanning one period

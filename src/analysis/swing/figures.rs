@@ -4,7 +4,7 @@
 //! Each works on any `Waveforms`, so the time domain and the quasi-static model
 //! are measured the same way.
 
-use crate::math;
+use crate::units::{power_ratio_db, voltage_ratio_db};
 use super::drive::{available_dbm, emf_amplitude, power_dbm, Record, Tone, IM3_BINS, TONE_BINS};
 use super::spectrum::amplitudes;
 use super::wave::{Wave, Waveforms};
@@ -27,7 +27,7 @@ pub struct ToneResult {
 }
 
 fn dbc(part: f64, carrier: f64) -> f64 {
-    20.0 * math::log10(part / carrier)
+    voltage_ratio_db(part / carrier)
 }
 
 /// The stage driven by one tone of peak EMF `amplitude` at `f_hz`.
@@ -74,7 +74,7 @@ pub const COMPRESSION_LEVELS: usize = 20;
 /// §3.3: GT = (|v(out)|²/R_L)/(|E|²/(4·R_S)), the AC analysis's `power_gain_db`).
 pub fn small_signal_gt_db(w: &dyn Waveforms, f_hz: f64, source_ohm: f64, load_ohm: f64) -> Result<f64> {
     let gain = w.small_signal_gain(f_hz)?;
-    Ok(20.0 * math::log10(gain) + 10.0 * math::log10(4.0 * source_ohm / load_ohm))
+    Ok(voltage_ratio_db(gain) + power_ratio_db(4.0 * source_ohm / load_ohm))
 }
 
 /// GT over `COMPRESSION_LEVELS` source powers from `from_dbm` to `to_dbm`.
@@ -119,7 +119,7 @@ fn two_tone(w: &dyn Waveforms, f_hz: f64, pin_dbm: f64, source_ohm: f64, load_oh
     let s = amplitudes(&wave.out);
     let mean_power = |bins: [usize; 2]| {
         let p: f64 = bins.iter().map(|&b| s[b] * s[b] / (2.0 * load_ohm)).sum::<f64>() / 2.0;
-        10.0 * math::log10(p / 1e-3)
+        power_ratio_db(p / 1e-3)
     };
     Ok(TwoTone { pin_dbm, pout_dbm: mean_power(TONE_BINS), im3_dbm: mean_power(IM3_BINS) })
 }

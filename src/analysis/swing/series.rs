@@ -5,6 +5,7 @@
 //! input intercept A_IP3 = √(4/3·|a1/a3|).
 
 use crate::math;
+use crate::units::voltage_ratio_db;
 
 use super::drive::{available_dbm, power_dbm};
 use super::wave::QuasiStatic;
@@ -82,8 +83,7 @@ impl PowerSeries {
 
     /// HD2 and HD3 of a tone of peak EMF `amplitude`, dBc.
     pub fn hd_dbc(&self, amplitude: f64) -> (f64, f64) {
-        let db = |x: f64| 20.0 * math::log10(x.abs());
-        (db(self.a2 * amplitude / (2.0 * self.a1)), db(self.a3 * amplitude * amplitude / (4.0 * self.a1)))
+        (voltage_ratio_db(self.a2 * amplitude / (2.0 * self.a1)), voltage_ratio_db(self.a3 * amplitude * amplitude / (4.0 * self.a1)))
     }
 
     /// Input and output third-order intercepts, dBm (available from `source_ohm`,
