@@ -1,23 +1,41 @@
 //! Halfrail's analysis core: a CMOS logic inverter, biased at half the supply by a
-//! feedback resistor, used as a linear amplifier.
-//!
-//! Layers, each using only those above it in this list: [`error`], [`units`] and
-//! [`values`] (notation and standard values), [`doc`] (the JSON design document and
-//! the serialised form of results), and on top the two faces: the `wasm` bindings
-//! (built for `wasm32` only) and the `halfrail` command.
+//! feedback resistor, used as a linear amplifier. The `halfrail` command and the
+//! page's wasm module are two faces of this one library.
 //!
 //! ```
-//! use halfrail::units::{convert_level, format_eng, parse, Unit};
-//! use halfrail::values::{nearest, Series};
+//! use halfrail::doc::{load, DEMO};
 //!
-//! // -30 dBm across 50 Ω is 20 mV peak-to-peak.
-//! let p = parse("-30 dBm").unwrap();
-//! let vpp = convert_level(p.value, p.unit.unwrap(), Unit::Vpp, 50.0).unwrap();
-//! assert_eq!(format_eng(vpp, Some(Unit::Vpp), 3), "20.0 mVpp");
+//! // The demo design (src/doc/demo.halfrail.json): a 10.7 MHz IF gain block.
+//! let design = load(DEMO)?;
+//! let response = design.response()?;
+//! let gain_db = response.design.gain_db();
+//! println!("gain at f_design: {gain_db:.2} dB");
+//! assert!((9.0..11.0).contains(&gain_db)); // about 10 dB
 //!
-//! // The E24 value nearest 5 kΩ.
-//! assert_eq!(nearest(5e3, Series::E24).unwrap().nearest, 5100.0);
+//! // The ideal −r_fb/r_in is 10 (20 dB): the part's finite open-loop gain costs the rest.
+//! assert_eq!(response.ideal_gain.map(f64::abs), Some(10.0));
+//! assert!(halfrail::math::norm(response.design.av) < 10.0);
+//! # Ok::<(), halfrail::FieldError>(())
 //! ```
+//!
+//! Layers, from the ground up; each module uses only those above it in this list
+//! (DEVELOPERS.md has the code map and the rules):
+//!
+//! - [`error`]: [`FieldError`], the one error type: the field at fault and why.
+//! - [`math`]: elementary functions that round the same natively and in wasm.
+//! - [`order`]: the core's one sort.
+//! - [`units`]: values as engineers write them — SI prefixes, RKM codes, levels, ratios.
+//! - [`values`]: IEC 60063 standard values — series, nearest value, ratio finder.
+//! - [`engine`]: the one circuit engine — netlist, MNA, DC, AC, noise, transient.
+//! - [`part`]: the inverter's device models and illustrative presets.
+//! - [`stage`]: the amplifier's topology, built into a netlist on the engine.
+//! - [`analysis`]: bias, response, loop, swing, bench fit, design and spread.
+//! - [`chain`]: the cascade budget of matched blocks and directly coupled runs.
+//! - [`report`]: text exports — CSV, Touchstone, the design sheet.
+//! - [`doc`]: the design document (reading, ranges, migration), the analyses a
+//!   document asks for, and the serialised form of every result.
+//! - `wasm` (built for `wasm32` only): the page's entry points; and the `halfrail`
+//!   command (`src/main.rs`, `src/cli/`), a binary of this crate.
 
 pub mod analysis;
 pub mod chain;
