@@ -32,8 +32,9 @@
 //! - [`analysis`]: bias, response, loop, swing, bench fit, design and spread.
 //! - [`chain`]: the cascade budget of matched blocks and directly coupled runs.
 //! - [`report`]: text exports — CSV, Touchstone, the design sheet.
-//! - [`doc`]: the design document (reading, ranges, migration), the analyses a
-//!   document asks for, and the serialised form of every result.
+//! - [`doc`]: the design document's file format — reading, ranges, migration.
+//! - [`session`]: the analyses a document asks for, for both faces (serde-free).
+//! - [`wire`]: the serialised form of every result (the CLI's JSON, the page's data).
 //! - `wasm` (built for `wasm32` only): the page's entry points; and the `halfrail`
 //!   command (`src/main.rs`, `src/cli/`), a binary of this crate.
 
@@ -46,9 +47,11 @@ pub mod order;
 pub mod error;
 pub mod part;
 pub mod report;
+pub mod session;
 pub mod stage;
 pub mod units;
 pub mod values;
+pub mod wire;
 
 #[cfg(target_arch = "wasm32")]
 pub mod wasm;

@@ -4,7 +4,8 @@
 
 use wasm_bindgen::prelude::*;
 
-use crate::doc::{self, LookupReport, SeriesFacts, ValueInUnit};
+use crate::doc;
+use crate::wire::{self, LookupReport, SeriesFacts, ValueInUnit};
 use crate::error::FieldError;
 use crate::units::{self, MismatchForm, RkmKind, Unit};
 use crate::values::{self, Series};
@@ -30,7 +31,7 @@ fn reporter(progress: &js_sys::Function) -> impl FnMut(f64) + '_ {
 }
 
 fn thrown(error: FieldError) -> JsValue {
-    to_js(&crate::doc::located(error)).unwrap_or_else(|e| e)
+    to_js(&crate::session::located(error)).unwrap_or_else(|e| e)
 }
 
 fn unit_named(field: &str, name: &str) -> Result<Unit, JsValue> {
@@ -149,7 +150,7 @@ pub fn ratio_pairs(text: &str, series: &str, count: usize) -> Result<JsValue, Js
 /// Checks a design document's text: its format version and sections, or the first bad field.
 #[wasm_bindgen(js_name = checkDocument)]
 pub fn check_document(text: &str) -> Result<JsValue, JsValue> {
-    to_js(&doc::summary(&doc::load(text).map_err(thrown)?))
+    to_js(&wire::summary(&doc::load(text).map_err(thrown)?))
 }
 
 /// A document's text brought up to this build's format version (the text as it
@@ -189,7 +190,7 @@ pub fn part_report(text: &str, points: usize) -> Result<JsValue, JsValue> {
     let b = document.bias().map_err(thrown)?;
     let curve = bare_curve(&part, points).map_err(thrown)?;
     let closed = closed_loop_curve(&part, &stage, points.min(401), None).map_err(thrown)?;
-    to_js(&doc::PartReport { bias: doc::BiasReport { bias: &b, curve: &curve }, closed: &closed })
+    to_js(&wire::PartReport { bias: wire::BiasReport { bias: &b, curve: &curve }, closed: &closed })
 }
 
 /// Fits the part to the document's bench readings.
@@ -213,7 +214,7 @@ pub fn response_report(text: &str) -> Result<JsValue, JsValue> {
     let response = document.response().map_err(thrown)?;
     let source_ohm = stage.get(crate::stage::Component::SourceOhm).filter(|&r| r > 0.0);
     let f_design_hz = document.sweep().map_err(thrown)?.f_design_hz;
-    to_js(&doc::ResponseReport { response: &response, source_ohm, f_design_hz })
+    to_js(&wire::ResponseReport { response: &response, source_ohm, f_design_hz })
 }
 
 /// The Loop panel's figures: loop gain, margins, poles, step, μ and the
@@ -224,7 +225,7 @@ pub fn loop_report(text: &str) -> Result<JsValue, JsValue> {
     let (_, stability) = document.stability().map_err(thrown)?;
     let suggestions = document.compensation().map_err(thrown)?;
     let analysis = document.sweep().map_err(thrown)?;
-    to_js(&doc::LoopReport {
+    to_js(&wire::LoopReport {
         stability: &stability,
         suggestions: &suggestions,
         wanted_margin_deg: document.wanted_margin_deg(),
@@ -239,7 +240,7 @@ pub fn loop_report(text: &str) -> Result<JsValue, JsValue> {
 pub fn swing_report(text: &str, progress: &js_sys::Function) -> Result<JsValue, JsValue> {
     let document = doc::load(text).map_err(thrown)?;
     let large = document.large(&mut reporter(progress)).map_err(thrown)?;
-    to_js(&doc::SwingReport(&large))
+    to_js(&wire::SwingReport(&large))
 }
 
 /// The steady-state waveform as CSV (the same as `halfrail wave --csv`).
@@ -252,7 +253,7 @@ pub fn wave_csv(text: &str) -> Result<String, JsValue> {
 /// capacitors, the by-hand answer (the same as `halfrail design`).
 #[wasm_bindgen(js_name = designReport)]
 pub fn design_report(text: &str) -> Result<JsValue, JsValue> {
-    to_js(&doc::DesignReport(&doc::load(text).and_then(|d| d.design()).map_err(thrown)?))
+    to_js(&wire::DesignReport(&doc::load(text).and_then(|d| d.design()).map_err(thrown)?))
 }
 
 /// The Spread panel's figures: the Monte Carlo of the tolerance section with
@@ -262,7 +263,7 @@ pub fn design_report(text: &str) -> Result<JsValue, JsValue> {
 pub fn spread_report(text: &str, progress: &js_sys::Function) -> Result<JsValue, JsValue> {
     let document = doc::load(text).map_err(thrown)?;
     let result = document.spread(&mut reporter(progress)).map_err(thrown)?;
-    to_js(&doc::SpreadReport(&result))
+    to_js(&wire::SpreadReport(&result))
 }
 
 /// Panics on purpose: the page's recovery from a trap (report it, keep the design,
@@ -287,7 +288,7 @@ pub fn spread_trial_count(text: &str) -> Result<u32, JsValue> {
 #[wasm_bindgen(js_name = spreadTrials)]
 pub fn spread_trials(text: &str, from: u32, to: u32, progress: &js_sys::Function) -> Result<JsValue, JsValue> {
     let plan = doc::load(text).and_then(|d| d.spread_plan()).map_err(thrown)?;
-    to_js(&doc::TrialColumns(&plan.run_reporting(from as u64..to as u64, &mut reporter(progress))))
+    to_js(&wire::TrialColumns(&plan.run_reporting(from as u64..to as u64, &mut reporter(progress))))
 }
 
 /// The spread report from every trial's figures (the columns `spreadTrials`
@@ -295,15 +296,15 @@ pub fn spread_trials(text: &str, from: u32, to: u32, progress: &js_sys::Function
 #[wasm_bindgen(js_name = spreadFinish)]
 pub fn spread_finish(text: &str, columns: &str) -> Result<JsValue, JsValue> {
     let plan = doc::load(text).and_then(|d| d.spread_plan()).map_err(thrown)?;
-    let trials = doc::trials_from_columns(columns).map_err(thrown)?;
-    to_js(&doc::SpreadReport(&plan.finish(trials).map_err(thrown)?))
+    let trials = wire::trials_from_columns(columns).map_err(thrown)?;
+    to_js(&wire::SpreadReport(&plan.finish(trials).map_err(thrown)?))
 }
 
 /// The document's stage as a chain block (gain, NF, OIP3, OP1dB, DC power): the
 /// slow part of a chain, computed once in a worker and handed back to `chainReport`.
 #[wasm_bindgen(js_name = stageBlock)]
 pub fn stage_block(text: &str) -> Result<JsValue, JsValue> {
-    to_js(&doc::StageBlock(&doc::load(text).and_then(|d| d.stage_block()).map_err(thrown)?))
+    to_js(&wire::StageBlock(&doc::load(text).and_then(|d| d.stage_block()).map_err(thrown)?))
 }
 
 /// The chain's budget; `stage` is `stageBlock`'s result as JSON text, or empty to
@@ -311,8 +312,8 @@ pub fn stage_block(text: &str) -> Result<JsValue, JsValue> {
 #[wasm_bindgen(js_name = chainReport)]
 pub fn chain_report(text: &str, stage: &str) -> Result<JsValue, JsValue> {
     let document = doc::load(text).map_err(thrown)?;
-    let known = if stage.is_empty() { None } else { Some(doc::stage_block_from(stage).map_err(thrown)?) };
-    to_js(&doc::ChainReport(&document.chain(known).map_err(thrown)?))
+    let known = if stage.is_empty() { None } else { Some(wire::stage_block_from(stage).map_err(thrown)?) };
+    to_js(&wire::ChainReport(&document.chain(known).map_err(thrown)?))
 }
 
 /// The operating point alone (no curves): for the Stage panel's figures.

@@ -11,7 +11,8 @@
 use proptest::prelude::*;
 use proptest::test_runner::Config;
 
-use halfrail::doc::{load, summary, Document};
+use halfrail::doc::{load, Document};
+use halfrail::wire::summary;
 use halfrail::stage::Component;
 use halfrail::units::{format_eng, format_rkm, parse, parse_as, RkmKind, Unit};
 

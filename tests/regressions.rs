@@ -3,7 +3,8 @@
 //! answer computed here independently.
 
 use halfrail::chain::{cascade, Block, Levels};
-use halfrail::doc::{load, ChainReport};
+use halfrail::doc::load;
+use halfrail::wire::ChainReport;
 use serde_json::{json, Value};
 
 /// An ordinary 3.3 V unbuffered stage at 10.7 MHz, the base every case changes.
@@ -23,7 +24,7 @@ fn refusal(doc: &Value) -> String {
 
 fn chain_json(doc: &Value) -> Value {
     let d = load(&doc.to_string()).unwrap();
-    serde_json::from_str(&halfrail::doc::to_json(&ChainReport(&d.chain(None).unwrap()))).unwrap()
+    serde_json::from_str(&halfrail::wire::to_json(&ChainReport(&d.chain(None).unwrap()))).unwrap()
 }
 
 const LEVELS: Levels = Levels { input_dbm: -40.0, bandwidth_hz: 1e4, snr_wanted_db: 10.0 };
@@ -151,7 +152,7 @@ fn whole_number_fields_take_what_a_person_types() {
 
 #[test]
 fn an_engine_error_is_placed_in_the_document() {
-    use halfrail::doc::located;
+    use halfrail::session::located;
     use halfrail::FieldError;
     // The engine names elements by their stage keys; copies in a run as `2:key`.
     let e = located(FieldError::new("circuit", "the operating point did not converge (… at the branch of `c_in_f`)"));

@@ -118,7 +118,7 @@ fn trials_that_oscillate_fail_the_yield() {
     // The gain alone would have passed most of them: the yield fell for the oscillation.
     let in_gain = r.trials.iter().filter(|t| t.values[0].is_some_and(|g| (g - 20.0).abs() <= 1.0)).count();
     assert!(in_gain > 20, "{in_gain} of 40 within the gain limits");
-    let json = serde_json::to_value(halfrail::doc::SpreadSummary(&r)).unwrap();
+    let json = serde_json::to_value(halfrail::wire::SpreadSummary(&r)).unwrap();
     assert_eq!(json["oscillating"], 40);
     assert_eq!(json["nominal_oscillates"], true);
     // A trial that does not grow passes the same limits on its figures alone.
@@ -128,8 +128,8 @@ fn trials_that_oscillate_fail_the_yield() {
     assert!(limits.pass(&calm) && !limits.pass(&r.trials[0]));
     // The columns the page joins carry the count back (the figures to the last bit
     // or so: the document reader's numbers are its own).
-    let text = serde_json::to_string(&halfrail::doc::TrialColumns(&r.trials)).unwrap();
-    let back = halfrail::doc::trials_from_columns(&text).unwrap();
+    let text = serde_json::to_string(&halfrail::wire::TrialColumns(&r.trials)).unwrap();
+    let back = halfrail::wire::trials_from_columns(&text).unwrap();
     assert_eq!(back.iter().map(|t| t.growing).collect::<Vec<_>>(), r.trials.iter().map(|t| t.growing).collect::<Vec<_>>());
     for (a, b) in back.iter().zip(&r.trials) {
         for (x, y) in a.values.iter().zip(&b.values) {

@@ -955,7 +955,7 @@ fn loop_case(seed: u64, tally: &LoopTally) -> std::result::Result<(), TestCaseEr
     let growing = closed.iter().filter(|p| p.re > 0.0).count();
     let open_growing = open.iter().filter(|p| p.re > 0.0).count();
     let (_, l) = doc.stability().map_err(|e| fail("analyse", e))?;
-    let words = serde_json::to_value(halfrail::doc::LoopSummary(&l, None)).unwrap()["verdict"]["words"].as_str().unwrap().to_string();
+    let words = serde_json::to_value(halfrail::wire::LoopSummary(&l, None)).unwrap()["verdict"]["words"].as_str().unwrap().to_string();
     let context = || format!("seed {seed}\nfaer closed {closed:?}\nfaer open {open:?}\nours {:?}\nnyquist {:?}\n{}", l.poles, l.nyquist, drawn.doc);
     match l.nyquist {
         None => {
@@ -1225,7 +1225,7 @@ fn when_no_change_keeps_the_gain_the_helper_says_so() {
     let r_fb = suggestions.iter().find(|s| s.knob == Knob::LowerGain).unwrap();
     assert!(r_fb.gain_change_db().unwrap() > 20.0 && !r_fb.within_tolerance(), "{r_fb:?}");
     let (_, l) = doc.stability().unwrap();
-    let report = serde_json::to_value(halfrail::doc::LoopReport { stability: &l, suggestions: &suggestions, wanted_margin_deg: 60.0, f_design_hz: 10.7e6 }).unwrap();
+    let report = serde_json::to_value(halfrail::wire::LoopReport { stability: &l, suggestions: &suggestions, wanted_margin_deg: 60.0, f_design_hz: 10.7e6 }).unwrap();
     let words = report["helper_words"].as_str().unwrap();
     assert!(words.contains("needs an unbuffered part"), "{words}");
     let flagged = report["suggestions"].as_array().unwrap().iter().find(|s| s["key"] == "r_fb_ohm").unwrap();

@@ -8,7 +8,7 @@ use std::path::PathBuf;
 
 use halfrail::analysis::swing::source_resistance;
 use halfrail::analysis::{bare_curve, BARE_POINTS};
-use halfrail::doc::{to_json, AcReport, AnalyzeReport, BiasReport, LargeSummary, LoopSummary};
+use halfrail::wire::{to_json, AcReport, AnalyzeReport, BiasReport, LargeSummary, LoopSummary};
 use halfrail::report::{sweep_csv, touchstone, wave_csv};
 
 use super::{read_document, Failure};

@@ -2,7 +2,7 @@
 
 use std::path::PathBuf;
 
-use halfrail::doc::{to_json, ChainReport};
+use halfrail::wire::{to_json, ChainReport};
 
 use super::{read_document, Failure};
 

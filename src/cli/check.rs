@@ -12,7 +12,7 @@ pub struct Args {
 
 pub fn run(args: Args) -> Result<String, Failure> {
     let document = read_document(&args.file)?;
-    let sections = halfrail::doc::summary(&document).sections;
+    let sections = halfrail::wire::summary(&document).sections;
     Ok(format!(
         "{}: a valid halfrail document (format {}) with {}\n",
         args.file.display(),

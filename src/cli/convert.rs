@@ -1,7 +1,7 @@
 //! `halfrail convert VALUE --to UNIT [--at OHMS]` for signal levels, and
 //! `halfrail mismatch VALUE --from FORM` for the four mismatch figures.
 
-use halfrail::doc::{to_json, ValueInUnit};
+use halfrail::wire::{to_json, ValueInUnit};
 use halfrail::units::{convert_level, format_eng, format_fixed, mismatch, parse, parse_as, MismatchForm, Unit};
 use halfrail::FieldError;
 

@@ -2,7 +2,7 @@
 
 use std::path::PathBuf;
 
-use halfrail::doc::{to_json, DesignReport};
+use halfrail::wire::{to_json, DesignReport};
 
 use super::{read_document, Failure};
 

@@ -3,7 +3,7 @@
 
 use std::path::PathBuf;
 
-use halfrail::doc::to_json;
+use halfrail::wire::to_json;
 
 use super::{read_document, Failure};
 

@@ -27,7 +27,7 @@ pub enum Failure {
 
 impl From<halfrail::FieldError> for Failure {
     fn from(e: halfrail::FieldError) -> Self {
-        Failure::Input(halfrail::doc::located(e).to_string())
+        Failure::Input(halfrail::session::located(e).to_string())
     }
 }
 

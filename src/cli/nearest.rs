@@ -2,7 +2,7 @@
 
 use halfrail::units::{format_eng, parse};
 use halfrail::values::{nearest, series_of, Series};
-use halfrail::doc::{to_json, NearestReport};
+use halfrail::wire::{to_json, NearestReport};
 use halfrail::FieldError;
 
 use super::Failure;

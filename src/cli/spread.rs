@@ -3,7 +3,7 @@
 
 use std::path::PathBuf;
 
-use halfrail::doc::{to_json, SpreadSummary};
+use halfrail::wire::{to_json, SpreadSummary};
 
 use super::{read_document, Failure};
 

@@ -6,7 +6,7 @@
 
 use serde::ser::{Serialize, SerializeStruct, Serializer};
 
-use super::SpreadResult;
+use crate::session::SpreadResult;
 use crate::analysis::spread::{Corner, Figure, Stats, Swing, Trial};
 
 serialize_fields!(Stats {
@@ -99,7 +99,7 @@ impl Serialize for TrialColumns<'_> {
 /// Trials back from their columns (JSON text of `TrialColumns`, possibly joined
 /// from several runs): the field named is `trials` when the text is not that.
 pub fn trials_from_columns(text: &str) -> crate::error::Result<Vec<Trial>> {
-    let (columns, growing) = super::read_returned(text, "trials", |f| {
+    let (columns, growing) = crate::doc::read_returned(text, "trials", |f| {
         let columns = Figure::ALL.map(|figure| f.numbers(figure.key()).unwrap_or_else(|| f.missing(figure.key(), Vec::new())));
         (columns, f.numbers(GROWING).unwrap_or_else(|| f.missing(GROWING, Vec::new())))
     })?;

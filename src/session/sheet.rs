@@ -2,7 +2,7 @@
 //! its result or its error kept, so that `report::Sheet` can write every section
 //! it can and say why of the others.
 
-use super::{Document, Part};
+use crate::doc::{Document, Part};
 use crate::report::{ChainSheet, Sheet};
 
 impl Document {

@@ -92,8 +92,8 @@ impl Serialize for StageBlock<'_> {
 
 /// The stage block back from `StageBlock`'s JSON text (the field named is `stage`).
 pub fn stage_block_from(text: &str) -> crate::error::Result<Block> {
-    use super::quantity::FieldUnit as U;
-    super::read_returned(text, "stage", |f| Block {
+    use crate::doc::quantity::FieldUnit as U;
+    crate::doc::read_returned(text, "stage", |f| Block {
         name: "stage".into(),
         gain_db: f.required_quantity("gain_db", U::DB),
         nf_db: f.required_quantity("nf_db", U::DB),

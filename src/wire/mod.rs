@@ -1,0 +1,43 @@
+//! The wire form of results: the key names of the CLI's JSON and of the objects
+//! the page receives, and the readers of results the page hands back. Core types
+//! stay free of serde; each mapping of key to field is written once, here.
+
+#[macro_use]
+mod results;
+mod chain;
+mod design;
+mod spread;
+mod stability;
+mod swing;
+
+pub use chain::{stage_block_from, ChainReport, StageBlock};
+pub use design::DesignReport;
+pub use results::{AcReport, AnalyzeReport, BiasReport, DocumentSummary, LookupReport, NearestReport, PartReport, ResponseReport, SeriesFacts, ValueInUnit};
+pub use spread::{trials_from_columns, SpreadReport, SpreadSummary, TrialColumns};
+pub use stability::{LoopReport, LoopSummary, SuggestionOut};
+pub use swing::{LargeSummary, SwingReport};
+
+use crate::doc::Document;
+
+/// The format version and the names of the sections a document has, in document order.
+pub fn summary(d: &Document) -> DocumentSummary {
+    let sections = [
+        ("part", d.part.is_some()),
+        ("stage", d.stage.is_some()),
+        ("analysis", d.analysis.is_some()),
+        ("target", d.target.is_some()),
+        ("tolerance", d.tolerance.is_some()),
+        ("bench", d.bench.is_some()),
+        ("chain", d.chain.is_some()),
+    ]
+    .into_iter()
+    .filter_map(|(name, present)| present.then_some(name))
+    .collect();
+    DocumentSummary { halfrail: d.halfrail, sections }
+}
+
+
+/// Writes any serialisable result as pretty JSON (the CLI's output form).
+pub fn to_json<T: serde::Serialize>(value: &T) -> String {
+    serde_json::to_string_pretty(value).expect("results hold only finite numbers and strings")
+}
