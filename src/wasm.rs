@@ -307,13 +307,24 @@ pub fn stage_block(text: &str) -> Result<JsValue, JsValue> {
     to_js(&wire::StageBlock(&doc::load(text).and_then(|d| d.stage_block()).map_err(thrown)?))
 }
 
-/// The chain's budget; `stage` is `stageBlock`'s result as JSON text, or empty to
-/// compute it here.
-#[wasm_bindgen(js_name = chainReport)]
-pub fn chain_report(text: &str, stage: &str) -> Result<JsValue, JsValue> {
+/// The chain's budget of document `text`; `stage` is `stageBlock`'s result as JSON
+/// text, or empty to compute it here.
+fn budget(text: &str, stage: &str) -> Result<crate::chain::Budget, JsValue> {
     let document = doc::load(text).map_err(thrown)?;
     let known = if stage.is_empty() { None } else { Some(wire::stage_block_from(stage).map_err(thrown)?) };
-    to_js(&wire::ChainReport(&document.chain(known).map_err(thrown)?))
+    document.chain(known).map_err(thrown)
+}
+
+/// The chain's budget (`budget`'s arguments).
+#[wasm_bindgen(js_name = chainReport)]
+pub fn chain_report(text: &str, stage: &str) -> Result<JsValue, JsValue> {
+    to_js(&wire::ChainReport(&budget(text, stage)?))
+}
+
+/// The chain's budget as CSV text (the same as `halfrail chain --csv`).
+#[wasm_bindgen(js_name = chainCsv)]
+pub fn chain_csv(text: &str, stage: &str) -> Result<String, JsValue> {
+    Ok(crate::report::chain_csv(&budget(text, stage)?.cascade))
 }
 
 /// The operating point alone (no curves): for the Stage panel's figures.

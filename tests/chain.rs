@@ -182,3 +182,36 @@ mod runs {
         assert_eq!(warnings(&quiet, 6.0), vec![]);
     }
 }
+
+/// The budget as CSV (what Save as CSV and `halfrail chain --csv` write) holds the
+/// figures of the JSON report, one row per row of the budget, a name with a comma
+/// quoted (RFC 4180), an absent figure an empty field.
+#[test]
+fn the_chain_csv_holds_the_reports_figures_row_by_row() {
+    let mut doc: serde_json::Value = serde_json::from_str(halfrail::doc::DEMO).unwrap();
+    doc["chain"]["blocks"][0]["name"] = serde_json::json!("Filter, ceramic \"IF\"");
+    let d = halfrail::doc::load(&doc.to_string()).unwrap();
+    let budget = d.chain(None).unwrap();
+    let report: serde_json::Value = serde_json::from_str(&halfrail::wire::to_json(&halfrail::wire::ChainReport(&budget))).unwrap();
+    let csv = halfrail::report::chain_csv(&budget.cascade);
+    let lines: Vec<&str> = csv.split("\r\n").filter(|l| !l.is_empty()).collect();
+    let keys = ["gain_db", "nf_db", "noise_temp_k", "iip3_dbm", "oip3_dbm", "ip1db_dbm", "signal_dbm", "noise_dbm", "snr_db", "headroom_db", "noise_share", "distortion_share"];
+    assert_eq!(lines[0], format!("block,name,{}", keys.join(",")));
+    let rows = report["stages"].as_array().unwrap();
+    assert_eq!(lines.len(), 1 + rows.len());
+    assert!(lines[1].starts_with("1,\"Filter, ceramic \"\"IF\"\"\","), "{}", lines[1]);
+    for (i, (line, row)) in lines[2..].iter().zip(&rows[1..]).enumerate() {
+        let cells: Vec<&str> = line.split(',').collect();
+        assert_eq!(cells[0], (i + 2).to_string());
+        assert_eq!(cells[1], row["name"].as_str().unwrap());
+        for (k, key) in keys.iter().enumerate() {
+            match row[key].as_f64() {
+                None => assert_eq!(cells[2 + k], "", "{key} of row {}", i + 2),
+                Some(want) => {
+                    let got: f64 = cells[2 + k].parse().unwrap();
+                    assert!((got - want).abs() <= 1e-10 * want.abs().max(1.0), "{key} of row {}: {got} against {want}", i + 2);
+                }
+            }
+        }
+    }
+}

@@ -274,3 +274,14 @@ fn chain_prints_the_budget() {
     // The output level is the input plus the chain's gain.
     assert!((json["output_dbm"].as_f64().unwrap() - (-60.0 + json["gain_db"].as_f64().unwrap())).abs() < 1e-9);
 }
+
+#[test]
+fn chain_csv_is_the_budget_row_by_row() {
+    let out = halfrail(&["chain", &demo(), "--csv"]);
+    assert_eq!(out.status.code(), Some(0), "{}", stderr(&out));
+    let csv = stdout(&out);
+    let lines: Vec<&str> = csv.split("\r\n").filter(|l| !l.is_empty()).collect();
+    assert!(lines[0].starts_with("block,name,gain_db,nf_db,"), "{}", lines[0]);
+    let json: serde_json::Value = serde_json::from_str(&stdout(&halfrail(&["chain", &demo()]))).unwrap();
+    assert_eq!(lines.len(), 1 + json["stages"].as_array().unwrap().len());
+}

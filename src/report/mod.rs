@@ -1,13 +1,15 @@
-//! Text exports of computed results: the sweep and a waveform as CSV, the
-//! two-port as a Touchstone file, and the design sheet (plain text or Markdown).
-//! (JSON output belongs to `doc`.)
+//! Text exports of computed results: the sweep, a waveform and the chain's budget
+//! as CSV, the two-port as a Touchstone file, and the design sheet (plain text or
+//! Markdown). (JSON output belongs to `wire`.)
 
+mod chain_csv;
 mod layout;
 mod sheet;
 mod sweep_csv;
 mod touchstone;
 mod wave_csv;
 
+pub use chain_csv::chain_csv;
 pub use sheet::{ChainSheet, Sheet, Style, CAUTIONS};
 pub use sweep_csv::sweep_csv;
 pub use touchstone::touchstone;

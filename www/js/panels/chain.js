@@ -70,19 +70,6 @@
   const spanOf = (s, i) => (Array.isArray(s.blocks) ? s.blocks : [i, i]);
   const spanText = ([a, b]) => (a === b ? String(a + 1) : `${a + 1}–${b + 1}`);
 
-  // The cumulative figures as CSV text, one row per row of the budget (one per
-  // block unless stages are budgeted as one circuit). Numbers as the core gave them.
-  const CSV_KEYS = ['gain_db', 'nf_db', 'noise_temp_k', 'iip3_dbm', 'oip3_dbm', 'ip1db_dbm', 'signal_dbm', 'noise_dbm',
-    'snr_db', 'headroom_db', 'noise_share', 'distortion_share'];
-  const csvCell = (v) => {
-    if (v === null || v === undefined) return '';
-    const s = String(v);
-    return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
-  };
-  const csvOf = (report) => [['block', 'name', ...CSV_KEYS],
-    ...report.stages.map((s, i) => [spanText(spanOf(s, i)), s.name, ...CSV_KEYS.map((k) => s[k])])]
-    .map((row) => row.map(csvCell).join(',')).join('\r\n') + '\r\n';
-
   // The level diagram: a uPlot of the levels at each node, the x axis labelled by the
   // blocks' names (HR.plot's axes are numeric; this one is by node), styled and
   // exported as HR.plot's are.
@@ -144,6 +131,7 @@
     title: 'Chain',
     mount(container) {
       let last = null;          // the report on show
+      let lastArgs = null;      // what the core was given for it: [text, stage block JSON]
       let rendered = false;
       let due = false;          // changed while hidden
       const stageCache = new Map(); // stage document text → {ok} | {error}
@@ -357,7 +345,9 @@
       const after = table('The chain from its input up to and including each block', ['After', 'Block', ...CUMULATIVE.map(([, h]) => h)]);
       after.node.classList.add('chain-after');
       const csv = el('button', { type: 'button', disabled: true, onclick: () => {
-        if (last) HR.ui.download('halfrail-chain.csv', new Blob([csvOf(last)], { type: 'text/csv' }));
+        // The core's CSV of the budget on show (the same as `halfrail chain --csv`).
+        const r = lastArgs && HR.call('chainCsv', ...lastArgs);
+        if (r && r.ok !== undefined) HR.ui.download('halfrail-chain.csv', new Blob([r.ok], { type: 'text/csv' }));
       } }, 'Save as CSV');
       const afterCard = card('After each block', el('div', { class: 'scroll' }, after.node), el('div', { class: 'actions' }, csv),
         el('p', { class: 'plot-note' }, 'Headroom: the output 1 dB compression level less the signal there. Noise share: the block’s part of the chain’s excess noise (F − 1); distortion share: its part of 1/IIP3.'));
@@ -476,7 +466,7 @@
           if (got.error) return { error: got.error };
           stageJson = JSON.stringify(got.ok);
         }
-        return HR.call('chainReport', text, stageJson);
+        return { ...HR.call('chainReport', text, stageJson), args: [text, stageJson] };
       };
 
       const update = () => {
@@ -492,12 +482,13 @@
           const good = HR.design.lastGood();
           if (!rendered && good && good !== text) {
             const g = budget(good);
-            if (g.ok) render(g.ok, good);
+            if (g.ok) { lastArgs = g.args; render(g.ok, good); }
           }
           stale('error');
           return;
         }
         HR.design.accept(text);
+        lastArgs = r.args;
         render(r.ok, text);
         stale(null);
         container.dataset.computed = String(Number(container.dataset.computed || 0) + 1);
