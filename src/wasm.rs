@@ -343,6 +343,12 @@ pub fn sweep_csv(text: &str) -> Result<String, JsValue> {
 /// `halfrail report`). It runs every analysis, the large-signal one twice when
 /// the chain has a stage block: long enough that the page should call it from a
 /// worker.
+/// The design sheet as a structured page, for the page's own layout (`SheetPage`).
+#[wasm_bindgen(js_name = sheetPage)]
+pub fn sheet_page(text: &str) -> Result<JsValue, JsValue> {
+    to_js(&wire::SheetPage::of(&doc::load(text).map_err(thrown)?.sheet().page()))
+}
+
 #[wasm_bindgen(js_name = sheetText)]
 pub fn sheet_text(text: &str, markdown: bool) -> Result<String, JsValue> {
     let style = if markdown { crate::report::Style::Markdown } else { crate::report::Style::Text };

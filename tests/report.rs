@@ -261,3 +261,29 @@ fn hostile_titles_stay_text_in_markdown() {
     let text = sheet.render(Style::Text);
     assert!(text.starts_with("A | B <script> # not a heading\n"), "plain text keeps the title as written, on one line");
 }
+
+/// The sheet as the page gets it (`wire::SheetPage`) holds the same sheet as the
+/// Markdown `halfrail report --markdown` writes: its headings in order, and every
+/// table cell.
+#[test]
+fn the_structured_sheet_is_the_markdown_sheet() {
+    let d = halfrail::doc::load(halfrail::doc::DEMO).unwrap();
+    let sheet = d.sheet();
+    let page: serde_json::Value = serde_json::from_str(&halfrail::wire::to_json(&halfrail::wire::SheetPage::of(&sheet.page()))).unwrap();
+    let md = sheet.render(halfrail::report::Style::Markdown);
+    let blocks = page["blocks"].as_array().unwrap();
+    let headings: Vec<&str> = blocks.iter().filter(|b| b["kind"] == "heading").map(|b| b["body"].as_str().unwrap()).collect();
+    let md_headings: Vec<&str> = md.lines().filter_map(|l| l.strip_prefix("## ")).collect();
+    assert_eq!(headings, md_headings);
+    assert!(md.starts_with(&format!("# {}", page["title"].as_str().unwrap())));
+    let mut cells = 0;
+    for b in blocks.iter().filter(|b| b["kind"] == "table") {
+        for cell in b["body"]["rows"].as_array().unwrap().iter().flat_map(|r| r.as_array().unwrap()) {
+            let text = cell.as_str().unwrap().replace('|', "\\|");
+            assert!(md.contains(&text), "{text} not in the Markdown sheet");
+            cells += 1;
+        }
+    }
+    assert!(cells > 20, "{cells} cells");
+    assert!(blocks.iter().any(|b| b["kind"] == "pairs") && blocks.iter().any(|b| b["kind"] == "bullets"));
+}

@@ -3,7 +3,7 @@
 //! Markdown). (JSON output belongs to `wire`.)
 
 mod chain_csv;
-mod layout;
+pub mod layout;
 mod sheet;
 mod sweep_csv;
 mod touchstone;

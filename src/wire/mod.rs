@@ -6,12 +6,14 @@
 mod results;
 mod chain;
 mod design;
+mod sheet;
 mod spread;
 mod stability;
 mod swing;
 
 pub use chain::{stage_block_from, ChainReport, StageBlock};
 pub use design::DesignReport;
+pub use sheet::SheetPage;
 pub use results::{AcReport, AnalyzeReport, BiasReport, DocumentSummary, LookupReport, NearestReport, PartReport, ResponseReport, SeriesFacts, ValueInUnit};
 pub use spread::{trials_from_columns, SpreadReport, SpreadSummary, TrialColumns};
 pub use stability::{LoopReport, LoopSummary, SuggestionOut};

@@ -90,4 +90,16 @@ HR.fmt = (value, unit = '', digits = 3) => {
 // Whether a figure from the core is there to show (the core sends null where a
 // figure does not exist), and a figure to a fixed number of decimals, or a dash.
 HR.known = (v) => v !== null && v !== undefined && Number.isFinite(v);
-HR.fixed = (v, decimals) => (HR.known(v) ? wasm_bindgen.formatFixed(v, decimals) : '—');
+HR.fixed = (v, decimals) => (HR.known(v) ? HR.value('formatFixed', '—', v, decimals) : '—');
+
+// A core call whose failure has a harmless stand-in (a format, a fixed list): made
+// through HR.call, so a trap restarts the engine like any other call.
+HR.value = (name, fallback, ...args) => {
+  const r = HR.call(name, ...args);
+  return r.error ? fallback : r.ok;
+};
+// A value in RKM code (`2k2`), or '' when it has none; the fixed lists of the core.
+HR.rkm = (v, kind) => HR.value('formatRkm', '', v, kind);
+HR.seriesFacts = () => HR.value('seriesFacts', []);
+HR.presets = () => HR.value('presets', []);
+HR.demoText = () => HR.value('demoDocument', '{"halfrail": 1}');

@@ -66,7 +66,7 @@ HR.design = (() => {
       const g = good && HR.call('migrateDocument', good);
       if (g) good = g.error ? null : g.ok;
     } else {
-      good = wasm_bindgen.demoDocument();
+      good = HR.demoText();
       draft = JSON.parse(good);
     }
   };

@@ -129,7 +129,7 @@ HR.documents = (() => {
       copyField('Editable', markup(url)), copyField('Read only', markup(viewUrl))], [['Close', true, true]]);
   };
   const demo = async () => {
-    const text = wasm_bindgen.demoDocument();
+    const text = HR.demoText();
     if (same(HR.design.text(), text)) return status('This is the demo design already.');
     const yes = await dialog('Load the demo design?', [el('p', {}, 'The demo replaces the design on the page. Undo brings yours back.')],
       [['Load the demo', true], ['Keep my design', false, true]]);

@@ -1,10 +1,10 @@
 'use strict';
 // The printed design sheet: what Print sheet (the Design bar) and the browser's own
 // print (Ctrl+P, `beforeprint`) put on paper or in a PDF, in a container that only
-// `@media print` shows. Its words and figures are the core's sheetText (the same sheet
-// as `halfrail report`, read from its Markdown), laid out with the schematic and its
+// `@media print` shows. Its words and figures are the core's sheetPage (the blocks of
+// the same sheet as `halfrail report`), laid out with the schematic and its
 // values, the gain and phase and the loop gain drawn for paper, the permalink
-// (HR.documents.link), the build and the date. sheetText runs every analysis, the
+// (HR.documents.link), the build and the date. sheetPage runs every analysis, the
 // large-signal one too: Print sheet runs it in the background; Ctrl+P, which cannot
 // wait, uses the one Print sheet made for this design, or else runs it at once.
 
@@ -14,45 +14,40 @@ HR.sheet = (() => {
   const GRID = '#d3d8d4';
   const [C1, C2, C3] = ['#0b6e5f', '#b34700', '#5b3fa6'];
   const K = 2; // plots and schematic are drawn at this many canvas pixels a CSS pixel (and more on a dense screen)
-  const sheets = new Map(); // design text → {ok: Markdown} | {error}
+  const sheets = new Map(); // design text → {ok: the core's sheet page} | {error}
   let link = { text: null, url: null, why: '' };
   let node = null;
   let shownFor = null;
 
-  // ---- sheetText's Markdown as DOM (text only) -----------------------------------
-  const plain = (s) => s.replace(/&lt;/g, '<').replace(/&gt;/g, '>').replace(/&amp;/g, '&');
-  const cells = (line) => line.slice(2, -2).split(' | ').map((c) => plain(c.replace(/\\\|/g, '|')).trim());
-  const isRule = (line) => /^\| -{3}/.test(line || '');
-  const chunk = (md) => md.trim().split(/\n(?:[ \t]*\n)+/).map((b) => b.split('\n')).filter((b) => b[0].trim());
-  const table = (lines) => {
-    const right = cells(lines[1]).map((c) => c.endsWith(':'));
-    const row = (tag, line) => el('tr', {}, cells(line).map((c, i) => el(tag, right[i] ? { class: 'num' } : {}, c)));
-    return el('table', {}, el('thead', {}, row('th', lines[0])), el('tbody', {}, lines.slice(2).map((l) => row('td', l))));
+  // ---- The core's sheet page (sheetPage: the blocks `halfrail report` lays out) as DOM
+  const tableOf = (head, rows, right = []) => {
+    const row = (tag, cells) => el('tr', {}, cells.map((c, i) => el(tag, right[i] ? { class: 'num' } : {}, c)));
+    return el('table', {}, el('thead', {}, row('th', head)), el('tbody', {}, rows.map((r) => row('td', r))));
   };
-  const block = (lines) => {
-    if (lines[0].startsWith('| ') && isRule(lines[1])) return table(lines);
-    if (lines.every((l) => l.startsWith('- '))) return el('ul', {}, lines.map((l) => el('li', {}, plain(l.slice(2)))));
-    const text = lines.map((l) => plain(l.replace(/ {2}$/, '')));
-    return el('p', {}, text.flatMap((t, i) => (i ? [el('br'), t] : [t])));
+  const paragraph = (text) => el('p', {}, text.split('\n').flatMap((t, i) => (i ? [el('br'), t] : [t])));
+  // One block as DOM, and whether it wants the page's whole width.
+  const blockOf = ({ kind, body }) => {
+    switch (kind) {
+      case 'paragraph': return [paragraph(body), false];
+      case 'bullets': return [el('ul', {}, body.map((t) => el('li', {}, t))), true];
+      case 'pairs': return [tableOf(body.head, body.rows), false];
+      case 'table': return [tableOf(body.head, body.rows, body.right), body.head.length > 2];
+      default: return [paragraph(String(body)), false];
+    }
   };
   // → {title, sub, lead: [nodes], sections: [{head, nodes, wide}], rows: {key: [cells]}}
-  const read = (md) => {
-    const out = { title: '', sub: '', lead: [], sections: [], rows: {} };
-    for (const lines of chunk(md)) {
-      const first = lines[0];
+  const read = (page) => {
+    const out = { title: page.title, sub: page.subtitle, lead: [], sections: [], rows: {} };
+    for (const b of page.blocks) {
       const last = out.sections[out.sections.length - 1];
-      if (!out.title && first.startsWith('# ')) out.title = plain(first.slice(2));
-      else if (first.startsWith('## ')) out.sections.push({ head: plain(first.slice(3)), nodes: [], wide: false });
-      else if (!out.sub && !last && /^\*.+\*$/.test(first)) out.sub = plain(first.slice(1, -1));
-      else {
-        const b = block(lines);
-        if (last) {
-          last.nodes.push(b);
-          if (b.tagName === 'UL' || (b.tagName === 'TABLE' && cells(lines[0]).length > 2)) last.wide = true;
-        } else out.lead.push(b);
-        // Component rows (ref, key, value, …) label the schematic.
-        if (b.tagName === 'TABLE') for (const l of lines.slice(2)) { const c = cells(l); if (/_(ohm|f)$/.test(c[1])) out.rows[c[1]] = c; }
-      }
+      if (b.kind === 'heading') { out.sections.push({ head: b.body, nodes: [], wide: false }); continue; }
+      const [node, wide] = blockOf(b);
+      if (last) {
+        last.nodes.push(node);
+        last.wide = last.wide || wide;
+      } else out.lead.push(node);
+      // Component rows (ref, key, value, …) label the schematic.
+      if (b.kind === 'table') for (const c of b.body.rows) if (/_(ohm|f)$/.test(c[1])) out.rows[c[1]] = c;
     }
     return out;
   };
@@ -189,14 +184,14 @@ HR.sheet = (() => {
   };
 
   const build = ({ text, problem, older }) => {
-    if (!sheets.has(text)) sheets.set(text, HR.call('sheetText', text, true));
+    if (!sheets.has(text)) sheets.set(text, HR.call('sheetPage', text));
     while (sheets.size > 4) sheets.delete(sheets.keys().next().value);
-    const md = sheets.get(text);
+    const made = sheets.get(text);
     const url = link.text === text && link.url;
     const linkText = url || (link.text === text ? `none: ${link.why}` : older ? 'none while the design on the page has a bad value' : 'not made yet: print again');
     const key = JSON.stringify([text, linkText, problem || null]);
     if (shownFor === key) return;
-    const sheet = md.ok ? read(md.ok) : { title: '', sub: '', lead: [], sections: [], rows: {} };
+    const sheet = made.ok ? read(made.ok) : { title: '', sub: '', lead: [], sections: [], rows: {} };
     const doc = JSON.parse(text);
     const parts = [];
     let flow = null;
@@ -214,14 +209,14 @@ HR.sheet = (() => {
         flow.append(sec);
       }
     }
-    if (md.ok && !drawn) parts.push(drawings());
+    if (made.ok && !drawn) parts.push(drawings());
     if (!node) document.body.append((node = el('div', { class: 'sheet', id: 'sheet' })));
     const warn = (t) => el('p', { class: 'warn' }, t);
     node.replaceChildren(...[
       el('header', {}, el('h1', {}, sheet.title || String(doc.title || 'Design sheet')), el('p', { class: 'sub' }, sheet.sub)),
       problem ? warn(older ? `The design on the page has a bad value (${problem.field}: ${problem.reason}); this sheet is of the last design without one.`
         : `This design has a bad value (${problem.field}: ${problem.reason}).`) : null,
-      md.error ? warn(`The sheet could not be made: ${md.error.field}: ${md.error.reason}.`) : null,
+      made.error ? warn(`The sheet could not be made: ${made.error.field}: ${made.error.reason}.`) : null,
       ...sheet.lead, ...parts,
       el('footer', {}, el('p', {}, `Halfrail ${HR.version} · printed ${today()}`),
         el('p', { class: 'link' }, 'Link to this design: ', url ? el('a', { href: url }, url) : linkText))].filter(Boolean));
@@ -250,7 +245,7 @@ HR.sheet = (() => {
     if (!sheets.has(from.text)) {
       HR.setStatus('Preparing the design sheet (every analysis, the large-signal one too)…');
       if (pending) pending.cancel();
-      pending = HR.background.run('sheetText', [from.text, true], { lane: 'sheet' });
+      pending = HR.background.run('sheetPage', [from.text], { lane: 'sheet' });
       const r = await pending.promise;
       pending = null;
       if (r.cancelled) return;

@@ -106,7 +106,7 @@
       ],
       compute: (s) => HR.call('mismatchOf', s.mismatch, s.mismatchForm),
       render: (m) => {
-        out.cells.gamma.textContent = wasm_bindgen.formatFixed(m.gamma, 4);
+        out.cells.gamma.textContent = HR.fixed(m.gamma, 4);
         out.cells.return_loss_db.textContent = m.return_loss_db === null ? '∞ dB (perfect match)' : HR.fmt(m.return_loss_db, 'dB');
         out.cells.vswr.textContent = `${HR.fmt(m.vswr, '', 4)} : 1`;
         out.cells.mismatch_loss_db.textContent = HR.fmt(m.mismatch_loss_db, 'dB');
@@ -139,7 +139,7 @@
           `${row.error_pct >= 0 ? '+' : ''}${HR.fmt(row.error_pct, '%')}`,
           show(row.below),
           show(row.above),
-          rkmKind ? wasm_bindgen.formatRkm(row.nearest, rkmKind) || '—' : '—',
+          rkmKind ? HR.rkm(row.nearest, rkmKind) || '—' : '—',
         ]));
       },
     });
@@ -171,7 +171,7 @@
     mount(container) {
       const state = { ...DEFAULTS, ...HR.store.get('bench', {}) };
       const save = () => HR.store.set('bench', state);
-      const facts = Object.fromEntries(wasm_bindgen.seriesFacts().map((f) => [f.name, f]));
+      const facts = Object.fromEntries(HR.seriesFacts().map((f) => [f.name, f]));
       const cards = [levelCard(state, save), mismatchCard(state, save), seriesCard(state, save, facts),
         ratioCard(state, save, facts)];
       container.append(

@@ -107,7 +107,7 @@
   // to put in the design: the RKM code when it reads back as exactly the value.
   const valueOf = (key, v) => {
     const [unit, kind] = KNOBS[key] || ['', 'R'];
-    const rkm = wasm_bindgen.formatRkm(v, kind);
+    const rkm = HR.rkm(v, kind);
     const shown = unit === 'Ω' ? rkm || fmt(v, unit, 3) : fmt(v, unit, 3);
     const look = HR.call('lookUp', String(v));
     const series = look.ok && look.ok.member_of.length ? ` · ${look.ok.member_of[0]}` : '';

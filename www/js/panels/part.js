@@ -52,7 +52,7 @@
   const text = (v) => (v === undefined || v === null ? '' : String(v));
 
   const partCard = (problem) => {
-    const presets = wasm_bindgen.presets();
+    const presets = HR.presets();
     const pick = choice({ label: 'Preset (illustrative, not a datasheet)', value: presets[0].id,
       options: presets.map((p) => [p.id, p.title]), onChange: () => {} });
     const undo = el('button', { type: 'button', disabled: true, onclick: () => HR.design.undo() }, 'Undo');
@@ -231,7 +231,7 @@
       const unitOf = { kn: 'A/V²', kp: 'A/V²', vtn: 'V', vtp: 'V', lambda: '1/V', cap: 'F' };
       const show = (name, v) => (['vtn', 'vtp', 'cap'].includes(name) ? HR.fmt(v, name === 'cap' ? 'F' : 'V', 4) : `${HR.fmt(v, '', 4)} ${unitOf[name]}`);
       fillRows(params.tbody, r.ok.parameters.map((p) => [p.name === 'cap' ? 'capacitance (sum)' : p.name, show(p.name, p.value), show(p.name, p.sigma)]));
-      fillRows(residuals.tbody, r.ok.residuals.map((x) => [x.reading, HR.fmt(x.measured, '', 4), HR.fmt(x.fitted, '', 4), wasm_bindgen.formatFixed(x.normalized, 2)]));
+      fillRows(residuals.tbody, r.ok.residuals.map((x) => [x.reading, HR.fmt(x.measured, '', 4), HR.fmt(x.fitted, '', 4), HR.fixed(x.normalized, 2)]));
       results.hidden = false;
     } }, 'Fit the part');
     const node = card('Bench fit',

@@ -72,7 +72,7 @@
           nf: d.nf_db === null ? 'needs a source resistance' : fmt(d.nf_db, 'dB'),
           en: `${fmt(d.noise_in_v_per_rthz, 'V', 3)}/√Hz`,
           band_noise: d.integrated_noise_v === null ? 'set analysis.noise_f_low_hz and noise_f_high_hz' : fmt(d.integrated_noise_v, 'Vrms', 3),
-          mu: `${wasm_bindgen.formatFixed(d.mu, 3)} ${d.mu > 1 ? '(unconditionally stable)' : '(some source or load can make it oscillate)'}`,
+          mu: `${HR.fixed(d.mu, 3)} ${d.mu > 1 ? '(unconditionally stable)' : '(some source or load can make it oscillate)'}`,
         };
       };
       // What the reference comparison subtracts: [value, how] (HR.compare.figures).

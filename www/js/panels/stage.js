@@ -31,7 +31,7 @@
     const parsed = HR.call('parseValue', text, unit, `stage.${key}`);
     if (parsed.error) return { text: `${name} | ${text} (!)`, short: false };
     const v = parsed.ok.value;
-    const shown = unit === 'Ω' ? (v === 0 ? '0 (short)' : wasm_bindgen.formatRkm(v, 'R') || HR.fmt(v, 'Ω', 3)) : HR.fmt(v, 'F', 3);
+    const shown = unit === 'Ω' ? (v === 0 ? '0 (short)' : HR.rkm(v, 'R') || HR.fmt(v, 'Ω', 3)) : HR.fmt(v, 'F', 3);
     const look = v > 0 ? HR.call('lookUp', String(v)) : { error: true };
     const series = look.ok && look.ok.member_of.length ? ` · ${look.ok.member_of[0]}` : '';
     return { text: `${name} | ${shown}${series}`, short: v === 0 };
@@ -42,11 +42,11 @@
   const db = (v) => (known(v) ? HR.fmt(v, 'dB') : '—');
   // Signed, so over and short read apart; no sign where it rounds to nothing.
   const off = (v) => (db(v) !== '0.00 dB' && v > 0 ? `+${db(v)}` : db(v));
-  const rkm = (v) => wasm_bindgen.formatRkm(v, 'R') || HR.fmt(v, 'Ω', 3);
+  const rkm = (v) => HR.rkm(v, 'R') || HR.fmt(v, 'Ω', 3);
   const rfb = (c) => (c.r_fb_parts_ohm ? c.r_fb_parts_ohm.map(rkm).join(c.r_fb_joined === 'series' ? ' + ' : ' ∥ ') : rkm(c.r_fb_ohm));
   // The text to put in the design: the RKM code when it reads back as exactly the value.
   const asText = (v, kind, unit) => {
-    const code = wasm_bindgen.formatRkm(v, kind);
+    const code = HR.rkm(v, kind);
     const back = code ? HR.call('parseValue', code, unit, '') : {};
     return back.ok && back.ok.value === v ? code : v;
   };
@@ -73,7 +73,7 @@
     });
     const selects = [
       ['gain_kind', 'Gain kind', [['voltage', 'Voltage, v(out)/v(in)'], ['power', 'Power, GT']], 'voltage'],
-      ['series', 'Resistor series', wasm_bindgen.seriesFacts().map((f) => [f.name, f.name]), 'E24'],
+      ['series', 'Resistor series', HR.seriesFacts().map((f) => [f.name, f.name]), 'E24'],
     ].map(([key, label, options, fallback]) => {
       const c = HR.ui.choice({ label, options, value: text(key) || fallback, onChange: (v) => HR.design.set('target', key, v, 'stage') });
       c.wrap.classList.add('compact');
