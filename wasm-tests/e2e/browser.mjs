@@ -107,3 +107,7 @@ export const framesDrawn = (frameOrPage, n = 2) => frameOrPage.evaluate((count) 
   const step = (left) => (left === 0 ? done() : requestAnimationFrame(() => step(left - 1)));
   step(count);
 }), n);
+
+// The page's one Undo and Redo (the Design bar's), for every panel's edits.
+export const undoButton = (page) => page.locator('#docbar').getByRole('button', { name: 'Undo', exact: true });
+export const redoButton = (page) => page.locator('#docbar').getByRole('button', { name: 'Redo', exact: true });

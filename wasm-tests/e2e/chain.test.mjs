@@ -10,7 +10,7 @@
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
 import fs from 'fs';
-import { launch, watch, ready, clearStorage, PAGE_URL, cli } from './browser.mjs';
+import { launch, watch, ready, clearStorage, PAGE_URL, cli, undoButton } from './browser.mjs';
 
 let browser;
 before(async () => { browser = await launch(); });
@@ -131,7 +131,7 @@ test('adding, removing, moving and editing a block each change the budget; one U
   const { page, seen } = await openChain();
   const original = await chain(page);
   const gain = await total(page, 'gain_db');
-  const undo = panel(page).getByRole('button', { name: 'Undo', exact: true });
+  const undo = undoButton(page);
   const step = async (action, check, { withCli = true } = {}) => {
     const n = await computed(page);
     await action();
@@ -309,7 +309,7 @@ test('stages next to each other: compared as matched blocks and as one circuit; 
   assert.equal(await panel(page).locator('figure.chain-levels').getAttribute('data-nodes'), '5');
   // Undo goes back to matched blocks.
   n = await computed(page);
-  await panel(page).getByRole('button', { name: 'Undo', exact: true }).click();
+  await undoButton(page).click();
   await recomputed(page, n);
   assert.equal((await chain(page)).stage_runs, undefined);
   assert.equal(await card.getByLabel('Stages next to each other').inputValue(), 'matched');

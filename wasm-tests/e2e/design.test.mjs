@@ -5,7 +5,7 @@
 // says so with the nearest reachable gain, and a bad target value is reported at its field.
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
-import { launch, clearStorage, openPanel, cli } from './browser.mjs';
+import { launch, clearStorage, openPanel, cli, undoButton, redoButton } from './browser.mjs';
 
 let browser;
 before(async () => { browser = await launch(); });
@@ -101,17 +101,17 @@ test('Use applies the best pair and the coupling capacitors as one step; one und
   assert.equal(await page.evaluate(() => HR.design.undoLabel()), `use ${rinCode} / ${rfbCode}`);
 
   n = await computed(page);
-  await page.getByRole('button', { name: 'Undo', exact: true }).click();
+  await undoButton(page).click();
   await recomputed(page, n);
   assert.deepEqual(await stage(page), before, 'one undo brings back all four values');
   n = await computed(page);
-  await page.getByRole('button', { name: 'Redo', exact: true }).click();
+  await redoButton(page).click();
   await recomputed(page, n);
   assert.equal(await valueOf(page, 'r_fb_ohm'), d.candidates[0].r_fb_ohm);
   assert.equal(await valueOf(page, 'c_in_f'), d.c_in_f);
 
   // Without the capacitors: only the resistors change.
-  await page.getByRole('button', { name: 'Undo', exact: true }).click();
+  await undoButton(page).click();
   await page.getByLabel('Use fits these capacitors too').uncheck();
   n = await computed(page);
   await rows(page).nth(1).getByRole('button', { name: /^Use/ }).click();

@@ -12,7 +12,7 @@ import fs from 'fs';
 import os from 'os';
 import path from 'path';
 import { execFileSync } from 'child_process';
-import { launch, watch, ready, clearStorage, PAGE_PATH, PAGE_URL, CLI_PATH, framesDrawn } from './browser.mjs';
+import { launch, watch, ready, clearStorage, PAGE_PATH, PAGE_URL, CLI_PATH, framesDrawn, undoButton } from './browser.mjs';
 
 let browser;
 before(async () => { browser = await launch(); });
@@ -77,7 +77,7 @@ test('Save downloads the draft, the CLI accepts it, and Open brings it back as o
   assert.equal(await status(page), 'Opened saved.halfrail.json — Undo brings back your previous design.');
   // The schematic shows it, and one undo brings back the design before.
   await page.waitForFunction(() => document.querySelector('#panel-stage .value[data-key="r_fb_ohm"]').textContent.includes('3k3'));
-  await page.locator('#panel-stage').getByRole('button', { name: 'Undo', exact: true }).click();
+  await undoButton(page).click();
   assert.equal(await page.evaluate(() => HR.design.get('stage', 'r_fb_ohm')), '10k');
   fs.rmSync(dir, { recursive: true, force: true });
   await clean(page, seen);

@@ -3,7 +3,7 @@
 // applied through the design and undone; the figures agree with the native CLI.
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
-import { launch, clearStorage, openPanel, cli } from './browser.mjs';
+import { launch, clearStorage, openPanel, cli, undoButton } from './browser.mjs';
 
 let browser;
 before(async () => { browser = await launch(); });
@@ -85,7 +85,7 @@ test('the buffered part oscillates; the r_fb fix applies, and undo brings the os
   assert.match(await page.locator('#panel-loop .card').filter({ hasText: 'Compensation' }).textContent(), /already meets the wanted 60°/);
 
   n = await count(page);
-  await page.locator('#panel-loop').getByRole('button', { name: /^Undo/ }).click();
+  await undoButton(page).click();
   await recomputed(page, n);
   assert.equal(await rfb(page), before);
   assert.match(await verdict(page), /^Oscillates at about 8\d MHz$/);

@@ -6,7 +6,7 @@ import assert from 'node:assert/strict';
 import { execFileSync } from 'child_process';
 import path from 'path';
 import { fileURLToPath } from 'url';
-import { launch, ready, clearStorage, openPanel, PAGE_URL } from './browser.mjs';
+import { launch, ready, clearStorage, openPanel, PAGE_URL, undoButton } from './browser.mjs';
 
 const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
 let browser;
@@ -72,7 +72,7 @@ test('a preset loads and can be undone; a buffered part shows each stage', async
   assert.equal(await supply.inputValue(), '5');
   assert.equal(await page.getByLabel('Stages', { exact: true }).first().inputValue(), '3');
   assert.equal(await page.locator('#panel-part tbody tr').count() >= 3, true, 'one row per stage');
-  await page.getByRole('button', { name: /^Undo/ }).click();
+  await undoButton(page).click();
   await page.waitForFunction((v) => document.querySelector('#panel-part input').value !== '' &&
     [...document.querySelectorAll('#panel-part input')].some((i) => i.value === v), original);
   assert.equal(await supply.inputValue(), original);

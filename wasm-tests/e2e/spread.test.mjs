@@ -7,7 +7,7 @@
 // the design (persisted, undoable, a bad one refused at its field).
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
-import { launch, watch, ready, clearStorage, editElsewhereDuringRun, PAGE_URL, cli } from './browser.mjs';
+import { launch, watch, ready, clearStorage, editElsewhereDuringRun, PAGE_URL, cli, undoButton } from './browser.mjs';
 
 let browser;
 before(async () => { browser = await launch(); });
@@ -215,7 +215,7 @@ test('the tolerances are part of the design: a bad one is refused at its field w
   await results(page, 2);
   assert.equal(await resistors.getAttribute('aria-invalid'), 'false');
   const wider = (await figureRow(page, 'Gain at f_design'))[2];
-  await page.locator('#panel-spread').getByRole('button', { name: 'Undo', exact: true }).click();
+  await undoButton(page).click();
   await results(page, 3);
   assert.equal(await resistors.inputValue(), '1');
   assert.notEqual((await figureRow(page, 'Gain at f_design'))[2], wider, 'the spread follows the tolerance');

@@ -3,7 +3,7 @@
 // component with the last figures kept.
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
-import { launch, clearStorage, openPanel } from './browser.mjs';
+import { launch, clearStorage, openPanel, undoButton, redoButton } from './browser.mjs';
 
 let browser;
 before(async () => { browser = await launch(); });
@@ -27,13 +27,42 @@ test('edit a value in place, then undo and redo it', async () => {
   assert.match(await value(page, 'r_fb_ohm').textContent(), /4k7 · E3/);
   assert.notEqual(await figure(page, 'gain'), before, 'more feedback resistance, more gain');
   n = await count(page);
-  await page.getByRole('button', { name: 'Undo', exact: true }).click();
+  await undoButton(page).click();
   await recomputed(page, n);
   assert.equal(await figure(page, 'gain'), before);
   n = await count(page);
-  await page.getByRole('button', { name: 'Redo', exact: true }).click();
+  await redoButton(page).click();
   await recomputed(page, n);
   assert.match(await value(page, 'r_fb_ohm').textContent(), /4k7/);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});
+
+test('one Undo and Redo for the whole page: Ctrl+Z and Ctrl+Y on any panel, each step named', async () => {
+  const { page, seen } = await openPanel(browser.context, 'stage');
+  assert.equal(await undoButton(page).isDisabled(), true, 'nothing to undo at first');
+  let n = await count(page);
+  await value(page, 'r_fb_ohm').click();
+  await page.locator('#panel-stage input.in-place').fill('4k7');
+  await page.keyboard.press('Enter');
+  await recomputed(page, n);
+  assert.match(await undoButton(page).getAttribute('title'), /^Undo: .+ \(Ctrl\+Z\)$/);
+  // On another panel, with the focus on the page (not in a field), the keys act on the design.
+  await page.locator('#rail a[href="#chain"]').click();
+  await page.locator('#panel-chain').waitFor();
+  await page.locator('body').click({ position: { x: 5, y: 5 } });
+  await page.keyboard.press('Control+z');
+  await page.waitForFunction(() => HR.design.get('stage', 'r_fb_ohm') === '2k2');
+  assert.equal(await redoButton(page).isDisabled(), false);
+  await page.keyboard.press('Control+y');
+  await page.waitForFunction(() => HR.design.get('stage', 'r_fb_ohm') === '4k7');
+  // In a text field the keys are the field's own.
+  const field = page.locator('#panel-chain').getByLabel('Input level', { exact: true });
+  await field.focus();
+  await page.keyboard.press('Control+z');
+  assert.equal(await page.evaluate(() => HR.design.get('stage', 'r_fb_ohm')), '4k7');
+  // No panel has Undo or Redo of its own.
+  assert.equal(await page.locator('#main').getByRole('button', { name: /^(Undo|Redo)/ }).count(), 0);
   assert.deepEqual(seen.errors, []);
   await page.close();
 });

@@ -136,11 +136,36 @@ HR.documents = (() => {
     if (yes && HR.design.load(text, 'load the demo')) status('Loaded the demo design — Undo brings back your previous design.');
   };
 
+  // The page's one Undo/Redo pair, for every panel's edits (HR.design keeps one
+  // history for the whole design), each saying what it takes back; and Ctrl+Z,
+  // Ctrl+Y (or Ctrl+Shift+Z) anywhere but in a text field, which keeps its own.
+  const undoRedo = () => {
+    const undo = el('button', { type: 'button', onclick: () => HR.design.undo() }, 'Undo');
+    const redo = el('button', { type: 'button', onclick: () => HR.design.redo() }, 'Redo');
+    const sync = () => {
+      undo.disabled = !HR.design.canUndo();
+      redo.disabled = !HR.design.canRedo();
+      undo.title = undo.disabled ? 'Nothing to undo' : `Undo: ${HR.design.undoLabel()} (Ctrl+Z)`;
+      redo.title = redo.disabled ? 'Nothing to redo' : `Redo: ${HR.design.redoLabel()} (Ctrl+Y)`;
+    };
+    HR.design.onChange(sync);
+    sync();
+    document.addEventListener('keydown', (e) => {
+      if (!(e.ctrlKey || e.metaKey) || e.altKey) return;
+      const focus = document.activeElement;
+      if (focus && (['INPUT', 'TEXTAREA', 'SELECT'].includes(focus.tagName) || focus.isContentEditable)) return;
+      const key = e.key.toLowerCase();
+      if (key === 'z' && !e.shiftKey) { HR.design.undo(); e.preventDefault(); }
+      if ((key === 'z' && e.shiftKey) || key === 'y') { HR.design.redo(); e.preventDefault(); }
+    });
+    return [undo, redo];
+  };
+
   const bar = () => {
     const picker = el('input', { type: 'file', accept: '.json,application/json', hidden: true, 'aria-label': 'Design file to open',
       onchange: () => { if (picker.files[0]) open(picker.files[0]); picker.value = ''; } });
     const button = (text, onclick) => el('button', { type: 'button', onclick }, text);
-    document.getElementById('docbar').replaceChildren(el('span', {}, 'Design'),
+    document.getElementById('docbar').replaceChildren(el('span', {}, 'Design'), ...(view ? [] : undoRedo()),
       button('Save', save), view ? null : button('Open…', () => picker.click()), button('Copy link', copyLink),
       view ? null : button('Embed…', embedDialog), view ? null : button('Load the demo', demo), button('Print sheet', () => HR.sheet.print()),
       view ? null : picker, ...HR.compare.controls(embed));

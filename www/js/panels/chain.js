@@ -162,8 +162,6 @@
       });
       const warnInput = inputs[inputs.length - 1];
       warnInput.f.wrap.hidden = true;
-      const undo = el('button', { type: 'button', onclick: () => HR.design.undo() }, 'Undo');
-      const redo = el('button', { type: 'button', onclick: () => HR.design.redo() }, 'Redo');
       const inputCard = card('Drive and bandwidth',
         el('p', { class: 'intro' }, 'The level into the chain and the bandwidth its noise is counted over.'),
         el('div', { class: 'grid-fields' }, inputs.map(({ f }) => f.wrap)));
@@ -190,8 +188,7 @@
         el('button', { type: 'button', onclick: () => add('filter') }, 'Add a filter'),
         el('button', { type: 'button', onclick: () => add('amp') }, 'Add an amplifier'),
         el('button', { type: 'button', onclick: () => add('stage') }, 'Add this stage'),
-        el('span', { class: 'own' }, ownName, el('button', { type: 'button', onclick: addOwn }, 'Add a block of your own')),
-        undo, redo);
+        el('span', { class: 'own' }, ownName, el('button', { type: 'button', onclick: addOwn }, 'Add a block of your own')));
       const problem = el('p', { class: 'error chain-problem', 'aria-live': 'polite', hidden: true });
       const staleNote = el('p', { class: 'stale-note', hidden: true });
       const blocksCard = card('Blocks', noChain, el('div', { class: 'scroll' }, blockTable.node), adders, problem, staleNote);
@@ -497,8 +494,6 @@
 
       const syncInputs = () => {
         inputs.forEach(({ key, f }) => { if (document.activeElement !== f.input) f.input.value = raw(HR.design.get('chain', key)); });
-        undo.disabled = !HR.design.canUndo();
-        redo.disabled = !HR.design.canRedo();
       };
       HR.design.onChange(() => { syncInputs(); schedule(); });
       HR.compare.onChange(schedule);

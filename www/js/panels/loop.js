@@ -648,16 +648,8 @@
         el('thead', {}, el('tr', {}, ['Change', 'Value', 'Phase margin', 'Gain at f_design', 'Upper band edge', ''].map((h) => el('th', { scope: 'col' }, h)))),
         helperBody);
       const helperWrap = el('div', { class: 'scroll' }, helperTable);
-      const undo = el('button', { type: 'button', disabled: true, onclick: () => HR.design.undo() }, 'Undo');
-      const redo = el('button', { type: 'button', disabled: true, onclick: () => HR.design.redo() }, 'Redo');
-      const helperCard = card('Compensation', helperIntro, helperWrap, el('div', { class: 'actions' }, undo, redo));
+      const helperCard = card('Compensation', helperIntro, helperWrap);
       helperCard.classList.add('wide');
-      const refreshHistory = () => {
-        undo.disabled = !HR.design.canUndo();
-        redo.disabled = !HR.design.canRedo();
-        undo.textContent = HR.design.canUndo() ? `Undo ${HR.design.undoLabel()}` : 'Undo';
-        redo.textContent = HR.design.canRedo() ? `Redo ${HR.design.redoLabel()}` : 'Redo';
-      };
 
       // Plots.
       const plotsCard = card('Loop gain, Nyquist, poles, step and μ', el('p', { class: 'intro' },
@@ -744,7 +736,7 @@
           helperBody.replaceChildren();
           return;
         }
-        helperIntro.textContent = `The loop has ${known(s.phase_margin_deg) ? deg(s.phase_margin_deg) : 'no measurable'} phase margin; ${wanted} is wanted (the target’s pm_min_deg, or 60° when it sets none). ${r.helper_words} Apply puts the values into the stage; Undo takes them back.`;
+        helperIntro.textContent = `The loop has ${known(s.phase_margin_deg) ? deg(s.phase_margin_deg) : 'no measurable'} phase margin; ${wanted} is wanted (the target’s pm_min_deg, or 60° when it sets none). ${r.helper_words} Apply puts the values into the stage; Undo (in the Design bar, or Ctrl+Z) takes them back.`;
         const pmNow = known(s.phase_margin_deg) ? deg(s.phase_margin_deg) : (s.stable ? 'no crossover' : 'unstable');
         helperBody.replaceChildren(...r.suggestions.map((g) => {
           const found = g.changes.length > 0;
@@ -814,7 +806,6 @@
         report: (error) => {
           problem.textContent = error ? error.message || error.reason : '';
           problem.hidden = !error;
-          refreshHistory();
         },
         stale: (isStale, rendered) => {
           stale.hidden = !(isStale && rendered);

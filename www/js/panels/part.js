@@ -55,7 +55,6 @@
     const presets = HR.presets();
     const pick = choice({ label: 'Preset (illustrative, not a datasheet)', value: presets[0].id,
       options: presets.map((p) => [p.id, p.title]), onChange: () => {} });
-    const undo = el('button', { type: 'button', disabled: true, onclick: () => HR.design.undo() }, 'Undo');
     const load = el('button', { type: 'button', onclick: () => {
       const p = presets.find((x) => x.id === pick.select.value);
       HR.design.replace('part', JSON.parse(JSON.stringify(p.part)), `load “${p.title}”`);
@@ -73,12 +72,10 @@
     const refresh = () => {
       fields.forEach(({ key, f }) => { if (document.activeElement !== f.input) f.input.value = text(HR.design.get('part', key)); });
       model.select.value = text(HR.design.get('part', 'model')) || 'square-law';
-      undo.disabled = !HR.design.canUndo();
-      undo.textContent = HR.design.canUndo() ? `Undo ${HR.design.undoLabel()}` : 'Undo';
     };
     const node = card('Part',
       el('p', { class: 'intro' }, 'Start from an illustrative preset or type your part’s parameters (given at 25 °C). Values take engineering notation or RKM codes.'),
-      el('div', { class: 'inputs' }, pick.wrap, el('div', { class: 'actions' }, load, undo)),
+      el('div', { class: 'inputs' }, pick.wrap, el('div', { class: 'actions' }, load)),
       el('div', { class: 'inputs' }, model.wrap),
       el('div', { class: 'grid-fields' }, fields.map(({ f }) => f.wrap)),
       problem);

@@ -99,12 +99,8 @@
         f.wrap.classList.add('compact');
         return { key, f };
       });
-      const undo = el('button', { type: 'button', onclick: () => HR.design.undo() }, 'Undo');
-      const redo = el('button', { type: 'button', onclick: () => HR.design.redo() }, 'Redo');
       const sync = () => {
         fields.forEach(({ key, f }) => { if (document.activeElement !== f.input) f.input.value = raw(key); });
-        undo.disabled = !HR.design.canUndo();
-        redo.disabled = !HR.design.canRedo();
       };
       HR.design.onChange(sync);
       sync();
@@ -119,7 +115,7 @@
       const staleNote = el('p', { class: 'stale-note', hidden: true });
       const runCard = card('Tolerances', el('p', { class: 'intro' }, 'Each trial builds the stage with every part drawn at random, evenly and independently, within ± its tolerance: the stage’s resistors and capacitors, the supply, kn, kp, Vtn and Vtp. The source and the load stay as they are.'),
         el('div', { class: 'grid-fields' }, fields.map(({ f }) => f.wrap)), running, timing,
-        el('div', { class: 'actions' }, now, undo, redo), problem, staleNote);
+        el('div', { class: 'actions' }, now), problem, staleNote);
       runCard.classList.add('wide');
 
       // ---- Yield, figures and corners ---------------------------------------------

@@ -1,6 +1,6 @@
 'use strict';
 // Stage: the amplifier around the part as a schematic drawn from its topology, each
-// value edited in place (click it, or Tab to it and press Enter), undo and redo, and
+// value edited in place (click it, or Tab to it and press Enter; the Design bar undoes), and
 // the key figures beside it, recomputed by the core after every edit.
 
 (() => {
@@ -196,8 +196,6 @@
       const overlay = el('div', { class: 'schematic-labels' });
       const drawing = el('div', { class: 'schematic' }, canvas, overlay);
       const problem = el('p', { class: 'error', 'aria-live': 'polite' });
-      const undo = el('button', { type: 'button', onclick: () => HR.design.undo() }, 'Undo');
-      const redo = el('button', { type: 'button', onclick: () => HR.design.redo() }, 'Redo');
       let editing = null;
 
       const edit = (key, anchor) => {
@@ -231,8 +229,6 @@
           'aria-label': a.text ? `${a.text.replace(' | ', ' ')}: edit` : `${NAMES[a.key][0]} not fitted: add`,
           onclick: () => edit(a.key, a),
         }, ...(a.text ? a.text.split(' | ').map((t) => el('span', {}, t)) : [`+ ${NAMES[a.key][0]}`]))));
-        undo.disabled = !HR.design.canUndo();
-        redo.disabled = !HR.design.canRedo();
       };
 
       const cells = {};
@@ -273,17 +269,10 @@
       container.append(el('h1', {}, 'Stage'),
         el('p', { class: 'lede' }, 'The components around the part. Click a value (or Tab to it and press Enter) to change it; leave it empty to take the part out. Values take engineering notation or RKM codes (4k7, 100n).'),
         el('div', { class: 'cards' },
-          (() => { const c = card('Schematic', el('div', { class: 'scroll' }, drawing), problem, el('div', { class: 'actions' }, undo, redo)); c.classList.add('wide'); return c; })(),
+          (() => { const c = card('Schematic', el('div', { class: 'scroll' }, drawing), problem); c.classList.add('wide'); return c; })(),
           (() => { const c = card('Key figures', stale, readout); c.classList.add('wide'); return c; })(),
           target.node));
 
-      document.addEventListener('keydown', (e) => {
-        if (container.hidden || container.closest('[hidden]') || !(e.ctrlKey || e.metaKey)) return;
-        if (document.activeElement && ['INPUT', 'TEXTAREA'].includes(document.activeElement.tagName)) return;
-        const key = e.key.toLowerCase();
-        if (key === 'z' && !e.shiftKey) { HR.design.undo(); e.preventDefault(); }
-        if ((key === 'z' && e.shiftKey) || key === 'y') { HR.design.redo(); e.preventDefault(); }
-      });
       HR.design.follow(container, {
         // The figures need the sweep and the operating point; either error is the answer.
         compute: (text) => {
