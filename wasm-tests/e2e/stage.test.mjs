@@ -48,6 +48,7 @@ test('one Undo and Redo for the whole page: Ctrl+Z and Ctrl+Y on any panel, each
   await recomputed(page, n);
   assert.match(await undoButton(page).getAttribute('title'), /^Undo: .+ \(Ctrl\+Z\)$/);
   // On another panel, with the focus on the page (not in a field), the keys act on the design.
+  const computedBefore = await count(page);
   await page.locator('#rail a[href="#chain"]').click();
   await page.locator('#panel-chain').waitFor();
   await page.locator('body').click({ position: { x: 5, y: 5 } });
@@ -61,6 +62,11 @@ test('one Undo and Redo for the whole page: Ctrl+Z and Ctrl+Y on any panel, each
   await field.focus();
   await page.keyboard.press('Control+z');
   assert.equal(await page.evaluate(() => HR.design.get('stage', 'r_fb_ohm')), '4k7');
+  // Hidden, Stage computed nothing for the two steps; shown again, it computes once.
+  assert.equal(await count(page), computedBefore);
+  await page.locator('#rail a[href="#stage"]').click();
+  await recomputed(page, computedBefore);
+  assert.equal(await count(page), computedBefore + 1);
   // No panel has Undo or Redo of its own.
   assert.equal(await page.locator('#main').getByRole('button', { name: /^(Undo|Redo)/ }).count(), 0);
   assert.deepEqual(seen.errors, []);

@@ -155,7 +155,8 @@ HR.design = (() => {
     // `compute(text)` runs on the draft: a result is rendered and the draft accepted;
     // an error goes to `report` (null clears it) and the last good design's result is
     // shown instead if nothing was yet, marked by `stale(true, rendered)`. `when()`
-    // can hold updates back (while a value is being typed in place).
+    // can hold updates back (while a value is being typed in place). A hidden panel
+    // does not compute: an edit made meanwhile is computed when it is shown again.
     // `panel.dataset.computed` counts the results rendered.
     follow(panel, { compute, render, report, stale, when = () => true }) {
       let rendered = false;
@@ -178,7 +179,13 @@ HR.design = (() => {
         panel.dataset.computed = String(Number(panel.dataset.computed || 0) + 1);
       };
       const schedule = HR.ui.coalesce(update);
-      listeners.add(() => { if (when()) schedule(); });
+      let due = false;
+      listeners.add(() => {
+        if (!when()) return;
+        if (HR.ui.shown(panel)) schedule();
+        else due = true;
+      });
+      HR.ui.onShown(panel, () => { if (due) { due = false; update(); } });
       update();
     },
   };

@@ -16,7 +16,12 @@
 
   const show = (id, { focus = false } = {}) => {
     const main = document.getElementById('main');
-    for (const [pid, node] of mounted) node.hidden = pid !== id;
+    for (const [pid, node] of mounted) {
+      const was = node.hidden;
+      node.hidden = pid !== id;
+      // A panel shown again computes what changed while it was hidden.
+      if (was && !node.hidden) node.dispatchEvent(new CustomEvent('hr-shown'));
+    }
     if (!mounted.has(id)) {
       const node = el('div', { class: 'panel', id: `panel-${id}`, 'data-panel': id });
       main.append(node);

@@ -91,5 +91,10 @@ HR.ui = (() => {
     };
   };
 
-  return { el, card, field, choice, fillRows, table, download, coalesce };
+  // Whether a panel is on show, and `fn` run each time the shell shows it again
+  // (its `hr-shown` event): what a panel that computes only while shown listens to.
+  const shown = (panel) => !panel.hidden && !panel.closest('[hidden]');
+  const onShown = (panel, fn) => panel.addEventListener('hr-shown', fn);
+
+  return { el, card, field, choice, fillRows, table, download, coalesce, shown, onShown };
 })();

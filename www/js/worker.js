@@ -145,7 +145,7 @@ HR.background = (() => {
     let job = null;
     let timer = null;
     let held = false;       // cancelled by the user: wait for an edit or start()
-    const visible = () => !panel.hidden && !panel.closest('[hidden]');
+    const visible = () => HR.ui.shown(panel);
     const mark = (state) => { panel.dataset.follow = state; };
 
     const finish = (text, r) => {
@@ -226,9 +226,9 @@ HR.background = (() => {
 
     HR.design.onChange(changed);
     // Shown again: compute what changed while it was hidden.
-    new MutationObserver(() => {
-      if (visible() && !job && !timer && !held && HR.design.text() !== shownText) start();
-    }).observe(panel, { attributes: true, attributeFilter: ['hidden'] });
+    HR.ui.onShown(panel, () => {
+      if (!job && !timer && !held && HR.design.text() !== shownText) start();
+    });
     start();
     return {
       start,

@@ -136,7 +136,7 @@
       let due = false;          // changed while hidden
       const stageCache = new Map(); // stage document text → {ok} | {error}
       const runs = {};          // lane → {key, handle} of the stageBlock run in flight there
-      const visible = () => !container.hidden && !container.closest('[hidden]');
+      const visible = () => HR.ui.shown(container);
       // A read-only view (an embedded one) shows the chain without its editing buttons.
       const readOnly = () => Boolean(HR.design.readOnly && HR.design.readOnly());
       const blocks = () => { const c = HR.design.section('chain'); return c && Array.isArray(c.blocks) ? c.blocks : []; };
@@ -497,7 +497,7 @@
       };
       HR.design.onChange(() => { syncInputs(); schedule(); });
       HR.compare.onChange(schedule);
-      new MutationObserver(() => { if (visible() && due) schedule(); }).observe(container, { attributes: true, attributeFilter: ['hidden'] });
+      HR.ui.onShown(container, () => { if (due) schedule(); });
 
       container.append(el('h1', {}, 'Chain'),
         el('p', { class: 'lede' }, 'The stage inside a cascade: pads, filters, amplifiers you give the figures of, and this design’s own stage. Gain, noise figure, intercept and compression are summed block by block, with the signal and the noise at every node.'),
