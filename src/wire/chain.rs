@@ -2,92 +2,143 @@
 //! cumulative figures after each block) and the Chain panel shows; and the stage
 //! block's figures, which the page computes once and hands back.
 
-use serde::ser::{Serialize, SerializeStruct, Serializer};
+use serde::Serialize;
 
 use crate::chain::{Block, Budget, Cumulative, Run, RunFigures, Warning};
 
 /// `halfrail chain` output, with the blocks' names for the table.
+#[derive(Clone, Copy, Serialize)]
+#[serde(into = "ChainForm<'a>")]
 pub struct ChainReport<'a>(pub &'a Budget);
 
-struct CumulativeOut<'a>(&'a str, (usize, usize), &'a Cumulative, f64, f64);
-
-impl Serialize for CumulativeOut<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let CumulativeOut(name, (first, last), c, noise_share, distortion_share) = *self;
-        let mut out = serializer.serialize_struct("Cumulative", 16)?;
-        out.serialize_field("name", name)?;
-        out.serialize_field("blocks", &[first, last])?;
-        out.serialize_field("gain_db", &c.gain_db)?;
-        out.serialize_field("nf_db", &c.nf_db)?;
-        out.serialize_field("noise_temp_k", &c.noise_temp_k)?;
-        out.serialize_field("iip3_dbm", &c.iip3_dbm)?;
-        out.serialize_field("oip3_dbm", &c.oip3_dbm)?;
-        out.serialize_field("ip1db_dbm", &c.ip1db_dbm)?;
-        out.serialize_field("op1db_dbm", &c.op1db_dbm)?;
-        out.serialize_field("signal_dbm", &c.signal_dbm)?;
-        out.serialize_field("noise_dbm", &c.noise_dbm)?;
-        out.serialize_field("snr_db", &c.snr_db)?;
-        out.serialize_field("headroom_db", &c.headroom_db)?;
-        out.serialize_field("noise_share", &noise_share)?;
-        out.serialize_field("distortion_share", &distortion_share)?;
-        out.end()
-    }
+/// The chain's totals (the last row's figures) interleaved with the cascade's own.
+#[derive(Serialize)]
+struct ChainForm<'a> {
+    gain_db: f64,
+    nf_db: f64,
+    iip3_dbm: Option<f64>,
+    oip3_dbm: Option<f64>,
+    ip1db_dbm: Option<f64>,
+    noise_floor_in_dbm: f64,
+    input_dbm: f64,
+    input_noise_dbm: f64,
+    snr_db: f64,
+    sfdr_db: Option<f64>,
+    output_dbm: f64,
+    dc_w: f64,
+    mds_dbm: f64,
+    noise_temp_k: f64,
+    stages: Vec<CumulativeOut<'a>>,
+    stage_runs: &'static str,
+    runs: Vec<RunOut<'a>>,
+    warnings: Vec<WarningOut<'a>>,
 }
 
-serialize_fields!(RunFigures { "gain_db" => gain_db, "nf_db" => nf_db });
-
-serialize_fields!(Run { "first" => first, "last" => last, "matched" => matched, "circuit" => circuit });
-
-serialize_fields!(Warning { "block" => block, "text" => text });
-
-impl Serialize for ChainReport<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let budget = self.0;
+impl<'a> From<ChainReport<'a>> for ChainForm<'a> {
+    fn from(ChainReport(budget): ChainReport<'a>) -> Self {
         let c = &budget.cascade;
         let total = c.total();
-        let mut out = serializer.serialize_struct("Chain", 19)?;
-        out.serialize_field("gain_db", &total.gain_db)?;
-        out.serialize_field("nf_db", &total.nf_db)?;
-        out.serialize_field("iip3_dbm", &total.iip3_dbm)?;
-        out.serialize_field("oip3_dbm", &total.oip3_dbm)?;
-        out.serialize_field("ip1db_dbm", &total.ip1db_dbm)?;
-        out.serialize_field("noise_floor_in_dbm", &c.noise_floor_in_dbm)?;
-        out.serialize_field("input_dbm", &c.input_dbm)?;
-        out.serialize_field("input_noise_dbm", &c.input_noise_dbm)?;
-        out.serialize_field("snr_db", &total.snr_db)?;
-        out.serialize_field("sfdr_db", &c.sfdr_db)?;
-        out.serialize_field("output_dbm", &total.signal_dbm)?;
-        out.serialize_field("dc_w", &c.dc_w)?;
-        out.serialize_field("mds_dbm", &c.mds_dbm)?;
-        out.serialize_field("noise_temp_k", &total.noise_temp_k)?;
-        let stages: Vec<CumulativeOut> = c
-            .stages
-            .iter()
-            .enumerate()
-            .map(|(i, s)| CumulativeOut(&c.names[i], c.spans[i], s, c.noise_share[i], c.distortion_share[i]))
-            .collect();
-        out.serialize_field("stages", &stages)?;
-        out.serialize_field("stage_runs", if budget.one_circuit { "one-circuit" } else { "matched" })?;
-        out.serialize_field("runs", &budget.runs)?;
-        out.serialize_field("warnings", &budget.warnings)?;
-        out.end()
+        ChainForm {
+            gain_db: total.gain_db,
+            nf_db: total.nf_db,
+            iip3_dbm: total.iip3_dbm,
+            oip3_dbm: total.oip3_dbm,
+            ip1db_dbm: total.ip1db_dbm,
+            noise_floor_in_dbm: c.noise_floor_in_dbm,
+            input_dbm: c.input_dbm,
+            input_noise_dbm: c.input_noise_dbm,
+            snr_db: total.snr_db,
+            sfdr_db: c.sfdr_db,
+            output_dbm: total.signal_dbm,
+            dc_w: c.dc_w,
+            mds_dbm: c.mds_dbm,
+            noise_temp_k: total.noise_temp_k,
+            stages: c
+                .stages
+                .iter()
+                .enumerate()
+                .map(|(i, figures)| CumulativeOut { name: &c.names[i], blocks: c.spans[i], figures, noise_share: c.noise_share[i], distortion_share: c.distortion_share[i] })
+                .collect(),
+            stage_runs: if budget.one_circuit { "one-circuit" } else { "matched" },
+            runs: budget.runs.iter().map(RunOut).collect(),
+            warnings: budget.warnings.iter().map(WarningOut).collect(),
+        }
     }
 }
 
-/// The stage block's own figures.
-pub struct StageBlock<'a>(pub &'a Block);
+/// One row: the blocks it stands for, the chain after them, and their shares.
+#[derive(Serialize)]
+struct CumulativeOut<'a> {
+    name: &'a str,
+    blocks: (usize, usize),
+    #[serde(flatten, with = "CumulativeDef")]
+    figures: &'a Cumulative,
+    noise_share: f64,
+    distortion_share: f64,
+}
 
-impl Serialize for StageBlock<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let b = self.0;
-        let mut out = serializer.serialize_struct("StageBlock", 5)?;
-        out.serialize_field("gain_db", &b.gain_db)?;
-        out.serialize_field("nf_db", &b.nf_db)?;
-        out.serialize_field("oip3_dbm", &b.oip3_dbm)?;
-        out.serialize_field("op1db_dbm", &b.op1db_dbm)?;
-        out.serialize_field("dc_w", &b.dc_w)?;
-        out.end()
-    }
+#[derive(Serialize)]
+#[serde(remote = "Cumulative")]
+struct CumulativeDef {
+    gain_db: f64,
+    nf_db: f64,
+    noise_temp_k: f64,
+    iip3_dbm: Option<f64>,
+    oip3_dbm: Option<f64>,
+    ip1db_dbm: Option<f64>,
+    op1db_dbm: Option<f64>,
+    signal_dbm: f64,
+    noise_dbm: f64,
+    snr_db: f64,
+    headroom_db: Option<f64>,
+}
+
+#[derive(Serialize)]
+#[serde(remote = "RunFigures")]
+struct RunFiguresDef {
+    gain_db: f64,
+    nf_db: f64,
+}
+
+#[derive(Serialize)]
+#[serde(remote = "Run")]
+struct RunDef {
+    first: usize,
+    last: usize,
+    #[serde(with = "RunFiguresDef")]
+    matched: RunFigures,
+    #[serde(with = "RunFiguresDef")]
+    circuit: RunFigures,
+}
+
+#[derive(Serialize)]
+#[serde(transparent)]
+struct RunOut<'a>(#[serde(with = "RunDef")] &'a Run);
+
+#[derive(Serialize)]
+#[serde(remote = "Warning")]
+struct WarningDef {
+    block: Option<usize>,
+    text: String,
+}
+
+#[derive(Serialize)]
+#[serde(transparent)]
+struct WarningOut<'a>(#[serde(with = "WarningDef")] &'a Warning);
+
+/// The stage block's own figures (its name is the chain's to give).
+#[derive(Serialize)]
+#[serde(transparent)]
+pub struct StageBlock<'a>(#[serde(with = "BlockDef")] pub &'a Block);
+
+#[derive(Serialize)]
+#[serde(remote = "Block")]
+struct BlockDef {
+    gain_db: f64,
+    nf_db: f64,
+    oip3_dbm: Option<f64>,
+    op1db_dbm: Option<f64>,
+    dc_w: Option<f64>,
 }
 
 /// The stage block back from `StageBlock`'s JSON text (the field named is `stage`).

@@ -9,68 +9,93 @@
 //! natural frequencies; `loop_gain` is |T| at f_design and `part_sets_gain` says
 //! it is too low for the resistors to set the gain; `notes` says both in words.
 
-use serde::ser::{Serialize, SerializeStruct, Serializer};
+use serde::Serialize;
 
 use crate::analysis::design::{Candidate, Design, Joined, Stability};
 
 /// `halfrail design` output.
+#[derive(Clone, Copy, Serialize)]
+#[serde(into = "DesignForm")]
 pub struct DesignReport<'a>(pub &'a Design);
 
-struct CandidateOut<'a>(&'a Candidate);
+#[derive(Serialize)]
+struct DesignForm {
+    candidates: Vec<CandidateForm>,
+    c_in_f: Option<f64>,
+    c_out_f: Option<f64>,
+    f_low_hz: Option<f64>,
+    feasible: bool,
+    ceiling_db: Option<f64>,
+    continuous_r_in_ohm: Option<f64>,
+    continuous_r_fb_ohm: Option<f64>,
+    by_hand: CandidateForm,
+}
 
-impl Serialize for CandidateOut<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let c = self.0;
-        let f = &c.figures;
-        let mut out = serializer.serialize_struct("Candidate", 16)?;
-        out.serialize_field("r_in_ohm", &c.r_in)?;
-        out.serialize_field("r_fb_ohm", &c.r_fb.ohms)?;
-        out.serialize_field("gain_db", &f.gain_db)?;
-        out.serialize_field("error_db", &c.error_db)?;
-        out.serialize_field("s11_db", &f.s11_db.is_finite().then_some(f.s11_db))?;
-        out.serialize_field("return_loss_db", &f.return_loss_db)?;
-        out.serialize_field("nf_db", &f.nf_db)?;
-        out.serialize_field("iq_a", &f.iq_a)?;
-        out.serialize_field("loop_gain", &f.loop_gain)?;
-        out.serialize_field("stable", &(c.stability == Stability::Stable))?;
-        out.serialize_field("oscillates_hz", &match c.stability {
-            Stability::Oscillates { f_hz } => f_hz,
-            Stability::Stable => None,
-        })?;
-        out.serialize_field("part_sets_gain", &c.part_sets_gain)?;
-        out.serialize_field("meets_limits", &c.meets_limits)?;
-        out.serialize_field("notes", &c.notes())?;
-        // A joined r_fb: its two standard values and how they are joined.
-        match c.r_fb.parts {
-            Some((a, b, how)) => {
-                out.serialize_field("r_fb_parts_ohm", &[a, b])?;
-                out.serialize_field("r_fb_joined", match how {
-                    Joined::Series => "series",
-                    Joined::Parallel => "parallel",
-                })?;
-            }
-            None => {
-                out.skip_field("r_fb_parts_ohm")?;
-                out.skip_field("r_fb_joined")?;
-            }
+impl From<DesignReport<'_>> for DesignForm {
+    fn from(DesignReport(d): DesignReport<'_>) -> Self {
+        DesignForm {
+            candidates: d.candidates.iter().map(CandidateForm::from).collect(),
+            c_in_f: d.coupling.and_then(|c| c.c_in_f),
+            c_out_f: d.coupling.and_then(|c| c.c_out_f),
+            f_low_hz: d.coupling.and_then(|c| c.f_low_hz),
+            feasible: d.continuous.is_some(),
+            ceiling_db: d.ceiling_db.is_finite().then_some(d.ceiling_db),
+            continuous_r_in_ohm: d.continuous.map(|c| c.0),
+            continuous_r_fb_ohm: d.continuous.map(|c| c.1),
+            by_hand: CandidateForm::from(&d.by_hand),
         }
-        out.end()
     }
 }
 
-impl Serialize for DesignReport<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let d = self.0;
-        let mut out = serializer.serialize_struct("Design", 9)?;
-        out.serialize_field("candidates", &d.candidates.iter().map(CandidateOut).collect::<Vec<_>>())?;
-        out.serialize_field("c_in_f", &d.coupling.and_then(|c| c.c_in_f))?;
-        out.serialize_field("c_out_f", &d.coupling.and_then(|c| c.c_out_f))?;
-        out.serialize_field("f_low_hz", &d.coupling.and_then(|c| c.f_low_hz))?;
-        out.serialize_field("feasible", &d.continuous.is_some())?;
-        out.serialize_field("ceiling_db", &d.ceiling_db.is_finite().then_some(d.ceiling_db))?;
-        out.serialize_field("continuous_r_in_ohm", &d.continuous.map(|c| c.0))?;
-        out.serialize_field("continuous_r_fb_ohm", &d.continuous.map(|c| c.1))?;
-        out.serialize_field("by_hand", &CandidateOut(&d.by_hand))?;
-        out.end()
+#[derive(Serialize)]
+struct CandidateForm {
+    r_in_ohm: f64,
+    r_fb_ohm: f64,
+    gain_db: f64,
+    error_db: f64,
+    s11_db: Option<f64>,
+    return_loss_db: Option<f64>,
+    nf_db: Option<f64>,
+    iq_a: f64,
+    loop_gain: Option<f64>,
+    stable: bool,
+    oscillates_hz: Option<f64>,
+    part_sets_gain: bool,
+    meets_limits: bool,
+    notes: Vec<String>,
+    /// Only for a joined r_fb: its two standard values and how they are joined.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    r_fb_parts_ohm: Option<[f64; 2]>,
+    #[serde(skip_serializing_if = "Option::is_none")]
+    r_fb_joined: Option<&'static str>,
+}
+
+impl From<&Candidate> for CandidateForm {
+    fn from(c: &Candidate) -> Self {
+        let f = &c.figures;
+        CandidateForm {
+            r_in_ohm: c.r_in,
+            r_fb_ohm: c.r_fb.ohms,
+            gain_db: f.gain_db,
+            error_db: c.error_db,
+            s11_db: f.s11_db.is_finite().then_some(f.s11_db),
+            return_loss_db: f.return_loss_db,
+            nf_db: f.nf_db,
+            iq_a: f.iq_a,
+            loop_gain: f.loop_gain,
+            stable: c.stability == Stability::Stable,
+            oscillates_hz: match c.stability {
+                Stability::Oscillates { f_hz } => f_hz,
+                Stability::Stable => None,
+            },
+            part_sets_gain: c.part_sets_gain,
+            meets_limits: c.meets_limits,
+            notes: c.notes(),
+            r_fb_parts_ohm: c.r_fb.parts.map(|(a, b, _)| [a, b]),
+            r_fb_joined: c.r_fb.parts.map(|(_, _, how)| match how {
+                Joined::Series => "series",
+                Joined::Parallel => "parallel",
+            }),
+        }
     }
 }

@@ -4,95 +4,135 @@
 //! loop grows, which fail the yield), `SpreadReport` adds every trial for the
 //! Spread panel's histograms.
 
-use serde::ser::{Serialize, SerializeStruct, Serializer};
+use serde::ser::{SerializeStruct, Serializer};
+use serde::Serialize;
 
+use crate::analysis::spread::{Corner, Figure, Quantity, Stats, Swing, Trial};
 use crate::session::SpreadResult;
-use crate::analysis::spread::{Corner, Figure, Stats, Swing, Trial};
 
-serialize_fields!(Stats {
-    "mean" => mean,
-    "std" => std,
-    "min" => min,
-    "max" => max,
-    "p1" => p1,
-    "p99" => p99,
-    "count" => count,
-});
-
-/// One value per figure, keyed by the figure.
-struct FiguresOut<'a>(&'a [Option<f64>]);
-
-impl Serialize for FiguresOut<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let mut out = serializer.serialize_struct("Figures", Figure::ALL.len())?;
-        for (f, v) in Figure::ALL.iter().zip(self.0) {
-            out.serialize_field(f.key(), v)?;
-        }
-        out.end()
+/// One value per figure, under the figure's own key (`Figure::key`, which
+/// `trials_from_columns` reads back): the keys come from the core at run time, so
+/// no derive can name them.
+fn by_figure<T: Serialize, S: Serializer>(values: &[T], serializer: S) -> Result<S::Ok, S::Error> {
+    let mut out = serializer.serialize_struct("Figures", Figure::ALL.len())?;
+    for (f, v) in Figure::ALL.iter().zip(values) {
+        out.serialize_field(f.key(), v)?;
     }
+    out.end()
 }
+
+fn figure_key<S: Serializer>(figure: &Figure, serializer: S) -> Result<S::Ok, S::Error> {
+    serializer.serialize_str(figure.key())
+}
+
+fn quantity_key<S: Serializer>(quantity: &Quantity, serializer: S) -> Result<S::Ok, S::Error> {
+    serializer.serialize_str(quantity.key())
+}
+
+#[derive(Serialize)]
+#[serde(remote = "Stats")]
+struct StatsDef {
+    mean: f64,
+    std: f64,
+    min: f64,
+    max: f64,
+    p1: f64,
+    p99: f64,
+    count: usize,
+}
+
+#[derive(Serialize)]
+#[serde(transparent)]
+struct StatsOut<'a>(#[serde(with = "StatsDef")] &'a Stats);
 
 /// A quantity's swing of every figure.
-struct SwingOut<'a>(&'a Swing);
-
-impl Serialize for SwingOut<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let mut out = serializer.serialize_struct("Swing", 2)?;
-        out.serialize_field("quantity", self.0.quantity.key())?;
-        out.serialize_field("swing", &FiguresOut(&self.0.per_figure))?;
-        out.end()
-    }
+#[derive(Serialize)]
+#[serde(remote = "Swing")]
+struct SwingDef {
+    #[serde(serialize_with = "quantity_key")]
+    quantity: Quantity,
+    #[serde(rename = "swing", serialize_with = "by_figure")]
+    per_figure: Vec<Option<f64>>,
 }
 
-struct CornerOut<'a>(&'a Corner);
+#[derive(Serialize)]
+#[serde(transparent)]
+struct SwingOut<'a>(#[serde(with = "SwingDef")] &'a Swing);
 
-impl Serialize for CornerOut<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let mut out = serializer.serialize_struct("Corner", 3)?;
-        out.serialize_field("figure", self.0.figure.key())?;
-        out.serialize_field("low", &self.0.low)?;
-        out.serialize_field("high", &self.0.high)?;
-        out.end()
-    }
+#[derive(Serialize)]
+#[serde(remote = "Corner")]
+struct CornerDef {
+    #[serde(serialize_with = "figure_key")]
+    figure: Figure,
+    low: Option<f64>,
+    high: Option<f64>,
 }
+
+#[derive(Serialize)]
+#[serde(transparent)]
+struct CornerOut<'a>(#[serde(with = "CornerDef")] &'a Corner);
 
 /// `halfrail spread` output.
+#[derive(Clone, Copy, Serialize)]
+#[serde(into = "SummaryForm<'a>")]
 pub struct SpreadSummary<'a>(pub &'a SpreadResult);
 
-impl Serialize for SpreadSummary<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let r = self.0;
-        let mut out = serializer.serialize_struct("Spread", 12)?;
-        out.serialize_field("trials", &r.summary.trials)?;
-        out.serialize_field("yield", &r.summary.yield_fraction)?;
-        out.serialize_field("unsolved", &r.summary.unsolved)?;
-        out.serialize_field("oscillating", &r.summary.oscillating)?;
-        for (k, figure) in Figure::ALL.iter().enumerate() {
-            out.serialize_field(figure.key(), &r.summary.stats[k])?;
+/// Each figure's statistics sit among the summary's own keys, under the figure's key.
+#[derive(Serialize)]
+struct SummaryForm<'a> {
+    trials: usize,
+    #[serde(rename = "yield")]
+    yield_fraction: Option<f64>,
+    unsolved: usize,
+    oscillating: usize,
+    #[serde(flatten, serialize_with = "by_figure")]
+    stats: Vec<Option<StatsOut<'a>>>,
+    #[serde(serialize_with = "by_figure")]
+    nominal: &'a [Option<f64>],
+    nominal_oscillates: bool,
+    swings: Vec<SwingOut<'a>>,
+    corners: Vec<CornerOut<'a>>,
+}
+
+impl<'a> From<SpreadSummary<'a>> for SummaryForm<'a> {
+    fn from(SpreadSummary(r): SpreadSummary<'a>) -> Self {
+        let s = &r.summary;
+        SummaryForm {
+            trials: s.trials,
+            yield_fraction: s.yield_fraction,
+            unsolved: s.unsolved,
+            oscillating: s.oscillating,
+            stats: s.stats.iter().map(|s| s.as_ref().map(StatsOut)).collect(),
+            nominal: &r.nominal.values,
+            nominal_oscillates: r.nominal.oscillates(),
+            swings: r.swings.iter().map(SwingOut).collect(),
+            corners: r.corners.iter().map(CornerOut).collect(),
         }
-        out.serialize_field("nominal", &FiguresOut(&r.nominal.values))?;
-        out.serialize_field("nominal_oscillates", &r.nominal.oscillates())?;
-        out.serialize_field("swings", &r.swings.iter().map(SwingOut).collect::<Vec<_>>())?;
-        out.serialize_field("corners", &r.corners.iter().map(CornerOut).collect::<Vec<_>>())?;
-        out.end()
     }
 }
 
 /// The column of each trial's count of growing closed-loop natural frequencies
-/// (null: the trial could not be solved).
+/// (null: the trial could not be solved), as the reader names `ColumnsForm::growing`.
 const GROWING: &str = "growing";
 
 /// Trials' figures as columns, one per figure key, and `growing`.
+#[derive(Clone, Copy, Serialize)]
+#[serde(into = "ColumnsForm")]
 pub struct TrialColumns<'a>(pub &'a [Trial]);
 
-impl Serialize for TrialColumns<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let mut out = serializer.serialize_struct("Trials", Figure::ALL.len() + 1)?;
-        for (k, f) in Figure::ALL.iter().enumerate() {
-            out.serialize_field(f.key(), &self.0.iter().map(|t| t.values[k]).collect::<Vec<_>>())?;
+#[derive(Serialize)]
+struct ColumnsForm {
+    #[serde(flatten, serialize_with = "by_figure")]
+    columns: Vec<Vec<Option<f64>>>,
+    growing: Vec<Option<usize>>,
+}
+
+impl From<TrialColumns<'_>> for ColumnsForm {
+    fn from(TrialColumns(trials): TrialColumns<'_>) -> Self {
+        ColumnsForm {
+            columns: (0..Figure::ALL.len()).map(|k| trials.iter().map(|t| t.values[k]).collect()).collect(),
+            growing: trials.iter().map(|t| t.growing).collect(),
         }
-        out.serialize_field(GROWING, &self.0.iter().map(|t| t.growing).collect::<Vec<_>>())?;
-        out.end()
     }
 }
 
@@ -116,14 +156,18 @@ pub fn trials_from_columns(text: &str) -> crate::error::Result<Vec<Trial>> {
 }
 
 /// The summary and every trial's figures, one column per figure.
+#[derive(Clone, Copy, Serialize)]
+#[serde(into = "ReportForm<'a>")]
 pub struct SpreadReport<'a>(pub &'a SpreadResult);
 
-impl Serialize for SpreadReport<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let r = self.0;
-        let mut out = serializer.serialize_struct("SpreadReport", 2)?;
-        out.serialize_field("summary", &SpreadSummary(r))?;
-        out.serialize_field("trials", &TrialColumns(&r.trials))?;
-        out.end()
+#[derive(Serialize)]
+struct ReportForm<'a> {
+    summary: SpreadSummary<'a>,
+    trials: TrialColumns<'a>,
+}
+
+impl<'a> From<SpreadReport<'a>> for ReportForm<'a> {
+    fn from(SpreadReport(r): SpreadReport<'a>) -> Self {
+        ReportForm { summary: SpreadSummary(r), trials: TrialColumns(&r.trials) }
     }
 }

@@ -3,7 +3,7 @@
 //! plots, and `SuggestionOut` is one answer of the compensation helper.
 
 use crate::math;
-use serde::ser::{Serialize, SerializeStruct, Serializer};
+use serde::Serialize;
 
 use crate::analysis::stability::{Knob, Loop, NoCrossover, Suggestion, Verdict};
 use crate::units::{format_eng, format_fixed, voltage_ratio_db, Unit};
@@ -21,77 +21,101 @@ fn db(x: f64) -> Option<f64> {
 
 /// The `loop` section of `halfrail analyze`, with the compensation helper's
 /// answers when given.
+#[derive(Clone, Copy, Serialize)]
+#[serde(into = "SummaryForm<'a>")]
 pub struct LoopSummary<'a>(pub &'a Loop, pub Option<&'a [Suggestion]>);
 
-impl Serialize for LoopSummary<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let l = self.0;
+#[derive(Serialize)]
+struct SummaryForm<'a> {
+    t_mid_db: Option<f64>,
+    crossover_hz: Option<f64>,
+    phase_margin_deg: Option<f64>,
+    gain_margin_db: Option<f64>,
+    stable: bool,
+    mu_min: Option<f64>,
+    t_mid_phase_deg: f64,
+    phase_crossover_hz: Option<f64>,
+    peaking_db: f64,
+    open_loop_growing: usize,
+    crossovers: usize,
+    no_crossover: Option<&'static str>,
+    margin_words: String,
+    poles_growing: usize,
+    nyquist: Option<NyquistOut>,
+    verdict: VerdictOut,
+    least_damped: Option<PairOut>,
+    overshoot_pct: f64,
+    settling_s: Option<f64>,
+    poles_hz: Vec<[f64; 2]>,
+    /// Only when the helper was asked (`analyze`; the Loop panel has its own).
+    #[serde(skip_serializing_if = "Option::is_none")]
+    suggestions: Option<Vec<SuggestionOut<'a>>>,
+}
+
+impl<'a> From<LoopSummary<'a>> for SummaryForm<'a> {
+    fn from(LoopSummary(l, suggestions): LoopSummary<'a>) -> Self {
         let m = &l.margins;
-        let mut out = serializer.serialize_struct("LoopSummary", 18)?;
-        out.serialize_field("t_mid_db", &db(math::norm(m.t_mid)))?;
-        out.serialize_field("crossover_hz", &m.crossover_hz)?;
-        out.serialize_field("phase_margin_deg", &m.phase_margin_deg)?;
-        out.serialize_field("gain_margin_db", &m.gain_margin_db.and_then(finite))?;
-        out.serialize_field("stable", &l.stable)?;
-        out.serialize_field("mu_min", &l.mu_min.and_then(finite))?;
-        out.serialize_field("t_mid_phase_deg", &m.phase_mid_deg)?;
-        out.serialize_field("phase_crossover_hz", &m.phase_crossover_hz)?;
-        out.serialize_field("peaking_db", &l.peaking_db)?;
-        out.serialize_field("open_loop_growing", &l.open_loop_growing)?;
-        out.serialize_field("crossovers", &m.crossovers)?;
-        out.serialize_field("no_crossover", &m.no_crossover.map(|n| match n {
-            NoCrossover::BelowOne => "below_one",
-            NoCrossover::AboveAtTop => "above_at_top",
-        }))?;
-        out.serialize_field("margin_words", &margin_words(l))?;
-        out.serialize_field("poles_growing", &l.poles_growing)?;
-        out.serialize_field("nyquist", &l.nyquist.map(|n| NyquistOut { turns: n.turns, open_growing: n.open_growing, growing: n.growing }))?;
-        out.serialize_field("verdict", &VerdictOut(l))?;
-        out.serialize_field("least_damped", &l.least_damped.map(|p| PairOut { f_n_hz: p.f_n_hz, zeta: p.zeta, q: finite(p.q) }))?;
-        out.serialize_field("overshoot_pct", &l.settling.overshoot_pct)?;
-        out.serialize_field("settling_s", &l.settling.settling_s)?;
-        let poles: Vec<[f64; 2]> = l.poles.iter().map(|p| [p.re / TAU, p.im / TAU]).collect();
-        out.serialize_field("poles_hz", &poles)?;
-        if let Some(suggestions) = self.1 {
-            out.serialize_field("suggestions", &suggestions.iter().map(SuggestionOut).collect::<Vec<_>>())?;
+        SummaryForm {
+            t_mid_db: db(math::norm(m.t_mid)),
+            crossover_hz: m.crossover_hz,
+            phase_margin_deg: m.phase_margin_deg,
+            gain_margin_db: m.gain_margin_db.and_then(finite),
+            stable: l.stable,
+            mu_min: l.mu_min.and_then(finite),
+            t_mid_phase_deg: m.phase_mid_deg,
+            phase_crossover_hz: m.phase_crossover_hz,
+            peaking_db: l.peaking_db,
+            open_loop_growing: l.open_loop_growing,
+            crossovers: m.crossovers,
+            no_crossover: m.no_crossover.map(|n| match n {
+                NoCrossover::BelowOne => "below_one",
+                NoCrossover::AboveAtTop => "above_at_top",
+            }),
+            margin_words: margin_words(l),
+            poles_growing: l.poles_growing,
+            nyquist: l.nyquist.map(|n| NyquistOut { turns: n.turns, open_growing: n.open_growing, growing: n.growing }),
+            verdict: VerdictOut::of(l),
+            least_damped: l.least_damped.map(|p| PairOut { f_n_hz: p.f_n_hz, zeta: p.zeta, q: finite(p.q) }),
+            overshoot_pct: l.settling.overshoot_pct,
+            settling_s: l.settling.settling_s,
+            poles_hz: l.poles.iter().map(|p| [p.re / TAU, p.im / TAU]).collect(),
+            suggestions: suggestions.map(|s| s.iter().map(SuggestionOut).collect()),
         }
-        out.end()
     }
 }
 
+#[derive(Serialize)]
 struct PairOut {
     f_n_hz: f64,
     zeta: f64,
     q: Option<f64>,
 }
 
-serialize_fields!(PairOut { "f_n_hz" => f_n_hz, "zeta" => zeta, "q" => q });
-
+#[derive(Serialize)]
 struct NyquistOut {
     turns: i64,
     open_growing: usize,
     growing: usize,
 }
 
-serialize_fields!(NyquistOut { "turns" => turns, "open_growing" => open_growing, "growing" => growing });
+#[derive(Serialize)]
+struct VerdictOut {
+    kind: &'static str,
+    margin_deg: Option<f64>,
+    f_hz: Option<f64>,
+    q: Option<f64>,
+    conditional: bool,
+    words: String,
+}
 
-struct VerdictOut<'a>(&'a Loop);
-
-impl Serialize for VerdictOut<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let (kind, margin, f_hz, q, conditional) = match self.0.verdict {
+impl VerdictOut {
+    fn of(l: &Loop) -> Self {
+        let (kind, margin_deg, f_hz, q, conditional) = match l.verdict {
             Verdict::Stable { margin_deg, conditional } => ("stable", margin_deg, None, None, conditional),
             Verdict::Rings { margin_deg, f_hz, q, conditional } => ("rings", margin_deg, Some(f_hz), finite(q), conditional),
             Verdict::Oscillates { f_hz } => ("oscillates", None, f_hz, None, false),
         };
-        let mut out = serializer.serialize_struct("Verdict", 6)?;
-        out.serialize_field("kind", kind)?;
-        out.serialize_field("margin_deg", &margin)?;
-        out.serialize_field("f_hz", &f_hz)?;
-        out.serialize_field("q", &q)?;
-        out.serialize_field("conditional", &conditional)?;
-        out.serialize_field("words", &stability_words(self.0))?;
-        out.end()
+        VerdictOut { kind, margin_deg, f_hz, q, conditional, words: stability_words(l) }
     }
 }
 
@@ -169,6 +193,8 @@ pub fn stability_words(l: &Loop) -> String {
 
 /// Everything the Loop panel draws: the summary, the sweep of T (magnitude,
 /// continuous phase, real and imaginary parts), μ, the step and the helper's answers.
+#[derive(Clone, Copy, Serialize)]
+#[serde(into = "ReportForm<'a>")]
 pub struct LoopReport<'a> {
     pub stability: &'a Loop,
     pub suggestions: &'a [Suggestion],
@@ -176,25 +202,43 @@ pub struct LoopReport<'a> {
     pub f_design_hz: f64,
 }
 
-impl Serialize for LoopReport<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let l = self.stability;
-        let mut out = serializer.serialize_struct("LoopReport", 12)?;
-        out.serialize_field("summary", &LoopSummary(l, None))?;
-        out.serialize_field("f_design_hz", &self.f_design_hz)?;
-        out.serialize_field("wanted_margin_deg", &self.wanted_margin_deg)?;
-        out.serialize_field("f_hz", &l.f_hz)?;
-        out.serialize_field("t_db", &l.t.iter().map(|t| db(math::norm(t))).collect::<Vec<_>>())?;
-        out.serialize_field("t_phase_deg", &l.t_phase.iter().map(|p| p.to_degrees()).collect::<Vec<_>>())?;
-        out.serialize_field("t_re", &l.t.iter().map(|t| t.re).collect::<Vec<_>>())?;
-        out.serialize_field("t_im", &l.t.iter().map(|t| t.im).collect::<Vec<_>>())?;
-        out.serialize_field("mu", &l.mu.iter().map(|&m| finite(m)).collect::<Vec<_>>())?;
-        out.serialize_field("step_t_s", &l.step.t_s)?;
-        out.serialize_field("step_v", &l.step.v)?;
-        out.serialize_field("step_target_v", &l.step_target)?;
-        out.serialize_field("suggestions", &self.suggestions.iter().map(SuggestionOut).collect::<Vec<_>>())?;
-        out.serialize_field("helper_words", &helper_words(l, self.suggestions, self.wanted_margin_deg))?;
-        out.end()
+#[derive(Serialize)]
+struct ReportForm<'a> {
+    summary: LoopSummary<'a>,
+    f_design_hz: f64,
+    wanted_margin_deg: f64,
+    f_hz: &'a [f64],
+    t_db: Vec<Option<f64>>,
+    t_phase_deg: Vec<f64>,
+    t_re: Vec<f64>,
+    t_im: Vec<f64>,
+    mu: Vec<Option<f64>>,
+    step_t_s: &'a [f64],
+    step_v: &'a [f64],
+    step_target_v: f64,
+    suggestions: Vec<SuggestionOut<'a>>,
+    helper_words: String,
+}
+
+impl<'a> From<LoopReport<'a>> for ReportForm<'a> {
+    fn from(r: LoopReport<'a>) -> Self {
+        let l = r.stability;
+        ReportForm {
+            summary: LoopSummary(l, None),
+            f_design_hz: r.f_design_hz,
+            wanted_margin_deg: r.wanted_margin_deg,
+            f_hz: &l.f_hz,
+            t_db: l.t.iter().map(|t| db(math::norm(t))).collect(),
+            t_phase_deg: l.t_phase.iter().map(|p| p.to_degrees()).collect(),
+            t_re: l.t.iter().map(|t| t.re).collect(),
+            t_im: l.t.iter().map(|t| t.im).collect(),
+            mu: l.mu.iter().map(|&m| finite(m)).collect(),
+            step_t_s: &l.step.t_s,
+            step_v: &l.step.v,
+            step_target_v: l.step_target,
+            suggestions: r.suggestions.iter().map(SuggestionOut).collect(),
+            helper_words: helper_words(l, r.suggestions, r.wanted_margin_deg),
+        }
     }
 }
 
@@ -222,27 +266,43 @@ pub fn helper_words(l: &Loop, suggestions: &[Suggestion], wanted_deg: f64) -> St
 }
 
 /// A change as the page applies it: the document key and the value.
+#[derive(Serialize)]
 struct ChangeOut {
     key: &'static str,
     value: f64,
 }
 
-serialize_fields!(ChangeOut { "key" => key, "value" => value });
-
 /// One helper answer, naming the component by its document key.
+#[derive(Clone, Copy, Serialize)]
+#[serde(into = "SuggestionForm")]
 pub struct SuggestionOut<'a>(pub &'a Suggestion);
 
-impl Serialize for SuggestionOut<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let s = self.0;
-        let kind = match s.knob {
+#[derive(Serialize)]
+struct SuggestionForm {
+    key: String,
+    what: &'static str,
+    value: Option<f64>,
+    changes: Vec<ChangeOut>,
+    gain_change_db: Option<f64>,
+    within_tolerance: bool,
+    gain_tol_db: f64,
+    flag: Option<String>,
+    phase_margin_deg: Option<f64>,
+    gain_db: Option<f64>,
+    f_high_hz: Option<f64>,
+    was_gain_db: f64,
+    was_f_high_hz: Option<f64>,
+}
+
+impl From<SuggestionOut<'_>> for SuggestionForm {
+    fn from(SuggestionOut(s): SuggestionOut<'_>) -> Self {
+        let what = match s.knob {
             Knob::FeedbackCapacitor => "feedback capacitor",
             Knob::OutputResistor => "series output resistor",
             Knob::FeedbackCapacitorAndOutputResistor => "feedback capacitor and series output resistor",
             Knob::LowerGain => "higher r_fb (lower loop gain)",
         };
-        let key = s.knob.components().iter().map(|c| c.key()).collect::<Vec<_>>().join("+");
-        let changes: Vec<ChangeOut> = match &s.values {
+        let changes = match &s.values {
             Some(values) => s.knob.components().iter().zip(values).map(|(c, &value)| ChangeOut { key: c.key(), value }).collect(),
             None => Vec::new(),
         };
@@ -254,20 +314,20 @@ impl Serialize for SuggestionOut<'_> {
             )),
             _ => None,
         };
-        let mut out = serializer.serialize_struct("Suggestion", 13)?;
-        out.serialize_field("key", &key)?;
-        out.serialize_field("what", kind)?;
-        out.serialize_field("value", &s.value())?;
-        out.serialize_field("changes", &changes)?;
-        out.serialize_field("gain_change_db", &s.gain_change_db())?;
-        out.serialize_field("within_tolerance", &s.within_tolerance())?;
-        out.serialize_field("gain_tol_db", &s.gain_tol_db)?;
-        out.serialize_field("flag", &flag)?;
-        out.serialize_field("phase_margin_deg", &s.phase_margin_deg)?;
-        out.serialize_field("gain_db", &s.gain_db)?;
-        out.serialize_field("f_high_hz", &s.f_high_hz)?;
-        out.serialize_field("was_gain_db", &s.was_gain_db)?;
-        out.serialize_field("was_f_high_hz", &s.was_f_high_hz)?;
-        out.end()
+        SuggestionForm {
+            key: s.knob.components().iter().map(|c| c.key()).collect::<Vec<_>>().join("+"),
+            what,
+            value: s.value(),
+            changes,
+            gain_change_db: s.gain_change_db(),
+            within_tolerance: s.within_tolerance(),
+            gain_tol_db: s.gain_tol_db,
+            flag,
+            phase_margin_deg: s.phase_margin_deg,
+            gain_db: s.gain_db,
+            f_high_hz: s.f_high_hz,
+            was_gain_db: s.was_gain_db,
+            was_f_high_hz: s.was_f_high_hz,
+        }
     }
 }
