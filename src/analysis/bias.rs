@@ -164,10 +164,11 @@ fn warnings(part: &Part, b: &Bias, (source, load): (bool, bool), package_max_w: 
     let mut out = Vec::new();
     let mut warn = |code, text: String| out.push(Warning { code, text });
     if b.shift_v.abs() > SHIFT_WARN_V {
+        let (c_in, c_out) = (Component::CInF.key(), Component::COutF.key());
         let (what, cure) = match (source, load) {
-            (true, false) => ("source", "An input coupling capacitor (c_in_f)"),
-            (false, true) => ("load", "An output coupling capacitor (c_out_f)"),
-            _ => ("source and load", "Coupling capacitors (c_in_f, c_out_f)"),
+            (true, false) => ("source", format!("An input coupling capacitor ({c_in})")),
+            (false, true) => ("load", format!("An output coupling capacitor ({c_out})")),
+            _ => ("source and load", format!("Coupling capacitors ({c_in}, {c_out})")),
         };
         warn(
             "bias-shift",

@@ -15,7 +15,7 @@ use nalgebra::{DMatrix, DVector, Dyn, Owned};
 use crate::engine::{operating_point, Element, Netlist, Node, SmallSignal};
 use crate::error::{FieldError, Result};
 use crate::part::{Capacitances, Part, PRESETS};
-use crate::stage::add_part;
+use crate::stage::{add_part, Component};
 
 /// What was measured at the bench.
 #[derive(Debug, Clone, PartialEq)]
@@ -243,9 +243,9 @@ fn open_loop_gain(part: &Part, vbias: f64, f_hz: f64, load_ohm: Option<f64>, loa
     let out = *outputs.last().expect("one stage at least");
     let pin = n.node("load");
     n.add("coupling", Element::Capacitor { a: out, b: pin, farads: 1.0 });
-    n.add("load_ohm", Element::Resistor { a: pin, b: Node::GROUND, ohms: load_ohm.unwrap_or(1e12) });
+    n.add(Component::LoadOhm.key(), Element::Resistor { a: pin, b: Node::GROUND, ohms: load_ohm.unwrap_or(1e12) });
     if let Some(farads) = load_f {
-        n.add("load_f", Element::Capacitor { a: pin, b: Node::GROUND, farads });
+        n.add(Component::LoadF.key(), Element::Capacitor { a: pin, b: Node::GROUND, farads });
     }
     let op = operating_point(&n, None)?;
     let small = SmallSignal::at(&n, &op)?;

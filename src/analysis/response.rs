@@ -187,8 +187,8 @@ fn silence(n: &mut Netlist, circuit: &StageCircuit) {
 /// Removes the source: its resistor opened, or the EMF itself when it sits on `in`.
 fn remove_source(n: &mut Netlist, circuit: &StageCircuit) {
     silence(n, circuit);
-    if n.element_index("source_ohm").is_some() {
-        open(n, "source_ohm");
+    if n.element_index(Component::SourceOhm.key()).is_some() {
+        open(n, Component::SourceOhm.key());
     } else {
         n.replace(circuit.source, OPEN);
     }
@@ -213,8 +213,8 @@ impl Linearised {
         // The two-port between `in` and `out`, source and load excluded.
         let mut n = circuit.netlist.clone();
         remove_source(&mut n, &circuit);
-        open(&mut n, "load_ohm");
-        open(&mut n, "load_f");
+        open(&mut n, Component::LoadOhm.key());
+        open(&mut n, Component::LoadF.key());
         let ports = TwoPort::new(&n, &op, nodes.input, nodes.output, z0)?;
 
         let noise = noise_sources(part, &circuit, &op);
@@ -340,8 +340,8 @@ fn noise_sources(part: &Part, circuit: &StageCircuit, op: &OperatingPoint) -> Ve
     let mut out = Vec::new();
     for (named, state) in circuit.netlist.elements().iter().zip(&op.devices) {
         match (&named.element, state) {
-            (Element::Resistor { a, b, ohms }, _) if !(named.name == "load_ohm" || named.name.ends_with("output pin leak")) => {
-                let from_source = named.name == "source_ohm";
+            (Element::Resistor { a, b, ohms }, _) if !(named.name == Component::LoadOhm.key() || named.name.ends_with("output pin leak")) => {
+                let from_source = named.name == Component::SourceOhm.key();
                 let kelvin = if from_source { T0_K } else { t_part };
                 out.push(resistor_noise(&named.name, *a, *b, *ohms, kelvin, from_source));
             }

@@ -1,9 +1,10 @@
 //! The design document's file format (SPEC §4): the only module that reads JSON.
 //! It reads a document into typed sections, naming the path of any bad field —
 //! the text parsed once into a JSON value (`parse`), brought up from an older
-//! format version (`migrate`), each section's keys read from it by type (`read`,
-//! `sections`), the ranges and cross-field rules checked (`validate`) — and turns
-//! sections into the core's types (`to_core`). Running analyses on a document is
+//! format version (`migrate`), each section's keys read from it by type and
+//! range, each range declared where its key is read (`read`, `sections`), then
+//! the rules between fields checked (`validate`) — and turns sections into the
+//! core's types (`to_core`). Running analyses on a document is
 //! the session layer's job (`crate::session`); writing results, the wire's
 //! (`crate::wire`).
 

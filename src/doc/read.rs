@@ -2,6 +2,11 @@
 //! asks for one key and takes it in the forms the format allows; a refusal uses
 //! serde's words (`invalid type: string "3", expected …`), as messages always have.
 //!
+//! A getter may also take the values the field allows (a [`Range`], a length, a
+//! rule), so that a field's key is written once, where it is read: a value outside
+//! them is a bad value like one of the wrong type. Rules that relate two fields
+//! wait until everything is read (`validate`).
+//!
 //! Errors are kept, not returned, so that a section reads as one struct literal
 //! and [`object`] can report, in this order: a key nothing asked for (often the
 //! misspelt name of a field that is then missing), the first bad value, a missing
@@ -46,7 +51,56 @@ fn one_of(names: &[&str]) -> String {
     }
 }
 
-/// A value field (see `quantity`).
+/// A number as shown in a message: plain where short, scientific where huge or tiny.
+pub(crate) fn shown(value: f64) -> String {
+    let magnitude = value.abs();
+    if magnitude != 0.0 && !(1e-4..1e9).contains(&magnitude) {
+        format!("{value:e}")
+    } else {
+        format!("{value}")
+    }
+}
+
+/// One end of the values a field allows.
+#[derive(Clone, Copy)]
+pub enum End {
+    /// The value may equal it.
+    Closed(f64),
+    /// The value must stay strictly beyond it.
+    Open(f64),
+    /// No limit at this end.
+    Free,
+}
+
+/// The values a field allows, from its low end to its high end. Data rather than
+/// a closure, so that every field shares one copy of each getter's code.
+#[derive(Clone, Copy)]
+pub struct Range(pub End, pub End);
+
+impl Range {
+    /// Any value.
+    pub const ANY: Range = Range(End::Free, End::Free);
+
+    /// Nothing, or the end `value` broke (the low end is checked first) and the value.
+    pub fn check(self, value: f64) -> std::result::Result<(), String> {
+        use End::{Closed, Open};
+        let broken = match self.0 {
+            Closed(l) if value < l => Some(format!("must be ≥ {}", shown(l))),
+            Open(l) if value <= l => Some(format!("must be > {}", shown(l))),
+            _ => None,
+        }
+        .or_else(|| match self.1 {
+            Closed(h) if value > h => Some(format!("must be ≤ {}", shown(h))),
+            Open(h) if value >= h => Some(format!("must be < {}", shown(h))),
+            _ => None,
+        });
+        broken.map_or(Ok(()), |rule| Err(format!("{rule}, got {}", shown(value))))
+    }
+}
+
+/// Entries a list of objects may hold.
+pub const MAX_LIST: usize = 1000;
+
 /// A whole number from 0 to `max` written as text, or why it is not one.
 fn whole_number(text: &str, max: u64) -> std::result::Result<u64, String> {
     let parsed = crate::units::parse(text).map_err(|e| e.reason)?;
@@ -60,13 +114,25 @@ fn whole_number(text: &str, max: u64) -> std::result::Result<u64, String> {
     }
 }
 
-fn quantity(value: &Json, unit: FieldUnit) -> Result<f64> {
+/// A whole number from 0 to `max` (see [`Fields::integer`]).
+fn integer(value: &Json, max: u64) -> Result<u64> {
+    let expected = || format!("a whole number from 0 to {max}");
+    match value {
+        Json::Number(n) if n.is_f64() => wrong_type(value, &expected()),
+        Json::Number(n) => n.as_u64().filter(|&n| n <= max).map_or_else(|| refused(format!("invalid value: integer `{n}`, expected {}", expected())), Ok),
+        Json::String(text) => whole_number(text, max).or_else(|reason| refused(format!("{reason}, expected {}", expected()))),
+        other => wrong_type(other, &expected()),
+    }
+}
+
+/// A value field (see `quantity`) within `range`.
+fn quantity(value: &Json, unit: FieldUnit, range: Range) -> Result<f64> {
     let read = match value {
         Json::Number(n) => unit.number(n.as_f64().unwrap_or(f64::NAN)),
         Json::String(text) => unit.text(text),
         other => return wrong_type(other, &unit.expected()),
     };
-    read.or_else(refused)
+    read.and_then(|v| range.check(v).map(|()| v)).or_else(refused)
 }
 
 /// The items of a list, each read by `item` (its error named by its index).
@@ -138,36 +204,57 @@ impl<'a> Fields<'a> {
 
     /// A value field that may be left out: absent or null is `None`.
     pub fn quantity(&mut self, key: &'static str, unit: FieldUnit) -> Option<f64> {
-        self.typed(key, true, |v| quantity(v, unit))
+        self.quantity_in(key, unit, Range::ANY)
     }
 
-    /// A value field with a default for when it is absent; null is refused.
-    pub fn quantity_or(&mut self, key: &'static str, unit: FieldUnit, default: f64) -> f64 {
-        self.typed(key, false, |v| quantity(v, unit)).unwrap_or(default)
+    /// The same, refused outside `range`.
+    pub fn quantity_in(&mut self, key: &'static str, unit: FieldUnit, range: Range) -> Option<f64> {
+        self.typed(key, true, |v| quantity(v, unit, range))
+    }
+
+    /// A value field within `range`, with a default for when it is absent; null is refused.
+    pub fn quantity_or_in(&mut self, key: &'static str, unit: FieldUnit, default: f64, range: Range) -> f64 {
+        self.typed(key, false, |v| quantity(v, unit, range)).unwrap_or(default)
     }
 
     /// A value field that must be given; null is refused.
     pub fn required_quantity(&mut self, key: &'static str, unit: FieldUnit) -> f64 {
-        self.typed(key, false, |v| quantity(v, unit)).unwrap_or_else(|| self.missing(key, 0.0))
+        self.required_quantity_in(key, unit, Range::ANY)
+    }
+
+    /// The same, refused outside `range`.
+    pub fn required_quantity_in(&mut self, key: &'static str, unit: FieldUnit, range: Range) -> f64 {
+        self.typed(key, false, |v| quantity(v, unit, range)).unwrap_or_else(|| self.missing(key, 0.0))
     }
 
     /// A whole number from 0 to `max`, `default` when absent; a fraction (even
     /// `1.0`), a negative number or null is refused. Written as text it may take a
     /// prefix as any value does (`"3"`, `"2k"` trials), but no unit.
     pub fn integer(&mut self, key: &'static str, default: u64, max: u64) -> u64 {
-        let expected = || format!("a whole number from 0 to {max}");
-        let read = |v: &Json| match v {
-            Json::Number(n) if n.is_f64() => wrong_type(v, &expected()),
-            Json::Number(n) => n.as_u64().filter(|&n| n <= max).map_or_else(|| refused(format!("invalid value: integer `{n}`, expected {}", expected())), Ok),
-            Json::String(text) => whole_number(text, max).or_else(|reason| refused(format!("{reason}, expected {}", expected()))),
-            other => wrong_type(other, &expected()),
-        };
-        self.typed(key, false, read).unwrap_or(default)
+        self.typed(key, false, |v| integer(v, max)).unwrap_or(default)
     }
 
     /// A whole number that fits a `u32`, `default` when absent.
     pub fn count(&mut self, key: &'static str, default: u32) -> u32 {
-        u32::try_from(self.integer(key, default.into(), u32::MAX.into())).unwrap_or(default)
+        self.counted(key, default, &|_| Ok(()))
+    }
+
+    /// The same, refused outside `range`.
+    pub fn count_in(&mut self, key: &'static str, default: u32, range: Range) -> u32 {
+        self.counted(key, default, &|n| range.check(n.into()))
+    }
+
+    /// The same, refused by `rule` (its error is the reason).
+    pub fn count_where(&mut self, key: &'static str, default: u32, rule: fn(u32) -> std::result::Result<(), String>) -> u32 {
+        self.counted(key, default, &rule)
+    }
+
+    fn counted(&mut self, key: &'static str, default: u32, rule: &dyn Fn(u32) -> std::result::Result<(), String>) -> u32 {
+        let read = |v: &Json| {
+            let n = u32::try_from(integer(v, u32::MAX.into())?).unwrap_or(default);
+            rule(n).map(|()| n).or_else(refused)
+        };
+        self.typed(key, false, read).unwrap_or(default)
     }
 
     /// `true` or `false`, false when absent; null is refused.
@@ -175,9 +262,13 @@ impl<'a> Fields<'a> {
         self.typed(key, false, |v| v.as_bool().map_or_else(|| wrong_type(v, "a boolean"), Ok)).unwrap_or(false)
     }
 
-    /// A string: absent or null is `None`.
-    pub fn string(&mut self, key: &'static str) -> Option<String> {
-        self.typed(key, true, |v| v.as_str().map_or_else(|| wrong_type(v, "a string"), |s| Ok(s.to_owned())))
+    /// A string of at most `max_chars` characters: absent or null is `None`.
+    pub fn string(&mut self, key: &'static str, max_chars: usize) -> Option<String> {
+        self.typed(key, true, |v| match v.as_str() {
+            Some(s) if s.chars().count() > max_chars => refused(format!("at most {max_chars} characters")),
+            Some(s) => Ok(s.to_owned()),
+            None => wrong_type(v, "a string"),
+        })
     }
 
     /// A string that `parse` reads (its error is the reason): absent is `None`, null
@@ -215,20 +306,30 @@ impl<'a> Fields<'a> {
         self.typed(key, true, |v| object(v, read))
     }
 
-    /// A list of objects, each read by `read`: absent is `None`, null is refused.
+    /// A list of at most [`MAX_LIST`] objects, each read by `read`: absent is
+    /// `None`, null is refused. A longer list is refused by its length, unread.
     pub fn objects<T>(&mut self, key: &'static str, read: impl Fn(&mut Fields<'a>) -> T) -> Option<Vec<T>> {
-        self.typed(key, false, |v| items(v, |item| object(item, &read)))
+        self.typed(key, false, |v| match v {
+            Json::Array(entries) if entries.len() > MAX_LIST => refused(format!("at most {MAX_LIST} entries, got {}", entries.len())),
+            _ => items(v, |item| object(item, &read)),
+        })
     }
 
-    /// A list of strings: absent or null is `None`.
-    pub fn strings(&mut self, key: &'static str) -> Option<Vec<String>> {
-        self.typed(key, true, |v| items(v, |item| item.as_str().map_or_else(|| wrong_type(item, "a string"), |s| Ok(s.to_owned()))))
+    /// A list of strings, each allowed by `rule` (its error is the reason): absent
+    /// or null is `None`.
+    pub fn strings(&mut self, key: &'static str, rule: fn(&str) -> std::result::Result<(), String>) -> Option<Vec<String>> {
+        self.typed(key, true, |v| {
+            items(v, |item| match item.as_str() {
+                Some(s) => rule(s).map(|()| s.to_owned()).or_else(refused),
+                None => wrong_type(item, "a string"),
+            })
+        })
     }
 
     /// A list of numbers with no unit, null for one that is not there: absent is
     /// `None`, null for the whole list is refused.
     pub fn numbers(&mut self, key: &'static str) -> Option<Vec<Option<f64>>> {
-        self.typed(key, false, |v| items(v, |item| if item.is_null() { Ok(None) } else { quantity(item, FieldUnit::PLAIN).map(Some) }))
+        self.typed(key, false, |v| items(v, |item| if item.is_null() { Ok(None) } else { quantity(item, FieldUnit::PLAIN, Range::ANY).map(Some) }))
     }
 
     /// The object's first error: a key nothing asked for, a bad value, a missing field.

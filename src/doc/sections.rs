@@ -1,10 +1,11 @@
 //! The sections of a design document (SPEC §4), and how each is read from its JSON
-//! object: the keys it takes, in which form, and their defaults. Keys carry their
-//! unit; `validate` checks the ranges once everything is read.
+//! object: the keys it takes, in which form, their defaults and the values each
+//! allows. Keys carry their unit; `validate` checks the rules between fields once
+//! everything is read.
 
 use super::parse::Json;
 use super::quantity::FieldUnit as U;
-use super::read::{object, Fields};
+use super::read::{object, End::{Closed, Free, Open}, Fields, Range};
 use crate::error::Result;
 use crate::stage::{Component, Components, Role};
 use crate::values::Series;
@@ -19,6 +20,27 @@ pub enum Model {
 }
 
 const MODELS: &[(&str, Model)] = &[("square-law", Model::SquareLaw), ("ekv", Model::Ekv)];
+
+/// Largest resistance and capacitance a field may hold: far beyond any real part,
+/// small enough that the arithmetic stays finite.
+const MAX_OHM: f64 = 1e12;
+const MAX_F: f64 = 1.0;
+const MAX_HZ: f64 = 1e12;
+/// The lowest frequency an analysis or noise band starts at: nothing of a stage
+/// moves below it, and with `MAX_HZ` it keeps every ratio of frequencies finite.
+const MIN_HZ: f64 = 1e-3;
+
+/// A part has 1 to 9 stages, an odd number: an even count does not invert, and the
+/// feedback resistor would latch it.
+fn stage_count(stages: u32) -> std::result::Result<(), String> {
+    if stages == 0 || stages > 9 {
+        Err(format!("must be 1 to 9, got {stages}"))
+    } else if stages.is_multiple_of(2) {
+        Err(format!("must be odd, got {stages}: an even count does not invert, so the feedback resistor would latch it"))
+    } else {
+        Ok(())
+    }
+}
 
 /// The inverter part: one stage, or `stages` identical stages in series.
 #[derive(Debug, Clone, PartialEq)]
@@ -50,35 +72,38 @@ impl Part {
     fn read(f: &mut Fields) -> Part {
         Part {
             model: f.choice("model", MODELS).unwrap_or(Model::SquareLaw),
-            vdd_v: f.required_quantity("vdd_v", U::VOLT),
-            stages: f.count("stages", 1),
-            kn_a_per_v2: f.required_quantity("kn_a_per_v2", U::PLAIN),
-            kp_a_per_v2: f.required_quantity("kp_a_per_v2", U::PLAIN),
-            vtn_v: f.required_quantity("vtn_v", U::VOLT),
-            vtp_v: f.required_quantity("vtp_v", U::VOLT),
-            lambda_n_per_v: f.quantity_or("lambda_n_per_v", U::PLAIN, 0.0),
-            lambda_p_per_v: f.quantity_or("lambda_p_per_v", U::PLAIN, 0.0),
-            cgs_f: f.quantity_or("cgs_f", U::FARAD, 0.0),
-            cgd_f: f.quantity_or("cgd_f", U::FARAD, 0.0),
-            cdb_f: f.quantity_or("cdb_f", U::FARAD, 0.0),
-            gamma: f.quantity_or("gamma", U::PLAIN, 2.0 / 3.0),
-            temp_c: f.quantity_or("temp_c", U::CELSIUS, 25.0),
-            n_slope: f.quantity_or("n_slope", U::PLAIN, TYPICAL_SLOPE),
-            pkg_max_w: f.quantity("pkg_max_w", U::WATT),
+            vdd_v: f.required_quantity_in("vdd_v", U::VOLT, Range(Open(0.0), Closed(30.0))),
+            stages: f.count_where("stages", 1, stage_count),
+            kn_a_per_v2: f.required_quantity_in("kn_a_per_v2", U::PLAIN, Range(Open(0.0), Closed(10.0))),
+            kp_a_per_v2: f.required_quantity_in("kp_a_per_v2", U::PLAIN, Range(Open(0.0), Closed(10.0))),
+            // Each below vdd_v in magnitude as well (`validate`).
+            vtn_v: f.required_quantity_in("vtn_v", U::VOLT, Range(Open(0.0), Free)),
+            vtp_v: f.required_quantity_in("vtp_v", U::VOLT, Range(Free, Open(0.0))),
+            lambda_n_per_v: f.quantity_or_in("lambda_n_per_v", U::PLAIN, 0.0, Range(Closed(0.0), Closed(1.0))),
+            lambda_p_per_v: f.quantity_or_in("lambda_p_per_v", U::PLAIN, 0.0, Range(Closed(0.0), Closed(1.0))),
+            cgs_f: f.quantity_or_in("cgs_f", U::FARAD, 0.0, Range(Closed(0.0), Closed(1e-6))),
+            cgd_f: f.quantity_or_in("cgd_f", U::FARAD, 0.0, Range(Closed(0.0), Closed(1e-6))),
+            cdb_f: f.quantity_or_in("cdb_f", U::FARAD, 0.0, Range(Closed(0.0), Closed(1e-6))),
+            gamma: f.quantity_or_in("gamma", U::PLAIN, 2.0 / 3.0, Range(Open(0.0), Closed(10.0))),
+            temp_c: f.quantity_or_in("temp_c", U::CELSIUS, 25.0, Range(Closed(-60.0), Closed(200.0))),
+            n_slope: f.quantity_or_in("n_slope", U::PLAIN, TYPICAL_SLOPE, Range(Closed(1.0), Closed(3.0))),
+            pkg_max_w: f.quantity_in("pkg_max_w", U::WATT, Range(Open(0.0), Closed(100.0))),
         }
     }
 }
 
 /// The `stage` section: the components it fits, each key a component's
-/// (`r_fb_ohm`) in that component's unit; null or absent is "not fitted".
+/// (`r_fb_ohm`) in that component's unit; null or absent is "not fitted". A value
+/// is above 0, or 0 too where 0 is a short.
 fn components(f: &mut Fields) -> Components {
     let mut found = Components::default();
     for c in Component::ALL {
-        let unit = match c.role() {
-            Role::Resistor => U::OHM,
-            Role::Capacitor => U::FARAD,
+        let low = if c.zero_is_short() { Closed(0.0) } else { Open(0.0) };
+        let (unit, high) = match c.role() {
+            Role::Resistor => (U::OHM, MAX_OHM),
+            Role::Capacitor => (U::FARAD, MAX_F),
         };
-        found.set(c, f.quantity(c.key(), unit));
+        found.set(c, f.quantity_in(c.key(), unit, Range(low, Closed(high))));
     }
     found
 }
@@ -100,14 +125,18 @@ pub struct Analysis {
 impl Analysis {
     fn read(f: &mut Fields) -> Analysis {
         Analysis {
+            // Within the sweep (`validate`).
             f_design_hz: f.required_quantity("f_design_hz", U::HERTZ),
-            f_start_hz: f.quantity_or("f_start_hz", U::HERTZ, 10.0),
-            f_stop_hz: f.quantity_or("f_stop_hz", U::HERTZ, 1e9),
-            points_per_decade: f.count("points_per_decade", 50),
-            z0_ohm: f.quantity_or("z0_ohm", U::OHM, 50.0),
-            input_dbm: f.quantity_or("input_dbm", U::DBM, -30.0),
-            noise_f_low_hz: f.quantity("noise_f_low_hz", U::HERTZ),
-            noise_f_high_hz: f.quantity("noise_f_high_hz", U::HERTZ),
+            f_start_hz: f.quantity_or_in("f_start_hz", U::HERTZ, 10.0, Range(Closed(MIN_HZ), Open(MAX_HZ))),
+            // Above f_start_hz as well (`validate`).
+            f_stop_hz: f.quantity_or_in("f_stop_hz", U::HERTZ, 1e9, Range(Free, Closed(MAX_HZ))),
+            // The sweep's points limited as well (`validate`).
+            points_per_decade: f.count_in("points_per_decade", 50, Range(Closed(1.0), Closed(1000.0))),
+            z0_ohm: f.quantity_or_in("z0_ohm", U::OHM, 50.0, Range(Open(0.0), Closed(MAX_OHM))),
+            input_dbm: f.quantity_or_in("input_dbm", U::DBM, -30.0, Range(Closed(-200.0), Closed(60.0))),
+            // Both ends or neither, the high above the low (`validate`).
+            noise_f_low_hz: f.quantity_in("noise_f_low_hz", U::HERTZ, Range(Closed(MIN_HZ), Open(MAX_HZ))),
+            noise_f_high_hz: f.quantity_in("noise_f_high_hz", U::HERTZ, Range(Free, Closed(MAX_HZ))),
         }
     }
 }
@@ -160,20 +189,21 @@ pub struct Target {
 impl Target {
     fn read(f: &mut Fields) -> Target {
         Target {
-            gain_db: f.required_quantity("gain_db", U::DB),
+            gain_db: f.required_quantity_in("gain_db", U::DB, Range(Closed(-60.0), Closed(100.0))),
             gain_kind: f.choice("gain_kind", GAIN_KINDS).unwrap_or(GainKind::Voltage),
             series: f.parsed("series", "a series name such as \"E24\"", series).unwrap_or(Series::E24),
-            s11_max_db: f.quantity("s11_max_db", U::DB),
-            return_loss_min_db: f.quantity("return_loss_min_db", U::DB),
+            s11_max_db: f.quantity_in("s11_max_db", U::DB, Range(Closed(-100.0), Open(0.0))),
+            return_loss_min_db: f.quantity_in("return_loss_min_db", U::DB, Range(Open(0.0), Closed(100.0))),
             match_source: f.flag("match_source"),
-            f_low_hz: f.quantity("f_low_hz", U::HERTZ),
-            iq_max_a: f.quantity("iq_max_a", U::AMPERE),
-            nf_max_db: f.quantity("nf_max_db", U::DB),
-            gain_tol_db: f.quantity("gain_tol_db", U::DB),
-            pm_min_deg: f.quantity("pm_min_deg", U::PLAIN),
+            f_low_hz: f.quantity_in("f_low_hz", U::HERTZ, Range(Open(0.0), Closed(MAX_HZ))),
+            iq_max_a: f.quantity_in("iq_max_a", U::AMPERE, Range(Open(0.0), Closed(10.0))),
+            nf_max_db: f.quantity_in("nf_max_db", U::DB, Range(Closed(0.0), Closed(100.0))),
+            gain_tol_db: f.quantity_in("gain_tol_db", U::DB, Range(Open(0.0), Closed(60.0))),
+            pm_min_deg: f.quantity_in("pm_min_deg", U::PLAIN, Range(Closed(0.0), Open(180.0))),
             allow_combinations: f.flag("allow_combinations"),
-            r_min_ohm: f.quantity("r_min_ohm", U::OHM),
-            r_max_ohm: f.quantity("r_max_ohm", U::OHM),
+            // The one below the other, defaults counted (`validate`).
+            r_min_ohm: f.quantity_in("r_min_ohm", U::OHM, Range(Closed(0.1), Closed(MAX_OHM))),
+            r_max_ohm: f.quantity_in("r_max_ohm", U::OHM, Range(Closed(1.0), Closed(MAX_OHM))),
         }
     }
 }
@@ -193,18 +223,19 @@ pub struct Tolerance {
 impl Tolerance {
     fn read(f: &mut Fields) -> Tolerance {
         Tolerance {
-            resistor_pct: f.quantity_or("resistor_pct", U::PERCENT, 1.0),
-            capacitor_pct: f.quantity_or("capacitor_pct", U::PERCENT, 10.0),
-            vdd_pct: f.quantity_or("vdd_pct", U::PERCENT, 5.0),
-            k_pct: f.quantity_or("k_pct", U::PERCENT, 20.0),
-            vt_mv: f.quantity_or("vt_mv", U::MILLIVOLT, 100.0),
-            trials: f.count("trials", 1000),
+            resistor_pct: f.quantity_or_in("resistor_pct", U::PERCENT, 1.0, Range(Closed(0.0), Closed(50.0))),
+            capacitor_pct: f.quantity_or_in("capacitor_pct", U::PERCENT, 10.0, Range(Closed(0.0), Closed(80.0))),
+            vdd_pct: f.quantity_or_in("vdd_pct", U::PERCENT, 5.0, Range(Closed(0.0), Closed(50.0))),
+            k_pct: f.quantity_or_in("k_pct", U::PERCENT, 20.0, Range(Closed(0.0), Closed(90.0))),
+            vt_mv: f.quantity_or_in("vt_mv", U::MILLIVOLT, 100.0, Range(Closed(0.0), Closed(1000.0))),
+            trials: f.count_in("trials", 1000, Range(Closed(1.0), Closed(100_000.0))),
             seed: f.integer("seed", 1, u64::MAX),
         }
     }
 }
 
-/// One open-loop gain reading: magnitude as V/V or in dB (exactly one of them).
+/// One open-loop gain reading: magnitude as V/V or in dB (exactly one of them,
+/// `validate`).
 #[derive(Debug, Clone, PartialEq)]
 pub struct GainReading {
     pub f_hz: f64,
@@ -215,14 +246,15 @@ pub struct GainReading {
 impl GainReading {
     fn read(f: &mut Fields) -> GainReading {
         GainReading {
-            f_hz: f.required_quantity("f_hz", U::HERTZ),
-            gain_vv: f.quantity("gain_vv", U::PLAIN),
-            gain_db: f.quantity("gain_db", U::DB),
+            f_hz: f.required_quantity_in("f_hz", U::HERTZ, Range(Open(0.0), Closed(MAX_HZ))),
+            gain_vv: f.quantity_in("gain_vv", U::PLAIN, Range(Open(0.0), Closed(1e6))),
+            gain_db: f.quantity_in("gain_db", U::DB, Range(Closed(-60.0), Closed(120.0))),
         }
     }
 }
 
-/// One point of a measured transfer curve.
+/// One point of a measured transfer curve, each voltage from 0 to the bench's
+/// vdd_v (the upper end checked by `validate`).
 #[derive(Debug, Clone, PartialEq)]
 pub struct CurvePoint {
     pub vin_v: f64,
@@ -231,7 +263,10 @@ pub struct CurvePoint {
 
 impl CurvePoint {
     fn read(f: &mut Fields) -> CurvePoint {
-        CurvePoint { vin_v: f.required_quantity("vin_v", U::VOLT), vout_v: f.required_quantity("vout_v", U::VOLT) }
+        CurvePoint {
+            vin_v: f.required_quantity_in("vin_v", U::VOLT, Range(Closed(0.0), Free)),
+            vout_v: f.required_quantity_in("vout_v", U::VOLT, Range(Closed(0.0), Free)),
+        }
     }
 }
 
@@ -253,18 +288,27 @@ pub struct Bench {
     pub fit: Option<Vec<String>>,
 }
 
+/// The name of a parameter the fit can fit.
+fn parameter(name: &str) -> std::result::Result<(), String> {
+    match crate::analysis::Param::from_name(name) {
+        Some(_) => Ok(()),
+        None => Err(format!("`{name}` is not a parameter (kn, kp, vtn, vtp, lambda, cap)")),
+    }
+}
+
 impl Bench {
     fn read(f: &mut Fields) -> Bench {
         Bench {
-            vdd_v: f.required_quantity("vdd_v", U::VOLT),
-            stages: f.count("stages", 1),
-            idd_a: f.quantity("idd_a", U::AMPERE),
-            vbias_v: f.quantity("vbias_v", U::VOLT),
-            load_ohm: f.quantity("load_ohm", U::OHM),
-            load_f: f.quantity("load_f", U::FARAD),
+            vdd_v: f.required_quantity_in("vdd_v", U::VOLT, Range(Open(0.0), Closed(30.0))),
+            stages: f.count_where("stages", 1, stage_count),
+            idd_a: f.quantity_in("idd_a", U::AMPERE, Range(Open(0.0), Closed(10.0))),
+            // Below vdd_v as well (`validate`).
+            vbias_v: f.quantity_in("vbias_v", U::VOLT, Range(Open(0.0), Free)),
+            load_ohm: f.quantity_in("load_ohm", U::OHM, Range(Open(0.0), Closed(MAX_OHM))),
+            load_f: f.quantity_in("load_f", U::FARAD, Range(Open(0.0), Closed(MAX_F))),
             gains: f.objects("gains", GainReading::read).unwrap_or_default(),
             curve: f.objects("curve", CurvePoint::read).unwrap_or_default(),
-            fit: f.strings("fit"),
+            fit: f.strings("fit", parameter),
         }
     }
 }
@@ -303,13 +347,13 @@ impl Block {
     fn read(f: &mut Fields) -> Block {
         Block {
             kind: f.choice("kind", BLOCK_KINDS).unwrap_or_else(|| f.missing("kind", BlockKind::Stage)),
-            name: f.string("name"),
-            loss_db: f.quantity("loss_db", U::DB),
-            gain_db: f.quantity("gain_db", U::DB),
-            nf_db: f.quantity("nf_db", U::DB),
-            oip3_dbm: f.quantity("oip3_dbm", U::DBM),
-            op1db_dbm: f.quantity("op1db_dbm", U::DBM),
-            dc_w: f.quantity("dc_w", U::WATT),
+            name: f.string("name", 80),
+            loss_db: f.quantity_in("loss_db", U::DB, Range(Closed(0.0), Closed(100.0))),
+            gain_db: f.quantity_in("gain_db", U::DB, Range(Closed(-60.0), Closed(100.0))),
+            nf_db: f.quantity_in("nf_db", U::DB, Range(Closed(0.0), Closed(60.0))),
+            oip3_dbm: f.quantity_in("oip3_dbm", U::DBM, Range(Closed(-100.0), Closed(100.0))),
+            op1db_dbm: f.quantity_in("op1db_dbm", U::DBM, Range(Closed(-100.0), Closed(100.0))),
+            dc_w: f.quantity_in("dc_w", U::WATT, Range(Closed(0.0), Closed(1e3))),
         }
     }
 }
@@ -331,11 +375,12 @@ pub struct Chain {
 impl Chain {
     fn read(f: &mut Fields) -> Chain {
         Chain {
-            input_dbm: f.required_quantity("input_dbm", U::DBM),
-            bandwidth_hz: f.required_quantity("bandwidth_hz", U::HERTZ),
+            input_dbm: f.required_quantity_in("input_dbm", U::DBM, Range(Closed(-200.0), Closed(60.0))),
+            bandwidth_hz: f.required_quantity_in("bandwidth_hz", U::HERTZ, Range(Open(0.0), Closed(MAX_HZ))),
+            // How many stage blocks may run in a row depends on the part (`validate`).
             blocks: f.objects("blocks", Block::read).unwrap_or_else(|| f.missing("blocks", Vec::new())),
-            snr_wanted_db: f.quantity("snr_wanted_db", U::DB),
-            headroom_warn_db: f.quantity("headroom_warn_db", U::DB),
+            snr_wanted_db: f.quantity_in("snr_wanted_db", U::DB, Range(Closed(-20.0), Closed(100.0))),
+            headroom_warn_db: f.quantity_in("headroom_warn_db", U::DB, Range(Closed(0.0), Closed(100.0))),
             stage_runs: f.optional_choice("stage_runs", STAGE_RUNS),
         }
     }
@@ -375,8 +420,8 @@ impl Document {
         let named = |e: crate::error::FieldError| if e.field.is_empty() { e.within("document") } else { e };
         object(root, |f| Document {
             halfrail: f.count("halfrail", 0),
-            title: f.string("title"),
-            notes: f.string("notes"),
+            title: f.string("title", 200),
+            notes: f.string("notes", 20_000),
             part: f.section("part", Part::read),
             stage: f.section("stage", components),
             analysis: f.section("analysis", Analysis::read),
