@@ -111,3 +111,58 @@ export const framesDrawn = (frameOrPage, n = 2) => frameOrPage.evaluate((count) 
 // The page's one Undo and Redo (the Design bar's), for every panel's edits.
 export const undoButton = (page) => page.locator('#docbar').getByRole('button', { name: 'Undo', exact: true });
 export const redoButton = (page) => page.locator('#docbar').getByRole('button', { name: 'Redo', exact: true });
+
+// An init script (page.addInitScript) that watches the page's background work from
+// before its own scripts run: every Worker made (`name url`) and terminated, every
+// animation frame, every value a progress bar shows and whether a run box is shown,
+// each with its time. Read it with workLog(page).
+export const instrumentWork = () => {
+  const log = { workers: [], terminated: 0, frames: [], progress: [], box: [] };
+  window.__work = log;
+  const Native = window.Worker;
+  window.Worker = class extends Native {
+    constructor(url, options) { super(url, options); log.workers.push(`${(options && options.name) || ''} ${url}`); }
+  };
+  const terminate = Native.prototype.terminate;
+  Native.prototype.terminate = function () { log.terminated += 1; return terminate.call(this); };
+  const tick = (t) => { log.frames.push(t); requestAnimationFrame(tick); };
+  requestAnimationFrame(tick);
+  new MutationObserver((records) => {
+    for (const r of records) {
+      if (r.target.tagName === 'PROGRESS' && r.attributeName === 'value') log.progress.push([performance.now(), Number(r.target.value)]);
+      if (r.target.classList && r.target.classList.contains('run') && r.attributeName === 'hidden') log.box.push([performance.now(), !r.target.hidden]);
+    }
+  }).observe(document, { subtree: true, attributes: true, attributeFilter: ['value', 'hidden'] });
+};
+export const workLog = (page) => page.evaluate(() => window.__work);
+
+// The states of a panel that computes in the background (worker.js's follow()):
+// its results counted, its run box, and the follower's state, each waited for.
+export const backgroundPanel = (id) => ({
+  panel: (page) => page.locator(`#panel-${id}`),
+  computed: (page) => page.locator(`#panel-${id}`).getAttribute('data-computed').then(Number),
+  results: (page, n) => page.waitForSelector(`#panel-${id}[data-computed="${n}"]`, { timeout: 30000 }),
+  runBox: (page) => page.locator(`#panel-${id} .run`),
+  // Polled every frame: a run is a few hundred ms, and a locator's wait polls too
+  // slowly to be sure to see it.
+  runShown: (page) => page.waitForFunction((sel) => !document.querySelector(sel).hidden, `#panel-${id} .run`, { polling: 'raf' }),
+  settledAs: (page, state) => page.waitForSelector(`#panel-${id}[data-follow="${state}"]`, { state: 'attached' }),
+});
+
+// An edit of `field` to `first` and, while its run goes, to `second`, on a panel
+// `bg` (backgroundPanel) that has shown `n - 1` results: waits for the `n`th and for
+// the follower to settle, and returns every text `shownAt` (a selector) showed
+// meanwhile — one, the second edit's, when the second run superseded the first.
+export async function supersede(page, bg, field, [first, second], n, shownAt) {
+  await page.evaluate((sel) => {
+    window.__shown = [];
+    const node = document.querySelector(sel);
+    new MutationObserver(() => window.__shown.push(node.textContent)).observe(node, { childList: true, characterData: true, subtree: true });
+  }, shownAt);
+  await field.fill(first);
+  await bg.runShown(page);
+  await field.fill(second);
+  await bg.results(page, n);
+  await bg.settledAs(page, 'settled');
+  return page.evaluate(() => window.__shown);
+}

@@ -7,50 +7,27 @@
 // the design (persisted, undoable, a bad one refused at its field).
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
-import { launch, watch, ready, clearStorage, editElsewhereDuringRun, PAGE_URL, cli, undoButton } from './browser.mjs';
+import { launch, watch, ready, clearStorage, editElsewhereDuringRun, PAGE_URL, cli, undoButton, instrumentWork, workLog, backgroundPanel, supersede } from './browser.mjs';
 
 let browser;
 before(async () => { browser = await launch(); });
 after(async () => { await browser.close(); });
 beforeEach(() => clearStorage(browser.context));
 
+const bg = backgroundPanel('spread');
+const { panel, computed, results, runBox, runShown, settledAs } = bg;
+const log = workLog;
+
 // The native CLI's spread summary for a document (built by `make test-e2e`).
 const cliSpread = (text) => cli('spread', text);
 
-// Watches, from before the page's own scripts run: every Worker made (its name) and
-// terminated, every animation frame, and every value the progress bar shows, with its time.
-const instrument = () => {
-  const log = { workers: [], terminated: 0, frames: [], progress: [] };
-  window.__spread = log;
-  const Native = window.Worker;
-  window.Worker = class extends Native {
-    constructor(url, options) { super(url, options); log.workers.push(`${options && options.name} ${url}`); }
-  };
-  const terminate = Native.prototype.terminate;
-  Native.prototype.terminate = function () { log.terminated += 1; return terminate.call(this); };
-  const tick = (t) => { log.frames.push(t); requestAnimationFrame(tick); };
-  requestAnimationFrame(tick);
-  new MutationObserver((records) => {
-    for (const r of records) if (r.target.tagName === 'PROGRESS') log.progress.push([performance.now(), Number(r.target.value)]);
-  }).observe(document, { subtree: true, attributes: true, attributeFilter: ['value'] });
-};
-
-const panel = (page) => page.locator('#panel-spread');
-const computed = (page) => panel(page).getAttribute('data-computed').then(Number);
-const results = (page, n) => page.waitForSelector(`#panel-spread[data-computed="${n}"]`, { timeout: 30000 });
-const runBox = (page) => page.locator('#panel-spread .run');
-// Polled every frame (a locator's waitFor polls every half second once it has waited a while).
-const runShown = (page) => page.waitForFunction(() => !document.querySelector('#panel-spread .run').hidden);
-const log = (page) => page.evaluate(() => window.__spread);
-// Waits until the panel's background follower is in `state` (worker.js's follow()).
-const settledAs = (page, state) => page.waitForSelector(`#panel-spread[data-follow="${state}"]`, { state: 'attached' });
 const figureRow = (page, name) => page.locator('#panel-spread table tbody tr').filter({ hasText: name }).locator('td').allTextContents();
 const tolerance = (page, label) => page.locator('#panel-spread').getByLabel(label, { exact: true });
 
 async function openSpread(hash = '#spread') {
   const page = await browser.context.newPage();
   const seen = watch(page);
-  await page.addInitScript(instrument);
+  await page.addInitScript(instrumentWork);
   await page.goto(PAGE_URL + hash);
   await ready(page);
   return { page, seen };
@@ -179,18 +156,9 @@ test('Cancel ends both workers and no result of the run lands; an edit supersede
   await trials.fill('3000');
   await results(page, 2);
   assert.equal((await log(page)).workers.length, 4, 'two fresh workers after the cancel');
-  await page.evaluate(() => {
-    window.__notes = [];
-    const note = document.querySelector('#panel-spread .run-note');
-    new MutationObserver(() => window.__notes.push(note.textContent)).observe(note, { childList: true, characterData: true, subtree: true });
-  });
-  await trials.fill('20000');
-  await runShown(page);
-  await trials.fill('4000');
-  await results(page, 3);
-  await settledAs(page, 'settled');
+  const notes = await supersede(page, bg, trials, ['20000', '4000'], 3, '#panel-spread .run-note');
   assert.equal(await computed(page), 3, 'one result for the two edits');
-  assert.deepEqual((await page.evaluate(() => window.__notes)).map((t) => t.split(' ')[0]), ['4000']);
+  assert.deepEqual(notes.map((t) => t.split(' ')[0]), ['4000']);
   assert.equal(await page.locator('#panel-spread .stale-note').isVisible(), false);
   assert.deepEqual(seen.errors, []);
   assert.deepEqual(seen.requests, []);

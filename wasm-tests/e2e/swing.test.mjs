@@ -9,54 +9,26 @@ import fs from 'fs';
 import http from 'http';
 import os from 'os';
 import path from 'path';
-import { launch, watch, ready, clearStorage, editElsewhereDuringRun, PAGE_PATH, PAGE_URL, cli } from './browser.mjs';
+import { launch, watch, ready, clearStorage, editElsewhereDuringRun, PAGE_PATH, PAGE_URL, cli, instrumentWork, workLog, backgroundPanel, supersede } from './browser.mjs';
 
 let browser;
 before(async () => { browser = await launch(); });
 after(async () => { await browser.close(); });
 beforeEach(() => clearStorage(browser.context));
 
+const bg = backgroundPanel('swing');
+const { panel, computed, results, runBox, runShown, settledAs } = bg;
+const log = workLog;
+
 // The native CLI's large-signal figures for a document (built by `make test-e2e`).
 const cliLarge = (text) => cli('analyze', text).large;
 
-// Watches, from before the page's own scripts run: every Worker made (its URL) and
-// terminated, every animation frame, every value the progress bar shows and whether
-// the run's box is shown, each with its time.
-const instrument = () => {
-  const log = { workers: [], terminated: 0, frames: [], progress: [], box: [] };
-  window.__swing = log;
-  const Native = window.Worker;
-  window.Worker = class extends Native {
-    constructor(url, options) { super(url, options); log.workers.push(String(url)); }
-  };
-  const terminate = Native.prototype.terminate;
-  Native.prototype.terminate = function () { log.terminated += 1; return terminate.call(this); };
-  const tick = (t) => { log.frames.push(t); requestAnimationFrame(tick); };
-  requestAnimationFrame(tick);
-  new MutationObserver((records) => {
-    for (const r of records) {
-      if (r.target.tagName === 'PROGRESS' && r.attributeName === 'value') log.progress.push([performance.now(), Number(r.target.value)]);
-      if (r.target.classList && r.target.classList.contains('run') && r.attributeName === 'hidden') log.box.push([performance.now(), !r.target.hidden]);
-    }
-  }).observe(document, { subtree: true, attributes: true, attributeFilter: ['value', 'hidden'] });
-};
-
-const panel = (page) => page.locator('#panel-swing');
 const figure = (page, key) => page.locator(`#panel-swing dd[data-key="${key}"] .value`).textContent();
-const computed = (page) => panel(page).getAttribute('data-computed').then(Number);
-const results = (page, n) => page.waitForSelector(`#panel-swing[data-computed="${n}"]`, { timeout: 20000 });
-const runBox = (page) => page.locator('#panel-swing .run');
-// Waits for the progress box by polling every frame: a run is a few hundred ms, and
-// a locator's wait polls too slowly to be sure to see it.
-const runShown = (page) => page.waitForFunction(() => !document.querySelector('#panel-swing .run').hidden, null, { polling: 'raf' });
-const log = (page) => page.evaluate(() => window.__swing);
-// Waits until the panel's background follower is in `state` (worker.js's follow()).
-const settledAs = (page, state) => page.waitForSelector(`#panel-swing[data-follow="${state}"]`, { state: 'attached' });
 
 async function openSwing(hash = '#swing') {
   const page = await browser.context.newPage();
   const seen = watch(page);
-  await page.addInitScript(instrument);
+  await page.addInitScript(instrumentWork);
   await page.goto(PAGE_URL + hash);
   await ready(page);
   return { page, seen };
@@ -76,7 +48,7 @@ test('from file:// the demo runs in a worker, the page stays responsive, and the
   await results(page, 1);
   let l = await log(page);
   assert.equal(l.workers.length, 1, 'one worker made');
-  assert.match(l.workers[0], /^blob:/, 'from a Blob');
+  assert.match(l.workers[0], / blob:/, 'from a Blob');
   assert.equal(await page.evaluate(() => HR.background.started), 1);
 
   // A second run, watched: the main thread handles an edit elsewhere while it runs.
@@ -158,18 +130,9 @@ test('Cancel stops the run, no result of it appears, and the next run completes;
   assert.notEqual(await figure(page, 'hd2'), hd2, 'HD2 moves with the level');
 
   // An edit during a run supersedes it: only the later level's result is ever shown.
-  await page.evaluate(() => {
-    window.__levels = [];
-    const cell = document.querySelector('#panel-swing dd[data-key="level"] .value');
-    new MutationObserver(() => window.__levels.push(cell.textContent)).observe(cell, { childList: true, characterData: true, subtree: true });
-  });
-  await level.fill('-20');
-  await runShown(page);
-  await level.fill('-25');
-  await results(page, 3);
-  await settledAs(page, 'settled');
+  const levels = await supersede(page, bg, level, ['-20', '-25'], 3, '#panel-swing dd[data-key="level"] .value');
   assert.equal(await computed(page), 3, 'one result for the two edits');
-  assert.deepEqual(await page.evaluate(() => window.__levels), ['-25.00 dBm at 10.70 MHz']);
+  assert.deepEqual(levels, ['-25.00 dBm at 10.70 MHz']);
   assert.deepEqual(seen.errors, []);
   assert.deepEqual(seen.requests, []);
   await page.close();
@@ -234,13 +197,13 @@ test('the worker runs when the page is served over http', async () => {
   const url = `http://127.0.0.1:${server.address().port}/halfrail.html#swing`;
   const page = await browser.context.newPage();
   const seen = watch(page, [url]);
-  await page.addInitScript(instrument);
+  await page.addInitScript(instrumentWork);
   await page.goto(url);
   await ready(page);
   await results(page, 1);
   const l = await log(page);
   assert.equal(l.workers.length, 1);
-  assert.match(l.workers[0], /^blob:http:\/\/127\.0\.0\.1:/);
+  assert.match(l.workers[0], / blob:http:\/\/127\.0\.0\.1:/);
   const large = cliLarge(await page.evaluate(() => HR.design.text()));
   await assertAgrees(page, large);
   assert.deepEqual(seen.requests, []);
