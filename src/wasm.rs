@@ -31,7 +31,7 @@ fn reporter(progress: &js_sys::Function) -> impl FnMut(f64) + '_ {
 }
 
 fn thrown(error: FieldError) -> JsValue {
-    to_js(&crate::session::located(error)).unwrap_or_else(|e| e)
+    to_js(&wire::FieldErrorOut(&crate::session::located(error))).unwrap_or_else(|e| e)
 }
 
 fn unit_named(field: &str, name: &str) -> Result<Unit, JsValue> {
@@ -92,7 +92,7 @@ pub fn levels_of(text: &str, at: &str) -> Result<JsValue, JsValue> {
     let levels = units::levels(parsed.value, unit, impedance).map_err(|e| {
         thrown(FieldError::new(if e.field == "impedance_ohm" { "impedance" } else { "level" }, e.reason))
     })?;
-    to_js(&levels)
+    to_js(&wire::LevelsOut(&levels))
 }
 
 /// All four mismatch figures from one (`form`: vswr, rl, gamma or ml).
@@ -107,7 +107,7 @@ pub fn mismatch_of(text: &str, form: &str) -> Result<JsValue, JsValue> {
     };
     let value = units::parse(text).map_err(|e| thrown(e.within("mismatch")))?.value;
     let m = units::mismatch(form, value).map_err(|e| thrown(FieldError::new("mismatch", e.reason)))?;
-    to_js(&m)
+    to_js(&wire::MismatchOut(&m))
 }
 
 /// A value looked up in every E-series.
@@ -144,7 +144,7 @@ pub fn ratio_pairs(text: &str, series: &str, count: usize) -> Result<JsValue, Js
     };
     let pairs = values::ratio_pairs(wanted, series, count.clamp(1, 50))
         .map_err(|e| thrown(FieldError::new("ratio", e.reason)))?;
-    to_js(&pairs)
+    to_js(&wire::RatioPairsOut(&pairs))
 }
 
 /// Checks a design document's text: its format version and sections, or the first bad field.
@@ -170,7 +170,7 @@ pub fn demo_document() -> String {
 /// The illustrative part presets, each with its part in document keys.
 #[wasm_bindgen]
 pub fn presets() -> Result<JsValue, JsValue> {
-    to_js(&crate::part::PRESETS)
+    to_js(&wire::PresetsOut(&crate::part::PRESETS))
 }
 
 /// Reads a document and its part and stage.
@@ -196,14 +196,14 @@ pub fn part_report(text: &str, points: usize) -> Result<JsValue, JsValue> {
 /// Fits the part to the document's bench readings.
 #[wasm_bindgen(js_name = benchFit)]
 pub fn bench_fit(text: &str) -> Result<JsValue, JsValue> {
-    to_js(&doc::load(text).and_then(|d| d.bench_fit()).map_err(thrown)?)
+    to_js(&wire::FitOut(&doc::load(text).and_then(|d| d.bench_fit()).map_err(thrown)?))
 }
 
 /// The bare part's transfer curve alone (`points` from 0 to VDD).
 #[wasm_bindgen(js_name = transferCurve)]
 pub fn transfer_curve(text: &str, points: usize) -> Result<JsValue, JsValue> {
     let (_, part, _) = part_and_stage(text)?;
-    to_js(&crate::analysis::bare_curve(&part, points.clamp(3, 5001)).map_err(thrown)?)
+    to_js(&wire::CurveOut(&crate::analysis::bare_curve(&part, points.clamp(3, 5001)).map_err(thrown)?))
 }
 
 /// The Response panel's figures: the design-frequency figures, the sweep of the
@@ -330,7 +330,7 @@ pub fn chain_csv(text: &str, stage: &str) -> Result<String, JsValue> {
 /// The operating point alone (no curves): for the Stage panel's figures.
 #[wasm_bindgen(js_name = biasOf)]
 pub fn bias_of(text: &str) -> Result<JsValue, JsValue> {
-    to_js(&doc::load(text).and_then(|d| d.bias()).map_err(thrown)?)
+    to_js(&wire::BiasOut(&doc::load(text).and_then(|d| d.bias()).map_err(thrown)?))
 }
 
 /// The document's sweep as CSV text (the same as `halfrail sweep --csv`).

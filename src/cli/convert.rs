@@ -1,7 +1,7 @@
 //! `halfrail convert VALUE --to UNIT [--at OHMS]` for signal levels, and
 //! `halfrail mismatch VALUE --from FORM` for the four mismatch figures.
 
-use halfrail::wire::{to_json, ValueInUnit};
+use halfrail::wire::{to_json, MismatchOut, ValueInUnit};
 use halfrail::units::{convert_level, format_eng, format_fixed, mismatch, parse, parse_as, MismatchForm, Unit};
 use halfrail::FieldError;
 
@@ -67,7 +67,7 @@ pub fn run_mismatch(args: MismatchArgs) -> Result<String, Failure> {
     let value = parse(&args.value).map_err(|e| e.within("value"))?.value;
     let m = mismatch(form, value)?;
     Ok(if args.json {
-        format!("{}\n", to_json(&m))
+        format!("{}\n", to_json(&MismatchOut(&m)))
     } else {
         let rl = m.return_loss_db.map_or("∞".to_string(), |rl| format_fixed(rl, 2));
         format!(

@@ -3,7 +3,7 @@
 
 use std::path::PathBuf;
 
-use halfrail::wire::to_json;
+use halfrail::wire::{to_json, FitOut};
 
 use super::{read_document, Failure};
 
@@ -15,5 +15,5 @@ pub struct Args {
 
 pub fn run(args: Args) -> Result<String, Failure> {
     let document = read_document(&args.file)?;
-    Ok(format!("{}\n", to_json(&document.bench_fit()?)))
+    Ok(format!("{}\n", to_json(&FitOut(&document.bench_fit()?))))
 }

@@ -1,8 +1,9 @@
 //! The wire form of results: the key names of the CLI's JSON and of the objects
-//! the page receives, and the readers of results the page hands back. Core types
-//! stay free of serde; each mapping of key to field is written once, here.
+//! the page receives, and the readers of results the page hands back. Written by
+//! `#[derive(Serialize)]` on wire structs that borrow the core's results, with
+//! serde's remote definitions for core records: the core's types carry no serde,
+//! and each key is written once, here.
 
-#[macro_use]
 mod results;
 mod chain;
 mod design;
@@ -13,8 +14,11 @@ mod swing;
 
 pub use chain::{stage_block_from, ChainReport, StageBlock};
 pub use design::DesignReport;
+pub use results::{
+    AcReport, AnalyzeReport, BiasOut, BiasReport, CurveOut, DocumentSummary, FieldErrorOut, FitOut, LevelsOut, LookupReport, MismatchOut, NearestReport, PartOut, PartReport,
+    PresetsOut, RatioPairsOut, ResponseReport, SeriesFacts, ValueInUnit,
+};
 pub use sheet::SheetPage;
-pub use results::{AcReport, AnalyzeReport, BiasReport, DocumentSummary, LookupReport, NearestReport, PartReport, ResponseReport, SeriesFacts, ValueInUnit};
 pub use spread::{trials_from_columns, SpreadReport, SpreadSummary, TrialColumns};
 pub use stability::{LoopReport, LoopSummary, SuggestionOut};
 pub use swing::{LargeSummary, SwingReport};

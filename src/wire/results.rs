@@ -1,245 +1,334 @@
 //! The serialised form of the core's results: the key names of the CLI's JSON and
-//! of the objects the page receives. Core types stay free of serde; each mapping
-//! of key to field is written once, here.
+//! of the objects the page receives, all by `#[derive(Serialize)]`. Core types
+//! carry no serde, so a core record written key for field is described by a
+//! remote definition here (`…Def`); a wrapper that borrows it (`…Out`) is what the
+//! faces serialise. A report whose keys are computed or interleaved from several
+//! results is a borrowing struct turned, by `#[serde(into)]`, into a private
+//! struct of its keys. Lists and options of core records go through the small
+//! `serialize_with` helpers at the end.
 
 use crate::math;
-use serde::ser::{Serialize, SerializeStruct, Serializer};
+use serde::{Serialize, Serializer};
 
+use crate::analysis::{BareCurve, BarePoint, Bias, Fit, Fitted, LoopPoint, Residual, Response, StageBias, Warning, Window};
+use crate::error::FieldError;
+use crate::part::{Model, Part, Preset};
 use crate::units::{voltage_ratio_db, Levels, Mismatch, Unit};
 use crate::values::{Nearest, RatioPair, Series};
 
-/// `impl Serialize` for a core struct as a map of `"key" => field`.
-macro_rules! serialize_fields {
-    ($ty:ty { $($key:literal => $field:ident),* $(,)? }) => {
-        impl Serialize for $ty {
-            fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-                let keys: &[&str] = &[$($key),*];
-                let mut out = serializer.serialize_struct(stringify!($ty), keys.len())?;
-                $(out.serialize_field($key, &self.$field)?;)*
-                out.end()
-            }
-        }
-    };
+#[derive(Serialize)]
+#[serde(remote = "Levels")]
+struct LevelsDef {
+    impedance_ohm: f64,
+    #[serde(rename = "w")]
+    watts: f64,
+    dbm: f64,
+    dbw: f64,
+    vrms: f64,
+    vpk: f64,
+    vpp: f64,
+    dbv: f64,
+    dbuv: f64,
 }
 
-impl Serialize for Series {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        serializer.serialize_str(self.name())
-    }
+/// Every form of a level.
+#[derive(Serialize)]
+#[serde(transparent)]
+pub struct LevelsOut<'a>(#[serde(with = "LevelsDef")] pub &'a Levels);
+
+#[derive(Serialize)]
+#[serde(remote = "Mismatch")]
+struct MismatchDef {
+    gamma: f64,
+    return_loss_db: Option<f64>,
+    vswr: f64,
+    mismatch_loss_db: f64,
 }
 
-serialize_fields!(Levels {
-    "impedance_ohm" => impedance_ohm,
-    "w" => watts,
-    "dbm" => dbm,
-    "dbw" => dbw,
-    "vrms" => vrms,
-    "vpk" => vpk,
-    "vpp" => vpp,
-    "dbv" => dbv,
-    "dbuv" => dbuv,
-});
+/// The four mismatch figures.
+#[derive(Serialize)]
+#[serde(transparent)]
+pub struct MismatchOut<'a>(#[serde(with = "MismatchDef")] pub &'a Mismatch);
 
-serialize_fields!(Nearest {
-    "series" => series,
-    "value" => value,
-    "nearest" => nearest,
-    "below" => below,
-    "above" => above,
-    "error_pct" => error_pct,
-});
+#[derive(Serialize)]
+#[serde(remote = "RatioPair")]
+struct RatioPairDef {
+    numerator: f64,
+    denominator: f64,
+    ratio: f64,
+    error_pct: f64,
+}
 
-serialize_fields!(RatioPair {
-    "numerator" => numerator,
-    "denominator" => denominator,
-    "ratio" => ratio,
-    "error_pct" => error_pct,
-});
+/// Standard-value pairs for a ratio, best first.
+#[derive(Serialize)]
+#[serde(transparent)]
+pub struct RatioPairsOut<'a>(#[serde(serialize_with = "ratio_pairs")] pub &'a [RatioPair]);
 
-serialize_fields!(Mismatch {
-    "gamma" => gamma,
-    "return_loss_db" => return_loss_db,
-    "vswr" => vswr,
-    "mismatch_loss_db" => mismatch_loss_db,
-});
+#[derive(Serialize)]
+#[serde(remote = "Nearest")]
+struct NearestDef {
+    #[serde(serialize_with = "series_name")]
+    series: Series,
+    value: f64,
+    nearest: f64,
+    below: f64,
+    above: f64,
+    error_pct: f64,
+}
 
 /// A single value and its unit: `{"value": 0.02, "unit": "Vpp"}` (`null` for none).
+#[derive(Serialize)]
 pub struct ValueInUnit {
     pub value: f64,
+    #[serde(serialize_with = "unit_symbol")]
     pub unit: Option<Unit>,
-}
-
-impl Serialize for ValueInUnit {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let mut out = serializer.serialize_struct("ValueInUnit", 2)?;
-        out.serialize_field("value", &self.value)?;
-        out.serialize_field("unit", &self.unit.map(Unit::symbol))?;
-        out.end()
-    }
 }
 
 /// A look-up in one series, with the unit the value was typed in (if any) and
 /// every series the value itself belongs to.
+#[derive(Clone, Copy, Serialize)]
+#[serde(into = "NearestKeys<'a>")]
 pub struct NearestReport<'a> {
     pub found: &'a Nearest,
     pub unit: Option<Unit>,
     pub member_of: &'a [Series],
 }
 
-impl Serialize for NearestReport<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let f = self.found;
-        let mut out = serializer.serialize_struct("NearestReport", 8)?;
-        out.serialize_field("value", &f.value)?;
-        out.serialize_field("unit", &self.unit.map(Unit::symbol))?;
-        out.serialize_field("series", &f.series)?;
-        out.serialize_field("nearest", &f.nearest)?;
-        out.serialize_field("below", &f.below)?;
-        out.serialize_field("above", &f.above)?;
-        out.serialize_field("error_pct", &f.error_pct)?;
-        out.serialize_field("member_of", self.member_of)?;
-        out.end()
+/// The value and its unit first, then the look-up.
+#[derive(Serialize)]
+struct NearestKeys<'a> {
+    value: f64,
+    #[serde(serialize_with = "unit_symbol")]
+    unit: Option<Unit>,
+    #[serde(serialize_with = "series_name")]
+    series: Series,
+    nearest: f64,
+    below: f64,
+    above: f64,
+    error_pct: f64,
+    #[serde(serialize_with = "series_names")]
+    member_of: &'a [Series],
+}
+
+impl<'a> From<NearestReport<'a>> for NearestKeys<'a> {
+    fn from(r: NearestReport<'a>) -> Self {
+        let f = r.found;
+        NearestKeys {
+            value: f.value,
+            unit: r.unit,
+            series: f.series,
+            nearest: f.nearest,
+            below: f.below,
+            above: f.above,
+            error_pct: f.error_pct,
+            member_of: r.member_of,
+        }
     }
 }
 
 /// A value looked up in every series: what it was typed as, the series it is a
 /// member of, and one row per series.
+#[derive(Serialize)]
 pub struct LookupReport<'a> {
     pub value: f64,
+    #[serde(serialize_with = "unit_symbol")]
     pub unit: Option<Unit>,
+    #[serde(serialize_with = "series_names")]
     pub member_of: &'a [Series],
+    #[serde(serialize_with = "nearests")]
     pub rows: &'a [Nearest],
 }
 
-impl Serialize for LookupReport<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let mut out = serializer.serialize_struct("LookupReport", 4)?;
-        out.serialize_field("value", &self.value)?;
-        out.serialize_field("unit", &self.unit.map(Unit::symbol))?;
-        out.serialize_field("member_of", self.member_of)?;
-        out.serialize_field("rows", self.rows)?;
-        out.end()
-    }
+#[derive(Serialize)]
+#[serde(remote = "FieldError")]
+struct FieldErrorDef {
+    field: String,
+    reason: String,
+    /// The two joined as the CLI prints them.
+    #[serde(getter = "ToString::to_string")]
+    message: String,
 }
 
-impl Serialize for crate::error::FieldError {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let mut out = serializer.serialize_struct("FieldError", 3)?;
-        out.serialize_field("field", &self.field)?;
-        out.serialize_field("reason", &self.reason)?;
-        out.serialize_field("message", &self.to_string())?;
-        out.end()
-    }
-}
+/// A refusal: `{"field", "reason", "message"}`.
+#[derive(Serialize)]
+#[serde(transparent)]
+pub struct FieldErrorOut<'a>(#[serde(with = "FieldErrorDef")] pub &'a FieldError);
 
 /// What a valid document holds: `{"halfrail": 1, "sections": ["part", …]}`.
+#[derive(Serialize)]
 pub struct DocumentSummary {
     pub halfrail: u32,
     pub sections: Vec<&'static str>,
 }
 
-impl Serialize for DocumentSummary {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let mut out = serializer.serialize_struct("DocumentSummary", 2)?;
-        out.serialize_field("halfrail", &self.halfrail)?;
-        out.serialize_field("sections", &self.sections)?;
-        out.end()
-    }
-}
-
 /// What the standard says of one series: `{"name", "per_decade", "tolerances_pct"}`.
+#[derive(Clone, Copy, Serialize)]
+#[serde(into = "SeriesFactsKeys")]
 pub struct SeriesFacts(pub Series);
 
-impl Serialize for SeriesFacts {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let mut out = serializer.serialize_struct("SeriesFacts", 3)?;
-        out.serialize_field("name", self.0.name())?;
-        out.serialize_field("per_decade", &self.0.count())?;
-        out.serialize_field("tolerances_pct", self.0.tolerances_pct())?;
-        out.end()
+#[derive(Serialize)]
+struct SeriesFactsKeys {
+    name: &'static str,
+    per_decade: usize,
+    tolerances_pct: &'static [f64],
+}
+
+impl From<SeriesFacts> for SeriesFactsKeys {
+    fn from(SeriesFacts(s): SeriesFacts) -> Self {
+        SeriesFactsKeys { name: s.name(), per_decade: s.count(), tolerances_pct: s.tolerances_pct() }
     }
 }
 
-serialize_fields!(crate::analysis::StageBias {
-    "vin_v" => vin_v,
-    "vout_v" => vout_v,
-    "id_a" => id_a,
-    "gm_n_s" => gm_n_s,
-    "gm_p_s" => gm_p_s,
-    "gds_n_s" => gds_n_s,
-    "gds_p_s" => gds_p_s,
-    "gm_s" => gm_s,
-    "gds_s" => gds_s,
-    "gain" => gain,
-    "saturated" => saturated,
-});
-
-serialize_fields!(crate::analysis::Warning {
-    "code" => code,
-    "text" => text,
-});
-
-serialize_fields!(crate::analysis::Window {
-    "low_v" => low_v,
-    "high_v" => high_v,
-});
-
-serialize_fields!(crate::analysis::BarePoint {
-    "vin_v" => vin_v,
-    "vout_v" => vout_v,
-    "gain" => gain,
-    "saturated" => saturated,
-});
-
-serialize_fields!(crate::analysis::LoopPoint {
-    "emf_v" => emf_v,
-    "vin_v" => vin_v,
-    "vout_v" => vout_v,
-});
-
-serialize_fields!(crate::analysis::BareCurve {
-    "bias_vin_v" => bias_vin_v,
-    "a0" => a0,
-    "saturated" => saturated,
-    "within_1db" => within_1db,
-    "points" => points,
-});
-
-/// The `bias` section of `halfrail analyze` (SPEC §4) with the curve windows.
-pub struct BiasReport<'a> {
-    pub bias: &'a crate::analysis::Bias,
-    pub curve: &'a crate::analysis::BareCurve,
+#[derive(Serialize)]
+#[serde(remote = "StageBias")]
+struct StageBiasDef {
+    vin_v: f64,
+    vout_v: f64,
+    id_a: f64,
+    gm_n_s: f64,
+    gm_p_s: f64,
+    gds_n_s: f64,
+    gds_p_s: f64,
+    gm_s: f64,
+    gds_s: f64,
+    gain: f64,
+    saturated: bool,
 }
 
-impl Serialize for BiasReport<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let b = self.bias;
+#[derive(Serialize)]
+#[serde(remote = "Warning")]
+struct WarningDef {
+    code: &'static str,
+    text: String,
+}
+
+#[derive(Serialize)]
+#[serde(remote = "Window")]
+struct WindowDef {
+    low_v: f64,
+    high_v: f64,
+}
+
+#[derive(Serialize)]
+#[serde(remote = "BarePoint")]
+struct BarePointDef {
+    vin_v: f64,
+    vout_v: f64,
+    gain: f64,
+    saturated: bool,
+}
+
+#[derive(Serialize)]
+#[serde(remote = "LoopPoint")]
+struct LoopPointDef {
+    emf_v: f64,
+    vin_v: f64,
+    vout_v: f64,
+}
+
+#[derive(Serialize)]
+#[serde(remote = "BareCurve")]
+struct BareCurveDef {
+    bias_vin_v: f64,
+    a0: f64,
+    #[serde(serialize_with = "window")]
+    saturated: Option<Window>,
+    #[serde(serialize_with = "window")]
+    within_1db: Option<Window>,
+    #[serde(serialize_with = "bare_points")]
+    points: Vec<BarePoint>,
+}
+
+/// The bare part's transfer curve.
+#[derive(Serialize)]
+#[serde(transparent)]
+pub struct CurveOut<'a>(#[serde(with = "BareCurveDef")] pub &'a BareCurve);
+
+#[derive(Serialize)]
+#[serde(remote = "Bias")]
+struct BiasDef {
+    #[serde(serialize_with = "stage_biases")]
+    stages: Vec<StageBias>,
+    vin_v: f64,
+    vout_v: f64,
+    iq_a: f64,
+    power_w: f64,
+    dissipation_w: f64,
+    a0: f64,
+    self_bias_v: f64,
+    shift_v: f64,
+    #[serde(serialize_with = "warnings")]
+    warnings: Vec<Warning>,
+}
+
+/// The operating point alone, as the core gives it.
+#[derive(Serialize)]
+#[serde(transparent)]
+pub struct BiasOut<'a>(#[serde(with = "BiasDef")] pub &'a Bias);
+
+/// The `bias` section of `halfrail analyze` (SPEC §4) with the curve windows.
+#[derive(Clone, Copy, Serialize)]
+#[serde(into = "BiasKeys<'a>")]
+pub struct BiasReport<'a> {
+    pub bias: &'a Bias,
+    pub curve: &'a BareCurve,
+}
+
+/// SPEC §4's order: the operating point, the first stage's gm and gds, the
+/// stages, the curve's gain and windows, then the warnings.
+#[derive(Serialize)]
+struct BiasKeys<'a> {
+    vin_v: f64,
+    vout_v: f64,
+    iq_a: f64,
+    power_w: f64,
+    dissipation_w: f64,
+    gm_s: f64,
+    gds_s: f64,
+    a0: f64,
+    self_bias_v: f64,
+    shift_v: f64,
+    #[serde(serialize_with = "stage_biases")]
+    stages: &'a [StageBias],
+    bare_a0: f64,
+    #[serde(serialize_with = "window")]
+    window_saturated: &'a Option<Window>,
+    #[serde(serialize_with = "window")]
+    window_1db: &'a Option<Window>,
+    #[serde(serialize_with = "warnings")]
+    warnings: &'a [Warning],
+}
+
+impl<'a> From<BiasReport<'a>> for BiasKeys<'a> {
+    fn from(BiasReport { bias: b, curve }: BiasReport<'a>) -> Self {
         let first = &b.stages[0];
-        let mut out = serializer.serialize_struct("BiasReport", 16)?;
-        out.serialize_field("vin_v", &b.vin_v)?;
-        out.serialize_field("vout_v", &b.vout_v)?;
-        out.serialize_field("iq_a", &b.iq_a)?;
-        out.serialize_field("power_w", &b.power_w)?;
-        out.serialize_field("dissipation_w", &b.dissipation_w)?;
-        out.serialize_field("gm_s", &first.gm_s)?;
-        out.serialize_field("gds_s", &first.gds_s)?;
-        out.serialize_field("a0", &b.a0)?;
-        out.serialize_field("self_bias_v", &b.self_bias_v)?;
-        out.serialize_field("shift_v", &b.shift_v)?;
-        out.serialize_field("stages", &b.stages)?;
-        out.serialize_field("bare_a0", &self.curve.a0)?;
-        out.serialize_field("window_saturated", &self.curve.saturated)?;
-        out.serialize_field("window_1db", &self.curve.within_1db)?;
-        out.serialize_field("warnings", &b.warnings)?;
-        out.end()
+        BiasKeys {
+            vin_v: b.vin_v,
+            vout_v: b.vout_v,
+            iq_a: b.iq_a,
+            power_w: b.power_w,
+            dissipation_w: b.dissipation_w,
+            gm_s: first.gm_s,
+            gds_s: first.gds_s,
+            a0: b.a0,
+            self_bias_v: b.self_bias_v,
+            shift_v: b.shift_v,
+            stages: &b.stages,
+            bare_a0: curve.a0,
+            window_saturated: &curve.saturated,
+            window_1db: &curve.within_1db,
+            warnings: &b.warnings,
+        }
     }
 }
 
 /// What `halfrail analyze` prints: one section per analysis computed so far
 /// (`ac`, `loop` and `large` when the document has an `analysis` section).
+#[derive(Serialize)]
 pub struct AnalyzeReport<'a> {
     pub bias: BiasReport<'a>,
     pub ac: Option<AcReport<'a>>,
+    #[serde(rename = "loop")]
     pub stability: Option<super::LoopSummary<'a>>,
     pub large: Option<super::LargeSummary<'a>>,
     /// Why `large` is null for a stage that has a source and an `analysis`
@@ -247,185 +336,345 @@ pub struct AnalyzeReport<'a> {
     pub large_withheld: Option<&'a str>,
 }
 
-impl Serialize for AnalyzeReport<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let mut out = serializer.serialize_struct("AnalyzeReport", 5)?;
-        out.serialize_field("bias", &self.bias)?;
-        out.serialize_field("ac", &self.ac)?;
-        out.serialize_field("loop", &self.stability)?;
-        out.serialize_field("large", &self.large)?;
-        out.serialize_field("large_withheld", &self.large_withheld)?;
-        out.end()
-    }
+/// A part in the document's own keys, so a fitted part can be pasted into a design.
+#[derive(Clone, Copy, Serialize)]
+#[serde(into = "PartKeys")]
+pub struct PartOut<'a>(pub &'a Part);
+
+#[derive(Serialize)]
+struct PartKeys {
+    model: &'static str,
+    vdd_v: f64,
+    stages: u32,
+    kn_a_per_v2: f64,
+    kp_a_per_v2: f64,
+    vtn_v: f64,
+    /// Signed, as a document gives it; the core keeps the magnitude.
+    vtp_v: f64,
+    lambda_n_per_v: f64,
+    lambda_p_per_v: f64,
+    cgs_f: f64,
+    cgd_f: f64,
+    cdb_f: f64,
+    gamma: f64,
+    temp_c: f64,
+    /// Only the EKV model has a slope factor.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    n_slope: Option<f64>,
 }
 
-/// A part in the document's own keys, so a fitted part can be pasted into a design.
-impl Serialize for crate::part::Part {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        use crate::part::Model;
-        let mut out = serializer.serialize_struct("Part", 15)?;
-        let (model, slope) = match self.model {
+impl From<PartOut<'_>> for PartKeys {
+    fn from(PartOut(p): PartOut<'_>) -> Self {
+        let (model, n_slope) = match p.model {
             Model::SquareLaw => ("square-law", None),
             Model::Ekv { slope } => ("ekv", Some(slope)),
         };
-        out.serialize_field("model", model)?;
-        out.serialize_field("vdd_v", &self.vdd)?;
-        out.serialize_field("stages", &self.stages)?;
-        out.serialize_field("kn_a_per_v2", &self.nmos.k)?;
-        out.serialize_field("kp_a_per_v2", &self.pmos.k)?;
-        out.serialize_field("vtn_v", &self.nmos.vt)?;
-        out.serialize_field("vtp_v", &-self.pmos.vt)?;
-        out.serialize_field("lambda_n_per_v", &self.nmos.lambda)?;
-        out.serialize_field("lambda_p_per_v", &self.pmos.lambda)?;
-        out.serialize_field("cgs_f", &self.caps.cgs)?;
-        out.serialize_field("cgd_f", &self.caps.cgd)?;
-        out.serialize_field("cdb_f", &self.caps.cdb)?;
-        out.serialize_field("gamma", &self.gamma)?;
-        out.serialize_field("temp_c", &self.temp_c)?;
-        if let Some(n) = slope {
-            out.serialize_field("n_slope", &n)?;
-        } else {
-            out.skip_field("n_slope")?;
+        PartKeys {
+            model,
+            vdd_v: p.vdd,
+            stages: p.stages,
+            kn_a_per_v2: p.nmos.k,
+            kp_a_per_v2: p.pmos.k,
+            vtn_v: p.nmos.vt,
+            vtp_v: -p.pmos.vt,
+            lambda_n_per_v: p.nmos.lambda,
+            lambda_p_per_v: p.pmos.lambda,
+            cgs_f: p.caps.cgs,
+            cgd_f: p.caps.cgd,
+            cdb_f: p.caps.cdb,
+            gamma: p.gamma,
+            temp_c: p.temp_c,
+            n_slope,
         }
-        out.end()
     }
 }
 
-serialize_fields!(crate::analysis::Fitted {
-    "name" => name,
-    "value" => value,
-    "sigma" => sigma,
-});
+#[derive(Serialize)]
+#[serde(remote = "Fitted")]
+struct FittedDef {
+    name: &'static str,
+    value: f64,
+    sigma: f64,
+}
 
-serialize_fields!(crate::analysis::Residual {
-    "reading" => reading,
-    "measured" => measured,
-    "fitted" => fitted,
-    "normalized" => normalized,
-});
+#[derive(Serialize)]
+#[serde(remote = "Residual")]
+struct ResidualDef {
+    reading: String,
+    measured: f64,
+    fitted: f64,
+    normalized: f64,
+}
 
-serialize_fields!(crate::analysis::Fit {
-    "part" => part,
-    "parameters" => parameters,
-    "residuals" => residuals,
-    "chi2" => chi2,
-    "dof" => dof,
-    "evaluations" => evaluations,
-});
+#[derive(Serialize)]
+#[serde(remote = "Fit")]
+struct FitDef {
+    #[serde(serialize_with = "part")]
+    part: Part,
+    #[serde(serialize_with = "fitted")]
+    parameters: Vec<Fitted>,
+    #[serde(serialize_with = "residuals")]
+    residuals: Vec<Residual>,
+    chi2: f64,
+    dof: usize,
+    evaluations: usize,
+}
 
-serialize_fields!(crate::part::Preset {
-    "id" => id,
-    "title" => title,
-    "part" => part,
-});
+/// A fit to bench readings: the fitted part, each parameter's uncertainty, the residuals.
+#[derive(Serialize)]
+#[serde(transparent)]
+pub struct FitOut<'a>(#[serde(with = "FitDef")] pub &'a Fit);
+
+#[derive(Serialize)]
+#[serde(remote = "Preset")]
+struct PresetDef {
+    id: &'static str,
+    title: &'static str,
+    #[serde(serialize_with = "part")]
+    part: Part,
+}
+
+/// The part presets, each with its part in document keys.
+#[derive(Serialize)]
+#[serde(transparent)]
+pub struct PresetsOut<'a>(#[serde(serialize_with = "presets")] pub &'a [Preset]);
 
 /// What the Part panel shows: the bias report, the bare part's curve and the
 /// closed-loop curve.
+#[derive(Clone, Copy, Serialize)]
+#[serde(into = "PartReportKeys<'a>")]
 pub struct PartReport<'a> {
     pub bias: BiasReport<'a>,
-    pub closed: &'a [crate::analysis::LoopPoint],
+    pub closed: &'a [LoopPoint],
 }
 
-impl Serialize for PartReport<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let mut out = serializer.serialize_struct("PartReport", 3)?;
-        out.serialize_field("bias", &self.bias)?;
-        out.serialize_field("bare", self.bias.curve)?;
-        out.serialize_field("closed", self.closed)?;
-        out.end()
+#[derive(Serialize)]
+struct PartReportKeys<'a> {
+    bias: BiasReport<'a>,
+    #[serde(with = "BareCurveDef")]
+    bare: &'a BareCurve,
+    #[serde(serialize_with = "loop_points")]
+    closed: &'a [LoopPoint],
+}
+
+impl<'a> From<PartReport<'a>> for PartReportKeys<'a> {
+    fn from(r: PartReport<'a>) -> Self {
+        PartReportKeys { bias: r.bias, bare: r.bias.curve, closed: r.closed }
     }
 }
 
 /// The `ac` section of `halfrail analyze` (SPEC §4): the figures at f_design.
-pub struct AcReport<'a>(pub &'a crate::analysis::Response);
+#[derive(Clone, Copy, Serialize)]
+#[serde(into = "AcKeys")]
+pub struct AcReport<'a>(pub &'a Response);
 
-impl Serialize for AcReport<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let r = self.0;
+/// A dB figure exists only for a magnitude above zero.
+fn db(x: f64) -> Option<f64> {
+    (x > 0.0).then(|| voltage_ratio_db(x))
+}
+
+#[derive(Serialize)]
+struct AcKeys {
+    gain_db: f64,
+    phase_deg: f64,
+    power_gain_db: Option<f64>,
+    ideal_gain_db: Option<f64>,
+    f_low_hz: Option<f64>,
+    f_high_hz: Option<f64>,
+    zin_re_ohm: Option<f64>,
+    zin_im_ohm: Option<f64>,
+    zout_re_ohm: f64,
+    zout_im_ohm: f64,
+    s11_db: Option<f64>,
+    s21_db: Option<f64>,
+    s12_db: Option<f64>,
+    s22_db: Option<f64>,
+    k: f64,
+    mu: f64,
+    nf_db: Option<f64>,
+    noise_in_v_per_rthz: f64,
+    noise_out_v_per_rthz: f64,
+    integrated_noise_v: Option<f64>,
+}
+
+impl From<AcReport<'_>> for AcKeys {
+    fn from(AcReport(r): AcReport<'_>) -> Self {
         let p = &r.design;
-        let db = |x: f64| (x > 0.0).then(|| voltage_ratio_db(x));
-        let mut out = serializer.serialize_struct("AcReport", 20)?;
-        out.serialize_field("gain_db", &p.gain_db())?;
-        out.serialize_field("phase_deg", &p.phase_deg())?;
-        out.serialize_field("power_gain_db", &p.gt_db())?;
-        out.serialize_field("ideal_gain_db", &r.ideal_gain.and_then(|g| db(g.abs())))?;
-        out.serialize_field("f_low_hz", &r.f_low_hz)?;
-        out.serialize_field("f_high_hz", &r.f_high_hz)?;
-        out.serialize_field("zin_re_ohm", &p.zin.map(|z| z.re))?;
-        out.serialize_field("zin_im_ohm", &p.zin.map(|z| z.im))?;
-        out.serialize_field("zout_re_ohm", &p.zout.re)?;
-        out.serialize_field("zout_im_ohm", &p.zout.im)?;
-        out.serialize_field("s11_db", &db(math::norm(p.s[0][0])))?;
-        out.serialize_field("s21_db", &db(math::norm(p.s[1][0])))?;
-        out.serialize_field("s12_db", &db(math::norm(p.s[0][1])))?;
-        out.serialize_field("s22_db", &db(math::norm(p.s[1][1])))?;
-        out.serialize_field("k", &p.rollett_k())?;
-        out.serialize_field("mu", &p.mu())?;
-        out.serialize_field("nf_db", &p.nf_db())?;
-        out.serialize_field("noise_in_v_per_rthz", &p.noise_in_v_per_rthz())?;
-        out.serialize_field("noise_out_v_per_rthz", &p.noise_out_v2.sqrt())?;
-        out.serialize_field("integrated_noise_v", &r.integrated_noise_v)?;
-        out.end()
+        AcKeys {
+            gain_db: p.gain_db(),
+            phase_deg: p.phase_deg(),
+            power_gain_db: p.gt_db(),
+            ideal_gain_db: r.ideal_gain.and_then(|g| db(g.abs())),
+            f_low_hz: r.f_low_hz,
+            f_high_hz: r.f_high_hz,
+            zin_re_ohm: p.zin.map(|z| z.re),
+            zin_im_ohm: p.zin.map(|z| z.im),
+            zout_re_ohm: p.zout.re,
+            zout_im_ohm: p.zout.im,
+            s11_db: db(math::norm(p.s[0][0])),
+            s21_db: db(math::norm(p.s[1][0])),
+            s12_db: db(math::norm(p.s[0][1])),
+            s22_db: db(math::norm(p.s[1][1])),
+            k: p.rollett_k(),
+            mu: p.mu(),
+            nf_db: p.nf_db(),
+            noise_in_v_per_rthz: p.noise_in_v_per_rthz(),
+            noise_out_v_per_rthz: p.noise_out_v2.sqrt(),
+            integrated_noise_v: r.integrated_noise_v,
+        }
     }
 }
 
 /// What the Response panel plots: the design figures, the sweep as columns (one
 /// array per figure, `null` where a figure does not exist) and the noise shares.
+#[derive(Clone, Copy, Serialize)]
+#[serde(into = "ResponseKeys<'a>")]
 pub struct ResponseReport<'a> {
-    pub response: &'a crate::analysis::Response,
+    pub response: &'a Response,
     pub source_ohm: Option<f64>,
     pub f_design_hz: f64,
 }
 
-impl Serialize for ResponseReport<'_> {
-    fn serialize<S: Serializer>(&self, serializer: S) -> Result<S::Ok, S::Error> {
-        let r = self.response;
-        let column = |f: &dyn Fn(&crate::analysis::Point) -> Option<f64>| -> Vec<Option<f64>> {
-            r.points.iter().map(|p| f(p).filter(|v| v.is_finite())).collect()
-        };
-        let db = |x: f64| (x > 0.0).then(|| voltage_ratio_db(x));
-        let mut out = serializer.serialize_struct("ResponseReport", 16)?;
-        out.serialize_field("f_design_hz", &self.f_design_hz)?;
-        out.serialize_field("design", &AcReport(r))?;
-        out.serialize_field("return_loss_db", &self.source_ohm.and_then(|rs| r.design.return_loss_db(rs)))?;
-        out.serialize_field("f_hz", &column(&|p| Some(p.f_hz)))?;
-        out.serialize_field("gain_db", &column(&|p| Some(p.gain_db())))?;
-        out.serialize_field("phase_deg", &column(&|p| Some(p.phase_deg())))?;
-        let unwrapped = crate::analysis::unwrapped_phase(&r.points, self.f_design_hz);
-        out.serialize_field("phase_unwrapped_deg", &unwrapped.iter().map(|p| p.to_degrees()).collect::<Vec<_>>())?;
-        out.serialize_field("gt_db", &column(&|p| p.gt_db()))?;
-        out.serialize_field("zin_re_ohm", &column(&|p| p.zin.map(|z| z.re)))?;
-        out.serialize_field("zin_im_ohm", &column(&|p| p.zin.map(|z| z.im)))?;
-        out.serialize_field("rl_db", &column(&|p| self.source_ohm.and_then(|rs| p.return_loss_db(rs))))?;
-        out.serialize_field("s21_db", &column(&|p| db(math::norm(p.s[1][0]))))?;
-        out.serialize_field("nf_db", &column(&|p| p.nf_db()))?;
-        out.serialize_field("noise_in_v_per_rthz", &column(&|p| Some(p.noise_in_v_per_rthz())))?;
-        out.serialize_field("mu", &column(&|p| Some(p.mu())))?;
-        let shares: Vec<ShareOut> = r.noise_shares.iter().map(|(name, share)| ShareOut { name, share: *share }).collect();
-        out.serialize_field("noise_shares", &shares)?;
-        out.end()
-    }
+#[derive(Serialize)]
+struct ResponseKeys<'a> {
+    f_design_hz: f64,
+    design: AcReport<'a>,
+    return_loss_db: Option<f64>,
+    f_hz: Vec<Option<f64>>,
+    gain_db: Vec<Option<f64>>,
+    phase_deg: Vec<Option<f64>>,
+    phase_unwrapped_deg: Vec<f64>,
+    gt_db: Vec<Option<f64>>,
+    zin_re_ohm: Vec<Option<f64>>,
+    zin_im_ohm: Vec<Option<f64>>,
+    rl_db: Vec<Option<f64>>,
+    s21_db: Vec<Option<f64>>,
+    nf_db: Vec<Option<f64>>,
+    noise_in_v_per_rthz: Vec<Option<f64>>,
+    mu: Vec<Option<f64>>,
+    noise_shares: Vec<ShareOut<'a>>,
 }
 
+#[derive(Serialize)]
 struct ShareOut<'a> {
     name: &'a str,
     share: f64,
 }
 
-serialize_fields!(ShareOut<'_> {
-    "name" => name,
-    "share" => share,
-});
+impl<'a> From<ResponseReport<'a>> for ResponseKeys<'a> {
+    fn from(report: ResponseReport<'a>) -> Self {
+        let r = report.response;
+        let rs = report.source_ohm;
+        let column = |f: &dyn Fn(&crate::analysis::Point) -> Option<f64>| -> Vec<Option<f64>> {
+            r.points.iter().map(|p| f(p).filter(|v| v.is_finite())).collect()
+        };
+        let unwrapped = crate::analysis::unwrapped_phase(&r.points, report.f_design_hz);
+        ResponseKeys {
+            f_design_hz: report.f_design_hz,
+            design: AcReport(r),
+            return_loss_db: rs.and_then(|rs| r.design.return_loss_db(rs)),
+            f_hz: column(&|p| Some(p.f_hz)),
+            gain_db: column(&|p| Some(p.gain_db())),
+            phase_deg: column(&|p| Some(p.phase_deg())),
+            phase_unwrapped_deg: unwrapped.iter().map(|p| p.to_degrees()).collect(),
+            gt_db: column(&|p| p.gt_db()),
+            zin_re_ohm: column(&|p| p.zin.map(|z| z.re)),
+            zin_im_ohm: column(&|p| p.zin.map(|z| z.im)),
+            rl_db: column(&|p| rs.and_then(|rs| p.return_loss_db(rs))),
+            s21_db: column(&|p| db(math::norm(p.s[1][0]))),
+            nf_db: column(&|p| p.nf_db()),
+            noise_in_v_per_rthz: column(&|p| Some(p.noise_in_v_per_rthz())),
+            mu: column(&|p| Some(p.mu())),
+            noise_shares: r.noise_shares.iter().map(|(name, share)| ShareOut { name, share: *share }).collect(),
+        }
+    }
+}
 
-serialize_fields!(crate::analysis::Bias {
-    "stages" => stages,
-    "vin_v" => vin_v,
-    "vout_v" => vout_v,
-    "iq_a" => iq_a,
-    "power_w" => power_w,
-    "dissipation_w" => dissipation_w,
-    "a0" => a0,
-    "self_bias_v" => self_bias_v,
-    "shift_v" => shift_v,
-    "warnings" => warnings,
-});
+// Lists and options of core records: derive has no `with` for a container, so
+// each goes through its remote definition one item at a time.
+
+fn unit_symbol<S: Serializer>(unit: &Option<Unit>, s: S) -> Result<S::Ok, S::Error> {
+    unit.map(Unit::symbol).serialize(s)
+}
+
+fn series_name<S: Serializer>(series: &Series, s: S) -> Result<S::Ok, S::Error> {
+    s.serialize_str(series.name())
+}
+
+fn series_names<S: Serializer>(list: &[Series], s: S) -> Result<S::Ok, S::Error> {
+    s.collect_seq(list.iter().map(|series| series.name()))
+}
+
+fn window<S: Serializer>(w: &Option<Window>, s: S) -> Result<S::Ok, S::Error> {
+    #[derive(Serialize)]
+    #[serde(transparent)]
+    struct Item<'a>(#[serde(with = "WindowDef")] &'a Window);
+    w.as_ref().map(Item).serialize(s)
+}
+
+fn part<S: Serializer>(p: &Part, s: S) -> Result<S::Ok, S::Error> {
+    PartOut(p).serialize(s)
+}
+
+fn nearests<S: Serializer>(list: &[Nearest], s: S) -> Result<S::Ok, S::Error> {
+    #[derive(Serialize)]
+    #[serde(transparent)]
+    struct Item<'a>(#[serde(with = "NearestDef")] &'a Nearest);
+    s.collect_seq(list.iter().map(Item))
+}
+
+fn ratio_pairs<S: Serializer>(list: &[RatioPair], s: S) -> Result<S::Ok, S::Error> {
+    #[derive(Serialize)]
+    #[serde(transparent)]
+    struct Item<'a>(#[serde(with = "RatioPairDef")] &'a RatioPair);
+    s.collect_seq(list.iter().map(Item))
+}
+
+fn stage_biases<S: Serializer>(list: &[StageBias], s: S) -> Result<S::Ok, S::Error> {
+    #[derive(Serialize)]
+    #[serde(transparent)]
+    struct Item<'a>(#[serde(with = "StageBiasDef")] &'a StageBias);
+    s.collect_seq(list.iter().map(Item))
+}
+
+fn warnings<S: Serializer>(list: &[Warning], s: S) -> Result<S::Ok, S::Error> {
+    #[derive(Serialize)]
+    #[serde(transparent)]
+    struct Item<'a>(#[serde(with = "WarningDef")] &'a Warning);
+    s.collect_seq(list.iter().map(Item))
+}
+
+fn bare_points<S: Serializer>(list: &[BarePoint], s: S) -> Result<S::Ok, S::Error> {
+    #[derive(Serialize)]
+    #[serde(transparent)]
+    struct Item<'a>(#[serde(with = "BarePointDef")] &'a BarePoint);
+    s.collect_seq(list.iter().map(Item))
+}
+
+fn loop_points<S: Serializer>(list: &[LoopPoint], s: S) -> Result<S::Ok, S::Error> {
+    #[derive(Serialize)]
+    #[serde(transparent)]
+    struct Item<'a>(#[serde(with = "LoopPointDef")] &'a LoopPoint);
+    s.collect_seq(list.iter().map(Item))
+}
+
+fn fitted<S: Serializer>(list: &[Fitted], s: S) -> Result<S::Ok, S::Error> {
+    #[derive(Serialize)]
+    #[serde(transparent)]
+    struct Item<'a>(#[serde(with = "FittedDef")] &'a Fitted);
+    s.collect_seq(list.iter().map(Item))
+}
+
+fn residuals<S: Serializer>(list: &[Residual], s: S) -> Result<S::Ok, S::Error> {
+    #[derive(Serialize)]
+    #[serde(transparent)]
+    struct Item<'a>(#[serde(with = "ResidualDef")] &'a Residual);
+    s.collect_seq(list.iter().map(Item))
+}
+
+fn presets<S: Serializer>(list: &[Preset], s: S) -> Result<S::Ok, S::Error> {
+    #[derive(Serialize)]
+    #[serde(transparent)]
+    struct Item<'a>(#[serde(with = "PresetDef")] &'a Preset);
+    s.collect_seq(list.iter().map(Item))
+}

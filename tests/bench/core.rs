@@ -97,7 +97,7 @@ fn main() {
         black_box(wide_doc.compensation().unwrap());
     }), None);
     let mut buffered_json: serde_json::Value = serde_json::from_str(&wide).unwrap();
-    buffered_json["part"] = serde_json::to_value(&buffered).unwrap();
+    buffered_json["part"] = serde_json::to_value(halfrail::wire::PartOut(&buffered)).unwrap();
     let buffered_doc = load(&buffered_json.to_string()).unwrap();
     report("compensation helper, three-stage part (three knobs searched)", median_time(|| {
         black_box(buffered_doc.compensation().unwrap());
