@@ -224,9 +224,9 @@ impl Document {
             .into_iter()
             .map(|(first, last)| {
                 let copies = last - first + 1;
-                let circuit = match solved.get(&copies) {
-                    Some(&figures) => figures,
-                    None => *solved.entry(copies).or_insert(self.stage_run(copies)?),
+                let circuit = match solved.entry(copies) {
+                    std::collections::btree_map::Entry::Occupied(known) => *known.get(),
+                    std::collections::btree_map::Entry::Vacant(slot) => *slot.insert(self.stage_run(copies)?),
                 };
                 Ok(Run { first, last, matched: matched_run(&blocks, first, last), circuit })
             })
