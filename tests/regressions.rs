@@ -209,3 +209,15 @@ fn a_nine_inverter_stage_at_the_open_loop_limit_biases_by_newton_from_its_self_b
     let out = op.voltage(*lin.circuit().nodes.outputs.last().unwrap());
     assert!((0.0..vdd / 2.0).contains(&out), "{out}");
 }
+
+#[test]
+fn a_sweep_of_a_part_that_cannot_conduct_is_refused_at_the_supply() {
+    // 1 V under vtn + |vtp| = 1.15 V: the sweep once gave figures of an unbiased part.
+    let mut doc = base();
+    doc["part"]["vdd_v"] = json!(1.0);
+    let d = load(&doc.to_string()).unwrap();
+    let e = d.response().unwrap_err();
+    assert_eq!(e.field, "part.vdd_v");
+    assert!(e.reason.contains("1.150 V"), "{}", e.reason);
+    assert_eq!(d.bias().unwrap_err().field, "part.vdd_v");
+}

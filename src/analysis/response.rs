@@ -204,6 +204,9 @@ impl Linearised {
     /// the figures are the whole run's, from the first copy's input to the last
     /// copy's output; the loop is the first copy's.
     pub fn run(part: &Part, components: &Components, copies: usize, z0: f64) -> Result<Self> {
+        // A part that cannot conduct at its bias has no small-signal figures worth
+        // showing (the sweep once gave them for a 1 V square-law part).
+        part.check_supply()?;
         let law = part.law()?;
         let circuit = build_run(part, &law, components, copies)?;
         let op = stage_operating_point(part, &law, &circuit.netlist)?;
