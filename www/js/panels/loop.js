@@ -505,16 +505,11 @@
       for (const [re, im] of d.poles) {
         cross(ctx, P.x(sc.fwd(re)), P.y(sc.fwd(im)), 5, re > 0 ? css('--bad') : css('--plot-1'), 2.5);
       }
-      // The least-damped pair, ringed (its damping is in the read-out).
+      // The least-damped pair, as the core names it, ringed (its damping is in the read-out).
       const p = d.r.summary.least_damped;
       if (p) {
-        let best = null;
-        for (const q of d.poles) {
-          if (q[1] > 0 && (!best || Math.abs(Math.hypot(...q) - p.f_n_hz) < Math.abs(Math.hypot(...best) - p.f_n_hz))) best = q;
-        }
-        if (best) {
-          for (const sign of [1, -1]) ring(ctx, P.x(sc.fwd(best[0])), P.y(sc.fwd(sign * best[1])), 9, css('--plot-2'));
-        }
+        const [re, im] = p.pole_hz;
+        for (const sign of [1, -1]) ring(ctx, P.x(sc.fwd(re)), P.y(sc.fwd(sign * im)), 9, css('--plot-2'));
       }
     },
     axes: (ctx, P, d) => {
@@ -607,12 +602,6 @@
     return uPlot.rangeNum(a, b === a ? a + 1 : b, 0.1, true);
   };
 
-  // The continuous phase at f, read off the sweep (to pick the −180° branch to draw on).
-  const phaseAt = (r, f) => {
-    const i = nearestIndex(r.f_hz, f);
-    return i >= 0 ? r.t_phase_deg[i] : null;
-  };
-
   HR.panel({
     id: 'loop',
     title: 'Loop',
@@ -682,10 +671,10 @@
         commonMarks(u, ctx);
         HR.plot.hline(u, ctx, -180, css('--ink'), '−180°', 'left');
         if (known(s.phase_crossover_hz)) HR.plot.marker(u, ctx, s.phase_crossover_hz, -180, css('--plot-3'));
-        if (known(s.phase_margin_deg)) {
-          // The margin is measured from the −180° line of the branch the phase is on.
-          const at = phaseAt(last, s.crossover_hz);
-          const ref = known(at) ? -180 + 360 * Math.round((at - s.phase_margin_deg + 180) / 360) : -180;
+        if (known(s.phase_margin_deg) && known(s.pm_reference_deg)) {
+          // The margin drawn from the line the core measures it from (drawn too, when
+          // it is not the −180° line above).
+          const ref = s.pm_reference_deg;
           if (ref !== -180) HR.plot.hline(u, ctx, ref, css('--ink'), `${fixed(ref, 0)}°`, 'left');
           span(u, ctx, s.crossover_hz, ref, ref + s.phase_margin_deg, css('--plot-4'), `PM ${deg(s.phase_margin_deg)}`);
         }
@@ -693,7 +682,8 @@
       const stepMarks = (u, ctx) => {
         if (!last) return;
         const t = last.step_target_v;
-        HR.plot.band(u, ctx, Math.min(0.98 * t, 1.02 * t), Math.max(0.98 * t, 1.02 * t), css('--window'));
+        const settle = last.summary.settling_band;
+        if (settle) HR.plot.band(u, ctx, settle[0], settle[1], css('--window'));
         HR.plot.hline(u, ctx, t, css('--plot-2'), `target ${fmt(t, '', 3)} V/V`);
       };
       const muMarks = (u, ctx) => {
