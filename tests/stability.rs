@@ -863,6 +863,63 @@ fn one_stage_demo_is_stable_and_steps_cleanly() {
     }
 }
 
+/// What the Loop panel draws besides the curves comes from the core: the line the
+/// phase margin is measured from (∠T at the crossover, on the sweep's continuous
+/// branch, less it is the margin; it is −180° modulo a turn) and the band the step
+/// settles into (the target ±2 %), in the report's summary as the core has them.
+/// On the demo, the buffered preset in its stage (oscillates, a negative margin) and
+/// three stages with r_fb 91k (a crossover below f_design, 49°).
+#[test]
+fn the_margins_reference_and_the_settling_band_come_from_the_core() {
+    let (doc, demo_part, stage) = demo();
+    let buffered = halfrail::part::preset("buffered-5v").unwrap().part.clone();
+    let ringing = base_with(|d| {
+        d["part"]["stages"] = 3.into();
+        d["stage"]["r_fb_ohm"] = "91k".into();
+    });
+    let (ringing_part, ringing_stage) = ringing.part_and_stage().unwrap();
+    let sweep = doc.sweep().unwrap();
+    let (f_design, freqs) = (sweep.f_design_hz, sweep.frequencies());
+    let mut crossings = 0;
+    for (name, part, stage) in [("demo", demo_part, stage.clone()), ("buffered-5v", buffered, stage), ("3 stages, r_fb 91k", ringing_part, ringing_stage)] {
+        let lin = Linearised::new(&part, &stage, sweep.z0_ohm).unwrap();
+        let response = response_of(&lin, &stage, f_design, &freqs, None).unwrap();
+        let l = stability::analyse(&lin, &stage, &response, f_design, &freqs).unwrap();
+        let m = &l.margins;
+        assert_eq!(m.pm_reference_deg.is_some(), m.phase_margin_deg.is_some(), "{name}: {m:?}");
+        if let (Some(fc), Some(pm), Some(reference)) = (m.crossover_hz, m.phase_margin_deg, m.pm_reference_deg) {
+            crossings += 1;
+            // ∠T at the crossover, carried from the nearest sample of the sweep's
+            // continuous phase (the sweep is dense enough that it turns less than
+            // half a turn between them).
+            let ratio = ReturnRatio::new(&lin).unwrap();
+            let i = (0..l.f_hz.len()).min_by(|&a, &b| (l.f_hz[a] / fc).ln().abs().total_cmp(&(l.f_hz[b] / fc).ln().abs())).unwrap();
+            let phase = stability::unwrap_near(ratio.at(fc).unwrap().arg(), l.t_phase[i]).to_degrees();
+            assert!((phase - reference - pm).abs() < 1e-6, "{name}: ∠T {phase}° at {fc} Hz, reference {reference}°, margin {pm}°");
+            assert!(((reference + 180.0) / 360.0 - ((reference + 180.0) / 360.0).round()).abs() < 1e-12, "{name}: reference {reference}° is not −180° modulo a turn");
+        }
+        // The band: the step target ±2 %, low first.
+        let t = l.step_target;
+        let band = l.settling.band;
+        let (low, high) = (t - stability::SETTLE_BAND * t.abs(), t + stability::SETTLE_BAND * t.abs());
+        assert!((band[0] - low).abs() <= 1e-12 * t.abs() && (band[1] - high).abs() <= 1e-12 * t.abs(), "{name}: band {band:?} for target {t}");
+        assert!(band[0] < band[1], "{name}: {band:?}");
+        // The wire writes them in the loop summary as they are, and the least-damped
+        // pair with its pole as the pole list has it (for the pole plot to ring).
+        let json: serde_json::Value = serde_json::from_str(&halfrail::wire::to_json(&halfrail::wire::LoopSummary(&l, None))).unwrap();
+        assert_eq!(json["pm_reference_deg"].as_f64(), m.pm_reference_deg, "{name}");
+        // (serde_json reads a number back to within an ulp, not always exactly.)
+        let written: Vec<f64> = json["settling_band"].as_array().unwrap().iter().map(|b| b.as_f64().unwrap()).collect();
+        assert!(written.len() == 2 && written.iter().zip(band).all(|(w, b)| (w - b).abs() <= 1e-15 * b.abs()), "{name}: {written:?} vs {band:?}");
+        if l.least_damped.is_some() {
+            let pole = &json["least_damped"]["pole_hz"];
+            assert!(json["poles_hz"].as_array().unwrap().contains(pole), "{name}: {pole} not among the poles");
+            assert!(pole[1].as_f64().unwrap() > 0.0, "{name}: {pole}");
+        }
+    }
+    assert!(crossings >= 2, "{crossings} of the cases have a crossover");
+}
+
 
 
 

@@ -39,6 +39,8 @@ struct SummaryForm<'a> {
     open_loop_growing: usize,
     crossovers: usize,
     no_crossover: Option<&'static str>,
+    /// The angle the phase margin is measured from, for the phase plot to draw it.
+    pm_reference_deg: Option<f64>,
     margin_words: String,
     poles_growing: usize,
     nyquist: Option<NyquistOut>,
@@ -46,6 +48,8 @@ struct SummaryForm<'a> {
     least_damped: Option<PairOut>,
     overshoot_pct: f64,
     settling_s: Option<f64>,
+    /// The band `settling_s` is measured to, [low, high], for the step plot to shade.
+    settling_band: Option<[f64; 2]>,
     poles_hz: Vec<[f64; 2]>,
     /// Only when the helper was asked (`analyze`; the Loop panel has its own).
     #[serde(skip_serializing_if = "Option::is_none")]
@@ -71,13 +75,15 @@ impl<'a> From<LoopSummary<'a>> for SummaryForm<'a> {
                 NoCrossover::BelowOne => "below_one",
                 NoCrossover::AboveAtTop => "above_at_top",
             }),
+            pm_reference_deg: m.pm_reference_deg,
             margin_words: margin_words(l),
             poles_growing: l.poles_growing,
             nyquist: l.nyquist.map(|n| NyquistOut { turns: n.turns, open_growing: n.open_growing, growing: n.growing }),
             verdict: VerdictOut::of(l),
-            least_damped: l.least_damped.map(|p| PairOut { f_n_hz: p.f_n_hz, zeta: p.zeta, q: finite(p.q) }),
+            least_damped: l.least_damped.map(|p| PairOut { f_n_hz: p.f_n_hz, zeta: p.zeta, q: finite(p.q), pole_hz: [p.pole.re / TAU, p.pole.im / TAU] }),
             overshoot_pct: l.settling.overshoot_pct,
             settling_s: l.settling.settling_s,
+            settling_band: l.settling.band.iter().all(|b| b.is_finite()).then_some(l.settling.band),
             poles_hz: l.poles.iter().map(|p| [p.re / TAU, p.im / TAU]).collect(),
             suggestions: suggestions.map(|s| s.iter().map(SuggestionOut).collect()),
         }
@@ -89,6 +95,8 @@ struct PairOut {
     f_n_hz: f64,
     zeta: f64,
     q: Option<f64>,
+    /// Its pole with Im > 0 (s/2π, as in `poles_hz`), for the pole plot to ring.
+    pole_hz: [f64; 2],
 }
 
 #[derive(Serialize)]

@@ -22,6 +22,34 @@ HR.plot = (() => {
     size: 56,
   });
 
+  // The wheel and the keys every plot (and HR.plane's figures) answers to, on its
+  // figure `wrap`: Ctrl/Alt+wheel zooms (plain scrolling scrolls the page), the arrow
+  // keys pan a tenth, + and − zoom, 0 resets. `view`: {ready() → whether anything is
+  // drawn, zoom(factor, e) with e the wheel event (null from a key: about the middle),
+  // pan(fx, fy), reset()}. `vertical`: ↑ and ↓ pan too; `ownKeys`: only keys pressed
+  // on the figure itself, not on its buttons.
+  const controls = (wrap, view, { vertical = false, ownKeys = false } = {}) => {
+    wrap.addEventListener('wheel', (e) => {
+      if (!view.ready() || (!e.ctrlKey && !e.altKey)) return;
+      e.preventDefault();
+      view.zoom(e.deltaY > 0 ? 1.25 : 0.8, e);
+    }, { passive: false });
+    wrap.addEventListener('keydown', (e) => {
+      if (!view.ready() || (ownKeys && e.target !== wrap)) return;
+      const keys = { ArrowLeft: () => view.pan(-0.1, 0), ArrowRight: () => view.pan(0.1, 0),
+        '+': () => view.zoom(0.8, null), '=': () => view.zoom(0.8, null), '-': () => view.zoom(1.25, null), 0: () => view.reset() };
+      if (vertical) Object.assign(keys, { ArrowUp: () => view.pan(0, 0.1), ArrowDown: () => view.pan(0, -0.1) });
+      if (keys[e.key]) { keys[e.key](); e.preventDefault(); }
+    });
+  };
+
+  // A button that saves the figure's canvas (`canvas()`, null: nothing drawn) as `file`.png.
+  const pngButton = (title, file, canvas) => el('button', { type: 'button', class: 'small', 'aria-label': `Save “${title}” as PNG`,
+    onclick: () => {
+      const c = canvas();
+      if (c) c.toBlob((blob) => HR.ui.download(`${file}.png`, blob));
+    } }, 'PNG');
+
   // create(container, {title, x: {label, unit}, y: {label, unit, range}, series: [{label, unit, opts}],
   //   logX, height, decorate(u, ctx)}) → {setData([xs, ...ys]), node}
   // `y.range(u, dataMin, dataMax)` → [min, max] sets the y range (uPlot's own scale option).
@@ -72,12 +100,6 @@ HR.plot = (() => {
       const centre = lo + (hi - lo) * at;
       setX(centre - (centre - lo) * factor, centre + (hi - centre) * factor);
     };
-    wrap.addEventListener('wheel', (e) => {
-      if (!chart || !e.ctrlKey && !e.altKey) return; // plain scrolling scrolls the page
-      e.preventDefault();
-      const box = chart.over.getBoundingClientRect();
-      zoom(e.deltaY > 0 ? 1.25 : 0.8, Math.min(1, Math.max(0, (e.clientX - box.left) / box.width)));
-    }, { passive: false });
     let dragFrom = null;
     wrap.addEventListener('mousedown', (e) => { if (chart && e.shiftKey) dragFrom = { x: e.clientX, range: range() }; });
     window.addEventListener('mousemove', (e) => {
@@ -89,19 +111,19 @@ HR.plot = (() => {
     window.addEventListener('mouseup', () => { dragFrom = null; });
     wrap.tabIndex = 0;
     wrap.setAttribute('aria-label', `${spec.title}. Arrow keys pan, + and − zoom, 0 resets.`);
-    wrap.addEventListener('keydown', (e) => {
-      if (!chart) return;
-      const keys = { ArrowLeft: () => pan(-0.1), ArrowRight: () => pan(0.1), '+': () => zoom(0.8), '=': () => zoom(0.8), '-': () => zoom(1.25),
-        0: () => setX(toAxis(chart.data[0][0]), toAxis(chart.data[0][chart.data[0].length - 1])) };
-      if (keys[e.key]) { keys[e.key](); e.preventDefault(); }
+    // The wheel zooms about the cursor (0…1 across the plot); the keys about the middle.
+    controls(wrap, {
+      ready: () => Boolean(chart),
+      zoom: (factor, e) => {
+        if (!e) { zoom(factor); return; }
+        const box = chart.over.getBoundingClientRect();
+        zoom(factor, Math.min(1, Math.max(0, (e.clientX - box.left) / box.width)));
+      },
+      pan: (fx) => pan(fx),
+      reset: () => setX(toAxis(chart.data[0][0]), toAxis(chart.data[0][chart.data[0].length - 1])),
     });
     new ResizeObserver(resize).observe(wrap);
-    const png = el('button', { type: 'button', class: 'small', onclick: () => {
-      const canvas = wrap.querySelector('canvas');
-      if (canvas) canvas.toBlob((blob) => HR.ui.download(`${spec.file || 'plot'}.png`, blob));
-    } }, 'PNG');
-    wrap.querySelector('figcaption').append(' ', png);
-    png.setAttribute('aria-label', `Save “${spec.title}” as PNG`);
+    wrap.querySelector('figcaption').append(' ', pngButton(spec.title, spec.file || 'plot', () => wrap.querySelector('canvas')));
     return {
       node: wrap,
       // `ref`: the reference design's [xs, ...ys] for the first series, or null.
@@ -178,11 +200,13 @@ HR.plot = (() => {
     ctx.restore();
   };
 
-  // Text with a halo of the surface colour, so a label reads over grid lines and curves.
-  const halo = (ctx, text, x, y) => {
+  // Text with a halo of the surface colour, so a label reads over grid lines and
+  // curves, in the context's fill colour; `width`: the halo's, in the canvas's units
+  // (uPlot's canvas is in device pixels, HR.plane's is scaled to CSS pixels).
+  const halo = (ctx, text, x, y, width = 3 * devicePixelRatio) => {
     ctx.save();
     ctx.setLineDash([]);
-    ctx.lineWidth = 3 * devicePixelRatio;
+    ctx.lineWidth = width;
     ctx.strokeStyle = css('--surface');
     ctx.strokeText(text, x, y);
     ctx.restore();
@@ -254,5 +278,5 @@ HR.plot = (() => {
     ctx.restore();
   };
 
-  return { create, draw, band, vband, marker, label, vline, hline, css };
+  return { create, draw, band, vband, marker, label, vline, hline, halo, controls, pngButton, css };
 })();

@@ -30,6 +30,10 @@ const REFINE_TO: f64 = 1e-4;
 const MAX_STEP: f64 = 0.5;
 /// Halvings of one interval before its phase step is taken as it is.
 const MAX_DEPTH: u32 = 40;
+/// The line the phase margin is measured from: PM = ∠T − this at the crossover, ∠T
+/// on the continuous branch from the bottom of the sweep (so −180° itself, never
+/// another turn of it: a phase past it is a negative margin, not a new branch).
+pub const PM_REFERENCE_DEG: f64 = -180.0;
 
 /// Why a loop has no phase margin: |T| never falls through 1 inside the sweep.
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -49,6 +53,9 @@ pub struct Margins {
     pub crossover_hz: Option<f64>,
     /// 180° + the unwrapped ∠T at the crossover: the smallest over every crossover.
     pub phase_margin_deg: Option<f64>,
+    /// The angle that margin is measured from (`PM_REFERENCE_DEG`), so a plot of the
+    /// unwrapped ∠T draws the margin from it; `None` with no crossover.
+    pub pm_reference_deg: Option<f64>,
     /// How many crossovers (|T| falling through 1) the sweep has.
     pub crossovers: usize,
     /// Why there is no crossover (`None` when there is one).
@@ -121,7 +128,7 @@ pub fn margins(f_design: f64, freqs: &[f64], t: &[Complex64], phase: &[f64], t_a
         let (below, above) = (sample(i - 1), sample(i));
         if math::norm(below.1) >= 1.0 && math::norm(above.1) < 1.0 {
             let (f, phase) = refine(below, above, &t_at, |t, _| math::norm(t) >= 1.0)?;
-            crossovers.push((f, 180.0 + phase.to_degrees()));
+            crossovers.push((f, phase.to_degrees() - PM_REFERENCE_DEG));
         }
         let over = |p: f64| p > minus_pi;
         if over(below.2) != over(above.2) {
@@ -157,6 +164,7 @@ pub fn margins(f_design: f64, freqs: &[f64], t: &[Complex64], phase: &[f64], t_a
         phase_mid_deg: phase_mid.to_degrees(),
         crossover_hz: worst.map(|c| c.0),
         phase_margin_deg: worst.map(|c| c.1),
+        pm_reference_deg: worst.map(|_| PM_REFERENCE_DEG),
         crossovers: crossovers.len(),
         no_crossover,
         phase_crossover_hz: chosen.map(|c| c.0),

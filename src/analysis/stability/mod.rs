@@ -26,7 +26,7 @@ mod return_ratio;
 mod step;
 
 pub use compensate::{compensate, Knob, Suggestion, DEFAULT_GAIN_TOL_DB, WANTED_MARGIN_DEG};
-pub use margins::{continuous_phase, margins, unwrap_near, Margins, NoCrossover};
+pub use margins::{continuous_phase, margins, unwrap_near, Margins, NoCrossover, PM_REFERENCE_DEG};
 pub use nyquist::{encirclement, Encirclement};
 pub use poles::{fastest_growing, growth_hz, growth_words, grows, least_damped_pair, natural_frequencies, on_axis, Pair, ON_AXIS_WITHIN};
 pub use return_ratio::ReturnRatio;
@@ -213,6 +213,7 @@ mod tests {
             phase_mid_deg: 0.0,
             crossover_hz: pm.map(|_| 1e6),
             phase_margin_deg: pm,
+            pm_reference_deg: pm.map(|_| PM_REFERENCE_DEG),
             crossovers: usize::from(pm.is_some()),
             no_crossover: None,
             phase_crossover_hz: gm.map(|_| 2e6),

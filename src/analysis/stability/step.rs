@@ -77,6 +77,8 @@ pub struct Settling {
     pub overshoot_pct: f64,
     /// The last time it was outside ±2 % of `target`; `None` if it still is at the end.
     pub settling_s: Option<f64>,
+    /// That band, [low, high]: `target` ± `SETTLE_BAND` of it (what the page shades).
+    pub band: [f64; 2],
 }
 
 /// Band the response must stay within to count as settled (common practice: 2 %).
@@ -91,5 +93,6 @@ pub fn settling(step: &Step, target: f64) -> Settling {
         Some(i) => Some(step.t_s[i + 1]),
         None => Some(0.0),
     };
-    Settling { overshoot_pct, settling_s }
+    let edges = ((1.0 - SETTLE_BAND) * target, (1.0 + SETTLE_BAND) * target);
+    Settling { overshoot_pct, settling_s, band: [edges.0.min(edges.1), edges.0.max(edges.1)] }
 }
