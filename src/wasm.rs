@@ -239,7 +239,7 @@ pub fn loop_report(text: &str) -> Result<JsValue, JsValue> {
 #[wasm_bindgen(js_name = swingReport)]
 pub fn swing_report(text: &str, progress: &js_sys::Function) -> Result<JsValue, JsValue> {
     let document = doc::load(text).map_err(thrown)?;
-    let large = document.large(&mut reporter(progress)).map_err(thrown)?;
+    let large = document.large(crate::analysis::swing::Curve::Drawn, &mut reporter(progress)).map_err(thrown)?;
     to_js(&wire::SwingReport(&large))
 }
 

@@ -175,7 +175,7 @@ fn a_stage_whose_loop_grows_gets_no_large_signal_figures_but_the_reason() {
     let d = load(&doc.to_string()).unwrap();
     let (_, stability) = d.stability().unwrap();
     assert!(stability.poles_growing > 0, "{:?}", stability.verdict);
-    let e = d.large(&mut |_| {}).unwrap_err();
+    let e = d.large(halfrail::analysis::swing::Curve::Drawn, &mut |_| {}).unwrap_err();
     assert_eq!(e.field, "stage");
     assert!(e.reason.starts_with("the loop oscillates: a natural frequency grows at about ") && e.reason.contains("no large-signal figures"), "{e}");
     // The same stage compensated to settle keeps its figures.
@@ -183,7 +183,7 @@ fn a_stage_whose_loop_grows_gets_no_large_signal_figures_but_the_reason() {
     doc["part"]["stages"] = json!(1);
     let d = load(&doc.to_string()).unwrap();
     assert_eq!(d.stability().unwrap().1.poles_growing, 0);
-    assert!(d.large(&mut |_| {}).unwrap().intercept.is_some());
+    assert!(d.large(halfrail::analysis::swing::Curve::Drawn, &mut |_| {}).unwrap().intercept.is_some());
 }
 
 #[test]
@@ -220,4 +220,17 @@ fn a_sweep_of_a_part_that_cannot_conduct_is_refused_at_the_supply() {
     assert_eq!(e.field, "part.vdd_v");
     assert!(e.reason.contains("1.150 V"), "{}", e.reason);
     assert_eq!(d.bias().unwrap_err().field, "part.vdd_v");
+}
+
+#[test]
+fn the_large_signal_figures_are_the_same_without_the_transfer_curve() {
+    // The CLI, the sheet and the chain's stage block skip the curve only the Swing
+    // panel draws: every figure must be the same as with it.
+    use halfrail::analysis::swing::Curve;
+    let d = load(halfrail::doc::DEMO).unwrap();
+    let drawn = d.large(Curve::Drawn, &mut |_| {}).unwrap();
+    let skipped = d.large(Curve::Skipped, &mut |_| {}).unwrap();
+    assert!(drawn.transfer.as_ref().is_some_and(|(e, v)| e.len() == v.len() && e.len() > 100));
+    assert!(skipped.transfer.is_none());
+    assert_eq!(Value::from(halfrail::wire::to_json(&halfrail::wire::LargeSummary(&drawn))), Value::from(halfrail::wire::to_json(&halfrail::wire::LargeSummary(&skipped))));
 }

@@ -105,7 +105,7 @@ fn the_demo_intercept_agrees_with_its_power_series() {
     // In the weakly nonlinear limit the two must agree within 1 dB (the check).
     let doc = load(DEMO).unwrap();
     let (part, stage) = doc.part_and_stage().unwrap();
-    let large = swing::analyse(&part, &stage, 10.7e6, -40.0, &mut |_| {}).unwrap();
+    let large = swing::analyse(&part, &stage, 10.7e6, -40.0, swing::Curve::Drawn, &mut |_| {}).unwrap();
     let ip3 = large.intercept.unwrap();
     assert!((ip3.slope - 3.0).abs() <= swing::SLOPE_TOLERANCE, "slope {}", ip3.slope);
     let (_, series_oip3) = large.series_intercepts_dbm.unwrap();

@@ -73,7 +73,7 @@ fn oip3_less_iip3_is_the_ac_transducer_gain() {
     for (seed, text) in [(1592590358u64, SEED_1592590358), (1592590337, SEED_1592590337), (1592590355, SEED_1592590355), (1592590351, SEED_1592590351), (1592590385, SEED_1592590385)] {
         let doc = load(text).unwrap();
         let (part, stage) = doc.part_and_stage().unwrap();
-        let large = doc.analysis.as_ref().unwrap().large(&part, &stage, &mut |_| {}).unwrap();
+        let large = doc.analysis.as_ref().unwrap().large(&part, &stage, halfrail::analysis::swing::Curve::Drawn, &mut |_| {}).unwrap();
         let (_, gt, emf_gain) = ac(text);
         let gt = gt.unwrap();
         let ip3 = large.intercept.unwrap();
@@ -96,7 +96,7 @@ fn a_stage_biased_at_a_rail_gains_tens_of_db_at_the_two_tone_level() {
     // from it (it was 65 dB off).
     let doc = load(SEED_1592590351).unwrap();
     let (part, stage) = doc.part_and_stage().unwrap();
-    let large = doc.analysis.as_ref().unwrap().large(&part, &stage, &mut |_| {}).unwrap();
+    let large = doc.analysis.as_ref().unwrap().large(&part, &stage, halfrail::analysis::swing::Curve::Drawn, &mut |_| {}).unwrap();
     let gt = ac(SEED_1592590351).1.unwrap();
     let ip3 = large.intercept.unwrap();
     let at_level = ip3.upper.pout_dbm - ip3.upper.pin_dbm;
@@ -122,7 +122,7 @@ fn ordinary_documents_that_did_not_converge_now_do() {
     for (seed, text) in [("1592590368", SEED_1592590368), ("1592590338", SEED_1592590338)] {
         let doc = load(text).unwrap();
         let (part, stage) = doc.part_and_stage().unwrap();
-        let analysed = doc.analysis.as_ref().unwrap().large(&part, &stage, &mut |_| {});
+        let analysed = doc.analysis.as_ref().unwrap().large(&part, &stage, halfrail::analysis::swing::Curve::Drawn, &mut |_| {});
         if seed == "1592590338" {
             // Its loop has right-half-plane poles (it oscillates near 17 MHz): no
             // figures, the reason given; but the steep transfer curve that ran out of
@@ -170,7 +170,7 @@ fn seven_stages_driven_past_the_rails_run_in_the_time_domain() {
     assert!((sweep.gt_small_db - gt).abs() < 0.05, "{} against {gt}", sweep.gt_small_db);
     // Whatever the rest does, a refusal names the document field, never `circuit`:
     // the level, or the stage when its loop grows (then the reason is the growth).
-    if let Err(e) = doc.analysis.as_ref().unwrap().large(&part, &stage, &mut |_| {}) {
+    if let Err(e) = doc.analysis.as_ref().unwrap().large(&part, &stage, halfrail::analysis::swing::Curve::Drawn, &mut |_| {}) {
         match time.check_settles() {
             Ok(()) => assert_eq!(e.field, "analysis.input_dbm", "{}", e.reason),
             Err(grows) => assert_eq!(e, grows),

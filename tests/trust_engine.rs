@@ -180,12 +180,12 @@ fn buffered_parts_run_the_large_signal_analysis() {
         let time = TimeDomain::new(&part, &stage).unwrap();
         let tone = one_tone(&time, swing::emf_amplitude(-30.0, 50.0), 10.7e6, &mut |_| {}).unwrap_or_else(|e| panic!("{stages} stages: {e}"));
         assert!(tone.harmonics.iter().all(|h| h.is_finite()), "{stages}");
-        let analysed = swing::analyse(&part, &stage, 10.7e6, -30.0, &mut |_| {});
+        let analysed = swing::analyse(&part, &stage, 10.7e6, -30.0, swing::Curve::Drawn, &mut |_| {});
         match time.check_settles() {
             Ok(()) => {
                 settled += 1;
                 let large = analysed.unwrap_or_else(|e| panic!("{stages} stages: {e}"));
-                assert!(large.transfer.1.iter().all(|v| v.is_finite() && *v > -part.vdd && *v < part.vdd), "{stages}");
+                assert!(large.transfer.as_ref().unwrap().1.iter().all(|v| v.is_finite() && *v > -part.vdd && *v < part.vdd), "{stages}");
             }
             Err(why) => {
                 assert_eq!(why.field, "stage");
@@ -213,8 +213,8 @@ fn demo_with(c: &str, f: &str) -> halfrail::doc::Document {
 fn the_demo_runs_its_large_signal_analysis_with_any_coupling() {
     for c in ["1p", "10u", "1"] {
         for f in ["1 kHz", "10.7 MHz", "500 MHz"] {
-            let large = demo_with(c, f).large(&mut |_| {}).unwrap_or_else(|e| panic!("{c} at {f}: {e}"));
-            assert!(large.tone.harmonics.iter().chain(&large.transfer.1).all(|v| v.is_finite()), "{c} at {f}");
+            let large = demo_with(c, f).large(halfrail::analysis::swing::Curve::Drawn, &mut |_| {}).unwrap_or_else(|e| panic!("{c} at {f}: {e}"));
+            assert!(large.tone.harmonics.iter().chain(&large.transfer.as_ref().unwrap().1).all(|v| v.is_finite()), "{c} at {f}");
             assert!(large.compression.iter().flat_map(|c| &c.levels).all(|l| l.pout_dbm.is_finite()), "{c} at {f}");
         }
     }
@@ -226,7 +226,7 @@ fn large_coupling_capacitors_work_at_every_design_frequency() {
         for f in ["1 kHz", "10.7 MHz", "500 MHz"] {
             let (part, stage) = base("", Some(c), c, f);
             let f_hz = halfrail::units::parse(f).unwrap().value;
-            let large = swing::analyse(&part, &stage, f_hz, -30.0, &mut |_| {}).unwrap_or_else(|e| panic!("{c} at {f}: {e}"));
+            let large = swing::analyse(&part, &stage, f_hz, -30.0, swing::Curve::Drawn, &mut |_| {}).unwrap_or_else(|e| panic!("{c} at {f}: {e}"));
             let tone = &large.tone;
             assert!(tone.harmonics.iter().all(|h| h.is_finite()) && tone.thd_pct.is_finite(), "{c} at {f}");
             assert!(large.intercept.iter().all(|i| i.oip3_dbm.is_finite()) && large.series.a1.is_finite(), "{c} at {f}");
@@ -255,15 +255,15 @@ fn with_large_coupling_capacitors_the_fundamental_is_the_small_signal_gain() {
 #[test]
 fn an_input_beyond_the_supply_is_refused_naming_the_level() {
     let (part, stage) = base("", Some("100n"), "100n", "10.7 MHz");
-    let e = swing::analyse(&part, &stage, 10.7e6, 40.0, &mut |_| {}).unwrap_err();
+    let e = swing::analyse(&part, &stage, 10.7e6, 40.0, swing::Curve::Drawn, &mut |_| {}).unwrap_err();
     assert_eq!(e.field, "analysis.input_dbm");
     assert!(e.reason.contains("beyond what the supply allows"), "{}", e.reason);
     // The ceiling: the EMF whose share at the pin (small-signal) is twice VDD.
     let time = TimeDomain::new(&part, &stage).unwrap();
     let pin = time.gain_to_input(10.7e6).unwrap();
     let ceiling = swing::available_dbm(2.0 * part.vdd / pin, 50.0);
-    assert!(swing::analyse(&part, &stage, 10.7e6, ceiling + 0.1, &mut |_| {}).unwrap_err().field == "analysis.input_dbm");
-    match swing::analyse(&part, &stage, 10.7e6, ceiling - 0.5, &mut |_| {}) {
+    assert!(swing::analyse(&part, &stage, 10.7e6, ceiling + 0.1, swing::Curve::Drawn, &mut |_| {}).unwrap_err().field == "analysis.input_dbm");
+    match swing::analyse(&part, &stage, 10.7e6, ceiling - 0.5, swing::Curve::Drawn, &mut |_| {}) {
         Ok(large) => assert!(large.tone.thd_pct.is_finite()),
         Err(e) => assert_eq!(e.field, "analysis.input_dbm", "{e}"),
     }

@@ -6,7 +6,7 @@
 
 use std::path::PathBuf;
 
-use halfrail::analysis::swing::source_resistance;
+use halfrail::analysis::swing::{source_resistance, Curve};
 use halfrail::analysis::{bare_curve, BARE_POINTS};
 use halfrail::wire::{to_json, AcReport, AnalyzeReport, BiasReport, LargeSummary, LoopSummary};
 use halfrail::report::{sweep_csv, touchstone, wave_csv};
@@ -42,7 +42,7 @@ pub fn run(args: Args) -> Result<String, Failure> {
     // whose loop grows by itself gets none either, and is told why.
     let grows = small_signal.as_ref().is_some_and(|((_, stability), _)| stability.poles_growing > 0);
     let (large, withheld) = match (&document.analysis, source_resistance(&stage)) {
-        (Some(_), Ok(_)) => match document.large(&mut |_| {}) {
+        (Some(_), Ok(_)) => match document.large(Curve::Skipped, &mut |_| {}) {
             Ok(large) => (Some(large), None),
             Err(refusal) if grows => (None, Some(refusal.reason)),
             Err(e) => return Err(e.into()),

@@ -34,9 +34,10 @@ impl Analysis {
         crate::analysis::stability::compensate(part, stage, self.f_design_hz, span, &self.frequencies(), self.z0_ohm, wanted, series, gain_tol_db)
     }
 
-    /// The large-signal analysis at f_design and `input_dbm`.
-    pub fn large(&self, part: &crate::part::Part, stage: &crate::stage::Components, progress: &mut dyn FnMut(f64)) -> Result<crate::analysis::swing::Large> {
-        crate::analysis::swing::analyse(part, stage, self.f_design_hz, self.input_dbm, progress)
+    /// The large-signal analysis at f_design and `input_dbm`, its transfer curve
+    /// drawn or not (`curve`).
+    pub fn large(&self, part: &crate::part::Part, stage: &crate::stage::Components, curve: crate::analysis::swing::Curve, progress: &mut dyn FnMut(f64)) -> Result<crate::analysis::swing::Large> {
+        crate::analysis::swing::analyse(part, stage, self.f_design_hz, self.input_dbm, curve, progress)
     }
 
     /// The stage's response as this section asks for it.
@@ -102,9 +103,9 @@ impl Document {
     }
 
     /// The large-signal analysis over the `analysis` section's f_design and level.
-    pub fn large(&self, progress: &mut dyn FnMut(f64)) -> Result<crate::analysis::swing::Large> {
+    pub fn large(&self, curve: crate::analysis::swing::Curve, progress: &mut dyn FnMut(f64)) -> Result<crate::analysis::swing::Large> {
         let (part, stage) = self.part_and_stage()?;
-        self.sweep()?.large(&part, &stage, progress)
+        self.sweep()?.large(&part, &stage, curve, progress)
     }
 
     /// The steady-state waveform of one tone at f_design and `input_dbm`.
@@ -173,7 +174,7 @@ impl Document {
         let large = match large {
             Some(large) => large,
             None => {
-                computed = analysis.large(&part, &stage, &mut |_| {})?;
+                computed = analysis.large(&part, &stage, crate::analysis::swing::Curve::Skipped, &mut |_| {})?;
                 &computed
             }
         };

@@ -111,6 +111,8 @@ impl<'a> From<SwingReport<'a>> for SwingForm<'a> {
         // The output spectrum in dBc up to the last harmonic counted in THD.
         let top = ((THD_HARMONICS + 1) * record.bin(l.f_hz)).min(spectrum.len() - 1);
         let levels = l.compression.as_ref().map(|c| c.levels.as_slice()).unwrap_or(&[]);
+        // Empty when the analysis was run without its curve (`Curve::Skipped`).
+        let (transfer_emf_v, transfer_out_v) = l.transfer.as_ref().map_or((&[][..], &[][..]), |(e, v)| (e.as_slice(), v.as_slice()));
         SwingForm {
             summary: LargeSummary(l),
             amplitude_v: l.amplitude,
@@ -120,8 +122,8 @@ impl<'a> From<SwingReport<'a>> for SwingForm<'a> {
             v_last: &w.last_stage,
             spectrum_f_hz: (1..=top).map(|k| k as f64 * record.resolution_hz).collect(),
             spectrum_dbc: (1..=top).map(|k| finite(voltage_ratio_db(spectrum[k] / carrier)).map(|d| d.max(-200.0))).collect(),
-            transfer_emf_v: &l.transfer.0,
-            transfer_out_v: &l.transfer.1,
+            transfer_emf_v,
+            transfer_out_v,
             sweep_pin_dbm: levels.iter().map(|v| v.pin_dbm).collect(),
             sweep_pout_dbm: levels.iter().map(|v| finite(v.pout_dbm)).collect(),
             two_tone: l.intercept.iter().flat_map(|i| [i.lower, i.upper]).map(|t| [t.pin_dbm, t.pout_dbm, t.im3_dbm]).collect(),

@@ -122,7 +122,7 @@ fn main() {
         report("compression sweep, demo, 20 levels", sweep, None);
         figures.push(("compression", sweep));
         report("large-signal analysis, demo (tone, sweep, intercept, series)", median_time(|| {
-            black_box(doc.large(&mut |_| {}).unwrap());
+            black_box(doc.large(halfrail::analysis::swing::Curve::Drawn, &mut |_| {}).unwrap());
         }), None);
     }
     report("design to target, demo (12 dB, E24, 100 kHz corner)", median_time(|| {

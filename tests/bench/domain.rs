@@ -79,7 +79,7 @@ fn main() {
             let _ = d.bias();
             let _ = d.stability();
             let _ = d.compensation();
-            let _ = d.large(&mut |_| {});
+            let _ = d.large(halfrail::analysis::swing::Curve::Skipped, &mut |_| {});
         });
         design.time(seed, || d.design());
         chain.time(seed, || d.chain(None));

@@ -56,8 +56,9 @@ pub struct Large {
     pub series_hd_dbc: (f64, f64),
     pub series_intercepts_dbm: Option<(f64, f64)>,
     /// The quasi-static transfer curve: v(out) against a DC EMF over ±1.5 times the
-    /// EMF that reaches the rails, for drawing the signal's excursion on.
-    pub transfer: (Vec<f64>, Vec<f64>),
+    /// EMF that reaches the rails, for drawing the signal's excursion on (`None`
+    /// unless `Curve::Drawn` was asked for).
+    pub transfer: Option<(Vec<f64>, Vec<f64>)>,
     /// Peak EMF of the tone at `input_dbm`.
     pub amplitude: f64,
 }
@@ -103,9 +104,18 @@ fn named(e: FieldError, doing: &str) -> FieldError {
     }
 }
 
+/// Whether the large-signal analysis also draws the quasi-static transfer curve
+/// (only the Swing panel's plot needs it: a sixth of the slowest document's
+/// analysis, a nine-inverter part crossing its steep region in many small pieces).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Curve {
+    Drawn,
+    Skipped,
+}
+
 /// The large-signal analysis at `f_hz` and `input_dbm`; `progress` hears the
 /// fraction done.
-pub fn analyse(part: &Part, c: &Components, f_hz: f64, input_dbm: f64, progress: &mut dyn FnMut(f64)) -> Result<Large> {
+pub fn analyse(part: &Part, c: &Components, f_hz: f64, input_dbm: f64, curve: Curve, progress: &mut dyn FnMut(f64)) -> Result<Large> {
     let source_ohm = source_resistance(c)?;
     let load_ohm = c.get(Component::LoadOhm);
     let time = TimeDomain::new(part, c)?;
@@ -147,7 +157,10 @@ pub fn analyse(part: &Part, c: &Components, f_hz: f64, input_dbm: f64, progress:
     };
     let span = emf_amplitude(rail_dbm, source_ohm) / 4.0;
     let series = PowerSeries::of(&still, span).map_err(|e| named(e, "the power series of the transfer curve"))?;
-    let transfer = still.transfer_curve(6.0 * span, TRANSFER_POINTS).map_err(|e| named(e, "the transfer curve"))?;
+    let transfer = match curve {
+        Curve::Drawn => Some(still.transfer_curve(6.0 * span, TRANSFER_POINTS).map_err(|e| named(e, "the transfer curve"))?),
+        Curve::Skipped => None,
+    };
     progress(1.0);
     Ok(Large {
         f_hz,
