@@ -17,6 +17,7 @@ const SCRIPTS = [
   'js/core.js',
   'js/ui.js',
   'js/design.js',
+  'js/fields.js',
   'js/worker.js',
   'js/plot.js',
   'js/plane.js',

@@ -151,42 +151,66 @@ HR.design = (() => {
     undo() { travel(past, future, 'undo'); },
     redo() { travel(future, past, 'redo'); },
     onChange(fn) { listeners.add(fn); },
+    // What both ways of following the design share (follow below, for entries fast
+    // enough to call after every edit, and HR.background.follow, for long runs):
+    // whether the panel is on show and a call each time it is shown again, an error
+    // routed to the bound field it names (HR.bind.route) before the panel's
+    // `report(error, field)`, the last design the core accepted, to show while nothing
+    // is on show, and the count of results rendered (`panel.dataset.computed`).
+    watch(panel, report) {
+      return {
+        shown: () => HR.ui.shown(panel),
+        onShown: (fn) => HR.ui.onShown(panel, fn),
+        report: (error) => report(error, HR.bind.route(panel, error)),
+        fallback: (text, rendered) => (!rendered && good && good !== text ? good : null),
+        counted: () => { panel.dataset.computed = String(Number(panel.dataset.computed || 0) + 1); },
+      };
+    },
     // Keeps a view in step with the design. After each burst of edits (and once now)
-    // `compute(text)` runs on the draft: a result is rendered and the draft accepted;
-    // an error goes to `report` (null clears it) and the last good design's result is
-    // shown instead if nothing was yet, marked by `stale(true, rendered)`. `when()`
-    // can hold updates back (while a value is being typed in place). A hidden panel
-    // does not compute: an edit made meanwhile is computed when it is shown again.
-    // `panel.dataset.computed` counts the results rendered.
+    // `compute(text)` runs on the draft: a result is rendered, `render(ok, {text})`, and
+    // the draft accepted; an error goes to `report` (null clears it) and the last good
+    // design's result is shown instead if nothing was yet. `stale(why, rendered)` marks
+    // what is on show as not for the draft ('error'; null when it is). `compute` may
+    // answer {pending: why} while part of it computes elsewhere (in the background):
+    // nothing is reported, what is on show is marked stale by `why`, and the caller
+    // calls again() when the part arrives. `when()` can hold updates back (while a
+    // value is being typed in place). A hidden panel does not compute: an edit made
+    // meanwhile is computed when it is shown again. Returns {again()}.
     follow(panel, { compute, render, report, stale, when = () => true }) {
+      const seen = this.watch(panel, report);
       let rendered = false;
       const update = () => {
         const text = JSON.stringify(draft);
         const result = compute(text);
-        report(result.error || null);
+        if (result.pending) {
+          seen.report(null);
+          stale(result.pending, rendered);
+          return;
+        }
+        seen.report(result.error || null);
         if (result.error) {
-          if (!rendered && good) {
-            const last = compute(good);
-            if (last.ok !== undefined) { render(last.ok); rendered = true; }
-          }
-          stale(true, rendered);
+          const last = seen.fallback(text, rendered);
+          const r = last && compute(last);
+          if (r && r.ok !== undefined) { render(r.ok, { text: last }); rendered = true; }
+          stale('error', rendered);
           return;
         }
         this.accept(text);
-        render(result.ok);
+        render(result.ok, { text });
         rendered = true;
-        stale(false, true);
-        panel.dataset.computed = String(Number(panel.dataset.computed || 0) + 1);
+        stale(null, true);
+        seen.counted();
       };
       const schedule = HR.ui.coalesce(update);
       let due = false;
-      listeners.add(() => {
-        if (!when()) return;
-        if (HR.ui.shown(panel)) schedule();
+      const again = () => {
+        if (seen.shown()) schedule();
         else due = true;
-      });
-      HR.ui.onShown(panel, () => { if (due) { due = false; update(); } });
+      };
+      listeners.add(() => { if (when()) again(); });
+      seen.onShown(() => { if (due) { due = false; update(); } });
       update();
+      return { again };
     },
   };
 })();

@@ -27,14 +27,15 @@ HR.ui = (() => {
     return el('section', { class: 'card', 'aria-labelledby': id }, el('h2', { id }, title), ...children);
   };
 
-  // A labelled text input with a place for its error beside it. `onInput(text)`
-  // runs on every edit; `setError(reason)` shows a reason, or clears it with null.
-  const field = ({ label, value, hint, onInput }) => {
-    const id = uid('field');
-    const input = el('input', {
-      id, type: 'text', value, spellcheck: 'false', autocomplete: 'off',
-      'aria-describedby': hint ? `${id}-err ${id}-hint` : `${id}-err`,
-    });
+  // A labelled text input (a box of `rows` lines if given) with a place for its error
+  // beside it. `onInput(text)` runs on every edit; `setError(reason)` shows a reason,
+  // or clears it with null.
+  const field = ({ label, value, hint, onInput, id = uid('field'), rows = 0 }) => {
+    const describedby = hint ? `${id}-err ${id}-hint` : `${id}-err`;
+    const input = rows
+      ? el('textarea', { id, rows, spellcheck: 'false', 'aria-describedby': describedby })
+      : el('input', { id, type: 'text', value, spellcheck: 'false', autocomplete: 'off', 'aria-describedby': describedby });
+    if (rows) input.value = value;
     const error = el('span', { class: 'error', id: `${id}-err`, 'aria-live': 'polite' });
     input.addEventListener('input', () => onInput(input.value));
     const setError = (reason) => {
@@ -96,5 +97,5 @@ HR.ui = (() => {
   const shown = (panel) => !panel.hidden && !panel.closest('[hidden]');
   const onShown = (panel, fn) => panel.addEventListener('hr-shown', fn);
 
-  return { el, card, field, choice, fillRows, table, download, coalesce, shown, onShown };
+  return { el, uid, card, field, choice, fillRows, table, download, coalesce, shown, onShown };
 })();

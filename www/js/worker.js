@@ -129,9 +129,10 @@ HR.background = (() => {
   // stays on show, marked stale, while a new one computes, after an error and after a
   // cancel.
   //   spec: {name, args(text) → [...], lane, delay, render(result, {ms, text}),
-  //          report(error | null), stale(why | null, rendered), progress(fraction | null)}
+  //          report(error | null, field), stale(why | null, rendered), progress(fraction | null)}
   //   or, for a run of several calls (in several lanes), `job(text, onProgress)` in
   //   place of name and args, returning what run() returns: {promise, cancel()}.
+  //   `field`: the bound input the error went beside, or null (HR.design.watch).
   //   `why`: 'running', 'error', 'cancelled' or 'due' (changed while hidden or held).
   // Returns {start() (run now), cancel()}. `panel.dataset.computed` counts results, and
   // `panel.dataset.follow` says what the panel waits for, so a test can wait for a state
@@ -139,13 +140,15 @@ HR.background = (() => {
   // while hidden), 'held' (cancelled), or 'settled' (the last result or error is final:
   // nothing more will land until the next edit).
   const follow = (panel, spec) => {
-    const { name, args, lane = name, delay = 300, render, report, stale, progress,
+    const { name, args, lane = name, delay = 300, render, stale, progress,
       job: begin = (text, onProgress) => run(name, args(text), { lane, onProgress }) } = spec;
+    const seen = HR.design.watch(panel, spec.report);
+    const { report } = seen;
     let shownText = null;   // the design text of the result on show
     let job = null;
     let timer = null;
     let held = false;       // cancelled by the user: wait for an edit or start()
-    const visible = () => HR.ui.shown(panel);
+    const visible = seen.shown;
     const mark = (state) => { panel.dataset.follow = state; };
 
     const finish = (text, r) => {
@@ -153,8 +156,8 @@ HR.background = (() => {
       if (r.error) {
         report(r.error);
         // Nothing on show yet: show the last design the core accepted, marked stale.
-        const good = HR.design.lastGood();
-        if (shownText === null && good && good !== text) { launch(good, true); return; }
+        const good = seen.fallback(text, shownText !== null);
+        if (good) { launch(good, true); return; }
         stale('error', shownText !== null);
         return;
       }
@@ -167,7 +170,7 @@ HR.background = (() => {
         stale('error', true);
       }
       render(r.ok, { ms: r.ms, text });
-      panel.dataset.computed = String(Number(panel.dataset.computed || 0) + 1);
+      seen.counted();
     };
 
     const launch = (text, fallback = false) => {
@@ -226,7 +229,7 @@ HR.background = (() => {
 
     HR.design.onChange(changed);
     // Shown again: compute what changed while it was hidden.
-    HR.ui.onShown(panel, () => {
+    seen.onShown(() => {
       if (!job && !timer && !held && HR.design.text() !== shownText) start();
     });
     start();

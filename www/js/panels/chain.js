@@ -9,7 +9,7 @@
 // is kept (by those sections' text) and handed back to chainReport.
 
 (() => {
-  const { el, card, field, choice, table, fillRows } = HR.ui;
+  const { el, card, table, fillRows } = HR.ui;
   const { known, fixed } = HR;
   const css = (name) => HR.plot.css(name);
 
@@ -58,7 +58,6 @@
     ['oip3_dbm', 'OIP3', dbm], ['ip1db_dbm', 'Input 1 dB compression (IP1dB)', dbm], ['sfdr_db', 'SFDR', db],
     ['dc_w', 'DC power', watts],
   ];
-  const raw = (v) => (v === undefined || v === null ? '' : String(v));
   const clone = (v) => JSON.parse(JSON.stringify(v));
   const fieldOf = (i, key) => `chain.blocks[${i}].${key}`;
   // The sections the stage block depends on, as a document of their own: the key of
@@ -132,11 +131,8 @@
     mount(container) {
       let last = null;          // the report on show
       let lastArgs = null;      // what the core was given for it: [text, stage block JSON]
-      let rendered = false;
-      let due = false;          // changed while hidden
       const stageCache = new Map(); // stage document text → {ok} | {error}
       const runs = {};          // lane → {key, handle} of the stageBlock run in flight there
-      const visible = () => HR.ui.shown(container);
       // A read-only view (an embedded one) shows the chain without its editing buttons.
       const readOnly = () => Boolean(HR.design.readOnly && HR.design.readOnly());
       const blocks = () => { const c = HR.design.section('chain'); return c && Array.isArray(c.blocks) ? c.blocks : []; };
@@ -155,16 +151,12 @@
       };
 
       // ---- The chain's drive ------------------------------------------------------
-      const inputs = [...INPUTS, WARN_INPUT].map(([key, label, hint]) => {
-        const f = field({ label, hint, value: raw(HR.design.get('chain', key)), onInput: (text) => HR.design.set('chain', key, text.trim(), 'chain') });
-        f.wrap.classList.add('compact');
-        return { key, f };
-      });
+      const inputs = [...INPUTS, WARN_INPUT].map(([key, label, hint]) => HR.bind('chain', key, { label, hint, compact: true }));
       const warnInput = inputs[inputs.length - 1];
-      warnInput.f.wrap.hidden = true;
+      warnInput.wrap.hidden = true;
       const inputCard = card('Drive and bandwidth',
         el('p', { class: 'intro' }, 'The level into the chain and the bandwidth its noise is counted over.'),
-        el('div', { class: 'grid-fields' }, inputs.map(({ f }) => f.wrap)));
+        el('div', { class: 'grid-fields' }, inputs.map((f) => f.wrap)));
 
       // ---- The blocks -------------------------------------------------------------
       const blockTable = table('The blocks from input to output, each matched to the next. Values take dB, dBm and engineering notation (60 mW); Enter or leaving a field applies it, Escape undoes the typing.',
@@ -198,30 +190,18 @@
       let rows = [];
       let shape = null;         // the kinds in order, when the rows were built
       let focusAfter = null;    // {row, key}: what to focus once the rows are rebuilt
-      const commit = (i, key, input) => {
-        const b = blocks()[i];
-        const text = input.value.trim();
-        if (!b || text === raw(b[key]).trim()) return;
-        change(`edit ${nameOf(i)} ${key}`, (c) => {
-          if (text === '') delete c.blocks[i][key];
-          else c.blocks[i][key] = text;
-        });
-      };
-      const cellInput = (i, key, label) => {
-        const input = el('input', { type: 'text', spellcheck: 'false', autocomplete: 'off', 'data-row': i, 'data-key': key,
-          'aria-label': `Block ${i + 1} ${label}`, value: raw(blocks()[i][key]) });
-        const error = el('span', { class: 'error', 'aria-live': 'polite' });
-        input.addEventListener('change', () => commit(i, key, input));
-        input.addEventListener('keydown', (e) => {
-          if (e.key === 'Enter') commit(i, key, input);
-          if (e.key === 'Escape') { input.value = raw(blocks()[i][key]); }
-        });
-        const setError = (reason) => {
-          input.setAttribute('aria-invalid', reason ? 'true' : 'false');
-          error.textContent = reason || '';
-        };
-        return { input, setError, cell: el('span', { class: 'in-cell' }, input, error) };
-      };
+      // A block's value, typed in its cell: applied on Enter or on leaving it, each
+      // time one step of undo named by the block.
+      const cellInput = (i, key, label) => HR.bind('chain', `blocks[${i}].${key}`, {
+        aria: `Block ${i + 1} ${label}`, attrs: { 'data-row': i, 'data-key': key }, on: 'change',
+        commit: (text) => {
+          if (!blocks()[i]) return;
+          change(`edit ${nameOf(i)} ${key}`, (c) => {
+            if (text === '') delete c.blocks[i][key];
+            else c.blocks[i][key] = text;
+          });
+        },
+      });
       const build = () => {
         const list = blocks();
         shape = list.map((b) => b && b.kind).join(',');
@@ -238,7 +218,7 @@
             }
             if (!TAKES[b.kind] || !TAKES[b.kind].includes(key)) return '—';
             fields[key] = cellInput(i, key, `${heading} (${unit})`);
-            return fields[key].cell;
+            return fields[key].wrap;
           });
           const name1 = () => nameOf(i);
           const move = (to) => {
@@ -252,7 +232,7 @@
             change(`remove ${name1()}`, (c) => c.blocks.splice(i, 1));
           } }, 'Remove');
           const tr = el('tr', { 'data-row': i, 'data-kind': b.kind },
-            el('th', { scope: 'row' }, String(i + 1)), el('td', {}, name.cell),
+            el('th', { scope: 'row' }, String(i + 1)), el('td', {}, name.wrap),
             el('td', { class: 'kind' }, KINDS[b.kind] || String(b.kind), kindError),
             cells.map((c) => el('td', {}, c)), el('td', { class: 'order' }, readOnly() ? null : [up, down]), el('td', {}, readOnly() ? null : remove));
           return { tr, fields, stage, kindError, buttons: { up, down, remove } };
@@ -270,15 +250,10 @@
         } else if (!rows.length && blockTable.node.contains(document.activeElement)) ownName.focus();
       };
       // The rows as the design has them: rebuilt when blocks come, go or move
-      // between kinds, else only their values brought up to date.
+      // between kinds (their values, bound to the design, keep in step themselves).
       const syncRows = () => {
         const list = blocks();
         if (list.map((b) => b && b.kind).join(',') !== shape || list.length !== rows.length || focusAfter) build();
-        else {
-          rows.forEach((r, i) => {
-            for (const [key, f] of Object.entries(r.fields)) if (document.activeElement !== f.input) f.input.value = raw(list[i][key]);
-          });
-        }
         noChain.hidden = Boolean(HR.design.section('chain')) || readOnly();
         adders.hidden = readOnly();
         blockTable.node.hidden = !list.length;
@@ -324,9 +299,9 @@
       warningsCard.hidden = true;
 
       // ---- Runs of directly coupled stages ----------------------------------------
-      const runsChoice = choice({ label: 'Stages next to each other', value: 'matched',
+      const runsChoice = HR.bind('chain', 'stage_runs', { label: 'Stages next to each other', fallback: 'matched',
         options: [['matched', 'Each a matched block'], ['one-circuit', 'One circuit, each stage loading the one before']],
-        onChange: (v) => HR.design.set('chain', 'stage_runs', v === 'matched' ? '' : v, 'chain') });
+        read: (v) => (v === 'matched' ? '' : v) });
       runsChoice.wrap.classList.add('pick');
       const runsTable = table('Stages in a row, budgeted both ways: as matched blocks, and as the one circuit they make when coupled directly', ['Stages', 'Figure', 'As matched blocks', 'As one circuit', 'Difference']);
       const runsNote = el('p', { class: 'plot-note' });
@@ -350,9 +325,10 @@
         el('p', { class: 'plot-note' }, 'Headroom: the output 1 dB compression level less the signal there. Noise share: the block’s part of the chain’s excess noise (F − 1); distortion share: its part of 1/IIP3.'));
       afterCard.classList.add('wide');
 
-      const render = (r, text) => {
+      // A budget on show: the core's report, what it was given (for the CSV) and the text.
+      const render = ({ report: r, args }, { text }) => {
         last = r;
-        rendered = true;
+        lastArgs = args;
         csv.disabled = !r.stages.length;
         for (const [k, , show] of TOTALS) totals[k].textContent = show(r[k]);
         // The reference's budget (its stage figures computed in their own lane).
@@ -371,7 +347,7 @@
 
         if (Array.isArray(r.warnings)) {
           warningsCard.hidden = false;
-          warnInput.f.wrap.hidden = false;
+          warnInput.wrap.hidden = false;
           warnings.replaceChildren(...(r.warnings.length
             ? r.warnings.map((w) => el('li', { class: 'warning', 'data-block': w.block === null ? '' : w.block }, w.text))
             : [el('li', { class: 'ok' }, 'No warnings for this chain.')]));
@@ -379,7 +355,6 @@
         if (Array.isArray(r.runs)) {
           const wanted = HR.design.get('chain', 'stage_runs');
           runsCard.hidden = !r.runs.length && !wanted;
-          runsChoice.select.value = r.stage_runs || wanted || 'matched';
           const list = JSON.parse(text).chain.blocks;
           const names = (run) => list.slice(run.first, run.last + 1).map((b) => b.name).filter(Boolean);
           const signed = (v) => (known(v) ? `${v > 0 && fixed(v, 2) !== '0.00' ? '+' : ''}${fixed(v, 2)} dB` : '—');
@@ -406,24 +381,19 @@
       };
 
       // ---- Computing -------------------------------------------------------------
-      const route = (error) => {
-        inputs.forEach(({ f }) => f.setError(null));
-        rows.forEach((r) => Object.values(r.fields).forEach((f) => f.setError(null)));
-        if (!error) { problem.hidden = true; problem.textContent = ''; return; }
+      // An error: beside its field (`at`, HR.bind) and, named by its block, under the table.
+      const report = (error, at) => {
+        problem.hidden = !error;
+        if (!error) { problem.textContent = ''; return; }
         const m = /^chain\.blocks\[(\d+)\]\.(\w+)$/.exec(error.field || '');
-        const atBlock = m && rows[Number(m[1])] && rows[Number(m[1])].fields[m[2]];
-        const atInput = inputs.find(({ key }) => error.field === `chain.${key}`);
-        if (atBlock) atBlock.setError(error.reason);
-        if (atInput) atInput.f.setError(error.reason);
         const where = m ? `Block ${Number(m[1]) + 1} (${nameOf(Number(m[1]))})` : null;
-        problem.textContent = atBlock || atInput ? `${where ? `${where}: ` : ''}${error.reason}` : error.message || `${error.field}: ${error.reason}`;
-        problem.hidden = false;
+        problem.textContent = at ? `${where ? `${where}: ` : ''}${error.reason}` : error.message || `${error.field}: ${error.reason}`;
       };
       const NOTES = {
         stage: 'Computing the stage’s own figures in the background; the budget shown is for the design before the last change.',
         error: 'Showing the last valid budget.',
       };
-      const stale = (why) => {
+      const stale = (why, rendered) => {
         const on = Boolean(why) && rendered;
         staleNote.hidden = !on;
         staleNote.textContent = why ? NOTES[why] : '';
@@ -444,12 +414,12 @@
           if (r.cancelled) return;
           stageCache.set(key, r.error ? { error: r.error } : { ok: r.ok });
           if (stageCache.size > 16) stageCache.delete(stageCache.keys().next().value);
-          schedule();
+          follower.again();
         });
       };
 
-      // The budget of the document `text`: {ok}, {error}, or {pending} while the
-      // stage's own figures compute.
+      // The budget of the document `text`: {ok, args}, {error}, or {pending: 'stage'}
+      // while the stage's own figures compute.
       const budget = (text, lane) => {
         const check = HR.call('checkDocument', text);
         if (check.error) return check;
@@ -459,52 +429,31 @@
         if (list.some((b) => b && b.kind === 'stage')) {
           const key = stageDocOf(doc);
           const got = stageCache.get(key);
-          if (!got) { startStage(key, lane); return { pending: true }; }
+          if (!got) { startStage(key, lane); return { pending: 'stage' }; }
           if (got.error) return { error: got.error };
           stageJson = JSON.stringify(got.ok);
         }
         return { ...HR.call('chainReport', text, stageJson), args: [text, stageJson] };
       };
 
-      const update = () => {
-        if (!visible()) { due = true; return; }
-        due = false;
-        const text = HR.design.text();
-        const r = budget(text);
-        syncRows();
-        if (r.pending) { route(null); stale('stage'); return; }
-        route(r.error || null);
-        if (r.error) {
-          // Nothing on show yet: the last design the core accepted, marked stale.
-          const good = HR.design.lastGood();
-          if (!rendered && good && good !== text) {
-            const g = budget(good);
-            if (g.ok) { lastArgs = g.args; render(g.ok, good); }
-          }
-          stale('error');
-          return;
-        }
-        HR.design.accept(text);
-        lastArgs = r.args;
-        render(r.ok, text);
-        stale(null);
-        container.dataset.computed = String(Number(container.dataset.computed || 0) + 1);
-      };
-      const schedule = HR.ui.coalesce(update);
-
-      const syncInputs = () => {
-        inputs.forEach(({ key, f }) => { if (document.activeElement !== f.input) f.input.value = raw(HR.design.get('chain', key)); });
-      };
-      HR.design.onChange(() => { syncInputs(); schedule(); });
-      HR.compare.onChange(schedule);
-      HR.ui.onShown(container, () => { if (due) schedule(); });
-
       container.append(el('h1', {}, 'Chain'),
         el('p', { class: 'lede' }, 'The stage inside a cascade: pads, filters, amplifiers you give the figures of, and this design’s own stage. Gain, noise figure, intercept and compression are summed block by block, with the signal and the noise at every node.'),
         el('div', { class: 'cards' }, blocksCard, inputCard, warningsCard, runsCard, totalsCard, plotCard, afterCard));
-      syncInputs();
       build();
-      update();
+      // Its budget follows the design on the main thread (well under a millisecond),
+      // pending while the stage block's figures compute: follower.again() when they come.
+      const follower = HR.design.follow(container, {
+        compute: (text) => {
+          const r = budget(text);
+          syncRows();
+          return r.ok ? { ok: { report: r.ok, args: r.args } } : r;
+        },
+        render,
+        report,
+        stale,
+      });
+      // The reference's budget is drawn beside this one's.
+      HR.compare.onChange(() => follower.again());
     },
   });
 })();

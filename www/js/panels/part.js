@@ -1,11 +1,11 @@
 'use strict';
 // Part: the inverter's parameters (from an illustrative preset or typed in), its
 // operating point inside the stage, the transfer curves, and the bench fit.
-// The core computes every figure; this file lays them out and routes errors to
-// the field they name.
+// The core computes every figure; this file lays them out. Its fields are bound to
+// the design (HR.bind), where the core's errors find them.
 
 (() => {
-  const { el, card, field, choice, table, fillRows } = HR.ui;
+  const { el, card, choice, table, fillRows } = HR.ui;
 
   // The part's fields: document key, label, hint.
   const FIELDS = [
@@ -35,22 +35,6 @@
   ];
   const POINTS = 501;
 
-  // The controls by document path, so an error can find its field.
-  const byPath = new Map();
-  const routeError = (error, fallback) => {
-    byPath.forEach((c) => c.setError(null));
-    fallback.textContent = '';
-    if (!error) return;
-    const path = error.field || '';
-    const exact = byPath.get(path);
-    const prefix = [...byPath.keys()].find((k) => path.startsWith(`${k}[`) || path.startsWith(`${k}.`));
-    const target = exact || (prefix && byPath.get(prefix));
-    if (target) target.setError(error.reason);
-    else fallback.textContent = error.message || error.reason;
-  };
-
-  const text = (v) => (v === undefined || v === null ? '' : String(v));
-
   const partCard = (problem) => {
     const presets = HR.presets();
     const pick = choice({ label: 'Preset (illustrative, not a datasheet)', value: presets[0].id,
@@ -59,28 +43,17 @@
       const p = presets.find((x) => x.id === pick.select.value);
       HR.design.replace('part', JSON.parse(JSON.stringify(p.part)), `load “${p.title}”`);
     } }, 'Load preset');
-    const model = choice({ label: 'Model', value: text(HR.design.get('part', 'model')) || 'square-law',
-      options: [['square-law', 'Square law (long channel)'], ['ekv', 'EKV (weak to strong inversion)']],
-      onChange: (v) => HR.design.set('part', 'model', v, 'part') });
-    const fields = FIELDS.map(([key, label, hint]) => {
-      const f = field({ label, hint, value: text(HR.design.get('part', key)),
-        onInput: (v) => HR.design.set('part', key, v.trim(), 'part') });
-      f.wrap.classList.add('compact');
-      byPath.set(`part.${key}`, f);
-      return { key, f };
-    });
-    const refresh = () => {
-      fields.forEach(({ key, f }) => { if (document.activeElement !== f.input) f.input.value = text(HR.design.get('part', key)); });
-      model.select.value = text(HR.design.get('part', 'model')) || 'square-law';
-    };
+    const model = HR.bind('part', 'model', { label: 'Model', fallback: 'square-law',
+      options: [['square-law', 'Square law (long channel)'], ['ekv', 'EKV (weak to strong inversion)']] });
+    const fields = FIELDS.map(([key, label, hint]) => HR.bind('part', key, { label, hint, compact: true }));
     const node = card('Part',
       el('p', { class: 'intro' }, 'Start from an illustrative preset or type your part’s parameters (given at 25 °C). Values take engineering notation or RKM codes.'),
       el('div', { class: 'inputs' }, pick.wrap, el('div', { class: 'actions' }, load)),
       el('div', { class: 'inputs' }, model.wrap),
-      el('div', { class: 'grid-fields' }, fields.map(({ f }) => f.wrap)),
+      el('div', { class: 'grid-fields' }, fields.map((f) => f.wrap)),
       problem);
     node.classList.add('wide');
-    return { node, refresh };
+    return { node };
   };
 
   const READOUT = [
@@ -183,31 +156,14 @@
   const gainsToText = (g) => (g || []).map((r) => (r.gain_db !== undefined ? `${r.f_hz}, ${r.gain_db} dB` : `${r.f_hz}, ${r.gain_vv}`)).join('\n');
   const curveToText = (c) => (c || []).map((r) => `${r.vin_v}, ${r.vout_v}`).join('\n');
 
-  const area = ({ label, hint, value, onInput, path }) => {
-    const id = `area-${path.replace(/\W/g, '-')}`;
-    const input = el('textarea', { id, rows: 4, spellcheck: 'false', 'aria-describedby': `${id}-err ${id}-hint` });
-    input.value = value;
-    input.addEventListener('input', () => onInput(input.value));
-    const error = el('span', { class: 'error', id: `${id}-err`, 'aria-live': 'polite' });
-    const setError = (reason) => { input.setAttribute('aria-invalid', reason ? 'true' : 'false'); error.textContent = reason || ''; };
-    byPath.set(path, { setError, input });
-    return el('div', { class: 'field' }, el('label', { for: id }, label), input, el('span', { class: 'hint', id: `${id}-hint` }, hint), error);
-  };
+  // A box of readings, a line each, bound to a list of the bench section.
+  const area = (key, label, hint, read, write) => HR.bind('bench', key, { label, hint, rows: 4, id: `area-bench-${key}`, read, write }).wrap;
 
-  const fitCard = () => {
-    const bench = () => HR.design.section('bench') || {};
-    const fields = BENCH.map(([key, label, hint]) => {
-      const f = field({ label, hint, value: text(bench()[key]), onInput: (v) => HR.design.set('bench', key, v.trim(), 'bench') });
-      f.wrap.classList.add('compact');
-      byPath.set(`bench.${key}`, f);
-      return f;
-    });
-    const gains = area({ label: 'Open-loop gain readings', path: 'bench.gains', value: gainsToText(bench().gains),
-      hint: 'one per line: frequency, gain (V/V, or add dB) — paste from a spreadsheet',
-      onInput: (v) => HR.design.set('bench', 'gains', gainsFromText(v), 'bench') });
-    const curve = area({ label: 'Transfer-curve points (optional)', path: 'bench.curve', value: curveToText(bench().curve),
-      hint: 'one per line: Vin, Vout, unloaded',
-      onInput: (v) => HR.design.set('bench', 'curve', curveFromText(v), 'bench') });
+  const fitCard = (panel) => {
+    const fields = BENCH.map(([key, label, hint]) => HR.bind('bench', key, { label, hint, compact: true }));
+    const gains = area('gains', 'Open-loop gain readings', 'one per line: frequency, gain (V/V, or add dB) — paste from a spreadsheet',
+      gainsFromText, gainsToText);
+    const curve = area('curve', 'Transfer-curve points (optional)', 'one per line: Vin, Vout, unloaded', curveFromText, curveToText);
     const message = el('p', { class: 'error', 'aria-live': 'polite' });
     const params = table('Fitted parameters (±1σ from the Jacobian)', ['Parameter', 'Value', '±1σ']);
     const residuals = table('Each reading against the fitted part', ['Reading', 'Measured', 'Fitted', 'In σ']);
@@ -218,11 +174,9 @@
     } }, 'Use this part');
     const run = el('button', { type: 'button', onclick: () => {
       const r = HR.call('benchFit', HR.design.text());
-      if (r.error) {
-        routeError(r.error, message);
-        return;
-      }
-      routeError(null, message);
+      const at = HR.bind.route(panel, r.error || null);
+      message.textContent = r.error && !at ? r.error.message || r.error.reason : '';
+      if (r.error) return;
       fitted = r.ok.part;
       use.disabled = false;
       const unitOf = { kn: 'A/V²', kp: 'A/V²', vtn: 'V', vtp: 'V', lambda: '1/V', cap: 'F' };
@@ -248,17 +202,17 @@
       const part = partCard(problem);
       const bias = biasCard();
       const curves = curvesCard();
-      const fit = fitCard();
+      const fit = fitCard(container);
       container.append(el('h1', {}, 'Part'),
         el('p', { class: 'lede' }, 'The inverter, its operating point in the stage, and its transfer curves. Figures are model estimates: verify them on the bench and check the datasheet’s limits.'),
         el('div', { class: 'cards' }, part.node, bias.node, curves.node, fit.node));
       HR.design.follow(container, {
-        compute: (text) => { part.refresh(); return HR.call('partReport', text, POINTS); },
+        compute: (text) => HR.call('partReport', text, POINTS),
         render: HR.compare.rerender((r) => { bias.render(r); curves.render(r); }),
-        report: (error) => routeError(error, problem),
-        stale: (isStale, rendered) => {
-          bias.output.classList.toggle('stale', isStale);
-          bias.stale.hidden = !(isStale && rendered);
+        report: (error, at) => { problem.textContent = error && !at ? error.message || error.reason : ''; },
+        stale: (why, rendered) => {
+          bias.output.classList.toggle('stale', Boolean(why));
+          bias.stale.hidden = !(why && rendered);
         },
       });
     },

@@ -7,7 +7,7 @@
 // worst-case corners, and the tolerances themselves (in the design, undoable).
 
 (() => {
-  const { el, card, field, choice, table, fillRows } = HR.ui;
+  const { el, card, choice, table, fillRows } = HR.ui;
   const fmt = HR.fmt;
   const { known, fixed } = HR;
   const css = (name) => HR.plot.css(name);
@@ -86,24 +86,10 @@
       let lim = {};
 
       // ---- Tolerances and the run ---------------------------------------------------
-      const raw = (key) => {
-        const v = HR.design.get('tolerance', key);
-        return v === undefined || v === null ? '' : String(v);
-      };
-      const fields = TOLERANCES.map(([key, label, hint]) => {
-        const f = field({ label, hint, value: raw(key), onInput: (text) => {
-          const t = text.trim();
-          // Trials and seed are whole numbers in the document, not values with units.
-          HR.design.set('tolerance', key, /^(trials|seed)$/.test(key) && /^\d+$/.test(t) ? Number(t) : t, 'spread');
-        } });
-        f.wrap.classList.add('compact');
-        return { key, f };
-      });
-      const sync = () => {
-        fields.forEach(({ key, f }) => { if (document.activeElement !== f.input) f.input.value = raw(key); });
-      };
-      HR.design.onChange(sync);
-      sync();
+      // Trials and seed are whole numbers in the document, not values with units.
+      const whole = (text) => (/^\d+$/.test(text.trim()) ? Number(text.trim()) : text.trim());
+      const fields = TOLERANCES.map(([key, label, hint]) => HR.bind('tolerance', key,
+        { label, hint, compact: true, origin: 'spread', read: /^(trials|seed)$/.test(key) ? whole : undefined }));
 
       const bar = el('progress', { max: 1, value: 0, 'aria-label': 'Progress of the Monte Carlo run' });
       const barText = el('span', { class: 'run-text', 'aria-live': 'polite' }, '');
@@ -114,7 +100,7 @@
       const problem = el('p', { class: 'error', 'aria-live': 'polite', hidden: true });
       const staleNote = el('p', { class: 'stale-note', hidden: true });
       const runCard = card('Tolerances', el('p', { class: 'intro' }, 'Each trial builds the stage with every part drawn at random, evenly and independently, within ± its tolerance: the stage’s resistors and capacitors, the supply, kn, kp, Vtn and Vtp. The source and the load stay as they are.'),
-        el('div', { class: 'grid-fields' }, fields.map(({ f }) => f.wrap)), running, timing,
+        el('div', { class: 'grid-fields' }, fields.map((f) => f.wrap)), running, timing,
         el('div', { class: 'actions' }, now), problem, staleNote);
       runCard.classList.add('wide');
 
@@ -237,9 +223,6 @@
           barText.textContent = `Computing… ${fixed(100 * p, 0)} %`;
         },
         report: (error) => {
-          const at = error && fields.find(({ key }) => error.field === `tolerance.${key}`);
-          fields.forEach(({ f }) => f.setError(null));
-          if (at) at.f.setError(error.reason);
           problem.textContent = error ? error.message || error.reason : '';
           problem.hidden = !error;
         },

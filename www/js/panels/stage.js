@@ -64,44 +64,20 @@
   // core's designReport laid out: ranked standard pairs, each with Use.
   const designCard = (container) => {
     const text = (key) => { const v = HR.design.get('target', key); return v === undefined || v === null ? '' : String(v); };
-    const byKey = {};
-    const fields = TARGET.map(([key, label, hint]) => {
-      const f = HR.ui.field({ label, hint, value: text(key), onInput: (v) => HR.design.set('target', key, v.trim(), 'stage') });
-      f.wrap.classList.add('compact');
-      byKey[key] = f;
-      return [key, f];
-    });
+    const bound = (key, opts) => HR.bind('target', key, { compact: true, origin: 'stage', ...opts }).wrap;
+    const fields = TARGET.map(([key, label, hint]) => bound(key, { label, hint }));
     const selects = [
       ['gain_kind', 'Gain kind', [['voltage', 'Voltage, v(out)/v(in)'], ['power', 'Power, GT']], 'voltage'],
       ['series', 'Resistor series', HR.seriesFacts().map((f) => [f.name, f.name]), 'E24'],
-    ].map(([key, label, options, fallback]) => {
-      const c = HR.ui.choice({ label, options, value: text(key) || fallback, onChange: (v) => HR.design.set('target', key, v, 'stage') });
-      c.wrap.classList.add('compact');
-      return [key, c, fallback];
-    });
-    const tick = (key, label, onchange) => {
-      const box = el('input', { type: 'checkbox', onchange });
-      return { key, box, wrap: el('label', { class: 'tick' }, box, ` ${label}`) };
-    };
+    ].map(([key, label, options, fallback]) => bound(key, { label, options, fallback }));
     const ticks = [['match_source', 'R in matches the source resistance'], ['allow_combinations', 'R fb may be two standard values, in series or parallel']]
-      .map(([key, label]) => tick(key, label, (e) => HR.design.set('target', key, e.target.checked || '', 'stage')));
-    const caps = tick('', 'Use fits these capacitors too', () => {});
+      .map(([key, tick]) => bound(key, { tick, compact: false }));
+    // Not a value of the design: whether Use takes the capacitors too.
+    const caps = { box: el('input', { type: 'checkbox' }) };
     caps.box.checked = true;
-    const sync = () => {
-      fields.forEach(([key, f]) => { if (document.activeElement !== f.input) f.input.value = text(key); });
-      selects.forEach(([key, c, fallback]) => { c.select.value = text(key) || fallback; });
-      ticks.forEach((t) => { t.box.checked = HR.design.get('target', t.key) === true; });
-    };
-    sync();
+    caps.wrap = el('label', { class: 'tick' }, caps.box, ' Use fits these capacitors too');
 
     const problem = el('div', { class: 'error', 'aria-live': 'polite' });
-    // Errors from the core name their field: a target field shows it beside itself.
-    const route = (error) => {
-      Object.values(byKey).forEach((f) => f.setError(null));
-      const key = error && /^target\./.test(error.field) ? error.field.slice(7) : null;
-      if (byKey[key]) byKey[key].setError(error.reason);
-      return Boolean(byKey[key]);
-    };
     const warn = el('p', { class: 'warning', hidden: true });
     const best = el('p', { class: 'design-best' });
     const hand = HR.ui.table('The ideal ratio against the part’s real gain', ['', 'R in', 'R fb', 'Gives', 'Off target']);
@@ -163,7 +139,7 @@
         running = null;
         busy.hidden = true;
         if (r.cancelled) return;
-        const atField = route(r.error);
+        const atField = HR.bind.route(container, r.error || null);
         problem.textContent = r.error && !atField ? r.error.message || r.error.reason : '';
         out.classList.toggle('stale', Boolean(r.error));
         if (r.error) return;
@@ -173,7 +149,6 @@
       });
     };
     HR.design.onChange(() => {
-      sync();
       if (!asked) return;
       out.classList.add('stale');
       clearTimeout(timer);
@@ -181,11 +156,11 @@
     });
     const node = card('Design to a target',
       el('p', { class: 'intro' }, 'The gain you want at f_design; Design finds the standard resistor pairs that give it with this part’s real, finite gain, ranked by a stable loop and the limits met, the resistors in charge of the gain (loop gain 3 or more), gain error, noise, match and current. Use puts a pair in the stage (one step to undo).'),
-      el('div', { class: 'grid-fields' }, fields.slice(0, 1).map(([, f]) => f.wrap), selects.map(([, c]) => c.wrap), fields.slice(1).map(([, f]) => f.wrap)),
-      el('div', { class: 'inputs' }, ticks.map((t) => t.wrap)),
+      el('div', { class: 'grid-fields' }, fields.slice(0, 1), selects, fields.slice(1)),
+      el('div', { class: 'inputs' }, ticks),
       el('div', { class: 'actions' }, el('button', { type: 'button', onclick: design }, 'Design')), busy, problem, out);
     node.classList.add('wide');
-    return { node, route };
+    return { node };
   };
 
   HR.panel({
@@ -281,10 +256,10 @@
           return r.error || b.error ? { error: r.error || b.error } : { ok: { r: r.ok, b: b.ok } };
         },
         render,
-        report: (error) => { refresh(error); target.route(error); problem.textContent = error ? error.message || error.reason : ''; },
-        stale: (isStale, rendered) => {
-          readout.classList.toggle('stale', isStale);
-          stale.hidden = !(isStale && rendered);
+        report: (error) => { refresh(error); problem.textContent = error ? error.message || error.reason : ''; },
+        stale: (why, rendered) => {
+          readout.classList.toggle('stale', Boolean(why));
+          stale.hidden = !(why && rendered);
         },
         when: () => !editing,
       });

@@ -104,17 +104,9 @@
       let shownText = null;
 
       // ---- Level and run ----------------------------------------------------------
-      const raw = () => {
-        const v = HR.design.get('analysis', 'input_dbm');
-        return v === undefined || v === null ? '' : String(v);
-      };
-      const level = HR.ui.field({
-        label: 'Input level (dBm available from the source)', value: raw(),
-        hint: 'One tone at f_design, e.g. −40 dBm; empty for −30 dBm.',
-        onInput: (text) => HR.design.set('analysis', 'input_dbm', text.trim(), 'swing'),
-      });
+      const level = HR.bind('analysis', 'input_dbm', { origin: 'swing',
+        label: 'Input level (dBm available from the source)', hint: 'One tone at f_design, e.g. −40 dBm; empty for −30 dBm.' });
       level.wrap.classList.add('level');
-      HR.design.onChange(() => { if (document.activeElement !== level.input) level.input.value = raw(); });
 
       const bar = el('progress', { max: 1, value: 0, 'aria-label': 'Progress of the large-signal run' });
       const barText = el('span', { class: 'run-text', 'aria-live': 'polite' }, '');
@@ -331,7 +323,6 @@
         render,
         progress,
         report: (error) => {
-          level.setError(error && error.field === 'analysis.input_dbm' ? error.reason : null);
           problem.textContent = error ? error.message || error.reason : '';
           problem.hidden = !error;
         },

@@ -1,0 +1,125 @@
+'use strict';
+// Fields bound to the design, so that no panel writes its own plumbing for one:
+//
+//   HR.bind(section, key, opts) → {wrap, input, path, show(reason | null)}
+//
+// makes the labelled input for one value of the document (`path`: `section.key`; the
+// key may be a list path, `blocks[2].loss_db`), shows the design's value in it and
+// keeps it in step with every change (never under the user's typing: not while the
+// input has the focus), commits what is typed as a step of undo, and shows beside it
+// the error the core names its path with. HR.bind.route(scope, error) is that one
+// routing, from error.field to the bound input within `scope` (a panel); the follow
+// engines (HR.design.follow, HR.background.follow) call it for their panels.
+//
+// opts: label, hint     a labelled field (HR.ui.field); `rows` makes it a box of
+//                       lines, `id` names it
+//       aria, attrs     a bare input for a table cell, named by its aria-label, with
+//                       its error after it
+//       options         a <select> of [value, text]; `fallback` is shown for no value
+//       tick            a checkbox labelled so: true when ticked, removed when not
+//       compact         the field takes the grid's compact width
+//       origin          who changed the design (HR.design.set's origin)
+//       read(text)      the value to store for what is typed (default: it, trimmed)
+//       write(value)    the text to show for a value (default: as is, '' for none)
+//       value()         the value to show (default: the design's at the path)
+//       commit(value)   stores it (default: HR.design.set, where a run of edits of one
+//                       field is one step)
+//       on: 'change'    commits on Enter or on leaving the field, and Escape puts the
+//                       design's value back (default: on every edit)
+// Selects and ticks have no place for an error: one naming them stays with the panel.
+
+HR.bind = (() => {
+  const { el, field, choice } = HR.ui;
+  const bindings = new WeakMap(); // input → its binding: the page itself lists them
+
+  const text = (v) => (v === undefined || v === null ? '' : String(v));
+  const none = (v) => v === undefined || v === null || v === '';
+  const same = (a, b) => (none(a) && none(b)) || JSON.stringify(a) === JSON.stringify(b);
+  const trim = (t) => t.trim();
+
+  // The design's value at a key within a section: `gain_db` or `blocks[2].loss_db`.
+  const at = (section, key) => {
+    let v = HR.design.section(section);
+    for (const step of key.match(/[^.[\]]+/g) || []) {
+      if (v === null || typeof v !== 'object') return undefined;
+      v = Object.prototype.hasOwnProperty.call(v, step) ? v[step] : undefined;
+    }
+    return v;
+  };
+
+  const bind = (section, key, opts = {}) => {
+    const { label, hint, rows, id, aria, attrs = {}, options, fallback = '', tick, compact, origin = section, on = 'input' } = opts;
+    const path = `${section}.${key}`;
+    const value = opts.value || (() => at(section, key));
+    const read = opts.read || (options ? (t) => t : trim);
+    const write = opts.write || text;
+    const commit = opts.commit || ((v) => HR.design.set(section, key, v, origin));
+    // Whether a text already stands for the design's value (as typed, or as written).
+    const showing = (t) => same(read(t), read(write(value())));
+
+    let wrap;
+    let input;
+    let show = () => {};
+    if (options) {
+      const c = choice({ label, options, value: write(value()) || fallback, onChange: (v) => commit(read(v)) });
+      [wrap, input] = [c.wrap, c.select];
+    } else if (tick) {
+      input = el('input', { type: 'checkbox', onchange: () => commit(input.checked || '') });
+      input.checked = value() === true;
+      wrap = el('label', { class: 'tick' }, input, ` ${tick}`);
+    } else if (aria) {
+      input = el('input', { type: 'text', spellcheck: 'false', autocomplete: 'off', ...attrs, 'aria-label': aria, value: write(value()) });
+      const error = el('span', { class: 'error', 'aria-live': 'polite' });
+      show = (reason) => {
+        input.setAttribute('aria-invalid', reason ? 'true' : 'false');
+        error.textContent = reason || '';
+      };
+      wrap = el('span', { class: 'in-cell' }, input, error);
+    } else {
+      const f = field({ label, hint, rows, id, value: write(value()), onInput: (t) => { if (on === 'input') commit(read(t)); } });
+      [wrap, input, show] = [f.wrap, f.input, f.setError];
+    }
+    if (compact) wrap.classList.add('compact');
+    if (on === 'change') {
+      const apply = () => { if (!showing(input.value)) commit(read(input.value)); };
+      input.addEventListener('change', apply);
+      input.addEventListener('keydown', (e) => {
+        if (e.key === 'Enter') apply();
+        if (e.key === 'Escape') input.value = write(value());
+      });
+    }
+
+    const sync = () => {
+      if (tick) input.checked = value() === true;
+      else if (options) input.value = write(value()) || fallback;
+      else if (document.activeElement !== input && !showing(input.value)) input.value = write(value());
+    };
+    const binding = { path, wrap, input, show: (reason) => show(reason), errors: !options && !tick, sync };
+    bindings.set(input, binding);
+    return binding;
+  };
+
+  // The bound fields within `scope`: those on the page, so a field removed is gone.
+  const within = (scope) => [...scope.querySelectorAll('input, textarea, select')].map((n) => bindings.get(n)).filter(Boolean);
+
+  // Shows `error` (or none: null) at the field within `scope` it names, and clears the
+  // others: the field of its exact path, else the nearest one holding it (a reading of
+  // the box `bench.gains` for `bench.gains[2].f_hz`). Returns that field's binding, or
+  // null when no field there takes it (the panel says it elsewhere).
+  const route = (scope, error) => {
+    const fields = within(scope).filter((b) => b.errors);
+    fields.forEach((b) => b.show(null));
+    const path = error && error.field ? String(error.field) : '';
+    if (!path) return null;
+    const holds = (b) => path.startsWith(`${b.path}[`) || path.startsWith(`${b.path}.`);
+    const target = fields.find((b) => b.path === path)
+      || fields.filter(holds).reduce((best, b) => (!best || b.path.length > best.path.length ? b : best), null);
+    if (target) target.show(error.reason);
+    return target || null;
+  };
+
+  HR.design.onChange(() => within(document).forEach((b) => b.sync()));
+
+  bind.route = route;
+  return bind;
+})();
