@@ -1299,3 +1299,19 @@ fn when_no_change_keeps_the_gain_the_helper_says_so() {
     let flagged = report["suggestions"].as_array().unwrap().iter().find(|s| s["key"] == "r_fb_ohm").unwrap();
     assert!(flagged["flag"].as_str().unwrap().contains("beyond the ±1.0 dB tolerance"), "{flagged}");
 }
+
+/// Found by the property suite (seed 1592590474): a one-inverter stage whose
+/// nodes' G/C (9.4·10⁹ rad/s) falls short of its fastest poles (faer's QZ:
+/// −6.2·10⁹ and −2.4·10¹⁰). The low pass, trusted only to 1.0·10⁹, gave them as
+/// +5.7·10⁹ and −1.6·10¹⁰, a growing pole that is not there, against a Nyquist
+/// count of none. Poles beyond the low pass's trust are now found again by the
+/// ladder.
+#[test]
+fn a_fast_pole_beyond_the_nodes_estimate_is_not_called_growing() {
+    let tally = LoopTally::default();
+    loop_case(1592590474, &tally).unwrap();
+    let doc = halfrail::doc::load(&domain_gen::draw(1592590474).doc.to_string()).unwrap();
+    let (_, l) = doc.stability().unwrap();
+    assert_eq!(l.poles_growing, 0, "{:?}", l.poles);
+    assert!(l.stable);
+}
