@@ -1330,3 +1330,18 @@ fn growing_open_loop_poles_found_by_their_own_band_alone_are_kept() {
     let n = l.nyquist.expect("a count");
     assert_eq!((n.open_growing, n.growing, l.poles_growing), (2, 4, 4));
 }
+
+/// Found by a 1200-document run of the property suite (first seed 2049000000): the
+/// closed-loop poles agree with faer, but the open loop's growing count P does not
+/// (…642: 3 against faer's 2 — one spurious; …1128: 1 against 2 — a +0.30 rad/s
+/// pole beside 3.6·10¹⁰, 8·10⁻¹² of the fastest), so the Nyquist count is off by
+/// one. The verdict rests on the poles and the words say the counts differ. NOT
+/// FIXED: run with `--ignored`.
+#[test]
+#[ignore]
+fn open_loop_counts_off_by_one_on_two_seeds() {
+    for seed in [2049000642, 2049001128] {
+        let tally = LoopTally::default();
+        loop_case(seed, &tally).unwrap();
+    }
+}
