@@ -147,6 +147,19 @@ export const backgroundPanel = (id) => ({
   // slowly to be sure to see it.
   runShown: (page) => page.waitForFunction((sel) => !document.querySelector(sel).hidden, `#panel-${id} .run`, { polling: 'raf' }),
   settledAs: (page, state) => page.waitForSelector(`#panel-${id}[data-follow="${state}"]`, { state: 'attached' }),
+  // Presses Cancel in the frame the run box is first seen, so a short run cannot
+  // end between seeing it and pressing (a click from the test could miss it);
+  // returns how many workers had been terminated just before.
+  cancelDuringRun: (page) => page.evaluate((sel) => new Promise((done) => {
+    const box = document.querySelector(sel);
+    const look = () => {
+      if (box.hidden) { requestAnimationFrame(look); return; }
+      const before = window.__work ? window.__work.terminated : 0;
+      box.querySelector('button.cancel').click();
+      done(before);
+    };
+    look();
+  }), `#panel-${id} .run`),
 });
 
 // An edit of `field` to `first` and, while its run goes, to `second`, on a panel

@@ -140,9 +140,7 @@ test('Cancel ends both workers and no result of the run lands; an edit supersede
   const mean = (await figureRow(page, 'Gain at f_design'))[1];
   const trials = tolerance(page, 'Trials');
   await trials.fill('30000');
-  await runShown(page);
-  const terminated = (await log(page)).terminated;
-  await page.locator('#panel-spread .run button', { hasText: 'Cancel' }).click();
+  const terminated = await bg.cancelDuringRun(page);
   assert.equal(await runBox(page).isVisible(), false);
   assert.equal((await log(page)).terminated, terminated + 2, 'both workers were terminated');
   assert.equal(await page.locator('#panel-spread .stale-note').getAttribute('data-why'), 'cancelled');

@@ -106,9 +106,7 @@ test('Cancel stops the run, no result of it appears, and the next run completes;
 
   // Cancel: the bar goes, the worker is ended, and the old figures stay, marked.
   await level.fill('-30');
-  await runShown(page);
-  const terminated = (await log(page)).terminated;
-  await page.locator('#panel-swing .run button', { hasText: 'Cancel' }).click();
+  const terminated = await bg.cancelDuringRun(page);
   assert.equal(await runBox(page).isVisible(), false);
   assert.equal((await log(page)).terminated, terminated + 1, 'the worker was terminated');
   assert.equal(await page.locator('#panel-swing .stale-note').getAttribute('data-why'), 'cancelled');
