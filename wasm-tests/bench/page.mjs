@@ -2,7 +2,8 @@
 // headless Chromium from file:// the time from navigation to the first computed
 // result (the demo's Part panel: bias and both transfer curves) and the wasm start-up
 // time (median of 5 fresh loads each).
-// Targets (issue 2): page ≤ 600 KB (≤ 250 KB gzip), first result ≤ 300 ms; (issue 3)
+// Targets: one file ≤ 1 MB, first result ≤ 300 ms (the gzip budget is withdrawn: gzip
+// is reported only); (issue 3)
 // a 500-point transfer curve ≤ 5 ms in wasm; (issue 8) the spread of 2000 trials ≤ 1500 ms
 // in one worker, faster in two. Core timings run inside the page.
 import fs from 'fs';
@@ -156,8 +157,8 @@ const ratio = (name, ms) => {
 };
 
 const rows = [
-  ['page size', `${html.length} B`, '≤ 600000 B', html.length <= 600_000],
-  ['page size, gzip', `${gzip} B`, '≤ 250000 B', gzip <= 250_000],
+  ['page size', `${html.length} B`, '≤ 1000000 B', html.length <= 1_000_000],
+  ['page size, gzip', `${gzip} B`, '', null],
   ['first computed result (median of 5)', `${median(first).toFixed(1)} ms`, '≤ 300 ms', median(first) <= 300],
   ['wasm inflate + compile + instantiate (median of 5)', `${median(wasm).toFixed(1)} ms`, '', true],
   ['wasm: transfer curve, 500 points, demo part', `${core.curve1.toFixed(2)} ms`, '≤ 5 ms', core.curve1 <= 5],
