@@ -1069,6 +1069,12 @@ fn deterministic_runner(cases: u32) -> TestRunner {
     TestRunner::new_with_rng(config, rng)
 }
 
+/// The loop analysis of the property suite's document of `seed`.
+fn drawn_loop(seed: u64) -> stability::Loop {
+    let doc = halfrail::doc::load(&domain_gen::draw(seed).doc.to_string()).unwrap();
+    doc.stability().unwrap().1
+}
+
 /// Found by a random run: seven stages whose open loop has a growing real pole at
 /// 9.6 rad/s beside poles near 4e7 rad/s. faer and the core's poles both give 4
 /// growing closed-loop poles, but the core's open loop counts 1 growing pole where
@@ -1078,9 +1084,7 @@ fn deterministic_runner(cases: u32) -> TestRunner {
 /// find the loop oscillating — never "on the edge of oscillation".
 #[test]
 fn seven_stages_with_a_slow_growing_open_loop_pole_are_called_oscillating_by_both_counts() {
-    let drawn = domain_gen::draw(9630419160814350791);
-    let doc = halfrail::doc::load(&drawn.doc.to_string()).unwrap();
-    let (_, l) = doc.stability().unwrap();
+    let l = drawn_loop(9630419160814350791);
     assert_eq!(l.poles_growing, 4, "faer's QZ finds 4 growing closed-loop poles");
     assert!(!l.stable);
     assert!(matches!(l.verdict, Verdict::Oscillates { .. }));
@@ -1310,8 +1314,7 @@ fn when_no_change_keeps_the_gain_the_helper_says_so() {
 fn a_fast_pole_beyond_the_nodes_estimate_is_not_called_growing() {
     let tally = LoopTally::default();
     loop_case(1592590474, &tally).unwrap();
-    let doc = halfrail::doc::load(&domain_gen::draw(1592590474).doc.to_string()).unwrap();
-    let (_, l) = doc.stability().unwrap();
+    let l = drawn_loop(1592590474);
     assert_eq!(l.poles_growing, 0, "{:?}", l.poles);
     assert!(l.stable);
 }
@@ -1325,8 +1328,7 @@ fn a_fast_pole_beyond_the_nodes_estimate_is_not_called_growing() {
 fn growing_open_loop_poles_found_by_their_own_band_alone_are_kept() {
     let tally = LoopTally::default();
     loop_case(1592590759, &tally).unwrap();
-    let doc = halfrail::doc::load(&domain_gen::draw(1592590759).doc.to_string()).unwrap();
-    let (_, l) = doc.stability().unwrap();
+    let l = drawn_loop(1592590759);
     let n = l.nyquist.expect("a count");
     assert_eq!((n.open_growing, n.growing, l.poles_growing), (2, 4, 4));
 }

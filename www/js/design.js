@@ -172,7 +172,7 @@ HR.design = (() => {
     // design's result is shown instead if nothing was yet. `stale(why, rendered)` marks
     // what is on show as not for the draft ('error'; null when it is). `compute` may
     // answer {pending: why} while part of it computes elsewhere (in the background):
-    // nothing is reported, what is on show is marked stale by `why`, and the caller
+    // the error line is cleared, what is on show is marked stale by `why`, and the caller
     // calls again() when the part arrives. `when()` can hold updates back (while a
     // value is being typed in place). A hidden panel does not compute: an edit made
     // meanwhile is computed when it is shown again. Returns {again()}.

@@ -154,17 +154,6 @@ HR.plane = (() => {
     ctx.restore();
   };
 
-  // A ring round canvas point (x, y).
-  const ring = (ctx, x, y, radius, colour) => {
-    ctx.save();
-    ctx.strokeStyle = colour;
-    ctx.lineWidth = 2;
-    ctx.beginPath();
-    ctx.arc(x, y, radius, 0, 2 * Math.PI);
-    ctx.stroke();
-    ctx.restore();
-  };
-
   // Axis labels of a plane: x under the box, y turned along its left side.
   const axisLabels = (ctx, P, xText, yText) => {
     ctx.save();
@@ -177,5 +166,5 @@ HR.plane = (() => {
     ctx.restore();
   };
 
-  return { create, label, cross, ring, axisLabels };
+  return { create, label, cross, ring: HR.plot.ring, axisLabels };
 })();

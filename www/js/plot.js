@@ -189,16 +189,19 @@ HR.plot = (() => {
     ctx.restore();
   };
 
-  // Marks a point with a ring.
-  const marker = (u, ctx, x, y, colour) => {
+  // A ring round canvas point (x, y): a marked point, here and on HR.plane's figures.
+  const ring = (ctx, x, y, radius, colour) => {
     ctx.save();
     ctx.strokeStyle = colour;
     ctx.lineWidth = 2;
     ctx.beginPath();
-    ctx.arc(u.valToPos(x, 'x', true), u.valToPos(y, 'y', true), 6, 0, 2 * Math.PI);
+    ctx.arc(x, y, radius, 0, 2 * Math.PI);
     ctx.stroke();
     ctx.restore();
   };
+
+  // Marks a point (in the plot's values) with a ring.
+  const marker = (u, ctx, x, y, colour) => ring(ctx, u.valToPos(x, 'x', true), u.valToPos(y, 'y', true), 6, colour);
 
   // Text with a halo of the surface colour, so a label reads over grid lines and
   // curves, in the context's fill colour; `width`: the halo's, in the canvas's units
@@ -278,5 +281,5 @@ HR.plot = (() => {
     ctx.restore();
   };
 
-  return { create, draw, band, vband, marker, label, vline, hline, halo, controls, pngButton, css };
+  return { create, draw, band, vband, marker, ring, label, vline, hline, halo, controls, pngButton, css };
 })();

@@ -147,9 +147,8 @@ pub fn natural_frequencies(g: &DMatrix<f64>, c: &DMatrix<f64>) -> Result<Vec<Com
     // that is not there). Any pole the low pass gives beyond its trust (and below
     // the ceiling of poles at infinity) is found again by the ladder, from its height.
     let beyond = low.poles.iter().map(|p| math::norm(p)).filter(|&m| m > low_up_to && m < CEILING * fast).fold(0.0, f64::max);
-    let top = fast.max(beyond);
-    if fast.is_finite() && (top / BAND > low_up_to || beyond > 0.0) {
-        poles = ladder(&g, &c, &low, low_up_to, top)?.unwrap_or(poles);
+    if fast.is_finite() && (fast / BAND > low_up_to || beyond > 0.0) {
+        poles = ladder(&g, &c, &low, low_up_to, fast.max(beyond))?.unwrap_or(poles);
     }
     // Far above the fastest node: the rounding of poles at infinity (C singular, two of
     // them as a defective pair: ±6·10¹⁷ rad/s beside a fastest pole of 1.9·10¹⁰).
