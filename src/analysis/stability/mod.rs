@@ -22,6 +22,7 @@ mod compensate;
 mod margins;
 mod nyquist;
 mod poles;
+mod polish;
 mod return_ratio;
 mod step;
 
