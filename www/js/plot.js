@@ -206,6 +206,15 @@ HR.plot = (() => {
     return wrap.uplot;
   };
 
+  // A y range (spec.y.range) that takes in the data and the given levels (the 0 dB or
+  // −180° line a figure is read against), padded as uPlot pads.
+  const including = (...levels) => (u, lo, hi) => {
+    const all = [lo, hi, ...levels].filter(HR.known);
+    if (!all.length) return [0, 1];
+    const [a, b] = [Math.min(...all), Math.max(...all)];
+    return uPlot.rangeNum(a, b === a ? a + 1 : b, 0.1, true);
+  };
+
   // Fills a horizontal band between two y values (e.g. a linear window).
   const band = (u, ctx, low, high, colour) => {
     const top = u.valToPos(high, 'y', true);
@@ -308,5 +317,5 @@ HR.plot = (() => {
     ctx.restore();
   };
 
-  return { create, draw, band, vband, marker, ring, label, vline, hline, halo, controls, pngButton, css };
+  return { create, draw, including, band, vband, marker, ring, label, vline, hline, halo, controls, pngButton, css };
 })();

@@ -148,13 +148,8 @@
     ctx.restore();
   };
 
-  // A y range that takes in the data and the given levels, padded as uPlot pads.
-  const including = (...levels) => (u, lo, hi) => {
-    const all = [lo, hi, ...levels].filter(known);
-    if (!all.length) return [0, 1];
-    const [a, b] = [Math.min(...all), Math.max(...all)];
-    return uPlot.rangeNum(a, b === a ? a + 1 : b, 0.1, true);
-  };
+  // A y range that takes in the data and the given levels (HR.plot's).
+  const { including } = HR.plot;
 
   HR.panel({
     id: 'loop',
