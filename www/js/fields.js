@@ -27,6 +27,12 @@
 //       on: 'change'    commits on Enter or on leaving the field, and Escape puts the
 //                       design's value back (default: on every edit)
 // Selects and ticks have no place for an error: one naming them stays with the panel.
+//
+//   HR.bind.widget(path, {value, commit, ...opts}) → the same
+//
+// is that field over a store of the panel's own (Bench's conversions, kept in
+// HR.store and no part of the design or its undo): `value()` and `commit(value)` are
+// required, and `path` is the name the core's errors give it, for HR.bind.route.
 
 HR.bind = (() => {
   const { el, field, choice } = HR.ui;
@@ -47,14 +53,11 @@ HR.bind = (() => {
     return v;
   };
 
-  const bind = (section, key, opts = {}) => {
-    const { label, hint, rows, id, aria, attrs = {}, options, fallback = '', tick, compact, origin = section, on = 'input' } = opts;
-    const path = `${section}.${key}`;
-    const value = opts.value || (() => at(section, key));
+  const widget = (path, opts) => {
+    const { label, hint, rows, id, aria, attrs = {}, options, fallback = '', tick, compact, value, commit, on = 'input' } = opts;
     const read = opts.read || (options ? (t) => t : trim);
     const write = opts.write || text;
-    const commit = opts.commit || ((v) => HR.design.set(section, key, v, origin));
-    // Whether a text already stands for the design's value (as typed, or as written).
+    // Whether a text already stands for the stored value (as typed, or as written).
     const showing = (t) => same(read(t), read(write(value())));
 
     let wrap;
@@ -99,6 +102,13 @@ HR.bind = (() => {
     return binding;
   };
 
+  const bind = (section, key, opts = {}) => {
+    const { origin = section } = opts;
+    return widget(`${section}.${key}`, { ...opts,
+      value: opts.value || (() => at(section, key)),
+      commit: opts.commit || ((v) => HR.design.set(section, key, v, origin)) });
+  };
+
   // The bound fields within `scope`: those on the page, so a field removed is gone.
   const within = (scope) => [...scope.querySelectorAll('input, textarea, select')].map((n) => bindings.get(n)).filter(Boolean);
 
@@ -121,5 +131,6 @@ HR.bind = (() => {
   HR.design.onChange(() => within(document).forEach((b) => b.sync()));
 
   bind.route = route;
+  bind.widget = widget;
   return bind;
 })();

@@ -50,27 +50,47 @@ HR.plot = (() => {
       if (c) c.toBlob((blob) => HR.ui.download(`${file}.png`, blob));
     } }, 'PNG');
 
-  // create(container, {title, x: {label, unit}, y: {label, unit, range}, series: [{label, unit, opts}],
-  //   logX, height, decorate(u, ctx)}) → {setData([xs, ...ys]), node}
-  // `y.range(u, dataMin, dataMax)` → [min, max] sets the y range (uPlot's own scale option).
+  // create(container, {title, file, x: {label, unit, legend, categories}, y: {label, unit, range, values},
+  //   series: [{label, unit, opts}], logX, height, decorate(u, ctx)}) → {setData([xs, ...ys]), node}
+  // `y.range(u, dataMin, dataMax)` → [min, max] sets the y range (uPlot's own scale option);
+  // `y.values(ticks, increment)` → the tick labels, where engineering notation does not
+  // suit (a level in dBm). `x.legend`: the x's name in the legend (default: its label).
   // A series' `opts` are uPlot series options laid over the defaults (stroke, dash,
-  // spanGaps, points, paths: () => null for points alone).
+  // spanGaps, points, paths: () => null for points alone). `file`: the PNG's name.
+  //
+  // `x.categories`: the x values given to setData are names (a chain's nodes, named by
+  // their blocks), drawn at 0, 1, 2… with each name under its point, cut to the room it
+  // has. Such a plot is read by hovering: nothing to zoom or pan along names.
   const create = (container, spec) => {
     const wrap = el('figure', { class: 'plot' }, el('figcaption', {}, spec.title));
     container.append(wrap);
+    const cats = Boolean(spec.x.categories);
+    let names = []; // the category axis's names, as last given
+    const cut = (u, text) => {
+      const room = Math.max(4, Math.floor(u.bbox.width / devicePixelRatio / Math.max(1, names.length) / 7));
+      return text.length > room ? `${text.slice(0, room - 1)}…` : text;
+    };
+    const xAxis = cats
+      ? { ...axis(spec.x.label, spec.x.unit), splits: () => names.map((_, i) => i), values: (u, splits) => splits.map((i) => cut(u, names[i] || '')) }
+      : axis(spec.x.label, spec.x.unit, spec.logX);
+    const yAxis = spec.y.values
+      ? { ...axis(spec.y.label, spec.y.unit), values: (u, ticks, i, space, incr) => spec.y.values(ticks, incr) }
+      : axis(spec.y.label, spec.y.unit);
+    const xScale = cats ? { time: false, range: (u, lo, hi) => [lo - 0.3, hi + 0.3] } : spec.logX ? { time: false, distr: 3, log: 10 } : { time: false };
     const opts = {
       width: Math.max(320, wrap.clientWidth || 560),
       height: spec.height || 300,
-      scales: { x: spec.logX ? { time: false, distr: 3, log: 10 } : { time: false }, y: spec.y.range ? { range: spec.y.range } : {} },
-      axes: [axis(spec.x.label, spec.x.unit, spec.logX), axis(spec.y.label, spec.y.unit)],
-      cursor: {
+      scales: { x: xScale, y: spec.y.range ? { range: spec.y.range } : {} },
+      axes: [xAxis, yAxis],
+      cursor: cats ? { drag: { x: false, y: false } } : {
         drag: { x: true, y: true },
         // Shift-drag pans instead of selecting a zoom box.
         bind: { mousedown: (u, target, handler) => (e) => { if (!e.shiftKey) handler(e); return null; } },
       },
       legend: { live: true },
       series: [
-        { label: spec.x.label, value: (u, v) => (v === null || v === undefined ? '—' : HR.fmt(v, spec.x.unit || '', 4)) },
+        { label: spec.x.legend || spec.x.label,
+          value: (u, v) => (v === null || v === undefined ? '—' : cats ? names[v] || '—' : HR.fmt(v, spec.x.unit || '', 4)) },
         ...spec.series.map((s, i) => ({
           label: s.label,
           stroke: css(PALETTE[i % PALETTE.length]),
@@ -100,34 +120,41 @@ HR.plot = (() => {
       const centre = lo + (hi - lo) * at;
       setX(centre - (centre - lo) * factor, centre + (hi - centre) * factor);
     };
-    let dragFrom = null;
-    wrap.addEventListener('mousedown', (e) => { if (chart && e.shiftKey) dragFrom = { x: e.clientX, range: range() }; });
-    window.addEventListener('mousemove', (e) => {
-      if (!dragFrom) return;
-      const [lo, hi] = dragFrom.range;
-      const d = -((e.clientX - dragFrom.x) / chart.over.clientWidth) * (hi - lo);
-      setX(lo + d, hi + d);
-    });
-    window.addEventListener('mouseup', () => { dragFrom = null; });
-    wrap.tabIndex = 0;
-    wrap.setAttribute('aria-label', `${spec.title}. Arrow keys pan, + and − zoom, 0 resets.`);
-    // The wheel zooms about the cursor (0…1 across the plot); the keys about the middle.
-    controls(wrap, {
-      ready: () => Boolean(chart),
-      zoom: (factor, e) => {
-        if (!e) { zoom(factor); return; }
-        const box = chart.over.getBoundingClientRect();
-        zoom(factor, Math.min(1, Math.max(0, (e.clientX - box.left) / box.width)));
-      },
-      pan: (fx) => pan(fx),
-      reset: () => setX(toAxis(chart.data[0][0]), toAxis(chart.data[0][chart.data[0].length - 1])),
-    });
+    if (!cats) {
+      let dragFrom = null;
+      wrap.addEventListener('mousedown', (e) => { if (chart && e.shiftKey) dragFrom = { x: e.clientX, range: range() }; });
+      window.addEventListener('mousemove', (e) => {
+        if (!dragFrom) return;
+        const [lo, hi] = dragFrom.range;
+        const d = -((e.clientX - dragFrom.x) / chart.over.clientWidth) * (hi - lo);
+        setX(lo + d, hi + d);
+      });
+      window.addEventListener('mouseup', () => { dragFrom = null; });
+      wrap.tabIndex = 0;
+      wrap.setAttribute('aria-label', `${spec.title}. Arrow keys pan, + and − zoom, 0 resets.`);
+      // The wheel zooms about the cursor (0…1 across the plot); the keys about the middle.
+      controls(wrap, {
+        ready: () => Boolean(chart),
+        zoom: (factor, e) => {
+          if (!e) { zoom(factor); return; }
+          const box = chart.over.getBoundingClientRect();
+          zoom(factor, Math.min(1, Math.max(0, (e.clientX - box.left) / box.width)));
+        },
+        pan: (fx) => pan(fx),
+        reset: () => setX(toAxis(chart.data[0][0]), toAxis(chart.data[0][chart.data[0].length - 1])),
+      });
+    }
     new ResizeObserver(resize).observe(wrap);
     wrap.querySelector('figcaption').append(' ', pngButton(spec.title, spec.file || 'plot', () => wrap.querySelector('canvas')));
+    // On a category axis, names as x become their places 0, 1, 2….
+    const placed = (d) => (cats && d ? [d[0].map((_, i) => i), ...d.slice(1)] : d);
     return {
       node: wrap,
       // `ref`: the reference design's [xs, ...ys] for the first series, or null.
-      setData(data, ref = null) { chart = draw(chart, wrap, opts, data, ref, spec.logX); },
+      setData(data, ref = null) {
+        if (cats) names = data[0];
+        chart = draw(chart, wrap, opts, placed(data), placed(ref), spec.logX);
+      },
     };
   };
 
@@ -177,6 +204,15 @@ HR.plot = (() => {
       stroke: muted, width: 1.5, dash: i % 2 ? [2, 3] : [6, 4], fill: undefined, points: { ...s.points, stroke: muted, fill: muted } }));
     wrap.uplot = new uPlot({ ...opts, width: Math.max(320, wrap.clientWidth || opts.width), series: [...opts.series, ...twins] }, all, wrap);
     return wrap.uplot;
+  };
+
+  // A y range (spec.y.range) that takes in the data and the given levels (the 0 dB or
+  // −180° line a figure is read against), padded as uPlot pads.
+  const including = (...levels) => (u, lo, hi) => {
+    const all = [lo, hi, ...levels].filter(HR.known);
+    if (!all.length) return [0, 1];
+    const [a, b] = [Math.min(...all), Math.max(...all)];
+    return uPlot.rangeNum(a, b === a ? a + 1 : b, 0.1, true);
   };
 
   // Fills a horizontal band between two y values (e.g. a linear window).
@@ -281,5 +317,5 @@ HR.plot = (() => {
     ctx.restore();
   };
 
-  return { create, draw, band, vband, marker, ring, label, vline, hline, halo, controls, pngButton, css };
+  return { create, draw, including, band, vband, marker, ring, label, vline, hline, halo, controls, pngButton, css };
 })();

@@ -3,7 +3,7 @@
 // Every figure is computed by the core; this file only lays out and routes errors.
 
 (() => {
-  const { el, card, field, choice, table, fillRows } = HR.ui;
+  const { el, card, table, fillRows } = HR.ui;
 
   const DEFAULTS = {
     level: '-30 dBm', at: '50 Ω',
@@ -13,20 +13,17 @@
   };
 
   // A card whose output follows its inputs. `inputs` lists the controls:
-  // {key, label, hint, options?, errorField}. `compute(state)` calls the core and
-  // returns {ok} or {error}; `render(ok)` fills `output`. On an error the reason
-  // goes beside the input it names and the last good output stays, marked stale.
+  // {key, label, hint, options?, errorField}, each the page's field widget
+  // (HR.bind.widget) over `state`, kept as typed; `errorField` is the name the core's
+  // errors give it. `compute(state)` calls the core and returns {ok} or {error};
+  // `render(ok)` fills `output`. On an error the reason goes beside the input it names
+  // (else beside the first) and the last good output stays, marked stale.
   const liveCard = ({ title, intro, inputs, output, compute, render, state, save, wide = false }) => {
-    const controls = inputs.map((spec) => {
-      if (spec.options) {
-        const c = choice({ label: spec.label, options: spec.options, value: state[spec.key],
-          onChange: (v) => { state[spec.key] = v; save(); update(); } });
-        return { ...spec, ...c, setError: () => {} };
-      }
-      const f = field({ label: spec.label, value: state[spec.key], hint: spec.hint,
-        onInput: (v) => { state[spec.key] = v; save(); update(); } });
-      return { ...spec, ...f };
-    });
+    const controls = inputs.map((spec) => HR.bind.widget(spec.errorField || spec.key, {
+      label: spec.label, hint: spec.hint, options: spec.options, read: (t) => t,
+      value: () => state[spec.key],
+      commit: (v) => { state[spec.key] = v; save(); update(); },
+    }));
     const staleNote = el('p', { class: 'stale-note', hidden: true }, 'Showing the last valid result.');
     // The inputs that last gave a result, kept across reloads so a bad edit never
     // leaves the card empty.
@@ -35,11 +32,9 @@
     let rendered = false;
     const update = () => {
       const result = compute(state);
-      controls.forEach((c) => c.setError(null));
+      const at = HR.bind.route(node, result.error || null);
       if (result.error) {
-        const target = controls.find((c) => c.errorField === result.error.field && !c.options)
-          || controls.find((c) => !c.options);
-        target.setError(result.error.reason);
+        if (!at) controls.find((c) => c.errors).show(result.error.reason);
         const good = state.good[title];
         if (!rendered && good) {
           const last = compute({ ...state, ...good });

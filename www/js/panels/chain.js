@@ -69,58 +69,28 @@
   const spanOf = (s, i) => (Array.isArray(s.blocks) ? s.blocks : [i, i]);
   const spanText = ([a, b]) => (a === b ? String(a + 1) : `${a + 1}–${b + 1}`);
 
-  // The level diagram: a uPlot of the levels at each node, the x axis labelled by the
-  // blocks' names (HR.plot's axes are numeric; this one is by node), styled and
-  // exported as HR.plot's are.
+  // The level diagram: the levels at each node on HR.plot's category x axis, the nodes
+  // named by the blocks they follow.
   const SERIES = [
     ['Signal', '--plot-1', {}], ['Noise', '--plot-2', {}],
     ['Output 1 dB compression', '--plot-3', { dash: [6, 4] }], ['Output intercept (OIP3)', '--plot-4', { dash: [2, 4] }],
   ];
   const levelPlot = (container) => {
-    const wrap = el('figure', { class: 'plot chain-levels' }, el('figcaption', {}, 'Levels along the chain'));
-    container.append(wrap);
-    let names = [];
-    const axisStyle = () => ({ stroke: css('--ink'), grid: { stroke: css('--line'), width: 1 }, ticks: { stroke: css('--line') } });
-    // Names cut to the room each node has on the axis.
-    const cut = (u, text) => {
-      const room = Math.max(4, Math.floor(u.bbox.width / devicePixelRatio / Math.max(1, names.length) / 7));
-      return text.length > room ? `${text.slice(0, room - 1)}…` : text;
-    };
-    const opts = {
-      width: Math.max(320, wrap.clientWidth || 560),
-      height: 320,
-      scales: { x: { time: false, range: (u, lo, hi) => [lo - 0.3, hi + 0.3] } },
-      axes: [
-        { ...axisStyle(), label: 'Node (after each block)', size: 56,
-          splits: () => names.map((_, i) => i), values: (u, splits) => splits.map((i) => cut(u, names[i] || '')) },
-        { ...axisStyle(), label: 'Level (dBm)', size: 56, values: (u, ticks, i, space, incr) => ticks.map((v) => fixed(v, incr < 1 ? 1 : 0)) },
-      ],
-      cursor: { drag: { x: false, y: false } },
-      legend: { live: true },
-      series: [
-        { label: 'Node', value: (u, v) => (v === null || v === undefined ? '—' : names[v] || '—') },
-        ...SERIES.map(([label, colour, extra]) => ({
-          label, stroke: css(colour), width: 2, points: { show: true, size: 7, fill: css(colour) },
-          value: (u, v) => dbm(v), ...extra,
-        })),
-      ],
-    };
-    let chart = null;
-    new ResizeObserver(() => chart && chart.setSize({ width: Math.max(320, wrap.clientWidth), height: opts.height })).observe(wrap);
-    const png = el('button', { type: 'button', class: 'small', 'aria-label': 'Save “Levels along the chain” as PNG', onclick: () => {
-      const canvas = wrap.querySelector('canvas');
-      if (canvas) canvas.toBlob((blob) => HR.ui.download('halfrail-chain-levels.png', blob));
-    } }, 'PNG');
-    wrap.querySelector('figcaption').append(' ', png);
+    const plot = HR.plot.create(container, {
+      title: 'Levels along the chain', file: 'halfrail-chain-levels', height: 320,
+      x: { label: 'Node (after each block)', legend: 'Node', categories: true },
+      y: { label: 'Level', unit: 'dBm', values: (ticks, incr) => ticks.map((v) => fixed(v, incr < 1 ? 1 : 0)) },
+      series: SERIES.map(([label, colour, extra]) => ({ label, unit: 'dBm',
+        opts: { stroke: css(colour), points: { show: true, size: 7, fill: css(colour) }, ...extra } })),
+    });
+    plot.node.classList.add('chain-levels');
     return {
-      node: wrap,
-      // `labels`: the nodes' names; `data`: [x, ...the series' values]; `ref`: the
-      // reference's, or null.
-      setData(labels, data, ref = null) {
-        names = labels;
-        wrap.dataset.series = SERIES.map(([label]) => label).join('|');
-        wrap.dataset.nodes = String(labels.length);
-        chart = HR.plot.draw(chart, wrap, opts, data, ref);
+      node: plot.node,
+      // `data`: [the nodes' names, ...the series' values]; `ref`: the reference's, or null.
+      setData(data, ref = null) {
+        plot.node.dataset.series = SERIES.map(([label]) => label).join('|');
+        plot.node.dataset.nodes = String(data[0].length);
+        plot.setData(data, ref);
       },
     };
   };
@@ -370,12 +340,12 @@
         }
 
         // Node 0 is the chain's input (the signal and kT0·B); node n is after block n.
-        const levels = (x) => [[0, ...x.stages.map((_, i) => i + 1)],
+        const levels = (x) => [['input', ...x.stages.map((s) => s.name)],
           [x.input_dbm, ...x.stages.map((s) => s.signal_dbm)],
           [x.input_noise_dbm, ...x.stages.map((s) => s.noise_dbm)],
           [null, ...x.stages.map((s) => s.op1db_dbm)],
           [null, ...x.stages.map((s) => s.oip3_dbm)]];
-        plot.setData(['input', ...r.stages.map((s) => s.name)], levels(r), ref && levels(ref));
+        plot.setData(levels(r), ref && levels(ref));
         plotNote.textContent = 'Node 0 is the chain’s input, where the noise is kT₀B. The compression and intercept levels start at the first block that has them (pads and filters distort nothing); where the signal comes within a few dB of the compression level, that node has little headroom.';
         syncRows();
       };

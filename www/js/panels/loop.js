@@ -115,12 +115,15 @@
   // ---- Bode-plot annotations (uPlot decorations) -----------------------------------
 
   // A vertical span from y0 to y1 at x, with an arrowhead at y1 and a label: a margin.
+  // Solid, whatever dash uPlot left on the context (a reference's dashed twin is drawn
+  // last, and uPlot does not reset its dash before the draw hooks).
   const span = (u, ctx, x, y0, y1, colour, text) => {
     if (!known(x) || x < u.scales.x.min || x > u.scales.x.max) return;
     const dpr = devicePixelRatio;
     const px = u.valToPos(x, 'x', true);
     const [p0, p1] = [u.valToPos(y0, 'y', true), u.valToPos(y1, 'y', true)];
     ctx.save();
+    ctx.setLineDash([]);
     ctx.strokeStyle = colour;
     ctx.fillStyle = colour;
     ctx.lineWidth = 2 * dpr;
@@ -140,21 +143,13 @@
     ctx.font = `bold ${12 * dpr}px sans-serif`;
     const right = px < u.bbox.left + u.bbox.width * 0.75;
     ctx.textAlign = right ? 'left' : 'right';
-    ctx.lineWidth = 3 * dpr;
-    ctx.strokeStyle = css('--surface');
     const ty = Math.min(Math.max((p0 + p1) / 2 + 4 * dpr, u.bbox.top + 40 * dpr), u.bbox.top + u.bbox.height - 6 * dpr);
-    ctx.strokeText(text, px + (right ? 7 : -7) * dpr, ty);
-    ctx.fillText(text, px + (right ? 7 : -7) * dpr, ty);
+    HR.plot.halo(ctx, text, px + (right ? 7 : -7) * dpr, ty);
     ctx.restore();
   };
 
-  // A y range that takes in the data and the given levels, padded as uPlot pads.
-  const including = (...levels) => (u, lo, hi) => {
-    const all = [lo, hi, ...levels].filter(known);
-    if (!all.length) return [0, 1];
-    const [a, b] = [Math.min(...all), Math.max(...all)];
-    return uPlot.rangeNum(a, b === a ? a + 1 : b, 0.1, true);
-  };
+  // A y range that takes in the data and the given levels (HR.plot's).
+  const { including } = HR.plot;
 
   HR.panel({
     id: 'loop',

@@ -87,13 +87,8 @@
   // Whether a spectrum bin is a harmonic: its frequency is a whole multiple of f.
   const isHarmonic = (x, f) => Math.abs(x / f - Math.round(x / f)) < 1e-6;
 
-  // A y range that takes in the data and the given levels, padded as uPlot pads.
-  const including = (...levels) => (u, lo, hi) => {
-    const all = [lo, hi, ...levels].filter(known);
-    if (!all.length) return [0, 1];
-    const [a, b] = [Math.min(...all), Math.max(...all)];
-    return uPlot.rangeNum(a, b === a ? a + 1 : b, 0.1, true);
-  };
+  // A y range that takes in the data and the given levels (HR.plot's).
+  const { including } = HR.plot;
 
 
   HR.panel({
