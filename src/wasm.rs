@@ -233,6 +233,15 @@ pub fn loop_report(text: &str) -> Result<JsValue, JsValue> {
     })
 }
 
+/// The design's health, for the line every panel shows: the findings, the
+/// gravest first, and whether the figures mean nothing (the stage oscillates).
+#[wasm_bindgen]
+pub fn health(text: &str) -> Result<JsValue, JsValue> {
+    let document = doc::load(text).map_err(thrown)?;
+    let health = document.health().map_err(thrown)?;
+    to_js(&wire::HealthOut::from(&health))
+}
+
 /// The Swing panel's figures: the large-signal analysis at f_design and the
 /// document's input level. Long (hundreds of milliseconds): the page runs it in a
 /// worker, and `progress` is called with the fraction done now and then.

@@ -3,6 +3,7 @@
 mod bias;
 pub mod design;
 mod fit;
+pub mod health;
 mod response;
 pub mod spread;
 pub mod stability;

@@ -49,12 +49,14 @@ pub fn run(args: Args) -> Result<String, Failure> {
         },
         _ => (None, None),
     };
+    let health = document.health_of(&bias, small_signal.as_ref().map(|((response, stability), _)| (response, stability)));
     let report = AnalyzeReport {
         bias: BiasReport { bias: &bias, curve: &curve },
         ac: small_signal.as_ref().map(|((response, _), _)| AcReport(response)),
         stability: small_signal.as_ref().map(|((_, stability), suggestions)| LoopSummary(stability, Some(suggestions))),
         large: large.as_ref().map(LargeSummary),
         large_withheld: withheld.as_deref(),
+        health: (&health).into(),
     };
     Ok(format!("{}\n", to_json(&report)))
 }

@@ -82,6 +82,22 @@ impl Document {
         self.sweep()?.stability(&part, &stage)
     }
 
+    /// The design's health: its bias, and its loop and response when the document
+    /// asks for a sweep (`analysis::health`).
+    pub fn health(&self) -> Result<crate::analysis::health::Health> {
+        let bias = self.bias()?;
+        let small_signal = match self.analysis {
+            Some(_) => Some(self.stability()?),
+            None => None,
+        };
+        Ok(self.health_of(&bias, small_signal.as_ref().map(|(r, l)| (r, l))))
+    }
+
+    /// The health from analyses already run (the CLI's `analyze` has them).
+    pub fn health_of(&self, bias: &crate::analysis::Bias, small_signal: Option<(&crate::analysis::Response, &crate::analysis::stability::Loop)>) -> crate::analysis::health::Health {
+        crate::analysis::health::health(bias, small_signal, self.target.as_ref().and_then(|t| t.pm_min_deg))
+    }
+
     /// The phase margin the compensation helper aims for: the target's `pm_min_deg`,
     /// else 60°.
     pub fn wanted_margin_deg(&self) -> f64 {

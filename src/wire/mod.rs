@@ -7,6 +7,7 @@
 mod results;
 mod chain;
 mod design;
+mod health;
 mod sheet;
 mod spread;
 mod stability;
@@ -14,6 +15,7 @@ mod swing;
 
 pub use chain::{stage_block_from, ChainReport, StageBlock};
 pub use design::DesignReport;
+pub use health::{FindingOut, HealthOut};
 pub use results::{
     AcReport, AnalyzeReport, BiasOut, BiasReport, CurveOut, DocumentSummary, FieldErrorOut, FitOut, LevelsOut, LookupReport, MismatchOut, NearestReport, PartOut, PartReport,
     PresetsOut, RatioPairsOut, ResponseReport, SeriesFacts, ValueInUnit,

@@ -334,6 +334,8 @@ pub struct AnalyzeReport<'a> {
     /// Why `large` is null for a stage that has a source and an `analysis`
     /// section: its loop grows by itself, so large-signal figures mean nothing.
     pub large_withheld: Option<&'a str>,
+    /// What must be known before trusting any figure above, the gravest first.
+    pub health: super::HealthOut<'a>,
 }
 
 /// A part in the document's own keys, so a fitted part can be pasted into a design.
