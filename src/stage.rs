@@ -6,7 +6,7 @@
 //! is not fitted is absent; a coupling capacitor that is not fitted, or a series
 //! resistor of 0 Ω, is a short (its two nodes are one).
 
-use crate::engine::{first_floating, Element, Netlist, Node, PathKind};
+use crate::engine::{floating, Element, Netlist, Node, PathKind};
 use crate::error::{FieldError, Result};
 use crate::part::{InverterLaw, Part};
 
@@ -230,7 +230,12 @@ pub fn build_run(part: &Part, law: &InverterLaw, c: &Components, copies: usize) 
     between(&mut n, c, Component::LoadOhm, output, Node::GROUND, &str::to_string);
     between(&mut n, c, Component::LoadF, output, Node::GROUND, &str::to_string);
     let (input, a, gates, outputs, b) = first.expect("at least one copy");
-    if let Some(node) = first_floating(&n, PathKind::Dc) {
+    let floating: Vec<Node> = floating(&n, PathKind::Dc).collect();
+    if let Some(&node) = floating.first() {
+        // The first gate named before any other node left floating with it: the
+        // feedback resistor is what holds it (the node between C in and R in floats
+        // with it, and is no help to name).
+        let node = if floating.contains(&gates[0]) { gates[0] } else { node };
         return Err(floating_error(&n, node, &gates));
     }
     let nodes = StageNodes { emf, input, a, gates, outputs, b, output };

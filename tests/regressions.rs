@@ -151,6 +151,18 @@ fn whole_number_fields_take_what_a_person_types() {
 }
 
 #[test]
+fn deleting_the_feedback_resistor_is_refused_at_it() {
+    // With C in fitted, the node between C in and R in floats with the gate; the gate
+    // is named (what holds it is R fb), not the node `a` first in the netlist.
+    let mut doc = base();
+    doc["stage"].as_object_mut().unwrap().remove("r_fb_ohm");
+    let d = load(&doc.to_string()).unwrap();
+    let e = d.bias().unwrap_err();
+    assert_eq!(e.field, "stage.r_fb_ohm", "{e}");
+    assert!(e.reason.contains("no DC path") && e.reason.contains("feedback resistor"), "{e}");
+}
+
+#[test]
 fn an_engine_error_is_placed_in_the_document() {
     use halfrail::session::located;
     use halfrail::FieldError;

@@ -18,5 +18,5 @@ pub use lu::{ComplexLu, RealLu};
 pub use dc::{operating_point, DcSystem, Method, OperatingPoint};
 pub use mna::{Layout, GMIN};
 pub use netlist::{DeviceState, Element, Named, Netlist, Node, Transconductor};
-pub use topology::{first_floating, PathKind};
+pub use topology::{first_floating, floating, PathKind};
 pub use transient::Transient;

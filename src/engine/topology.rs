@@ -33,6 +33,12 @@ pub enum PathKind {
 
 /// The first node with no path to ground through elements that define a voltage.
 pub fn first_floating(netlist: &Netlist, kind: PathKind) -> Option<Node> {
+    floating(netlist, kind).next()
+}
+
+/// Every node with no path to ground through elements that define a voltage, in
+/// order.
+pub fn floating(netlist: &Netlist, kind: PathKind) -> impl Iterator<Item = Node> {
     let mut groups = Groups((0..netlist.node_count()).collect());
     for named in netlist.elements() {
         match named.element {
@@ -46,5 +52,5 @@ pub fn first_floating(netlist: &Netlist, kind: PathKind) -> Option<Node> {
         }
     }
     let ground = groups.root(0);
-    (1..netlist.node_count()).map(Node).find(|n| groups.root(n.0) != ground)
+    (1..netlist.node_count()).map(Node).filter(move |n| groups.root(n.0) != ground)
 }
