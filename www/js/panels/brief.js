@@ -11,15 +11,17 @@
   // The fields: [key of `analysis`, label, hint]. The words are those of the core's
   // catalogue of document fields (src/doc/fields.rs); once the page can ask the core
   // for them, they come from there by path.
+  // Laid out in pairs: each row two that belong together.
   const FREQUENCIES = [
     ['f_design_hz', 'Design frequency', 'Hz, e.g. 10.7 MHz'],
+    ['points_per_decade', 'Points per decade', 'default 50'],
     ['f_start_hz', 'Sweep from', 'Hz, default 10 Hz'],
     ['f_stop_hz', 'Sweep up to', 'Hz, default 1 GHz'],
-    ['points_per_decade', 'Points per decade', 'default 50'],
   ];
   const PORTS = [
     ['z0_ohm', 'Reference impedance z0', 'Ω, default 50'],
-    ['input_dbm', 'Input level (dBm available from the source)', 'One tone at f_design, e.g. −40 dBm; empty for −30 dBm.'],
+    // The Swing panel names its field of the same key in full.
+    ['input_dbm', 'Input level', 'dBm available from the source: one tone at f_design, e.g. −40 dBm; empty for −30 dBm'],
     ['noise_f_low_hz', 'Noise band from', 'Hz, with the band’s upper end; both empty: no band'],
     ['noise_f_high_hz', 'Noise band up to', 'Hz, with the band’s lower end'],
   ];
@@ -27,8 +29,8 @@
   const idOf = (key) => `brief-${key.replace(/_/g, '-')}`;
 
   const FIGURES = [
-    ['gain', 'Gain at the design frequency'], ['sweep', 'Sweep'], ['sparams', 'Two-port at z0 (S11, S21)'],
-    ['band_noise', 'Output noise in the noise band'],
+    ['gain', 'Gain at the design frequency'], ['sparams', 'Two-port at z0 (S11, S21)'], ['band_noise', 'Output noise in the noise band'],
+    ['sweep', 'Swept from … to'], ['points', 'Frequencies swept'],
   ];
 
   HR.panel({
@@ -52,17 +54,17 @@
       named.classList.add('wide');
       const where = card('Frequencies',
         el('p', { class: 'intro' }, 'Where the stage is designed and judged, and the range every plot and figure is swept over (the design frequency must lie within it).'),
-        el('div', { class: 'grid-fields' }, analysis(FREQUENCIES)));
+        el('div', { class: 'grid-fields pairs' }, analysis(FREQUENCIES)));
       const ports = card('Reference, level and noise band',
         el('p', { class: 'intro' }, 'The impedance the S-parameters are referred to, the level of the large-signal tone (the Swing panel’s), and the band the output noise is added up over.'),
-        el('div', { class: 'grid-fields' }, analysis(PORTS)));
+        el('div', { class: 'grid-fields pairs' }, analysis(PORTS)));
 
       const cells = {};
       const readout = el('dl', { class: 'readout roomy' }, FIGURES.map(([k, label]) => {
         cells[k] = el('dd', { 'data-key': k }, '—');
         return el('div', {}, el('dt', {}, label), cells[k]);
       }));
-      const problem = el('p', { class: 'error', 'aria-live': 'polite' });
+      const problem = el('p', { class: 'error', 'aria-live': 'polite', hidden: true });
       const stale = el('p', { class: 'stale-note', hidden: true }, 'Showing the last valid result.');
       const gives = card('What these settings give', problem, stale, readout);
       gives.classList.add('wide');
@@ -73,7 +75,8 @@
         const d = r.design;
         const f = r.f_hz.filter(known);
         cells.gain.textContent = `${db(d.gain_db)} at ${fmt(r.f_design_hz, 'Hz', 4)}`;
-        cells.sweep.textContent = f.length ? `${f.length} points, ${fmt(f[0], 'Hz', 3)} … ${fmt(f[f.length - 1], 'Hz', 3)}` : '—';
+        cells.sweep.textContent = f.length ? `${fmt(f[0], 'Hz', 3)} … ${fmt(f[f.length - 1], 'Hz', 3)}` : '—';
+        cells.points.textContent = String(f.length);
         cells.sparams.textContent = `${db(d.s11_db)}, ${db(d.s21_db)}`;
         cells.band_noise.textContent = known(d.integrated_noise_v) ? fmt(d.integrated_noise_v, 'Vrms', 3) : 'no noise band set';
       };
@@ -84,7 +87,11 @@
       HR.design.follow(container, {
         compute: (text) => HR.call('responseReport', text),
         render,
-        report: (error, field) => { problem.textContent = error && !field ? error.message || error.reason : ''; },
+        // What no field here takes (a bad value of another panel's) is said above the figures.
+        report: (error, field) => {
+          problem.textContent = error && !field ? error.message || error.reason : '';
+          problem.hidden = !problem.textContent;
+        },
         stale: (why, rendered) => {
           readout.classList.toggle('stale', Boolean(why));
           stale.hidden = !(why && rendered);
