@@ -210,17 +210,15 @@ HR.documents = (() => {
   // embedded link's design stays in the address (the frame keeps no design of its own).
   const tail = embed ? `&embed${view ? '=view' : ''}${linked ? `&${linked}` : ''}` : '';
 
-  // The header's title: the design's, or a prompt to name it; either opens the Brief.
+  // The header's title: the design's, or that it has none (the Brief panel names it).
+  // Text, not a link: the Design bar stays the first thing Tab reaches.
   const headerTitle = () => {
-    const a = document.getElementById('design-title');
+    const node = document.getElementById('design-title');
     const sync = () => {
       const t = String(HR.design.section('title') || '').trim();
-      a.textContent = t || 'Untitled design';
-      a.classList.toggle('untitled', !t);
-      a.title = t ? 'The design’s title and analysis settings (Brief)' : 'Give the design a title (Brief)';
+      node.textContent = t || 'Untitled design';
+      node.classList.toggle('untitled', !t);
     };
-    a.href = `#brief${tail}`;
-    a.addEventListener('click', (e) => { e.preventDefault(); HR.goTo('brief', `#${HR.brief.idOf('title')}`); });
     HR.design.onChange(sync);
     sync();
   };
