@@ -99,6 +99,15 @@ test('a bad value is said beside its field in words, the last good design stays,
   assert.match(await errorOf(page, 'Noise band up to'), /must be >/);
   await undoButton(page).click();
   await page.waitForFunction(() => document.getElementById('brief-noise-f-high-hz').getAttribute('aria-invalid') === 'false');
+  // A bad value no field here holds (the part's supply, typed on the Part panel) is said
+  // above the figures, which stay the last good design's.
+  await page.locator('#rail a[href="#part"]').click();
+  await page.locator('#panel-part').getByLabel('Supply', { exact: true }).fill('-3');
+  await page.locator('#rail a[href="#brief"]').click();
+  await page.waitForFunction(() => document.querySelector('#panel-brief p.error').textContent !== '');
+  assert.equal(await brief(page).locator('p.error').isVisible(), true);
+  assert.match(await brief(page).locator('p.error').textContent(), /must be > 0/);
+  assert.equal(await figure(page, 'brief', 'gain'), gain);
   assert.deepEqual(seen.errors, []);
   await page.close();
 });
