@@ -1,4 +1,4 @@
-// Accessibility of every panel (Part, Stage, Response, Loop, Swing, Spread, Chain,
+// Accessibility of every panel (Brief, Part, Stage, Response, Loop, Swing, Spread, Chain,
 // Bench) in the light and the dark theme, in Chromium from file://:
 // - every input, select, textarea, button, link and focusable figure has an accessible
 //   name — Chromium's own (the accessibility tree, read through the DevTools protocol);
@@ -24,7 +24,7 @@ let browser;
 before(async () => { browser = await launch(); await clearStorage(browser.context); });
 after(async () => { await browser.close(); });
 
-const PANELS = ['part', 'stage', 'response', 'loop', 'swing', 'spread', 'chain', 'bench'];
+const PANELS = ['brief', 'part', 'stage', 'response', 'loop', 'swing', 'spread', 'chain', 'bench'];
 
 // In the page: marks the interactive elements of `root` (data-ax = an index) and audits
 // what shows — contrast of text, the unfocused look of each control, raw numbers.

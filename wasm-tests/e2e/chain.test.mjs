@@ -249,7 +249,8 @@ test('the level diagram has its series; the CSV has one row per block, as the CL
   const downloaded = page.waitForEvent('download');
   await panel(page).getByRole('button', { name: 'Save as CSV' }).click();
   const file = await downloaded;
-  assert.equal(file.suggestedFilename(), 'halfrail-chain.csv');
+  // Named from the design's title (the demo's), as every file the page saves.
+  assert.equal(file.suggestedFilename(), 'Demo-10.7-MHz-IF-gain-block-for-a-small-lab-receiver-chain.csv');
   const lines = fs.readFileSync(await file.path(), 'utf8').trimEnd().split('\r\n');
   const keys = ['gain_db', 'nf_db', 'noise_temp_k', 'iip3_dbm', 'oip3_dbm', 'ip1db_dbm', 'signal_dbm', 'noise_dbm', 'snr_db', 'headroom_db', 'noise_share', 'distortion_share'];
   assert.equal(lines[0], ['block', 'name', ...keys].join(','));
@@ -267,7 +268,7 @@ test('the level diagram has its series; the CSV has one row per block, as the CL
   });
   const png = page.waitForEvent('download');
   await plot.getByRole('button', { name: 'Save “Levels along the chain” as PNG' }).click();
-  assert.equal((await png).suggestedFilename(), 'halfrail-chain-levels.png');
+  assert.equal((await png).suggestedFilename(), 'Demo-10.7-MHz-IF-gain-block-for-a-small-lab-receiver-chain-levels.png');
   assert.deepEqual(seen.errors, []);
   assert.deepEqual(seen.requests, []);
   await page.close();

@@ -432,7 +432,7 @@ test('the read-only view shows the design and its figures with nothing to edit',
   // Only Save, Copy link and Print sheet in the Design bar.
   assert.deepEqual(await frame.locator('#docbar button').allTextContents(), ['Save', 'Copy link', 'Print sheet']);
   // Every panel, once shown: no input takes typing, no edit control shows.
-  for (const id of ['part', 'stage', 'loop', 'swing', 'spread', 'chain', 'bench', 'response']) {
+  for (const id of ['brief', 'part', 'stage', 'loop', 'swing', 'spread', 'chain', 'bench', 'response']) {
     await frame.locator(`#rail a[data-panel="${id}"]`).click();
     // Each panel's first figures (the Bench panel computes only on demand).
     await frame.locator(id === 'bench' ? '#panel-bench' : `#panel-${id}[data-computed]`).waitFor();

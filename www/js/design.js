@@ -118,6 +118,15 @@ HR.design = (() => {
     set(section, key, value, origin) {
       if (remember(`edit ${section}.${key}`, `${section}.${key}`)) put(section, { [key]: value }, origin);
     },
+    // Sets a key of the document itself (`title`, `notes`) as typed, as `set` does a
+    // section's; an empty text removes it.
+    setTop(key, value, origin) {
+      if (!remember(`edit ${key}`, key)) return;
+      if (value === '' || value === null || value === undefined) delete draft[key];
+      else draft[key] = value;
+      save();
+      notify(origin);
+    },
     // Sets several fields of one section as one step: one undo takes them all back.
     setMany(section, values, label, origin) {
       if (remember(label, null)) put(section, values, origin);

@@ -69,12 +69,17 @@ HR.documents = (() => {
     take(text, file.name, `open “${file.name}”`);
   };
 
-  // The file name from the document's title, else `design`.
-  const fileName = () => {
+  // The start of a saved file's name from the document's title: letters, digits, `.`,
+  // `_` and `-` kept, every other run one `-`, at most 80 characters; '' with no title.
+  const stem = () => {
     const t = String(HR.design.section('title') || '').normalize('NFKC');
-    const stem = t.replace(/[^\p{L}\p{N}._-]+/gu, '-').slice(0, 80).replace(/^[-.]+|[-.]+$/g, '');
-    return `${stem || 'design'}.halfrail.json`;
+    return t.replace(/[^\p{L}\p{N}._-]+/gu, '-').slice(0, 80).replace(/^[-.]+|[-.]+$/g, '');
   };
+  // The design file's name from the title, else `design`.
+  const fileName = () => `${stem() || 'design'}.halfrail.json`;
+  // The name of what else the page saves (`sweep`, `csv`): `<title>-sweep.csv`, or
+  // `halfrail-sweep.csv` for a design without a title.
+  const named = (what, ext) => `${stem() || 'halfrail'}-${what}.${ext}`;
   const save = () => {
     const text = HR.design.text();
     const name = fileName();
@@ -205,8 +210,23 @@ HR.documents = (() => {
   // embedded link's design stays in the address (the frame keeps no design of its own).
   const tail = embed ? `&embed${view ? '=view' : ''}${linked ? `&${linked}` : ''}` : '';
 
+  // The header's title: the design's, or that it has none (the Brief panel names it).
+  // Text, not a link: the Design bar stays the first thing Tab reaches.
+  const headerTitle = () => {
+    const node = document.getElementById('design-title');
+    const sync = () => {
+      const t = String(HR.design.section('title') || '').trim();
+      node.textContent = t || 'Untitled design';
+      node.classList.toggle('untitled', !t);
+    };
+    HR.design.onChange(sync);
+    sync();
+  };
+
   return {
     tail,
+    named,
+    stem,
     // The link to the draft: address(extra, say) above (the design sheet prints it).
     link: address,
     // The stored (or linked) design, the Design bar, and embed mode; before the first panel.
@@ -217,6 +237,7 @@ HR.documents = (() => {
       HR.design.start({ persist: !(embed && linked) && !view });
       if (embed) HR.embed.start(view);
       bar();
+      headerTitle();
       dropping();
       const lost = HR.design.recovered();
       if (lost.length) {

@@ -43,11 +43,14 @@ HR.plot = (() => {
     });
   };
 
-  // A button that saves the figure's canvas (`canvas()`, null: nothing drawn) as `file`.png.
+  // A button that saves the figure's canvas (`canvas()`, null: nothing drawn) as a PNG
+  // named from the design's title and `file` (`halfrail-gain` → `<title>-gain.png`,
+  // or `halfrail-gain.png` without a title: HR.documents.named).
   const pngButton = (title, file, canvas) => el('button', { type: 'button', class: 'small', 'aria-label': `Save “${title}” as PNG`,
     onclick: () => {
       const c = canvas();
-      if (c) c.toBlob((blob) => HR.ui.download(`${file}.png`, blob));
+      const name = HR.documents.named(file.replace(/^halfrail-/, ''), 'png');
+      if (c) c.toBlob((blob) => HR.ui.download(name, blob));
     } }, 'PNG');
 
   // create(container, {title, file, x: {label, unit, legend, categories}, y: {label, unit, range, values},

@@ -259,6 +259,19 @@ HR.sheet = (() => {
     window.print();
   };
   window.addEventListener('beforeprint', () => { if (document.documentElement.dataset.ready) build(source()); });
+  // While printing, the page's title is what a PDF of the sheet is saved as: named from
+  // the design's title as the other files are (HR.documents.named), or as before
+  // without one.
+  let pageTitle = null;
+  window.addEventListener('beforeprint', () => {
+    if (pageTitle !== null || !HR.documents.stem()) return;
+    pageTitle = document.title;
+    document.title = `${HR.documents.stem()}-sheet`;
+  });
+  window.addEventListener('afterprint', () => {
+    if (pageTitle !== null) document.title = pageTitle;
+    pageTitle = null;
+  });
 
   // Whether the kept link is of the design as it is now (a test waits for it).
   const linkIsCurrent = () => link.text === HR.design.text();

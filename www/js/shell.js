@@ -4,7 +4,7 @@
 
 (() => {
   const { el } = HR.ui;
-  const ORDER = ['part', 'stage', 'response', 'loop', 'swing', 'spread', 'chain', 'bench'];
+  const ORDER = ['brief', 'part', 'stage', 'response', 'loop', 'swing', 'spread', 'chain', 'bench'];
   const DEFAULT_PANEL = 'part';
   const mounted = new Map();
 
@@ -35,6 +35,20 @@
     document.title = `${panelById(id).title} — Halfrail`;
     HR.store.set('ui', { panel: id });
     if (focus) main.focus({ preventScroll: true });
+  };
+
+  // Shows panel `id` and gives the focus to its element `selector` (a message on one
+  // panel that sends the user to a field on another); the address follows, so Back
+  // returns.
+  HR.goTo = (id, selector) => {
+    if (!panelById(id)) return;
+    history.pushState(null, '', `#${id}${HR.documents.tail}`);
+    show(id);
+    const target = selector && document.querySelector(`#panel-${id} ${selector}`);
+    if (target) {
+      target.focus({ preventScroll: true });
+      target.scrollIntoView({ block: 'center' });
+    }
   };
 
   const buildRail = () => {

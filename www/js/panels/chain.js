@@ -289,7 +289,7 @@
       const csv = el('button', { type: 'button', disabled: true, onclick: () => {
         // The core's CSV of the budget on show (the same as `halfrail chain --csv`).
         const r = lastArgs && HR.call('chainCsv', ...lastArgs);
-        if (r && r.ok !== undefined) HR.ui.download('halfrail-chain.csv', new Blob([r.ok], { type: 'text/csv' }));
+        if (r && r.ok !== undefined) HR.ui.download(HR.documents.named('chain', 'csv'), new Blob([r.ok], { type: 'text/csv' }));
       } }, 'Save as CSV');
       const afterCard = card('After each block', el('div', { class: 'scroll' }, after.node), el('div', { class: 'actions' }, csv),
         el('p', { class: 'plot-note' }, 'Headroom: the output 1 dB compression level less the signal there. Noise share: the block’s part of the chain’s excess noise (F − 1); distortion share: its part of 1/IIP3.'));

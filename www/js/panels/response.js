@@ -28,7 +28,7 @@
       figures.classList.add('wide');
       const csv = el('button', { type: 'button', onclick: () => {
         const r = HR.call('sweepCsv', HR.design.text());
-        if (r.ok !== undefined) HR.ui.download('halfrail-sweep.csv', new Blob([r.ok], { type: 'text/csv' }));
+        if (r.ok !== undefined) HR.ui.download(HR.documents.named('sweep', 'csv'), new Blob([r.ok], { type: 'text/csv' }));
       } }, 'Save the sweep as CSV');
       const plotsCard = card('Against frequency', el('p', { class: 'intro' },
         'Dashed lines mark the design frequency and the band edges. Hover for values; drag to zoom, shift-drag (or the arrow keys on a focused plot) to pan, Ctrl+wheel or +/− to zoom about the cursor, double-click (or 0) to reset.'),
@@ -71,7 +71,7 @@
           rl: r.return_loss_db === null ? '—' : fmt(r.return_loss_db, 'dB'),
           nf: d.nf_db === null ? 'needs a source resistance' : fmt(d.nf_db, 'dB'),
           en: `${fmt(d.noise_in_v_per_rthz, 'V', 3)}/√Hz`,
-          band_noise: d.integrated_noise_v === null ? 'set analysis.noise_f_low_hz and noise_f_high_hz' : fmt(d.integrated_noise_v, 'Vrms', 3),
+          band_noise: d.integrated_noise_v === null ? 'no noise band: set one in the Brief panel' : fmt(d.integrated_noise_v, 'Vrms', 3),
           mu: `${HR.fixed(d.mu, 3)} ${d.mu > 1 ? '(unconditionally stable)' : '(some source or load can make it oscillate)'}`,
         };
       };

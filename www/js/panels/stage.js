@@ -93,7 +93,9 @@
       const target = HR.design.value('target', 'gain_db', 'dB');
       const top = d.candidates[0];
       warn.hidden = d.feasible;
-      warn.textContent = d.feasible ? '' : `This part cannot reach ${db(target)} at f_design (${HR.fmt(HR.design.value('analysis', 'f_design_hz', 'Hz'), 'Hz', 4)}): its open-loop gain there allows at most ${db(d.ceiling_db)}. The nearest target it can meet is ${db(d.ceiling_db)}; or lower f_design, or take a faster part.`;
+      // `lower f_design` takes the user to the field that does it (the Brief panel).
+      const toDesignFrequency = el('a', { href: `#brief${HR.documents.tail}`, onclick: (e) => { e.preventDefault(); HR.goTo('brief', `#${HR.brief.idOf('f_design_hz')}`); } }, 'lower f_design');
+      warn.replaceChildren(...(d.feasible ? [] : [`This part cannot reach ${db(target)} at f_design (${HR.fmt(HR.design.value('analysis', 'f_design_hz', 'Hz'), 'Hz', 4)}): its open-loop gain there allows at most ${db(d.ceiling_db)}. The nearest target it can meet is ${db(d.ceiling_db)}; or `, toDesignFrequency, ', or take a faster part.']));
       best.textContent = top ? `Best ${series} pair: R in ${rkm(top.r_in_ohm)}, R fb ${rfb(top)}, giving ${db(top.gain_db)}.${known(d.continuous_r_fb_ohm) ? ` Exact values: R in ${HR.fmt(d.continuous_r_in_ohm, 'Ω', 4)}, R fb ${HR.fmt(d.continuous_r_fb_ohm, 'Ω', 4)}.` : ''}${top.notes.length ? ` Note: ${top.notes.join('; ')}.` : ''}${top.stable ? '' : ' No pair in range gives a stable loop: compensate the loop (Loop panel) or take fewer stages.'}` : `No ${series} pair comes near the target.`;
       const bh = d.by_hand;
       const rows = [[`By hand: the ideal ratio (−R fb/R in = the gain; for a power gain with the source divider), in ${series}`, rkm(bh.r_in_ohm), rfb(bh), db(bh.gain_db), off(bh.error_db)]];

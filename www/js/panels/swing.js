@@ -110,7 +110,7 @@
       const now = el('button', { type: 'button', onclick: () => follower.start() }, 'Compute now');
       const csv = el('button', { type: 'button', disabled: true, onclick: () => {
         const r = shownText === null ? { error: true } : HR.call('waveCsv', shownText);
-        if (r.ok !== undefined) HR.ui.download('halfrail-wave.csv', new Blob([r.ok], { type: 'text/csv' }));
+        if (r.ok !== undefined) HR.ui.download(HR.documents.named('wave', 'csv'), new Blob([r.ok], { type: 'text/csv' }));
       } }, 'Save the waveform as CSV');
       const timing = el('p', { class: 'run-note' }, 'The analysis simulates the stage in time at many signal levels, so it runs in the background, with a progress bar.');
       const problem = el('p', { class: 'error', 'aria-live': 'polite', hidden: true });
