@@ -9,6 +9,7 @@ mod dc;
 mod lu;
 mod mna;
 mod netlist;
+mod periodic;
 mod topology;
 mod transient;
 

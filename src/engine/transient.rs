@@ -42,10 +42,10 @@ const THEVENIN_ABOVE_S: f64 = 1e3;
 
 /// A capacitor stamped as a branch: its nodes' unknowns and its value.
 #[derive(Debug, Clone, Copy)]
-struct Large {
-    a: Option<usize>,
-    b: Option<usize>,
-    farads: f64,
+pub(super) struct Large {
+    pub(super) a: Option<usize>,
+    pub(super) b: Option<usize>,
+    pub(super) farads: f64,
 }
 
 /// A circuit prepared for time-domain runs with one voltage source driven.
@@ -55,24 +55,24 @@ pub struct Transient<'a> {
     /// The capacitors' stamps, and each capacitor alone (to take the large ones out).
     c: DMatrix<f64>,
     capacitors: Vec<Large>,
-    b: DVector<f64>,
-    devices: Vec<DeviceSlot<'a>>,
+    pub(super) b: DVector<f64>,
+    pub(super) devices: Vec<DeviceSlot<'a>>,
     /// The branch row of the driven source.
-    driven: usize,
+    pub(super) driven: usize,
 }
 
 /// The matrices of one run: the large capacitors as branches after the circuit's
 /// own unknowns.
-struct Companion {
-    large: Vec<Large>,
+pub(super) struct Companion {
+    pub(super) large: Vec<Large>,
     /// C of the small capacitors, bordered with zeros to the run's size.
-    c: DMatrix<f64>,
+    pub(super) c: DMatrix<f64>,
     euler: DMatrix<f64>,
-    gear: DMatrix<f64>,
+    pub(super) gear: DMatrix<f64>,
 }
 
 impl Companion {
-    fn new(t: &Transient, h: f64) -> Self {
+    pub(super) fn new(t: &Transient, h: f64) -> Self {
         let n = t.layout.size;
         let large: Vec<Large> = t.capacitors.iter().copied().filter(|c| c.farads / h > THEVENIN_ABOVE_S).collect();
         let size = n + large.len();
@@ -207,7 +207,7 @@ impl<'a> Transient<'a> {
 
     /// Newton on one step's system `a`·x − i(x) = `rhs` from `x`, in place; true
     /// when it converged (the tests of the DC solve, `MAX_ITERATIONS` at most).
-    fn newton(&self, a: &DMatrix<f64>, rhs: &DVector<f64>, x: &mut DVector<f64>, s: &mut Scratch) -> bool {
+    pub(super) fn newton(&self, a: &DMatrix<f64>, rhs: &DVector<f64>, x: &mut DVector<f64>, s: &mut Scratch) -> bool {
         for iteration in 0..MAX_ITERATIONS {
             evaluate_into(a, rhs, &self.devices, x, 1.0, &mut s.residual, &mut s.jacobian);
             // The imbalance is judged at the point the step starts from,
@@ -288,15 +288,15 @@ impl<'a> Transient<'a> {
 const SUBSTEPS: &[usize] = &[4, 16, 64];
 
 /// The buffers of Newton on a system of one size.
-struct Scratch {
-    residual: DVector<f64>,
-    jacobian: DMatrix<f64>,
+pub(super) struct Scratch {
+    pub(super) residual: DVector<f64>,
+    pub(super) jacobian: DMatrix<f64>,
     step: DVector<f64>,
     lu: RealLu,
 }
 
 impl Scratch {
-    fn new(size: usize) -> Self {
+    pub(super) fn new(size: usize) -> Self {
         Scratch { residual: DVector::zeros(size), jacobian: DMatrix::zeros(size, size), step: DVector::zeros(size), lu: RealLu::default() }
     }
 }

@@ -26,7 +26,7 @@ pub use drive::{available_dbm, emf_amplitude, emf_at, power_dbm, Record, Tone, I
 pub use figures::{compression, intercept, one_tone, rail_level_dbm, small_signal_gt_db, Compression, Intercept, Level, ToneResult, TwoTone, COMPRESSION_LEVELS, SLOPE_TOLERANCE, THD_HARMONICS};
 pub use series::PowerSeries;
 pub use spectrum::amplitudes;
-pub use wave::{QuasiStatic, TimeDomain, Wave, Waveforms};
+pub use wave::{QuasiStatic, Steady, TimeDomain, Wave, Waveforms};
 
 use crate::error::{FieldError, Result};
 use crate::part::Part;

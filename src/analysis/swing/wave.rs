@@ -133,15 +133,21 @@ impl Waveforms for TimeDomain {
     }
 
     fn run(&self, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave> {
-        // Start on the linearised steady state of the tones (each a cosine from
-        // t = 0): the coupling capacitors are then already charged as the signal
-        // wants, and only the nonlinearity and the integrator have to settle.
-        // A level the linearisation swings past the rails may leave Newton
-        // nothing to converge from in a part of many stages (a start volts beyond
-        // a rail): then the run starts again on that steady state scaled down
-        // until every inverter output starts between the rails. The unscaled
-        // start goes first: it charges the coupling capacitors as the signal
-        // wants, and a small level is never scaled.
+        self.from_linearised(tones, |x0, progress| self.run_from(x0, tones, record, progress), progress)
+    }
+}
+
+impl TimeDomain {
+    /// `run` from the linearised steady state of the tones (each a cosine from
+    /// t = 0): the coupling capacitors are then already charged as the signal
+    /// wants, and only the nonlinearity and the integrator have to settle.
+    /// A level the linearisation swings past the rails may leave Newton
+    /// nothing to converge from in a part of many stages (a start volts beyond
+    /// a rail): then the run starts again on that steady state scaled down
+    /// until every inverter output starts between the rails. The unscaled
+    /// start goes first: it charges the coupling capacitors as the signal
+    /// wants, and a small level is never scaled.
+    fn from_linearised<T>(&self, tones: &[Tone], run: impl Fn(&DVector<f64>, &mut dyn FnMut(f64)) -> Result<T>, progress: &mut dyn FnMut(f64)) -> Result<T> {
         let mut signal = DVector::zeros(self.op.x.len());
         let mut peak = vec![0.0; self.circuit.nodes.outputs.len()];
         for tone in tones {
@@ -156,8 +162,8 @@ impl Waveforms for TimeDomain {
             let headroom = v.min(self.vdd - v).max(0.0);
             if p > headroom { s.min(headroom / p) } else { s }
         });
-        match self.run_from(&(&self.op.x + &signal), tones, record, progress) {
-            Err(e) if e.field == "circuit" && scale < 1.0 => self.run_from(&(&self.op.x + signal * scale), tones, record, progress),
+        match run(&(&self.op.x + &signal), progress) {
+            Err(e) if e.field == "circuit" && scale < 1.0 => run(&(&self.op.x + signal * scale), progress),
             done => done,
         }
     }
@@ -180,6 +186,69 @@ impl TimeDomain {
             }
             true
         })?;
+        Ok(wave)
+    }
+}
+
+/// The stage's periodic steady state under one tone, by shooting on the transient's
+/// own steps (`Transient::periodic`): what `TimeDomain` reaches once every slow time
+/// constant has died away, the coupling capacitors' DC shift under drive included.
+pub struct Steady<'a>(pub &'a TimeDomain);
+
+impl TimeDomain {
+    /// The same stage, as its periodic steady state.
+    pub fn steady(&self) -> Steady<'_> {
+        Steady(self)
+    }
+}
+
+impl Waveforms for Steady<'_> {
+    fn small_signal_gain(&self, f_hz: f64) -> Result<f64> {
+        self.0.gain_to_output(f_hz)
+    }
+
+    /// One tone only: the record is the settled period repeated (it is exactly
+    /// periodic); several tones are refused (their common period is the record's
+    /// whole length, for which the transient is the cheaper way).
+    fn run(&self, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave> {
+        let [tone] = tones else {
+            return Err(FieldError::new("circuit", "the periodic steady state takes one tone"));
+        };
+        let td = self.0;
+        let per_cycle = (record.samples as f64 * record.resolution_hz / tone.f_hz).round() as usize;
+        if per_cycle < 2 || record.samples % per_cycle != 0 {
+            return Err(FieldError::new("circuit", "the record does not hold whole periods of the tone"));
+        }
+        let h = record.step_s();
+        let transient = Transient::new(&td.circuit.netlist, td.circuit.source)?;
+        // Shooting starts from two periods of the transient from the linearised
+        // steady state (the transient crosses a hard step in sub-steps, where
+        // Newton from the linearised state can fail): the part's own poles have
+        // settled, and the shooting takes the slow rest.
+        let warm = 2 * per_cycle;
+        let (before, start) = td.from_linearised(
+            tones,
+            |x0, _| {
+                let (mut before, mut start) = (x0.clone(), x0.clone());
+                transient.run(x0, h, warm, |t| emf_at(tones, t), |k, _, x| {
+                    if k + 1 == warm {
+                        before.copy_from(x);
+                    } else if k == warm {
+                        start.copy_from(x);
+                    }
+                    true
+                })?;
+                Ok((before, start))
+            },
+            progress,
+        )?;
+        let period = transient.periodic(&before, &start, h, per_cycle, |t| emf_at(tones, t))?;
+        progress(1.0);
+        let mut wave = Wave::with_capacity(record.samples);
+        for j in 1..=record.samples {
+            let x = &period[(j - 1) % per_cycle];
+            wave.push(j as f64 * h, |node| transient.layout.voltage(x, node), &td.circuit.nodes);
+        }
         Ok(wave)
     }
 }

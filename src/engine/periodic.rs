@@ -1,0 +1,157 @@
+//! The periodic steady state of a driven circuit by shooting (Aprille and Trick,
+//! "Steady-state analysis of nonlinear circuits with periodic inputs", Proc. IEEE
+//! 60, 1972; from memory): Newton on the state at the start of a period, so that
+//! one period of the transient's own steps (BDF2 on the same companion stamps, the
+//! same device evaluation and LU) ends where it began. The Jacobian of that map
+//! (the monodromy matrix) is carried along the period from each step's factors.
+//!
+//! Shooting rather than harmonic balance: the transient's integrator, stamps and
+//! Newton are reused as they are (a harmonic balance would need the circuit in the
+//! frequency domain and an FFT per iteration), and its answer is the transient's
+//! own record once settled — what the transient reaches after every slow time
+//! constant has died away (a coupling capacitor into megohms: thousands of
+//! periods), here in a few periods' work. The state is the pair (x₋₁, x₀), since
+//! BDF2 reaches back two steps.
+
+use nalgebra::{DMatrix, DVector};
+
+use super::lu::RealLu;
+use super::mna::evaluate_into;
+use super::transient::{Companion, Scratch, Transient};
+use crate::error::{FieldError, Result};
+
+/// Newton iterations of the shooting at most (it converges in two to five).
+const MAX_SHOTS: usize = 25;
+/// The period closes when no unknown moves by more than this (volts, or amperes
+/// of a large capacitor's branch) plus `CLOSES_REL` of the largest.
+const CLOSES_ABS: f64 = 1e-10;
+const CLOSES_REL: f64 = 1e-9;
+
+/// BDF2's weight on the present step (the companion's α).
+const ALPHA: f64 = 1.5;
+
+impl Transient<'_> {
+    /// The periodic steady state under `drive` (of period `steps`·`h`), started from
+    /// the states `before` (at t = −h) and `start` (t = 0), both laid out as `layout`:
+    /// the circuit's unknowns at t = h, 2h, … , steps·h of the settled period.
+    pub fn periodic(&self, before: &DVector<f64>, start: &DVector<f64>, h: f64, steps: usize, drive: impl Fn(f64) -> f64) -> Result<Vec<DVector<f64>>> {
+        let n = self.layout.size;
+        let companion = Companion::new(self, h);
+        let size = n + companion.large.len();
+        let mut state = DVector::zeros(2 * size);
+        state.rows_mut(0, n).copy_from(before);
+        state.rows_mut(size, n).copy_from(start);
+        let mut shot = Shot::new(size, steps);
+        for _ in 0..MAX_SHOTS {
+            self.shoot(&companion, &state, h, &drive, &mut shot)?;
+            // The mismatch of the period's end with its start, and Newton on it:
+            // (M − I)·Δ = −(F(z) − z).
+            let mut mismatch = DVector::zeros(2 * size);
+            mismatch.rows_mut(0, size).copy_from(&(&shot.x[steps - 2] - state.rows(0, size)));
+            mismatch.rows_mut(size, size).copy_from(&(&shot.x[steps - 1] - state.rows(size, size)));
+            let largest = state.amax();
+            if mismatch.amax() <= CLOSES_ABS + CLOSES_REL * largest {
+                return Ok(shot.x.iter().map(|x| x.rows(0, n).into_owned()).collect());
+            }
+            let mut jacobian = shot.monodromy.clone();
+            for i in 0..2 * size {
+                jacobian[(i, i)] -= 1.0;
+            }
+            let Some(lu) = RealLu::of_matrix(&jacobian) else {
+                return Err(FieldError::new("circuit", "the periodic steady state is singular: the circuit has an undamped natural frequency at a harmonic of the drive"));
+            };
+            let step = lu.solve(&(-mismatch));
+            if !step.iter().all(|v| v.is_finite()) {
+                return Err(FieldError::new("circuit", "the periodic steady state did not converge (a step that is not finite)"));
+            }
+            state += step;
+        }
+        Err(FieldError::new("circuit", format!("the periodic steady state did not converge in {MAX_SHOTS} periods")))
+    }
+
+    /// One period from `state` = (x₋₁, x₀): the solution at each step into
+    /// `shot.x`, and ∂(x_{N−1}, x_N)/∂state into `shot.monodromy`.
+    fn shoot(&self, companion: &Companion, state: &DVector<f64>, h: f64, drive: &impl Fn(f64) -> f64, shot: &mut Shot) -> Result<()> {
+        let n = self.layout.size;
+        let size = state.len() / 2;
+        let steps = shot.x.len();
+        let (mut before, mut now) = (state.rows(0, size).into_owned(), state.rows(size, size).into_owned());
+        // Sensitivities of x₋₁ and x₀ to the state: [I 0] and [0 I].
+        let mut s_before = DMatrix::zeros(size, 2 * size);
+        let mut s_now = DMatrix::zeros(size, 2 * size);
+        for i in 0..size {
+            s_before[(i, i)] = 1.0;
+            s_now[(i, size + i)] = 1.0;
+        }
+        let mut scratch = Scratch::new(size);
+        let mut lu = RealLu::default();
+        let mut b = DVector::zeros(size);
+        b.rows_mut(0, n).copy_from(&self.b);
+        let dc_drive = self.b[self.driven];
+        let mut history = DVector::zeros(size);
+        let mut rhs = DVector::zeros(size);
+        let mut s_history = DMatrix::zeros(size, 2 * size);
+        for k in 1..=steps {
+            let t = k as f64 * h;
+            // BDF2 throughout: 2x − x₋/2 is the memory, as in `run`.
+            history.copy_from(&now);
+            history.axpy(-0.5, &before, 2.0);
+            rhs.copy_from(&b);
+            rhs[self.driven] = dc_drive + drive(t);
+            self.memory(companion, &history, h, &mut rhs);
+            // Predicted on the line through the last two points; from the last point
+            // itself when that fails (the prediction overshoots a sharp edge).
+            let mut x = &now * 2.0 - &before;
+            if !self.newton(&companion.gear, &rhs, &mut x, &mut scratch) && {
+                x.copy_from(&now);
+                !self.newton(&companion.gear, &rhs, &mut x, &mut scratch)
+            } {
+                return Err(FieldError::new("circuit", format!("the periodic steady state did not converge at t = {t:.4e} s of the period")));
+            }
+            // J·∂x/∂z = ∂rhs/∂z: the memory's sensitivity through the Jacobian at x.
+            evaluate_into(&companion.gear, &rhs, &self.devices, &x, 1.0, &mut scratch.residual, &mut scratch.jacobian);
+            if !lu.refactor_matrix(&scratch.jacobian) {
+                return Err(FieldError::new("circuit", "the periodic steady state met a singular step"));
+            }
+            s_history.copy_from(&s_now);
+            s_history.zip_apply(&s_before, |a, b| *a = 2.0 * *a - 0.5 * b);
+            let mut s_next = DMatrix::zeros(size, 2 * size);
+            let mut column = DVector::zeros(size);
+            for j in 0..2 * size {
+                column.fill(0.0);
+                self.memory(companion, &s_history.column(j).into_owned(), h, &mut column);
+                s_next.set_column(j, &lu.solve(&column));
+            }
+            std::mem::swap(&mut s_before, &mut s_now);
+            s_now = s_next;
+            before = std::mem::replace(&mut now, x);
+            shot.x[k - 1].copy_from(&now);
+        }
+        shot.monodromy.rows_mut(0, size).copy_from(&s_before);
+        shot.monodromy.rows_mut(size, size).copy_from(&s_now);
+        Ok(())
+    }
+
+    /// Adds the integrator's memory of `history` (2x − x₋/2) to `rhs`: C·history/h
+    /// for the small capacitors, the voltage over α for each large one's branch.
+    fn memory(&self, companion: &Companion, history: &DVector<f64>, h: f64, rhs: &mut DVector<f64>) {
+        let n = self.layout.size;
+        rhs.gemv(1.0 / h, &companion.c, history, 1.0);
+        for (j, cap) in companion.large.iter().enumerate() {
+            let at = |i: Option<usize>| i.map_or(0.0, |i| history[i]);
+            rhs[n + j] += (at(cap.a) - at(cap.b)) / ALPHA;
+        }
+    }
+}
+
+/// One period's solutions and the monodromy matrix.
+struct Shot {
+    x: Vec<DVector<f64>>,
+    monodromy: DMatrix<f64>,
+}
+
+impl Shot {
+    fn new(size: usize, steps: usize) -> Self {
+        Shot { x: vec![DVector::zeros(size); steps], monodromy: DMatrix::zeros(2 * size, 2 * size) }
+    }
+}
