@@ -23,6 +23,7 @@ const SCRIPTS = [
   'js/plane.js',
   'js/compare.js',
   'js/schematic.js',
+  'js/health.js',
   'js/panels/part.js',
   'js/panels/stage.js',
   'js/panels/response.js',
