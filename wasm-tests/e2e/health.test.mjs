@@ -36,15 +36,15 @@ const computed = (page) => page.locator('#health').getAttribute('data-computed')
 const recomputed = (page, n) => page.waitForFunction((m) => Number(document.getElementById('health').dataset.computed) > m, n);
 
 // Shows each panel of the rail in turn (by its link, as a user does) and reads the
-// line there: it is on show, above the panel's title.
+// line there: it is on show, above the panel.
 async function everyPanel(page) {
   const seen = {};
   for (const id of await page.locator('#rail a').evaluateAll((as) => as.map((a) => a.dataset.panel))) {
     await page.locator(`#rail a[data-panel="${id}"]`).click();
     await page.waitForSelector(`#panel-${id}:not([hidden])`);
     assert.equal(await page.locator('#health').isVisible(), true, `the line on ${id}`);
-    const [lineBox, title] = [await page.locator('#health').boundingBox(), await page.locator(`#panel-${id} h1`).boundingBox()];
-    assert.ok(lineBox.y + lineBox.height <= title.y, `the line above ${id}'s title`);
+    const [lineBox, panel] = [await page.locator('#health').boundingBox(), await page.locator(`#panel-${id}`).boundingBox()];
+    assert.ok(lineBox.y + lineBox.height <= panel.y, `the line above the ${id} panel`);
     seen[id] = await line(page);
   }
   return seen;
