@@ -16,6 +16,7 @@ HR.health = (() => {
   const readouts = []; // [{readout, keys, note}] handed over by the panels
   let line = null;
   let report = null; // the last report on show: {void, findings}
+  let shown = null; // its text: an unchanged report leaves the DOM (and a focused link) alone
 
   const link = (topic) => {
     const id = PANEL[topic];
@@ -36,6 +37,9 @@ HR.health = (() => {
 
   const render = (r) => {
     report = r;
+    const text = JSON.stringify(r);
+    if (text === shown) return;
+    shown = text;
     line.dataset.state = r.void ? 'void' : r.findings.length ? 'caution' : 'clear';
     const head = el('span', { class: 'health-head' }, 'Health');
     line.replaceChildren(head, r.findings.length
