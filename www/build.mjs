@@ -24,6 +24,7 @@ const SCRIPTS = [
   'js/compare.js',
   'js/schematic.js',
   'js/panels/brief.js',
+  'js/health.js',
   'js/panels/part.js',
   'js/panels/stage.js',
   'js/panels/response.js',

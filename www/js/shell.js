@@ -70,6 +70,7 @@
     }
     HR.setStatus(`Engine ready · v${HR.version}`);
     await HR.documents.start();
+    HR.health.start();
     const saved = HR.store.get('ui', {});
     const first = requested() || (panelById(saved.panel) ? saved.panel : DEFAULT_PANEL);
     show(first);

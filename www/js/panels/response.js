@@ -24,7 +24,8 @@
       const problem = el('p', { class: 'error', 'aria-live': 'polite' });
       const stale = el('p', { class: 'stale-note', hidden: true }, 'Showing the last valid result.');
       const shares = table('Who makes the output noise at f_design', ['Source', 'Share']);
-      const figures = card('At the design frequency', problem, stale, readout, el('div', { class: 'scroll' }, shares.node));
+      const figures = card('At the design frequency', problem, stale,
+        HR.health.voids(readout, ['gain', 'gt', 'band', 'zin', 'rl', 'nf', 'en', 'band_noise', 'mu']), readout, el('div', { class: 'scroll' }, shares.node));
       figures.classList.add('wide');
       const csv = el('button', { type: 'button', onclick: () => {
         const r = HR.call('sweepCsv', HR.design.text());

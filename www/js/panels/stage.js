@@ -247,7 +247,7 @@
         el('p', { class: 'lede' }, 'The components around the part. Click a value (or Tab to it and press Enter) to change it; leave it empty to take the part out. Values take engineering notation or RKM codes (4k7, 100n).'),
         el('div', { class: 'cards' },
           (() => { const c = card('Schematic', el('div', { class: 'scroll' }, drawing), problem); c.classList.add('wide'); return c; })(),
-          (() => { const c = card('Key figures', stale, readout); c.classList.add('wide'); return c; })(),
+          (() => { const c = card('Key figures', stale, HR.health.voids(readout, ['gain', 'gt', 'band', 'zin', 'rl', 'nf']), readout); c.classList.add('wide'); return c; })(),
           target.node));
 
       HR.design.follow(container, {
