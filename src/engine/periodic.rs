@@ -27,6 +27,10 @@ const MAX_SHOTS: usize = 25;
 const CLOSES_ABS: f64 = 1e-10;
 const CLOSES_REL: f64 = 1e-9;
 
+/// A shot on old factors must cut the mismatch to this fraction of the last, else
+/// the next carries the monodromy again.
+const CHORD_RATE: f64 = 0.25;
+
 /// BDF2's weight on the present step (the companion's α).
 const ALPHA: f64 = 1.5;
 
@@ -42,25 +46,40 @@ impl Transient<'_> {
         state.rows_mut(0, n).copy_from(before);
         state.rows_mut(size, n).copy_from(start);
         let mut shot = Shot::new(size, steps);
+        // The factors of M − I, kept while they keep converging: a shot that also
+        // carries the monodromy costs a solve per unknown per step, so later shots
+        // reuse it (chord Newton) until the mismatch stops falling fast.
+        let mut factors: Option<RealLu> = None;
+        let mut last_mismatch = f64::INFINITY;
         for _ in 0..MAX_SHOTS {
-            self.shoot(&companion, &state, h, &drive, &mut shot)?;
+            let fresh = factors.is_none();
+            self.shoot(&companion, &state, h, &drive, &mut shot, fresh)?;
             // The mismatch of the period's end with its start, and Newton on it:
             // (M − I)·Δ = −(F(z) − z).
             let mut mismatch = DVector::zeros(2 * size);
             mismatch.rows_mut(0, size).copy_from(&(&shot.x[steps - 2] - state.rows(0, size)));
             mismatch.rows_mut(size, size).copy_from(&(&shot.x[steps - 1] - state.rows(size, size)));
-            let largest = state.amax();
-            if mismatch.amax() <= CLOSES_ABS + CLOSES_REL * largest {
+            let size_of = mismatch.amax();
+            if size_of <= CLOSES_ABS + CLOSES_REL * state.amax() {
                 return Ok(shot.x.iter().map(|x| x.rows(0, n).into_owned()).collect());
             }
-            let mut jacobian = shot.monodromy.clone();
-            for i in 0..2 * size {
-                jacobian[(i, i)] -= 1.0;
+            if !fresh && size_of > CHORD_RATE * last_mismatch {
+                // The old factors no longer converge fast: this shot again, carrying M.
+                factors = None;
+                last_mismatch = f64::INFINITY;
+                continue;
             }
-            let Some(lu) = RealLu::of_matrix(&jacobian) else {
-                return Err(FieldError::new("circuit", "the periodic steady state is singular: the circuit has an undamped natural frequency at a harmonic of the drive"));
-            };
-            let step = lu.solve(&(-mismatch));
+            last_mismatch = size_of;
+            if fresh {
+                let mut jacobian = shot.monodromy.clone();
+                for i in 0..2 * size {
+                    jacobian[(i, i)] -= 1.0;
+                }
+                factors = Some(RealLu::of_matrix(&jacobian).ok_or_else(|| {
+                    FieldError::new("circuit", "the periodic steady state is singular: the circuit has an undamped natural frequency at a harmonic of the drive")
+                })?);
+            }
+            let step = factors.as_ref().expect("factored above").solve(&(-mismatch));
             if !step.iter().all(|v| v.is_finite()) {
                 return Err(FieldError::new("circuit", "the periodic steady state did not converge (a step that is not finite)"));
             }
@@ -70,8 +89,8 @@ impl Transient<'_> {
     }
 
     /// One period from `state` = (x₋₁, x₀): the solution at each step into
-    /// `shot.x`, and ∂(x_{N−1}, x_N)/∂state into `shot.monodromy`.
-    fn shoot(&self, companion: &Companion, state: &DVector<f64>, h: f64, drive: &impl Fn(f64) -> f64, shot: &mut Shot) -> Result<()> {
+    /// `shot.x`, and, when `carry`, ∂(x_{N−1}, x_N)/∂state into `shot.monodromy`.
+    fn shoot(&self, companion: &Companion, state: &DVector<f64>, h: f64, drive: &impl Fn(f64) -> f64, shot: &mut Shot, carry: bool) -> Result<()> {
         let n = self.layout.size;
         let size = state.len() / 2;
         let steps = shot.x.len();
@@ -108,27 +127,31 @@ impl Transient<'_> {
             } {
                 return Err(FieldError::new("circuit", format!("the periodic steady state did not converge at t = {t:.4e} s of the period")));
             }
-            // J·∂x/∂z = ∂rhs/∂z: the memory's sensitivity through the Jacobian at x.
-            evaluate_into(&companion.gear, &rhs, &self.devices, &x, 1.0, &mut scratch.residual, &mut scratch.jacobian);
-            if !lu.refactor_matrix(&scratch.jacobian) {
-                return Err(FieldError::new("circuit", "the periodic steady state met a singular step"));
+            if carry {
+                // J·∂x/∂z = ∂rhs/∂z: the memory's sensitivity through the Jacobian at x.
+                evaluate_into(&companion.gear, &rhs, &self.devices, &x, 1.0, &mut scratch.residual, &mut scratch.jacobian);
+                if !lu.refactor_matrix(&scratch.jacobian) {
+                    return Err(FieldError::new("circuit", "the periodic steady state met a singular step"));
+                }
+                s_history.copy_from(&s_now);
+                s_history.zip_apply(&s_before, |a, b| *a = 2.0 * *a - 0.5 * b);
+                let mut s_next = DMatrix::zeros(size, 2 * size);
+                let mut column = DVector::zeros(size);
+                for j in 0..2 * size {
+                    column.fill(0.0);
+                    self.memory(companion, &s_history.column(j).into_owned(), h, &mut column);
+                    s_next.set_column(j, &lu.solve(&column));
+                }
+                std::mem::swap(&mut s_before, &mut s_now);
+                s_now = s_next;
             }
-            s_history.copy_from(&s_now);
-            s_history.zip_apply(&s_before, |a, b| *a = 2.0 * *a - 0.5 * b);
-            let mut s_next = DMatrix::zeros(size, 2 * size);
-            let mut column = DVector::zeros(size);
-            for j in 0..2 * size {
-                column.fill(0.0);
-                self.memory(companion, &s_history.column(j).into_owned(), h, &mut column);
-                s_next.set_column(j, &lu.solve(&column));
-            }
-            std::mem::swap(&mut s_before, &mut s_now);
-            s_now = s_next;
             before = std::mem::replace(&mut now, x);
             shot.x[k - 1].copy_from(&now);
         }
-        shot.monodromy.rows_mut(0, size).copy_from(&s_before);
-        shot.monodromy.rows_mut(size, size).copy_from(&s_now);
+        if carry {
+            shot.monodromy.rows_mut(0, size).copy_from(&s_before);
+            shot.monodromy.rows_mut(size, size).copy_from(&s_now);
+        }
         Ok(())
     }
 
