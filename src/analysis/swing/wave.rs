@@ -193,18 +193,32 @@ impl TimeDomain {
 /// The stage's periodic steady state under one tone, by shooting on the transient's
 /// own steps (`Transient::periodic`): what `TimeDomain` reaches once every slow time
 /// constant has died away, the coupling capacitors' DC shift under drive included.
-pub struct Steady<'a>(pub &'a TimeDomain);
+pub struct Steady<'a> {
+    time: &'a TimeDomain,
+    /// The last tone settled: where the next, at the same frequency and step, starts.
+    last: std::cell::RefCell<Option<Settled>>,
+}
+
+/// A settled tone: its frequency, steps a period and amplitude, and the states at
+/// t = −h and t = 0 of its period.
+struct Settled {
+    f_hz: f64,
+    per_cycle: usize,
+    amplitude: f64,
+    before: DVector<f64>,
+    start: DVector<f64>,
+}
 
 impl TimeDomain {
     /// The same stage, as its periodic steady state.
     pub fn steady(&self) -> Steady<'_> {
-        Steady(self)
+        Steady { time: self, last: std::cell::RefCell::new(None) }
     }
 }
 
 impl Waveforms for Steady<'_> {
     fn small_signal_gain(&self, f_hz: f64) -> Result<f64> {
-        self.0.gain_to_output(f_hz)
+        self.time.gain_to_output(f_hz)
     }
 
     /// One tone only: the record is the settled period repeated (it is exactly
@@ -214,19 +228,52 @@ impl Waveforms for Steady<'_> {
         let [tone] = tones else {
             return Err(FieldError::new("circuit", "the periodic steady state takes one tone"));
         };
-        let td = self.0;
+        let td = self.time;
         let per_cycle = (record.samples as f64 * record.resolution_hz / tone.f_hz).round() as usize;
         if per_cycle < 2 || record.samples % per_cycle != 0 {
             return Err(FieldError::new("circuit", "the record does not hold whole periods of the tone"));
         }
         let h = record.step_s();
         let transient = Transient::new(&td.circuit.netlist, td.circuit.source)?;
-        // Shooting starts from two periods of the transient from the linearised
-        // steady state (the transient crosses a hard step in sub-steps, where
-        // Newton from the linearised state can fail): the part's own poles have
-        // settled, and the shooting takes the slow rest.
-        let warm = 2 * per_cycle;
-        let (before, start) = td.from_linearised(
+        let drive = |t| emf_at(tones, t);
+        // From the last tone settled at this frequency, its swing about the bias scaled
+        // to this amplitude (a compression sweep's next level: no warm-up); else, or
+        // when that does not converge, from two periods of the transient.
+        let scaled = self.last.borrow().as_ref().filter(|s| s.f_hz == tone.f_hz && s.per_cycle == per_cycle && s.amplitude > 0.0).map(|s| {
+            let ratio = tone.amplitude / s.amplitude;
+            (&td.op.x + (&s.before - &td.op.x) * ratio, &td.op.x + (&s.start - &td.op.x) * ratio)
+        });
+        let period = match scaled.map(|(before, start)| transient.periodic(&before, &start, h, per_cycle, drive)) {
+            Some(Ok(period)) => period,
+            _ => {
+                let (before, start) = self.warmed(&transient, tones, h, 2 * per_cycle, progress)?;
+                transient.periodic(&before, &start, h, per_cycle, drive)?
+            }
+        };
+        *self.last.borrow_mut() = Some(Settled {
+            f_hz: tone.f_hz,
+            per_cycle,
+            amplitude: tone.amplitude,
+            before: period[per_cycle - 2].clone(),
+            start: period[per_cycle - 1].clone(),
+        });
+        progress(1.0);
+        let mut wave = Wave::with_capacity(record.samples);
+        for j in 1..=record.samples {
+            let x = &period[(j - 1) % per_cycle];
+            wave.push(j as f64 * h, |node| transient.layout.voltage(x, node), &td.circuit.nodes);
+        }
+        Ok(wave)
+    }
+}
+
+impl Steady<'_> {
+    /// The states at the last two of `warm` steps of the transient from the
+    /// linearised steady state: the transient crosses a hard step in sub-steps, where
+    /// Newton from the linearised state can fail, and the part's own poles settle;
+    /// the shooting takes the slow rest.
+    fn warmed(&self, transient: &Transient, tones: &[Tone], h: f64, warm: usize, progress: &mut dyn FnMut(f64)) -> Result<(DVector<f64>, DVector<f64>)> {
+        self.time.from_linearised(
             tones,
             |x0, _| {
                 let (mut before, mut start) = (x0.clone(), x0.clone());
@@ -241,15 +288,7 @@ impl Waveforms for Steady<'_> {
                 Ok((before, start))
             },
             progress,
-        )?;
-        let period = transient.periodic(&before, &start, h, per_cycle, |t| emf_at(tones, t))?;
-        progress(1.0);
-        let mut wave = Wave::with_capacity(record.samples);
-        for j in 1..=record.samples {
-            let x = &period[(j - 1) % per_cycle];
-            wave.push(j as f64 * h, |node| transient.layout.voltage(x, node), &td.circuit.nodes);
-        }
-        Ok(wave)
+        )
     }
 }
 
