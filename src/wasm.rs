@@ -167,6 +167,13 @@ pub fn demo_document() -> String {
     doc::DEMO.to_string()
 }
 
+/// The document's fields by path (`part.vdd_v`), each with its label, unit and
+/// hint: the words of the page's forms.
+#[wasm_bindgen(js_name = documentFields)]
+pub fn document_fields() -> Result<JsValue, JsValue> {
+    to_js(&wire::FieldsOut)
+}
+
 /// The illustrative part presets, each with its part in document keys.
 #[wasm_bindgen]
 pub fn presets() -> Result<JsValue, JsValue> {
