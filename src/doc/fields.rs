@@ -280,6 +280,27 @@ pub fn of(input: Input) -> &'static Field {
     }
 }
 
+/// The field at `path` (`chain.blocks[2].loss_db`: any index), if the document has one there.
+pub fn at_path(path: &str) -> Option<&'static Field> {
+    let mut general = String::with_capacity(path.len());
+    let mut in_index = false;
+    for c in path.chars() {
+        match c {
+            '[' => in_index = true,
+            ']' => {
+                in_index = false;
+                general.push_str("[]");
+            }
+            _ if in_index => {}
+            _ => general.push(c),
+        }
+    }
+    if in_index {
+        return None;
+    }
+    ALL.iter().copied().find(|f| f.path() == general)
+}
+
 /// `e` with the document path of the input it names, if it names one by what it is.
 pub fn placed(e: FieldError) -> FieldError {
     e.placed(|input| of(input).path())
@@ -308,5 +329,8 @@ mod tests {
         assert_eq!(of(Input::Stage(Component::RFbOhm)).path(), "stage.r_fb_ohm");
         assert_eq!(GAIN_F.path_at(2), "bench.gains[2].f_hz");
         assert_eq!(CHAIN_BLOCKS.path_at(1), "chain.blocks[1]");
+        assert_eq!(at_path("chain.blocks[12].loss_db").map(|f| f.label), Some("Loss"));
+        assert_eq!(at_path("part.vdd_v").map(|f| f.label), Some("Supply"));
+        assert!(at_path("value").is_none() && at_path("chain.blocks[1").is_none());
     }
 }
