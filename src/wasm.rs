@@ -285,8 +285,7 @@ pub fn trap_for_test() {
 #[wasm_bindgen(js_name = spreadTrialCount)]
 pub fn spread_trial_count(text: &str) -> Result<u32, JsValue> {
     let document = doc::load(text).map_err(thrown)?;
-    let tolerance = document.tolerance.ok_or_else(|| thrown(FieldError::new("tolerance", "missing; a spread needs the tolerances")))?;
-    Ok(tolerance.trials)
+    Ok(document.tolerances().map_err(thrown)?.trials)
 }
 
 /// Trials `from..to` of the document's spread, for splitting the Monte Carlo

@@ -138,12 +138,17 @@ impl Document {
         at_field(crate::analysis::design::design(&part, &stage, analysis.f_design_hz, analysis.z0_ohm, &target.to_core()))
     }
 
+    /// The `tolerance` section, which a spread needs.
+    pub fn tolerances(&self) -> Result<&crate::doc::Tolerance> {
+        self.tolerance.as_ref().ok_or_else(|| missing(&F::TOLERANCE, "a spread needs the tolerances"))
+    }
+
     /// Everything a spread needs, read from the document once.
     pub fn spread_plan(&self) -> Result<SpreadPlan> {
         use crate::analysis::spread::{Limits, Setup, Tolerance as Core};
         let (part, stage) = self.part_and_stage()?;
         let analysis = self.sweep()?;
-        let tolerance = self.tolerance.as_ref().ok_or_else(|| missing(&F::TOLERANCE, "a spread needs the tolerances"))?;
+        let tolerance = self.tolerances()?;
         let kind = self.target.as_ref().map_or(crate::analysis::design::GainKind::Voltage, |t| t.to_core().kind);
         at_field(kind.measurable(&stage))?;
         let setup = at_field(Setup::new(&part, &stage, analysis.f_design_hz, (analysis.f_start_hz, analysis.f_stop_hz), analysis.z0_ohm, kind))?;
