@@ -22,6 +22,8 @@
 //! (DEVELOPERS.md has the code map and the rules):
 //!
 //! - [`error`]: [`FieldError`], the one error type: the field at fault and why.
+//! - [`input`]: the inputs the core refuses by name, known by what they are (the
+//!   `doc` layer spells their keys).
 //! - [`math`]: elementary functions that round the same natively and in wasm.
 //! - [`order`]: the core's one sort.
 //! - [`units`]: values as engineers write them — SI prefixes, RKM codes, levels, ratios.
@@ -45,6 +47,7 @@ pub mod engine;
 pub mod math;
 pub mod order;
 pub mod error;
+pub mod input;
 pub mod part;
 pub mod report;
 pub mod session;

@@ -8,46 +8,17 @@
 
 use crate::engine::{floating, Element, Netlist, Node, PathKind};
 use crate::error::{FieldError, Result};
+use crate::input::{Input, Section};
 use crate::part::{InverterLaw, Part};
 
-/// The components of a stage, by their document key.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
-pub enum Component {
-    SourceOhm,
-    ShuntOhm,
-    CInF,
-    RInOhm,
-    RFbOhm,
-    CFbF,
-    ROutOhm,
-    COutF,
-    LoadOhm,
-    LoadF,
-}
-
-/// What a component is, for units, tolerances and drawing.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
-pub enum Role {
-    Resistor,
-    Capacitor,
-}
+pub use crate::input::{Component, Role};
 
 impl Component {
-    pub const ALL: [Component; 10] = [
-        Component::SourceOhm,
-        Component::ShuntOhm,
-        Component::CInF,
-        Component::RInOhm,
-        Component::RFbOhm,
-        Component::CFbF,
-        Component::ROutOhm,
-        Component::COutF,
-        Component::LoadOhm,
-        Component::LoadF,
-    ];
-
-    /// The document key (`r_fb_ohm`).
-    pub fn key(self) -> &'static str {
+    /// The component's element in the circuit, by name (`r_fb_ohm`). The document
+    /// keys a stage's components by these names (`doc::fields` takes them from
+    /// here), so that an engine message naming an element names its field: the one
+    /// document key spelt below `doc`.
+    pub const fn key(self) -> &'static str {
         match self {
             Component::SourceOhm => "source_ohm",
             Component::ShuntOhm => "shunt_ohm",
@@ -64,24 +35,6 @@ impl Component {
 
     pub fn from_key(key: &str) -> Option<Component> {
         Component::ALL.into_iter().find(|c| c.key() == key)
-    }
-
-    pub fn role(self) -> Role {
-        match self {
-            Component::CInF | Component::CFbF | Component::COutF | Component::LoadF => Role::Capacitor,
-            _ => Role::Resistor,
-        }
-    }
-
-    /// Source and load belong to the surroundings, not the stage: they are not
-    /// toleranced and not designed.
-    pub fn is_environment(self) -> bool {
-        matches!(self, Component::SourceOhm | Component::LoadOhm | Component::LoadF)
-    }
-
-    /// Whether 0 is a meaningful value (a short) rather than an error.
-    pub fn zero_is_short(self) -> bool {
-        matches!(self, Component::SourceOhm | Component::RInOhm | Component::ROutOhm)
     }
 }
 
@@ -275,11 +228,11 @@ fn add_part_named(n: &mut Netlist, part: &Part, law: &InverterLaw, g1: Node, nam
 
 fn floating_error(n: &Netlist, node: Node, gates: &[Node]) -> FieldError {
     if node == gates[0] {
-        FieldError::new(
-            "stage.r_fb_ohm",
+        FieldError::of(
+            Input::Stage(Component::RFbOhm),
             "the gate of the first stage has no DC path: fit a feedback resistor (or DC-couple the input)",
         )
     } else {
-        FieldError::new("stage", format!("node `{}` has no DC path to ground", n.node_name(node)))
+        FieldError::of(Input::Section(Section::Stage), format!("node `{}` has no DC path to ground", n.node_name(node)))
     }
 }

@@ -167,6 +167,13 @@ pub fn demo_document() -> String {
     doc::DEMO.to_string()
 }
 
+/// The document's fields by path (`part.vdd_v`), each with its label, unit and
+/// hint: the words of the page's forms.
+#[wasm_bindgen(js_name = documentFields)]
+pub fn document_fields() -> Result<JsValue, JsValue> {
+    to_js(&wire::FieldsOut)
+}
+
 /// The illustrative part presets, each with its part in document keys.
 #[wasm_bindgen]
 pub fn presets() -> Result<JsValue, JsValue> {
@@ -287,8 +294,7 @@ pub fn trap_for_test() {
 #[wasm_bindgen(js_name = spreadTrialCount)]
 pub fn spread_trial_count(text: &str) -> Result<u32, JsValue> {
     let document = doc::load(text).map_err(thrown)?;
-    let tolerance = document.tolerance.ok_or_else(|| thrown(FieldError::new("tolerance", "missing; a spread needs the tolerances")))?;
-    Ok(tolerance.trials)
+    Ok(document.tolerances().map_err(thrown)?.trials)
 }
 
 /// Trials `from..to` of the document's spread, for splitting the Monte Carlo

@@ -8,6 +8,7 @@ use halfrail::analysis::stability::{self, ReturnRatio};
 use halfrail::analysis::{frequencies, response, response_of, Linearised};
 use halfrail::doc::{load, DEMO};
 use halfrail::part::Part;
+use halfrail::session::located;
 use halfrail::stage::{Component, Components};
 use halfrail::values::Series;
 
@@ -419,7 +420,7 @@ fn every_corner_and_gain_gives_a_right_figure_or_a_named_refusal() {
                     assert!(r.f_low_hz.unwrap() <= f_low * 1.002, "{gain} dB, {f_low} Hz: edge {:?}", r.f_low_hz);
                     designed += 1;
                 }
-                Err(e) => assert_eq!(e.field, "target.f_low_hz", "{gain} dB, {f_low} Hz: {e}"),
+                Err(e) => assert_eq!(located(e.clone()).field, "target.f_low_hz", "{gain} dB, {f_low} Hz: {e}"),
             }
         }
     }

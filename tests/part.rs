@@ -3,6 +3,7 @@
 
 use halfrail::analysis::{bare_curve, bias};
 use halfrail::part::{ekv, square_law, Capacitances, Model, Mosfet, Part, PRESETS};
+use halfrail::session::located;
 use halfrail::stage::{Component, Components};
 use proptest::prelude::*;
 
@@ -171,16 +172,16 @@ fn temperature_moves_the_part_and_nothing_at_25_c() {
     assert!((hot.nmos.vt - (0.8 - 0.12)).abs() < 1e-12);
     p.temp_c = 200.0;
     p.nmos.vt = 0.3;
-    assert_eq!(p.law().unwrap_err().field, "part.temp_c");
+    assert_eq!(located(p.law().unwrap_err()).field, "part.temp_c");
 }
 
 #[test]
 fn impossible_parts_are_refused_with_the_field() {
     let p = part(1.2, 2e-3, 2e-3, 0.7, 0.7, 0.05, 1);
-    assert_eq!(bias(&p, &feedback_only(1e6), None).unwrap_err().field, "part.vdd_v");
+    assert_eq!(located(bias(&p, &feedback_only(1e6), None).unwrap_err()).field, "part.vdd_v");
     let p = part(5.0, 2e-3, 2e-3, 0.8, 0.8, 0.05, 1);
     let no_feedback = Components::default().with(Component::CInF, Some(1e-6));
-    assert_eq!(bias(&p, &no_feedback, None).unwrap_err().field, "stage.r_fb_ohm");
+    assert_eq!(located(bias(&p, &no_feedback, None).unwrap_err()).field, "stage.r_fb_ohm");
 }
 
 #[test]

@@ -9,6 +9,7 @@ use halfrail::analysis::swing::{self, one_tone, QuasiStatic, TimeDomain};
 use halfrail::analysis::{bare_curve, bias};
 use halfrail::doc::load;
 use halfrail::part::Part;
+use halfrail::session::located;
 use halfrail::stage::{Component, Components};
 
 /// The base design, with `edit` applied to its JSON text.
@@ -164,10 +165,10 @@ fn the_supply_floor_is_taken_at_the_parts_temperature() {
     let b = bias(&hot, &stage, None).unwrap();
     assert!(b.vout_v > 0.0 && b.vout_v < 1.15);
     let (cold, stage) = base(",\"vdd_v\":1.3,\"temp_c\":-40", Some("100n"), "100n", "10.7 MHz");
-    let e = bias(&cold, &stage, None).unwrap_err();
+    let e = located(bias(&cold, &stage, None).unwrap_err());
     assert_eq!(e.field, "part.vdd_v");
     assert!(e.reason.contains("1.410"), "{}", e.reason);
-    assert_eq!(TimeDomain::new(&cold, &stage).err().unwrap().field, "part.vdd_v");
+    assert_eq!(located(TimeDomain::new(&cold, &stage).err().unwrap()).field, "part.vdd_v");
 }
 
 #[test]
@@ -188,7 +189,7 @@ fn buffered_parts_run_the_large_signal_analysis() {
                 assert!(large.transfer.as_ref().unwrap().1.iter().all(|v| v.is_finite() && *v > -part.vdd && *v < part.vdd), "{stages}");
             }
             Err(why) => {
-                assert_eq!(why.field, "stage");
+                assert_eq!(located(why.clone()).field, "stage");
                 assert!(why.reason.starts_with("the loop oscillates"), "{stages}: {}", why.reason);
                 assert_eq!(analysed.unwrap_err(), why, "{stages}");
             }
@@ -255,17 +256,17 @@ fn with_large_coupling_capacitors_the_fundamental_is_the_small_signal_gain() {
 #[test]
 fn an_input_beyond_the_supply_is_refused_naming_the_level() {
     let (part, stage) = base("", Some("100n"), "100n", "10.7 MHz");
-    let e = swing::analyse(&part, &stage, 10.7e6, 40.0, swing::Curve::Drawn, &mut |_| {}).unwrap_err();
+    let e = located(swing::analyse(&part, &stage, 10.7e6, 40.0, swing::Curve::Drawn, &mut |_| {}).unwrap_err());
     assert_eq!(e.field, "analysis.input_dbm");
     assert!(e.reason.contains("beyond what the supply allows"), "{}", e.reason);
     // The ceiling: the EMF whose share at the pin (small-signal) is twice VDD.
     let time = TimeDomain::new(&part, &stage).unwrap();
     let pin = time.gain_to_input(10.7e6).unwrap();
     let ceiling = swing::available_dbm(2.0 * part.vdd / pin, 50.0);
-    assert!(swing::analyse(&part, &stage, 10.7e6, ceiling + 0.1, swing::Curve::Drawn, &mut |_| {}).unwrap_err().field == "analysis.input_dbm");
+    assert!(located(swing::analyse(&part, &stage, 10.7e6, ceiling + 0.1, swing::Curve::Drawn, &mut |_| {}).unwrap_err()).field == "analysis.input_dbm");
     match swing::analyse(&part, &stage, 10.7e6, ceiling - 0.5, swing::Curve::Drawn, &mut |_| {}) {
         Ok(large) => assert!(large.tone.thd_pct.is_finite()),
-        Err(e) => assert_eq!(e.field, "analysis.input_dbm", "{e}"),
+        Err(e) => assert_eq!(located(e.clone()).field, "analysis.input_dbm", "{e}"),
     }
 }
 

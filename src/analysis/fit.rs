@@ -14,6 +14,10 @@ use nalgebra::{DMatrix, DVector, Dyn, Owned};
 
 use crate::engine::{operating_point, Element, Netlist, Node, SmallSignal};
 use crate::error::{FieldError, Result};
+use crate::input::{Input, Section};
+
+/// The bench readings, whose refusals name their section.
+const BENCH: Input = Input::Section(Section::Bench);
 use crate::part::{Capacitances, Part, PRESETS};
 use crate::stage::{add_part, Component};
 
@@ -312,25 +316,25 @@ impl LeastSquaresProblem<f64, Dyn, Dyn> for Problem<'_> {
 /// readings are fewer than the parameters or cannot tell some parameter apart.
 pub fn fit(start: &Part, readings: &Readings, params: &[Param]) -> Result<Fit> {
     if params.is_empty() {
-        return Err(FieldError::new("bench", "these readings determine no parameter: give the supply current and bias voltage, gain readings or transfer-curve points"));
+        return Err(FieldError::of(BENCH, "these readings determine no parameter: give the supply current and bias voltage, gain readings or transfer-curve points"));
     }
     let names: Vec<&str> = params.iter().map(|p| p.name()).collect();
     let base = base_of(start);
     let count = predict(&base, readings)?.len();
     if count < params.len() {
-        return Err(FieldError::new(
-            "bench",
+        return Err(FieldError::of(
+            BENCH,
             format!("{count} readings cannot determine {} parameters ({}); add readings or fit fewer with bench.fit", params.len(), names.join(", ")),
         ));
     }
     let problem = Problem { x: Problem::start(&base, params), base, params, readings };
-    let jacobian = problem.jacobian().ok_or_else(|| FieldError::new("bench", "the starting part cannot be analysed"))?;
+    let jacobian = problem.jacobian().ok_or_else(|| FieldError::of(BENCH, "the starting part cannot be analysed"))?;
     check_determined(&jacobian, params)?;
     let (solved, report) = LevenbergMarquardt::new().with_patience(200).minimize(problem);
     if !report.termination.was_successful() {
-        return Err(FieldError::new("bench", format!("the fit did not converge ({:?})", report.termination)));
+        return Err(FieldError::of(BENCH, format!("the fit did not converge ({:?})", report.termination)));
     }
-    let jacobian = solved.jacobian().ok_or_else(|| FieldError::new("bench", "the fitted part cannot be analysed"))?;
+    let jacobian = solved.jacobian().ok_or_else(|| FieldError::of(BENCH, "the fitted part cannot be analysed"))?;
     check_determined(&jacobian, params)?;
     let part = solved.part_at(&solved.x);
     let rows = predict(&part, readings)?;
@@ -341,7 +345,7 @@ pub fn fit(start: &Part, readings: &Readings, params: &[Param]) -> Result<Fit> {
     let scale = if dof > 0 { (chi2 / dof as f64).max(1.0) } else { 1.0 };
     let covariance = (jacobian.transpose() * &jacobian)
         .try_inverse()
-        .ok_or_else(|| FieldError::new("bench", "the readings cannot determine these parameters"))?
+        .ok_or_else(|| FieldError::of(BENCH, "the readings cannot determine these parameters"))?
         * scale;
     let parameters = params
         .iter()
@@ -383,7 +387,7 @@ fn natural_value(part: &Part, p: Param) -> f64 {
 /// the wasm. A ratio of 1e-7 in σ is 1e-14 in σ², still some ten times the
 /// rounding of JᵀJ's eigenvalues (n·ε of the largest, n ≤ 6).
 fn check_determined(j: &DMatrix<f64>, params: &[Param]) -> Result<()> {
-    let undetermined = || FieldError::new("bench", "the readings cannot determine these parameters");
+    let undetermined = || FieldError::of(BENCH, "the readings cannot determine these parameters");
     let (vectors, form) = nalgebra::linalg::Schur::try_new(j.transpose() * j, f64::EPSILON, 1000).ok_or_else(undetermined)?.unpack();
     let squares = form.diagonal();
     let largest = squares.max();
@@ -391,8 +395,8 @@ fn check_determined(j: &DMatrix<f64>, params: &[Param]) -> Result<()> {
     if !(smallest > 1e-14 * largest && largest > 0.0) {
         let column = vectors.column(weakest);
         let (worst, _) = column.iter().enumerate().fold((0, 0.0), |best, (i, v)| if v.abs() > best.1 { (i, v.abs()) } else { best });
-        return Err(FieldError::new(
-            "bench",
+        return Err(FieldError::of(
+            BENCH,
             format!("these readings cannot determine {}: add readings that depend on it, or leave it out of bench.fit", params[worst].name()),
         ));
     }

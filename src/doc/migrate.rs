@@ -30,13 +30,16 @@ pub struct Step {
     pub rewrite: fn(&mut Entries<'_>) -> Result<()>,
 }
 
+/// The key of the format version.
+const VERSION: &str = super::fields::HALFRAIL.key.name;
+
 /// The steps this build knows, oldest first: none yet (format 1 is the first).
 pub const STEPS: &[Step] = &[];
 
 /// The document's version when it is a whole number below `current` (one to bring
 /// up); anything else is left to the version check, which names what is wrong.
 fn older(root: &Json, current: u32) -> Option<u32> {
-    match root.get("halfrail") {
+    match root.get(VERSION) {
         Some(Json::Number(n)) => n.as_u64().filter(|&v| v < u64::from(current)).map(|v| v as u32),
         _ => None,
     }
@@ -51,7 +54,7 @@ pub fn up(root: &mut Json, steps: &[Step], current: u32) -> Result<Option<u32>> 
     let oldest = (0..current).rev().take_while(|&v| step_from(v).is_some()).last().unwrap_or(current);
     if start < oldest {
         return Err(FieldError::new(
-            "halfrail",
+            VERSION,
             format!("this document is format version {start}, older than the oldest this build reads ({oldest})"),
         ));
     }
@@ -59,7 +62,7 @@ pub fn up(root: &mut Json, steps: &[Step], current: u32) -> Result<Option<u32>> 
         let step = step_from(version).expect("a step from every version from the oldest on");
         (step.rewrite)(entries)?;
         // `older` found the version, and a step leaves it alone.
-        if let Some((_, value)) = entries.iter_mut().find(|(k, _)| k == "halfrail") {
+        if let Some((_, value)) = entries.iter_mut().find(|(k, _)| k == VERSION) {
             *value = Json::Number((version + 1).into());
         }
     }

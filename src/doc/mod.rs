@@ -4,10 +4,13 @@
 //! format version (`migrate`), each section's keys read from it by type and
 //! range, each range declared where its key is read (`read`, `sections`), then
 //! the rules between fields checked (`validate`) — and turns sections into the
-//! core's types (`to_core`). Running analyses on a document is
+//! core's types (`to_core`). Every key, with its unit, label and hint, is written
+//! once, in the catalogue `fields`, which also places the core's errors: the
+//! layers below name an input by what it is (`crate::input`), never by its key. Running analyses on a document is
 //! the session layer's job (`crate::session`); writing results, the wire's
 //! (`crate::wire`).
 
+pub mod fields;
 mod parse;
 pub(crate) mod read;
 pub use parse::{Json, MAX_NESTING};
@@ -80,7 +83,7 @@ impl Bench {
             .map(|(i, g)| match (g.gain_vv, g.gain_db) {
                 (Some(vv), None) => Ok((g.f_hz, vv)),
                 (None, Some(db)) => Ok((g.f_hz, crate::units::db_voltage_ratio(db))),
-                _ => Err(FieldError::new(format!("bench.gains[{i}]"), "give gain_vv or gain_db")),
+                _ => Err(FieldError::new(fields::BENCH_GAINS.path_at(i), "give gain_vv or gain_db")),
             })
             .collect::<Result<_>>()?;
         Ok(crate::analysis::Readings {
@@ -137,12 +140,13 @@ pub const MAX_DOCUMENT_BYTES: usize = 4 << 20;
 /// a newer build is refused for that reason rather than for a key this build does
 /// not know. A wrong version is quoted (a list or an object named by its kind).
 fn check_version(root: &parse::Json) -> Result<()> {
-    match root.get("halfrail") {
-        None => Err(FieldError::new("halfrail", "missing; a design document starts with \"halfrail\": 1")),
+    let key = fields::HALFRAIL.key.name;
+    match root.get(key) {
+        None => Err(FieldError::new(key, "missing; a design document starts with \"halfrail\": 1")),
         Some(parse::Json::Number(n)) if n.as_u64() == Some(FORMAT_VERSION as u64) => Ok(()),
         Some(parse::Json::Number(n)) if n.as_u64().is_some_and(|v| v > FORMAT_VERSION as u64) => {
             Err(FieldError::new(
-                "halfrail",
+                key,
                 format!("this document is format version {n}, newer than this build reads ({FORMAT_VERSION}); open it with a newer Halfrail"),
             ))
         }
@@ -158,7 +162,7 @@ fn check_version(root: &parse::Json) -> Result<()> {
             if got.chars().count() > 40 {
                 got = format!("{}…", got.chars().take(39).collect::<String>());
             }
-            Err(FieldError::new("halfrail", format!("must be {FORMAT_VERSION}, got {got}")))
+            Err(FieldError::new(key, format!("must be {FORMAT_VERSION}, got {got}")))
         }
     }
 }

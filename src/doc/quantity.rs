@@ -35,6 +35,16 @@ impl FieldUnit {
         FieldUnit { unit: Some(unit), scale: 1.0 }
     }
 
+    /// The unit's symbol as a field's number is in it (`mV` for `vt_mv`; empty
+    /// for a plain number).
+    pub fn symbol(self) -> &'static str {
+        match self.unit {
+            None => "",
+            Some(Unit::Volt) if self.scale == 1e3 => "mV",
+            Some(unit) => unit.symbol(),
+        }
+    }
+
     /// What a field in this unit takes, for a message about a value of another type.
     pub fn expected(self) -> String {
         match self.unit {

@@ -2,10 +2,11 @@
 //! asks for one key and takes it in the forms the format allows; a refusal uses
 //! serde's words (`invalid type: string "3", expected …`), as messages always have.
 //!
-//! A getter may also take the values the field allows (a [`Range`], a length, a
-//! rule), so that a field's key is written once, where it is read: a value outside
-//! them is a bad value like one of the wrong type. Rules that relate two fields
-//! wait until everything is read (`validate`).
+//! A getter asks for a [`Key`] (its name and unit, from the catalogue
+//! `super::fields`) and may also take the values the field allows (a [`Range`], a
+//! length, a rule), so that a field's range is written once, where it is read: a
+//! value outside them is a bad value like one of the wrong type. Rules that relate
+//! two fields wait until everything is read (`validate`).
 //!
 //! Errors are kept, not returned, so that a section reads as one struct literal
 //! and [`object`] can report, in this order: a key nothing asked for (often the
@@ -98,6 +99,27 @@ impl Range {
     }
 }
 
+/// A key as the reader asks for it: its name, and the unit its value is kept in
+/// (`FieldUnit::PLAIN` for a key whose value is not a quantity). The document's
+/// keys come from its catalogue (`super::fields`); a result the page hands back
+/// names its own.
+#[derive(Debug, Clone, Copy)]
+pub struct Key {
+    pub name: &'static str,
+    pub unit: FieldUnit,
+}
+
+impl Key {
+    pub const fn new(name: &'static str, unit: FieldUnit) -> Key {
+        Key { name, unit }
+    }
+
+    /// A key whose value is not a quantity.
+    pub const fn plain(name: &'static str) -> Key {
+        Key { name, unit: FieldUnit::PLAIN }
+    }
+}
+
 /// Entries a list of objects may hold.
 pub const MAX_LIST: usize = 1000;
 
@@ -169,22 +191,23 @@ impl<'a> Fields<'a> {
     }
 
     /// Keeps the first refusal, naming `key`.
-    fn refuse(&mut self, key: &'static str, error: FieldError) {
-        self.error.get_or_insert(error.within(key));
+    fn refuse(&mut self, key: Key, error: FieldError) {
+        self.error.get_or_insert(error.within(key.name));
     }
 
     /// The value at `key`, if present. Each key is asked for once.
-    fn take(&mut self, key: &'static str) -> Option<&'a Json<'a>> {
-        debug_assert!(!self.asked.contains(&key), "`{key}` asked for twice");
-        self.asked.push(key);
-        let value = self.entries.iter().find(|(k, _)| k == key).map(|(_, v)| v);
+    fn take(&mut self, key: Key) -> Option<&'a Json<'a>> {
+        let name = key.name;
+        debug_assert!(!self.asked.contains(&name), "`{name}` asked for twice");
+        self.asked.push(name);
+        let value = self.entries.iter().find(|(k, _)| k == name).map(|(_, v)| v);
         self.found += usize::from(value.is_some());
         value
     }
 
     /// The value at `key` made into a `T` by `convert`; `None` when absent, when
     /// null and `null_is_absent`, or when refused (the first refusal is kept).
-    fn typed<T>(&mut self, key: &'static str, null_is_absent: bool, convert: impl FnOnce(&'a Json<'a>) -> Result<T>) -> Option<T> {
+    fn typed<T>(&mut self, key: Key, null_is_absent: bool, convert: impl FnOnce(&'a Json<'a>) -> Result<T>) -> Option<T> {
         let value = self.take(key).filter(|v| !(null_is_absent && v.is_null()))?;
         match convert(value) {
             Ok(made) => Some(made),
@@ -197,59 +220,59 @@ impl<'a> Fields<'a> {
 
     /// Records a required `key` as missing (or refused, which is reported first);
     /// `placeholder` stands in until the object is refused.
-    pub fn missing<T>(&mut self, key: &'static str, placeholder: T) -> T {
-        self.missing.get_or_insert(key);
+    pub fn missing<T>(&mut self, key: Key, placeholder: T) -> T {
+        self.missing.get_or_insert(key.name);
         placeholder
     }
 
     /// A value field that may be left out: absent or null is `None`.
-    pub fn quantity(&mut self, key: &'static str, unit: FieldUnit) -> Option<f64> {
-        self.quantity_in(key, unit, Range::ANY)
+    pub fn quantity(&mut self, key: Key) -> Option<f64> {
+        self.quantity_in(key, Range::ANY)
     }
 
     /// The same, refused outside `range`.
-    pub fn quantity_in(&mut self, key: &'static str, unit: FieldUnit, range: Range) -> Option<f64> {
-        self.typed(key, true, |v| quantity(v, unit, range))
+    pub fn quantity_in(&mut self, key: Key, range: Range) -> Option<f64> {
+        self.typed(key, true, |v| quantity(v, key.unit, range))
     }
 
     /// A value field within `range`, with a default for when it is absent; null is refused.
-    pub fn quantity_or_in(&mut self, key: &'static str, unit: FieldUnit, default: f64, range: Range) -> f64 {
-        self.typed(key, false, |v| quantity(v, unit, range)).unwrap_or(default)
+    pub fn quantity_or_in(&mut self, key: Key, default: f64, range: Range) -> f64 {
+        self.typed(key, false, |v| quantity(v, key.unit, range)).unwrap_or(default)
     }
 
     /// A value field that must be given; null is refused.
-    pub fn required_quantity(&mut self, key: &'static str, unit: FieldUnit) -> f64 {
-        self.required_quantity_in(key, unit, Range::ANY)
+    pub fn required_quantity(&mut self, key: Key) -> f64 {
+        self.required_quantity_in(key, Range::ANY)
     }
 
     /// The same, refused outside `range`.
-    pub fn required_quantity_in(&mut self, key: &'static str, unit: FieldUnit, range: Range) -> f64 {
-        self.typed(key, false, |v| quantity(v, unit, range)).unwrap_or_else(|| self.missing(key, 0.0))
+    pub fn required_quantity_in(&mut self, key: Key, range: Range) -> f64 {
+        self.typed(key, false, |v| quantity(v, key.unit, range)).unwrap_or_else(|| self.missing(key, 0.0))
     }
 
     /// A whole number from 0 to `max`, `default` when absent; a fraction (even
     /// `1.0`), a negative number or null is refused. Written as text it may take a
     /// prefix as any value does (`"3"`, `"2k"` trials), but no unit.
-    pub fn integer(&mut self, key: &'static str, default: u64, max: u64) -> u64 {
+    pub fn integer(&mut self, key: Key, default: u64, max: u64) -> u64 {
         self.typed(key, false, |v| integer(v, max)).unwrap_or(default)
     }
 
     /// A whole number that fits a `u32`, `default` when absent.
-    pub fn count(&mut self, key: &'static str, default: u32) -> u32 {
+    pub fn count(&mut self, key: Key, default: u32) -> u32 {
         self.counted(key, default, &|_| Ok(()))
     }
 
     /// The same, refused outside `range`.
-    pub fn count_in(&mut self, key: &'static str, default: u32, range: Range) -> u32 {
+    pub fn count_in(&mut self, key: Key, default: u32, range: Range) -> u32 {
         self.counted(key, default, &|n| range.check(n.into()))
     }
 
     /// The same, refused by `rule` (its error is the reason).
-    pub fn count_where(&mut self, key: &'static str, default: u32, rule: fn(u32) -> std::result::Result<(), String>) -> u32 {
+    pub fn count_where(&mut self, key: Key, default: u32, rule: fn(u32) -> std::result::Result<(), String>) -> u32 {
         self.counted(key, default, &rule)
     }
 
-    fn counted(&mut self, key: &'static str, default: u32, rule: &dyn Fn(u32) -> std::result::Result<(), String>) -> u32 {
+    fn counted(&mut self, key: Key, default: u32, rule: &dyn Fn(u32) -> std::result::Result<(), String>) -> u32 {
         let read = |v: &Json| {
             let n = u32::try_from(integer(v, u32::MAX.into())?).unwrap_or(default);
             rule(n).map(|()| n).or_else(refused)
@@ -258,12 +281,12 @@ impl<'a> Fields<'a> {
     }
 
     /// `true` or `false`, false when absent; null is refused.
-    pub fn flag(&mut self, key: &'static str) -> bool {
+    pub fn flag(&mut self, key: Key) -> bool {
         self.typed(key, false, |v| v.as_bool().map_or_else(|| wrong_type(v, "a boolean"), Ok)).unwrap_or(false)
     }
 
     /// A string of at most `max_chars` characters: absent or null is `None`.
-    pub fn string(&mut self, key: &'static str, max_chars: usize) -> Option<String> {
+    pub fn string(&mut self, key: Key, max_chars: usize) -> Option<String> {
         self.typed(key, true, |v| match v.as_str() {
             Some(s) if s.chars().count() > max_chars => refused(format!("at most {max_chars} characters")),
             Some(s) => Ok(s.to_owned()),
@@ -273,7 +296,7 @@ impl<'a> Fields<'a> {
 
     /// A string that `parse` reads (its error is the reason): absent is `None`, null
     /// is refused, another type is refused as not `expected`.
-    pub fn parsed<T>(&mut self, key: &'static str, expected: &str, parse: impl FnOnce(&str) -> std::result::Result<T, String>) -> Option<T> {
+    pub fn parsed<T>(&mut self, key: Key, expected: &str, parse: impl FnOnce(&str) -> std::result::Result<T, String>) -> Option<T> {
         self.typed(key, false, |v| match v.as_str() {
             Some(text) => parse(text).or_else(refused),
             None => wrong_type(v, expected),
@@ -282,16 +305,16 @@ impl<'a> Fields<'a> {
 
     /// One of the names of `table` (exactly as written), as its value: absent is
     /// `None`, null is refused.
-    pub fn choice<T: Copy>(&mut self, key: &'static str, table: &[(&'static str, T)]) -> Option<T> {
+    pub fn choice<T: Copy>(&mut self, key: Key, table: &[(&'static str, T)]) -> Option<T> {
         self.chosen(key, false, table)
     }
 
     /// The same, with null as absent.
-    pub fn optional_choice<T: Copy>(&mut self, key: &'static str, table: &[(&'static str, T)]) -> Option<T> {
+    pub fn optional_choice<T: Copy>(&mut self, key: Key, table: &[(&'static str, T)]) -> Option<T> {
         self.chosen(key, true, table)
     }
 
-    fn chosen<T: Copy>(&mut self, key: &'static str, null_is_absent: bool, table: &[(&'static str, T)]) -> Option<T> {
+    fn chosen<T: Copy>(&mut self, key: Key, null_is_absent: bool, table: &[(&'static str, T)]) -> Option<T> {
         self.typed(key, null_is_absent, |v| {
             let names = || one_of(&table.iter().map(|(name, _)| *name).collect::<Vec<_>>());
             match v.as_str() {
@@ -302,13 +325,13 @@ impl<'a> Fields<'a> {
     }
 
     /// An object read by `read`, such as a section: absent or null is `None`.
-    pub fn section<T>(&mut self, key: &'static str, read: impl FnOnce(&mut Fields<'a>) -> T) -> Option<T> {
+    pub fn section<T>(&mut self, key: Key, read: impl FnOnce(&mut Fields<'a>) -> T) -> Option<T> {
         self.typed(key, true, |v| object(v, read))
     }
 
     /// A list of at most [`MAX_LIST`] objects, each read by `read`: absent is
     /// `None`, null is refused. A longer list is refused by its length, unread.
-    pub fn objects<T>(&mut self, key: &'static str, read: impl Fn(&mut Fields<'a>) -> T) -> Option<Vec<T>> {
+    pub fn objects<T>(&mut self, key: Key, read: impl Fn(&mut Fields<'a>) -> T) -> Option<Vec<T>> {
         self.typed(key, false, |v| match v {
             Json::Array(entries) if entries.len() > MAX_LIST => refused(format!("at most {MAX_LIST} entries, got {}", entries.len())),
             _ => items(v, |item| object(item, &read)),
@@ -317,7 +340,7 @@ impl<'a> Fields<'a> {
 
     /// A list of strings, each allowed by `rule` (its error is the reason): absent
     /// or null is `None`.
-    pub fn strings(&mut self, key: &'static str, rule: fn(&str) -> std::result::Result<(), String>) -> Option<Vec<String>> {
+    pub fn strings(&mut self, key: Key, rule: fn(&str) -> std::result::Result<(), String>) -> Option<Vec<String>> {
         self.typed(key, true, |v| {
             items(v, |item| match item.as_str() {
                 Some(s) => rule(s).map(|()| s.to_owned()).or_else(refused),
@@ -328,7 +351,7 @@ impl<'a> Fields<'a> {
 
     /// A list of numbers with no unit, null for one that is not there: absent is
     /// `None`, null for the whole list is refused.
-    pub fn numbers(&mut self, key: &'static str) -> Option<Vec<Option<f64>>> {
+    pub fn numbers(&mut self, key: Key) -> Option<Vec<Option<f64>>> {
         self.typed(key, false, |v| items(v, |item| if item.is_null() { Ok(None) } else { quantity(item, FieldUnit::PLAIN, Range::ANY).map(Some) }))
     }
 

@@ -1,10 +1,10 @@
 //! The sections of a design document (SPEC §4), and how each is read from its JSON
 //! object: the keys it takes, in which form, their defaults and the values each
-//! allows. Keys carry their unit; `validate` checks the rules between fields once
-//! everything is read.
+//! allows. Keys and their units come from the catalogue (`fields`); `validate`
+//! checks the rules between fields once everything is read.
 
+use super::fields as F;
 use super::parse::Json;
-use super::quantity::FieldUnit as U;
 use super::read::{object, End::{Closed, Free, Open}, Fields, Range};
 use crate::error::Result;
 use crate::stage::{Component, Components, Role};
@@ -71,23 +71,23 @@ const TYPICAL_SLOPE: f64 = 1.3;
 impl Part {
     fn read(f: &mut Fields) -> Part {
         Part {
-            model: f.choice("model", MODELS).unwrap_or(Model::SquareLaw),
-            vdd_v: f.required_quantity_in("vdd_v", U::VOLT, Range(Open(0.0), Closed(30.0))),
-            stages: f.count_where("stages", 1, stage_count),
-            kn_a_per_v2: f.required_quantity_in("kn_a_per_v2", U::PLAIN, Range(Open(0.0), Closed(10.0))),
-            kp_a_per_v2: f.required_quantity_in("kp_a_per_v2", U::PLAIN, Range(Open(0.0), Closed(10.0))),
+            model: f.choice(F::PART_MODEL.key, MODELS).unwrap_or(Model::SquareLaw),
+            vdd_v: f.required_quantity_in(F::PART_VDD.key, Range(Open(0.0), Closed(30.0))),
+            stages: f.count_where(F::PART_STAGES.key, 1, stage_count),
+            kn_a_per_v2: f.required_quantity_in(F::PART_KN.key, Range(Open(0.0), Closed(10.0))),
+            kp_a_per_v2: f.required_quantity_in(F::PART_KP.key, Range(Open(0.0), Closed(10.0))),
             // Each below vdd_v in magnitude as well (`validate`).
-            vtn_v: f.required_quantity_in("vtn_v", U::VOLT, Range(Open(0.0), Free)),
-            vtp_v: f.required_quantity_in("vtp_v", U::VOLT, Range(Free, Open(0.0))),
-            lambda_n_per_v: f.quantity_or_in("lambda_n_per_v", U::PLAIN, 0.0, Range(Closed(0.0), Closed(1.0))),
-            lambda_p_per_v: f.quantity_or_in("lambda_p_per_v", U::PLAIN, 0.0, Range(Closed(0.0), Closed(1.0))),
-            cgs_f: f.quantity_or_in("cgs_f", U::FARAD, 0.0, Range(Closed(0.0), Closed(1e-6))),
-            cgd_f: f.quantity_or_in("cgd_f", U::FARAD, 0.0, Range(Closed(0.0), Closed(1e-6))),
-            cdb_f: f.quantity_or_in("cdb_f", U::FARAD, 0.0, Range(Closed(0.0), Closed(1e-6))),
-            gamma: f.quantity_or_in("gamma", U::PLAIN, 2.0 / 3.0, Range(Open(0.0), Closed(10.0))),
-            temp_c: f.quantity_or_in("temp_c", U::CELSIUS, 25.0, Range(Closed(-60.0), Closed(200.0))),
-            n_slope: f.quantity_or_in("n_slope", U::PLAIN, TYPICAL_SLOPE, Range(Closed(1.0), Closed(3.0))),
-            pkg_max_w: f.quantity_in("pkg_max_w", U::WATT, Range(Open(0.0), Closed(100.0))),
+            vtn_v: f.required_quantity_in(F::PART_VTN.key, Range(Open(0.0), Free)),
+            vtp_v: f.required_quantity_in(F::PART_VTP.key, Range(Free, Open(0.0))),
+            lambda_n_per_v: f.quantity_or_in(F::PART_LAMBDA_N.key, 0.0, Range(Closed(0.0), Closed(1.0))),
+            lambda_p_per_v: f.quantity_or_in(F::PART_LAMBDA_P.key, 0.0, Range(Closed(0.0), Closed(1.0))),
+            cgs_f: f.quantity_or_in(F::PART_CGS.key, 0.0, Range(Closed(0.0), Closed(1e-6))),
+            cgd_f: f.quantity_or_in(F::PART_CGD.key, 0.0, Range(Closed(0.0), Closed(1e-6))),
+            cdb_f: f.quantity_or_in(F::PART_CDB.key, 0.0, Range(Closed(0.0), Closed(1e-6))),
+            gamma: f.quantity_or_in(F::PART_GAMMA.key, 2.0 / 3.0, Range(Open(0.0), Closed(10.0))),
+            temp_c: f.quantity_or_in(F::PART_TEMP.key, 25.0, Range(Closed(-60.0), Closed(200.0))),
+            n_slope: f.quantity_or_in(F::PART_N_SLOPE.key, TYPICAL_SLOPE, Range(Closed(1.0), Closed(3.0))),
+            pkg_max_w: f.quantity_in(F::PART_PKG_MAX.key, Range(Open(0.0), Closed(100.0))),
         }
     }
 }
@@ -99,11 +99,11 @@ fn components(f: &mut Fields) -> Components {
     let mut found = Components::default();
     for c in Component::ALL {
         let low = if c.zero_is_short() { Closed(0.0) } else { Open(0.0) };
-        let (unit, high) = match c.role() {
-            Role::Resistor => (U::OHM, MAX_OHM),
-            Role::Capacitor => (U::FARAD, MAX_F),
+        let high = match c.role() {
+            Role::Resistor => MAX_OHM,
+            Role::Capacitor => MAX_F,
         };
-        found.set(c, f.quantity_in(c.key(), unit, Range(low, Closed(high))));
+        found.set(c, f.quantity_in(F::stage(c).key, Range(low, Closed(high))));
     }
     found
 }
@@ -126,17 +126,17 @@ impl Analysis {
     fn read(f: &mut Fields) -> Analysis {
         Analysis {
             // Within the sweep (`validate`).
-            f_design_hz: f.required_quantity("f_design_hz", U::HERTZ),
-            f_start_hz: f.quantity_or_in("f_start_hz", U::HERTZ, 10.0, Range(Closed(MIN_HZ), Open(MAX_HZ))),
+            f_design_hz: f.required_quantity(F::ANALYSIS_F_DESIGN.key),
+            f_start_hz: f.quantity_or_in(F::ANALYSIS_F_START.key, 10.0, Range(Closed(MIN_HZ), Open(MAX_HZ))),
             // Above f_start_hz as well (`validate`).
-            f_stop_hz: f.quantity_or_in("f_stop_hz", U::HERTZ, 1e9, Range(Free, Closed(MAX_HZ))),
+            f_stop_hz: f.quantity_or_in(F::ANALYSIS_F_STOP.key, 1e9, Range(Free, Closed(MAX_HZ))),
             // The sweep's points limited as well (`validate`).
-            points_per_decade: f.count_in("points_per_decade", 50, Range(Closed(1.0), Closed(1000.0))),
-            z0_ohm: f.quantity_or_in("z0_ohm", U::OHM, 50.0, Range(Open(0.0), Closed(MAX_OHM))),
-            input_dbm: f.quantity_or_in("input_dbm", U::DBM, -30.0, Range(Closed(-200.0), Closed(60.0))),
+            points_per_decade: f.count_in(F::ANALYSIS_POINTS.key, 50, Range(Closed(1.0), Closed(1000.0))),
+            z0_ohm: f.quantity_or_in(F::ANALYSIS_Z0.key, 50.0, Range(Open(0.0), Closed(MAX_OHM))),
+            input_dbm: f.quantity_or_in(F::ANALYSIS_INPUT.key, -30.0, Range(Closed(-200.0), Closed(60.0))),
             // Both ends or neither, the high above the low (`validate`).
-            noise_f_low_hz: f.quantity_in("noise_f_low_hz", U::HERTZ, Range(Closed(MIN_HZ), Open(MAX_HZ))),
-            noise_f_high_hz: f.quantity_in("noise_f_high_hz", U::HERTZ, Range(Free, Closed(MAX_HZ))),
+            noise_f_low_hz: f.quantity_in(F::ANALYSIS_NOISE_LOW.key, Range(Closed(MIN_HZ), Open(MAX_HZ))),
+            noise_f_high_hz: f.quantity_in(F::ANALYSIS_NOISE_HIGH.key, Range(Free, Closed(MAX_HZ))),
         }
     }
 }
@@ -189,21 +189,21 @@ pub struct Target {
 impl Target {
     fn read(f: &mut Fields) -> Target {
         Target {
-            gain_db: f.required_quantity_in("gain_db", U::DB, Range(Closed(-60.0), Closed(100.0))),
-            gain_kind: f.choice("gain_kind", GAIN_KINDS).unwrap_or(GainKind::Voltage),
-            series: f.parsed("series", "a series name such as \"E24\"", series).unwrap_or(Series::E24),
-            s11_max_db: f.quantity_in("s11_max_db", U::DB, Range(Closed(-100.0), Open(0.0))),
-            return_loss_min_db: f.quantity_in("return_loss_min_db", U::DB, Range(Open(0.0), Closed(100.0))),
-            match_source: f.flag("match_source"),
-            f_low_hz: f.quantity_in("f_low_hz", U::HERTZ, Range(Open(0.0), Closed(MAX_HZ))),
-            iq_max_a: f.quantity_in("iq_max_a", U::AMPERE, Range(Open(0.0), Closed(10.0))),
-            nf_max_db: f.quantity_in("nf_max_db", U::DB, Range(Closed(0.0), Closed(100.0))),
-            gain_tol_db: f.quantity_in("gain_tol_db", U::DB, Range(Open(0.0), Closed(60.0))),
-            pm_min_deg: f.quantity_in("pm_min_deg", U::PLAIN, Range(Closed(0.0), Open(180.0))),
-            allow_combinations: f.flag("allow_combinations"),
+            gain_db: f.required_quantity_in(F::TARGET_GAIN.key, Range(Closed(-60.0), Closed(100.0))),
+            gain_kind: f.choice(F::TARGET_GAIN_KIND.key, GAIN_KINDS).unwrap_or(GainKind::Voltage),
+            series: f.parsed(F::TARGET_SERIES.key, "a series name such as \"E24\"", series).unwrap_or(Series::E24),
+            s11_max_db: f.quantity_in(F::TARGET_S11_MAX.key, Range(Closed(-100.0), Open(0.0))),
+            return_loss_min_db: f.quantity_in(F::TARGET_RL_MIN.key, Range(Open(0.0), Closed(100.0))),
+            match_source: f.flag(F::TARGET_MATCH_SOURCE.key),
+            f_low_hz: f.quantity_in(F::TARGET_F_LOW.key, Range(Open(0.0), Closed(MAX_HZ))),
+            iq_max_a: f.quantity_in(F::TARGET_IQ_MAX.key, Range(Open(0.0), Closed(10.0))),
+            nf_max_db: f.quantity_in(F::TARGET_NF_MAX.key, Range(Closed(0.0), Closed(100.0))),
+            gain_tol_db: f.quantity_in(F::TARGET_GAIN_TOL.key, Range(Open(0.0), Closed(60.0))),
+            pm_min_deg: f.quantity_in(F::TARGET_PM_MIN.key, Range(Closed(0.0), Open(180.0))),
+            allow_combinations: f.flag(F::TARGET_COMBINATIONS.key),
             // The one below the other, defaults counted (`validate`).
-            r_min_ohm: f.quantity_in("r_min_ohm", U::OHM, Range(Closed(0.1), Closed(MAX_OHM))),
-            r_max_ohm: f.quantity_in("r_max_ohm", U::OHM, Range(Closed(1.0), Closed(MAX_OHM))),
+            r_min_ohm: f.quantity_in(F::TARGET_R_MIN.key, Range(Closed(0.1), Closed(MAX_OHM))),
+            r_max_ohm: f.quantity_in(F::TARGET_R_MAX.key, Range(Closed(1.0), Closed(MAX_OHM))),
         }
     }
 }
@@ -223,13 +223,13 @@ pub struct Tolerance {
 impl Tolerance {
     fn read(f: &mut Fields) -> Tolerance {
         Tolerance {
-            resistor_pct: f.quantity_or_in("resistor_pct", U::PERCENT, 1.0, Range(Closed(0.0), Closed(50.0))),
-            capacitor_pct: f.quantity_or_in("capacitor_pct", U::PERCENT, 10.0, Range(Closed(0.0), Closed(80.0))),
-            vdd_pct: f.quantity_or_in("vdd_pct", U::PERCENT, 5.0, Range(Closed(0.0), Closed(50.0))),
-            k_pct: f.quantity_or_in("k_pct", U::PERCENT, 20.0, Range(Closed(0.0), Closed(90.0))),
-            vt_mv: f.quantity_or_in("vt_mv", U::MILLIVOLT, 100.0, Range(Closed(0.0), Closed(1000.0))),
-            trials: f.count_in("trials", 1000, Range(Closed(1.0), Closed(100_000.0))),
-            seed: f.integer("seed", 1, u64::MAX),
+            resistor_pct: f.quantity_or_in(F::TOLERANCE_RESISTOR.key, 1.0, Range(Closed(0.0), Closed(50.0))),
+            capacitor_pct: f.quantity_or_in(F::TOLERANCE_CAPACITOR.key, 10.0, Range(Closed(0.0), Closed(80.0))),
+            vdd_pct: f.quantity_or_in(F::TOLERANCE_VDD.key, 5.0, Range(Closed(0.0), Closed(50.0))),
+            k_pct: f.quantity_or_in(F::TOLERANCE_K.key, 20.0, Range(Closed(0.0), Closed(90.0))),
+            vt_mv: f.quantity_or_in(F::TOLERANCE_VT.key, 100.0, Range(Closed(0.0), Closed(1000.0))),
+            trials: f.count_in(F::TOLERANCE_TRIALS.key, 1000, Range(Closed(1.0), Closed(100_000.0))),
+            seed: f.integer(F::TOLERANCE_SEED.key, 1, u64::MAX),
         }
     }
 }
@@ -246,9 +246,9 @@ pub struct GainReading {
 impl GainReading {
     fn read(f: &mut Fields) -> GainReading {
         GainReading {
-            f_hz: f.required_quantity_in("f_hz", U::HERTZ, Range(Open(0.0), Closed(MAX_HZ))),
-            gain_vv: f.quantity_in("gain_vv", U::PLAIN, Range(Open(0.0), Closed(1e6))),
-            gain_db: f.quantity_in("gain_db", U::DB, Range(Closed(-60.0), Closed(120.0))),
+            f_hz: f.required_quantity_in(F::GAIN_F.key, Range(Open(0.0), Closed(MAX_HZ))),
+            gain_vv: f.quantity_in(F::GAIN_VV.key, Range(Open(0.0), Closed(1e6))),
+            gain_db: f.quantity_in(F::GAIN_DB.key, Range(Closed(-60.0), Closed(120.0))),
         }
     }
 }
@@ -264,8 +264,8 @@ pub struct CurvePoint {
 impl CurvePoint {
     fn read(f: &mut Fields) -> CurvePoint {
         CurvePoint {
-            vin_v: f.required_quantity_in("vin_v", U::VOLT, Range(Closed(0.0), Free)),
-            vout_v: f.required_quantity_in("vout_v", U::VOLT, Range(Closed(0.0), Free)),
+            vin_v: f.required_quantity_in(F::CURVE_VIN.key, Range(Closed(0.0), Free)),
+            vout_v: f.required_quantity_in(F::CURVE_VOUT.key, Range(Closed(0.0), Free)),
         }
     }
 }
@@ -299,16 +299,16 @@ fn parameter(name: &str) -> std::result::Result<(), String> {
 impl Bench {
     fn read(f: &mut Fields) -> Bench {
         Bench {
-            vdd_v: f.required_quantity_in("vdd_v", U::VOLT, Range(Open(0.0), Closed(30.0))),
-            stages: f.count_where("stages", 1, stage_count),
-            idd_a: f.quantity_in("idd_a", U::AMPERE, Range(Open(0.0), Closed(10.0))),
+            vdd_v: f.required_quantity_in(F::BENCH_VDD.key, Range(Open(0.0), Closed(30.0))),
+            stages: f.count_where(F::BENCH_STAGES.key, 1, stage_count),
+            idd_a: f.quantity_in(F::BENCH_IDD.key, Range(Open(0.0), Closed(10.0))),
             // Below vdd_v as well (`validate`).
-            vbias_v: f.quantity_in("vbias_v", U::VOLT, Range(Open(0.0), Free)),
-            load_ohm: f.quantity_in("load_ohm", U::OHM, Range(Open(0.0), Closed(MAX_OHM))),
-            load_f: f.quantity_in("load_f", U::FARAD, Range(Open(0.0), Closed(MAX_F))),
-            gains: f.objects("gains", GainReading::read).unwrap_or_default(),
-            curve: f.objects("curve", CurvePoint::read).unwrap_or_default(),
-            fit: f.strings("fit", parameter),
+            vbias_v: f.quantity_in(F::BENCH_VBIAS.key, Range(Open(0.0), Free)),
+            load_ohm: f.quantity_in(F::BENCH_LOAD_OHM.key, Range(Open(0.0), Closed(MAX_OHM))),
+            load_f: f.quantity_in(F::BENCH_LOAD_F.key, Range(Open(0.0), Closed(MAX_F))),
+            gains: f.objects(F::BENCH_GAINS.key, GainReading::read).unwrap_or_default(),
+            curve: f.objects(F::BENCH_CURVE.key, CurvePoint::read).unwrap_or_default(),
+            fit: f.strings(F::BENCH_FIT.key, parameter),
         }
     }
 }
@@ -346,14 +346,14 @@ pub struct Block {
 impl Block {
     fn read(f: &mut Fields) -> Block {
         Block {
-            kind: f.choice("kind", BLOCK_KINDS).unwrap_or_else(|| f.missing("kind", BlockKind::Stage)),
-            name: f.string("name", 80),
-            loss_db: f.quantity_in("loss_db", U::DB, Range(Closed(0.0), Closed(100.0))),
-            gain_db: f.quantity_in("gain_db", U::DB, Range(Closed(-60.0), Closed(100.0))),
-            nf_db: f.quantity_in("nf_db", U::DB, Range(Closed(0.0), Closed(60.0))),
-            oip3_dbm: f.quantity_in("oip3_dbm", U::DBM, Range(Closed(-100.0), Closed(100.0))),
-            op1db_dbm: f.quantity_in("op1db_dbm", U::DBM, Range(Closed(-100.0), Closed(100.0))),
-            dc_w: f.quantity_in("dc_w", U::WATT, Range(Closed(0.0), Closed(1e3))),
+            kind: f.choice(F::BLOCK_KIND.key, BLOCK_KINDS).unwrap_or_else(|| f.missing(F::BLOCK_KIND.key, BlockKind::Stage)),
+            name: f.string(F::BLOCK_NAME.key, 80),
+            loss_db: f.quantity_in(F::BLOCK_LOSS.key, Range(Closed(0.0), Closed(100.0))),
+            gain_db: f.quantity_in(F::BLOCK_GAIN.key, Range(Closed(-60.0), Closed(100.0))),
+            nf_db: f.quantity_in(F::BLOCK_NF.key, Range(Closed(0.0), Closed(60.0))),
+            oip3_dbm: f.quantity_in(F::BLOCK_OIP3.key, Range(Closed(-100.0), Closed(100.0))),
+            op1db_dbm: f.quantity_in(F::BLOCK_OP1DB.key, Range(Closed(-100.0), Closed(100.0))),
+            dc_w: f.quantity_in(F::BLOCK_DC.key, Range(Closed(0.0), Closed(1e3))),
         }
     }
 }
@@ -375,13 +375,13 @@ pub struct Chain {
 impl Chain {
     fn read(f: &mut Fields) -> Chain {
         Chain {
-            input_dbm: f.required_quantity_in("input_dbm", U::DBM, Range(Closed(-200.0), Closed(60.0))),
-            bandwidth_hz: f.required_quantity_in("bandwidth_hz", U::HERTZ, Range(Open(0.0), Closed(MAX_HZ))),
+            input_dbm: f.required_quantity_in(F::CHAIN_INPUT.key, Range(Closed(-200.0), Closed(60.0))),
+            bandwidth_hz: f.required_quantity_in(F::CHAIN_BANDWIDTH.key, Range(Open(0.0), Closed(MAX_HZ))),
             // How many stage blocks may run in a row depends on the part (`validate`).
-            blocks: f.objects("blocks", Block::read).unwrap_or_else(|| f.missing("blocks", Vec::new())),
-            snr_wanted_db: f.quantity_in("snr_wanted_db", U::DB, Range(Closed(-20.0), Closed(100.0))),
-            headroom_warn_db: f.quantity_in("headroom_warn_db", U::DB, Range(Closed(0.0), Closed(100.0))),
-            stage_runs: f.optional_choice("stage_runs", STAGE_RUNS),
+            blocks: f.objects(F::CHAIN_BLOCKS.key, Block::read).unwrap_or_else(|| f.missing(F::CHAIN_BLOCKS.key, Vec::new())),
+            snr_wanted_db: f.quantity_in(F::CHAIN_SNR.key, Range(Closed(-20.0), Closed(100.0))),
+            headroom_warn_db: f.quantity_in(F::CHAIN_HEADROOM.key, Range(Closed(0.0), Closed(100.0))),
+            stage_runs: f.optional_choice(F::CHAIN_STAGE_RUNS.key, STAGE_RUNS),
         }
     }
 }
@@ -419,16 +419,16 @@ impl Document {
         // An error of the document itself (an unknown key written as "") names it.
         let named = |e: crate::error::FieldError| if e.field.is_empty() { e.within("document") } else { e };
         object(root, |f| Document {
-            halfrail: f.count("halfrail", 0),
-            title: f.string("title", 200),
-            notes: f.string("notes", 20_000),
-            part: f.section("part", Part::read),
-            stage: f.section("stage", components),
-            analysis: f.section("analysis", Analysis::read),
-            target: f.section("target", Target::read),
-            tolerance: f.section("tolerance", Tolerance::read),
-            bench: f.section("bench", Bench::read),
-            chain: f.section("chain", Chain::read),
+            halfrail: f.count(F::HALFRAIL.key, 0),
+            title: f.string(F::TITLE.key, 200),
+            notes: f.string(F::NOTES.key, 20_000),
+            part: f.section(F::PART.key, Part::read),
+            stage: f.section(F::STAGE.key, components),
+            analysis: f.section(F::ANALYSIS.key, Analysis::read),
+            target: f.section(F::TARGET.key, Target::read),
+            tolerance: f.section(F::TOLERANCE.key, Tolerance::read),
+            bench: f.section(F::BENCH.key, Bench::read),
+            chain: f.section(F::CHAIN.key, Chain::read),
         })
         .map_err(named)
     }

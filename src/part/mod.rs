@@ -10,6 +10,7 @@ pub use presets::{preset, Preset, PRESETS};
 use crate::math;
 use crate::engine::{DeviceState, Transconductor};
 use crate::error::{FieldError, Result};
+use crate::input::{Input, PartInput};
 
 /// The transistor model.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -72,8 +73,8 @@ impl Part {
             lambda: m.lambda,
         };
         if shifted.vt <= 0.0 {
-            return Err(FieldError::new(
-                "part.temp_c",
+            return Err(FieldError::of(
+                Input::Part(PartInput::Temperature),
                 format!("at {} °C the {field} threshold would fall to {:.3} V; the model needs it above 0", self.temp_c, shifted.vt),
             ));
         }
@@ -94,11 +95,11 @@ impl Part {
         }
     }
 
-    /// Refuses a supply at or below `supply_floor`, naming `part.vdd_v`.
+    /// Refuses a supply at or below `supply_floor`, naming the supply.
     pub fn check_supply(&self) -> Result<()> {
         match self.supply_floor()? {
-            Some(floor) if self.vdd <= floor => Err(FieldError::new(
-                "part.vdd_v",
+            Some(floor) if self.vdd <= floor => Err(FieldError::of(
+                Input::Part(PartInput::Supply),
                 format!(
                     "at {} V and {} °C a square-law part cannot conduct at its bias: the supply must exceed vtn + |vtp| = {:.3} V \
                      at that temperature (the EKV model describes a part this close to threshold)",

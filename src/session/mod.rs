@@ -7,16 +7,28 @@
 mod sheet;
 
 use crate::chain::RunFigures;
+use crate::doc::fields::{self as F, placed};
 use crate::doc::{Analysis, BlockKind, Document, StageRuns};
 use crate::error::{FieldError, Result};
+
+/// `result` with its error placed in the document (`doc::fields::placed`): every
+/// analysis below names its inputs by what they are.
+fn at_field<T>(result: Result<T>) -> Result<T> {
+    result.map_err(placed)
+}
+
+/// A section missing: `what` needs it.
+fn missing(section: &F::Field, what: &str) -> FieldError {
+    FieldError::new(section.path(), format!("missing; {what}"))
+}
 
 impl Analysis {
     /// The stage's response and its loop analysis over this section's sweep.
     pub fn stability(&self, part: &crate::part::Part, stage: &crate::stage::Components) -> Result<(crate::analysis::Response, crate::analysis::stability::Loop)> {
-        let lin = crate::analysis::Linearised::new(part, stage, self.z0_ohm)?;
+        let lin = at_field(crate::analysis::Linearised::new(part, stage, self.z0_ohm))?;
         let freqs = self.frequencies();
-        let response = crate::analysis::response_of(&lin, stage, self.f_design_hz, &freqs, self.noise_band())?;
-        let stability = crate::analysis::stability::analyse(&lin, stage, &response, self.f_design_hz, &freqs)?;
+        let response = at_field(crate::analysis::response_of(&lin, stage, self.f_design_hz, &freqs, self.noise_band()))?;
+        let stability = at_field(crate::analysis::stability::analyse(&lin, stage, &response, self.f_design_hz, &freqs))?;
         Ok((response, stability))
     }
 
@@ -31,18 +43,18 @@ impl Analysis {
         gain_tol_db: f64,
     ) -> Result<Vec<crate::analysis::stability::Suggestion>> {
         let span = (self.f_start_hz, self.f_stop_hz);
-        crate::analysis::stability::compensate(part, stage, self.f_design_hz, span, &self.frequencies(), self.z0_ohm, wanted, series, gain_tol_db)
+        at_field(crate::analysis::stability::compensate(part, stage, self.f_design_hz, span, &self.frequencies(), self.z0_ohm, wanted, series, gain_tol_db))
     }
 
     /// The large-signal analysis at f_design and `input_dbm`, its transfer curve
     /// drawn or not (`curve`).
     pub fn large(&self, part: &crate::part::Part, stage: &crate::stage::Components, curve: crate::analysis::swing::Curve, progress: &mut dyn FnMut(f64)) -> Result<crate::analysis::swing::Large> {
-        crate::analysis::swing::analyse(part, stage, self.f_design_hz, self.input_dbm, curve, progress)
+        at_field(crate::analysis::swing::analyse(part, stage, self.f_design_hz, self.input_dbm, curve, progress))
     }
 
     /// The stage's response as this section asks for it.
     pub fn response(&self, part: &crate::part::Part, stage: &crate::stage::Components) -> Result<crate::analysis::Response> {
-        crate::analysis::response(part, stage, self.f_design_hz, &self.frequencies(), self.z0_ohm, self.noise_band())
+        at_field(crate::analysis::response(part, stage, self.f_design_hz, &self.frequencies(), self.z0_ohm, self.noise_band()))
     }
 }
 
@@ -52,8 +64,8 @@ impl Analysis {
 impl Document {
     /// The part and the stage, which every stage analysis needs.
     pub fn part_and_stage(&self) -> Result<(crate::part::Part, crate::stage::Components)> {
-        let part = self.part.as_ref().ok_or_else(|| FieldError::new("part", "missing; a stage analysis needs the part"))?;
-        let stage = self.stage.ok_or_else(|| FieldError::new("stage", "missing; a stage analysis needs the stage"))?;
+        let part = self.part.as_ref().ok_or_else(|| missing(&F::PART, "a stage analysis needs the part"))?;
+        let stage = self.stage.ok_or_else(|| missing(&F::STAGE, "a stage analysis needs the stage"))?;
         Ok((part.to_core(), stage))
     }
 
@@ -61,13 +73,13 @@ impl Document {
     pub fn sweep(&self) -> Result<&Analysis> {
         self.analysis
             .as_ref()
-            .ok_or_else(|| FieldError::new("analysis", "missing; a sweep needs f_design_hz and its range"))
+            .ok_or_else(|| missing(&F::ANALYSIS, &format!("a sweep needs {} and its range", F::ANALYSIS_F_DESIGN.key.name)))
     }
 
     /// The stage's operating point, warned against the part's package limit.
     pub fn bias(&self) -> Result<crate::analysis::Bias> {
         let (part, stage) = self.part_and_stage()?;
-        crate::analysis::bias(&part, &stage, self.part.as_ref().and_then(|p| p.pkg_max_w))
+        at_field(crate::analysis::bias(&part, &stage, self.part.as_ref().and_then(|p| p.pkg_max_w)))
     }
 
     /// The stage's small-signal response over the `analysis` sweep.
@@ -128,18 +140,23 @@ impl Document {
     pub fn wave(&self) -> Result<crate::analysis::swing::Wave> {
         let (part, stage) = self.part_and_stage()?;
         let analysis = self.sweep()?;
-        let source = crate::analysis::swing::source_resistance(&stage)?;
-        let time = crate::analysis::swing::TimeDomain::new(&part, &stage)?;
+        let source = at_field(crate::analysis::swing::source_resistance(&stage))?;
+        let time = at_field(crate::analysis::swing::TimeDomain::new(&part, &stage))?;
         let amplitude = crate::analysis::swing::emf_amplitude(analysis.input_dbm, source);
-        Ok(crate::analysis::swing::one_tone(&time, amplitude, analysis.f_design_hz, &mut |_| {})?.wave)
+        Ok(at_field(crate::analysis::swing::one_tone(&time, amplitude, analysis.f_design_hz, &mut |_| {}))?.wave)
     }
 
     /// The stage designed to the `target` section at f_design.
     pub fn design(&self) -> Result<crate::analysis::design::Design> {
         let (part, stage) = self.part_and_stage()?;
         let analysis = self.sweep()?;
-        let target = self.target.as_ref().ok_or_else(|| FieldError::new("target", "missing; a design needs a target gain"))?;
-        crate::analysis::design::design(&part, &stage, analysis.f_design_hz, analysis.z0_ohm, &target.to_core())
+        let target = self.target.as_ref().ok_or_else(|| missing(&F::TARGET, "a design needs a target gain"))?;
+        at_field(crate::analysis::design::design(&part, &stage, analysis.f_design_hz, analysis.z0_ohm, &target.to_core()))
+    }
+
+    /// The `tolerance` section, which a spread needs.
+    pub fn tolerances(&self) -> Result<&crate::doc::Tolerance> {
+        self.tolerance.as_ref().ok_or_else(|| missing(&F::TOLERANCE, "a spread needs the tolerances"))
     }
 
     /// Everything a spread needs, read from the document once.
@@ -147,10 +164,10 @@ impl Document {
         use crate::analysis::spread::{Limits, Setup, Tolerance as Core};
         let (part, stage) = self.part_and_stage()?;
         let analysis = self.sweep()?;
-        let tolerance = self.tolerance.as_ref().ok_or_else(|| FieldError::new("tolerance", "missing; a spread needs the tolerances"))?;
+        let tolerance = self.tolerances()?;
         let kind = self.target.as_ref().map_or(crate::analysis::design::GainKind::Voltage, |t| t.to_core().kind);
-        kind.measurable(&stage)?;
-        let setup = Setup::new(&part, &stage, analysis.f_design_hz, (analysis.f_start_hz, analysis.f_stop_hz), analysis.z0_ohm, kind)?;
+        at_field(kind.measurable(&stage))?;
+        let setup = at_field(Setup::new(&part, &stage, analysis.f_design_hz, (analysis.f_start_hz, analysis.f_stop_hz), analysis.z0_ohm, kind))?;
         let tolerance_core = Core { resistor_pct: tolerance.resistor_pct, capacitor_pct: tolerance.capacitor_pct, vdd_pct: tolerance.vdd_pct, k_pct: tolerance.k_pct, vt_v: tolerance.vt_mv / 1e3 };
         let limits = self.target.as_ref().map_or(Limits::default(), |t| Limits {
             gain: t.gain_tol_db.map(|tol| (t.gain_db, tol)),
@@ -180,11 +197,11 @@ impl Document {
     /// The stage block, from the large-signal analysis when it has been run already
     /// (the slowest part of the block's figures).
     pub fn stage_block_with(&self, large: Option<&crate::analysis::swing::Large>) -> Result<crate::chain::Block> {
-        let missing = |what: &str| FieldError::new("chain", format!("a stage block needs {what}"));
+        let missing = |what: &str| FieldError::new(F::CHAIN.path(), format!("a stage block needs {what}"));
         let (part, stage) = self.part_and_stage()?;
-        let analysis = self.sweep().map_err(|_| missing("the analysis section (its f_design_hz)"))?;
+        let analysis = self.sweep().map_err(|_| missing(&needs_f_design()))?;
         // Only the design point is needed, not the sweep.
-        let response = crate::analysis::response(&part, &stage, analysis.f_design_hz, &[analysis.f_design_hz], analysis.z0_ohm, None)?;
+        let response = at_field(crate::analysis::response(&part, &stage, analysis.f_design_hz, &[analysis.f_design_hz], analysis.z0_ohm, None))?;
         let RunFigures { gain_db, nf_db } = gain_and_noise(&response.design, missing)?;
         let computed;
         let large = match large {
@@ -217,7 +234,7 @@ impl Document {
     /// the chain has a stage block.
     pub fn chain_with(&self, stage_block: impl FnOnce() -> Result<crate::chain::Block>) -> Result<crate::chain::Budget> {
         use crate::chain::{cascade, matched_run, one_circuit, runs_of, warnings, Block as Core, Budget, Levels, Run};
-        let chain = self.chain.as_ref().ok_or_else(|| FieldError::new("chain", "missing; a budget needs the chain of blocks"))?;
+        let chain = self.chain.as_ref().ok_or_else(|| missing(&F::CHAIN, "a budget needs the chain of blocks"))?;
         let mut stage_block = Some(stage_block);
         let mut stage = None;
         let mut blocks = Vec::with_capacity(chain.blocks.len());
@@ -258,18 +275,18 @@ impl Document {
     /// GT and NF at f_design of `copies` of this document's stage coupled directly,
     /// solved as one circuit between the document's source and load.
     pub fn stage_run(&self, copies: usize) -> Result<RunFigures> {
-        let missing = |what: &str| FieldError::new("chain", format!("a run of stages needs {what}"));
+        let missing = |what: &str| FieldError::new(F::CHAIN.path(), format!("a run of stages needs {what}"));
         let (part, stage) = self.part_and_stage()?;
-        let analysis = self.sweep().map_err(|_| missing("the analysis section (its f_design_hz)"))?;
-        let lin = crate::analysis::Linearised::run(&part, &stage, copies, analysis.z0_ohm)?;
-        gain_and_noise(&lin.at(analysis.f_design_hz, &stage)?, missing)
+        let analysis = self.sweep().map_err(|_| missing(&needs_f_design()))?;
+        let lin = at_field(crate::analysis::Linearised::run(&part, &stage, copies, analysis.z0_ohm))?;
+        gain_and_noise(&at_field(lin.at(analysis.f_design_hz, &stage))?, missing)
     }
 
     /// The part fitted to the `bench` readings, starting from the document's part.
     pub fn bench_fit(&self) -> Result<crate::analysis::Fit> {
-        let bench = self.bench.as_ref().ok_or_else(|| FieldError::new("bench", "missing; a fit needs the bench readings"))?;
+        let bench = self.bench.as_ref().ok_or_else(|| missing(&F::BENCH, "a fit needs the bench readings"))?;
         let readings = bench.readings()?;
-        crate::analysis::fit(&bench.starting_part(self.part.as_ref()), &readings, &bench.params(&readings))
+        at_field(crate::analysis::fit(&bench.starting_part(self.part.as_ref()), &readings, &bench.params(&readings)))
     }
 }
 
@@ -312,9 +329,9 @@ impl SpreadPlan {
     /// The statistics of `trials` (all of them, in order), with swings and corners.
     pub fn finish(&self, trials: Vec<crate::analysis::spread::Trial>) -> Result<SpreadResult> {
         use crate::analysis::spread::{corners, summarise, swings};
-        let swings = swings(&self.part, &self.stage, &self.setup, &self.tolerance)?;
-        let corners = corners(&self.part, &self.stage, &self.setup, &self.tolerance, &swings)?;
-        Ok(SpreadResult { nominal: self.setup.figures(&self.part, &self.stage)?, summary: summarise(&trials, &self.limits), swings, corners, trials })
+        let swings = at_field(swings(&self.part, &self.stage, &self.setup, &self.tolerance))?;
+        let corners = at_field(corners(&self.part, &self.stage, &self.setup, &self.tolerance, &swings))?;
+        Ok(SpreadResult { nominal: at_field(self.setup.figures(&self.part, &self.stage))?, summary: summarise(&trials, &self.limits), swings, corners, trials })
     }
 }
 
@@ -345,17 +362,25 @@ pub const DEFAULT_SNR_DB: f64 = 10.0;
 /// (common practice: keep a few dB clear of compression).
 pub const DEFAULT_HEADROOM_WARN_DB: f64 = 6.0;
 
-/// An error of the circuit engine, which knows no document, placed in the
-/// document: the engine names the stage's elements by their keys (`r_fb_ohm`), so
-/// the first component it names is the field; otherwise the error is the stage's
-/// as a whole. Both faces pass every error through here.
+/// What a chain's stage block or run lacks without the analysis section.
+fn needs_f_design() -> String {
+    format!("the analysis section (its {})", F::ANALYSIS_F_DESIGN.key.name)
+}
+
+/// Any error placed in the document: an input the core names by what it is gets
+/// its path (`doc::fields::placed`), and an error of the circuit engine, which
+/// knows no document, the field of the component it names — the engine names the
+/// stage's elements by their keys (`r_fb_ohm`), so the first component it names is
+/// the field; otherwise the error is the stage's as a whole. Both faces pass every
+/// error through here.
 pub fn located(e: FieldError) -> FieldError {
+    let e = placed(e);
     if e.field != "circuit" {
         return e;
     }
     let at = |c: &crate::stage::Component| [format!("`{}`", c.key()), format!(":{}`", c.key())].iter().filter_map(|k| e.reason.find(k.as_str())).min();
     let named = crate::stage::Component::ALL.into_iter().filter_map(|c| at(&c).map(|i| (i, c))).min_by_key(|&(i, _)| i).map(|(_, c)| c);
-    let field = named.map_or_else(|| "stage".to_string(), |c| format!("stage.{}", c.key()));
-    FieldError::new(field, e.reason)
+    let input = named.map_or(crate::input::Input::Section(crate::input::Section::Stage), crate::input::Input::Stage);
+    placed(FieldError::of(input, e.reason))
 }
 

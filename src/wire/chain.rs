@@ -143,13 +143,13 @@ struct BlockDef {
 
 /// The stage block back from `StageBlock`'s JSON text (the field named is `stage`).
 pub fn stage_block_from(text: &str) -> crate::error::Result<Block> {
-    use crate::doc::quantity::FieldUnit as U;
+    use crate::doc::{quantity::FieldUnit as U, read::Key};
     crate::doc::read_returned(text, "stage", |f| Block {
         name: "stage".into(),
-        gain_db: f.required_quantity("gain_db", U::DB),
-        nf_db: f.required_quantity("nf_db", U::DB),
-        oip3_dbm: f.quantity("oip3_dbm", U::DBM),
-        op1db_dbm: f.quantity("op1db_dbm", U::DBM),
-        dc_w: f.quantity("dc_w", U::WATT),
+        gain_db: f.required_quantity(Key::new("gain_db", U::DB)),
+        nf_db: f.required_quantity(Key::new("nf_db", U::DB)),
+        oip3_dbm: f.quantity(Key::new("oip3_dbm", U::DBM)),
+        op1db_dbm: f.quantity(Key::new("op1db_dbm", U::DBM)),
+        dc_w: f.quantity(Key::new("dc_w", U::WATT)),
     })
 }

@@ -7,6 +7,7 @@
 mod results;
 mod chain;
 mod design;
+mod fields;
 mod health;
 mod sheet;
 mod spread;
@@ -15,6 +16,7 @@ mod swing;
 
 pub use chain::{stage_block_from, ChainReport, StageBlock};
 pub use design::DesignReport;
+pub use fields::FieldsOut;
 pub use health::{FindingOut, HealthOut};
 pub use results::{
     AcReport, AnalyzeReport, BiasOut, BiasReport, CurveOut, DocumentSummary, FieldErrorOut, FitOut, LevelsOut, LookupReport, MismatchOut, NearestReport, PartOut, PartReport,
@@ -29,17 +31,18 @@ use crate::doc::Document;
 
 /// The format version and the names of the sections a document has, in document order.
 pub fn summary(d: &Document) -> DocumentSummary {
+    use crate::doc::fields as F;
     let sections = [
-        ("part", d.part.is_some()),
-        ("stage", d.stage.is_some()),
-        ("analysis", d.analysis.is_some()),
-        ("target", d.target.is_some()),
-        ("tolerance", d.tolerance.is_some()),
-        ("bench", d.bench.is_some()),
-        ("chain", d.chain.is_some()),
+        (&F::PART, d.part.is_some()),
+        (&F::STAGE, d.stage.is_some()),
+        (&F::ANALYSIS, d.analysis.is_some()),
+        (&F::TARGET, d.target.is_some()),
+        (&F::TOLERANCE, d.tolerance.is_some()),
+        (&F::BENCH, d.bench.is_some()),
+        (&F::CHAIN, d.chain.is_some()),
     ]
     .into_iter()
-    .filter_map(|(name, present)| present.then_some(name))
+    .filter_map(|(section, present)| present.then_some(section.key.name))
     .collect();
     DocumentSummary { halfrail: d.halfrail, sections }
 }

@@ -147,9 +147,17 @@ struct FieldErrorDef {
     /// The two joined as the CLI prints them.
     #[serde(getter = "ToString::to_string")]
     message: String,
+    /// The field's label as the page shows it, from the catalogue; null for an
+    /// input that is not a field of the document (`value`, `circuit`).
+    #[serde(getter = "field_label")]
+    label: Option<&'static str>,
 }
 
-/// A refusal: `{"field", "reason", "message"}`.
+fn field_label(e: &FieldError) -> Option<&'static str> {
+    crate::doc::fields::at_path(&e.field).map(|f| f.label)
+}
+
+/// A refusal: `{"field", "reason", "message", "label"}`.
 #[derive(Serialize)]
 #[serde(transparent)]
 pub struct FieldErrorOut<'a>(#[serde(with = "FieldErrorDef")] pub &'a FieldError);

@@ -8,11 +8,26 @@ use serde::ser::{SerializeStruct, Serializer};
 use serde::Serialize;
 
 use crate::analysis::spread::{Corner, Figure, Quantity, Stats, Swing, Trial};
+use crate::doc::read::Key;
 use crate::session::SpreadResult;
 
-/// One value per figure, under the figure's own key (`Figure::key`, which
-/// `trials_from_columns` reads back): the keys come from the core at run time, so
-/// no derive can name them.
+impl Figure {
+    /// The figure's name on the wire: its statistics and its column of trials
+    /// (which `trials_from_columns` reads back).
+    pub fn key(self) -> &'static str {
+        match self {
+            Figure::GainDb => "gain_db",
+            Figure::FLowHz => "f_low_hz",
+            Figure::FHighHz => "f_high_hz",
+            Figure::PhaseMarginDeg => "phase_margin_deg",
+            Figure::IqA => "iq_a",
+            Figure::NfDb => "nf_db",
+        }
+    }
+}
+
+/// One value per figure, under the figure's name: the figures come from the core
+/// at run time, so no derive can name them.
 fn by_figure<T: Serialize, S: Serializer>(values: &[T], serializer: S) -> Result<S::Ok, S::Error> {
     let mut out = serializer.serialize_struct("Figures", Figure::ALL.len())?;
     for (f, v) in Figure::ALL.iter().zip(values) {
@@ -26,7 +41,7 @@ fn figure_key<S: Serializer>(figure: &Figure, serializer: S) -> Result<S::Ok, S:
 }
 
 fn quantity_key<S: Serializer>(quantity: &Quantity, serializer: S) -> Result<S::Ok, S::Error> {
-    serializer.serialize_str(quantity.key())
+    serializer.serialize_str(crate::doc::fields::of(quantity.input()).key.name)
 }
 
 #[derive(Serialize)]
@@ -140,8 +155,8 @@ impl From<TrialColumns<'_>> for ColumnsForm {
 /// from several runs): the field named is `trials` when the text is not that.
 pub fn trials_from_columns(text: &str) -> crate::error::Result<Vec<Trial>> {
     let (columns, growing) = crate::doc::read_returned(text, "trials", |f| {
-        let columns = Figure::ALL.map(|figure| f.numbers(figure.key()).unwrap_or_else(|| f.missing(figure.key(), Vec::new())));
-        (columns, f.numbers(GROWING).unwrap_or_else(|| f.missing(GROWING, Vec::new())))
+        let columns = Figure::ALL.map(|figure| f.numbers(Key::plain(figure.key())).unwrap_or_else(|| f.missing(Key::plain(figure.key()), Vec::new())));
+        (columns, f.numbers(Key::plain(GROWING)).unwrap_or_else(|| f.missing(Key::plain(GROWING), Vec::new())))
     })?;
     let n = growing.len();
     if columns.iter().any(|c| c.len() != n) {

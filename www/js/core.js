@@ -102,4 +102,12 @@ HR.value = (name, fallback, ...args) => {
 HR.rkm = (v, kind) => HR.value('formatRkm', '', v, kind);
 HR.seriesFacts = () => HR.value('seriesFacts', []);
 HR.presets = () => HR.value('presets', []);
+// The document's fields (the core's catalogue, asked for once): HR.field(section, key)
+// is {label, name, unit, hint}, the words a form shows for it (`name`: how another
+// panel names it); `section` may be a list's items, `chain.blocks[]`.
+HR.fieldAt = (path) => {
+  if (!HR.fieldsKnown) HR.fieldsKnown = HR.value('documentFields', null);
+  return (HR.fieldsKnown && HR.fieldsKnown[path]) || null;
+};
+HR.field = (section, key) => HR.fieldAt(`${section}.${key}`) || { label: key, name: key, unit: '', hint: '' };
 HR.demoText = () => HR.value('demoDocument', '{"halfrail": 1}');

@@ -13,6 +13,7 @@
 
 use crate::analysis::Linearised;
 use crate::error::{FieldError, Result};
+use crate::input::{Input, TargetInput};
 use crate::part::Part;
 use crate::stage::{Component, Components};
 use crate::units::{format_eng, Unit};
@@ -45,8 +46,8 @@ pub struct Coupling {
 /// The refusal of a low corner too near f_design (checked before any search).
 pub fn check_corner(target_hz: f64, f_design: f64) -> Result<()> {
     if target_hz > F_LOW_MAX_OF_DESIGN * f_design {
-        return Err(FieldError::new(
-            "target.f_low_hz",
+        return Err(FieldError::of(
+            Input::Target(TargetInput::LowCorner),
             format!(
                 "a low corner of {} is not well below f_design ({}): the band edge is where the gain has fallen 3 dB from its value at f_design, and two coupling capacitors cannot put it above f_design/2 ({}) without taking the gain at f_design with them",
                 format_eng(target_hz, Some(Unit::Hertz), 4),
@@ -106,8 +107,8 @@ pub fn coupling(part: &Part, c: &Components, target_hz: f64, f_design: f64, z0: 
         raised += 1;
         if !(raise_in || raise_out) || raised > 2 * values.len() {
             let now = edge(part, &stage(i_in, i_out), f_design, z0)?;
-            return Err(FieldError::new(
-                "target.f_low_hz",
+            return Err(FieldError::of(
+                Input::Target(TargetInput::LowCorner),
                 format!(
                     "coupling capacitors up to {} cannot bring the low corner down to {}{}",
                     format_eng(LARGEST_F, Some(Unit::Farad), 3),

@@ -37,6 +37,7 @@ pub use solve::{ceiling_db, matched_r_in, r_fb_for, r_fb_under_ceiling, with_pai
 use crate::math;
 use crate::units::{db_power_ratio, db_voltage_ratio};
 use crate::error::{FieldError, Result};
+use crate::input::{Input, TargetInput};
 use crate::part::Part;
 use crate::stage::{Component, Components};
 use crate::values::{nearest, Series};
@@ -144,12 +145,12 @@ pub fn ideal_ratio(target: &Target, c: &Components, r_in: f64) -> f64 {
 }
 
 impl GainKind {
-    /// Refuses, naming `target.gain_kind`, a gain this stage does not have: a power
+    /// Refuses, naming the gain kind, a gain this stage does not have: a power
     /// gain (GT) needs a resistive source and load.
     pub fn measurable(self, c: &Components) -> Result<()> {
         let fitted = |part| c.get(part).is_some_and(|r| r > 0.0);
         if self == GainKind::Power && !(fitted(Component::SourceOhm) && fitted(Component::LoadOhm)) {
-            return Err(FieldError::new("target.gain_kind", "a power gain needs a source resistance and a load resistor"));
+            return Err(FieldError::of(Input::Target(TargetInput::GainKind), "a power gain needs a source resistance and a load resistor"));
         }
         Ok(())
     }
@@ -159,10 +160,10 @@ impl GainKind {
 fn check(target: &Target, c: &Components, f_design: f64) -> Result<()> {
     target.kind.measurable(c)?;
     if !(target.r_min_ohm > 0.0 && target.r_min_ohm < target.r_max_ohm) {
-        return Err(FieldError::new("target.r_max_ohm", format!("must be above target.r_min_ohm ({}), got {}", target.r_min_ohm, target.r_max_ohm)));
+        return Err(FieldError::of(Input::Target(TargetInput::ResistorMax), format!("must be above the smallest resistor allowed ({} Ω), got {}", target.r_min_ohm, target.r_max_ohm)));
     }
     if target.match_source && c.get(Component::SourceOhm).is_none_or(|r| r <= 0.0) {
-        return Err(FieldError::new("target.match_source", "there is no source resistance to match"));
+        return Err(FieldError::of(Input::Target(TargetInput::MatchSource), "there is no source resistance to match"));
     }
     target.f_low_hz.map_or(Ok(()), |f| check_corner(f, f_design))
 }
@@ -211,8 +212,8 @@ pub fn design(part: &Part, c: &Components, f_design: f64, z0: f64, target: &Targ
                 // Keep the last capacitors that left pairs; with none, refuse.
                 None if coupling_for.is_some() || found.candidates.is_empty() => break,
                 None => {
-                    return Err(FieldError::new(
-                        "target.f_low_hz",
+                    return Err(FieldError::of(
+                        Input::Target(TargetInput::LowCorner),
                         format!(
                             "coupling capacitors for this low corner take gain at f_design: with those sized for any of the best pairs, no pair of resistors in range reaches {:.2} dB there (at most {:.2} dB with r_fb open at the r_in values tried); lower the corner or the gain",
                             target.gain_db, ceiling
@@ -236,7 +237,7 @@ pub fn design(part: &Part, c: &Components, f_design: f64, z0: f64, target: &Targ
                 }
             }
             if kept.is_empty() {
-                return Err(FieldError::new("target.f_low_hz", "no pair keeps this low corner with the coupling capacitors chosen; lower the corner a little"));
+                return Err(FieldError::of(Input::Target(TargetInput::LowCorner), "no pair keeps this low corner with the coupling capacitors chosen; lower the corner a little"));
             }
             found.candidates = kept;
             k.f_low_hz = top_edge;

@@ -11,6 +11,7 @@
 use rand::{Rng, SeedableRng};
 use rand_chacha::ChaCha8Rng;
 
+use crate::input::{Input, PartInput};
 use crate::part::Part;
 use crate::stage::{Component, Components};
 
@@ -46,15 +47,15 @@ impl Quantity {
         fitted.chain([Quantity::Vdd, Quantity::Kn, Quantity::Kp, Quantity::Vtn, Quantity::Vtp]).collect()
     }
 
-    /// The document key naming it.
-    pub fn key(self) -> &'static str {
+    /// The input of the design it is (the wire names it by its document key).
+    pub fn input(self) -> Input {
         match self {
-            Quantity::Stage(k) => k.key(),
-            Quantity::Vdd => "vdd_v",
-            Quantity::Kn => "kn_a_per_v2",
-            Quantity::Kp => "kp_a_per_v2",
-            Quantity::Vtn => "vtn_v",
-            Quantity::Vtp => "vtp_v",
+            Quantity::Stage(k) => Input::Stage(k),
+            Quantity::Vdd => Input::Part(PartInput::Supply),
+            Quantity::Kn => Input::Part(PartInput::NmosK),
+            Quantity::Kp => Input::Part(PartInput::PmosK),
+            Quantity::Vtn => Input::Part(PartInput::NmosThreshold),
+            Quantity::Vtp => Input::Part(PartInput::PmosThreshold),
         }
     }
 

@@ -50,17 +50,6 @@ pub enum Figure {
 
 impl Figure {
     pub const ALL: [Figure; 6] = [Figure::GainDb, Figure::FLowHz, Figure::FHighHz, Figure::PhaseMarginDeg, Figure::IqA, Figure::NfDb];
-
-    pub fn key(self) -> &'static str {
-        match self {
-            Figure::GainDb => "gain_db",
-            Figure::FLowHz => "f_low_hz",
-            Figure::FHighHz => "f_high_hz",
-            Figure::PhaseMarginDeg => "phase_margin_deg",
-            Figure::IqA => "iq_a",
-            Figure::NfDb => "nf_db",
-        }
-    }
 }
 
 /// One trial's figures (`None` where a figure does not exist, e.g. no crossover).

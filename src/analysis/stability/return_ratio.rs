@@ -16,6 +16,7 @@ use super::natural_frequencies;
 use crate::analysis::Linearised;
 use crate::engine::{Node, SmallSignal, Workspace};
 use crate::error::{FieldError, Result};
+use crate::input::{Input, Section};
 
 /// The stage with stage 1's gm broken out, ready to return T at any frequency.
 pub struct ReturnRatio {
@@ -30,7 +31,7 @@ pub struct ReturnRatio {
 
 impl ReturnRatio {
     pub fn new(lin: &Linearised) -> Result<Self> {
-        let cut = lin.loop_break().ok_or_else(|| FieldError::new("part", "the stage has no inverter to break the loop at"))?;
+        let cut = lin.loop_break().ok_or_else(|| FieldError::of(Input::Section(Section::Part), "the stage has no inverter to break the loop at"))?;
         let mut small = lin.small_signal().clone();
         let layout = &small.layout;
         let mut b = DVector::zeros(layout.size);

@@ -9,6 +9,7 @@ use super::drive::{available_dbm, emf_amplitude, power_dbm, Record, Tone, IM3_BI
 use super::spectrum::amplitudes;
 use super::wave::{Wave, Waveforms};
 use crate::error::{FieldError, Result};
+use crate::input::{Input, Section};
 
 /// Harmonics counted in THD (2nd to 9th).
 pub const THD_HARMONICS: usize = 9;
@@ -172,7 +173,7 @@ pub fn intercept(w: &dyn Waveforms, f_hz: f64, start_dbm: f64, source_ohm: f64, 
         }
         last = Some(found);
     }
-    last.ok_or_else(|| FieldError::new("analysis", "no two-tone level was tried"))
+    last.ok_or_else(|| FieldError::of(Input::Section(Section::Analysis), "no two-tone level was tried"))
 }
 
 /// Available source power of the tone that drives the output to the rails, by the

@@ -29,6 +29,7 @@ pub use spectrum::amplitudes;
 pub use wave::{QuasiStatic, Steady, TimeDomain, Wave, Waveforms};
 
 use crate::error::{FieldError, Result};
+use crate::input::{AnalysisInput, Input};
 use crate::part::Part;
 use crate::stage::{Component, Components};
 
@@ -83,7 +84,7 @@ pub const TRANSFER_POINTS: usize = 201;
 pub fn source_resistance(c: &Components) -> Result<f64> {
     c.get(Component::SourceOhm)
         .filter(|&r| r > 0.0)
-        .ok_or_else(|| FieldError::new("stage.source_ohm", "the large-signal levels are powers available from the source: fit a source resistance"))
+        .ok_or_else(|| FieldError::of(Input::Stage(Component::SourceOhm), "the large-signal levels are powers available from the source: fit a source resistance"))
 }
 
 /// The compression sweep's range of source power, dBm, around `rail_dbm` (the level
@@ -93,12 +94,12 @@ pub fn sweep_range_dbm(rail_dbm: f64) -> (f64, f64) {
 }
 
 /// A failure of the engine inside the large-signal analysis (field `circuit`),
-/// named as the document field that asks for that analysis, `analysis.input_dbm`,
+/// named as the document field that asks for that analysis, its input level,
 /// with the step that failed in words: the document is then refused for its
 /// large-signal level, never with a field it does not have.
 fn named(e: FieldError, doing: &str) -> FieldError {
     if e.field == "circuit" {
-        FieldError::new("analysis.input_dbm", format!("the large-signal analysis could not follow the stage in {doing}: {}", e.reason))
+        FieldError::of(Input::Analysis(AnalysisInput::Level), format!("the large-signal analysis could not follow the stage in {doing}: {}", e.reason))
     } else {
         e
     }
@@ -149,8 +150,8 @@ pub fn analyse(part: &Part, c: &Components, f_hz: f64, input_dbm: f64, curve: Cu
     let amplitude = emf_amplitude(input_dbm, source_ohm);
     let ceiling_dbm = pin_ceiling_dbm(part.vdd, time.gain_to_input(f_hz)?, source_ohm);
     if input_dbm > ceiling_dbm {
-        return Err(FieldError::new(
-            "analysis.input_dbm",
+        return Err(FieldError::of(
+            Input::Analysis(AnalysisInput::Level),
             format!(
                 "the input level is beyond what the supply allows: {input_dbm} dBm from {source_ohm} Ω puts more than {PIN_LIMIT_VDD} times \
                  the {} V supply on the input pin at {f_hz} Hz, where a real part's protection diodes would conduct; at most {ceiling_dbm:.1} dBm",

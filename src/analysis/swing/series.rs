@@ -10,6 +10,7 @@ use crate::units::voltage_ratio_db;
 use super::drive::{available_dbm, power_dbm};
 use super::wave::QuasiStatic;
 use crate::error::{FieldError, Result};
+use crate::input::{Input, Section};
 
 /// Points and degree of the fit: Chebyshev nodes keep a degree-9 fit well
 /// conditioned on the scaled interval [−1, 1].
@@ -91,7 +92,7 @@ impl PowerSeries {
         let u: Vec<f64> = (0..POINTS).map(|k| math::cos(std::f64::consts::PI * (k as f64 + 0.5) / POINTS as f64)).collect();
         let v = outward(stage, &u, span)?;
         if !v.iter().all(|x| x.is_finite()) {
-            return Err(FieldError::new("analysis", "the power-series fit failed: the transfer curve is not finite"));
+            return Err(FieldError::of(Input::Section(Section::Analysis), "the power-series fit failed: the transfer curve is not finite"));
         }
         let c = monomial(&chebyshev_fit(&v));
         // Back from the scaled variable: a_k = c_k / span^k.

@@ -12,6 +12,7 @@ use crate::analysis::stability::{fastest_growing, growth_hz, growth_words};
 use crate::analysis::{stage_operating_point, Held};
 use crate::engine::{DcSystem, Netlist, Node, OperatingPoint, SmallSignal, Transient};
 use crate::error::{FieldError, Result};
+use crate::input::{Input, Section};
 use crate::part::Part;
 use crate::stage::{build, Components, StageCircuit};
 
@@ -78,8 +79,8 @@ impl TimeDomain {
     pub fn check_settles(&self) -> Result<()> {
         match fastest_growing(&self.small)? {
             None => Ok(()),
-            Some(p) => Err(FieldError::new(
-                "stage",
+            Some(p) => Err(FieldError::of(
+                Input::Section(Section::Stage),
                 format!(
                     "{}, so the stage's output is its own oscillation, not the signal: no large-signal figures (the loop analysis shows where it grows and how to compensate it)",
                     growth_words(growth_hz(p))
@@ -355,7 +356,10 @@ impl Waveforms for QuasiStatic {
         for k in 0..record.samples {
             let t = k as f64 * record.step_s();
             let emf = emf_at(tones, t);
-            let op = system.continue_to(self.source, from, &guess, emf).map_err(|e| FieldError::new(e.field, format!("{} (quasi-static, t = {t:.4e} s)", e.reason)))?;
+            let op = system.continue_to(self.source, from, &guess, emf).map_err(|e| {
+                let reason = format!("{} (quasi-static, t = {t:.4e} s)", e.reason);
+                e.because(reason)
+            })?;
             wave.push(t, |n| op.voltage(n), &self.nodes);
             (from, guess) = (emf, op.x);
             if (k + 1) % PROGRESS_EVERY == 0 {

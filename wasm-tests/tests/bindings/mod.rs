@@ -41,8 +41,19 @@ fn bad_input_throws_the_field_and_the_reason() {
     assert_eq!(text(&e, "field"), "impedance");
     let e = wasm::check_document(r#"{"halfrail": 1, "stage": {"r_fb_ohm": -3300}}"#).unwrap_err();
     assert_eq!(text(&e, "message"), "stage.r_fb_ohm: must be > 0, got -3300");
+    assert_eq!(text(&e, "label"), "R fb");
     let e = wasm::parse_value("2.2 uF", "Ω", "stage.r_in_ohm").unwrap_err();
     assert_eq!(text(&e, "field"), "stage.r_in_ohm");
+}
+
+#[wasm_bindgen_test]
+fn the_document_fields_cross_with_their_words() {
+    let fields = wasm::document_fields().unwrap();
+    let supply = get(&fields, "part.vdd_v");
+    assert_eq!((text(&supply, "label"), text(&supply, "name"), text(&supply, "unit")), ("Supply".into(), "Supply Vdd".into(), "V".into()));
+    assert_eq!(text(&supply, "hint"), "V, e.g. 3.3");
+    assert_eq!(text(&get(&fields, "stage.c_fb_f"), "unit"), "F");
+    assert_eq!(text(&get(&fields, "chain.blocks[].dc_w"), "label"), "DC power");
 }
 
 #[wasm_bindgen_test]

@@ -30,13 +30,10 @@
   };
   // A chain started from nothing: the document has no `chain` section yet.
   const FIRST_CHAIN = { input_dbm: -60, bandwidth_hz: '100 kHz', blocks: [] };
-  const INPUTS = [
-    ['input_dbm', 'Input level', 'dBm available at the chain’s input, e.g. -60'],
-    ['bandwidth_hz', 'Noise bandwidth', 'Hz, e.g. 230 kHz'],
-    ['snr_wanted_db', 'SNR wanted', 'dB, for the minimum detectable signal; empty for 10 dB'],
-  ];
+  // The chain's own values in its form (labels and hints from HR.field).
+  const INPUTS = ['input_dbm', 'bandwidth_hz', 'snr_wanted_db'];
   // Shown once the core reads it (it arrived with the chain's warnings).
-  const WARN_INPUT = ['headroom_warn_db', 'Headroom warning', 'dB: warn at a node nearer than this to its 1 dB point; empty for 6 dB'];
+  const WARN_INPUT = 'headroom_warn_db';
   // The cumulative figures after each block in the table: [key, heading, how shown]
   // (the noise temperature, in the totals, is in the CSV too).
   const pct = (v) => (known(v) ? `${fixed(100 * v, 1)} %` : '—');
@@ -121,7 +118,7 @@
       };
 
       // ---- The chain's drive ------------------------------------------------------
-      const inputs = [...INPUTS, WARN_INPUT].map(([key, label, hint]) => HR.bind('chain', key, { label, hint, compact: true }));
+      const inputs = [...INPUTS, WARN_INPUT].map((key) => HR.bind('chain', key, { label: HR.field('chain', key).label, hint: HR.field('chain', key).hint, compact: true }));
       const warnInput = inputs[inputs.length - 1];
       warnInput.wrap.hidden = true;
       const inputCard = card('Drive and bandwidth',
@@ -269,7 +266,7 @@
       warningsCard.hidden = true;
 
       // ---- Runs of directly coupled stages ----------------------------------------
-      const runsChoice = HR.bind('chain', 'stage_runs', { label: 'Stages next to each other', fallback: 'matched',
+      const runsChoice = HR.bind('chain', 'stage_runs', { label: HR.field('chain', 'stage_runs').label, fallback: 'matched',
         options: [['matched', 'Each a matched block'], ['one-circuit', 'One circuit, each stage loading the one before']],
         read: (v) => (v === 'matched' ? '' : v) });
       runsChoice.wrap.classList.add('pick');

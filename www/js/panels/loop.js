@@ -94,13 +94,16 @@
 
   // ---- The compensation helper -------------------------------------------------
 
-  const KNOBS = { c_fb_f: ['F', 'C', 'C fb'], r_out_ohm: ['Ω', 'R', 'R out'], r_fb_ohm: ['Ω', 'R', 'R fb'] };
+  // The components the helper changes, each with its RKM kind (its label and unit
+  // from the core's catalogue, HR.field).
+  const KNOBS = { c_fb_f: 'C', r_out_ohm: 'R', r_fb_ohm: 'R' };
+  const knobName = (key) => (KNOBS[key] ? HR.field('stage', key).label : key);
 
   // A standard value as the Stage panel shows it (RKM code for a resistor, engineering
   // notation for a capacitor, with the coarsest E-series it belongs to), and the text
   // to put in the design: the RKM code when it reads back as exactly the value.
   const valueOf = (key, v) => {
-    const [unit, kind] = KNOBS[key] || ['', 'R'];
+    const [unit, kind] = KNOBS[key] ? [HR.field('stage', key).unit, KNOBS[key]] : ['', 'R'];
     const rkm = HR.rkm(v, kind);
     const shown = unit === 'Ω' ? rkm || fmt(v, unit, 3) : fmt(v, unit, 3);
     const look = HR.call('lookUp', String(v));
@@ -280,8 +283,8 @@
           const found = g.changes.length > 0;
           // Each change of the suggestion (two for a pair), shown and as the text to set.
           const vs = g.changes.map((c) => ({ key: c.key, ...valueOf(c.key, c.value) }));
-          const shown = vs.map((v) => (vs.length > 1 ? `${(KNOBS[v.key] || [])[2] || v.key} ${v.shown}` : v.shown)).join(' + ');
-          const label = vs.map((v) => `${(KNOBS[v.key] || [])[2] || v.key} = ${v.shown}`).join(', ');
+          const shown = vs.map((v) => (vs.length > 1 ? `${knobName(v.key)} ${v.shown}` : v.shown)).join(' + ');
+          const label = vs.map((v) => `${knobName(v.key)} = ${v.shown}`).join(', ');
           const apply = found ? el('button', { type: 'button', class: 'apply', 'aria-label': `Apply ${label}`,
             onclick: () => (vs.length === 1
               ? HR.design.set('stage', vs[0].key, vs[0].text, 'loop')

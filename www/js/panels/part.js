@@ -7,32 +7,16 @@
 (() => {
   const { el, card, choice, table, fillRows } = HR.ui;
 
-  // The part's fields: document key, label, hint.
-  const FIELDS = [
-    ['vdd_v', 'Supply', 'V, e.g. 3.3'],
-    ['stages', 'Stages', '1 unbuffered, 3 buffered'],
-    ['kn_a_per_v2', 'kn (NMOS)', 'A/V², e.g. 6m'],
-    ['kp_a_per_v2', 'kp (PMOS)', 'A/V², e.g. 3m'],
-    ['vtn_v', 'Vtn', 'V, e.g. 0.55'],
-    ['vtp_v', 'Vtp', 'V, negative, e.g. -0.6'],
-    ['lambda_n_per_v', 'λn', '1/V'],
-    ['lambda_p_per_v', 'λp', '1/V'],
-    ['cgs_f', 'Cgs', 'F per stage, e.g. 4p'],
-    ['cgd_f', 'Cgd', 'F per stage, e.g. 1p2'],
-    ['cdb_f', 'Cdb', 'F per stage, e.g. 3p'],
-    ['gamma', 'Noise γ', 'default 2/3'],
-    ['temp_c', 'Temperature', '°C, default 25'],
-    ['n_slope', 'Slope n (EKV)', 'default 1.3'],
-    ['pkg_max_w', 'Package limit', 'W, for the warning, e.g. 0.5'],
-  ];
-  const BENCH = [
-    ['vdd_v', 'Supply at the bench', 'V'],
-    ['stages', 'Stages of the part measured', '1 or 3'],
-    ['idd_a', 'Supply current, self-biased', 'A, e.g. 2.84 mA'],
-    ['vbias_v', 'Self-bias voltage', 'V'],
-    ['load_ohm', 'Load of the gain readings', 'Ω, e.g. 10k'],
-    ['load_f', 'Load capacitance', 'F, e.g. 10p'],
-  ];
+  // The part's fields and the bench's, in the order shown (labels and hints from
+  // the core's catalogue, HR.field).
+  const FIELDS = ['vdd_v', 'stages', 'kn_a_per_v2', 'kp_a_per_v2', 'vtn_v', 'vtp_v', 'lambda_n_per_v', 'lambda_p_per_v',
+    'cgs_f', 'cgd_f', 'cdb_f', 'gamma', 'temp_c', 'n_slope', 'pkg_max_w'];
+  const BENCH = ['vdd_v', 'stages', 'idd_a', 'vbias_v', 'load_ohm', 'load_f'];
+  // A compact field of `section` bound to the design, in the catalogue's words.
+  const compact = (section, key) => {
+    const { label, hint } = HR.field(section, key);
+    return HR.bind(section, key, { label, hint, compact: true });
+  };
   const POINTS = 501;
 
   const partCard = (problem) => {
@@ -43,9 +27,9 @@
       const p = presets.find((x) => x.id === pick.select.value);
       HR.design.replace('part', JSON.parse(JSON.stringify(p.part)), `load “${p.title}”`);
     } }, 'Load preset');
-    const model = HR.bind('part', 'model', { label: 'Model', fallback: 'square-law',
+    const model = HR.bind('part', 'model', { label: HR.field('part', 'model').label, fallback: 'square-law',
       options: [['square-law', 'Square law (long channel)'], ['ekv', 'EKV (weak to strong inversion)']] });
-    const fields = FIELDS.map(([key, label, hint]) => HR.bind('part', key, { label, hint, compact: true }));
+    const fields = FIELDS.map((key) => compact('part', key));
     const node = card('Part',
       el('p', { class: 'intro' }, 'Start from an illustrative preset or type your part’s parameters (given at 25 °C). Values take engineering notation or RKM codes.'),
       el('div', { class: 'inputs' }, pick.wrap, el('div', { class: 'actions' }, load)),
@@ -157,13 +141,15 @@
   const curveToText = (c) => (c || []).map((r) => `${r.vin_v}, ${r.vout_v}`).join('\n');
 
   // A box of readings, a line each, bound to a list of the bench section.
-  const area = (key, label, hint, read, write) => HR.bind('bench', key, { label, hint, rows: 4, id: `area-bench-${key}`, read, write }).wrap;
+  const area = (key, read, write) => {
+    const { label, hint } = HR.field('bench', key);
+    return HR.bind('bench', key, { label, hint, rows: 4, id: `area-bench-${key}`, read, write }).wrap;
+  };
 
   const fitCard = (panel) => {
-    const fields = BENCH.map(([key, label, hint]) => HR.bind('bench', key, { label, hint, compact: true }));
-    const gains = area('gains', 'Open-loop gain readings', 'one per line: frequency, gain (V/V, or add dB) — paste from a spreadsheet',
-      gainsFromText, gainsToText);
-    const curve = area('curve', 'Transfer-curve points (optional)', 'one per line: Vin, Vout, unloaded', curveFromText, curveToText);
+    const fields = BENCH.map((key) => compact('bench', key));
+    const gains = area('gains', gainsFromText, gainsToText);
+    const curve = area('curve', curveFromText, curveToText);
     const message = el('p', { class: 'error', 'aria-live': 'polite' });
     const params = table('Fitted parameters (±1σ from the Jacobian)', ['Parameter', 'Value', '±1σ']);
     const residuals = table('Each reading against the fitted part', ['Reading', 'Measured', 'Fitted', 'In σ']);

@@ -19,15 +19,10 @@
   ];
   const show = (v, unit) => (!known(v) ? '—' : unit === '°' ? `${fixed(v, 1)}°` : fmt(v, unit, 4));
   const signed = (v, unit) => `${v > 0 ? '+' : ''}${show(v, unit)}`;
-  const PARTS = {
-    shunt_ohm: 'R shunt', r_in_ohm: 'R in', r_fb_ohm: 'R fb', r_out_ohm: 'R out', c_in_f: 'C in', c_fb_f: 'C fb', c_out_f: 'C out',
-    vdd_v: 'Supply Vdd', kn_a_per_v2: 'kn (NMOS)', kp_a_per_v2: 'kp (PMOS)', vtn_v: 'Vtn', vtp_v: 'Vtp',
-  };
-  const TOLERANCES = [
-    ['resistor_pct', 'Resistors', '± %, e.g. 1'], ['capacitor_pct', 'Capacitors', '± %, e.g. 10'],
-    ['vdd_pct', 'Supply', '± %, e.g. 5'], ['k_pct', 'kn and kp', '± %, e.g. 20'], ['vt_mv', 'Thresholds', '± mV, e.g. 100'],
-    ['trials', 'Trials', 'how many random builds'], ['seed', 'Seed', 'whole number: the same seed draws the same builds'],
-  ];
+  // A toleranced quantity, named by its key: a component of the stage or a value of
+  // the part (the core's catalogue words, as named away from their forms).
+  const partName = (key) => (HR.fieldAt(`stage.${key}`) || HR.fieldAt(`part.${key}`) || { name: key }).name;
+  const TOLERANCES = ['resistor_pct', 'capacitor_pct', 'vdd_pct', 'k_pct', 'vt_mv', 'trials', 'seed'];
   // Runs the spread of `text` in the background → {promise, cancel()}, as HR.background.run.
   // Two lanes: the trials in halves on two workers, then spreadFinish on the first;
   // one lane: spreadReport in one worker.
@@ -88,8 +83,8 @@
       // ---- Tolerances and the run ---------------------------------------------------
       // Trials and seed are whole numbers in the document, not values with units.
       const whole = (text) => (/^\d+$/.test(text.trim()) ? Number(text.trim()) : text.trim());
-      const fields = TOLERANCES.map(([key, label, hint]) => HR.bind('tolerance', key,
-        { label, hint, compact: true, origin: 'spread', read: /^(trials|seed)$/.test(key) ? whole : undefined }));
+      const fields = TOLERANCES.map((key) => HR.bind('tolerance', key, { label: HR.field('tolerance', key).label, hint: HR.field('tolerance', key).hint,
+        compact: true, origin: 'spread', read: /^(trials|seed)$/.test(key) ? whole : undefined }));
 
       const bar = el('progress', { max: 1, value: 0, 'aria-label': 'Progress of the Monte Carlo run' });
       const barText = el('span', { class: 'run-text', 'aria-live': 'polite' }, '');
@@ -125,7 +120,7 @@
         const top = Math.max(...rows.map((s) => Math.abs(s.swing[k]))) || 1;
         bars.replaceChildren(...rows.map(({ quantity, swing }) => {
           const v = swing[k];
-          return el('div', { class: 'bar-row', role: 'listitem', 'data-key': quantity }, el('span', {}, PARTS[quantity] || quantity),
+          return el('div', { class: 'bar-row', role: 'listitem', 'data-key': quantity }, el('span', {}, partName(quantity)),
             el('span', { class: 'bar-track' }, el('span', { class: v < 0 ? 'bar low' : 'bar', style: `width:${(50 * Math.abs(v)) / top}%` })),
             el('span', { class: 'bar-value' }, signed(v, unit)));
         }));

@@ -6,11 +6,8 @@
 (() => {
   const { el, card } = HR.ui;
 
-  const NAMES = {
-    source_ohm: ['Rs', 'Ω'], shunt_ohm: ['R shunt', 'Ω'], c_in_f: ['C in', 'F'], r_in_ohm: ['R in', 'Ω'],
-    r_fb_ohm: ['R fb', 'Ω'], c_fb_f: ['C fb', 'F'], r_out_ohm: ['R out', 'Ω'], c_out_f: ['C out', 'F'],
-    load_ohm: ['R load', 'Ω'], load_f: ['C load', 'F'],
-  };
+  // A component's short name on the schematic and its unit (the core's catalogue).
+  const nameOf = (key) => HR.field('stage', key).label;
   const FIGURES = [
     ['gain', 'Gain at f_design'], ['gt', 'Power gain GT'], ['band', 'Band edges (−3 dB)'], ['zin', 'Input impedance'],
     ['rl', 'Return loss'], ['nf', 'Noise figure'], ['iq', 'Bias current'], ['diss', 'Package dissipation'],
@@ -27,7 +24,7 @@
   const label = (key) => {
     const text = raw(key);
     if (!text) return null;
-    const [name, unit] = NAMES[key];
+    const { label: name, unit } = HR.field('stage', key);
     const parsed = HR.call('parseValue', text, unit, `stage.${key}`);
     if (parsed.error) return { text: `${name} | ${text} (!)`, short: false };
     const v = parsed.ok.value;
@@ -50,28 +47,22 @@
     const back = code ? HR.call('parseValue', code, unit, '') : {};
     return back.ok && back.ok.value === v ? code : v;
   };
-  const TARGET = [
-    ['gain_db', 'Gain wanted', 'dB at f_design, e.g. 12'], ['f_low_hz', 'Low corner', 'Hz, optional: picks C in and C out'],
-    ['s11_max_db', 'S11 at most', 'dB, two-port S11 at z0 (as the Response panel), optional, e.g. -15'],
-    ['return_loss_min_db', 'Return loss at least', 'dB against the source resistance, optional, e.g. 15'],
-    ['iq_max_a', 'Supply current at most', 'A, optional'],
-    ['nf_max_db', 'Noise figure at most', 'dB, optional'], ['gain_tol_db', 'Gain tolerance', '± dB, optional (for the Spread yield)'],
-    ['pm_min_deg', 'Phase margin at least', '°, optional (for the Spread yield)'],
-    ['r_min_ohm', 'Resistors from', 'Ω, optional (10 Ω unless widened)'], ['r_max_ohm', 'Resistors up to', 'Ω, optional (10 MΩ unless widened)'],
-  ];
+  // The target's fields in the form, in the order shown (words from HR.field).
+  const TARGET = ['gain_db', 'f_low_hz', 's11_max_db', 'return_loss_min_db', 'iq_max_a', 'nf_max_db', 'gain_tol_db', 'pm_min_deg',
+    'r_min_ohm', 'r_max_ohm'];
 
   // The form (the design's `target` section, so it persists and undoes) and the
   // core's designReport laid out: ranked standard pairs, each with Use.
   const designCard = (container) => {
     const text = (key) => { const v = HR.design.get('target', key); return v === undefined || v === null ? '' : String(v); };
     const bound = (key, opts) => HR.bind('target', key, { compact: true, origin: 'stage', ...opts }).wrap;
-    const fields = TARGET.map(([key, label, hint]) => bound(key, { label, hint }));
+    const words = (key) => HR.field('target', key);
+    const fields = TARGET.map((key) => bound(key, { label: words(key).label, hint: words(key).hint }));
     const selects = [
-      ['gain_kind', 'Gain kind', [['voltage', 'Voltage, v(out)/v(in)'], ['power', 'Power, GT']], 'voltage'],
-      ['series', 'Resistor series', HR.seriesFacts().map((f) => [f.name, f.name]), 'E24'],
-    ].map(([key, label, options, fallback]) => bound(key, { label, options, fallback }));
-    const ticks = [['match_source', 'R in matches the source resistance'], ['allow_combinations', 'R fb may be two standard values, in series or parallel']]
-      .map(([key, tick]) => bound(key, { tick, compact: false }));
+      ['gain_kind', [['voltage', 'Voltage, v(out)/v(in)'], ['power', 'Power, GT']], 'voltage'],
+      ['series', HR.seriesFacts().map((f) => [f.name, f.name]), 'E24'],
+    ].map(([key, options, fallback]) => bound(key, { label: words(key).label, options, fallback }));
+    const ticks = ['match_source', 'allow_combinations'].map((key) => bound(key, { tick: words(key).label, compact: false }));
     // Not a value of the design: whether Use takes the capacitors too.
     const caps = { box: el('input', { type: 'checkbox' }) };
     caps.box.checked = true;
@@ -177,7 +168,7 @@
 
       const edit = (key, anchor) => {
         const input = el('input', { type: 'text', class: 'in-place', value: raw(key), spellcheck: 'false',
-          'aria-label': `${NAMES[key][0]} (${key}), empty for not fitted`, style: `left:${anchor.x}px;top:${anchor.y}px` });
+          'aria-label': `${nameOf(key)} (${key}), empty for not fitted`, style: `left:${anchor.x}px;top:${anchor.y}px` });
         editing = key;
         const finish = (commit) => {
           if (editing !== key) return;
@@ -203,9 +194,9 @@
           type: 'button', class: a.text ? 'value' : 'value ghost', 'data-key': a.key,
           'aria-invalid': error && error.field === `stage.${a.key}` ? 'true' : 'false',
           style: `left:${a.x}px;top:${a.y}px`,
-          'aria-label': a.text ? `${a.text.replace(' | ', ' ')}: edit` : `${NAMES[a.key][0]} not fitted: add`,
+          'aria-label': a.text ? `${a.text.replace(' | ', ' ')}: edit` : `${nameOf(a.key)} not fitted: add`,
           onclick: () => edit(a.key, a),
-        }, ...(a.text ? a.text.split(' | ').map((t) => el('span', {}, t)) : [`+ ${NAMES[a.key][0]}`]))));
+        }, ...(a.text ? a.text.split(' | ').map((t) => el('span', {}, t)) : [`+ ${nameOf(a.key)}`]))));
       };
 
       const cells = {};

@@ -99,8 +99,8 @@
       let shownText = null;
 
       // ---- Level and run ----------------------------------------------------------
-      const level = HR.bind('analysis', 'input_dbm', { origin: 'swing',
-        label: 'Input level (dBm available from the source)', hint: 'One tone at f_design, e.g. −40 dBm; empty for −30 dBm.' });
+      const { label, hint } = HR.field('analysis', 'input_dbm');
+      const level = HR.bind('analysis', 'input_dbm', { origin: 'swing', label, hint });
       level.wrap.classList.add('level');
 
       const bar = el('progress', { max: 1, value: 0, 'aria-label': 'Progress of the large-signal run' });
