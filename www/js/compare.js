@@ -47,13 +47,23 @@ HR.compare = (() => {
     return true;
   };
 
-  // The reference's result of a fast core entry (its text first, then `args`), or
-  // null without a reference or when the core refuses it.
+  // The reference's result of a small-signal core entry (its text first, then `args`),
+  // or null without a reference, when the core refuses it, or while it computes: the
+  // first ask runs it in a worker (lane `reference-<entry>`: a reference can be a
+  // design that takes long, and the page must not wait on it) and every render is run
+  // again when it arrives.
   const report = (entry, ...args) => {
     const t = text();
     if (!t) return null;
     const key = JSON.stringify([entry, args]);
-    if (!memo.has(key)) memo.set(key, HR.call(entry, t, ...args));
+    if (!memo.has(key)) {
+      memo.set(key, { pending: true });
+      HR.background.run(entry, [t, ...args], { lane: `reference-${entry}` }).promise.then((r) => {
+        if (text() !== t || memo.get(key) === undefined || !memo.get(key).pending) return;
+        memo.set(key, r.cancelled ? {} : r);
+        listeners.forEach((fn) => fn());
+      });
+    }
     const r = memo.get(key);
     return r.ok === undefined ? null : r.ok;
   };
