@@ -57,16 +57,30 @@ HR.compare = (() => {
     if (!t) return null;
     const key = JSON.stringify([entry, args]);
     if (!memo.has(key)) {
-      memo.set(key, { pending: true });
-      HR.background.run(entry, [t, ...args], { lane: `reference-${entry}` }).promise.then((r) => {
-        if (text() !== t || memo.get(key) === undefined || !memo.get(key).pending) return;
+      const pending = { pending: true };
+      pending.promise = HR.background.run(entry, [t, ...args], { lane: `reference-${entry}` }).promise.then((r) => {
+        if (text() !== t || memo.get(key) !== pending) return;
         memo.set(key, r.cancelled ? {} : r);
         listeners.forEach((fn) => fn());
       });
+      memo.set(key, pending);
     }
     const r = memo.get(key);
     return r.ok === undefined ? null : r.ok;
   };
+
+  // A background run (`handle`, as HR.background.run returns) whose promise also waits
+  // for the reference's results of `entries` ([[entry, ...args], …]), so that the
+  // panel's render finds them: what a panel's follow job returns.
+  const along = (handle, entries) => ({
+    cancel: handle.cancel,
+    promise: Promise.all([handle.promise, ...entries.map(([entry, ...args]) => {
+      if (!text()) return null;
+      report(entry, ...args);
+      const m = memo.get(JSON.stringify([entry, args]));
+      return m && m.promise;
+    })]).then(([r]) => r),
+  });
 
   // `render` run again on what it last drew whenever the reference changes.
   const rerender = (render) => {
@@ -174,5 +188,5 @@ HR.compare = (() => {
     return [el('button', { type: 'button', onclick: pin }, 'Pin as reference'), clear, badge];
   };
 
-  return { text, label, pin, clear: () => keep(null), onChange: (fn) => listeners.add(fn), report, rerender, figures, slow, controls };
+  return { text, label, pin, clear: () => keep(null), onChange: (fn) => listeners.add(fn), report, along, rerender, figures, slow, controls };
 })();

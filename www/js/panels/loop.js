@@ -342,7 +342,8 @@
       const box = HR.background.runBox('loop analysis');
       verdictCard.querySelector('h2').after(box.node);
       box.attach(HR.background.follow(container, {
-        name: 'loopReport', args: (text) => [text], lane: 'loop', delay: 0, quiet: HR.background.QUIET,
+        job: (text) => HR.compare.along(HR.background.run('loopReport', [text], { lane: 'loop' }), [['loopReport']]),
+        delay: 0, quiet: HR.background.QUIET,
         render,
         report: (error) => {
           problem.textContent = error ? error.message || error.reason : '';

@@ -225,7 +225,8 @@
       const box = HR.background.runBox('operating point and curves');
       bias.node.querySelector('h2').after(box.node);
       box.attach(HR.background.follow(container, {
-        name: 'partReport', args: (text) => [text, POINTS], lane: 'part', delay: 0, quiet: HR.background.QUIET,
+        job: (text) => HR.compare.along(HR.background.run('partReport', [text, POINTS], { lane: 'part' }), [['partReport', POINTS]]),
+        delay: 0, quiet: HR.background.QUIET,
         render: HR.compare.rerender((r) => { bias.render(r); curves.render(r); }),
         report: (error, at) => { problem.textContent = error && !at ? error.message || error.reason : ''; },
         progress: box.progress,

@@ -100,7 +100,8 @@
       const box = HR.background.runBox('response');
       figures.querySelector('h2').after(box.node);
       box.attach(HR.background.follow(container, {
-        name: 'responseReport', args: (text) => [text], lane: 'response', delay: 0, quiet: HR.background.QUIET,
+        job: (text) => HR.compare.along(HR.background.run('responseReport', [text], { lane: 'response' }), [['responseReport']]),
+        delay: 0, quiet: HR.background.QUIET,
         render,
         report: (error) => { problem.textContent = error ? error.message || error.reason : ''; },
         progress: box.progress,
