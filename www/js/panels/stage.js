@@ -253,7 +253,8 @@
       // frame (worker.js). The schematic shows the draft at once, whatever the run.
       let shownError = null;
       refresh(null);
-      HR.design.onChange(() => { if (!editing) refresh(shownError); });
+      HR.design.onChange(() => { if (!editing && HR.ui.shown(container)) refresh(shownError); });
+      HR.ui.onShown(container, () => refresh(shownError));
       const box = HR.background.runBox('key figures');
       stale.before(box.node);
       box.attach(HR.background.follow(container, {
