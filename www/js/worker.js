@@ -312,7 +312,7 @@ HR.background = (() => {
     const { el } = HR.ui;
     let follower = null;
     const bar = el('progress', { max: 1, 'aria-label': `Progress of the ${what}` });
-    const text = el('span', { class: 'run-text', 'aria-live': 'polite' }, `Computing the ${what} in the background: this design takes longer than a frame. The page stays usable.`);
+    const text = el('span', { class: 'run-text', 'aria-live': 'polite' }, `Computing the ${what} in the background…`);
     const cancel = el('button', { type: 'button', class: 'cancel', onclick: () => follower && follower.cancel() }, 'Cancel');
     const now = el('button', { type: 'button', hidden: true, onclick: () => follower && follower.start() }, 'Compute now');
     const node = el('div', { class: 'run-wrap' }, el('div', { class: 'run', hidden: true }, bar, text, cancel), now);
