@@ -331,8 +331,13 @@ HR.background = (() => {
     };
   };
 
-  // How long a small-signal panel's run may take before it is shown as running:
-  // ordinary designs answer well within it, so an edit redraws with no flash.
+  // Why every panel's figures of the design come from a worker, even the few-ms ones:
+  // a call on the main thread cannot be interrupted, so no timing of earlier calls
+  // can keep the first slow one (one edit can take the loop helper from 2 ms to a
+  // second) or a runaway from freezing the page. The price is a hop to the worker
+  // and back, 1–3 ms on the demo. QUIET is how long such a run may take before it is
+  // shown as running: ordinary designs answer well within it, so an edit redraws
+  // with no flash of the stale marker.
   const QUIET = 120;
 
   return { run, calls, follow, staleNotes, staleMarker, runBox, QUIET, started: 0 };
