@@ -29,8 +29,10 @@ for (let i = 0; i < RUNS; i++) {
   await page.goto(PAGE_URL + '#part');
   await page.reload();
   await page.waitForSelector('html[data-ready="true"]');
+  await page.waitForSelector('#panel-part[data-computed]');
+  // The first figures drawn (the Part panel computes in a worker, after the shell is up).
   const t = await page.evaluate(() => ({
-    first: performance.getEntriesByName('hr-first-result')[0].startTime,
+    first: (performance.getEntriesByName('hr-first-figures')[0] || performance.getEntriesByName('hr-first-result')[0]).startTime,
     wasm: performance.getEntriesByName('hr-wasm-instantiate')[0].duration,
   }));
   first.push(t.first);
@@ -124,14 +126,20 @@ const spreadWorkers = await workerPage.evaluate(async () => {
 await workerPage.close();
 
 // An edit on the Stage panel until its figures and schematic are redrawn: 40 edits.
+// Two times each: to the frame that first finds the figures counted (polled every
+// frame, so a result that comes from a worker is seen at the next frame), and to the
+// moment they are counted, drawn in the DOM (`exact`).
 const editPage = await browser.context.newPage();
 await editPage.goto(PAGE_URL + '#stage');
 await editPage.waitForSelector('#panel-stage[data-computed]');
-const edits = await editPage.evaluate(async () => {
+const { edits, exact } = await editPage.evaluate(async () => {
   const panel = document.getElementById('panel-stage');
-  const out = [];
+  const out = { edits: [], exact: [] };
   for (let i = 0; i < 40; i++) {
     const n = Number(panel.dataset.computed);
+    let counted = null;
+    const seen = new MutationObserver(() => { if (counted === null && Number(panel.dataset.computed) > n) counted = performance.now(); });
+    seen.observe(panel, { attributes: true, attributeFilter: ['data-computed'] });
     const t0 = performance.now();
     HR.design.set('stage', 'r_fb_ohm', i % 2 ? '2k2' : '2k4', 'bench');
     // The panel recomputes in a microtask after the edit; wait for that, then for frames if need be.
@@ -140,13 +148,18 @@ const edits = await editPage.evaluate(async () => {
       const poll = () => (Number(panel.dataset.computed) > n ? resolve() : requestAnimationFrame(poll));
       poll();
     });
-    out.push(performance.now() - t0);
+    out.edits.push(performance.now() - t0);
+    seen.takeRecords();
+    seen.disconnect();
+    out.exact.push((counted === null ? performance.now() : counted) - t0);
   }
   return out;
 });
 await editPage.close();
 await browser.close();
-const p95 = [...edits].sort((a, b) => a - b)[Math.floor(0.95 * edits.length)];
+const pct95 = (xs) => [...xs].sort((a, b) => a - b)[Math.floor(0.95 * xs.length)];
+const p95 = pct95(edits);
+const p95exact = pct95(exact);
 
 // The native figures `cargo bench --bench core` left behind, for the "wasm ≤ 2× native" targets.
 const native = fs.existsSync(NATIVE_FIGURES) ? JSON.parse(fs.readFileSync(NATIVE_FIGURES, 'utf8')) : {};
@@ -179,6 +192,7 @@ const rows = [
   ['page: spread, 2000 trials, one worker (demo)', `${spreadWorkers[1].toFixed(0)} ms`, '≤ 1500 ms', spreadWorkers[1] <= 1500],
   ['page: spread, 2000 trials, two workers (demo)', `${spreadWorkers[2].toFixed(0)} ms`, `faster than one worker (${(spreadWorkers[1] / spreadWorkers[2]).toFixed(2)}×)`, spreadWorkers[2] < spreadWorkers[1]],
   ['Stage edit to redrawn figures, 95th percentile of 40', `${p95.toFixed(1)} ms`, '≤ 16 ms', p95 <= 16],
+  ['Stage edit to figures in the DOM, 95th percentile', `${p95exact.toFixed(1)} ms`, '≤ 16 ms', p95exact <= 16],
 ];
 for (const [what, figure, target, met] of rows) {
   console.log(`${what.padEnd(52)} ${figure.padStart(12)}  ${target.padEnd(30)} ${target ? (met ? 'met' : 'MISSED') : ''}`);

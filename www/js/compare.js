@@ -47,16 +47,40 @@ HR.compare = (() => {
     return true;
   };
 
-  // The reference's result of a fast core entry (its text first, then `args`), or
-  // null without a reference or when the core refuses it.
+  // The reference's result of a small-signal core entry (its text first, then `args`),
+  // or null without a reference, when the core refuses it, or while it computes: the
+  // first ask runs it in a worker (lane `reference-<entry>`: a reference can be a
+  // design that takes long, and the page must not wait on it) and every render is run
+  // again when it arrives.
   const report = (entry, ...args) => {
     const t = text();
     if (!t) return null;
     const key = JSON.stringify([entry, args]);
-    if (!memo.has(key)) memo.set(key, HR.call(entry, t, ...args));
+    if (!memo.has(key)) {
+      const pending = { pending: true };
+      pending.promise = HR.background.run(entry, [t, ...args], { lane: `reference-${entry}` }).promise.then((r) => {
+        if (text() !== t || memo.get(key) !== pending) return;
+        memo.set(key, r.cancelled ? {} : r);
+        listeners.forEach((fn) => fn());
+      });
+      memo.set(key, pending);
+    }
     const r = memo.get(key);
     return r.ok === undefined ? null : r.ok;
   };
+
+  // A background run (`handle`, as HR.background.run returns) whose promise also waits
+  // for the reference's results of `entries` ([[entry, ...args], …]), so that the
+  // panel's render finds them: what a panel's follow job returns.
+  const along = (handle, entries) => ({
+    cancel: handle.cancel,
+    promise: Promise.all([handle.promise, ...entries.map(([entry, ...args]) => {
+      if (!text()) return null;
+      report(entry, ...args);
+      const m = memo.get(JSON.stringify([entry, args]));
+      return m && m.promise;
+    })]).then(([r]) => r),
+  });
 
   // `render` run again on what it last drew whenever the reference changes.
   const rerender = (render) => {
@@ -164,5 +188,5 @@ HR.compare = (() => {
     return [el('button', { type: 'button', onclick: pin }, 'Pin as reference'), clear, badge];
   };
 
-  return { text, label, pin, clear: () => keep(null), onChange: (fn) => listeners.add(fn), report, rerender, figures, slow, controls };
+  return { text, label, pin, clear: () => keep(null), onChange: (fn) => listeners.add(fn), report, along, rerender, figures, slow, controls };
 })();

@@ -139,15 +139,17 @@ HR.sheet = (() => {
     return el('figure', {}, el('figcaption', {}, title, ' ', key(a, C1), ' ', key(b, C2, true)), image(canvas, title));
   };
 
-  const plots = (text) => {
+  // The two plots, from the sweeps Print sheet computed in the background with the
+  // sheet (`made.curves`), or else (Ctrl+P, which cannot wait) made here at once.
+  const plots = (text, curves) => {
     const out = [];
-    const r = HR.call('responseReport', text);
+    const r = curves ? curves.response : HR.call('responseReport', text);
     if (r.ok) {
       const d = r.ok.design;
       out.push(bode('Voltage gain and phase', r.ok.f_hz, [{ label: 'Av', y: r.ok.gain_db }, { label: 'phase', y: r.ok.phase_unwrapped_deg }],
         [[r.ok.f_design_hz, 'f_design'], [d.f_low_hz, 'f_low'], [d.f_high_hz, 'f_high']], []));
     }
-    const l = HR.call('loopReport', text);
+    const l = curves ? curves.loop : HR.call('loopReport', text);
     if (l.ok) {
       const s = l.ok.summary;
       out.push(bode('Loop gain T', l.ok.f_hz, [{ label: '|T|', y: l.ok.t_db }, { label: '∠T', y: l.ok.t_phase_deg }],
@@ -196,7 +198,7 @@ HR.sheet = (() => {
     const parts = [];
     let flow = null;
     let drawn = false;
-    const drawings = () => { drawn = true; return el('div', { class: 'plots' }, plots(text)); };
+    const drawings = () => { drawn = true; return el('div', { class: 'plots' }, plots(text, made.curves)); };
     for (const s of sheet.sections) {
       const first = !parts.length && Object.keys(sheet.rows).length;
       const sec = el('section', {}, el('h2', {}, s.head), first ? schematic(doc, sheet.rows) : null, ...(s.wide ? s.nodes.map(halves) : s.nodes));
@@ -245,11 +247,18 @@ HR.sheet = (() => {
     if (!sheets.has(from.text)) {
       HR.setStatus('Preparing the design sheet (every analysis, the large-signal one too)…');
       if (pending) pending.cancel();
-      pending = HR.background.run('sheetPage', [from.text], { lane: 'sheet' });
-      const r = await pending.promise;
-      pending = null;
-      if (r.cancelled) return;
-      sheets.set(from.text, r.error ? { error: r.error } : { ok: r.ok });
+      // The sheet, then the two sweeps its plots draw (the loop's can take long too),
+      // one after another in the lane; a sweep the core refuses is left out.
+      const curves = {};
+      let r = null;
+      for (const [entry, key] of [['sheetPage', null], ['responseReport', 'response'], ['loopReport', 'loop']]) {
+        pending = HR.background.run(entry, [from.text], { lane: 'sheet' });
+        const got = await pending.promise;
+        pending = null;
+        if (got.cancelled) return;
+        if (key) curves[key] = got; else r = got;
+      }
+      sheets.set(from.text, r.error ? { error: r.error } : { ok: r.ok, curves });
     }
     if (link.text !== HR.design.text()) await refreshLink();
     build(from);

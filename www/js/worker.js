@@ -31,10 +31,10 @@ HR.background = (() => {
         wasm_bindgen.initSync({ module: data.module });
         return;
       }
-      const { id, name, args } = data;
+      const { id, name, args, calls } = data;
       const progress = (fraction) => self.postMessage({ id, progress: fraction });
       try {
-        self.postMessage({ id, ok: wasm_bindgen[name](...args, progress) });
+        self.postMessage({ id, ok: calls ? calls.map(([n, a]) => wasm_bindgen[n](...a)) : wasm_bindgen[name](...args, progress) });
       } catch (e) {
         if (e && typeof e === 'object' && 'reason' in e) self.postMessage({ id, error: { field: e.field, reason: e.reason, message: e.message } });
         else self.postMessage({ id, trap: String(e && e.message ? e.message : e) });
@@ -87,7 +87,12 @@ HR.background = (() => {
     return { error: { field: '', reason: message, message } };
   };
 
-  const run = (name, args, { lane: key = name, onProgress = () => {} } = {}) => {
+  // What the lane's worker is posted: one entry and its arguments, or (`calls`) several
+  // entries one after another, answered together as a list.
+  const run = (name, args, options) => submit({ name, args }, name, options);
+  const calls = (list, options) => submit({ calls: list }, list[0][0], options);
+
+  const submit = (message, entry, { lane: key = entry, onProgress = () => {} } = {}) => {
     if (!lanes.has(key)) lanes.set(key, { key, worker: null, job: null });
     const lane = lanes.get(key);
     if (lane.job) lane.job.cancel();
@@ -113,25 +118,31 @@ HR.background = (() => {
     };
     lane.job = job;
     try {
-      workerOf(lane).postMessage({ id: job.id, name, args });
+      workerOf(lane).postMessage({ id: job.id, ...message });
     } catch (e) {
       job.finish({ trap: `no background worker: ${e && e.message ? e.message : e}` });
     }
     return { promise, cancel: () => job.cancel() };
   };
 
-  // Keeps a panel's figures in step with the design, like HR.design.follow, for a run
-  // too long to make on every keystroke. A run starts `delay` ms after the last edit,
-  // and only while the panel is shown; an edit made while it is hidden is remembered
-  // and computed when it is next shown. An edit during a run cancels it (its result
-  // would be out of date). The draft is checked first (checkDocument, well under a
-  // millisecond), so a bad value is reported at once, without a run. The last result
-  // stays on show, marked stale, while a new one computes, after an error and after a
-  // cancel.
-  //   spec: {name, args(text) → [...], lane, delay, render(result, {ms, text}),
-  //          report(error | null, field), stale(why | null, rendered), progress(fraction | null)}
+  // Keeps a panel's figures in step with the design, like HR.design.follow, with the
+  // core's calls made in a worker. A run starts `delay` ms after the last edit (0: at
+  // the end of the burst of edits, as HR.design.follow), and only while the panel is
+  // shown; an edit made while it is hidden is remembered and computed when it is next
+  // shown. An edit during a run cancels it (its result would be out of date). The
+  // draft is checked first (checkDocument, well under a millisecond), so a bad value
+  // is reported at once, without a run. The last result stays on show, marked stale,
+  // while a new one computes, after an error and after a cancel.
+  //   spec: {name, args(text) → [...], lane, delay, quiet, when(),
+  //          render(result, {ms, text}), report(error | null, field),
+  //          stale(why | null, rendered), progress(fraction | null)}
   //   or, for a run of several calls (in several lanes), `job(text, onProgress)` in
   //   place of name and args, returning what run() returns: {promise, cancel()}.
+  //   `quiet`: ms a run may take before it is shown as running (stale 'running',
+  //   progress(0)); a panel whose runs are usually over within a frame sets it, so
+  //   that an ordinary edit redraws without a flash of the stale marker.
+  //   `when()`: false holds edits back (a value being typed in place); the next
+  //   edit made while it is true computes.
   //   `field`: the bound input the error went beside, or null (HR.design.watch).
   //   `why`: 'running', 'error', 'cancelled' or 'due' (changed while hidden or held).
   // Returns {start() (run now), cancel()}. `panel.dataset.computed` counts results, and
@@ -140,7 +151,7 @@ HR.background = (() => {
   // while hidden), 'held' (cancelled), or 'settled' (the last result or error is final:
   // nothing more will land until the next edit).
   const follow = (panel, spec) => {
-    const { name, args, lane = name, delay = 300, render, stale, progress,
+    const { name, args, lane = name, delay = 300, quiet = 0, when = () => true, render, stale, progress,
       job: begin = (text, onProgress) => run(name, args(text), { lane, onProgress }) } = spec;
     const seen = HR.design.watch(panel, spec.report);
     const { report } = seen;
@@ -148,6 +159,8 @@ HR.background = (() => {
     let job = null;
     let timer = null;
     let held = false;       // cancelled by the user: wait for an edit or start()
+    let showing = null;     // the timer that shows a quiet run as running
+    let missed = false;     // changed while hidden (see changed())
     const visible = seen.shown;
     const mark = (state) => { panel.dataset.follow = state; };
 
@@ -177,17 +190,26 @@ HR.background = (() => {
       const mine = begin(text, (p) => progress(p));
       job = mine;
       mark('running');
-      progress(0);
-      if (!fallback) stale('running', shownText !== null);
+      const running = () => {
+        showing = null;
+        progress(0);
+        if (!fallback) stale('running', shownText !== null);
+      };
+      clearTimeout(showing);
+      if (quiet > 0) showing = setTimeout(running, quiet);
+      else running();
       mine.promise.then((r) => {
         if (job !== mine) return;
         job = null;
+        clearTimeout(showing);
+        showing = null;
         progress(null);
         if (!r.cancelled) finish(text, r);
       });
     };
 
     const start = () => {
+      missed = false;
       clearTimeout(timer);
       timer = null;
       held = false;
@@ -204,12 +226,18 @@ HR.background = (() => {
     const cancelJob = () => {
       const mine = job;
       job = null;
+      clearTimeout(showing);
+      showing = null;
       if (mine) mine.cancel();
       progress(null);
     };
 
     // After an edit, an undo or a redo.
     const changed = () => {
+      if (!when()) return;
+      // An immediate panel (delay 0) computes again when shown after any change made
+      // while it was hidden, as HR.design.follow does, even one undone since.
+      if (delay === 0 && !visible()) missed = true;
       if (job) cancelJob();
       clearTimeout(timer);
       timer = null;
@@ -220,9 +248,20 @@ HR.background = (() => {
         stale(null, true);
         return;
       }
-      stale('due', shownText !== null);
-      if (!visible()) { mark('due'); return; }
+      if (!visible()) { stale('due', shownText !== null); mark('due'); return; }
+      // A quiet panel says nothing until its run has gone on for `quiet` ms.
+      if (!quiet) stale('due', shownText !== null);
       mark('waiting');
+      if (delay === 0) {
+        // At the end of this burst of edits, as HR.design.follow computes.
+        timer = true;
+        queueMicrotask(() => {
+          if (timer !== true) return;
+          timer = null;
+          if (visible()) start(); else mark('due');
+        });
+        return;
+      }
       // Hidden before the delay ran out: the run waits until the panel is shown.
       timer = setTimeout(() => { timer = null; if (visible()) start(); else mark('due'); }, delay);
     };
@@ -230,7 +269,7 @@ HR.background = (() => {
     HR.design.onChange(changed);
     // Shown again: compute what changed while it was hidden.
     seen.onShown(() => {
-      if (!job && !timer && !held && HR.design.text() !== shownText) start();
+      if (!job && !timer && !held && (missed || HR.design.text() !== shownText)) start();
     });
     start();
     return {
@@ -263,5 +302,43 @@ HR.background = (() => {
     for (const node of nodes) node.classList.toggle('stale', Boolean(why) && rendered);
   };
 
-  return { run, follow, staleNotes, staleMarker, started: 0 };
+  // The box a panel that follows the design with a `quiet` time shows once a run has
+  // gone on past it: a progress bar (indeterminate: the small-signal entries report no
+  // progress), what it is doing, and Cancel; after a cancel, Compute now brings the
+  // figures up to date. `what` names the run for the bar's label.
+  //   const box = runBox('loop analysis');
+  //   box.attach(follow(panel, {..., progress: box.progress, stale: box.stale(marker)}));
+  const runBox = (what) => {
+    const { el } = HR.ui;
+    let follower = null;
+    const bar = el('progress', { max: 1, 'aria-label': `Progress of the ${what}` });
+    const text = el('span', { class: 'run-text', 'aria-live': 'polite' }, `Computing the ${what} in the background…`);
+    const cancel = el('button', { type: 'button', class: 'cancel', onclick: () => follower && follower.cancel() }, 'Cancel');
+    const now = el('button', { type: 'button', hidden: true, onclick: () => follower && follower.start() }, 'Compute now');
+    const node = el('div', { class: 'run-wrap' }, el('div', { class: 'run', hidden: true }, bar, text, cancel), now);
+    return {
+      node,
+      attach(f) { follower = f; },
+      progress(p) {
+        node.firstChild.hidden = p === null;
+        if (p > 0) bar.value = p;
+        else bar.removeAttribute('value');
+      },
+      stale: (inner) => (why, rendered) => {
+        now.hidden = why !== 'cancelled';
+        inner(why, rendered);
+      },
+    };
+  };
+
+  // Why every panel's figures of the design come from a worker, even the few-ms ones:
+  // a call on the main thread cannot be interrupted, so no timing of earlier calls
+  // can keep the first slow one (one edit can take the loop helper from 2 ms to a
+  // second) or a runaway from freezing the page. The price is a hop to the worker
+  // and back, 1–3 ms on the demo. QUIET is how long such a run may take before it is
+  // shown as running: ordinary designs answer well within it, so an edit redraws
+  // with no flash of the stale marker.
+  const QUIET = 120;
+
+  return { run, calls, follow, staleNotes, staleMarker, runBox, QUIET, started: 0 };
 })();

@@ -340,18 +340,21 @@
       container.append(el('h1', {}, 'Loop'),
         el('p', { class: 'lede' }, 'Whether the stage’s feedback loop settles, rings or oscillates: the loop gain with its crossover and margins, the Nyquist plot, the closed-loop poles, the step response and μ, with one-component changes that buy the phase margin.'),
         el('div', { class: 'cards' }, verdictCard, figuresCard, helperCard, plotsCard));
-      HR.design.follow(container, {
-        compute: (text) => HR.call('loopReport', text),
+      // In a worker: the compensation helper alone re-solves the loop for every
+      // candidate value, far longer than a frame on a many-inverter part (worker.js).
+      const box = HR.background.runBox('loop analysis');
+      verdictCard.querySelector('h2').after(box.node);
+      box.attach(HR.background.follow(container, {
+        job: (text) => HR.compare.along(HR.background.run('loopReport', [text], { lane: 'loop' }), [['loopReport']]),
+        delay: 0, quiet: HR.background.QUIET,
         render,
         report: (error) => {
           problem.textContent = error ? error.message || error.reason : '';
           problem.hidden = !error;
         },
-        stale: (isStale, rendered) => {
-          stale.hidden = !(isStale && rendered);
-          for (const node of [verdictBox, readout, helperWrap]) node.classList.toggle('stale', isStale);
-        },
-      });
+        progress: box.progress,
+        stale: box.stale(HR.background.staleMarker(stale, [verdictBox, readout, helperWrap])),
+      }));
     },
   });
 })();

@@ -158,8 +158,20 @@
     const use = el('button', { type: 'button', disabled: true, onclick: () => {
       if (fitted) HR.design.replace('part', fitted, 'use the fitted part');
     } }, 'Use this part');
-    const run = el('button', { type: 'button', onclick: () => {
-      const r = HR.call('benchFit', HR.design.text());
+    // The fit runs in a worker (a many-inverter EKV part takes long), with Cancel.
+    let running = null;
+    const busy = el('p', { class: 'busy', hidden: true, role: 'status' }, 'Fitting… ',
+      el('button', { type: 'button', onclick: () => running && running.cancel() }, 'Cancel'));
+    const fit = async () => {
+      if (running) running.cancel();
+      const mine = HR.background.run('benchFit', [HR.design.text()], { lane: 'fit' });
+      running = mine;
+      busy.hidden = false;
+      const r = await mine.promise;
+      if (running !== mine) return;
+      running = null;
+      busy.hidden = true;
+      if (r.cancelled) return;
       const at = HR.bind.route(panel, r.error || null);
       message.textContent = r.error && !at ? r.error.message || r.error.reason : '';
       if (r.error) return;
@@ -170,12 +182,14 @@
       fillRows(params.tbody, r.ok.parameters.map((p) => [p.name === 'cap' ? 'capacitance (sum)' : p.name, show(p.name, p.value), show(p.name, p.sigma)]));
       fillRows(residuals.tbody, r.ok.residuals.map((x) => [x.reading, HR.fmt(x.measured, '', 4), HR.fmt(x.fitted, '', 4), HR.fixed(x.normalized, 2)]));
       results.hidden = false;
-    } }, 'Fit the part');
+      panel.dataset.fitted = String(Number(panel.dataset.fitted || 0) + 1);
+    };
+    const run = el('button', { type: 'button', onclick: fit }, 'Fit the part');
     const node = card('Bench fit',
       el('p', { class: 'intro' }, 'Readings you can take with a generator and a scope fit the part by least squares (Levenberg–Marquardt). Readings are weighted by usual bench accuracy: current 1 %, bias 10 mV, gain 2 %.'),
       el('div', { class: 'grid-fields' }, fields.map((f) => f.wrap)),
       el('div', { class: 'inputs' }, gains, curve),
-      el('div', { class: 'actions' }, run, use), message, results);
+      el('div', { class: 'actions' }, run, use), busy, message, results);
     node.classList.add('wide');
     return { node };
   };
@@ -192,15 +206,18 @@
       container.append(el('h1', {}, 'Part'),
         el('p', { class: 'lede' }, 'The inverter, its operating point in the stage, and its transfer curves. Figures are model estimates: verify them on the bench and check the datasheet’s limits.'),
         el('div', { class: 'cards' }, part.node, bias.node, curves.node, fit.node));
-      HR.design.follow(container, {
-        compute: (text) => HR.call('partReport', text, POINTS),
+      // In a worker (HR.background.follow): a legal part of nine inverters can take
+      // far longer than a frame; the box shows only once a run outlasts QUIET ms.
+      const box = HR.background.runBox('operating point and curves');
+      bias.node.querySelector('h2').after(box.node);
+      box.attach(HR.background.follow(container, {
+        job: (text) => HR.compare.along(HR.background.run('partReport', [text, POINTS], { lane: 'part' }), [['partReport', POINTS]]),
+        delay: 0, quiet: HR.background.QUIET,
         render: HR.compare.rerender((r) => { bias.render(r); curves.render(r); }),
         report: (error, at) => { problem.textContent = error && !at ? error.message || error.reason : ''; },
-        stale: (why, rendered) => {
-          bias.output.classList.toggle('stale', Boolean(why));
-          bias.stale.hidden = !(why && rendered);
-        },
-      });
+        progress: box.progress,
+        stale: box.stale(HR.background.staleMarker(bias.stale, [bias.output])),
+      }));
     },
   });
 })();

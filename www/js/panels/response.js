@@ -27,8 +27,9 @@
       const figures = card('At the design frequency', problem, stale,
         HR.health.voids(readout, ['gain', 'gt', 'band', 'zin', 'rl', 'nf', 'en', 'band_noise', 'mu']), readout, el('div', { class: 'scroll' }, shares.node));
       figures.classList.add('wide');
-      const csv = el('button', { type: 'button', onclick: () => {
-        const r = HR.call('sweepCsv', HR.design.text());
+      // The sweep is computed again for the file, in a worker (it can be long).
+      const csv = el('button', { type: 'button', onclick: async () => {
+        const r = await HR.background.run('sweepCsv', [HR.design.text()], { lane: 'sweep-csv' }).promise;
         if (r.ok !== undefined) HR.ui.download(HR.documents.named('sweep', 'csv'), new Blob([r.ok], { type: 'text/csv' }));
       } }, 'Save the sweep as CSV');
       const plotsCard = card('Against frequency', el('p', { class: 'intro' },
@@ -96,12 +97,17 @@
       container.append(el('h1', {}, 'Response'),
         el('p', { class: 'lede' }, 'The stage’s small-signal response over the analysis range of the design, with the finite, falling open-loop gain of the part included.'),
         el('div', { class: 'cards' }, figures, plotsCard));
-      HR.design.follow(container, {
-        compute: (text) => HR.call('responseReport', text),
+      // In a worker: a long sweep of a many-inverter part outlasts a frame (worker.js).
+      const box = HR.background.runBox('response');
+      figures.querySelector('h2').after(box.node);
+      box.attach(HR.background.follow(container, {
+        job: (text) => HR.compare.along(HR.background.run('responseReport', [text], { lane: 'response' }), [['responseReport']]),
+        delay: 0, quiet: HR.background.QUIET,
         render,
         report: (error) => { problem.textContent = error ? error.message || error.reason : ''; },
-        stale: (isStale, rendered) => { stale.hidden = !(isStale && rendered); },
-      });
+        progress: box.progress,
+        stale: box.stale(HR.background.staleMarker(stale, [])),
+      }));
     },
   });
 })();

@@ -241,21 +241,25 @@
           (() => { const c = card('Key figures', stale, HR.health.voids(readout, ['gain', 'gt', 'band', 'zin', 'rl', 'nf']), readout); c.classList.add('wide'); return c; })(),
           target.node));
 
-      HR.design.follow(container, {
-        // The figures need the sweep and the operating point; either error is the answer.
-        compute: (text) => {
-          const r = HR.call('responseReport', text);
-          const b = r.ok ? HR.call('biasOf', text) : r;
-          return r.error || b.error ? { error: r.error || b.error } : { ok: { r: r.ok, b: b.ok } };
-        },
-        render,
-        report: (error) => { refresh(error); problem.textContent = error ? error.message || error.reason : ''; },
-        stale: (why, rendered) => {
-          readout.classList.toggle('stale', Boolean(why));
-          stale.hidden = !(why && rendered);
-        },
+      // The figures need the sweep and the operating point, both in one worker run
+      // (either error is the answer): a many-inverter part takes far longer than a
+      // frame (worker.js). The schematic shows the draft at once, whatever the run.
+      let shownError = null;
+      refresh(null);
+      HR.design.onChange(() => { if (!editing && HR.ui.shown(container)) refresh(shownError); });
+      HR.ui.onShown(container, () => refresh(shownError));
+      const box = HR.background.runBox('key figures');
+      stale.before(box.node);
+      box.attach(HR.background.follow(container, {
+        job: (text) => HR.compare.along(HR.background.calls([['responseReport', [text]], ['biasOf', [text]]], { lane: 'stage' }),
+          [['responseReport'], ['biasOf']]),
+        delay: 0, quiet: HR.background.QUIET,
+        render: (ok, meta) => render({ r: ok[0], b: ok[1] }, meta),
+        report: (error) => { shownError = error; refresh(error); problem.textContent = error ? error.message || error.reason : ''; },
+        progress: box.progress,
+        stale: box.stale(HR.background.staleMarker(stale, [readout])),
         when: () => !editing,
-      });
+      }));
     },
   });
 })();

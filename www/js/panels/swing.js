@@ -108,8 +108,9 @@
       const cancel = el('button', { type: 'button', class: 'cancel', onclick: () => follower.cancel() }, 'Cancel');
       const running = el('div', { class: 'run', hidden: true }, bar, barText, cancel);
       const now = el('button', { type: 'button', onclick: () => follower.start() }, 'Compute now');
-      const csv = el('button', { type: 'button', disabled: true, onclick: () => {
-        const r = shownText === null ? { error: true } : HR.call('waveCsv', shownText);
+      // The waveform is simulated again for the file, in a worker (HR.background).
+      const csv = el('button', { type: 'button', disabled: true, onclick: async () => {
+        const r = shownText === null ? { error: true } : await HR.background.run('waveCsv', [shownText], { lane: 'wave-csv' }).promise;
         if (r.ok !== undefined) HR.ui.download(HR.documents.named('wave', 'csv'), new Blob([r.ok], { type: 'text/csv' }));
       } }, 'Save the waveform as CSV');
       const timing = el('p', { class: 'run-note' }, 'The analysis simulates the stage in time at many signal levels, so it runs in the background, with a progress bar.');
