@@ -143,7 +143,8 @@ impl Document {
         let source = at_field(crate::analysis::swing::source_resistance(&stage))?;
         let time = at_field(crate::analysis::swing::TimeDomain::new(&part, &stage))?;
         let amplitude = crate::analysis::swing::emf_amplitude(analysis.input_dbm, source);
-        Ok(at_field(crate::analysis::swing::one_tone(&time, amplitude, analysis.f_design_hz, &mut |_| {}))?.wave)
+        let settled = crate::analysis::swing::Settling::new(&time);
+        Ok(at_field(crate::analysis::swing::one_tone(&settled, amplitude, analysis.f_design_hz, &mut |_| {}))?.wave)
     }
 
     /// The stage designed to the `target` section at f_design.

@@ -113,9 +113,15 @@ fn named(e: FieldError, doing: &str) -> FieldError {
 /// one step, which only the transient's sub-steps cross; a level far into
 /// compression whose period Newton does not close in `MAX_SHOTS`). The two-tone test stays on the
 /// transient: its common period is the record's whole length.
-struct Settling<'a> {
+pub struct Settling<'a> {
     steady: Steady<'a>,
     time: &'a TimeDomain,
+}
+
+impl<'a> Settling<'a> {
+    pub fn new(time: &'a TimeDomain) -> Self {
+        Settling { steady: time.steady(), time }
+    }
 }
 
 impl Waveforms for Settling<'_> {
@@ -165,7 +171,7 @@ pub fn analyse(part: &Part, c: &Components, f_hz: f64, input_dbm: f64, curve: Cu
     // small for f_design) would otherwise be driven with kilovolts.
     let rail_dbm = rail_level_dbm(part.vdd, time.gain_to_last_stage(f_hz)?, source_ohm).min(ceiling_dbm - SWEEP_ABOVE_RAIL_DB);
 
-    let settled = Settling { steady: time.steady(), time: &time };
+    let settled = Settling::new(&time);
     let tone = one_tone(&settled, amplitude, f_hz, &mut |p| progress(0.05 * p)).map_err(|e| named(e, &format!("the tone at {input_dbm} dBm")))?;
     let (compression, intercept) = match load_ohm {
         Some(rl) => {
