@@ -49,6 +49,8 @@ test('the whole journey, offline', async () => {
   // The loop of the designed stage, in words.
   await show(page, 'loop');
   await panel(page, 'loop').locator('.verdict-head').waitFor();
+  // The loop computes in a worker once shown: wait for its verdict, not the placeholder.
+  await page.waitForFunction(() => { const h = document.querySelector('#panel-loop .verdict-head'); return h && h.textContent !== '—'; });
   assert.match(await panel(page, 'loop').locator('.verdict-head').textContent(), /^(Stable|Rings)/);
 
   // A spread of it (in the background workers).
