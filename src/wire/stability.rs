@@ -193,7 +193,7 @@ pub fn stability_words(l: &Loop) -> String {
         Verdict::Oscillates { f_hz: Some(f) } => format!("A closed-loop pair grows: the stage oscillates at about {} by itself, until the output clips.", hz(f)),
         // Called so by the Nyquist count alone (the poles find none growing): the
         // sentence below says why, and the head claims no growth the poles deny.
-        Verdict::Oscillates { .. } if l.poles_growing == 0 => "Not called stable.".into(),
+        Verdict::Oscillates { .. } if l.poles_growing == 0 => "On the edge of oscillation.".into(),
         Verdict::Oscillates { f_hz: None } => "A real closed-loop pole grows: the output runs away to a rail.".into(),
         Verdict::Stable { conditional: true, .. } | Verdict::Rings { conditional: true, .. } => format!(
             "Conditionally stable: every closed-loop pole decays, although {}. With less loop gain (at start-up, in overload, with a weaker part) it can oscillate.",

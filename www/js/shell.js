@@ -32,6 +32,8 @@
       if (a.dataset.panel === id) a.setAttribute('aria-current', 'page');
       else a.removeAttribute('aria-current');
     }
+    // The health line's link to the panel on show is hidden (panels.css): it would lead nowhere.
+    main.dataset.shown = id;
     document.title = `${panelById(id).title} — Halfrail`;
     HR.store.set('ui', { panel: id });
     if (focus) main.focus({ preventScroll: true });
