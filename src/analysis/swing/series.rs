@@ -60,24 +60,6 @@ fn monomial(chebyshev: &[f64; DEGREE + 1]) -> [f64; DEGREE + 1] {
     out
 }
 
-/// v(out) at the EMFs `span`·u, solved in two runs outward from the operating point
-/// (u > 0 rising, then u < 0 falling), so each solve continues from its neighbour:
-/// in the nodes' own order the first solve jumped from the bias to +span and the
-/// continuation took many small steps there (a sixth of the slowest document's
-/// large-signal analysis).
-fn outward(stage: &QuasiStatic, u: &[f64], span: f64) -> Result<Vec<f64>> {
-    let mut v = vec![0.0; u.len()];
-    for side in [1.0, -1.0] {
-        let mut order: Vec<usize> = (0..u.len()).filter(|&k| u[k] * side >= 0.0 && (side > 0.0 || u[k] != 0.0)).collect();
-        crate::order::sort_by(&mut order, |&a, &b| (u[a] * side).total_cmp(&(u[b] * side)));
-        let emfs: Vec<f64> = order.iter().map(|&k| u[k] * span).collect();
-        for (k, out) in order.iter().zip(stage.transfer(&emfs)?) {
-            v[*k] = out;
-        }
-    }
-    Ok(v)
-}
-
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct PowerSeries {
     /// a1 (V/V), a2 (1/V), a3 (1/V²) of v(out) against the EMF.
@@ -90,7 +72,8 @@ impl PowerSeries {
     /// Fits the quasi-static transfer over ±`span` volts of EMF.
     pub fn of(stage: &QuasiStatic, span: f64) -> Result<Self> {
         let u: Vec<f64> = (0..POINTS).map(|k| math::cos(std::f64::consts::PI * (k as f64 + 0.5) / POINTS as f64)).collect();
-        let v = outward(stage, &u, span)?;
+        let emfs: Vec<f64> = u.iter().map(|u| u * span).collect();
+        let v = stage.transfer_outward(&emfs)?;
         if !v.iter().all(|x| x.is_finite()) {
             return Err(FieldError::of(Input::Section(Section::Analysis), "the power-series fit failed: the transfer curve is not finite"));
         }

@@ -327,16 +327,31 @@ impl QuasiStatic {
 }
 
 impl QuasiStatic {
+    /// v(out) at the EMFs `emfs` (in their order), solved in two runs outward from
+    /// the operating point (rising through those ≥ 0, then falling through those
+    /// < 0), so each solve continues from its neighbour: the power series' Chebyshev
+    /// nodes in their own order made the first solve jump from the bias to the far
+    /// end, and the continuation took many small steps there (a sixth of the
+    /// slowest document's large-signal analysis).
+    pub fn transfer_outward(&self, emfs: &[f64]) -> Result<Vec<f64>> {
+        let mut out = vec![0.0; emfs.len()];
+        for side in [1.0, -1.0] {
+            let mut order: Vec<usize> = (0..emfs.len()).filter(|&k| if side > 0.0 { emfs[k] >= 0.0 } else { emfs[k] < 0.0 }).collect();
+            crate::order::sort_by(&mut order, |&a, &b| (emfs[a] * side).total_cmp(&(emfs[b] * side)));
+            let run: Vec<f64> = order.iter().map(|&k| emfs[k]).collect();
+            for (&k, v) in order.iter().zip(self.transfer(&run)?) {
+                out[k] = v;
+            }
+        }
+        Ok(out)
+    }
+
     /// The transfer over ±`reach` volts of EMF at `points` (odd) equal steps, each
-    /// half swept outward from the operating point so every solve starts next to
-    /// its answer. Returns (EMF, v(out)).
+    /// half swept outward from the operating point. Returns (EMF, v(out)).
     pub fn transfer_curve(&self, reach: f64, points: usize) -> Result<(Vec<f64>, Vec<f64>)> {
         let half = points / 2;
-        let up: Vec<f64> = (0..=half).map(|k| reach * k as f64 / half as f64).collect();
-        let down: Vec<f64> = up.iter().map(|e| -e).collect();
-        let (v_up, v_down) = (self.transfer(&up)?, self.transfer(&down)?);
-        let emf = down.iter().rev().chain(&up[1..]).copied().collect();
-        let out = v_down.iter().rev().chain(&v_up[1..]).copied().collect();
+        let emf: Vec<f64> = (0..=2 * half).map(|k| reach * (k as f64 - half as f64) / half as f64).collect();
+        let out = self.transfer_outward(&emf)?;
         Ok((emf, out))
     }
 }
