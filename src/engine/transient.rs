@@ -42,10 +42,10 @@ const THEVENIN_ABOVE_S: f64 = 1e3;
 
 /// A capacitor stamped as a branch: its nodes' unknowns and its value.
 #[derive(Debug, Clone, Copy)]
-pub(super) struct Large {
-    pub(super) a: Option<usize>,
-    pub(super) b: Option<usize>,
-    pub(super) farads: f64,
+struct Large {
+    a: Option<usize>,
+    b: Option<usize>,
+    farads: f64,
 }
 
 /// A circuit prepared for time-domain runs with one voltage source driven.
@@ -64,9 +64,9 @@ pub struct Transient<'a> {
 /// The matrices of one run: the large capacitors as branches after the circuit's
 /// own unknowns.
 pub(super) struct Companion {
-    pub(super) large: Vec<Large>,
+    large: Vec<Large>,
     /// C of the small capacitors, bordered with zeros to the run's size.
-    pub(super) c: DMatrix<f64>,
+    c: DMatrix<f64>,
     euler: DMatrix<f64>,
     pub(super) gear: DMatrix<f64>,
 }
@@ -100,10 +100,30 @@ impl Companion {
             }
             m
         };
-        let (euler, gear) = (with(1.0), with(1.5));
+        let (euler, gear) = (with(1.0), with(BDF2_ALPHA));
         Companion { large, c, euler, gear }
     }
+
+    /// The branches the large capacitors add after the circuit's own unknowns.
+    pub(super) fn branches(&self) -> usize {
+        self.large.len()
+    }
+
+    /// Adds the integrator's memory `history` to `rhs` (of the run's size, `n` the
+    /// circuit's own unknowns): C·history/h for the small capacitors, and for each
+    /// large one, a branch, its voltage in `history` over `alpha` (1 for Euler,
+    /// `BDF2_ALPHA`). The history is x for Euler, 2x − x₋/2 for BDF2.
+    pub(super) fn memory(&self, n: usize, history: &DVector<f64>, h: f64, alpha: f64, rhs: &mut DVector<f64>) {
+        rhs.gemv(1.0 / h, &self.c, history, 1.0);
+        for (j, cap) in self.large.iter().enumerate() {
+            let at = |i: Option<usize>| i.map_or(0.0, |i| history[i]);
+            rhs[n + j] += (at(cap.a) - at(cap.b)) / alpha;
+        }
+    }
 }
+
+/// BDF2's weight on the present step (α in α·C/h).
+pub(super) const BDF2_ALPHA: f64 = 1.5;
 
 /// Adds a capacitance `farads` between two unknowns of `c`.
 fn stamp(c: &mut DMatrix<f64>, a: Option<usize>, b: Option<usize>, farads: f64) {
@@ -169,15 +189,11 @@ impl<'a> Transient<'a> {
             } else {
                 history.axpy(-0.25, &before, 1.0);
                 history *= 2.0;
-                (&companion.gear, 1.5)
+                (&companion.gear, BDF2_ALPHA)
             };
             rhs.copy_from(&b);
             rhs[self.driven] = dc_drive + drive(t);
-            rhs.gemv(1.0 / h, &companion.c, &history, 1.0);
-            for (j, cap) in companion.large.iter().enumerate() {
-                let at = |i: Option<usize>| i.map_or(0.0, |i| history[i]);
-                rhs[n + j] = (at(cap.a) - at(cap.b)) / alpha;
-            }
+            companion.memory(n, &history, h, alpha, &mut rhs);
             // Predict by extrapolating the last two points, then Newton.
             x.copy_from(&now);
             if k > 1 {
@@ -266,11 +282,7 @@ impl<'a> Transient<'a> {
             for j in 1..=m {
                 rhs.copy_from(&b);
                 rhs[self.driven] = dc_drive + drive(t0 + j as f64 * hs);
-                rhs.gemv(1.0 / hs, &companion.c, &state, 1.0);
-                for (k, cap) in companion.large.iter().enumerate() {
-                    let at = |i: Option<usize>| i.map_or(0.0, |i| state[i]);
-                    rhs[n + k] = at(cap.a) - at(cap.b);
-                }
+                companion.memory(n, &state, hs, 1.0, &mut rhs);
                 let mut next = state.clone();
                 if !self.newton(&companion.euler, &rhs, &mut next, &mut scratch) {
                     continue 'count;

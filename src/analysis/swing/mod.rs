@@ -109,10 +109,10 @@ fn named(e: FieldError, doing: &str) -> FieldError {
 /// coupling capacitors' DC shift under drive settled, which the transient's short
 /// warm-up leaves far from done when they are slow — seed 41 of the steady-state
 /// tests: its fundamental 0.38 dB low, its HD3 10 dB low), and from the transient
-/// where the shooting does not converge (a part that switches rail to rail within
-/// one step, which only the transient's sub-steps cross; a level far into
-/// compression whose period Newton does not close in `MAX_SHOTS`). The two-tone test stays on the
-/// transient: its common period is the record's whole length.
+/// wherever the shooting fails in the engine (a part that switches rail to rail
+/// within one step, which only the transient's sub-steps cross; a period Newton
+/// does not close; a warm-up the transient then reports itself). The two-tone
+/// test stays on the transient: its common period is the record's whole length.
 pub struct Settling<'a> {
     steady: Steady<'a>,
     time: &'a TimeDomain,
@@ -131,7 +131,7 @@ impl Waveforms for Settling<'_> {
 
     fn run(&self, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave> {
         match self.steady.run(tones, record, progress) {
-            Err(e) if e.field == "circuit" && e.reason.starts_with("the periodic steady state") => self.time.run(tones, record, progress),
+            Err(e) if e.field == "circuit" => self.time.run(tones, record, progress),
             done => done,
         }
     }
