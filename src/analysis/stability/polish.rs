@@ -5,6 +5,7 @@
 //! of `poles` disagree about how many poles there are: every candidate they gave is
 //! polished, and what converges to the same pole is one pole.
 
+use crate::engine::ComplexLu;
 use crate::math;
 use nalgebra::{DMatrix, DVector};
 use num_complex::Complex64;
@@ -94,6 +95,6 @@ fn solve_equilibrated(mut m: DMatrix<Complex64>, b: DVector<Complex64>) -> Optio
         }
     }
     let scaled_b = DVector::from_fn(b.len(), |i, _| if rows[i] > 0.0 { b[i] / rows[i] } else { b[i] });
-    let z = m.lu().solve(&scaled_b)?;
+    let z = ComplexLu::of_matrix(&m)?.solve(&scaled_b);
     Some(DVector::from_fn(z.len(), |j, _| if columns[j] > 0.0 { z[j] / columns[j] } else { z[j] }))
 }
