@@ -146,21 +146,20 @@ impl<T: Entry> Lu<T> {
     /// x with A·x = b, written into `x` (of the system's size).
     pub fn solve_into(&self, b: &DVector<T>, x: &mut DVector<T>) {
         let n = self.n;
-        for (i, &row) in self.rows.iter().enumerate() {
-            x[i] = b[row];
+        let x = &mut x.as_mut_slice()[..n];
+        for (xi, &row) in x.iter_mut().zip(&self.rows) {
+            *xi = b[row];
         }
+        // Row i of L (left of the diagonal) and of U (right of it), as slices: the
+        // sweep's solves spend their time here, and slices drop the bounds checks.
         for i in 0..n {
-            let mut s = x[i];
-            for j in 0..i {
-                s -= self.lu[i * n + j] * x[j];
-            }
+            let row = &self.lu[i * n..i * n + i];
+            let s = row.iter().zip(&x[..i]).fold(x[i], |s, (&l, &xj)| s - l * xj);
             x[i] = s;
         }
         for i in (0..n).rev() {
-            let mut s = x[i];
-            for j in i + 1..n {
-                s -= self.lu[i * n + j] * x[j];
-            }
+            let row = &self.lu[i * n + i + 1..(i + 1) * n];
+            let s = row.iter().zip(&x[i + 1..]).fold(x[i], |s, (&u, &xj)| s - u * xj);
             x[i] = s / self.lu[i * n + i];
         }
     }

@@ -4,6 +4,7 @@
 
 mod chain_csv;
 pub mod layout;
+mod scientific;
 mod sheet;
 mod sweep_csv;
 mod touchstone;
@@ -17,5 +18,26 @@ pub use wave_csv::wave_csv;
 
 /// A number for a data file: full precision, or an empty field when absent.
 fn cell(value: Option<f64>) -> String {
-    value.filter(|v| v.is_finite()).map_or(String::new(), |v| format!("{v:.10e}"))
+    let mut out = String::new();
+    push_cell(&mut out, value);
+    out
+}
+
+/// `cell` written onto the end of `out`: a long export formats straight into its
+/// text, without a string per number.
+fn push_cell(out: &mut String, value: Option<f64>) {
+    if let Some(v) = value.filter(|v| v.is_finite()) {
+        scientific::push_scientific(out, v);
+    }
+}
+
+/// `cells` as one CSV row (comma-separated, ending in a newline) onto `out`.
+fn push_row(out: &mut String, cells: &[Option<f64>]) {
+    for (k, v) in cells.iter().enumerate() {
+        if k > 0 {
+            out.push(',');
+        }
+        push_cell(out, *v);
+    }
+    out.push('\n');
 }
