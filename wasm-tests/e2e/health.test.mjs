@@ -167,3 +167,34 @@ test('the line keeps pace: by the time Stage shows an edit\'s figures, the line 
   assert.deepEqual(lags, [[1, 'void'], [1, 'caution'], [1, 'void'], [1, 'caution']]);
   await page.close();
 });
+
+test('the line and the Brief figures are computed in workers, never on the page\'s thread; the line keeps one worker across edits', async () => {
+  const { page, seen } = await openPanel(browser.context, 'brief');
+  await page.waitForSelector('#health[data-computed]');
+  await page.waitForSelector('#panel-brief[data-computed]');
+  // Every core call the page's own thread makes from here on.
+  await page.evaluate(() => {
+    const direct = HR.call;
+    window.__mainCalls = [];
+    HR.call = (name, ...args) => { window.__mainCalls.push(name); return direct(name, ...args); };
+  });
+  const [line0, brief0] = [await computed(page), Number(await page.locator('#panel-brief').getAttribute('data-computed'))];
+  await page.locator('#rail a[data-panel="stage"]').click();
+  for (const value of ['3k3', '4k7', '5k6']) {
+    await page.locator('#panel-stage button.value[data-key="r_fb_ohm"]').click();
+    await page.locator('#panel-stage input.in-place').fill(value);
+    await page.keyboard.press('Enter');
+    await page.waitForSelector('#panel-stage input.in-place', { state: 'detached' });
+  }
+  await recomputed(page, line0);
+  await page.locator('#rail a[data-panel="brief"]').click();
+  await page.waitForFunction((n) => Number(document.getElementById('panel-brief').dataset.computed) > n, brief0);
+  await page.waitForSelector('#health[data-follow="settled"]');
+  const calls = await page.evaluate(() => window.__mainCalls);
+  assert.ok(!calls.includes('health') && !calls.includes('responseReport'), calls.join());
+  assert.equal(await page.evaluate(() => HR.background.startedIn.health), 1, 'one worker for the line');
+  assert.ok(await page.evaluate(() => HR.background.startedIn.brief) >= 1, 'the Brief figures in a worker');
+  assert.deepEqual(await line(page), { state: 'caution', stale: false, quiet: null, findings: (await expected(page)).findings.map(({ code, severity, topic, text, link }) => ({ code, severity, topic, text, link })) });
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});

@@ -33,9 +33,9 @@ async function coreCells(page) {
 
 test('Print sheet prepares the sheet in the background and prints it: the PDF has every figure of the core sheet, the cautions, the images, on one or two pages', async () => {
   const { page, seen } = await openPanel(browser.context, 'stage');
-  const workers = await page.evaluate(() => HR.background.started);
+  const workers = await page.evaluate(() => HR.background.startedIn.sheet || 0);
   await pressPrint(page);
-  assert.ok(await page.evaluate(() => HR.background.started) > workers, 'the sheet was computed in a worker');
+  assert.ok(await page.evaluate(() => HR.background.startedIn.sheet || 0) > workers, 'the sheet was computed in a worker');
   assert.match(await page.locator('#engine-status').textContent(), /sheet/i);
   const { cells } = await coreCells(page);
   const figures = await page.evaluate(() => {

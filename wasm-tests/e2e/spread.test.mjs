@@ -7,7 +7,7 @@
 // the design (persisted, undoable, a bad one refused at its field).
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
-import { launch, watch, ready, clearStorage, editElsewhereDuringRun, PAGE_URL, cli, undoButton, instrumentWork, workLog, backgroundPanel, supersede } from './browser.mjs';
+import { launch, watch, ready, clearStorage, editElsewhereDuringRun, PAGE_URL, cli, undoButton, instrumentWork, workLog, panelWorkers, panelWorkersStarted, backgroundPanel, supersede } from './browser.mjs';
 
 let browser;
 before(async () => { browser = await launch(); });
@@ -52,10 +52,10 @@ test('the demo spreads in two workers; the yield and the gain agree with the CLI
   const { page, seen } = await openSpread();
   await results(page, 1);
   const l = await log(page);
-  assert.equal(l.workers.length, 2, `two workers made: ${l.workers}`);
-  assert.deepEqual(l.workers.map((w) => w.split(' ')[0]).sort(), ['halfrail-spread-0', 'halfrail-spread-1']);
-  assert.ok(l.workers.every((w) => / blob:/.test(w)), 'from a Blob');
-  assert.equal(await page.evaluate(() => HR.background.started), 2);
+  assert.equal(panelWorkers(l).length, 2, `two workers made: ${panelWorkers(l)}`);
+  assert.deepEqual(panelWorkers(l).map((w) => w.split(' ')[0]).sort(), ['halfrail-spread-0', 'halfrail-spread-1']);
+  assert.ok(panelWorkers(l).every((w) => / blob:/.test(w)), 'from a Blob');
+  assert.equal(await panelWorkersStarted(page), 2);
 
   const text = await page.evaluate(() => HR.design.text());
   const cli = cliSpread(text);
@@ -128,7 +128,7 @@ test('the page keeps answering during a run, and the progress bar rises to compl
   assert.equal(values[values.length - 1], 1, 'the bar reached completion');
   assert.equal(await runBox(page).isVisible(), false);
   assert.match(await page.locator('#panel-spread .run-note').textContent(), /^12000 trials computed in \d+\.\d\d s in two background workers\.$/);
-  assert.equal(l.workers.length, 2, 'the two workers are kept between runs');
+  assert.equal(panelWorkers(l).length, 2, 'the two workers are kept between runs');
   assert.deepEqual(seen.errors, []);
   assert.deepEqual(seen.requests, []);
   await page.close();
@@ -153,7 +153,7 @@ test('Cancel ends both workers and no result of the run lands; an edit supersede
   // An edit during a run supersedes it: one result, for the last value.
   await trials.fill('3000');
   await results(page, 2);
-  assert.equal((await log(page)).workers.length, 4, 'two fresh workers after the cancel');
+  assert.equal(panelWorkers(await log(page)).length, 4, 'two fresh workers after the cancel');
   const notes = await supersede(page, bg, trials, ['20000', '4000'], 3, '#panel-spread .run-note');
   assert.equal(await computed(page), 3, 'one result for the two edits');
   assert.deepEqual(notes.map((t) => t.split(' ')[0]), ['4000']);

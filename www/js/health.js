@@ -2,8 +2,10 @@
 // The design's health: one line above every panel, from the core's `health` report
 // (an oscillation, ringing, the part setting the gain, the bias warnings), each
 // finding in the core's words with a link to the panel that explains it. It follows
-// the design like a panel (HR.design.follow) but is always on show, so it is computed
-// once per change, before the panel's own figures. When the core says the figures are
+// the design like a panel, in a worker of its own (a nine-inverter design's loop
+// analysis can take a second), and is always on show, so it is computed once per
+// change; the worker is kept across edits (the call is usually over within a frame).
+// When the core says the figures are
 // void (the stage oscillates), the small-signal read-outs that panels hand to `voids`
 // are struck through under a note pointing here. The page writes nothing of its own
 // about the design: only the core's text, and the words for no finding.
@@ -58,8 +60,13 @@ HR.health = (() => {
       // Empty (not `hidden`, which would stop it following) until a design gives a report.
       line = el('section', { class: 'health empty', id: 'health', 'aria-label': 'Health of the design' });
       document.getElementById('main').prepend(line);
-      HR.design.follow(line, {
-        compute: (text) => HR.call('health', text),
+      HR.background.follow(line, {
+        name: 'health',
+        args: (text) => [text],
+        keep: true,
+        delay: 0,
+        quiet: HR.background.QUIET,
+        progress: () => {},
         render,
         // The panels say what is wrong with the draft; the line keeps the last design's.
         report: () => {},

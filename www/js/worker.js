@@ -78,6 +78,7 @@ HR.background = (() => {
     worker.postMessage({ module: HR.module });
     lane.worker = worker;
     HR.background.started += 1;
+    HR.background.startedIn[lane.key] = (HR.background.startedIn[lane.key] || 0) + 1;
     return worker;
   };
 
@@ -92,9 +93,14 @@ HR.background = (() => {
   const run = (name, args, options) => submit({ name, args }, name, options);
   const calls = (list, options) => submit({ calls: list }, list[0][0], options);
 
-  const submit = (message, entry, { lane: key = entry, onProgress = () => {} } = {}) => {
+  // `keep`: a new run supersedes the lane's running one without ending its worker,
+  // which finishes the old call (its answer is dropped) and then takes the new one —
+  // for a lane that runs after every edit and is usually done within a frame, where
+  // starting a worker per edit would cost more than the call.
+  const submit = (message, entry, { lane: key = entry, onProgress = () => {}, keep = false } = {}) => {
     if (!lanes.has(key)) lanes.set(key, { key, worker: null, job: null });
     const lane = lanes.get(key);
+    lane.keep = keep;
     if (lane.job) lane.job.cancel();
     let settle;
     const promise = new Promise((resolve) => { settle = resolve; });
@@ -112,7 +118,7 @@ HR.background = (() => {
       cancel() {
         if (lane.job !== job) return;
         lane.job = null;
-        stop(lane);
+        if (!lane.keep) stop(lane);
         settle({ cancelled: true });
       },
     };
@@ -133,11 +139,12 @@ HR.background = (() => {
   // draft is checked first (checkDocument, well under a millisecond), so a bad value
   // is reported at once, without a run. The last result stays on show, marked stale,
   // while a new one computes, after an error and after a cancel.
-  //   spec: {name, args(text) → [...], lane, delay, quiet, when(),
+  //   spec: {name, args(text) → [...], lane, keep, delay, quiet, when(),
   //          render(result, {ms, text}), report(error | null, field),
   //          stale(why | null, rendered), progress(fraction | null)}
   //   or, for a run of several calls (in several lanes), `job(text, onProgress)` in
   //   place of name and args, returning what run() returns: {promise, cancel()}.
+  //   `keep`: an edit supersedes a run without ending its worker (submit's `keep`).
   //   `quiet`: ms a run may take before it is shown as running (stale 'running',
   //   progress(0)); a panel whose runs are usually over within a frame sets it, so
   //   that an ordinary edit redraws without a flash of the stale marker.
@@ -151,8 +158,8 @@ HR.background = (() => {
   // while hidden), 'held' (cancelled), or 'settled' (the last result or error is final:
   // nothing more will land until the next edit).
   const follow = (panel, spec) => {
-    const { name, args, lane = name, delay = 300, quiet = 0, when = () => true, render, stale, progress,
-      job: begin = (text, onProgress) => run(name, args(text), { lane, onProgress }) } = spec;
+    const { name, args, lane = name, keep = false, delay = 300, quiet = 0, when = () => true, render, stale, progress,
+      job: begin = (text, onProgress) => run(name, args(text), { lane, onProgress, keep }) } = spec;
     const seen = HR.design.watch(panel, spec.report);
     const { report } = seen;
     let shownText = null;   // the design text of the result on show
@@ -340,5 +347,6 @@ HR.background = (() => {
   // with no flash of the stale marker.
   const QUIET = 120;
 
-  return { run, calls, follow, staleNotes, staleMarker, runBox, QUIET, started: 0 };
+  // `started`: workers started so far, and `startedIn` by lane (the tests count them).
+  return { run, calls, follow, staleNotes, staleMarker, runBox, QUIET, started: 0, startedIn: {} };
 })();

@@ -84,8 +84,15 @@
       container.append(el('h1', {}, 'Brief'),
         el('p', { class: 'lede' }, 'What the design is called and where it is analysed. Every panel uses these settings; each change is one step of Undo.'),
         el('div', { class: 'cards' }, named, where, ports, gives));
-      HR.design.follow(container, {
-        compute: (text) => HR.call('responseReport', text),
+      // The figures come from the response report, in a worker as the Response
+      // panel's (a long sweep of a many-inverter part is no main-thread call).
+      HR.background.follow(container, {
+        name: 'responseReport',
+        args: (text) => [text],
+        lane: 'brief',
+        delay: 0,
+        quiet: HR.background.QUIET,
+        progress: () => {},
         render,
         // What no field here takes (a bad value of another panel's) is said above the figures.
         report: (error, field) => {
