@@ -349,7 +349,7 @@
         delay: 0, quiet: HR.background.QUIET,
         render,
         report: (error) => {
-          problem.textContent = error ? error.message || error.reason : '';
+          problem.textContent = HR.words(error);
           problem.hidden = !error;
         },
         progress: box.progress,
