@@ -272,7 +272,7 @@ test('a cut-short or bad link is refused politely and the saved design kept', as
     [link.slice(0, -12), /^The design in this link is damaged or cut short, so it was not opened\. Your own design is kept\./],
     [link.slice(0, -1), /damaged or cut short/],
     [`${PAGE_URL}#stage&d=not*base64`, /damaged or cut short/],
-    [`${PAGE_URL}#stage&d=${newer}`, /^The design in the link was not opened — halfrail: this document is format version 2/],
+    [`${PAGE_URL}#stage&d=${newer}`, /^The design in the link was not opened — Format version: this document is format version 2/],
   ]) {
     const other = await browser.context.newPage();
     const seen2 = watch(other);
