@@ -1,7 +1,8 @@
 // Words, not keys, from a user's side in Chromium from file://: a bad value is said
 // by the field's label (`R fb: must be > 0, got -3300`, not `stage.r_fb_ohm: …`);
 // Undo and Redo name the change with the values as engineers write them (`R fb 2k2
-// → 3k3`); the noise table names each source by its component; the printed sheet has
+// → 3k3`); a warning names a component by its label (`C in`, not `c_in_f`); the
+// noise table names each source by its component; the printed sheet has
 // no key column, while the CLI, which scripts read, keeps the keys. And Open: one
 // notice at a time, a new one in the old one's place, and the header says "Opened …"
 // only while a design that was opened is on the page (not after a refused, cancelled
@@ -58,6 +59,21 @@ test('a bad value is said by its field’s label on every panel that says it, ne
   const loop = await problemOn(page, 'loop');
   assert.match(loop, /^(R fb|Cgs): /);
   assert.doesNotMatch(loop, KEY);
+  await clean(page, seen);
+});
+
+test('a warning of the core names a component by its label, on the Part panel and in the health line', async () => {
+  const { page, seen } = await openPanel(browser.context, 'stage');
+  // C in taken out (its value emptied in place): the source's DC path moves the bias.
+  await typeAt(page, 'c_in_f', '');
+  await page.locator('#rail a[href="#part"]').click();
+  const warning = page.locator('#panel-part li.warning[data-code="bias-shift"]');
+  await warning.waitFor();
+  assert.match(await warning.textContent(), /An input coupling capacitor \(C in\) would keep the self-bias\./);
+  const finding = page.locator('#health li[data-code="bias-shift"] .text');
+  await finding.waitFor();
+  assert.equal(await finding.textContent(), await warning.textContent());
+  for (const text of [await warning.textContent(), await finding.textContent()]) assert.doesNotMatch(text, KEY);
   await clean(page, seen);
 });
 

@@ -146,6 +146,9 @@ HR.reasonWords = (e) => {
     .replace(/`([a-z0-9_]+)`/g, (all, key) => { const f = keyed(key); return f ? `“${f.name}”` : all; })
     .replace(/\b[a-z0-9]+(?:_[a-z0-9]+)+\b/g, (key) => { const f = keyed(key); return f ? f.name : key; });
 };
+// A text of the core (a warning, a finding) with the stage's keys it names in words:
+// `Coupling capacitors (c_in_f, c_out_f)` as `(C in, C out)`.
+HR.textWords = (text) => HR.reasonWords({ field: 'stage', reason: text });
 // A core error as the page says it: `R fb: must be > 0, got -3300`; an error that
 // names no field of the document keeps the core's message (`value: …`, a trap's).
 HR.words = (e) => {

@@ -28,8 +28,8 @@ HR.sheet = (() => {
   // One block as DOM, and whether it wants the page's whole width.
   const blockOf = ({ kind, body }) => {
     switch (kind) {
-      case 'paragraph': return [paragraph(body), false];
-      case 'bullets': return [el('ul', {}, body.map((t) => el('li', {}, t))), true];
+      case 'paragraph': return [paragraph(HR.textWords(body)), false];
+      case 'bullets': return [el('ul', {}, body.map((t) => el('li', {}, HR.textWords(t)))), true];
       case 'pairs': return [tableOf(body.head, body.rows), false];
       case 'table': return [tableOf(body.head, body.rows, body.right), body.head.length > 2];
       default: return [paragraph(String(body)), false];

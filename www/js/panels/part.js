@@ -87,7 +87,7 @@
       fillRows(stages.tbody, b.stages.map((s, i) => [String(i + 1), fmt(s.vin_v, 'V', 4), fmt(s.vout_v, 'V', 4),
         fmt(s.id_a, 'A', 3), fmt(s.gm_s, 'S', 3), fmt(s.gds_s, 'S', 3), fmt(s.gain, '', 3)]));
       warnings.replaceChildren(...(b.warnings.length
-        ? b.warnings.map((w) => el('li', { class: 'warning', 'data-code': w.code }, w.text))
+        ? b.warnings.map((w) => el('li', { class: 'warning', 'data-code': w.code }, HR.textWords(w.text)))
         : [el('li', { class: 'ok' }, 'No warnings at this operating point.')]));
     };
     const node = card('Operating point', stale, output);
