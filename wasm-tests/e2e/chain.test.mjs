@@ -343,7 +343,7 @@ test('a design without a chain starts one with the first block added', async () 
   const { page, seen } = await openChain();
   await page.evaluate(() => HR.design.replace('chain', undefined, 'drop the chain'));
   await page.waitForFunction(() => /This design has no chain yet/.test(document.getElementById('panel-chain').innerText));
-  assert.match(await panel(page).locator('.chain-problem').textContent(), /^chain: missing/);
+  assert.match(await panel(page).locator('.chain-problem').textContent(), /^Chain: missing/);
   const n = await computed(page);
   await panel(page).getByRole('button', { name: 'Add a filter' }).click();
   await recomputed(page, n);

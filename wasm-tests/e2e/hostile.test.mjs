@@ -1,6 +1,7 @@
 // Hostile documents through the page's two ways in — Open (the file picker) and a
-// permalink — refused with the same "field: reason" the native `halfrail check`
-// prints, the user's design kept untouched, no step added to its history, nothing
+// permalink — refused with the reason the native `halfrail check` prints, the field
+// named in words (the CLI's key for a script, the page's label for a person), the
+// user's design kept untouched, no step added to its history, nothing
 // thrown, no network request.
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
@@ -49,6 +50,13 @@ function refusal(text) {
   }
 }
 
+// The CLI's `field: reason` as the page words it for a person: a field of the
+// document by its name (`R fb`), the reason the same (its quoted keys in words).
+const inWords = (page, line) => {
+  const at = line.indexOf(': ');
+  return page.evaluate(([field, reason]) => HR.words({ field, reason, message: `${field}: ${reason}` }), [line.slice(0, at), line.slice(at + 2)]);
+};
+
 let browser;
 before(async () => { browser = await launch(); });
 after(async () => { await browser.close(); });
@@ -68,15 +76,15 @@ test('hostile files through Open are refused as the CLI refuses them, and the de
   await page.evaluate(() => HR.design.set('stage', 'r_fb_ohm', '3k9', 'test'));
   const mine = await draft(page);
   for (const [name, text] of HOSTILE) {
-    const reason = refusal(text);
-    const count = await page.locator('.notice').count();
+    const reason = await inWords(page, refusal(text));
     const [chooser] = await Promise.all([page.waitForEvent('filechooser'), page.locator('#docbar').getByRole('button', { name: 'Open…', exact: true }).click()]);
     // Playwright hands over at most 50 MB from memory: the big one goes as a file on disk.
     const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'halfrail-hostile-'));
     const file = path.join(dir, `${name}.json`);
     fs.writeFileSync(file, text);
     await chooser.setFiles(file);
-    await page.locator('.notice').nth(count).waitFor();
+    // One notice at a time: this file's takes the place of the last one's.
+    await page.waitForFunction((n) => document.querySelector('.notice')?.textContent.startsWith(`${n}.json was not opened`), name);
     const message = await page.locator('.notice').last().textContent();
     // The 50 MB file is refused before it is read, in the core's wording with the page's count.
     if (name === '50 MB') assert.match(message, /document: is \d+ bytes; at most 4194304 are accepted/);
@@ -84,7 +92,7 @@ test('hostile files through Open are refused as the CLI refuses them, and the de
     assert.match(message, /Your design is unchanged/);
     fs.rmSync(dir, { recursive: true, force: true });
     assert.equal(await draft(page), mine, name);
-    assert.equal(await page.evaluate(() => HR.design.undoLabel()), 'edit stage.r_fb_ohm', `${name}: no step added`);
+    assert.equal(await page.evaluate(() => HR.design.undoLabel()), 'R fb 2k2 → 3k9', `${name}: no step added`);
   }
   assert.deepEqual(seen.requests, []);
   assert.deepEqual(seen.errors, []);
@@ -109,7 +117,8 @@ test('hostile designs in a permalink are refused the same way, and the saved des
     await other.goto(`${PAGE_URL}#stage&d=${links[i]}`);
     await ready(other);
     const message = await other.locator('.notice').last().textContent();
-    assert.ok(message.includes(refusal(text)), `${name}: ${message}`);
+    const reason = await inWords(other, refusal(text));
+    assert.ok(message.includes(reason), `${name}: the page says “${message}”, the CLI “${reason}”`);
     assert.equal(await draft(other), mine, name);
     assert.deepEqual(seen2.requests, []);
     assert.deepEqual(seen2.errors, []);

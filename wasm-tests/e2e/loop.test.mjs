@@ -116,7 +116,7 @@ test('a bad value elsewhere is reported here by its field, and the last figures 
   const before = await figure(page, 't_mid');
   await page.evaluate(() => HR.design.set('part', 'cgs_f', '4 uH', 'test'));
   await page.waitForFunction(() => !document.querySelector('#panel-loop p.error').hidden);
-  assert.match(await page.locator('#panel-loop p.error').textContent(), /^part\.cgs_f: /);
+  assert.match(await page.locator('#panel-loop p.error').textContent(), /^Cgs: /);
   assert.equal(await page.locator('#panel-loop .stale-note').isVisible(), true);
   assert.equal(await figure(page, 't_mid'), before);
   assert.doesNotMatch(await page.locator('#panel-loop').textContent(), /NaN|undefined/);

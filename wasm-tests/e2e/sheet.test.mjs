@@ -23,12 +23,22 @@ async function pressPrint(page) {
   await page.waitForFunction(() => window.printed === 1, null, { timeout: 20000 });
 }
 
-// The core's own sheet of the page's design as Markdown: its tables' value cells.
+// The core's own sheet of the page's design as Markdown: its tables' value cells,
+// but for the components' `key` column, which the printed sheet leaves out (the keys
+// stay in the file and in `halfrail report`): `keys` are those cells.
 async function coreCells(page) {
   const md = await page.evaluate(() => wasm_bindgen.sheetText(HR.design.text(), true));
   const rows = md.split('\n').filter((l) => l.startsWith('| ') && !/^\| -{3}/.test(l));
-  const cells = rows.flatMap((l) => l.slice(2, -2).split(' | ').map((c) => squash(c.replace(/\\\|/g, '|').replace(/&lt;/g, '<').replace(/&gt;/g, '>').replace(/&amp;/g, '&'))));
-  return { md, cells: [...new Set(cells.filter(Boolean))] };
+  let keyAt = -1;
+  const keys = [];
+  const cells = rows.flatMap((l) => {
+    const row = l.slice(2, -2).split(' | ').map((c) => squash(c.replace(/\\\|/g, '|').replace(/&lt;/g, '<').replace(/&gt;/g, '>').replace(/&amp;/g, '&')));
+    if (row.includes('key')) keyAt = row.indexOf('key');
+    else if (row.length <= keyAt || !/^[a-z]+(_[a-z0-9]+)+$/.test(row[keyAt] || '')) keyAt = -1;
+    if (keyAt >= 0) keys.push(row[keyAt]);
+    return row.filter((_, i) => i !== keyAt);
+  });
+  return { md, cells: [...new Set(cells.filter(Boolean))], keys };
 }
 
 test('Print sheet prepares the sheet in the background and prints it: the PDF has every figure of the core sheet, the cautions, the images, on one or two pages', async () => {
@@ -94,7 +104,7 @@ test('The browser’s own print gives the same sheet, for the design as it is wh
   // A bad value: the sheet is of the last good design, and says so.
   await page.evaluate(() => HR.design.set('stage', 'r_fb_ohm', '3k3x'));
   const bad = await readPdf(await page.pdf({ format: 'A4' }));
-  assert.match(bad.text, /bad value \(stage\.r_fb_ohm: /);
+  assert.match(bad.text, /bad value \(R fb: /);
   assert.ok(bad.text.includes('3k3'), 'the last good R fb');
   assert.ok(bad.pages.length <= 2);
   assert.deepEqual(seen.requests, []);

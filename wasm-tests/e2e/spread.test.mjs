@@ -171,7 +171,7 @@ test('the tolerances are part of the design: a bad one is refused at its field w
   await resistors.fill('75');
   await page.waitForFunction(() => !document.querySelector('#panel-spread p.error').hidden);
   assert.equal(await resistors.getAttribute('aria-invalid'), 'true');
-  assert.match(await page.locator('#panel-spread p.error').textContent(), /^tolerance\.resistor_pct: /);
+  assert.match(await page.locator('#panel-spread p.error').textContent(), /^Resistors: /);
   assert.equal(await page.locator('#panel-spread .stale-note').isVisible(), true);
   await settledAs(page, 'settled');
   assert.equal(await runBox(page).isVisible(), false, 'no run for a draft the core refuses');

@@ -82,7 +82,7 @@ test('a component is reached from the keyboard, and a bad value is refused at it
   await input.fill('220 uF');
   await input.press('Enter');
   await page.waitForFunction(() => document.querySelector('#panel-stage button.value[data-key="r_in_ohm"][aria-invalid="true"]'));
-  assert.match(await page.locator('#panel-stage p.error').textContent(), /stage\.r_in_ohm: `220 uF` is in F, expected Ω/);
+  assert.match(await page.locator('#panel-stage p.error').textContent(), /R in: `220 uF` is in F, expected Ω/);
   assert.equal(await figure(page, 'nf'), before, 'the last figures stay');
   // A component that is not fitted can be added.
   await page.getByRole('button', { name: 'C fb not fitted: add' }).click();

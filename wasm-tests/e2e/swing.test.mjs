@@ -144,7 +144,7 @@ test('a bad level is reported at its field without a run; edits elsewhere wait u
   await level.fill('-40 dBx');
   await page.waitForFunction(() => !document.querySelector('#panel-swing p.error').hidden);
   assert.equal(await level.getAttribute('aria-invalid'), 'true');
-  assert.match(await page.locator('#panel-swing p.error').textContent(), /^analysis\.input_dbm: /);
+  assert.match(await page.locator('#panel-swing p.error').textContent(), /^Input level \(dBm available from the source\): /);
   assert.equal(await page.locator('#panel-swing .stale-note').isVisible(), true);
   await settledAs(page, 'settled');
   assert.equal(await runBox(page).isVisible(), false, 'no run for a draft the core refuses');

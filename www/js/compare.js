@@ -38,7 +38,7 @@ HR.compare = (() => {
     const t = HR.design.text();
     const r = HR.call('checkDocument', t);
     if (r.error) {
-      HR.setStatus(`Not pinned as the reference: ${r.error.field}: ${r.error.reason}. Fix it first.`, true);
+      HR.setStatus(`Not pinned as the reference: ${HR.words(r.error)}. Fix it first.`, true);
       return false;
     }
     const title = String(JSON.parse(t).title || '').trim();
@@ -142,7 +142,7 @@ HR.compare = (() => {
       const has = result();
       node.hidden = !t;
       go.hidden = Boolean(has || job);
-      if (!job) say.textContent = has ? `Reference “${label()}” shown beside the figures.` : got && got.text === t && got.error ? `The reference could not be computed (${got.error.reason}).` : 'Reference not computed here.';
+      if (!job) say.textContent = has ? `Reference “${label()}” shown beside the figures.` : got && got.text === t && got.error ? `The reference could not be computed (${HR.reasonWords(got.error)}).` : 'Reference not computed here.';
     };
     const run = () => {
       const t = text();

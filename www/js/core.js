@@ -110,4 +110,76 @@ HR.fieldAt = (path) => {
   return (HR.fieldsKnown && HR.fieldsKnown[path]) || null;
 };
 HR.field = (section, key) => HR.fieldAt(`${section}.${key}`) || { label: key, name: key, unit: '', hint: '' };
+
+// Words, not keys: the page names a field as a person reads it (the catalogue's name,
+// `R fb`), while saved files and the CLI, which scripts read, keep the keys.
+// HR.fieldWords(path) is that name for a document path, with the entry of a list
+// (`Loss (Blocks, entry 3)` for `chain.blocks[2].loss_db`); '' for no field of the
+// document (`document`, `value`, an unknown key).
+HR.fieldWords = (path) => {
+  const text = String(path || '');
+  const general = text.replace(/\[\d+\]/g, '[]');
+  const entry = /^(.*?)\[(\d+)\]/.exec(text);
+  const list = entry && HR.fieldAt(entry[1]);
+  const where = list ? `${list.name}, entry ${Number(entry[2]) + 1}` : '';
+  const f = HR.fieldAt(general);
+  if (f) return where ? `${f.name} (${where})` : f.name;
+  return general === `${entry && entry[1]}[]` ? where : '';
+};
+// An error's reason with the keys it quotes put in words: a path of the document
+// (`must be below part.vdd_v`), and a key of the field it names or of what holds that
+// field (`missing field \`vdd_v\`` of `part`, `takes no loss_db` of a block), by
+// their names.
+HR.reasonWords = (e) => {
+  if (!e) return '';
+  const field = String(e.field || '').replace(/\[\d+\]/g, '[]');
+  // The field and what holds it, nearest first: `chain.blocks[].loss_db`, `chain.blocks[]`, `chain`, ''.
+  const holders = [];
+  for (let p = field, n = 0; n < 8; n += 1) {
+    holders.push(p);
+    if (!p) break;
+    p = p.endsWith('[]') ? p.slice(0, -2) : p.includes('.') ? p.slice(0, p.lastIndexOf('.')) : '';
+  }
+  const keyed = (key) => holders.map((h) => HR.fieldAt(h ? `${h}.${key}` : key)).find(Boolean);
+  return String(e.reason)
+    .replace(/\b[a-z]+(?:\.[a-z0-9_]+|\[\d*\])+/g, (p) => HR.fieldWords(p) || p)
+    .replace(/`([a-z0-9_]+)`/g, (all, key) => { const f = keyed(key); return f ? `“${f.name}”` : all; })
+    .replace(/\b[a-z0-9]+(?:_[a-z0-9]+)+\b/g, (key) => { const f = keyed(key); return f ? f.name : key; });
+};
+// A text of the core (a warning, a finding) with the stage's keys it names in words:
+// `Coupling capacitors (c_in_f, c_out_f)` as `(C in, C out)`.
+HR.textWords = (text) => HR.reasonWords({ field: 'stage', reason: text });
+// A core error as the page says it: `R fb: must be > 0, got -3300`; an error that
+// names no field of the document keeps the core's message (`value: …`, a trap's).
+HR.words = (e) => {
+  if (!e) return '';
+  const where = HR.fieldWords(e.field);
+  if (where) return `${where}: ${HR.reasonWords(e)}`;
+  return e.message || (e.field ? `${e.field}: ${e.reason}` : String(e.reason));
+};
+
+// A field's value as engineers write it, for words such as Undo's (`2k2`, `100 nF`,
+// `3.30 V`): a resistor of the stage in RKM code, a value with a unit through the
+// core's formatter, anything else (a bad value, a whole number, a choice) as typed;
+// `not fitted` or `empty` for none (`off` where the value on the other side of the
+// change, `other`, is a tick's), a tick `on`, a list by its entries; `section` null
+// for the document's own text (the title, the notes), quoted and cut short.
+HR.valueWords = (section, key, value, other) => {
+  const { unit } = section ? HR.field(section, key) : { unit: '' };
+  const none = value === undefined || value === null || value === '' || value === false;
+  if (value === true) return 'on';
+  if (none) return other === true ? 'off' : section === 'stage' ? 'not fitted' : 'empty';
+  if (Array.isArray(value)) return value.every((v) => typeof v !== 'object') ? value.join(', ') : `${value.length} ${value.length === 1 ? 'entry' : 'entries'}`;
+  if (typeof value === 'object') return 'set';
+  const text = String(value);
+  if (!section) {
+    const line = text.split('\n')[0];
+    return `“${line.length > 32 ? `${line.slice(0, 31)}…` : line}${line === text ? '' : ' …'}”`;
+  }
+  const parsed = unit ? HR.call('parseValue', text, unit, '') : {};
+  if (!parsed.ok) return /^\s*[-+]?[\d.]+(e[-+]?\d+)?\s*$/i.test(text) && unit ? `${text.trim()} ${unit}` : text.trim();
+  const v = parsed.ok.value;
+  if (unit === 'Ω') return v === 0 ? '0 (short)' : v < 0 ? text.trim() : HR.rkm(v, 'R') || HR.fmt(v, 'Ω', 3);
+  return HR.fmt(v, unit, 3);
+};
 HR.demoText = () => HR.value('demoDocument', '{"halfrail": 1}');

@@ -20,11 +20,14 @@ HR.design = (() => {
   const HISTORY = 200;
 
   // Remembers the draft before a change (false: read-only, no change); consecutive
-  // edits of one field are one step.
-  const remember = (label, field) => {
+  // edits of one field are one step. A step says what it changes in words: `label`,
+  // or for the edit of one field, `edit` ([section, key]; section null for the
+  // document's own title and notes), its name and values (`R fb 2k2 → 3k3`), made
+  // when asked, as a run of typing changes the value after the step was taken.
+  const remember = (label, field, edit = null) => {
     if (locked) return false;
     if (field && field === lastField) return true;
-    past.push({ draft: JSON.stringify(draft), label });
+    past.push({ draft: JSON.stringify(draft), label, edit });
     if (past.length > HISTORY) past.shift();
     future.length = 0;
     lastField = field;
@@ -43,7 +46,7 @@ HR.design = (() => {
     const d = saved && saved.draft;
     if (!plain(d) || Object.entries(d).some(([k, v]) => !['halfrail', 'title', 'notes'].includes(k) && v !== null && !plain(v))) return 'it is not a design draft';
     const r = HR.call('checkDocument', JSON.stringify(d));
-    return r.error && ['halfrail', 'document'].includes(r.error.field) ? `${r.error.field}: ${r.error.reason}` : '';
+    return r.error && ['halfrail', 'document'].includes(r.error.field) ? HR.words(r.error) : '';
   };
 
   const load = () => {
@@ -73,6 +76,21 @@ HR.design = (() => {
 
   const notify = (origin) => listeners.forEach((fn) => fn(origin));
 
+  // A step in words (see remember); `ahead`: a step of redo, whose draft is the
+  // change's after, where an undo step's is its before.
+  const said = (step, ahead) => {
+    if (!step.edit) return step.label;
+    const [section, key] = step.edit;
+    const valueIn = (d) => (section ? (d[section] || {})[key] : d[key]);
+    const held = valueIn(JSON.parse(step.draft));
+    const [before, after] = ahead ? [valueIn(draft), held] : [held, valueIn(draft)];
+    const name = (HR.fieldAt(section ? `${section}.${key}` : key) || { name: key }).name;
+    let [b, a] = [HR.valueWords(section, key, before, after), HR.valueWords(section, key, after, before)];
+    // Two values that read the same once formatted (10.70 and 10.71 MHz): as typed.
+    if (b === a && JSON.stringify(before) !== JSON.stringify(after)) [b, a] = [String(before ?? 'empty'), String(after ?? 'empty')];
+    return `${name} ${b} → ${a}`;
+  };
+
   // Writes fields of a section (an empty value removes the field), then tells the views.
   const put = (section, values, origin) => {
     draft[section] = draft[section] || {};
@@ -88,7 +106,7 @@ HR.design = (() => {
   const travel = (from, to, origin) => {
     const step = !locked && from.pop();
     if (!step) return;
-    to.push({ draft: JSON.stringify(draft), label: step.label });
+    to.push({ draft: JSON.stringify(draft), label: step.label, edit: step.edit });
     draft = JSON.parse(step.draft);
     lastField = null;
     save();
@@ -116,12 +134,12 @@ HR.design = (() => {
     section(name) { return draft[name]; },
     // Sets one field as typed; an empty text removes it (not fitted / default).
     set(section, key, value, origin) {
-      if (remember(`edit ${section}.${key}`, `${section}.${key}`)) put(section, { [key]: value }, origin);
+      if (remember('', `${section}.${key}`, [section, key])) put(section, { [key]: value }, origin);
     },
     // Sets a key of the document itself (`title`, `notes`) as typed, as `set` does a
     // section's; an empty text removes it.
     setTop(key, value, origin) {
-      if (!remember(`edit ${key}`, key)) return;
+      if (!remember('', key, [null, key])) return;
       if (value === '' || value === null || value === undefined) delete draft[key];
       else draft[key] = value;
       save();
@@ -155,8 +173,10 @@ HR.design = (() => {
     },
     canUndo: () => past.length > 0,
     canRedo: () => future.length > 0,
-    undoLabel: () => (past.length ? past[past.length - 1].label : ''),
-    redoLabel: () => (future.length ? future[future.length - 1].label : ''),
+    // What Undo and Redo would change, in words: the step's label, or an edit's
+    // field and values, before → after (the step holds the draft on its own side).
+    undoLabel: () => (past.length ? said(past[past.length - 1], false) : ''),
+    redoLabel: () => (future.length ? said(future[future.length - 1], true) : ''),
     undo() { travel(past, future, 'undo'); },
     redo() { travel(future, past, 'redo'); },
     onChange(fn) { listeners.add(fn); },

@@ -18,13 +18,33 @@ HR.documents = (() => {
   const linked = parts.find((p) => p.startsWith('d='));
 
   const status = (text, problem) => HR.setStatus(text, problem);
+  // What the header says of the last open ("Opened …", "Loaded the demo …"), while it
+  // is on show: it goes when an open is tried again, fails or is taken back by Undo, so
+  // the header says "Opened" only of a design that was opened and is on the page.
+  let openedSaid = null;
+  let openedStep = null; // the undo step of that open
+  const opened = (text, step) => { status(text); [openedSaid, openedStep] = [text, step]; };
+  const unsay = () => {
+    if (openedSaid !== null && document.getElementById('engine-status').textContent === openedSaid) status('');
+    openedSaid = null;
+  };
   let notices;
-  // A notice under the header until dismissed (`onDismiss` runs then).
-  const notice = (text, buttons = [], onDismiss) => {
+  let openNotice = null;
+  // A notice under the header until dismissed (`onDismiss` runs then). Notices of
+  // opening are one at a time (`replaces`): a new one takes the place of the last,
+  // and an open that succeeds clears it.
+  const notice = (text, buttons = [], onDismiss, replaces = false) => {
     const n = el('div', { class: 'notice', role: 'alert' }, el('p', {}, text), ...buttons,
       el('button', { type: 'button', class: 'small', onclick: () => { n.remove(); if (onDismiss) onDismiss(); } }, 'Dismiss'));
-    notices.append(n);
+    if (replaces && openNotice && openNotice.isConnected) openNotice.replaceWith(n);
+    else notices.append(n);
+    if (replaces) openNotice = n;
     return n;
+  };
+  const openFailed = (text) => { unsay(); return notice(text, [], null, true); };
+  const openDone = (text, step) => {
+    if (openNotice) { openNotice.remove(); openNotice = null; }
+    opened(text, step);
   };
   // A dialog of the page's own (a frame may block window.confirm): resolves to the
   // value of the button pressed, or false on Escape.
@@ -45,7 +65,7 @@ HR.documents = (() => {
 
   const plain = (v) => v !== null && typeof v === 'object' && !Array.isArray(v);
   const same = (a, b) => JSON.stringify(JSON.parse(a)) === JSON.stringify(JSON.parse(b));
-  const refuse = (source, e) => notice(`${source} was not opened — ${e.field}: ${e.reason}. Your design is unchanged.`);
+  const refuse = (source, e) => openFailed(`${source} was not opened — ${HR.words(e)}. Your design is unchanged.`);
 
   // Reading (done), migrating, checking and loading a document's text: the one path
   // for a file, a dropped file and a link. A refused document changes nothing.
@@ -57,7 +77,7 @@ HR.documents = (() => {
     const e = r.error || (!plain(opened) && { field: 'document', reason: 'is not a JSON object' });
     if (e) return refuse(source, e);
     const from = m.ok === text ? '' : ` (brought up from format ${JSON.parse(text).halfrail} to ${opened.halfrail}; saving writes the new format)`;
-    if (HR.design.load(m.ok, label)) status(said + from);
+    if (HR.design.load(m.ok, label)) openDone(said + from, label);
   };
 
   const open = async (file) => {
@@ -85,7 +105,7 @@ HR.documents = (() => {
     const name = fileName();
     HR.ui.download(name, new Blob([`${JSON.stringify(JSON.parse(text), null, 2)}\n`], { type: 'application/json' }));
     const r = HR.call('checkDocument', text);
-    status(r.error ? `Saved ${name}; it still has a bad value (${r.error.field}: ${r.error.reason}), and opening it will be refused until that is fixed.`
+    status(r.error ? `Saved ${name}; it still has a bad value (${HR.words(r.error)}), and opening it will be refused until that is fixed.`
       : `Saved ${name}.`, !!r.error);
   };
 
@@ -106,7 +126,7 @@ HR.documents = (() => {
   const address = async (extra = '', say = status) => {
     const text = HR.design.text();
     const r = HR.call('checkDocument', text);
-    if (r.error) { say(`A link would not open while ${r.error.field} is bad (${r.error.reason}); fix it first.`, true); return null; }
+    if (r.error) { say(`A link would not open while ${HR.fieldWords(r.error.field) || r.error.field} is bad (${HR.reasonWords(r.error)}); fix it first.`, true); return null; }
     const url = `${location.href.split('#')[0]}#${panel()}${extra}&d=${await deflate(text)}`;
     if (url.length <= MAX_LINK) return url;
     say(`This design is too long for a link (${url.length} characters; at most ${MAX_LINK}): save it as a file instead.`, true);
@@ -138,7 +158,7 @@ HR.documents = (() => {
     if (same(HR.design.text(), text)) return status('This is the demo design already.');
     const yes = await dialog('Load the demo design?', [el('p', {}, 'The demo replaces the design on the page. Undo brings yours back.')],
       [['Load the demo', true], ['Keep my design', false, true]]);
-    if (yes && HR.design.load(text, 'load the demo')) status('Loaded the demo design — Undo brings back your previous design.');
+    if (yes && HR.design.load(text, 'load the demo')) opened('Loaded the demo design — Undo brings back your previous design.', 'load the demo');
   };
 
   // The page's one Undo/Redo pair, for every panel's edits (HR.design keeps one
@@ -169,6 +189,9 @@ HR.documents = (() => {
   const bar = () => {
     const picker = el('input', { type: 'file', accept: '.json,application/json', hidden: true, 'aria-label': 'Design file to open',
       onchange: () => { if (picker.files[0]) open(picker.files[0]); picker.value = ''; } });
+    // A new open starts: what the header said of the last one goes (a cancelled
+    // choice opens nothing, and the header then says nothing was).
+    picker.addEventListener('click', unsay);
     const button = (text, onclick) => el('button', { type: 'button', onclick }, text);
     document.getElementById('docbar').replaceChildren(el('span', {}, 'Design'), ...(view ? [] : undoRedo()),
       button('Save', save), view ? null : button('Open…', () => picker.click()), button('Copy link', copyLink),
@@ -201,7 +224,7 @@ HR.documents = (() => {
     const rest = parts.filter((p) => !p.startsWith('d='));
     if (!embed) history.replaceState(null, '', `${location.pathname}${location.search}${rest.length ? `#${rest.join('&')}` : ''}`);
     const text = await inflate(parts.find((p) => p.startsWith('d=')).slice(2)).catch(() => null);
-    if (text === null) return notice('The design in this link is damaged or cut short, so it was not opened. Your own design is kept.');
+    if (text === null) return openFailed('The design in this link is damaged or cut short, so it was not opened. Your own design is kept.');
     take(text, 'The design in the link', 'open the link', view ? 'Showing the design in the link, read only.'
       : embed ? 'Showing the design in the link; changes stay in this frame.' : 'Opened the design in the link — Undo brings back your previous design.');
   };
@@ -238,6 +261,8 @@ HR.documents = (() => {
       if (embed) HR.embed.start(view);
       bar();
       headerTitle();
+      // Undo of the open itself: the design opened is no longer on the page.
+      HR.design.onChange((origin) => { if (origin === 'undo' && openedSaid !== null && HR.design.redoLabel() === openedStep) unsay(); });
       dropping();
       const lost = HR.design.recovered();
       if (lost.length) {

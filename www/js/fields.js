@@ -124,7 +124,7 @@ HR.bind = (() => {
     const holds = (b) => path.startsWith(`${b.path}[`) || path.startsWith(`${b.path}.`);
     const target = fields.find((b) => b.path === path)
       || fields.filter(holds).reduce((best, b) => (!best || b.path.length > best.path.length ? b : best), null);
-    if (target) target.show(error.reason);
+    if (target) target.show(HR.reasonWords(error));
     return target || null;
   };
 

@@ -47,7 +47,7 @@ HR.health = (() => {
     line.replaceChildren(head, r.findings.length
       ? el('ul', {}, r.findings.map((f) => el('li', { 'data-code': f.code, 'data-severity': f.severity, 'data-topic': f.topic },
         el('span', { class: 'severity' }, SEVERITY[f.severity] || f.severity), ' ',
-        el('span', { class: 'text' }, f.text), ' ', link(f.topic))))
+        el('span', { class: 'text' }, HR.textWords(f.text)), ' ', link(f.topic))))
       : el('p', { class: 'quiet' }, 'No findings.'));
     line.classList.remove('empty');
     mark(r);

@@ -28,12 +28,20 @@ HR.sheet = (() => {
   // One block as DOM, and whether it wants the page's whole width.
   const blockOf = ({ kind, body }) => {
     switch (kind) {
-      case 'paragraph': return [paragraph(body), false];
-      case 'bullets': return [el('ul', {}, body.map((t) => el('li', {}, t))), true];
+      case 'paragraph': return [paragraph(HR.textWords(body)), false];
+      case 'bullets': return [el('ul', {}, body.map((t) => el('li', {}, HR.textWords(t)))), true];
       case 'pairs': return [tableOf(body.head, body.rows), false];
       case 'table': return [tableOf(body.head, body.rows, body.right), body.head.length > 2];
       default: return [paragraph(String(body)), false];
     }
+  };
+  // A table without its `key` column: the paper is for a person, who reads the
+  // components by reference and value (the keys stay in the file and `halfrail report`).
+  const unkeyed = (b) => {
+    const at = b.kind === 'table' ? b.body.head.indexOf('key') : -1;
+    if (at < 0) return b;
+    const drop = (list) => list.filter((_, i) => i !== at);
+    return { kind: b.kind, body: { head: drop(b.body.head), right: drop(b.body.right), rows: b.body.rows.map(drop) } };
   };
   // → {title, sub, lead: [nodes], sections: [{head, nodes, wide}], rows: {key: [cells]}}
   const read = (page) => {
@@ -41,7 +49,7 @@ HR.sheet = (() => {
     for (const b of page.blocks) {
       const last = out.sections[out.sections.length - 1];
       if (b.kind === 'heading') { out.sections.push({ head: b.body, nodes: [], wide: false }); continue; }
-      const [node, wide] = blockOf(b);
+      const [node, wide] = blockOf(unkeyed(b));
       if (last) {
         last.nodes.push(node);
         last.wide = last.wide || wide;
@@ -216,9 +224,9 @@ HR.sheet = (() => {
     const warn = (t) => el('p', { class: 'warn' }, t);
     node.replaceChildren(...[
       el('header', {}, el('h1', {}, sheet.title || String(doc.title || 'Design sheet')), el('p', { class: 'sub' }, sheet.sub)),
-      problem ? warn(older ? `The design on the page has a bad value (${problem.field}: ${problem.reason}); this sheet is of the last design without one.`
-        : `This design has a bad value (${problem.field}: ${problem.reason}).`) : null,
-      made.error ? warn(`The sheet could not be made: ${made.error.field}: ${made.error.reason}.`) : null,
+      problem ? warn(older ? `The design on the page has a bad value (${HR.words(problem)}); this sheet is of the last design without one.`
+        : `This design has a bad value (${HR.words(problem)}).`) : null,
+      made.error ? warn(`The sheet could not be made: ${HR.words(made.error)}.`) : null,
       ...sheet.lead, ...parts,
       el('footer', {}, el('p', {}, `Halfrail ${HR.version} · printed ${today()}`),
         el('p', { class: 'link' }, 'Link to this design: ', url ? el('a', { href: url }, url) : linkText))].filter(Boolean));

@@ -36,7 +36,7 @@ HR.background = (() => {
       try {
         self.postMessage({ id, ok: calls ? calls.map(([n, a]) => wasm_bindgen[n](...a)) : wasm_bindgen[name](...args, progress) });
       } catch (e) {
-        if (e && typeof e === 'object' && 'reason' in e) self.postMessage({ id, error: { field: e.field, reason: e.reason, message: e.message } });
+        if (e && typeof e === 'object' && 'reason' in e) self.postMessage({ id, error: { field: e.field, reason: e.reason, message: e.message, label: e.label } });
         else self.postMessage({ id, trap: String(e && e.message ? e.message : e) });
       }
     };

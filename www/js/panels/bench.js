@@ -34,7 +34,7 @@
       const result = compute(state);
       const at = HR.bind.route(node, result.error || null);
       if (result.error) {
-        if (!at) controls.find((c) => c.errors).show(result.error.reason);
+        if (!at) controls.find((c) => c.errors).show(HR.reasonWords(result.error));
         const good = state.good[title];
         if (!rendered && good) {
           const last = compute({ ...state, ...good });

@@ -96,7 +96,7 @@
         render,
         // What no field here takes (a bad value of another panel's) is said above the figures.
         report: (error, field) => {
-          problem.textContent = error && !field ? error.message || error.reason : '';
+          problem.textContent = error && !field ? HR.words(error) : '';
           problem.hidden = !problem.textContent;
         },
         stale: (why, rendered) => {

@@ -163,7 +163,9 @@
         aria: `Block ${i + 1} ${label}`, attrs: { 'data-row': i, 'data-key': key }, on: 'change',
         commit: (text) => {
           if (!blocks()[i]) return;
-          change(`edit ${nameOf(i)} ${key}`, (c) => {
+          const words = (v) => HR.valueWords('chain.blocks[]', key, v);
+          const { name } = HR.field('chain.blocks[]', key);
+          change(`${nameOf(i)}: ${name} ${words(blocks()[i][key])} → ${words(text)}`, (c) => {
             if (text === '') delete c.blocks[i][key];
             else c.blocks[i][key] = text;
           });
@@ -244,7 +246,7 @@
           r.stage.op1db_dbm.textContent = f ? fixed(f.op1db_dbm, 2) : running ? '…' : '—';
           r.stage.dc_w.textContent = f ? watts(f.dc_w) : running ? '…' : '—';
           r.tr.dataset.stage = f ? 'ready' : running ? 'computing' : got ? 'error' : 'due';
-          r.kindError.textContent = got && got.error ? got.error.reason : '';
+          r.kindError.textContent = got && got.error ? HR.reasonWords(got.error) : '';
         });
         container.dataset.stage = running ? 'computing' : got ? (got.ok ? 'ready' : 'error') : 'due';
       };
@@ -354,7 +356,7 @@
         if (!error) { problem.textContent = ''; return; }
         const m = /^chain\.blocks\[(\d+)\]\.(\w+)$/.exec(error.field || '');
         const where = m ? `Block ${Number(m[1]) + 1} (${nameOf(Number(m[1]))})` : null;
-        problem.textContent = at ? `${where ? `${where}: ` : ''}${error.reason}` : error.message || `${error.field}: ${error.reason}`;
+        problem.textContent = at ? `${where ? `${where}: ` : ''}${HR.reasonWords(error)}` : HR.words(error);
       };
       const NOTES = {
         stage: 'Computing the stage’s own figures in the background; the budget shown is for the design before the last change.',

@@ -271,13 +271,14 @@
       const renderHelper = (r) => {
         const s = r.summary;
         const wanted = `${fixed(r.wanted_margin_deg, 0)}°`;
+        const asked = `the target’s “${HR.field('target', 'pm_min_deg').label}”`;
         helperWrap.hidden = r.suggestions.length === 0;
         if (!r.suggestions.length) {
-          helperIntro.textContent = `${r.helper_words} The margin asked for is the target’s pm_min_deg, or 60° when the target sets none.`;
+          helperIntro.textContent = `${r.helper_words} The margin asked for is ${asked}, or 60° when the target sets none.`;
           helperBody.replaceChildren();
           return;
         }
-        helperIntro.textContent = `The loop has ${known(s.phase_margin_deg) ? deg(s.phase_margin_deg) : 'no measurable'} phase margin; ${wanted} is wanted (the target’s pm_min_deg, or 60° when it sets none). ${r.helper_words} Apply puts the values into the stage; Undo (in the Design bar, or Ctrl+Z) takes them back.`;
+        helperIntro.textContent = `The loop has ${known(s.phase_margin_deg) ? deg(s.phase_margin_deg) : 'no measurable'} phase margin; ${wanted} is wanted (${asked}, or 60° when it sets none). ${r.helper_words} Apply puts the values into the stage; Undo (in the Design bar, or Ctrl+Z) takes them back.`;
         const pmNow = known(s.phase_margin_deg) ? deg(s.phase_margin_deg) : (s.stable ? 'no crossover' : 'unstable');
         helperBody.replaceChildren(...r.suggestions.map((g) => {
           const found = g.changes.length > 0;
@@ -349,7 +350,7 @@
         delay: 0, quiet: HR.background.QUIET,
         render,
         report: (error) => {
-          problem.textContent = error ? error.message || error.reason : '';
+          problem.textContent = HR.words(error);
           problem.hidden = !error;
         },
         progress: box.progress,

@@ -87,7 +87,7 @@
       fillRows(stages.tbody, b.stages.map((s, i) => [String(i + 1), fmt(s.vin_v, 'V', 4), fmt(s.vout_v, 'V', 4),
         fmt(s.id_a, 'A', 3), fmt(s.gm_s, 'S', 3), fmt(s.gds_s, 'S', 3), fmt(s.gain, '', 3)]));
       warnings.replaceChildren(...(b.warnings.length
-        ? b.warnings.map((w) => el('li', { class: 'warning', 'data-code': w.code }, w.text))
+        ? b.warnings.map((w) => el('li', { class: 'warning', 'data-code': w.code }, HR.textWords(w.text)))
         : [el('li', { class: 'ok' }, 'No warnings at this operating point.')]));
     };
     const node = card('Operating point', stale, output);
@@ -173,7 +173,7 @@
       busy.hidden = true;
       if (r.cancelled) return;
       const at = HR.bind.route(panel, r.error || null);
-      message.textContent = r.error && !at ? r.error.message || r.error.reason : '';
+      message.textContent = r.error && !at ? HR.words(r.error) : '';
       if (r.error) return;
       fitted = r.ok.part;
       use.disabled = false;
@@ -214,7 +214,7 @@
         job: (text) => HR.compare.along(HR.background.run('partReport', [text, POINTS], { lane: 'part' }), [['partReport', POINTS]]),
         delay: 0, quiet: HR.background.QUIET,
         render: HR.compare.rerender((r) => { bias.render(r); curves.render(r); }),
-        report: (error, at) => { problem.textContent = error && !at ? error.message || error.reason : ''; },
+        report: (error, at) => { problem.textContent = error && !at ? HR.words(error) : ''; },
         progress: box.progress,
         stale: box.stale(HR.background.staleMarker(bias.stale, [bias.output])),
       }));

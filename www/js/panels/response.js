@@ -7,10 +7,19 @@
   const { el, card, table, fillRows } = HR.ui;
 
   const FIGURES = [
-    ['gain', 'Gain at f_design'], ['ideal', 'Ideal −r_fb/r_in'], ['gt', 'Power gain GT'],
+    ['gain', 'Gain at f_design'], ['ideal', 'Ideal −R fb/R in'], ['gt', 'Power gain GT'],
     ['band', 'Band edges (−3 dB)'], ['zin', 'Input impedance'], ['rl', 'Return loss'],
     ['nf', 'Noise figure'], ['en', 'Input noise (stage)'], ['band_noise', 'Output noise in the noise band'], ['mu', 'Stability μ'],
   ];
+
+  // A noise source as a person names it: a component by its label (`R fb`), an
+  // inverter of the part (the core's element `stage 2`) by its place in the part.
+  const sourceName = (name) => {
+    const f = HR.fieldAt(`stage.${name}`);
+    if (f) return f.label;
+    const m = /^stage (\d+)$/.exec(name);
+    return m ? `Inverter ${m[1]} (channel noise)` : name;
+  };
 
   HR.panel({
     id: 'response',
@@ -91,7 +100,7 @@
         for (const [k] of FIGURES) cells[k].textContent = t[k];
         const ref = HR.compare.report('responseReport');
         HR.compare.figures(cells, texts, DIFFS, r, ref);
-        fillRows(shares.tbody, r.noise_shares.slice(0, 6).map((s) => [s.name, HR.fmt(100 * s.share, '%')]));
+        fillRows(shares.tbody, r.noise_shares.slice(0, 6).map((s) => [sourceName(s.name), HR.fmt(100 * s.share, '%')]));
         for (const [plot, ys] of plots) plot.setData([r.f_hz, ...ys(r)], ref && [ref.f_hz, ...ys(ref)]);
       });
       container.append(el('h1', {}, 'Response'),
@@ -104,7 +113,7 @@
         job: (text) => HR.compare.along(HR.background.run('responseReport', [text], { lane: 'response' }), [['responseReport']]),
         delay: 0, quiet: HR.background.QUIET,
         render,
-        report: (error) => { problem.textContent = error ? error.message || error.reason : ''; },
+        report: (error) => { problem.textContent = HR.words(error); },
         progress: box.progress,
         stale: box.stale(HR.background.staleMarker(stale, [])),
       }));

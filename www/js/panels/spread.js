@@ -218,7 +218,7 @@
           barText.textContent = `Computing… ${fixed(100 * p, 0)} %`;
         },
         report: (error) => {
-          problem.textContent = error ? error.message || error.reason : '';
+          problem.textContent = HR.words(error);
           problem.hidden = !error;
         },
         stale: HR.background.staleMarker(staleNote, [figuresCard, barsCard, row]),

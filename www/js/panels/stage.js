@@ -133,7 +133,7 @@
         busy.hidden = true;
         if (r.cancelled) return;
         const atField = HR.bind.route(container, r.error || null);
-        problem.textContent = r.error && !atField ? r.error.message || r.error.reason : '';
+        problem.textContent = r.error && !atField ? HR.words(r.error) : '';
         out.classList.toggle('stale', Boolean(r.error));
         if (r.error) return;
         render(r.ok);
@@ -255,7 +255,7 @@
           [['responseReport'], ['biasOf']]),
         delay: 0, quiet: HR.background.QUIET,
         render: (ok, meta) => render({ r: ok[0], b: ok[1] }, meta),
-        report: (error) => { shownError = error; refresh(error); problem.textContent = error ? error.message || error.reason : ''; },
+        report: (error) => { shownError = error; refresh(error); problem.textContent = HR.words(error); },
         progress: box.progress,
         stale: box.stale(HR.background.staleMarker(stale, [readout])),
         when: () => !editing,

@@ -319,7 +319,7 @@
         render,
         progress,
         report: (error) => {
-          problem.textContent = error ? error.message || error.reason : '';
+          problem.textContent = HR.words(error);
           problem.hidden = !error;
         },
         stale: HR.background.staleMarker(staleNote, [readout, row]),
