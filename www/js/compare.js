@@ -36,7 +36,7 @@ HR.compare = (() => {
   // Pins the draft, when the core accepts it; says why not otherwise.
   const pin = () => {
     const t = HR.design.text();
-    const r = HR.call('checkDocument', t);
+    const r = HR.check(t);
     if (r.error) {
       HR.setStatus(`Not pinned as the reference: ${HR.words(r.error)}. Fix it first.`, true);
       return false;

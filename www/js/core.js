@@ -54,6 +54,19 @@ HR.call = (name, ...args) => {
   }
 };
 
+// The core's check of a document text (checkDocument), a pass remembered for the last
+// text: every panel that follows the design checks the draft after each edit, and the
+// same text passes again (a refusal is asked afresh: it may be a trap, restarted).
+HR.check = (() => {
+  let passed = null; // {text, r}
+  return (text) => {
+    if (passed && passed.text === text) return passed.r;
+    const r = HR.call('checkDocument', text);
+    if (!r.error) passed = { text, r };
+    return r;
+  };
+})();
+
 HR.setStatus = (text, isProblem = false) => {
   const el = document.getElementById('engine-status');
   el.textContent = text;

@@ -187,7 +187,7 @@ HR.sheet = (() => {
   // bad value (said on the sheet).
   const source = () => {
     const text = HR.design.text();
-    const check = HR.call('checkDocument', text);
+    const check = HR.check(text);
     const good = HR.design.lastGood();
     if (!check.error || !good) return { text, problem: check.error };
     return { text: good, problem: check.error, older: true };

@@ -221,7 +221,7 @@ HR.background = (() => {
       timer = null;
       held = false;
       const text = HR.design.text();
-      const check = HR.call('checkDocument', text);
+      const check = HR.check(text);
       if (check.error) {
         if (job) cancelJob();
         finish(text, check);

@@ -390,7 +390,7 @@
       // The budget of the document `text`: {ok, args}, {error}, or {pending: 'stage'}
       // while the stage's own figures compute.
       const budget = (text, lane) => {
-        const check = HR.call('checkDocument', text);
+        const check = HR.check(text);
         if (check.error) return check;
         const doc = JSON.parse(text);
         const list = doc.chain && Array.isArray(doc.chain.blocks) ? doc.chain.blocks : [];
