@@ -1,7 +1,7 @@
 //! The oscillator's figures (`analysis::crystal`) as `halfrail crystal` prints them
 //! and the page's Crystal panel will read them: the keys of SPEC §4 first, then the
-//! crystal's equivalent and the bias. The large-signal figures are null until the
-//! steady state is solved.
+//! crystal's equivalent and the bias. The large-signal figures are null, with the
+//! reason in `large_withheld`, when there is no steady state to solve.
 
 use serde::Serialize;
 
@@ -39,6 +39,10 @@ struct CrystalOut<'a> {
     im_a: Option<f64>,
     vpp_gate_v: Option<f64>,
     vpp_out_v: Option<f64>,
+    /// Why the large-signal figures are null.
+    large_withheld: Option<&'a str>,
+    f_steady_hz: Option<f64>,
+    gate_shift_v: Option<f64>,
     warnings: Vec<WarningOut<'a>>,
     f_p_hz: f64,
     trim_ppm_per_pf: f64,
@@ -56,6 +60,7 @@ pub struct CrystalReport<'a>(pub &'a Oscillator);
 impl<'a> From<CrystalReport<'a>> for CrystalOut<'a> {
     fn from(CrystalReport(o): CrystalReport<'a>) -> Self {
         let b = &o.bvd;
+        let large = o.large.as_ref().ok();
         CrystalOut {
             f_s_hz: b.f_s,
             f_osc_hz: o.f_osc_hz,
@@ -67,10 +72,13 @@ impl<'a> From<CrystalReport<'a>> for CrystalOut<'a> {
             gm_crit_s: o.gm_crit_s,
             tau_s: o.tau_s,
             spurious_hz: o.spurious_hz,
-            drive_w: None,
-            im_a: None,
-            vpp_gate_v: None,
-            vpp_out_v: None,
+            drive_w: large.map(|d| d.drive_w),
+            im_a: large.map(|d| d.im_a),
+            vpp_gate_v: large.map(|d| d.vpp_gate_v),
+            vpp_out_v: large.map(|d| d.vpp_out_v),
+            large_withheld: o.large.as_ref().err().map(String::as_str),
+            f_steady_hz: large.map(|d| d.f_hz),
+            gate_shift_v: large.map(|d| d.gate_shift_v),
             warnings: o.warnings.iter().map(|w| WarningOut { code: w.code, text: &w.text }).collect(),
             f_p_hz: o.f_p_hz,
             trim_ppm_per_pf: o.trim_ppm_per_pf,

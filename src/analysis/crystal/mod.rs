@@ -7,11 +7,13 @@
 
 mod bvd;
 mod critical;
+mod drive;
 mod frequency;
 mod linear;
 
 pub use bvd::{cm_from_trim, Bvd, Datasheet, Motional};
 pub use critical::{critical_scale, margin_at};
+pub use drive::{describing_impedance, steady_drive, Drive};
 pub use frequency::oscillation;
 pub use linear::{Linear, Variant};
 
@@ -51,6 +53,8 @@ pub struct Oscillator {
     pub trim_ppm_per_pf: f64,
     /// Re Z_c at f_osc, Ω (negative: the circuit makes up for the crystal's loss).
     pub r_neg_ohm: f64,
+    /// Im Z_c at f_osc, Ω.
+    pub x_c_ohm: f64,
     /// −r_neg/Rm.
     pub margin: f64,
     pub margin_min: f64,
@@ -67,20 +71,47 @@ pub struct Oscillator {
     /// The part's bias: its input and output, V.
     pub vg_v: f64,
     pub vo_v: f64,
+    /// The share of the negative resistance Rf takes (against the circuit without
+    /// it, at the same frequency), when the circuit has one without it.
+    pub rf_share: Option<f64>,
+    /// The steady state (large signal), or why there is none.
+    pub large: std::result::Result<Drive, String>,
     pub warnings: Vec<Warning>,
 }
 
 /// The oscillator of `part` in the circuit `parts` (its C0 taken from the crystal)
-/// with the crystal `crystal`; the margin wanted `margin_min`.
+/// with the crystal `crystal`; the margin wanted `margin_min`: the small-signal
+/// figures and the steady state.
 pub fn analyse(part: &Part, crystal: &Datasheet, parts: &Parts, margin_min: f64) -> Result<Oscillator> {
+    let (mut found, circuit, op) = prepared(part, crystal, parts, margin_min)?;
+    found.large = if found.spurious_hz.is_some() {
+        Err("the circuit oscillates by itself without the crystal: its steady state is not the crystal's".to_string())
+    } else if found.margin <= 1.0 {
+        Err("the oscillator does not start: there is no steady amplitude".to_string())
+    } else {
+        steady_drive(&circuit, &op, &found.bvd, found.f_osc_hz, part.vdd).map_err(|e| e.reason)
+    };
+    found.warnings = warnings(&found, crystal, &circuit);
+    Ok(found)
+}
+
+/// The same without the steady state (`large` says so): the small-signal figures
+/// alone, some milliseconds where the steady state takes tens.
+pub fn analyse_small_signal(part: &Part, crystal: &Datasheet, parts: &Parts, margin_min: f64) -> Result<Oscillator> {
+    Ok(prepared(part, crystal, parts, margin_min)?.0)
+}
+
+fn prepared(part: &Part, crystal: &Datasheet, parts: &Parts, margin_min: f64) -> Result<(Oscillator, PierceCircuit, OperatingPoint)> {
     part.check_supply()?;
     let law = part.law()?;
     let circuit = build(part, &law, &Parts { c0: crystal.c0_f, ..*parts })?;
     let op = stage_operating_point(part, &law, &circuit.netlist)?;
-    analyse_circuit(&circuit, &op, crystal, margin_min)
+    let found = analyse_circuit(&circuit, &op, crystal, margin_min)?;
+    Ok((found, circuit, op))
 }
 
-/// The same for any Pierce circuit already solved at its bias `op`.
+/// The small-signal figures of any Pierce circuit already solved at its bias `op`
+/// (the steady state left for `analyse`, which knows the supply).
 pub fn analyse_circuit(circuit: &PierceCircuit, op: &OperatingPoint, crystal: &Datasheet, margin_min: f64) -> Result<Oscillator> {
     let bvd = Bvd::of(crystal);
     let lin = Linear::new(circuit, op)?;
@@ -99,6 +130,7 @@ pub fn analyse_circuit(circuit: &PierceCircuit, op: &OperatingPoint, crystal: &D
     let rf_share = without_rf.filter(|&r| r < 0.0).map(|r| 1.0 - r_neg_ohm / r);
     let pull_ppm = 1e6 * (f_osc_hz - crystal.f_hz) / crystal.f_hz;
     let mut found = Oscillator {
+        rf_share,
         bvd,
         f_p_hz: bvd.parallel_resonance(),
         f_osc_hz,
@@ -106,6 +138,7 @@ pub fn analyse_circuit(circuit: &PierceCircuit, op: &OperatingPoint, crystal: &D
         cl_eff_f,
         trim_ppm_per_pf: bvd.trim_ppm_per_pf(cl_eff_f),
         r_neg_ohm,
+        x_c_ohm: z.im,
         margin,
         margin_min,
         gm_s: lin.gm_s,
@@ -114,9 +147,10 @@ pub fn analyse_circuit(circuit: &PierceCircuit, op: &OperatingPoint, crystal: &D
         spurious_hz,
         vg_v: op.voltage(circuit.g),
         vo_v: op.voltage(circuit.o),
+        large: Err("the steady state was not asked for".to_string()),
         warnings: Vec::new(),
     };
-    found.warnings = warnings(&found, crystal, rf_share, circuit);
+    found.warnings = warnings(&found, crystal, circuit);
     Ok(found)
 }
 
@@ -125,9 +159,10 @@ fn eng(value: f64, unit: Unit) -> String {
 }
 
 /// The warnings of SPEC §3.5 and the issue: the margin below the one wanted; the
-/// load capacitance off the crystal's; oscillation without the crystal; Rf loading
-/// the crystal.
-fn warnings(o: &Oscillator, crystal: &Datasheet, rf_share: Option<f64>, circuit: &PierceCircuit) -> Vec<Warning> {
+/// load capacitance off the crystal's (at the small-signal frequency, and at the
+/// steady state's when it is known); oscillation without the crystal; Rf loading
+/// the crystal; the drive above the crystal's rating.
+fn warnings(o: &Oscillator, crystal: &Datasheet, circuit: &PierceCircuit) -> Vec<Warning> {
     let mut out = Vec::new();
     let mut warn = |code: &'static str, text: String| out.push(Warning { code, text });
     if o.margin <= 1.0 {
@@ -150,8 +185,9 @@ fn warnings(o: &Oscillator, crystal: &Datasheet, rf_share: Option<f64>, circuit:
             ),
         );
     }
-    if o.pull_ppm.abs() > PULL_WARN_PPM {
-        let text = match crystal.cl_f {
+    let steady_ppm = o.large.as_ref().ok().map(|d| 1e6 * (d.f_hz - crystal.f_hz) / crystal.f_hz);
+    if o.pull_ppm.abs() > PULL_WARN_PPM || steady_ppm.is_some_and(|p| p.abs() > PULL_WARN_PPM) {
+        let mut text = match crystal.cl_f {
             Some(cl) => format!(
                 "the circuit loads the crystal with {} against the {} it is specified at: it runs {:+.1} ppm off its nominal frequency",
                 eng(o.cl_eff_f, Unit::Farad),
@@ -164,6 +200,9 @@ fn warnings(o: &Oscillator, crystal: &Datasheet, rf_share: Option<f64>, circuit:
                 o.pull_ppm
             ),
         };
+        if let Some(p) = steady_ppm {
+            text.push_str(&format!("; at its steady amplitude, {p:+.1} ppm"));
+        }
         warn("crystal_load", text);
     }
     if let Some(f) = o.spurious_hz {
@@ -174,7 +213,7 @@ fn warnings(o: &Oscillator, crystal: &Datasheet, rf_share: Option<f64>, circuit:
         };
         warn("crystal_rings", text);
     }
-    if let Some(share) = rf_share.filter(|&s| s > RF_LOADING_SHARE) {
+    if let Some(share) = o.rf_share.filter(|&s| s > RF_LOADING_SHARE) {
         let rf = match circuit.netlist.elements()[circuit.rf].element {
             crate::engine::Element::Resistor { ohms, .. } => ohms,
             _ => f64::NAN,
@@ -187,6 +226,18 @@ fn warnings(o: &Oscillator, crystal: &Datasheet, rf_share: Option<f64>, circuit:
                 eng(rf, Unit::Ohm),
             ),
         );
+    }
+    if let (Ok(drive), Some(limit)) = (&o.large, crystal.drive_max_w) {
+        if drive.drive_w > limit {
+            warn(
+                "crystal_overdrive",
+                format!(
+                    "the crystal is driven at {} against its rated {}: over-driven it ages, drifts and may crack; a series resistor Rs or a larger C2 lowers it",
+                    eng(drive.drive_w, Unit::Watt),
+                    eng(limit, Unit::Watt)
+                ),
+            );
+        }
     }
     out
 }
