@@ -35,8 +35,9 @@ const STEPS_PER_CYCLE: usize = 128;
 /// The first amplitude tried, as a voltage across the crystal's terminals: a
 /// millivolt per volt of supply keeps the part linear.
 const SMALL_SWING: f64 = 1e-3;
-/// The largest amplitude tried, as a voltage across the terminals in supplies: far
-/// beyond where an inverter's gain is gone.
+/// The largest amplitude tried, as the fundamental across the terminals in
+/// supplies: far beyond where an inverter's gain is gone. The model has no input
+/// protection, which in a real part clamps the gate long before.
 const LARGEST_SWING: f64 = 20.0;
 /// Doublings of the amplitude from the smallest at most (2³⁰: ample for the span).
 const MAX_DOUBLINGS: usize = 30;
@@ -102,8 +103,7 @@ fn with_drive(circuit: &PierceCircuit) -> (Netlist, usize) {
 struct AtFrequency {
     f_hz: f64,
     phasor: DVector<Complex64>,
-    /// Z_c exactly (small-signal), and less what the shooting gives at a small amplitude.
-    z_small: Complex64,
+    /// Z_c exactly (small-signal) less what the shooting gives at a small amplitude.
     correction: Complex64,
 }
 
@@ -112,7 +112,7 @@ impl Driven<'_> {
         let phasor = self.small.solve(TAU * f_hz)?;
         let layout = &self.small.layout;
         let z_small = layout.voltage(&phasor, self.x) - layout.voltage(&phasor, self.g);
-        let mut at = AtFrequency { f_hz, phasor, z_small, correction: Complex64::new(0.0, 0.0) };
+        let mut at = AtFrequency { f_hz, phasor, correction: Complex64::new(0.0, 0.0) };
         let im = SMALL_SWING * vdd / math::norm(z_small).max(f64::MIN_POSITIVE);
         let mut first = self.settle(&at, im, None)?;
         at.correction = z_small - first.z;
@@ -180,16 +180,16 @@ impl Driven<'_> {
     /// The amplitude at which −Re Z_c falls to Rm at this frequency, searched from
     /// `start` (a settled amplitude): doubled or halved to a bracket, then regula
     /// falsi (the Illinois variant) in ln Im.
-    fn amplitude(&self, at: &AtFrequency, start: Settled, bvd: &Bvd, largest: f64) -> Result<Settled> {
+    fn amplitude(&self, at: &AtFrequency, start: Settled, bvd: &Bvd, vdd: f64) -> Result<Settled> {
         let excess = |s: &Settled| -s.z.re / bvd.rm - 1.0;
         let up = excess(&start) > 0.0;
         let mut near = start;
         let mut far = None;
         for _ in 0..MAX_DOUBLINGS {
-            let im = if up { 2.0 * near.im } else { 0.5 * near.im };
-            if im > largest {
+            if up && math::norm(near.z) * near.im > LARGEST_SWING * vdd {
                 break;
             }
+            let im = if up { 2.0 * near.im } else { 0.5 * near.im };
             let next = self.settle(at, im, Some(&near))?;
             if (excess(&next) > 0.0) != up {
                 far = Some(next);
@@ -197,7 +197,12 @@ impl Driven<'_> {
             }
             near = next;
         }
-        let far = far.ok_or_else(|| refused(format!("the amplitude found no limit below {LARGEST_SWING} supplies across the crystal")))?;
+        let far = far.ok_or_else(|| {
+            refused(format!(
+                "no steady amplitude below {LARGEST_SWING} times the supply across the crystal: the circuit has far more gain than it needs, \
+                 and a real part's input protection would clamp the gate first; expect the crystal heavily over-driven (a larger Rs or smaller gm helps)"
+            ))
+        })?;
         let (mut low, mut high) = if up { (near, far) } else { (far, near) };
         let (mut fa, mut fb) = (excess(&low), excess(&high));
         let mut kept = 0i8;
@@ -259,13 +264,12 @@ pub fn steady_drive(circuit: &PierceCircuit, op: &OperatingPoint, bvd: &Bvd, f_h
         if -first.z.re <= bvd.rm {
             return Err(refused("the oscillator does not start: no amplitude to settle at"));
         }
-        let largest = LARGEST_SWING * vdd / math::norm(at.z_small).max(f64::MIN_POSITIVE);
         // From the last round's amplitude, else from the small one.
         let start = match found.take() {
             Some(s) => driven.settle(&at, s.im, Some(&s))?,
             None => first,
         };
-        let settled = driven.amplitude(&at, start, bvd, largest)?;
+        let settled = driven.amplitude(&at, start, bvd, vdd)?;
         let next = balancing_delta(settled.z, bvd);
         found = Some(settled);
         last = Some(at.f_hz);

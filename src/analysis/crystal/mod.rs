@@ -37,6 +37,10 @@ pub const PULL_WARN_PPM: f64 = 10.0;
 /// as a bias resistor should cost.
 pub const RF_LOADING_SHARE: f64 = 0.2;
 
+/// How far beyond a rail an input's protection diodes let the gate go (common
+/// practice: a diode's drop).
+pub const CLAMP_V: f64 = 0.6;
+
 /// The oscillator's small-signal figures (SPEC §3.5).
 #[derive(Debug, Clone, PartialEq)]
 pub struct Oscillator {
@@ -91,7 +95,7 @@ pub fn analyse(part: &Part, crystal: &Datasheet, parts: &Parts, margin_min: f64)
     } else {
         steady_drive(&circuit, &op, &found.bvd, found.f_osc_hz, part.vdd).map_err(|e| e.reason)
     };
-    found.warnings = warnings(&found, crystal, &circuit);
+    found.warnings = warnings(&found, crystal, &circuit, Some(part.vdd));
     Ok(found)
 }
 
@@ -150,7 +154,7 @@ pub fn analyse_circuit(circuit: &PierceCircuit, op: &OperatingPoint, crystal: &D
         large: Err("the steady state was not asked for".to_string()),
         warnings: Vec::new(),
     };
-    found.warnings = warnings(&found, crystal, circuit);
+    found.warnings = warnings(&found, crystal, circuit, None);
     Ok(found)
 }
 
@@ -161,8 +165,10 @@ fn eng(value: f64, unit: Unit) -> String {
 /// The warnings of SPEC §3.5 and the issue: the margin below the one wanted; the
 /// load capacitance off the crystal's (at the small-signal frequency, and at the
 /// steady state's when it is known); oscillation without the crystal; Rf loading
-/// the crystal; the drive above the crystal's rating.
-fn warnings(o: &Oscillator, crystal: &Datasheet, circuit: &PierceCircuit) -> Vec<Warning> {
+/// the crystal; the drive above the crystal's rating; the gate swinging beyond the
+/// rails of the supply `vdd`, where the model's figures stop (it has no input
+/// protection).
+fn warnings(o: &Oscillator, crystal: &Datasheet, circuit: &PierceCircuit, vdd: Option<f64>) -> Vec<Warning> {
     let mut out = Vec::new();
     let mut warn = |code: &'static str, text: String| out.push(Warning { code, text });
     if o.margin <= 1.0 {
@@ -226,6 +232,19 @@ fn warnings(o: &Oscillator, crystal: &Datasheet, circuit: &PierceCircuit) -> Vec
                 eng(rf, Unit::Ohm),
             ),
         );
+    }
+    if let (Ok(drive), Some(vdd)) = (&o.large, vdd) {
+        if drive.vpp_gate_v > vdd + 2.0 * CLAMP_V {
+            warn(
+                "crystal_gate_clamped",
+                format!(
+                    "the gate would swing {} peak to peak on a {} supply: a real part's input protection clamps it, which the model leaves out; \
+                     the drive and swings are then rough estimates (a larger C1 or Rs lowers the swing)",
+                    eng(drive.vpp_gate_v, Unit::Volt),
+                    eng(vdd, Unit::Volt)
+                ),
+            );
+        }
     }
     if let (Ok(drive), Some(limit)) = (&o.large, crystal.drive_max_w) {
         if drive.drive_w > limit {
