@@ -13,6 +13,8 @@ pub enum Section {
     Tolerance,
     Bench,
     Chain,
+    Crystal,
+    Oscillator,
 }
 
 /// The components of a stage (SPEC §3.2), from the source to the load.
@@ -97,6 +99,24 @@ pub enum TargetInput {
     MatchSource,
 }
 
+/// The parts of the Pierce oscillator around the part and its crystal (SPEC §3.5),
+/// as the circuit's elements: an engine message naming one names its field.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum OscillatorPart {
+    C1,
+    C2,
+    Rf,
+    Rs,
+    CStray,
+    /// The crystal's shunt capacitance (a field of the crystal, an element of the circuit).
+    C0,
+}
+
+impl OscillatorPart {
+    pub const ALL: [OscillatorPart; 6] =
+        [OscillatorPart::C1, OscillatorPart::C2, OscillatorPart::Rf, OscillatorPart::Rs, OscillatorPart::CStray, OscillatorPart::C0];
+}
+
 /// One input the core names in a refusal.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 pub enum Input {
@@ -106,4 +126,5 @@ pub enum Input {
     Stage(Component),
     Analysis(AnalysisInput),
     Target(TargetInput),
+    Oscillator(OscillatorPart),
 }

@@ -31,6 +31,7 @@
 //! - [`engine`]: the one circuit engine — netlist, MNA, DC, AC, noise, transient.
 //! - [`part`]: the inverter's device models and illustrative presets.
 //! - [`stage`]: the amplifier's topology, built into a netlist on the engine.
+//! - [`pierce`]: the part as a Pierce crystal oscillator, on the same engine.
 //! - [`analysis`]: bias, response, loop, swing, bench fit, design and spread.
 //! - [`chain`]: the cascade budget of matched blocks and directly coupled runs.
 //! - [`report`]: text exports — CSV, Touchstone, the design sheet.
@@ -49,6 +50,7 @@ pub mod order;
 pub mod error;
 pub mod input;
 pub mod part;
+pub mod pierce;
 pub mod report;
 pub mod session;
 pub mod stage;

@@ -1,6 +1,7 @@
 //! Analyses of the stage, each in its own module, all on the one engine.
 
 mod bias;
+pub mod crystal;
 pub mod design;
 mod fit;
 pub mod health;

@@ -4,6 +4,7 @@
 mod analyze;
 mod chain;
 mod check;
+mod crystal;
 mod convert;
 mod design;
 mod fit;
@@ -64,6 +65,8 @@ enum Verb {
     Touchstone(analyze::Args),
     /// Fit the part to the bench readings of a document.
     Fit(fit::Args),
+    /// The part as a Pierce crystal oscillator: frequency, pull, negative resistance, margin, critical gm.
+    Crystal(crystal::Args),
     /// The design sheet: components, part, bias, figures, chain and cautions, as text or Markdown.
     Report(report::Args),
 }
@@ -90,6 +93,7 @@ pub fn run(args: impl IntoIterator<Item = OsString>) -> Result<String, Failure> 
         Verb::Touchstone(args) => analyze::run_touchstone(args),
         Verb::Fit(args) => fit::run(args),
         Verb::Report(args) => report::run(args),
+        Verb::Crystal(args) => crystal::run(args),
     }
 }
 

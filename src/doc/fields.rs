@@ -10,7 +10,7 @@
 use super::quantity::FieldUnit as U;
 use super::read::Key;
 use crate::error::FieldError;
-use crate::input::{AnalysisInput, Component, Input, PartInput, Role, Section, TargetInput};
+use crate::input::{AnalysisInput, Component, Input, OscillatorPart, PartInput, Role, Section, TargetInput};
 
 /// One field of the document.
 #[derive(Debug)]
@@ -91,6 +91,8 @@ pub static TARGET: Field = field(None, plain("target"), "Design target");
 pub static TOLERANCE: Field = field(None, plain("tolerance"), "Tolerances");
 pub static BENCH: Field = field(None, plain("bench"), "Bench readings");
 pub static CHAIN: Field = field(None, plain("chain"), "Chain");
+pub static CRYSTAL: Field = field(None, plain("crystal"), "Crystal");
+pub static OSCILLATOR: Field = field(None, plain("oscillator"), "Oscillator");
 
 // ---- part --------------------------------------------------------------------------
 
@@ -226,6 +228,30 @@ pub static BLOCK_OIP3: Field = hinted(&CHAIN_BLOCKS, q("oip3_dbm", U::DBM), "OIP
 pub static BLOCK_OP1DB: Field = hinted(&CHAIN_BLOCKS, q("op1db_dbm", U::DBM), "OP1dB", "dBm");
 pub static BLOCK_DC: Field = hinted(&CHAIN_BLOCKS, q("dc_w", U::WATT), "DC power", "W");
 
+// ---- crystal (SPEC §3.5: its datasheet figures) -----------------------------------
+
+pub static CRYSTAL_F: Field = hinted(&CRYSTAL, q("f_hz", U::HERTZ), "Nominal frequency", "Hz, at the load capacitance below, e.g. 20 MHz");
+pub static CRYSTAL_CL: Field = Field {
+    named: Some("Crystal load capacitance"),
+    ..hinted(&CRYSTAL, q("cl_f", U::FARAD), "Load capacitance", "F the frequency is specified at, e.g. 12p; empty: series resonance")
+};
+pub static CRYSTAL_ESR: Field = hinted(&CRYSTAL, q("esr_ohm", U::OHM), "ESR", "Ω, the motional resistance, e.g. 40");
+pub static CRYSTAL_C0: Field = hinted(&CRYSTAL, q(OscillatorPart::C0.key(), U::FARAD), "Shunt capacitance C0", "F, e.g. 3p");
+pub static CRYSTAL_CM: Field = hinted(&CRYSTAL, q("cm_f", U::FARAD), "Motional capacitance Cm", "F, e.g. 8f; or the trim sensitivity");
+pub static CRYSTAL_PULL: Field =
+    hinted(&CRYSTAL, q("pull_ppm_per_pf", U::PLAIN), "Trim sensitivity", "ppm/pF at the load capacitance; or Cm");
+pub static CRYSTAL_DRIVE_MAX: Field = hinted(&CRYSTAL, q("drive_max_w", U::WATT), "Drive level at most", "W, e.g. 100u (optional)");
+
+// ---- oscillator (SPEC §3.5: the Pierce circuit around the part) -------------------
+
+pub static OSCILLATOR_C1: Field = hinted(&OSCILLATOR, q(OscillatorPart::C1.key(), U::FARAD), "C1 (gate side)", "F to ground at the part's input, e.g. 18p");
+pub static OSCILLATOR_C2: Field = hinted(&OSCILLATOR, q(OscillatorPart::C2.key(), U::FARAD), "C2 (output side)", "F to ground at the crystal's output end, e.g. 22p");
+pub static OSCILLATOR_RF: Field = hinted(&OSCILLATOR, q(OscillatorPart::Rf.key(), U::OHM), "Bias resistor Rf", "Ω from output to input, e.g. 1M");
+pub static OSCILLATOR_RS: Field = hinted(&OSCILLATOR, q(OscillatorPart::Rs.key(), U::OHM), "Series resistor Rs", "Ω from the output to C2, optional, e.g. 220");
+pub static OSCILLATOR_C_STRAY: Field = hinted(&OSCILLATOR, q(OscillatorPart::CStray.key(), U::FARAD), "Stray across the crystal", "F, board and pins, default 0");
+pub static OSCILLATOR_MARGIN_MIN: Field =
+    hinted(&OSCILLATOR, q("margin_min", U::PLAIN), "Start-up margin wanted", "−R/ESR at least, default 5 (common practice)");
+
 /// Every field, in reading order.
 pub static ALL: &[&Field] = &[
     &HALFRAIL, &TITLE, &NOTES, &PART, &STAGE, &ANALYSIS, &TARGET, &TOLERANCE, &BENCH, &CHAIN,
@@ -242,6 +268,9 @@ pub static ALL: &[&Field] = &[
     &GAIN_F, &GAIN_VV, &GAIN_DB, &CURVE_VIN, &CURVE_VOUT,
     &CHAIN_INPUT, &CHAIN_BANDWIDTH, &CHAIN_BLOCKS, &CHAIN_SNR, &CHAIN_HEADROOM, &CHAIN_STAGE_RUNS,
     &BLOCK_KIND, &BLOCK_NAME, &BLOCK_LOSS, &BLOCK_GAIN, &BLOCK_NF, &BLOCK_OIP3, &BLOCK_OP1DB, &BLOCK_DC,
+    &CRYSTAL, &OSCILLATOR,
+    &CRYSTAL_F, &CRYSTAL_CL, &CRYSTAL_ESR, &CRYSTAL_C0, &CRYSTAL_CM, &CRYSTAL_PULL, &CRYSTAL_DRIVE_MAX,
+    &OSCILLATOR_C1, &OSCILLATOR_C2, &OSCILLATOR_RF, &OSCILLATOR_RS, &OSCILLATOR_C_STRAY, &OSCILLATOR_MARGIN_MIN,
 ];
 
 /// The field of a section.
@@ -254,6 +283,8 @@ pub fn section(s: Section) -> &'static Field {
         Section::Tolerance => &TOLERANCE,
         Section::Bench => &BENCH,
         Section::Chain => &CHAIN,
+        Section::Crystal => &CRYSTAL,
+        Section::Oscillator => &OSCILLATOR,
     }
 }
 
@@ -277,6 +308,19 @@ pub fn of(input: Input) -> &'static Field {
             TargetInput::ResistorMax => &TARGET_R_MAX,
             TargetInput::MatchSource => &TARGET_MATCH_SOURCE,
         },
+        Input::Oscillator(p) => oscillator(p),
+    }
+}
+
+/// The field of a part of the oscillator.
+pub fn oscillator(p: OscillatorPart) -> &'static Field {
+    match p {
+        OscillatorPart::C1 => &OSCILLATOR_C1,
+        OscillatorPart::C2 => &OSCILLATOR_C2,
+        OscillatorPart::Rf => &OSCILLATOR_RF,
+        OscillatorPart::Rs => &OSCILLATOR_RS,
+        OscillatorPart::CStray => &OSCILLATOR_C_STRAY,
+        OscillatorPart::C0 => &CRYSTAL_C0,
     }
 }
 
@@ -322,7 +366,9 @@ mod tests {
             Input::Analysis(AnalysisInput::Level),
             Input::Target(TargetInput::LowCorner),
             Input::Section(Section::Bench),
-        ]);
+            Input::Section(Section::Crystal),
+            Input::Section(Section::Oscillator),
+        ]).chain(OscillatorPart::ALL.map(Input::Oscillator));
         for input in inputs {
             assert!(paths.contains(&of(input).path()), "{input:?}");
         }

@@ -20,7 +20,8 @@ mod sections;
 mod validate;
 
 pub use sections::{
-    Analysis, Bench, Block, BlockKind, Chain, CurvePoint, Document, GainKind, GainReading, Model, Part, StageRuns, Target, Tolerance,
+    Analysis, Bench, Block, BlockKind, Chain, Crystal, CurvePoint, Document, GainKind, GainReading, Model, Oscillator, Part, StageRuns, Target,
+    Tolerance, DEFAULT_MARGIN_MIN,
 };
 
 use crate::error::{FieldError, Result};
@@ -49,6 +50,27 @@ impl Part {
             gamma: self.gamma,
             temp_c: self.temp_c,
         }
+    }
+}
+
+impl Crystal {
+    /// The crystal's datasheet as the oscillator analysis takes it (`validate` has
+    /// made sure exactly one of Cm and the trim sensitivity is given).
+    pub fn to_core(&self) -> crate::analysis::crystal::Datasheet {
+        use crate::analysis::crystal::{Datasheet, Motional};
+        let motional = match (self.cm_f, self.pull_ppm_per_pf) {
+            (Some(cm), _) => Motional::Cm(cm),
+            (None, Some(s)) => Motional::TrimPpmPerPf(s),
+            (None, None) => Motional::Cm(f64::NAN),
+        };
+        Datasheet { f_hz: self.f_hz, cl_f: self.cl_f, esr_ohm: self.esr_ohm, c0_f: self.c0_f, motional, drive_max_w: self.drive_max_w }
+    }
+}
+
+impl Oscillator {
+    /// The circuit around the part, without the crystal (its C0 comes with it).
+    pub fn to_core(&self) -> crate::pierce::Parts {
+        crate::pierce::Parts { c1: self.c1_f, c2: self.c2_f, rf: self.rf_ohm, rs: self.rs_ohm, c_stray: self.c_stray_f, c0: 0.0 }
     }
 }
 

@@ -397,6 +397,73 @@ pub enum StageRuns {
 
 const STAGE_RUNS: &[(&str, StageRuns)] = &[("matched", StageRuns::Matched), ("one-circuit", StageRuns::OneCircuit)];
 
+/// The crystal by its datasheet figures (SPEC §3.5). The ranges take in every
+/// fundamental-mode crystal from 32 kHz tuning forks (ESR tens of kΩ, Cm a few fF)
+/// to 50 MHz-class AT cuts, with room on either side.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Crystal {
+    pub f_hz: f64,
+    /// The load capacitance `f_hz` is specified at; absent: `f_hz` is the series resonance.
+    pub cl_f: Option<f64>,
+    pub esr_ohm: f64,
+    pub c0_f: f64,
+    /// The motional capacitance, or (exactly one of the two, `validate`) the trim
+    /// sensitivity at `cl_f`.
+    pub cm_f: Option<f64>,
+    pub pull_ppm_per_pf: Option<f64>,
+    /// The drive level the crystal is rated for (the warning).
+    pub drive_max_w: Option<f64>,
+}
+
+/// The capacitances of a crystal and of the circuit around it: up to 1 nF.
+const MAX_CRYSTAL_F: f64 = 1e-9;
+
+impl Crystal {
+    fn read(f: &mut Fields) -> Crystal {
+        Crystal {
+            f_hz: f.required_quantity_in(F::CRYSTAL_F.key, Range(Closed(1e3), Closed(250e6))),
+            cl_f: f.quantity_in(F::CRYSTAL_CL.key, Range(Open(0.0), Closed(MAX_CRYSTAL_F))),
+            esr_ohm: f.required_quantity_in(F::CRYSTAL_ESR.key, Range(Open(0.0), Closed(1e6))),
+            // Above the motional capacitance as well (`validate`).
+            c0_f: f.required_quantity_in(F::CRYSTAL_C0.key, Range(Open(0.0), Closed(MAX_CRYSTAL_F))),
+            cm_f: f.quantity_in(F::CRYSTAL_CM.key, Range(Open(0.0), Closed(1e-12))),
+            pull_ppm_per_pf: f.quantity_in(F::CRYSTAL_PULL.key, Range(Open(0.0), Closed(1e3))),
+            drive_max_w: f.quantity_in(F::CRYSTAL_DRIVE_MAX.key, Range(Open(0.0), Closed(0.1))),
+        }
+    }
+}
+
+/// The Pierce circuit around the part (SPEC §3.5).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Oscillator {
+    pub c1_f: f64,
+    pub c2_f: f64,
+    pub rf_ohm: f64,
+    /// Absent or 0: the output drives C2 directly.
+    pub rs_ohm: Option<f64>,
+    pub c_stray_f: f64,
+    /// The start-up margin −R/ESR wanted (5 when absent: common practice).
+    pub margin_min: f64,
+}
+
+/// The start-up margin asked for when the document names none (common practice:
+/// crystal makers and microcontroller vendors ask for a negative resistance of at
+/// least five times the ESR).
+pub const DEFAULT_MARGIN_MIN: f64 = 5.0;
+
+impl Oscillator {
+    fn read(f: &mut Fields) -> Oscillator {
+        Oscillator {
+            c1_f: f.required_quantity_in(F::OSCILLATOR_C1.key, Range(Open(0.0), Closed(1e-6))),
+            c2_f: f.required_quantity_in(F::OSCILLATOR_C2.key, Range(Open(0.0), Closed(1e-6))),
+            rf_ohm: f.required_quantity_in(F::OSCILLATOR_RF.key, Range(Open(0.0), Closed(MAX_OHM))),
+            rs_ohm: f.quantity_in(F::OSCILLATOR_RS.key, Range(Closed(0.0), Closed(1e8))),
+            c_stray_f: f.quantity_or_in(F::OSCILLATOR_C_STRAY.key, 0.0, Range(Closed(0.0), Closed(MAX_CRYSTAL_F))),
+            margin_min: f.quantity_or_in(F::OSCILLATOR_MARGIN_MIN.key, DEFAULT_MARGIN_MIN, Range(Closed(1.0), Closed(1e3))),
+        }
+    }
+}
+
 /// A whole design document (`"halfrail": 1`).
 #[derive(Debug, Clone, PartialEq)]
 pub struct Document {
@@ -411,6 +478,8 @@ pub struct Document {
     pub tolerance: Option<Tolerance>,
     pub bench: Option<Bench>,
     pub chain: Option<Chain>,
+    pub crystal: Option<Crystal>,
+    pub oscillator: Option<Oscillator>,
 }
 
 impl Document {
@@ -429,6 +498,8 @@ impl Document {
             tolerance: f.section(F::TOLERANCE.key, Tolerance::read),
             bench: f.section(F::BENCH.key, Bench::read),
             chain: f.section(F::CHAIN.key, Chain::read),
+            crystal: f.section(F::CRYSTAL.key, Crystal::read),
+            oscillator: f.section(F::OSCILLATOR.key, Oscillator::read),
         })
         .map_err(named)
     }

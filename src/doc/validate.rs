@@ -6,7 +6,7 @@
 
 use super::fields::{self as F, Field};
 use super::read::{shown, End::{Closed, Free, Open}, Range};
-use super::sections::{Analysis, Bench, Block, BlockKind, Chain, Document, Part, Target};
+use super::sections::{Analysis, Bench, Block, BlockKind, Chain, Crystal, Document, Part, Target};
 use crate::error::{FieldError, Result};
 use crate::math;
 
@@ -160,11 +160,46 @@ fn chain(c: &Chain, part_stages: u32) -> Result<()> {
     Ok(())
 }
 
+/// Exactly one of the motional capacitance and the trim sensitivity; the trim
+/// sensitivity only with the load capacitance it is given at; the motional
+/// capacitance, given or derived, below C0 (else the crystal's parallel resonance
+/// is no longer near its series one and the model is not a crystal's).
+fn crystal(c: &Crystal) -> Result<()> {
+    let (cm, pull) = (F::CRYSTAL_CM.key.name, F::CRYSTAL_PULL.key.name);
+    let (field, motional) = match (c.cm_f, c.pull_ppm_per_pf) {
+        (Some(_), Some(_)) => return Err(FieldError::new(F::CRYSTAL_PULL.path(), format!("give {cm} or {pull}, not both"))),
+        (None, None) => return Err(FieldError::new(F::CRYSTAL_CM.path(), format!("missing; give {cm} or {pull}"))),
+        (Some(value), None) => (&F::CRYSTAL_CM, value),
+        (None, Some(s)) => match c.cl_f {
+            Some(cl) => (&F::CRYSTAL_PULL, crate::analysis::crystal::cm_from_trim(s, c.c0_f, cl)),
+            None => {
+                return Err(FieldError::new(
+                    F::CRYSTAL_PULL.path(),
+                    format!("needs {}: the trim sensitivity is given at a load capacitance", F::CRYSTAL_CL.key.name),
+                ))
+            }
+        },
+    };
+    if motional >= c.c0_f {
+        return Err(FieldError::new(
+            field.path(),
+            format!(
+                "gives a motional capacitance of {} F, not below {} ({} F): check the units (Cm is some fF, C0 some pF)",
+                shown(motional),
+                F::CRYSTAL_C0.path(),
+                shown(c.c0_f)
+            ),
+        ));
+    }
+    Ok(())
+}
+
 /// Checks every section present; the first broken rule is the error.
 pub fn document(d: &Document) -> Result<()> {
     d.part.as_ref().map_or(Ok(()), part)?;
     d.analysis.as_ref().map_or(Ok(()), analysis)?;
     d.target.as_ref().map_or(Ok(()), target)?;
     d.bench.as_ref().map_or(Ok(()), bench)?;
-    d.chain.as_ref().map_or(Ok(()), |c| chain(c, d.part.as_ref().map_or(1, |p| p.stages)))
+    d.chain.as_ref().map_or(Ok(()), |c| chain(c, d.part.as_ref().map_or(1, |p| p.stages)))?;
+    d.crystal.as_ref().map_or(Ok(()), crystal)
 }

@@ -283,6 +283,24 @@ impl Document {
         gain_and_noise(&at_field(lin.at(analysis.f_design_hz, &stage))?, missing)
     }
 
+    /// The part as a Pierce crystal oscillator (SPEC §3.5): the `crystal` and
+    /// `oscillator` sections around the part.
+    pub fn crystal(&self) -> Result<crate::analysis::crystal::Oscillator> {
+        self.crystal_with(crate::analysis::crystal::analyse)
+    }
+
+    /// The same, small signal only (the steady state left out).
+    pub fn crystal_small_signal(&self) -> Result<crate::analysis::crystal::Oscillator> {
+        self.crystal_with(crate::analysis::crystal::analyse_small_signal)
+    }
+
+    fn crystal_with(&self, analyse: CrystalAnalysis) -> Result<crate::analysis::crystal::Oscillator> {
+        let part = self.part.as_ref().ok_or_else(|| missing(&F::PART, "the oscillator needs the part"))?;
+        let crystal = self.crystal.as_ref().ok_or_else(|| missing(&F::CRYSTAL, "the oscillator needs the crystal's figures"))?;
+        let oscillator = self.oscillator.as_ref().ok_or_else(|| missing(&F::OSCILLATOR, "the oscillator needs the circuit around the part"))?;
+        analyse(&part.to_core(), &crystal.to_core(), &oscillator.to_core(), oscillator.margin_min).map_err(located_in_oscillator)
+    }
+
     /// The part fitted to the `bench` readings, starting from the document's part.
     pub fn bench_fit(&self) -> Result<crate::analysis::Fit> {
         let bench = self.bench.as_ref().ok_or_else(|| missing(&F::BENCH, "a fit needs the bench readings"))?;
@@ -366,6 +384,22 @@ pub const DEFAULT_HEADROOM_WARN_DB: f64 = 6.0;
 /// What a chain's stage block or run lacks without the analysis section.
 fn needs_f_design() -> String {
     format!("the analysis section (its {})", F::ANALYSIS_F_DESIGN.key.name)
+}
+
+/// One of the oscillator analyses (`analysis::crystal::analyse` or its small-signal part).
+type CrystalAnalysis = fn(&crate::part::Part, &crate::analysis::crystal::Datasheet, &crate::pierce::Parts, f64) -> Result<crate::analysis::crystal::Oscillator>;
+
+/// An error of the oscillator's circuit placed in the document: the engine names
+/// the oscillator's elements by their keys (`rf_ohm`, `c0_f`), so the first one it
+/// names is the field; otherwise the oscillator as a whole.
+fn located_in_oscillator(e: FieldError) -> FieldError {
+    use crate::input::{Input, OscillatorPart, Section};
+    if e.field != "circuit" {
+        return placed(e);
+    }
+    let named = OscillatorPart::ALL.into_iter().filter_map(|p| e.reason.find(&format!("`{}`", p.key())).map(|i| (i, p))).min_by_key(|&(i, _)| i);
+    let input = named.map_or(Input::Section(Section::Oscillator), |(_, p)| Input::Oscillator(p));
+    placed(FieldError::of(input, e.reason))
 }
 
 /// Any error placed in the document: an input the core names by what it is gets

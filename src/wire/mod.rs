@@ -6,6 +6,7 @@
 
 mod results;
 mod chain;
+mod crystal;
 mod design;
 mod fields;
 mod health;
@@ -15,6 +16,7 @@ mod stability;
 mod swing;
 
 pub use chain::{stage_block_from, ChainReport, StageBlock};
+pub use crystal::CrystalReport;
 pub use design::DesignReport;
 pub use fields::FieldsOut;
 pub use health::{FindingOut, HealthOut};
@@ -40,6 +42,8 @@ pub fn summary(d: &Document) -> DocumentSummary {
         (&F::TOLERANCE, d.tolerance.is_some()),
         (&F::BENCH, d.bench.is_some()),
         (&F::CHAIN, d.chain.is_some()),
+        (&F::CRYSTAL, d.crystal.is_some()),
+        (&F::OSCILLATOR, d.oscillator.is_some()),
     ]
     .into_iter()
     .filter_map(|(section, present)| present.then_some(section.key.name))

@@ -1,0 +1,91 @@
+//! The oscillator's figures (`analysis::crystal`) as `halfrail crystal` prints them
+//! and the page's Crystal panel will read them: the keys of SPEC §4 first, then the
+//! crystal's equivalent and the bias. The large-signal figures are null, with the
+//! reason in `large_withheld`, when there is no steady state to solve.
+
+use serde::Serialize;
+
+use crate::analysis::crystal::Oscillator;
+
+#[derive(Serialize)]
+struct WarningOut<'a> {
+    code: &'static str,
+    text: &'a str,
+}
+
+/// The crystal's BVD equivalent.
+#[derive(Serialize)]
+struct EquivalentOut {
+    rm_ohm: f64,
+    lm_h: f64,
+    cm_f: f64,
+    c0_f: f64,
+    q: f64,
+}
+
+#[derive(Serialize)]
+struct CrystalOut<'a> {
+    f_s_hz: f64,
+    f_osc_hz: f64,
+    pull_ppm: f64,
+    cl_eff_f: f64,
+    r_neg_ohm: f64,
+    margin: f64,
+    gm_s: f64,
+    gm_crit_s: Option<f64>,
+    tau_s: Option<f64>,
+    spurious_hz: Option<f64>,
+    drive_w: Option<f64>,
+    im_a: Option<f64>,
+    vpp_gate_v: Option<f64>,
+    vpp_out_v: Option<f64>,
+    /// Why the large-signal figures are null.
+    large_withheld: Option<&'a str>,
+    f_steady_hz: Option<f64>,
+    gate_shift_v: Option<f64>,
+    warnings: Vec<WarningOut<'a>>,
+    f_p_hz: f64,
+    trim_ppm_per_pf: f64,
+    margin_min: f64,
+    equivalent: EquivalentOut,
+    vg_v: f64,
+    vo_v: f64,
+}
+
+/// The oscillator report.
+#[derive(Clone, Copy, Serialize)]
+#[serde(into = "CrystalOut<'a>")]
+pub struct CrystalReport<'a>(pub &'a Oscillator);
+
+impl<'a> From<CrystalReport<'a>> for CrystalOut<'a> {
+    fn from(CrystalReport(o): CrystalReport<'a>) -> Self {
+        let b = &o.bvd;
+        let large = o.large.as_ref().ok();
+        CrystalOut {
+            f_s_hz: b.f_s,
+            f_osc_hz: o.f_osc_hz,
+            pull_ppm: o.pull_ppm,
+            cl_eff_f: o.cl_eff_f,
+            r_neg_ohm: o.r_neg_ohm,
+            margin: o.margin,
+            gm_s: o.gm_s,
+            gm_crit_s: o.gm_crit_s,
+            tau_s: o.tau_s,
+            spurious_hz: o.spurious_hz,
+            drive_w: large.map(|d| d.drive_w),
+            im_a: large.map(|d| d.im_a),
+            vpp_gate_v: large.map(|d| d.vpp_gate_v),
+            vpp_out_v: large.map(|d| d.vpp_out_v),
+            large_withheld: o.large.as_ref().err().map(String::as_str),
+            f_steady_hz: large.map(|d| d.f_hz),
+            gate_shift_v: large.map(|d| d.gate_shift_v),
+            warnings: o.warnings.iter().map(|w| WarningOut { code: w.code, text: &w.text }).collect(),
+            f_p_hz: o.f_p_hz,
+            trim_ppm_per_pf: o.trim_ppm_per_pf,
+            margin_min: o.margin_min,
+            equivalent: EquivalentOut { rm_ohm: b.rm, lm_h: b.lm, cm_f: b.cm, c0_f: b.c0, q: b.q() },
+            vg_v: o.vg_v,
+            vo_v: o.vo_v,
+        }
+    }
+}
