@@ -134,7 +134,15 @@ impl Waveforms for TimeDomain {
     }
 
     fn run(&self, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave> {
-        self.from_linearised(tones, |x0, progress| self.run_from(x0, tones, record, progress), progress)
+        self.run_about(&self.op.x, tones, record, progress)
+    }
+}
+
+impl TimeDomain {
+    /// `run` with the linearised signal laid over `base` rather than the bias: a
+    /// state whose coupling capacitors already hold the DC shift the drive brings.
+    pub fn run_about(&self, base: &DVector<f64>, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave> {
+        self.from_linearised(base, tones, |x0, progress| self.run_from(x0, tones, record, progress), progress)
     }
 }
 
@@ -148,7 +156,7 @@ impl TimeDomain {
     /// until every inverter output starts between the rails. The unscaled
     /// start goes first: it charges the coupling capacitors as the signal
     /// wants, and a small level is never scaled.
-    fn from_linearised<T>(&self, tones: &[Tone], run: impl Fn(&DVector<f64>, &mut dyn FnMut(f64)) -> Result<T>, progress: &mut dyn FnMut(f64)) -> Result<T> {
+    fn from_linearised<T>(&self, base: &DVector<f64>, tones: &[Tone], run: impl Fn(&DVector<f64>, &mut dyn FnMut(f64)) -> Result<T>, progress: &mut dyn FnMut(f64)) -> Result<T> {
         let mut signal = DVector::zeros(self.op.x.len());
         let mut peak = vec![0.0; self.circuit.nodes.outputs.len()];
         for tone in tones {
@@ -163,8 +171,8 @@ impl TimeDomain {
             let headroom = v.min(self.vdd - v).max(0.0);
             if p > headroom { s.min(headroom / p) } else { s }
         });
-        match run(&(&self.op.x + &signal), progress) {
-            Err(e) if e.field == "circuit" && scale < 1.0 => run(&(&self.op.x + signal * scale), progress),
+        match run(&(base + &signal), progress) {
+            Err(e) if e.field == "circuit" && scale < 1.0 => run(&(base + signal * scale), progress),
             done => done,
         }
     }
@@ -224,11 +232,34 @@ impl Waveforms for Steady<'_> {
 
     /// One tone only: the record is the settled period repeated (it is exactly
     /// periodic); several tones are refused (their common period is the record's
-    /// whole length, for which the transient is the cheaper way).
+    /// whole length, for which the transient is the cheaper way: `Settling`).
     fn run(&self, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave> {
         let [tone] = tones else {
             return Err(FieldError::new("circuit", "the periodic steady state takes one tone"));
         };
+        let (period, h) = self.period(tone, record, progress)?;
+        let layout = &self.time.small.layout;
+        let mut wave = Wave::with_capacity(record.samples);
+        for j in 1..=record.samples {
+            let x = &period[(j - 1) % period.len()];
+            wave.push(j as f64 * h, |node| layout.voltage(x, node), &self.time.circuit.nodes);
+        }
+        Ok(wave)
+    }
+}
+
+impl Steady<'_> {
+    /// The mean over the settled period of `tone` of every unknown: the bias as the
+    /// drive has shifted it (the coupling capacitors' charge under the signal).
+    pub fn shifted_bias(&self, tone: &Tone, progress: &mut dyn FnMut(f64)) -> Result<DVector<f64>> {
+        let (period, _) = self.period(tone, &Record::single(tone.f_hz), progress)?;
+        Ok(period.iter().fold(DVector::zeros(self.time.op.x.len()), |sum, x| sum + x) / period.len() as f64)
+    }
+
+    /// The settled period of `tone` at `record`'s step (its unknowns at t = h … T),
+    /// and the step.
+    fn period(&self, tone: &Tone, record: &Record, progress: &mut dyn FnMut(f64)) -> Result<(Vec<DVector<f64>>, f64)> {
+        let tones = std::slice::from_ref(tone);
         let td = self.time;
         let per_cycle = (record.samples as f64 * record.resolution_hz / tone.f_hz).round() as usize;
         if per_cycle < 2 || record.samples % per_cycle != 0 {
@@ -259,12 +290,7 @@ impl Waveforms for Steady<'_> {
             start: period[per_cycle - 1].clone(),
         });
         progress(1.0);
-        let mut wave = Wave::with_capacity(record.samples);
-        for j in 1..=record.samples {
-            let x = &period[(j - 1) % per_cycle];
-            wave.push(j as f64 * h, |node| transient.layout.voltage(x, node), &td.circuit.nodes);
-        }
-        Ok(wave)
+        Ok((period, h))
     }
 }
 
@@ -275,6 +301,7 @@ impl Steady<'_> {
     /// the shooting takes the slow rest.
     fn warmed(&self, transient: &Transient, tones: &[Tone], h: f64, warm: usize, progress: &mut dyn FnMut(f64)) -> Result<(DVector<f64>, DVector<f64>)> {
         self.time.from_linearised(
+            &self.time.op.x,
             tones,
             |x0, _| {
                 let (mut before, mut start) = (x0.clone(), x0.clone());
