@@ -45,9 +45,9 @@ fn the_demo_says_the_part_sets_its_gain_with_the_figures_that_show_it() {
     let h = doc.health().unwrap();
     let f = h.findings.iter().find(|f| f.code == "part-sets-gain").expect("the demo's loop gain at f_design is below 3");
     assert_eq!((f.severity, f.topic), (Severity::Caution, Topic::Gain));
-    // The resistors' gain is 20·log10(2k2/220) = 20 dB; the stage's own at f_design
-    // is the sweep's.
-    assert!(f.text.contains("against the resistors' 20.0 dB"), "{}", f.text);
+    // The resistors' gain is 20·log10(2k2/100) = 20·log10(22) = 26.85 dB; the stage's
+    // own at f_design is the sweep's.
+    assert!(f.text.contains("against the resistors' 26.8 dB"), "{}", f.text);
     assert!(f.text.contains(&format!("{:.1} dB at f_design", response.design.gain_db())), "{}", f.text);
     let t = halfrail::math::norm(response.design.loop_gain.unwrap());
     assert!(t < 3.0 && f.text.contains(&format!("{t:.2}")), "{t} {}", f.text);

@@ -37,6 +37,7 @@ const SCRIPTS = [
   'js/embed.js',
   'js/documents.js',
   'js/sheet.js',
+  'js/guide.js',
   'js/shell.js',
 ];
 const STYLES = ['css/base.css', 'css/panels.css'];

@@ -353,3 +353,32 @@ test('a design without a chain starts one with the first block added', async () 
   assert.deepEqual(seen.requests, []);
   await page.close();
 });
+
+test('the stage block carries the design’s title, and follows it; the move and remove controls are at least 24 px', async () => {
+  const { page, seen } = await openChain();
+  const stageRow = blockRows(page).nth(1);
+  const title = () => stageRow.locator('.stage-title').textContent();
+  assert.equal(await title(), 'Demo: 10.7 MHz IF gain block for a small lab receiver');
+  assert.match(await stageRow.locator('td.kind').textContent(), /^This stage/);
+  // The title typed on the Brief panel: the stage block says it on coming back.
+  await page.locator('#rail a[href="#brief"]').click();
+  const field = page.locator('#panel-brief').getByLabel('Title', { exact: true });
+  await field.fill('Second IF, 455 kHz');
+  await page.locator('#rail a[href="#chain"]').click();
+  await page.waitForFunction(() => document.querySelector('#panel-chain .stage-title').textContent === 'Second IF, 455 kHz');
+  // No title: the block says the design is untitled.
+  await page.locator('#rail a[href="#brief"]').click();
+  await field.fill('');
+  await page.locator('#rail a[href="#chain"]').click();
+  await page.waitForFunction(() => document.querySelector('#panel-chain .stage-title').textContent === 'Untitled design');
+  // Each row's ↑, ↓ and Remove: at least 24 × 24 CSS px, as the page lays them out.
+  const sizes = await panel(page).locator('table.chain-blocks button.small').evaluateAll((bs) => bs.map((b) => {
+    const r = b.getBoundingClientRect();
+    return { name: b.getAttribute('aria-label'), width: r.width, height: r.height };
+  }));
+  assert.equal(sizes.length, 4 * 3, 'three controls on each of four blocks');
+  for (const s of sizes) assert.ok(s.width >= 24 && s.height >= 24, `${s.name}: ${s.width} × ${s.height} px`);
+  assert.deepEqual(seen.errors, []);
+  assert.deepEqual(seen.requests, []);
+  await page.close();
+});

@@ -65,11 +65,11 @@ test('the buffered part oscillates; the r_fb fix applies, and undo brings the os
   const oscillating = await verdict(page);
   const f = oscillating.match(/^Oscillates at about (\d+(?:\.\d+)?) MHz$/);
   assert.ok(f, oscillating);
-  assert.ok(Number(f[1]) >= 80 && Number(f[1]) <= 85, `oscillates at ${f[1]} MHz`);
+  assert.ok(Number(f[1]) >= 70 && Number(f[1]) <= 75, `oscillates at ${f[1]} MHz`);
   assert.equal(await page.locator('#panel-loop .verdict').getAttribute('data-kind'), 'oscillates');
   const row = page.locator('#panel-loop table.helper tr[data-key="r_fb_ohm"]');
-  assert.match(await row.textContent(), /180k/);
-  assert.match(await row.textContent(), /-77\.\d° → 6\d\.\d°/, 'the phase margin before and after');
+  assert.match(await row.textContent(), /91k/);
+  assert.match(await row.textContent(), /-47\.\d° → 6\d\.\d°/, 'the phase margin before and after');
   // The knobs with nothing in range say so and offer nothing to apply.
   assert.match(await page.locator('#panel-loop table.helper tr[data-key="c_fb_f"]').textContent(), /none in range/);
   assert.equal(await page.locator('#panel-loop table.helper tr[data-key="c_fb_f"] button').count(), 0);
@@ -80,7 +80,7 @@ test('the buffered part oscillates; the r_fb fix applies, and undo brings the os
   await row.getByRole('button', { name: /^Apply/ }).click();
   await recomputed(page, n);
   const applied = await rfb(page);
-  assert.equal(await page.evaluate((t) => wasm_bindgen.parseValue(t, 'Ω', 'x').value, applied), 180000, `r_fb is now ${applied}`);
+  assert.equal(await page.evaluate((t) => wasm_bindgen.parseValue(t, 'Ω', 'x').value, applied), 91000, `r_fb is now ${applied}`);
   assert.match(await verdict(page), /^Stable: 6\d° phase margin$/);
   assert.match(await page.locator('#panel-loop .card').filter({ hasText: 'Compensation' }).textContent(), /already meets the wanted 60°/);
 
@@ -88,7 +88,7 @@ test('the buffered part oscillates; the r_fb fix applies, and undo brings the os
   await undoButton(page).click();
   await recomputed(page, n);
   assert.equal(await rfb(page), before);
-  assert.match(await verdict(page), /^Oscillates at about 8\d MHz$/);
+  assert.match(await verdict(page), /^Oscillates at about 7\d MHz$/);
   assert.deepEqual(seen.errors, []);
   await page.close();
 });

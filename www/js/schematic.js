@@ -5,8 +5,10 @@
 // component's label sits so the panel can put an editing control there.
 
 HR.schematic = (() => {
-  // Grid positions (in units of `U` pixels) of the nodes along the signal path.
-  const U = 20;
+  // Grid positions (in units of `U` pixels) of the nodes along the signal path. `U` is
+  // GRID CSS px at full size, less when the drawing is scaled to a narrow window.
+  const GRID = 20;
+  let U = GRID;
   const MAIN_Y = 8;
   const FEEDBACK_Y = 3.6;
   const X = { src: 2, in: 7, cin: 12, rin: 17, g1: 21, amp: 24.5, o: 28, rout: 33, cout: 38, out: 41, load: 50 };
@@ -44,12 +46,19 @@ HR.schematic = (() => {
     }
   };
 
-  // draw(canvas, label(key) → {text, short} or null, stages, ratio) → [{key, x, y, text}] label
+  // The drawing's size at full scale (CSS px).
+  const WIDTH = 52 * GRID;
+  const HEIGHT = 14 * GRID;
+
+  // draw(canvas, label(key) → {text, short} or null, stages, ratio, scale) → [{key, x, y, text}] label
   // anchors (CSS px). A fitted series part marked `short` (0 Ω) is drawn as a wire.
   // `ratio`: canvas pixels a CSS pixel (the screen's by default; more for paper).
-  const draw = (canvas, describe, stages, ratio = window.devicePixelRatio || 1) => {
+  // `scale`: the drawing's size against WIDTH × HEIGHT (1 by default), so that it fits
+  // a narrow window; the labels put at the anchors are to be scaled alike.
+  const draw = (canvas, describe, stages, ratio = window.devicePixelRatio || 1, scale = 1) => {
     const label = (key) => { const d = describe(key); return d && !d.short ? d.text : null; };
     const text = (key) => { const d = describe(key); return d ? d.text : null; };
+    U = GRID * scale;
     const width = 52 * U;
     const height = 14 * U;
     canvas.width = width * ratio;
@@ -62,7 +71,7 @@ HR.schematic = (() => {
     const ink = HR.plot.css('--ink');
     ctx.strokeStyle = ink;
     ctx.fillStyle = ink;
-    ctx.lineWidth = 1.6;
+    ctx.lineWidth = Math.max(1, 1.6 * scale);
     const anchors = [];
     const anchor = (key, x, y) => anchors.push({ key, x: x * U, y: y * U, text: text(key) });
     const series = (key, kind, from, to) => {
@@ -83,7 +92,7 @@ HR.schematic = (() => {
     ctx.beginPath();
     ctx.arc(X.src * U, (MAIN_Y + 1.5) * U, 0.8 * U, 0, 2 * Math.PI);
     ctx.stroke();
-    ctx.font = '13px sans-serif';
+    ctx.font = `${13 * scale}px sans-serif`;
     ctx.fillText('~', (X.src - 0.25) * U, (MAIN_Y + 1.65) * U);
     line(ctx, X.src, MAIN_Y + 0.7, X.src, MAIN_Y);
     ground(ctx, X.src, MAIN_Y + 2.3);
@@ -133,5 +142,5 @@ HR.schematic = (() => {
     return anchors;
   };
 
-  return { draw };
+  return { draw, WIDTH, HEIGHT };
 })();

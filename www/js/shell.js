@@ -27,6 +27,7 @@
       main.append(node);
       mounted.set(id, node);
       panelById(id).mount(node);
+      HR.ui.scrollCues(node);
     }
     for (const a of document.querySelectorAll('#rail a')) {
       if (a.dataset.panel === id) a.setAttribute('aria-current', 'page');
@@ -73,6 +74,7 @@
     HR.setStatus(`Engine ready · v${HR.version}`);
     await HR.documents.start();
     HR.health.start();
+    HR.guide.start();
     const saved = HR.store.get('ui', {});
     const first = requested() || (panelById(saved.panel) ? saved.panel : DEFAULT_PANEL);
     show(first);

@@ -97,5 +97,26 @@ HR.ui = (() => {
   const shown = (panel) => !panel.hidden && !panel.closest('[hidden]');
   const onShown = (panel, fn) => panel.addEventListener('hr-shown', fn);
 
-  return { el, uid, card, field, choice, fillRows, table, download, coalesce, shown, onShown };
+  // Marks each `.scroll` box within `root` that is wider inside than it shows with
+  // `data-more` ("left", "right" or both: where more is hidden), which panels.css draws
+  // as a shadow at that edge — so a wide table says it scrolls. Kept in step as the box
+  // or its content is resized (the window, rows filled in) and as it scrolls.
+  const cued = new WeakSet();
+  const scrollCues = (root) => {
+    for (const box of root.querySelectorAll('.scroll')) {
+      if (cued.has(box)) continue;
+      cued.add(box);
+      const mark = () => {
+        const hidden = box.scrollWidth - box.clientWidth;
+        const more = [box.scrollLeft > 1 ? 'left' : '', hidden - box.scrollLeft > 1 ? 'right' : ''].filter(Boolean).join(' ');
+        if (more) box.dataset.more = more; else delete box.dataset.more;
+      };
+      box.addEventListener('scroll', mark, { passive: true });
+      const watch = new ResizeObserver(mark);
+      watch.observe(box);
+      for (const child of box.children) watch.observe(child);
+    }
+  };
+
+  return { el, uid, card, field, choice, fillRows, table, download, coalesce, shown, onShown, scrollCues };
 })();

@@ -168,7 +168,7 @@ fn the_loop_report_of_the_demo_and_of_a_buffered_part() {
     assert_eq!(get(&summary, "stable").as_bool(), Some(false));
     assert_eq!(text(&get(&summary, "verdict"), "kind"), "oscillates");
     let fix = Array::from(&get(&r, "suggestions")).iter().find(|s| text(s, "key") == "r_fb_ohm").unwrap();
-    assert_eq!(number(&fix, "value"), 180e3);
+    assert_eq!(number(&fix, "value"), 91e3);
 }
 
 #[wasm_bindgen_test]

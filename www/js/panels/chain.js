@@ -200,11 +200,13 @@
             focusAfter = { row: Math.min(i, list.length - 2), key: 'remove' };
             change(`remove ${name1()}`, (c) => c.blocks.splice(i, 1));
           } }, 'Remove');
+          // The stage block is this design: it carries the design's title (kept in step by syncRows).
+          const title = b.kind === 'stage' ? el('span', { class: 'stage-title' }) : null;
           const tr = el('tr', { 'data-row': i, 'data-kind': b.kind },
             el('th', { scope: 'row' }, String(i + 1)), el('td', {}, name.wrap),
-            el('td', { class: 'kind' }, KINDS[b.kind] || String(b.kind), kindError),
+            el('td', { class: 'kind' }, KINDS[b.kind] || String(b.kind), title, kindError),
             cells.map((c) => el('td', {}, c)), el('td', { class: 'order' }, readOnly() ? null : [up, down]), el('td', {}, readOnly() ? null : remove));
-          return { tr, fields, stage, kindError, buttons: { up, down, remove } };
+          return { tr, fields, stage, title, kindError, buttons: { up, down, remove } };
         });
         blockTable.tbody.replaceChildren(...rows.map((r) => r.tr));
         if (focusAfter) {
@@ -226,9 +228,15 @@
         noChain.hidden = Boolean(HR.design.section('chain')) || readOnly();
         adders.hidden = readOnly();
         blockTable.node.hidden = !list.length;
+        const title = String(HR.design.section('title') || '').trim();
         rows.forEach((r, i) => {
           const placeholder = last && last.stages.find((s, j) => spanOf(s, j)[0] === i && spanOf(s, j)[1] === i);
           r.fields.name.input.placeholder = placeholder ? placeholder.name : '';
+          if (r.title) {
+            r.title.textContent = title || 'Untitled design';
+            r.title.title = title;
+            r.title.classList.toggle('untitled', !title);
+          }
         });
         showStage();
       };

@@ -188,8 +188,20 @@
         input.select();
       };
 
+      // The drawing is scaled to the card's width, down to MIN_SCALE (its labels would be
+      // too small to read below that: it scrolls there instead, as .scroll shows).
+      const MIN_SCALE = 0.6;
+      const frame = el('div', { class: 'scroll' }, drawing);
+      const scaleNow = () => {
+        const room = frame.clientWidth;
+        return room > 0 ? Math.min(1, Math.max(MIN_SCALE, room / HR.schematic.WIDTH)) : 1;
+      };
+      let drawnScale = 1;
       const refresh = (error) => {
-        const anchors = HR.schematic.draw(canvas, label, Number(HR.design.get('part', 'stages')) || 1);
+        drawnScale = scaleNow();
+        drawing.style.fontSize = drawnScale === 1 ? '' : `${drawnScale}em`;
+        drawing.dataset.scale = String(drawnScale);
+        const anchors = HR.schematic.draw(canvas, label, Number(HR.design.get('part', 'stages')) || 1, undefined, drawnScale);
         overlay.replaceChildren(...anchors.map((a) => el('button', {
           type: 'button', class: a.text ? 'value' : 'value ghost', 'data-key': a.key,
           'aria-invalid': error && error.field === `stage.${a.key}` ? 'true' : 'false',
@@ -237,7 +249,7 @@
       container.append(el('h1', {}, 'Stage'),
         el('p', { class: 'lede' }, 'The components around the part. Click a value (or Tab to it and press Enter) to change it; leave it empty to take the part out. Values take engineering notation or RKM codes (4k7, 100n).'),
         el('div', { class: 'cards' },
-          (() => { const c = card('Schematic', el('div', { class: 'scroll' }, drawing), problem); c.classList.add('wide'); return c; })(),
+          (() => { const c = card('Schematic', frame, problem); c.classList.add('wide'); return c; })(),
           (() => { const c = card('Key figures', stale, HR.health.voids(readout, ['gain', 'gt', 'band', 'zin', 'rl', 'nf']), readout); c.classList.add('wide'); return c; })(),
           target.node));
 
@@ -248,6 +260,11 @@
       refresh(null);
       HR.design.onChange(() => { if (!editing && HR.ui.shown(container)) refresh(shownError); });
       HR.ui.onShown(container, () => refresh(shownError));
+      // A window made narrower or wider draws it again at the scale that fits (not while
+      // a value is edited in place: that would take its box away).
+      new ResizeObserver(() => {
+        if (!editing && HR.ui.shown(container) && scaleNow() !== drawnScale) refresh(shownError);
+      }).observe(frame);
       const box = HR.background.runBox('key figures');
       stale.before(box.node);
       box.attach(HR.background.follow(container, {
