@@ -1,6 +1,5 @@
 // Reading a PDF the page printed (pdf.js, legacy build for Node): its pages' text
-// (NFKC, whitespace made single spaces), how many images each paints, and the
-// addresses its links go to.
+// (NFKC, whitespace made single spaces) and how many images each paints.
 import { getDocument, OPS } from 'pdfjs-dist/legacy/build/pdf.mjs';
 
 export async function readPdf(bytes) {
@@ -10,11 +9,10 @@ export async function readPdf(bytes) {
     const page = await doc.getPage(i);
     const text = (await page.getTextContent()).items.map((t) => t.str + (t.hasEOL ? ' ' : '')).join('').normalize('NFKC').replace(/\s+/g, ' ');
     const ops = await page.getOperatorList();
-    const links = (await page.getAnnotations()).map((a) => a.url || a.unsafeUrl).filter(Boolean);
-    pages.push({ text, images: ops.fnArray.filter((f) => f === OPS.paintImageXObject).length, links });
+    pages.push({ text, images: ops.fnArray.filter((f) => f === OPS.paintImageXObject).length });
   }
   await doc.destroy();
-  return { pages, text: pages.map((p) => p.text).join(' '), images: pages.reduce((n, p) => n + p.images, 0), links: pages.flatMap((p) => p.links) };
+  return { pages, text: pages.map((p) => p.text).join(' '), images: pages.reduce((n, p) => n + p.images, 0) };
 }
 
 // NFKC: the PDF's fonts give µ (micro) back as μ (mu), and so on.
