@@ -287,3 +287,87 @@ fn the_structured_sheet_is_the_markdown_sheet() {
     assert!(cells > 20, "{cells} cells");
     assert!(blocks.iter().any(|b| b["kind"] == "pairs") && blocks.iter().any(|b| b["kind"] == "bullets"));
 }
+
+/// The bill of materials of a sheet in Markdown: each row's cells by its ref.
+fn bom_rows(md: &str) -> Vec<Vec<String>> {
+    let section = &md[md.find("## Bill of materials").expect("a bill of materials")..];
+    let section = &section[..section[3..].find("\n## ").map_or(section.len(), |i| i + 3)];
+    section
+        .lines()
+        .filter(|l| l.starts_with("| ") && !l.starts_with("| ---") && !l.starts_with("| ref "))
+        .map(|l| l[2..l.len() - 2].split(" | ").map(String::from).collect())
+        .collect()
+}
+
+fn bom_of(doc: &str) -> (Vec<Vec<String>>, String) {
+    let md = load(doc).unwrap().sheet().render(Style::Markdown);
+    (bom_rows(&md), md)
+}
+
+/// The demo's bill of materials: every fitted component of the stage in RKM or
+/// engineering notation, its tolerance class from the tolerance section (1 %
+/// resistors, 10 % capacitors), the capacitors rated 10 V (the next standard rating
+/// at least twice 3.3 V + 5 %), the inverter, and the decoupling marked common
+/// practice; the plain-text sheet stays within 80 columns with it.
+#[test]
+fn the_bill_of_materials_lists_every_fitted_part_with_class_and_rating() {
+    let (rows, md) = bom_of(DEMO);
+    let expected: Vec<Vec<&str>> = vec![
+        vec!["R shunt", "56R", "resistor", "±1 % (F)", "≥ 3.47 V"],
+        vec!["C in", "100 nF", "capacitor", "±10 % (K)", "10 V"],
+        vec!["R in", "220R", "resistor", "±1 % (F)", "≥ 3.47 V"],
+        vec!["R fb", "2k2", "resistor", "±1 % (F)", "≥ 3.47 V"],
+        vec!["C out", "100 nF", "capacitor", "±10 % (K)", "10 V"],
+        vec!["U1", "1 stage", "CMOS inverter, unbuffered", "—", "VDD 3.30 V ±5 %"],
+        vec!["C dec", "100 nF", "ceramic X7R (common practice)", "±10 % (K)", "10 V"],
+        vec!["C bulk", "10 µF", "bulk (common practice)", "±20 % (M)", "10 V"],
+    ];
+    assert_eq!(rows, expected, "{md}");
+    assert!(md.contains("Supply decoupling (common practice, not computed)"), "{md}");
+    assert!(md.contains("3.47 V (3.30 V + 5 %)"), "the supply's top it rests on");
+    let text = demo_sheet().render(Style::Text);
+    assert!(text.contains("\nBill of materials\n"));
+    assert!(text.lines().all(|l| l.chars().count() <= 80));
+}
+
+/// Without a tolerance section the class is the target series' (E24: ±5 %, IEC
+/// 60063), narrowed where a value is made only in a finer series (4k99: E96, ±1 %);
+/// a 5 V supply at ±10 % makes the capacitors 16 V parts (2 × 5.5 V = 11 V); a
+/// buffered part is named so; a not-fitted or 0 Ω component is not a part to buy.
+#[test]
+fn classes_follow_the_target_series_and_ratings_the_supply() {
+    let mut doc: serde_json::Value = serde_json::from_str(DEMO).unwrap();
+    doc.as_object_mut().unwrap().remove("tolerance");
+    doc["stage"]["r_fb_ohm"] = "4k99".into();
+    doc["stage"]["c_fb_f"] = "1p".into();
+    doc["stage"].as_object_mut().unwrap().remove("c_out_f");
+    let (rows, md) = bom_of(&doc.to_string());
+    let row = |r: &str| rows.iter().find(|row| row[0] == r).unwrap_or_else(|| panic!("no {r} in {md}")).clone();
+    assert_eq!(row("R in")[3], "±5 % (J)");
+    assert_eq!(row("R fb")[1..4], ["4k99", "resistor", "±1 % (F)"]);
+    assert_eq!(row("C in")[3], "±5 % (J)");
+    assert_eq!(row("C fb")[1..5], ["1.00 pF", "capacitor", "±5 % (J)", "10 V"], "no supply tolerance: 2 × 3.3 V");
+    assert!(!rows.iter().any(|r| r[0] == "C out" || r[0] == "R out"), "a short is not bought: {md}");
+    assert!(md.contains("the usual class of E24 (IEC 60063)"), "{md}");
+
+    doc["tolerance"] = serde_json::json!({ "vdd_pct": 10, "resistor_pct": 0 });
+    doc["part"]["vdd_v"] = "5 V".into();
+    doc["part"]["stages"] = 3.into();
+    doc["target"]["series"] = "E12".into();
+    let (rows, md) = bom_of(&doc.to_string());
+    let row = |r: &str| rows.iter().find(|row| row[0] == r).unwrap_or_else(|| panic!("no {r} in {md}")).clone();
+    assert_eq!(row("C in")[3..5], ["±10 % (K)", "16 V"], "the section's default 10 %; 2 × 5.5 V = 11 V → 16 V");
+    assert_eq!(row("R in")[3..5], ["±10 % (K)", "≥ 5.50 V"], "0 % in the section: the target's E12 class");
+    assert_eq!(row("U1")[1..5], ["3 stages", "CMOS inverter, buffered", "—", "VDD 5.00 V ±10 %"]);
+    assert_eq!(row("C dec")[4], "16 V");
+}
+
+/// Without a part there is no supply to rate against: the components are still
+/// listed, and the sheet says why the ratings are missing.
+#[test]
+fn without_a_part_the_bill_lists_the_components_and_says_why_no_ratings() {
+    let (rows, md) = bom_of(&demo_without(&["part", "bench", "chain"]));
+    assert!(rows.iter().any(|r| r[0] == "R fb" && r[4] == "—"), "{md}");
+    assert!(!rows.iter().any(|r| r[0] == "U1" || r[0] == "C dec"), "{md}");
+    assert!(md.contains("the document has no part section to give the supply"), "{md}");
+}

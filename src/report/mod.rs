@@ -2,6 +2,7 @@
 //! as CSV, the two-port as a Touchstone file, and the design sheet (plain text or
 //! Markdown). (JSON output belongs to `wire`.)
 
+mod bom;
 mod chain_csv;
 pub mod layout;
 mod scientific;
@@ -11,6 +12,7 @@ mod touchstone;
 mod wave_csv;
 
 pub use chain_csv::chain_csv;
+pub use bom::Tolerances;
 pub use sheet::{ChainSheet, Sheet, Style, CAUTIONS};
 pub use sweep_csv::sweep_csv;
 pub use touchstone::touchstone;

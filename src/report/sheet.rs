@@ -14,7 +14,8 @@ use crate::error::Result;
 use crate::part::{Model, Part};
 use crate::stage::{Component, Components, Role};
 use crate::units::{format_eng, format_fixed, format_rkm, voltage_ratio_db, RkmKind, Unit, DEFAULT_DIGITS};
-use crate::values::series_of;
+use crate::values::{series_of, Series};
+use super::bom::{self, Tolerances};
 
 /// The cautions of SPEC §5, worded as the page's footer words them.
 pub const CAUTIONS: [&str; 5] = [
@@ -57,6 +58,11 @@ pub struct Sheet {
     pub large: Result<Large>,
     /// `None` when the document has no chain.
     pub chain: Option<ChainSheet>,
+    /// The `tolerance` section's classes, when the document has one (the bill of
+    /// materials buys to them).
+    pub tolerances: Option<Tolerances>,
+    /// The target's E-series, when the document has a target.
+    pub series: Option<Series>,
 }
 
 impl Sheet {
@@ -77,6 +83,9 @@ impl Sheet {
         }
         let stages = self.part.as_ref().map_or(1, |p| p.stages);
         section(&mut blocks, "Schematic", self.stage.ok_or("the document has no stage section"), |b, s| schematic(b, s, stages));
+        section(&mut blocks, "Bill of materials", self.stage.ok_or("the document has no stage section"), |b, s| {
+            bom::bill(b, &s, self.part.as_ref(), self.tolerances, self.series)
+        });
         section(&mut blocks, "Part", self.part.as_ref().ok_or("the document has no part section"), |b, p| part(b, p, self.pkg_max_w));
         section(&mut blocks, "Bias point", self.bias.as_ref(), |b, bias| bias_point(b, bias, stages));
         section(&mut blocks, "Small signal at f_design", self.response.as_ref(), small_signal);
@@ -165,7 +174,7 @@ fn db_of(magnitude: f64) -> Option<f64> {
 // ---- Schematic -------------------------------------------------------------------
 
 /// The designator a technician reads off the schematic.
-fn designator(c: Component) -> &'static str {
+pub(super) fn designator(c: Component) -> &'static str {
     match c {
         Component::SourceOhm => "Rs",
         Component::ShuntOhm => "R shunt",
@@ -202,7 +211,7 @@ fn absent_is_short(c: Component) -> bool {
 
 /// A component's value as marked on the part: RKM for a resistor, engineering
 /// notation for a capacitor; and what an absent or zero value means.
-fn marking(c: Component, value: Option<f64>) -> String {
+pub(super) fn marking(c: Component, value: Option<f64>) -> String {
     match value {
         None if c == Component::SourceOhm => "none (ideal source)".into(),
         None if absent_is_short(c) => "short (not fitted)".into(),

@@ -3,7 +3,7 @@
 //! it can and say why of the others.
 
 use crate::doc::{Document, Part};
-use crate::report::{ChainSheet, Sheet};
+use crate::report::{ChainSheet, Sheet, Tolerances};
 
 impl Document {
     /// Everything the design sheet shows. Never fails as a whole: an analysis that
@@ -29,6 +29,8 @@ impl Document {
             stability,
             chain: self.chain.as_ref().map(|c| ChainSheet { input_dbm: c.input_dbm, bandwidth_hz: c.bandwidth_hz, budget: budget() }),
             large,
+            tolerances: self.tolerance.as_ref().map(|t| Tolerances { resistor_pct: t.resistor_pct, capacitor_pct: t.capacitor_pct, vdd_pct: t.vdd_pct }),
+            series: self.target.as_ref().map(|t| t.series),
         }
     }
 }

@@ -4,10 +4,16 @@
 // design as it is then. The PDF is read back with pdf.js: one or two pages, A4 and
 // Letter; every figure of the core's sheet (sheetText, the text of `halfrail report`)
 // is in it, the gain, the phase margin, the component values and the page's cautions
-// word for word; the schematic and the two plots are images; no network request.
+// word for word; the schematic and the two plots are images; no network request. The
+// link is one line cut to fit and whole in note 1, and from file:// it carries no
+// folder; the bill of materials prints; the plots' labels meet neither each other nor
+// a curve.
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
-import { launch, openPanel, clearStorage } from './browser.mjs';
+import fs from 'fs';
+import http from 'http';
+import path from 'path';
+import { launch, openPanel, clearStorage, watch, ready, PAGE_PATH, PAGE_URL } from './browser.mjs';
 import { readPdf, squash } from './pdf.mjs';
 
 let browser;
@@ -58,13 +64,14 @@ test('Print sheet prepares the sheet in the background and prints it: the PDF ha
   const missing = cells.filter((c) => !pdf.text.includes(c));
   assert.deepEqual(missing, [], 'every cell of the core sheet is printed');
   for (const t of ['Design sheet', 'Voltage gain Av', figures.gain, 'Phase margin', 'Noise figure NF', figures.nf, 'Verdict',
-    '100R', '2k2', '56R', '100 nF', 'Before you build', `Halfrail ${figures.version}`, 'Link to this design: file://']) {
+    '100R', '2k2', '56R', '100 nF', 'Before you build', `Halfrail ${figures.version}`, 'Link to this design (note 1): #stage&d=']) {
     assert.ok(pdf.text.includes(squash(t)), `the PDF has “${t}”`);
   }
   assert.ok(cautions.length >= 5);
   // Word for word; the footer starts its first sentence after “Before you build:”.
   for (const c of cautions) assert.ok(pdf.text.toLowerCase().includes(squash(c).toLowerCase()), `the caution “${c}” word for word`);
   assert.match(pdf.text, /printed \d{4}-\d\d-\d\d/);
+  assert.ok(!pdf.text.includes('file:') && !pdf.text.includes(path.dirname(PAGE_PATH)), 'no local path on paper');
   assert.ok(pdf.images >= 3, `${pdf.images} images: the schematic and two plots`);
   assert.equal(await page.locator('#sheet img').count(), 3);
   for (const ok of await page.locator('#sheet img').evaluateAll((imgs) => imgs.map((i) => i.complete && i.naturalWidth > 600 && i.alt.length > 0))) assert.ok(ok);
@@ -92,11 +99,12 @@ test('The browser’s own print gives the same sheet, for the design as it is wh
   assert.ok(edited.text.includes(squash(gain)), `the new gain ${gain}`);
   const { cells } = await coreCells(page);
   assert.deepEqual(cells.filter((c) => !edited.text.includes(c)), []);
-  // The sheet's link opens this design.
-  const href = await page.locator('#sheet .link a').getAttribute('href');
+  // The sheet's link opens this design: from file://, its end as printed in note 1,
+  // put after the page's file name.
+  const end = await page.locator('#sheet .note .full').textContent();
   const draft = await page.evaluate(() => HR.design.text());
   const other = await browser.context.newPage();
-  await other.goto(href);
+  await other.goto(PAGE_URL + end);
   await other.waitForFunction(() => document.documentElement.dataset.ready === 'true');
   assert.equal(await other.evaluate(() => HR.design.text()), draft);
   await other.close();
@@ -143,6 +151,148 @@ test('The sheet prints dark ink on white in the dark theme too, and shows nowher
     return { dark, light };
   });
   assert.ok(ink.dark > 1000, `dark ink pixels: ${ink.dark}`);
+  assert.deepEqual(seen.requests, []);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});
+
+// The link's line as printed: `Link to this design (note 1): <start>…`, the start of
+// the link on one line (no space in it) and cut (the ellipsis, which NFKC makes three
+// dots).
+function shortLink(pdf) {
+  const m = pdf.text.match(/Link to this design \(note 1\): (\S+?)\.\.\. /);
+  assert.ok(m, `a one-line link cut with an ellipsis in: ${pdf.text.slice(-2500, -1500)}`);
+  return m[1];
+}
+
+test('From file:// the printed link is one line cut to fit, whole in note 1 as the part after the file name, with no folder on paper or in the PDF', async () => {
+  const { page, seen } = await openPanel(browser.context, 'stage');
+  await pressPrint(page);
+  const end = await page.locator('#sheet .note .full').textContent();
+  const whole = await page.evaluate(() => HR.documents.link('', () => {}));
+  assert.ok(end.startsWith('#stage&d=') && whole.endsWith(end), `note 1 holds the link's end, ${end.slice(0, 40)}…`);
+  assert.equal(await page.locator('#sheet a').count(), 0, 'nothing on the sheet links to a file');
+  assert.ok(!(await page.locator('#sheet').textContent()).includes(path.dirname(PAGE_PATH)));
+  assert.match(await page.locator('#sheet .note').textContent(), /opened from disk.*add this after its file name/);
+  for (const format of ['A4', 'Letter']) {
+    const pdf = await readPdf(await page.pdf({ format }));
+    assert.ok(pdf.pages.length <= 2, `${pdf.pages.length} ${format} pages`);
+    const start = shortLink(pdf);
+    assert.ok(end.startsWith(start) && start.length >= 20 && start.length < end.length, `${format}: the line is the link's start, cut: ${start}`);
+    assert.ok(pdf.text.replace(/\s+/g, '').includes(end), `${format}: note 1 has the whole end of the link, broken over lines`);
+    assert.ok(!pdf.text.includes('file:') && !pdf.text.includes(path.dirname(PAGE_PATH)), `${format}: no local path in the text`);
+    assert.ok(!Buffer.from(await page.pdf({ format })).toString('latin1').includes(path.dirname(PAGE_PATH)), `${format}: nor in its bytes`);
+  }
+  // Pasted after the page's file name, the end opens the design.
+  const draft = await page.evaluate(() => HR.design.text());
+  const other = await browser.context.newPage();
+  await other.goto(PAGE_URL + end);
+  await other.waitForFunction(() => document.documentElement.dataset.ready === 'true');
+  assert.equal(await other.evaluate(() => HR.design.text()), draft);
+  await other.close();
+  assert.deepEqual(seen.requests, []);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});
+
+test('Over http the printed link is the whole address: one line cut to fit, whole in note 1 and a link, which opens the design', async () => {
+  const server = http.createServer((req, res) => {
+    res.writeHead(200, { 'content-type': 'text/html; charset=utf-8' });
+    res.end(fs.readFileSync(PAGE_PATH));
+  });
+  await new Promise((r) => server.listen(0, '127.0.0.1', r));
+  const base = `http://127.0.0.1:${server.address().port}/halfrail.html`;
+  try {
+    const page = await browser.context.newPage();
+    const seen = watch(page, [base]);
+    await page.goto(`${base}#stage`);
+    await ready(page);
+    await page.waitForSelector('#panel-stage[data-computed]');
+    await pressPrint(page);
+    const full = page.locator('#sheet .note a.full');
+    const href = await full.getAttribute('href');
+    assert.equal(await full.textContent(), href);
+    assert.ok(href.startsWith(`${base}#stage&d=`), href.slice(0, 60));
+    const pdf = await readPdf(await page.pdf({ format: 'Letter' }));
+    assert.ok(pdf.pages.length <= 2, `${pdf.pages.length} pages`);
+    const start = shortLink(pdf);
+    assert.ok(href.startsWith(start) && start.length < href.length, `the line is the link's start, cut: ${start}`);
+    assert.ok(pdf.text.replace(/\s+/g, '').includes(href), 'note 1 has the whole link');
+    const draft = await page.evaluate(() => HR.design.text());
+    const other = await browser.context.newPage();
+    await other.goto(href);
+    await ready(other);
+    assert.equal(await other.evaluate(() => HR.design.text()), draft);
+    await other.close();
+    assert.deepEqual(seen.requests, []);
+    assert.deepEqual(seen.errors, []);
+    await page.close();
+  } finally {
+    server.close();
+  }
+});
+
+test('The printed sheet has a bill of materials: each fitted part with its value, tolerance class and rating, the inverter, and the decoupling marked common practice', async () => {
+  const { page, seen } = await openPanel(browser.context, 'stage');
+  await pressPrint(page);
+  const bom = page.locator('#sheet section').filter({ has: page.locator('h2', { hasText: /^Bill of materials$/ }) });
+  assert.deepEqual(await bom.locator('thead th').allTextContents(), ['ref', 'value', 'part', 'tolerance', 'rating']);
+  const rows = await bom.locator('tbody tr').evaluateAll((trs) => trs.map((tr) => [...tr.cells].map((c) => c.textContent)));
+  const row = (ref) => rows.find((r) => r[0] === ref);
+  assert.deepEqual(row('R fb'), ['R fb', '2k2', 'resistor', '±1 % (F)', '≥ 3.47 V'], 'RKM, the tolerance section’s 1 %, the supply’s top');
+  assert.deepEqual(row('C in'), ['C in', '100 nF', 'capacitor', '±10 % (K)', '10 V'], '10 V ≥ 2 × 3.47 V');
+  assert.deepEqual(row('U1'), ['U1', '1 stage', 'CMOS inverter, unbuffered', '—', 'VDD 3.30 V ±5 %']);
+  assert.deepEqual(row('C dec').slice(1), ['100 nF', 'ceramic X7R (common practice)', '±10 % (K)', '10 V']);
+  assert.deepEqual(row('C bulk').slice(1), ['10 µF', 'bulk (common practice)', '±20 % (M)', '10 V']);
+  assert.equal(row('C fb'), undefined, 'a part not fitted is not bought');
+  assert.equal(row('R out'), undefined, 'nor a 0 Ω short');
+  assert.match(await bom.textContent(), /Supply decoupling \(common practice, not computed\)/);
+
+  // A tolerance edited on the page: the sheet's classes follow (Ctrl+P, for the design as it is).
+  await page.evaluate(() => HR.design.set('tolerance', 'resistor_pct', 5));
+  await page.waitForFunction(() => HR.sheet.linkIsCurrent());
+  const pdf = await readPdf(await page.pdf({ format: 'A4' }));
+  assert.ok(pdf.text.includes('Bill of materials'));
+  assert.deepEqual((await bom.locator('tbody tr').filter({ hasText: 'R fb' }).locator('td').allTextContents()).slice(3), ['±5 % (J)', '≥ 3.47 V']);
+  assert.ok(pdf.text.includes('±5 % (J)') && pdf.text.includes('common practice'));
+  assert.deepEqual(seen.requests, []);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});
+
+// Every label drawn on the sheet's plots (their boxes, in the image's pixels): none
+// meets another, each lies in the image, the marks' stand above the plot area (no
+// curve there) and the levels' where no curve passes.
+async function plotLabels(page) {
+  const figures = await page.locator('#sheet img[data-labels]').evaluateAll((imgs) => imgs.map((i) => ({ ...JSON.parse(i.dataset.labels), w: i.naturalWidth, h: i.naturalHeight })));
+  assert.equal(figures.length, 2, 'the two plots');
+  for (const { plot, labels, w, h } of figures) {
+    for (const [i, a] of labels.entries()) {
+      assert.ok(a.x0 >= 0 && a.x1 <= w && a.y0 >= 0 && a.y1 <= h, `${a.text} inside the image`);
+      assert.ok(a.clear, `${a.text} clear of the curves`);
+      for (const b of labels.slice(i + 1)) {
+        assert.ok(!(a.x0 < b.x1 && b.x0 < a.x1 && a.y0 < b.y1 && b.y0 < a.y1), `${a.text} and ${b.text} overlap`);
+      }
+    }
+    for (const m of labels.filter((l) => !/=/.test(l.text))) assert.ok(m.y1 <= plot.top, `${m.text} above the plot`);
+  }
+  return figures;
+}
+
+test('The sheet’s plot labels meet neither each other nor a curve, where the marks crowd too', async () => {
+  const { page, seen } = await openPanel(browser.context, 'response');
+  await pressPrint(page);
+  const [gain, loop] = await plotLabels(page);
+  assert.deepEqual(gain.labels.map((l) => l.text).sort(), ['f_design', 'f_high', 'f_low']);
+  assert.ok(loop.labels.some((l) => l.text === 'crossover') && loop.labels.some((l) => l.text === '|T| = 1'));
+  // f_design beside f_low: their labels take two rows.
+  await page.evaluate(() => HR.design.set('analysis', 'f_design_hz', '5 kHz'));
+  await page.waitForFunction(() => HR.sheet.linkIsCurrent());
+  const pdf = await readPdf(await page.pdf({ format: 'A4' }));
+  assert.ok(pdf.pages.length <= 2 && pdf.images >= 3);
+  const [crowded] = await plotLabels(page);
+  const at = (t) => crowded.labels.find((l) => l.text === t);
+  assert.notEqual(at('f_low').y1, at('f_design').y1, 'f_low and f_design in rows of their own');
   assert.deepEqual(seen.requests, []);
   assert.deepEqual(seen.errors, []);
   await page.close();

@@ -138,7 +138,11 @@ HR.schematic = (() => {
     dot(ctx, X.out, MAIN_Y);
     shunt('load_ohm', 'R', 'out', 2);
     shunt('load_f', 'C', 'out', 7);
-    for (const [name, x] of [['in', X.in], ['g1', X.g1], ['out', X.out]]) ctx.fillText(name, (x - 0.3) * U, (MAIN_Y - 0.5) * U);
+    // Node names above the wire; g1's left of the feedback wire that rises from it.
+    for (const [name, x] of [['in', X.in], ['out', X.out]]) ctx.fillText(name, (x - 0.3) * U, (MAIN_Y - 0.5) * U);
+    ctx.textAlign = 'right';
+    ctx.fillText('g1', (X.g1 - 0.2) * U, (MAIN_Y - 0.5) * U);
+    ctx.textAlign = 'left';
     return anchors;
   };
 

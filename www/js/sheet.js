@@ -2,9 +2,10 @@
 // The printed design sheet: what Print sheet (the Design bar) and the browser's own
 // print (Ctrl+P, `beforeprint`) put on paper or in a PDF, in a container that only
 // `@media print` shows. Its words and figures are the core's sheetPage (the blocks of
-// the same sheet as `halfrail report`), laid out with the schematic and its
-// values, the gain and phase and the loop gain drawn for paper, the permalink
-// (HR.documents.link), the build and the date. sheetPage runs every analysis, the
+// the same sheet as `halfrail report`, its bill of materials too), laid out with the
+// schematic and its values, the gain and phase and the loop gain drawn for paper, the
+// permalink (HR.documents.link: one line on the sheet, whole in a note, never a local
+// path), the build and the date. sheetPage runs every analysis, the
 // large-signal one too: Print sheet runs it in the background; Ctrl+P, which cannot
 // wait, uses the one Print sheet made for this design, or else runs it at once.
 
@@ -96,55 +97,164 @@ HR.sheet = (() => {
       ctx.fillStyle = INK;
       ctx.fillText(a.text, a.x, a.y);
     }
-    return image(canvas, 'Schematic of the stage with its component values');
+    return image(trimmed(canvas), 'Schematic of the stage with its component values');
+  };
+  // The canvas without its blank rows above and below the drawing (a few pixels
+  // kept): the schematic leaves room for labels a stage may not have, which on
+  // paper is height the sheet needs.
+  const trimmed = (canvas) => {
+    const { width, height } = canvas;
+    const data = canvas.getContext('2d').getImageData(0, 0, width, height).data;
+    const inked = (y) => {
+      for (let x = 0; x < width; x += 1) if (data[(y * width + x) * 4 + 3] > 0) return true;
+      return false;
+    };
+    let top = 0;
+    while (top < height && !inked(top)) top += 1;
+    let bottom = height - 1;
+    while (bottom > top && !inked(bottom)) bottom -= 1;
+    const keep = 4 * ratio();
+    const [y0, y1] = [Math.max(0, top - keep), Math.min(height, bottom + 1 + keep)];
+    if (y1 - y0 >= height || y1 <= y0) return canvas;
+    const out = el('canvas');
+    [out.width, out.height] = [width, y1 - y0];
+    out.getContext('2d').drawImage(canvas, 0, -y0);
+    return out;
   };
 
   // A Bode-style plot of two curves against frequency (log), dB on the left and degrees
   // on the right, with dashed marks [x, label] and reference levels [y, scale, label].
-  // uPlot draws it once, synchronously, at K times the size, for an image.
+  // uPlot draws it once, synchronously, at K times the size, for an image. No label
+  // lies over another or over a curve: the marks' labels stand in a strip above the
+  // plot, a row each where they would meet (a mark's line crossing no label), and a
+  // level's label takes the first end of its line, above or below it, that no curve
+  // or mark crosses; each is haloed in white besides.
   const decade = (v) => v > 0 && Math.abs(Math.log10(v) - Math.round(Math.log10(v))) < 1e-9;
+  // The decimals a tick step needs (0.5 → 1, 0.25 → 2, 10 → 0).
+  const decimalsOf = (step) => {
+    let d = 0;
+    while (d < 3 && Math.abs(step * 10 ** d - Math.round(step * 10 ** d)) > 1e-6 * step * 10 ** d) d += 1;
+    return d;
+  };
+  const ROW = 13; // a mark label's row, in CSS pixels before K
   const bode = (title, f, [a, b], marks, levels) => {
     const px = (n) => `${n * K}px`;
     const font = `${px(11)} sans-serif`;
     const axis = (scale, label, side) => ({ scale, label, side, stroke: INK, font, labelFont: `bold ${font}`, size: (side === 2 ? 24 : 50) * K, gap: 3 * K,
       labelSize: 18 * K, grid: { show: side !== 1, stroke: GRID, width: K }, ticks: { stroke: GRID, width: K, size: 4 * K },
-      values: (u, ticks) => ticks.map((v) => (scale === 'x' && !decade(v) ? '' : HR.fmt(v, '', 3))) });
-    const dashed = (u, x0, y0, x1, y1, colour, text, tx, ty, align) => {
-      const c = u.ctx;
+      values: scale === 'x' ? (u, ticks) => ticks.map((v) => (decade(v) ? HR.fmt(v, '', 1) : ''))
+        : (u, ticks, i, space, step) => ticks.map((v) => HR.fixed(v, decimalsOf(step))) });
+    const halo = (c, text, x, y) => {
       c.save();
-      c.strokeStyle = c.fillStyle = colour;
-      c.lineWidth = K;
-      c.setLineDash([5 * K, 4 * K]);
+      c.setLineDash([]);
+      c.lineWidth = 3 * K * devicePixelRatio;
+      c.lineJoin = 'round';
+      c.strokeStyle = '#fff';
+      c.strokeText(text, x, y);
+      c.restore();
+      c.fillText(text, x, y);
+    };
+    const line = (c, colour, x0, y0, x1, y1) => {
+      c.save();
+      c.strokeStyle = colour;
+      c.lineWidth = K * devicePixelRatio;
+      c.setLineDash([5 * K * devicePixelRatio, 4 * K * devicePixelRatio]);
       c.beginPath(); c.moveTo(x0, y0); c.lineTo(x1, y1); c.stroke();
-      c.font = font;
-      c.textAlign = align;
-      c.fillText(text, tx, ty);
       c.restore();
     };
-    const draw = (u) => {
-      const { left, top, width, height } = u.bbox;
-      marks.forEach(([x, text], i) => {
-        if (!HR.known(x) || x < u.scales.x.min || x > u.scales.x.max) return;
-        const p = u.valToPos(x, 'x', true);
-        dashed(u, p, top, p, top + height, C3, text, p + 4 * K, top + (13 + 13 * i) * K, 'left');
-      });
-      for (const [y, scale, text] of levels) {
-        if (y < u.scales[scale].min || y > u.scales[scale].max) continue;
-        const p = u.valToPos(y, scale, true);
-        dashed(u, left, p, left + width, p, INK, text, left + 4 * K, p - 4 * K, 'left');
-      }
+    // One drawing with `rows` rows of mark labels above the plot; → how many it needed.
+    const make = (rows) => {
+      let canvas = null;
+      let needed = 0;
+      const labels = []; // {text, x0, y0, x1, y1, clear} in canvas pixels, for the tests
+      let plot = null;
+      const draw = (u) => {
+        labels.length = 0;
+        const c = u.ctx;
+        const d = devicePixelRatio;
+        const { left, top, width, height } = u.bbox;
+        c.save();
+        c.font = `${11 * K * d}px sans-serif`;
+        c.textBaseline = 'alphabetic';
+        const pad = 3 * K * d;
+        const row = ROW * K * d;
+        // Marks, right to left, each at the lowest row where its label meets no label
+        // and its line (down through the rows below) crosses none; beside its line on
+        // the right, or on the left where the plot ends.
+        const shown = marks.filter(([x]) => HR.known(x) && x >= u.scales.x.min && x <= u.scales.x.max)
+          .map(([x, text]) => ({ p: u.valToPos(x, 'x', true), text, w: c.measureText(text).width }))
+          .sort((m, n) => n.p - m.p);
+        const placed = [];
+        for (const m of shown) {
+          let best = null;
+          for (let r = 0; r <= shown.length && !best; r += 1) {
+            for (const side of [1, -1]) {
+              const x0 = side > 0 ? m.p + pad : m.p - pad - m.w;
+              const box = { x0: x0 - pad, x1: x0 + m.w + pad, r };
+              if (box.x0 < left - pad || box.x1 > left + width + pad) continue; // clear of the axes' numbers
+              const clash = placed.some((q) => (q.r === r && box.x0 < q.x1 && q.x0 < box.x1)
+                || (q.r > r && q.p > box.x0 && q.p < box.x1) || (q.r < r && m.p > q.x0 && m.p < q.x1));
+              if (!clash) { best = { ...box, p: m.p, text: m.text, lx: x0 }; break; }
+            }
+          }
+          // No row is clear (a line must cross a label): the row above all, right of the line.
+          placed.push(best || { x0: m.p, x1: m.p + m.w + 2 * pad, r: placed.length, p: m.p, text: m.text, lx: m.p + pad });
+        }
+        needed = placed.reduce((n, q) => Math.max(n, q.r + 1), 0);
+        plot = { left, top, width, height };
+        const h = 11 * K * d;
+        c.fillStyle = C3;
+        for (const q of placed) {
+          const base = top - q.r * row - 3 * K * d; // the label's baseline, in its row
+          line(c, C3, q.p, base + 2 * K * d, q.p, top + height);
+          halo(c, q.text, q.lx, base);
+          labels.push({ text: q.text, x0: q.lx, x1: q.lx + c.measureText(q.text).width, y0: base - h, y1: base, clear: true });
+        }
+        // Levels: the label at the first end of the line, above or below it, that no
+        // curve or mark crosses (else above at the right).
+        const points = [];
+        for (const [ys, scale] of [[a.y, 'l'], [b.y, 'r']]) {
+          for (let i = 0; i < f.length; i += 1) {
+            if (HR.known(ys[i]) && HR.known(f[i])) points.push([u.valToPos(f[i], 'x', true), u.valToPos(ys[i], scale, true)]);
+          }
+        }
+        for (const [y, scale, text] of levels) {
+          if (y < u.scales[scale].min || y > u.scales[scale].max) continue;
+          const p = u.valToPos(y, scale, true);
+          line(c, INK, left, p, left + width, p);
+          const w = c.measureText(text).width;
+          const spots = [[left + width - pad - w, p - pad], [left + pad, p - pad], [left + width - pad - w, p + pad + h], [left + pad, p + pad + h]];
+          const spot = spots.find(([x, base]) => {
+            const box = { x0: x - pad, x1: x + w + pad, y0: base - h - pad, y1: base + pad };
+            if (box.y0 < top || box.y1 > top + height) return false;
+            return !points.some(([px, py]) => px > box.x0 && px < box.x1 && py > box.y0 && py < box.y1)
+              && !placed.some((q) => q.p > box.x0 && q.p < box.x1);
+          });
+          const [x, base] = spot || spots[0];
+          c.fillStyle = INK;
+          halo(c, text, x, base);
+          labels.push({ text, x0: x, x1: x + w, y0: base - h, y1: base, clear: Boolean(spot) });
+        }
+        c.restore();
+      };
+      const series = (s, scale, colour, dash) => ({ label: s.label, scale, stroke: colour, width: 1.6 * K, dash, points: { show: false } });
+      new uPlot({
+        width: 340 * K, height: (185 + ROW * rows) * K, legend: { show: false }, cursor: { show: false }, select: { show: false },
+        padding: [(8 + ROW * rows) * K, null, null, null],
+        scales: { x: { time: false, distr: 3, log: 10 }, l: {}, r: {} },
+        axes: [axis('x', 'Frequency (Hz)', 2), axis('l', `${a.label} (dB)`, 3), axis('r', `${b.label} (°)`, 1)],
+        series: [{}, series(a, 'l', C1), series(b, 'r', C2, [6 * K, 3 * K])],
+        hooks: { draw: [draw] },
+      }, [f, a.y, b.y], (u, init) => { u.batch(init); canvas = u.ctx.canvas; u.destroy(); });
+      return { canvas, needed, labels, plot };
     };
-    const series = (s, scale, colour, dash) => ({ label: s.label, scale, stroke: colour, width: 1.6 * K, dash, points: { show: false } });
-    let canvas = null;
-    new uPlot({
-      width: 340 * K, height: 185 * K, legend: { show: false }, cursor: { show: false }, select: { show: false },
-      scales: { x: { time: false, distr: 3, log: 10 }, l: {}, r: {} },
-      axes: [axis('x', 'Frequency (Hz)', 2), axis('l', `${a.label} (dB)`, 3), axis('r', `${b.label} (°)`, 1)],
-      series: [{}, series(a, 'l', C1), series(b, 'r', C2, [6 * K, 3 * K])],
-      hooks: { draw: [draw] },
-    }, [f, a.y, b.y], (u, init) => { u.batch(init); canvas = u.ctx.canvas; u.destroy(); });
+    // One row is kept for the labels; a drawing that needs more is made again with them.
+    let drawn = make(1);
+    if (drawn.needed > 1) drawn = make(drawn.needed);
     const key = (s, colour, dash) => el('span', { class: `key${dash ? ' dash' : ''}`, style: `border-color:${colour}` }, s.label);
-    return el('figure', {}, el('figcaption', {}, title, ' ', key(a, C1), ' ', key(b, C2, true)), image(canvas, title));
+    const img = image(drawn.canvas, title);
+    img.dataset.labels = JSON.stringify({ plot: drawn.plot, labels: drawn.labels });
+    return el('figure', {}, el('figcaption', {}, title, ' ', key(a, C1), ' ', key(b, C2, true)), img);
   };
 
   // The two plots, from the sweeps Print sheet computed in the background with the
@@ -177,6 +287,16 @@ HR.sheet = (() => {
     [...b.tBodies[0].rows].slice(0, n).forEach((r) => r.remove());
     return el('div', { class: 'halves' }, t, b);
   };
+  // A wide section of two narrow tables, each under its caption (the schematic's
+  // components to build, and the source and load the figures assume): the two side
+  // by side, the second with what follows it.
+  const sideBySide = (nodes) => {
+    const tables = nodes.map((n, i) => [n, i]).filter(([n]) => n.tagName === 'TABLE');
+    if (tables.length !== 2 || tables.some(([t]) => t.tHead.rows[0].cells.length > 4)) return nodes;
+    const cut = tables[1][1] - (nodes[tables[1][1] - 1].tagName === 'P' ? 1 : 0);
+    if (cut <= tables[0][1]) return nodes;
+    return [el('div', { class: 'halves' }, el('div', {}, nodes.slice(0, cut)), el('div', {}, nodes.slice(cut)))];
+  };
   const today = () => {
     const d = new Date();
     const two = (n) => String(n).padStart(2, '0');
@@ -191,6 +311,32 @@ HR.sheet = (() => {
     const good = HR.design.lastGood();
     if (!check.error || !good) return { text, problem: check.error };
     return { text: good, problem: check.error, older: true };
+  };
+
+  // The link as printed. A link of a thousand characters and more is no line to
+  // read: the footer shows what fits on one line (CSS cuts it with an ellipsis, to
+  // whatever width the paper gives) and note 1 holds it whole, broken anywhere so it
+  // prints. A page opened from disk has a file:// address, which spells the user's
+  // folders: a sheet that is printed, or shared as a PDF, must not carry them. So
+  // from file:// only the part after the page's file name is printed — the
+  // fragment, which holds the panel and the whole design, and opens it in any copy
+  // of the page — with how to use it, and nothing is made a link (a PDF keeps a
+  // link's whole address, folders and all). From http(s) the address is public:
+  // the whole link, a link on paper too.
+  const printedLink = (url) => {
+    if (!/^file:/i.test(url)) return { text: url, href: url };
+    const at = url.indexOf('#');
+    return { text: at < 0 ? '' : url.slice(at), href: null };
+  };
+  const footerLink = (url, linkText) => {
+    if (!url) return [el('p', { class: 'link' }, `Link to this design: ${linkText}`)];
+    const { text, href } = printedLink(url);
+    const shown = (cls) => (href ? el('a', { class: cls, href }, text) : el('span', { class: cls }, text));
+    return [
+      el('p', { class: 'link' }, 'Link to this design (note 1): ', shown('short')),
+      el('p', { class: 'note' }, el('sup', {}, '1'), href ? ' The whole link, which opens this design: '
+        : ' The end of the link, which holds the design (the page was opened from disk, and its folders are left out): open your copy of the page and add this after its file name in the address: ', shown('full')),
+    ];
   };
 
   const build = ({ text, problem, older }) => {
@@ -209,7 +355,7 @@ HR.sheet = (() => {
     const drawings = () => { drawn = true; return el('div', { class: 'plots' }, plots(text, made.curves)); };
     for (const s of sheet.sections) {
       const first = !parts.length && Object.keys(sheet.rows).length;
-      const sec = el('section', {}, el('h2', {}, s.head), first ? schematic(doc, sheet.rows) : null, ...(s.wide ? s.nodes.map(halves) : s.nodes));
+      const sec = el('section', {}, el('h2', {}, s.head), first ? schematic(doc, sheet.rows) : null, ...(s.wide ? sideBySide(s.nodes.map(halves)) : s.nodes));
       if (s.wide) {
         if (flow && !drawn) parts.push(drawings());
         flow = null;
@@ -228,8 +374,7 @@ HR.sheet = (() => {
         : `This design has a bad value (${HR.words(problem)}).`) : null,
       made.error ? warn(`The sheet could not be made: ${HR.words(made.error)}.`) : null,
       ...sheet.lead, ...parts,
-      el('footer', {}, el('p', {}, `Halfrail ${HR.version} · printed ${today()}`),
-        el('p', { class: 'link' }, 'Link to this design: ', url ? el('a', { href: url }, url) : linkText))].filter(Boolean));
+      el('footer', {}, el('p', {}, `Halfrail ${HR.version} · printed ${today()}`), ...footerLink(url, linkText))].filter(Boolean));
     shownFor = key;
   };
 
