@@ -78,7 +78,7 @@ test('three inverters typed into Part: every panel says the loop oscillates, the
   await page.waitForSelector('#health[data-computed]');
   const demo = await line(page);
   await page.getByLabel('Stages', { exact: true }).first().fill('3');
-  await page.waitForSelector('#health[data-state="void"]');
+  await page.waitForSelector('#health[data-follow="settled"][data-state="void"]');
   const want = await expected(page);
   assert.equal(want.void, true);
   assert.equal(want.findings[0].code, 'oscillates');
@@ -127,7 +127,7 @@ test('a healthy design: no findings, said quietly; a bad value keeps the last re
     await page.locator('#panel-stage input.in-place').fill(value);
     await page.keyboard.press('Enter');
   }
-  await page.waitForSelector('#health[data-state="clear"]');
+  await page.waitForSelector('#health[data-follow="settled"][data-state="clear"]');
   assert.deepEqual((await expected(page)).findings, []);
   const healthy = await line(page);
   assert.deepEqual(healthy, { state: 'clear', stale: false, quiet: 'No findings.', findings: [] });
@@ -140,13 +140,13 @@ test('a healthy design: no findings, said quietly; a bad value keeps the last re
   await page.waitForSelector('#health.stale');
   assert.deepEqual(await line(page), { ...healthy, stale: true });
   await undoButton(page).click();
-  await page.waitForSelector('#health:not(.stale)');
+  await page.waitForSelector('#health[data-follow="settled"]:not(.stale)');
   assert.deepEqual(await line(page), healthy);
   assert.deepEqual(seen.errors, []);
   await page.close();
 });
 
-test('the line keeps pace: by the time Stage shows an edit\'s figures, the line is for the same edit', async () => {
+test('the line keeps pace: each edit gives one report, for that edit, as Stage gives its figures', async () => {
   const { page } = await openPanel(browser.context, 'stage');
   await page.waitForSelector('#health[data-computed]');
   const lags = await page.evaluate(async () => {
@@ -156,8 +156,10 @@ test('the line keeps pace: by the time Stage shows an edit\'s figures, the line 
     for (const stages of ['3', '1', '3', '1']) {
       const [s, h] = [Number(stage.dataset.computed), Number(health.dataset.computed)];
       HR.design.set('part', 'stages', stages, 'test');
+      // Both in, each from its own worker: the Stage figures and the line's report.
       await new Promise((done) => {
-        const poll = () => (Number(stage.dataset.computed) > s ? done() : requestAnimationFrame(poll));
+        const poll = () => (Number(stage.dataset.computed) > s && Number(health.dataset.computed) > h && health.dataset.follow === 'settled'
+          ? done() : requestAnimationFrame(poll));
         poll();
       });
       out.push([Number(health.dataset.computed) - h, health.dataset.state]);
