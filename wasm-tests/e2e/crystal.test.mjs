@@ -34,9 +34,10 @@ test('the demo oscillator: the figures equal halfrail crystal, no warnings, the 
     const got = await valueOf(page, key);
     assert.ok(Math.abs(got - want[field]) <= 1e-12 * Math.abs(want[field]), `${key}: ${got} against ${want[field]}`);
   }
-  // As written: the frequency to nine figures, through the core's formatter.
+  // As written: the frequency to nine figures, through the core's formatter (its
+  // decimals grouped in threes by thin spaces).
   const written = await page.evaluate((v) => HR.fmt(v, 'Hz', 9), want.f_osc_hz);
-  assert.equal((await cell(page, 'f_osc').locator('.value').textContent()), written);
+  assert.equal((await cell(page, 'f_osc').locator('.value').textContent()).replace(/\u2009/g, ''), written);
   assert.equal(await cell(page, 'spurious').locator('.value').textContent(), 'stable');
   assert.equal(want.warnings.length, 0);
   assert.match(await page.locator(`${panel} .warnings`).textContent(), /^No warnings/);

@@ -29,7 +29,9 @@
     ['vpp_gate', 'Swing at the gate'], ['vpp_out', 'Swing at the part’s output'],
   ];
 
-  const hz = (v) => (known(v) ? fmt(v, 'Hz', 9) : '—');
+  // A frequency to nine figures (a ppm shows in them), its decimals in groups of three
+  // with thin spaces, as ISO 80000 writes long numbers: 12.800 073 5 MHz.
+  const hz = (v) => (known(v) ? fmt(v, 'Hz', 9).replace(/\.(\d+)/, (all, d) => `.${d.match(/\d{1,3}/g).join('\u2009')}`) : '—');
   const ppm = (v) => (known(v) ? `${v > 0 ? '+' : ''}${fixed(v, 2)} ppm` : '—');
 
   // Each figure: [text, the value it shows (for data-value), a note under it].
@@ -93,25 +95,25 @@
   };
 
   const schematic = () => {
-    const [gx, ox, xx, top, mid, low] = [70, 250, 350, 34, 92, 168];
+    const [gx, ox, xx, top, mid, low] = [110, 290, 410, 34, 96, 196];
     const rs = HR.design.value('oscillator', 'rs_ohm', 'Ω');
     const stray = HR.design.value('oscillator', 'c_stray_f', 'F');
     const stages = Number(HR.design.get('part', 'stages')) || 1;
     const parts = [
       // The inverter between g and o, Rf above it.
-      wire([gx, mid], [130, mid]), svg('polygon', { points: `130,${mid - 20} 180,${mid} 130,${mid + 20}`, fill: 'none' }),
-      svg('circle', { cx: 185, cy: mid, r: 5, fill: 'none' }), wire([190, mid], [ox, mid]),
-      text(148, mid + 4, stages > 1 ? `×${stages}` : ''),
+      wire([gx, mid], [170, mid]), svg('polygon', { points: `170,${mid - 20} 220,${mid} 170,${mid + 20}`, fill: 'none' }),
+      svg('circle', { cx: 225, cy: mid, r: 5, fill: 'none' }), wire([230, mid], [ox, mid]),
+      text(188, mid + 4, stages > 1 ? `×${stages}` : ''),
       wire([gx, mid], [gx, top]), wire([ox, mid], [ox, top]), resistor(gx, ox, top), text((gx + ox) / 2, top - 12, `Rf ${shown('oscillator', 'rf_ohm')}`),
       // Rs from o to x (a wire when absent or 0).
       known(rs) && rs > 0 ? resistor(ox, xx, mid) : wire([ox, mid], [xx, mid]),
       known(rs) && rs > 0 ? text((ox + xx) / 2, mid - 14, `Rs ${shown('oscillator', 'rs_ohm')}`) : text((ox + xx) / 2, mid - 8, 'no Rs'),
       // The crystal between x and g, below.
       wire([gx, mid], [gx, low]), wire([xx, mid], [xx, low]),
-      wire([gx, low], [188, low]), wire([188, low - 14], [188, low + 14]), svg('rect', { x: 194, y: low - 12, width: 22, height: 24, fill: 'none' }),
-      wire([222, low - 14], [222, low + 14]), wire([222, low], [xx, low]),
-      text(205, low - 20, `${shown('crystal', 'f_hz')}`),
-      text(205, low + 30, `ESR ${shown('crystal', 'esr_ohm')}, C0 ${shown('crystal', 'c0_f')}`),
+      wire([gx, low], [243, low]), wire([243, low - 14], [243, low + 14]), svg('rect', { x: 249, y: low - 12, width: 22, height: 24, fill: 'none' }),
+      wire([277, low - 14], [277, low + 14]), wire([277, low], [xx, low]),
+      text(260, low - 20, `${shown('crystal', 'f_hz')}`),
+      text(260, low + 30, `ESR ${shown('crystal', 'esr_ohm')}, C0 ${shown('crystal', 'c0_f')}`),
       // C1 and C2 to ground.
       capDown(gx, low, low + 44), ground(gx, low + 44), text(gx - 16, low + 26, `C1 ${shown('oscillator', 'c1_f')}`, 'end'),
       capDown(xx, low, low + 44), ground(xx, low + 44), text(xx + 16, low + 26, `C2 ${shown('oscillator', 'c2_f')}`, 'start'),
@@ -119,12 +121,12 @@
       text(gx - 8, mid - 6, 'g', 'end'), text(ox + 6, mid + 16, 'o', 'start'), text(xx + 8, mid - 6, 'x', 'start'),
     ];
     if (known(stray) && stray > 0) {
-      const y = low - 42;
-      parts.push(svg('g', { class: 'stray' }, wire([gx, y], [196, y]), wire([196, y - 8], [196, y + 8]), wire([214, y - 8], [214, y + 8]), wire([214, y], [xx, y])),
-        text(205, y - 12, `stray ${shown('oscillator', 'c_stray_f')}`));
+      const y = low - 50;
+      parts.push(svg('g', { class: 'stray' }, wire([gx, y], [254, y]), wire([254, y - 8], [254, y + 8]), wire([266, y - 8], [266, y + 8]), wire([266, y], [xx, y])),
+        text(260, y - 12, `stray ${shown('oscillator', 'c_stray_f')}`));
     }
     const describe = `Pierce oscillator: the part from g to o with Rf across it, ${known(rs) && rs > 0 ? 'Rs from o to x' : 'o joined to x'}, the crystal from x to g, C1 from g and C2 from x to ground.`;
-    return svg('svg', { viewBox: '0 0 430 240', width: 430, height: 240, role: 'img', 'aria-label': describe, class: 'crystal-schematic' }, ...parts);
+    return svg('svg', { viewBox: '0 0 520 270', width: 520, height: 270, role: 'img', 'aria-label': describe, class: 'crystal-schematic' }, ...parts);
   };
 
   // ---- The locus: Z_c in the complex plane as gm varies ------------------------------
@@ -155,13 +157,13 @@
       ctx.moveTo(P.x(0), P.box.t); ctx.lineTo(P.x(0), P.box.t + P.box.h);
       ctx.stroke();
       // Re Z_c = −Rm and −margin_min·Rm: where it starts, and where it starts with margin.
-      for (const [re, colour, words] of [[-d.c.rm_ohm, css('--bad'), '−ESR'], [-d.c.target_ohm, css('--plot-3'), `−${fixed(d.c.target_ohm / d.c.rm_ohm, 1)}·ESR`]]) {
+      for (const [re, colour, words, row] of [[-d.c.rm_ohm, css('--bad'), '−ESR', 0], [-d.c.target_ohm, css('--plot-3'), `−${fixed(d.c.target_ohm / d.c.rm_ohm, 1)}·ESR`, 1]]) {
         ctx.strokeStyle = colour;
         ctx.setLineDash([5, 4]);
         ctx.beginPath();
         ctx.moveTo(P.x(re), P.box.t); ctx.lineTo(P.x(re), P.box.t + P.box.h);
         ctx.stroke();
-        planeLabel(ctx, words, P.x(re) + 4, P.box.t + 14, colour, 'left', P);
+        planeLabel(ctx, words, P.x(re) + 4, P.box.t + 14 + 14 * row, colour, 'left', P);
       }
       ctx.setLineDash([]);
       ctx.strokeStyle = css('--plot-1');
@@ -274,7 +276,7 @@
       figures.classList.add('wide');
 
       // ---- The plots ---------------------------------------------------------------------
-      const row = el('div', { class: 'plots' });
+      const row = el('div', { class: 'plots crystal-plots' });
       const plotsCard = card('Start-up, pulling and growth', el('p', { class: 'intro' },
         'Hover for values; drag to zoom, shift-drag (or the arrow keys on a focused plot) to pan, Ctrl+wheel or +/− to zoom, double-click (or 0) to reset.'), row);
       plotsCard.classList.add('wide');
@@ -289,9 +291,9 @@
       };
       const gmCell = cell();
       const gmPlot = HR.plot.create(gmCell, { title: 'Negative resistance against gm', file: 'halfrail-crystal-gm', logX: true, decorate: gmMarks,
-        x: { label: 'gm of stage 1 (all stages scaled alike)', unit: 'S' }, y: { label: '−Re Z_c', unit: 'Ω', range: HR.plot.including(0) },
+        x: { label: 'gm', unit: 'S' }, y: { label: '−Re Z_c', unit: 'Ω', range: HR.plot.including(0) },
         series: [{ label: '−Re Z_c', unit: 'Ω' }] });
-      gmCell.append(el('p', { class: 'plot-note' }, 'More gm helps only up to a point: past the peak the negative resistance falls again.'));
+      gmCell.append(el('p', { class: 'plot-note' }, 'More gm helps only up to a point: the negative resistance levels off at a ceiling the capacitors set, and past its peak falls again.'));
       const locusCell = cell();
       const plane = HR.plane.create(locusCell, locus());
       const pullMarks = (u, ctx) => {
@@ -302,13 +304,12 @@
       };
       const pullCell = cell();
       const pullPlot = HR.plot.create(pullCell, { title: 'Frequency error against the load', file: 'halfrail-crystal-pull', decorate: pullMarks,
-        x: { label: 'Load capacitance the circuit presents', unit: 'F' }, y: { label: 'Error', unit: 'ppm', range: HR.plot.including(0) },
+        x: { label: 'Load', unit: 'F' }, y: { label: 'Error', unit: 'ppm', range: HR.plot.including(0) },
         series: [{ label: 'Error', unit: 'ppm' }] });
       pullCell.append(el('p', { class: 'plot-note' }, 'The circuit’s own curve: C1 and C2 scaled together from a third to three times their values.'));
       const envMarks = (u, ctx) => {
         if (!last || !last.envelope) return;
         HR.plot.hline(u, ctx, last.envelope.im_steady_a, css('--plot-3'), 'steady amplitude', 'left');
-        if (known(last.tau_s)) HR.plot.vline(u, ctx, last.tau_s, css('--muted'), 'τ');
       };
       const envCell = cell();
       const envPlot = HR.plot.create(envCell, { title: 'Start-up envelope of the crystal current', file: 'halfrail-crystal-startup', decorate: envMarks,
@@ -343,15 +344,14 @@
         redraw();
       };
 
-      const body = el('div', { class: 'cards' }, inputs, figures, plotsCard);
-      const emptyCards = el('div', { class: 'cards' }, empty);
       container.append(el('h1', {}, 'Crystal'),
         el('p', { class: 'lede' }, 'The part as a Pierce crystal oscillator: whether it starts, where it runs against the crystal’s nominal frequency, and how hard it drives the crystal.'),
-        emptyCards, body);
+        el('div', { class: 'cards' }, empty, inputs, figures, plotsCard));
       const layout = () => {
         const has = hasSections();
-        emptyCards.hidden = has;
-        body.hidden = !has;
+        // The cards themselves: `.cards` lays out as a grid, which `hidden` on it would not undo.
+        empty.hidden = has;
+        for (const c of [inputs, figures, plotsCard]) c.hidden = !has;
         add.hidden = has || HR.design.readOnly();
         container.dataset.crystal = has ? 'present' : 'absent';
         redraw();
