@@ -535,3 +535,24 @@ fn the_curves_say_why_there_is_no_envelope() {
     assert!(c.envelope.as_ref().is_err_and(|why| why.contains("does not start")), "{:?}", c.envelope);
     assert!(!c.gm.gm_s.is_empty() && !c.pulling.cl_f.is_empty());
 }
+
+#[test]
+fn the_curves_wire_form_holds_the_columns_and_the_points_to_mark() {
+    let document = halfrail::doc::load(&reference().to_string()).unwrap();
+    let o = document.crystal().unwrap();
+    let c = document.crystal_curves(&o).unwrap();
+    let json: Value = serde_json::from_str(&halfrail::wire::to_json(&halfrail::wire::CrystalCurves { oscillator: &o, curves: &c })).unwrap();
+    let n = json["gm"]["gm_s"].as_array().unwrap().len();
+    for column in ["r_neg_ohm", "z_re_ohm", "z_im_ohm"] {
+        assert_eq!(json["gm"][column].as_array().unwrap().len(), n, "{column}");
+    }
+    assert_eq!(json["gm_own_s"].as_f64(), Some(o.gm_s));
+    assert_eq!(json["rm_ohm"].as_f64(), Some(35.0));
+    assert_eq!(json["target_ohm"].as_f64(), Some(5.0 * 35.0));
+    assert_eq!(json["cl_nominal_f"].as_f64(), Some(12e-12));
+    assert_eq!(json["pulling"]["cl_f"].as_array().unwrap().len(), json["pulling"]["pull_ppm"].as_array().unwrap().len());
+    let e = &json["envelope"];
+    assert_eq!(e["t_s"].as_array().unwrap().len(), e["im_a"].as_array().unwrap().len());
+    assert_eq!(e["t_s"].as_array().unwrap().len(), e["im_linear_a"].as_array().unwrap().len());
+    assert!(json["envelope_withheld"].is_null());
+}
