@@ -282,6 +282,24 @@ pub fn spread_report(text: &str, progress: &js_sys::Function) -> Result<JsValue,
     to_js(&wire::SpreadReport(&result))
 }
 
+/// The Crystal panel's figures: the oscillator of the document's `part`,
+/// `crystal` and `oscillator` sections (the same as `halfrail crystal`). Some tens
+/// of milliseconds (the steady state): the page runs it in a worker.
+#[wasm_bindgen(js_name = crystalReport)]
+pub fn crystal_report(text: &str) -> Result<JsValue, JsValue> {
+    to_js(&wire::CrystalReport(&doc::load(text).and_then(|d| d.crystal()).map_err(thrown)?))
+}
+
+/// The Crystal panel's curves (negative resistance and locus against gm, pulling
+/// against the load, the start-up envelope), through the report's own figures.
+#[wasm_bindgen(js_name = crystalCurves)]
+pub fn crystal_curves(text: &str) -> Result<JsValue, JsValue> {
+    let document = doc::load(text).map_err(thrown)?;
+    let oscillator = document.crystal().map_err(thrown)?;
+    let curves = document.crystal_curves(&oscillator).map_err(thrown)?;
+    to_js(&wire::CrystalCurves { oscillator: &oscillator, curves: &curves })
+}
+
 /// Panics on purpose: the page's recovery from a trap (report it, keep the design,
 /// start a fresh module) is tested with it. Nothing in the page calls it.
 #[wasm_bindgen(js_name = trapForTest)]

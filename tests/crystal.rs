@@ -379,11 +379,12 @@ fn cli_crystal_prints_the_figures_of_the_spec() {
     let mut d = reference();
     d["crystal"]["esr_ohm"] = json!(-3);
     refused("bad", &d, "crystal.esr_ohm: must be > 0, got -3");
-    // The demo has no crystal yet.
+    // The demo has its own oscillator, which starts without a warning.
     let demo = std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("src/doc/demo.halfrail.json");
     let out = halfrail(&["crystal", &demo.display().to_string()]);
-    assert_eq!(out.status.code(), Some(2));
-    assert!(String::from_utf8_lossy(&out.stderr).contains("crystal: missing"));
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    let json: Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(json["warnings"].as_array().map(Vec::len), Some(0), "{}", json["warnings"]);
 }
 
 
@@ -467,3 +468,91 @@ fn steady_drive_agrees_with_the_whole_oscillator_in_the_time_domain() {
     assert!((drive.drive_w - brute).abs() < 0.05 * brute, "{} W against {brute} W", drive.drive_w);
 }
 
+
+// ---- The panel's curves against the report --------------------------------------------
+
+#[test]
+fn the_curves_pass_through_the_reports_own_figures() {
+    let demo = std::fs::read_to_string(std::path::PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("src/doc/demo.halfrail.json")).unwrap();
+    for text in [demo, reference().to_string()] {
+        let document = halfrail::doc::load(&text).unwrap();
+        let o = document.crystal().unwrap();
+        let c = document.crystal_curves(&o).unwrap();
+        // (a), (b): the sweep holds the part's own gm exactly, and Z_c there is the report's.
+        let own = c.gm.gm_s.iter().position(|&g| g == o.gm_s).expect("the part's own gm on the grid");
+        let z = c.gm.z_ohm[own].unwrap();
+        assert!((z.re - o.r_neg_ohm).abs() <= 1e-9 * o.r_neg_ohm.abs() && (z.im - o.x_c_ohm).abs() <= 1e-9 * o.x_c_ohm.abs(), "{z} against {}", o.r_neg_ohm);
+        assert!(c.gm.gm_s.windows(2).all(|w| w[1] > w[0]) && c.gm.gm_s[0] <= 0.01 * o.gm_s && *c.gm.gm_s.last().unwrap() >= 99.0 * o.gm_s);
+        // The negative resistance crosses Rm between the grid's points around gm_crit.
+        let crit = o.gm_crit_s.unwrap();
+        assert!(c.gm.gm_s[0] < crit, "the sweep reaches below gm_crit");
+        for (g, z) in c.gm.gm_s.iter().zip(&c.gm.z_ohm) {
+            if let Some(z) = z {
+                if *g < crit * 0.999 {
+                    assert!(-z.re < o.bvd.rm, "below gm_crit at {g}: {}", -z.re);
+                } else if *g > crit * 1.001 && *g <= o.gm_s {
+                    assert!(-z.re > o.bvd.rm, "above gm_crit at {g}: {}", -z.re);
+                }
+            }
+        }
+        // (c): the circuit's own pulling curve (C1 and C2 scaled together) holds the
+        // report's point, and more load runs the crystal slower.
+        let p = &c.pulling;
+        assert_eq!(p.cl_nominal_f, Some(12e-12));
+        let here = p.cl_f.iter().position(|&cl| cl == o.cl_eff_f).expect("the report's load on the curve");
+        assert_eq!(p.pull_ppm[here], o.pull_ppm);
+        assert!(p.cl_f[0] < 12e-12 && *p.cl_f.last().unwrap() > 12e-12, "the nominal load within the curve");
+        assert!(p.cl_f.windows(2).all(|w| w[1] > w[0]) && p.pull_ppm.windows(2).all(|w| w[1] < w[0]), "more load, lower frequency");
+        // Near the report's point the curve follows the crystal's trim sensitivity
+        // there: the BVD relation's slope (within the circuit's loss's share).
+        let slope = (p.pull_ppm[here + 1] - p.pull_ppm[here - 1]) / ((p.cl_f[here + 1] - p.cl_f[here - 1]) * 1e12);
+        assert!((slope + o.trim_ppm_per_pf).abs() < 0.2 * o.trim_ppm_per_pf, "{slope} ppm/pF against −{}", o.trim_ppm_per_pf);
+        // (d): the envelope starts as exp(t/τ) and ends at the steady amplitude.
+        let e = c.envelope.as_ref().unwrap();
+        let drive = o.large.as_ref().unwrap();
+        assert_eq!(e.im_steady_a, drive.im_a);
+        let tau = o.tau_s.unwrap();
+        let (t1, a1) = (e.t_s[1], e.im_a[1]);
+        // (the rate moves a little towards the first sample's within the first step)
+        assert!(((a1 / e.im_a[0]).ln() - t1 / tau).abs() < 1e-3 * t1 / tau, "first step: {} against {}", (a1 / e.im_a[0]).ln(), t1 / tau);
+        let last = *e.im_a.last().unwrap();
+        assert!(last < drive.im_a && last > 0.98 * drive.im_a, "{last} against {}", drive.im_a);
+        assert!(e.t_s.windows(2).all(|w| w[1] > w[0]) && e.im_a.windows(2).all(|w| w[1] > w[0]));
+        // The gain falls with amplitude: slower than the small-signal exponential.
+        let t_end = *e.t_s.last().unwrap();
+        assert!(t_end > tau * (last / e.im_a[0]).ln(), "{t_end} against τ·ln {}", tau * (last / e.im_a[0]).ln());
+    }
+}
+
+#[test]
+fn the_curves_say_why_there_is_no_envelope() {
+    let mut d = reference();
+    d["crystal"]["esr_ohm"] = json!("5k");
+    let document = halfrail::doc::load(&d.to_string()).unwrap();
+    let o = document.crystal().unwrap();
+    assert!(o.margin < 1.0);
+    let c = document.crystal_curves(&o).unwrap();
+    assert!(c.envelope.as_ref().is_err_and(|why| why.contains("does not start")), "{:?}", c.envelope);
+    assert!(!c.gm.gm_s.is_empty() && !c.pulling.cl_f.is_empty());
+}
+
+#[test]
+fn the_curves_wire_form_holds_the_columns_and_the_points_to_mark() {
+    let document = halfrail::doc::load(&reference().to_string()).unwrap();
+    let o = document.crystal().unwrap();
+    let c = document.crystal_curves(&o).unwrap();
+    let json: Value = serde_json::from_str(&halfrail::wire::to_json(&halfrail::wire::CrystalCurves { oscillator: &o, curves: &c })).unwrap();
+    let n = json["gm"]["gm_s"].as_array().unwrap().len();
+    for column in ["r_neg_ohm", "z_re_ohm", "z_im_ohm"] {
+        assert_eq!(json["gm"][column].as_array().unwrap().len(), n, "{column}");
+    }
+    assert_eq!(json["gm_own_s"].as_f64(), Some(o.gm_s));
+    assert_eq!(json["rm_ohm"].as_f64(), Some(35.0));
+    assert_eq!(json["target_ohm"].as_f64(), Some(5.0 * 35.0));
+    assert_eq!(json["cl_nominal_f"].as_f64(), Some(12e-12));
+    assert_eq!(json["pulling"]["cl_f"].as_array().unwrap().len(), json["pulling"]["pull_ppm"].as_array().unwrap().len());
+    let e = &json["envelope"];
+    assert_eq!(e["t_s"].as_array().unwrap().len(), e["im_a"].as_array().unwrap().len());
+    assert_eq!(e["t_s"].as_array().unwrap().len(), e["im_linear_a"].as_array().unwrap().len());
+    assert!(json["envelope_withheld"].is_null());
+}

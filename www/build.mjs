@@ -34,6 +34,7 @@ const SCRIPTS = [
   'js/panels/swing.js',
   'js/panels/spread.js',
   'js/panels/chain.js',
+  'js/panels/crystal.js',
   'js/embed.js',
   'js/documents.js',
   'js/sheet.js',

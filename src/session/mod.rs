@@ -294,6 +294,15 @@ impl Document {
         self.crystal_with(crate::analysis::crystal::analyse_small_signal)
     }
 
+    /// The Crystal panel's curves around the oscillator `o` (`crystal`'s report of
+    /// this document): they pass through its figures.
+    pub fn crystal_curves(&self, o: &crate::analysis::crystal::Oscillator) -> Result<crate::analysis::crystal::Curves> {
+        let part = self.part.as_ref().ok_or_else(|| missing(&F::PART, "the oscillator needs the part"))?;
+        let crystal = self.crystal.as_ref().ok_or_else(|| missing(&F::CRYSTAL, "the oscillator needs the crystal's figures"))?;
+        let oscillator = self.oscillator.as_ref().ok_or_else(|| missing(&F::OSCILLATOR, "the oscillator needs the circuit around the part"))?;
+        crate::analysis::crystal::curves(&part.to_core(), &crystal.to_core(), &oscillator.to_core(), o).map_err(located_in_oscillator)
+    }
+
     fn crystal_with(&self, analyse: CrystalAnalysis) -> Result<crate::analysis::crystal::Oscillator> {
         let part = self.part.as_ref().ok_or_else(|| missing(&F::PART, "the oscillator needs the part"))?;
         let crystal = self.crystal.as_ref().ok_or_else(|| missing(&F::CRYSTAL, "the oscillator needs the crystal's figures"))?;

@@ -16,7 +16,7 @@ mod stability;
 mod swing;
 
 pub use chain::{stage_block_from, ChainReport, StageBlock};
-pub use crystal::CrystalReport;
+pub use crystal::{CrystalCurves, CrystalReport};
 pub use design::DesignReport;
 pub use fields::FieldsOut;
 pub use health::{FindingOut, HealthOut};

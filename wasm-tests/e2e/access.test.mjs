@@ -24,7 +24,7 @@ let browser;
 before(async () => { browser = await launch(); await clearStorage(browser.context); });
 after(async () => { await browser.close(); });
 
-const PANELS = ['brief', 'part', 'stage', 'response', 'loop', 'swing', 'spread', 'chain', 'bench'];
+const PANELS = ['brief', 'part', 'stage', 'response', 'loop', 'swing', 'spread', 'chain', 'crystal', 'bench'];
 
 // In the page: marks the interactive elements of `root` (data-ax = an index) and audits
 // what shows — contrast of text, the unfocused look of each control, raw numbers.

@@ -10,7 +10,7 @@ import { launch, watch, ready, clearStorage, PAGE_PATH, PAGE_URL } from './brows
 
 const here = path.dirname(PAGE_PATH);
 const DEMO = JSON.parse(fs.readFileSync(path.resolve(here, '..', 'src', 'doc', 'demo.halfrail.json'), 'utf8'));
-const PANELS = ['brief', 'part', 'stage', 'response', 'loop', 'swing', 'spread', 'chain', 'bench'];
+const PANELS = ['brief', 'part', 'stage', 'response', 'loop', 'swing', 'spread', 'chain', 'crystal', 'bench'];
 const MARKUP = '<img src=x onerror="window.pwned=(window.pwned||0)+1"><b id=bold>b</b>';
 
 let browser;

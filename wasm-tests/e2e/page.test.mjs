@@ -100,7 +100,7 @@ test('every panel has an anchor and is reachable from the keyboard', async () =>
   assert.equal(await page.locator('#panel-loop').isVisible(), true);
   const names = await page.locator('#rail a').allTextContents();
   assert.deepEqual(names.map((n) => n.replace(' · soon', '')),
-    ['Brief', 'Part', 'Stage', 'Response', 'Loop', 'Swing', 'Spread', 'Chain', 'Bench']);
+    ['Brief', 'Part', 'Stage', 'Response', 'Loop', 'Swing', 'Spread', 'Chain', 'Crystal', 'Bench']);
   const bench = page.locator('#rail a[href="#bench"]');
   await bench.focus();
   await page.keyboard.press('Enter');

@@ -4,7 +4,7 @@
 
 (() => {
   const { el } = HR.ui;
-  const ORDER = ['brief', 'part', 'stage', 'response', 'loop', 'swing', 'spread', 'chain', 'bench'];
+  const ORDER = ['brief', 'part', 'stage', 'response', 'loop', 'swing', 'spread', 'chain', 'crystal', 'bench'];
   const DEFAULT_PANEL = 'part';
   const mounted = new Map();
 

@@ -344,3 +344,27 @@ pub fn describing_impedance(circuit: &PierceCircuit, op: &OperatingPoint, f_hz: 
     }
     Ok(s.z)
 }
+
+/// Z_c(Im) at each of `ims` (rising, A) at `f_hz`: the describing function over
+/// amplitude, from one driven circuit, each amplitude settled from the one below
+/// (doubling towards it where the step is large, as `describing_impedance` does).
+pub fn describing_curve(circuit: &PierceCircuit, op: &OperatingPoint, f_hz: f64, ims: &[f64], vdd: f64) -> Result<Vec<Complex64>> {
+    let (netlist, source) = with_drive(circuit);
+    let op = operating_point(&netlist, Some(&carry_over(&circuit.netlist, &op.x, &netlist)))?;
+    let small = SmallSignal::at(&netlist, &op)?;
+    let transient = Transient::new(&netlist, source)?;
+    let driven = Driven { transient, bias: op.x.clone(), small, x: circuit.x, g: circuit.g, o: circuit.o };
+    let (at, mut s) = driven.at(f_hz, vdd)?;
+    let mut out = Vec::with_capacity(ims.len());
+    for &im_a in ims {
+        for _ in 0..MAX_DOUBLINGS {
+            if s.im >= im_a {
+                break;
+            }
+            let im = (2.0 * s.im).min(im_a);
+            s = driven.settle(&at, im, Some(&s))?;
+        }
+        out.push(if s.im > im_a { driven.settle(&at, im_a, Some(&s))?.z } else { s.z });
+    }
+    Ok(out)
+}

@@ -106,6 +106,21 @@ impl Linear {
         Variant { small: SmallSignal::of_matrices(self.small.layout.clone(), g, c, self.small.b.clone()), x: self.x, g: self.g }
     }
 
+    /// The circuit as it is but for the capacitors named `keys` (elements of
+    /// `circuit`, this one's) times `scale`, with or without C0.
+    pub fn capacitors_scaled(&self, circuit: &PierceCircuit, keys: &[&str], scale: f64, c0: bool) -> Variant {
+        let mut c = if c0 { self.small.c.clone() } else { self.c_without_c0.clone() };
+        for named in circuit.netlist.elements().iter().filter(|e| keys.contains(&e.name.as_str())) {
+            if let Element::Capacitor { a, b, farads } = named.element {
+                for (r, col, v) in admittance(&self.small.layout, a, b, farads) {
+                    c[(r, col)] += (scale - 1.0) * v;
+                }
+            }
+        }
+        let small = SmallSignal::of_matrices(self.small.layout.clone(), self.small.g.clone(), c, self.small.b.clone());
+        Variant { small, x: self.x, g: self.g }
+    }
+
     /// The circuit as it is.
     pub fn nominal(&self) -> Variant {
         self.variant(1.0, true, true)

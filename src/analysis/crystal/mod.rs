@@ -7,13 +7,15 @@
 
 mod bvd;
 mod critical;
+mod curves;
 mod drive;
 mod frequency;
 mod linear;
 
 pub use bvd::{cm_from_trim, Bvd, Datasheet, Motional};
 pub use critical::{critical_scale, margin_at};
-pub use drive::{describing_impedance, steady_drive, Drive};
+pub use curves::{curves, Curves, Envelope, GmSweep, Pulling};
+pub use drive::{describing_curve, describing_impedance, steady_drive, Drive};
 pub use frequency::oscillation;
 pub use linear::{Linear, Variant};
 

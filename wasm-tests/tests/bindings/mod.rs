@@ -98,7 +98,7 @@ fn formatting_and_facts() {
 fn documents_are_checked_the_same_as_natively() {
     let s = wasm::check_document(include_str!("../../../src/doc/demo.halfrail.json")).unwrap();
     assert_eq!(number(&s, "halfrail"), 1.0);
-    assert_eq!(Array::from(&get(&s, "sections")).length(), 7);
+    assert_eq!(Array::from(&get(&s, "sections")).length(), 9);
 }
 
 #[wasm_bindgen_test]
