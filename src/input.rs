@@ -97,6 +97,13 @@ pub enum TargetInput {
     MatchSource,
 }
 
+/// A value of the bench readings.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum BenchInput {
+    /// The choice of parameters to fit: a refusal there is answered by choosing fewer.
+    Fit,
+}
+
 /// One input the core names in a refusal.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
 pub enum Input {
@@ -106,4 +113,5 @@ pub enum Input {
     Stage(Component),
     Analysis(AnalysisInput),
     Target(TargetInput),
+    Bench(BenchInput),
 }

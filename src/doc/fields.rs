@@ -10,7 +10,7 @@
 use super::quantity::FieldUnit as U;
 use super::read::Key;
 use crate::error::FieldError;
-use crate::input::{AnalysisInput, Component, Input, PartInput, Role, Section, TargetInput};
+use crate::input::{AnalysisInput, BenchInput, Component, Input, PartInput, Role, Section, TargetInput};
 
 /// One field of the document.
 #[derive(Debug)]
@@ -277,6 +277,7 @@ pub fn of(input: Input) -> &'static Field {
             TargetInput::ResistorMax => &TARGET_R_MAX,
             TargetInput::MatchSource => &TARGET_MATCH_SOURCE,
         },
+        Input::Bench(BenchInput::Fit) => &BENCH_FIT,
     }
 }
 
@@ -322,6 +323,7 @@ mod tests {
             Input::Analysis(AnalysisInput::Level),
             Input::Target(TargetInput::LowCorner),
             Input::Section(Section::Bench),
+            Input::Bench(BenchInput::Fit),
         ]);
         for input in inputs {
             assert!(paths.contains(&of(input).path()), "{input:?}");

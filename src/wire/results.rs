@@ -10,7 +10,7 @@
 use crate::math;
 use serde::{Serialize, Serializer};
 
-use crate::analysis::{BareCurve, BarePoint, Bias, Fit, Fitted, LoopPoint, Residual, Response, StageBias, Warning, Window};
+use crate::analysis::{BareCurve, BarePoint, Bias, Fit, Fitted, Judgement, LoopPoint, Reading, Residual, Response, StageBias, Warning, Window};
 use crate::error::FieldError;
 use crate::part::{Model, Part, Preset};
 use crate::units::{voltage_ratio_db, Levels, Mismatch, Unit};
@@ -405,15 +405,37 @@ struct FittedDef {
     name: &'static str,
     value: f64,
     sigma: f64,
+    rounded: f64,
+}
+
+#[derive(Serialize)]
+#[serde(remote = "Reading")]
+struct ReadingDef {
+    #[serde(rename = "reading")]
+    words: String,
+    unit: &'static str,
 }
 
 #[derive(Serialize)]
 #[serde(remote = "Residual")]
 struct ResidualDef {
-    reading: String,
+    #[serde(flatten, with = "ReadingDef")]
+    reading: Reading,
     measured: f64,
     fitted: f64,
     normalized: f64,
+}
+
+#[derive(Serialize)]
+#[serde(remote = "Judgement")]
+struct JudgementDef {
+    reduced_chi2: Option<f64>,
+    reduced_bound: Option<f64>,
+    worst: Option<usize>,
+    disagreeing: Vec<usize>,
+    loose: Vec<&'static str>,
+    poor: bool,
+    text: String,
 }
 
 #[derive(Serialize)]
@@ -421,16 +443,21 @@ struct ResidualDef {
 struct FitDef {
     #[serde(serialize_with = "part")]
     part: Part,
+    #[serde(serialize_with = "part", rename = "part_rounded")]
+    rounded: Part,
     #[serde(serialize_with = "list::<FittedDef, _, _>")]
     parameters: Vec<Fitted>,
     #[serde(serialize_with = "list::<ResidualDef, _, _>")]
     residuals: Vec<Residual>,
     chi2: f64,
     dof: usize,
+    #[serde(with = "JudgementDef")]
+    judgement: Judgement,
     evaluations: usize,
 }
 
-/// A fit to bench readings: the fitted part, each parameter's uncertainty, the residuals.
+/// A fit to bench readings: the fitted part (and rounded to its uncertainty, to
+/// write down), each parameter's uncertainty, the residuals and the judgement.
 #[derive(Serialize)]
 #[serde(transparent)]
 pub struct FitOut<'a>(#[serde(with = "FitDef")] pub &'a Fit);
