@@ -457,10 +457,49 @@ struct FitDef {
 }
 
 /// A fit to bench readings: the fitted part (and rounded to its uncertainty, to
-/// write down), each parameter's uncertainty, the residuals and the judgement.
-#[derive(Serialize)]
-#[serde(transparent)]
-pub struct FitOut<'a>(#[serde(with = "FitDef")] pub &'a Fit);
+/// write down), each parameter's uncertainty, the residuals, the judgement, and
+/// `fitted_fields`: the part's fields the fit set, rounded — what the page's "Use
+/// this part" writes, leaving every field not fitted as the user typed it.
+pub struct FitOut<'a>(pub &'a Fit);
+
+impl Serialize for FitOut<'_> {
+    fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        #[derive(Serialize)]
+        struct Keys<'a> {
+            #[serde(flatten, with = "FitDef")]
+            fit: &'a Fit,
+            fitted_fields: FittedFields<'a>,
+        }
+        Keys { fit: self.0, fitted_fields: FittedFields(self.0) }.serialize(s)
+    }
+}
+
+/// The rounded part's fields that the fitted parameters are, in document keys.
+struct FittedFields<'a>(&'a Fit);
+
+impl Serialize for FittedFields<'_> {
+    fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        use crate::analysis::Param;
+        use serde::ser::SerializeMap;
+        let k = PartKeys::from(PartOut(&self.0.rounded));
+        let mut map = s.serialize_map(None)?;
+        for p in &self.0.parameters {
+            let fields: &[(&str, f64)] = match Param::from_name(p.name) {
+                Some(Param::Kn) => &[("kn_a_per_v2", k.kn_a_per_v2)],
+                Some(Param::Kp) => &[("kp_a_per_v2", k.kp_a_per_v2)],
+                Some(Param::Vtn) => &[("vtn_v", k.vtn_v)],
+                Some(Param::Vtp) => &[("vtp_v", k.vtp_v)],
+                Some(Param::Lambda) => &[("lambda_n_per_v", k.lambda_n_per_v), ("lambda_p_per_v", k.lambda_p_per_v)],
+                Some(Param::Cap) => &[("cgs_f", k.cgs_f), ("cgd_f", k.cgd_f), ("cdb_f", k.cdb_f)],
+                None => &[],
+            };
+            for (key, value) in fields {
+                map.serialize_entry(key, value)?;
+            }
+        }
+        map.end()
+    }
+}
 
 #[derive(Serialize)]
 #[serde(remote = "Preset")]
