@@ -77,7 +77,7 @@ test('the fit is judged: a good one says so with its χ², a poor one names the 
   await fit(page);
   assert.match(await verdict(page).textContent(), /^Good fit: χ²\/dof = \d+\.\d\d for 1 degree of freedom/);
   assert.equal(await verdict(page).getAttribute('data-poor'), 'false');
-  assert.match(await panel(page).locator('dd[data-key="chi2"]').textContent(), /^\d+\.\d\d \(a fit within the readings’ uncertainty stays under 6\.58\)$/);
+  assert.match(await panel(page).locator('dd[data-key="chi2"]').textContent(), /^\d+\.\d\d \(a good fit: under 6\.58\)$/);
   assert.match(await panel(page).locator('dd[data-key="worst"]').textContent(), /^gain at .+, [+−]\d+\.\d\dσ$/);
   assert.equal(await panel(page).locator('dd[data-key="loose"]').textContent(), 'none');
   // A fourth gain reading far off the others: the fit is poor, and says which reading.

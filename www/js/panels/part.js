@@ -268,7 +268,7 @@
       verdict.className = `verdict ${j.poor ? 'warning' : 'ok'}`;
       verdict.dataset.poor = String(j.poor);
       judged.chi2.textContent = j.reduced_chi2 === null ? 'none (as many readings as parameters)'
-        : `${HR.fixed(j.reduced_chi2, 2)} (a fit within the readings’ uncertainty stays under ${HR.fixed(j.reduced_bound, 2)})`;
+        : `${HR.fixed(j.reduced_chi2, 2)} (a good fit: under ${HR.fixed(j.reduced_bound, 2)})`;
       const w = j.worst === null ? null : r.ok.residuals[j.worst];
       judged.worst.textContent = w ? `${w.reading}, ${sigmas(w.normalized)}σ` : '—';
       judged.loose.textContent = j.loose.length ? j.loose.join(', ') : 'none';
