@@ -10,7 +10,7 @@
 use crate::math;
 use serde::{Serialize, Serializer};
 
-use crate::analysis::{BareCurve, BarePoint, Bias, Fit, Fitted, Judgement, LoopPoint, Reading, Residual, Response, StageBias, Warning, Window};
+use crate::analysis::{BareCurve, BarePoint, Bias, Fit, Fitted, Judgement, LoopPoint, Response, StageBias, Warning, Window};
 use crate::error::FieldError;
 use crate::part::{Model, Part, Preset};
 use crate::units::{voltage_ratio_db, Levels, Mismatch, Unit};
@@ -408,19 +408,11 @@ struct FittedDef {
     rounded: f64,
 }
 
+/// One reading against the fitted part, its words and unit beside its figures.
 #[derive(Serialize)]
-#[serde(remote = "Reading")]
-struct ReadingDef {
-    #[serde(rename = "reading")]
-    words: String,
+struct ResidualKeys<'a> {
+    reading: &'a str,
     unit: &'static str,
-}
-
-#[derive(Serialize)]
-#[serde(remote = "Residual")]
-struct ResidualDef {
-    #[serde(flatten, with = "ReadingDef")]
-    reading: Reading,
     measured: f64,
     fitted: f64,
     normalized: f64,
@@ -438,39 +430,47 @@ struct JudgementDef {
     text: String,
 }
 
-#[derive(Serialize)]
-#[serde(remote = "Fit")]
-struct FitDef {
-    #[serde(serialize_with = "part")]
-    part: Part,
-    #[serde(serialize_with = "part", rename = "part_rounded")]
-    rounded: Part,
-    #[serde(serialize_with = "list::<FittedDef, _, _>")]
-    parameters: Vec<Fitted>,
-    #[serde(serialize_with = "list::<ResidualDef, _, _>")]
-    residuals: Vec<Residual>,
-    chi2: f64,
-    dof: usize,
-    #[serde(with = "JudgementDef")]
-    judgement: Judgement,
-    evaluations: usize,
-}
-
 /// A fit to bench readings: the fitted part (and rounded to its uncertainty, to
 /// write down), each parameter's uncertainty, the residuals, the judgement, and
 /// `fitted_fields`: the part's fields the fit set, rounded — what the page's "Use
 /// this part" writes, leaving every field not fitted as the user typed it.
 pub struct FitOut<'a>(pub &'a Fit);
 
+#[derive(Serialize)]
+struct FitKeys<'a> {
+    part: PartOut<'a>,
+    part_rounded: PartOut<'a>,
+    #[serde(serialize_with = "list::<FittedDef, _, _>")]
+    parameters: &'a [Fitted],
+    residuals: Vec<ResidualKeys<'a>>,
+    chi2: f64,
+    dof: usize,
+    #[serde(with = "JudgementDef")]
+    judgement: &'a Judgement,
+    evaluations: usize,
+    fitted_fields: FittedFields<'a>,
+}
+
 impl Serialize for FitOut<'_> {
     fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
-        #[derive(Serialize)]
-        struct Keys<'a> {
-            #[serde(flatten, with = "FitDef")]
-            fit: &'a Fit,
-            fitted_fields: FittedFields<'a>,
+        let f = self.0;
+        let residuals = f
+            .residuals
+            .iter()
+            .map(|r| ResidualKeys { reading: &r.reading.words, unit: r.reading.unit, measured: r.measured, fitted: r.fitted, normalized: r.normalized })
+            .collect();
+        FitKeys {
+            part: PartOut(&f.part),
+            part_rounded: PartOut(&f.rounded),
+            parameters: &f.parameters,
+            residuals,
+            chi2: f.chi2,
+            dof: f.dof,
+            judgement: &f.judgement,
+            evaluations: f.evaluations,
+            fitted_fields: FittedFields(f),
         }
-        Keys { fit: self.0, fitted_fields: FittedFields(self.0) }.serialize(s)
+        .serialize(s)
     }
 }
 
@@ -682,7 +682,6 @@ impl Remote<Warning> for WarningDef { fn write<S: Serializer>(v: &Warning, s: S)
 impl Remote<BarePoint> for BarePointDef { fn write<S: Serializer>(v: &BarePoint, s: S) -> Result<S::Ok, S::Error> { BarePointDef::serialize(v, s) } }
 impl Remote<LoopPoint> for LoopPointDef { fn write<S: Serializer>(v: &LoopPoint, s: S) -> Result<S::Ok, S::Error> { LoopPointDef::serialize(v, s) } }
 impl Remote<Fitted> for FittedDef { fn write<S: Serializer>(v: &Fitted, s: S) -> Result<S::Ok, S::Error> { FittedDef::serialize(v, s) } }
-impl Remote<Residual> for ResidualDef { fn write<S: Serializer>(v: &Residual, s: S) -> Result<S::Ok, S::Error> { ResidualDef::serialize(v, s) } }
 impl Remote<Preset> for PresetDef { fn write<S: Serializer>(v: &Preset, s: S) -> Result<S::Ok, S::Error> { PresetDef::serialize(v, s) } }
 
 /// `items`, each written by its remote definition `D`.
