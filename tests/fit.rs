@@ -3,7 +3,7 @@
 //! readings that cannot determine a parameter are refused; the judgement of a fit
 //! against χ² worked by hand and against a reading put off by a known number of σ.
 
-use halfrail::analysis::{chi2_bound, default_params, fit, predict, round_to_uncertainty, Param, Readings, DISAGREE_SIGMAS};
+use halfrail::analysis::{chi2_bound, default_params, fit, judge, predict, round_to_uncertainty, Fitted, Param, Reading, Readings, Residual, DISAGREE_SIGMAS};
 use halfrail::part::{preset, Part};
 use rand_chacha::ChaCha8Rng;
 
@@ -265,4 +265,31 @@ fn a_refusal_the_choice_answers_names_bench_fit() {
     assert_eq!(halfrail::doc::load(&doc.to_string()).unwrap().bench_params().unwrap(), ["kn", "kp", "lambda", "cap"]);
     doc["bench"]["fit"] = serde_json::json!(["kp", "lambda"]);
     assert_eq!(halfrail::doc::load(&doc.to_string()).unwrap().bench_params().unwrap(), ["kp", "lambda"]);
+}
+
+#[test]
+fn the_judgement_names_loose_parameters_and_says_when_nothing_checks_the_fit() {
+    let residual = |words: &str, normalized: f64| Residual { reading: Reading { words: words.into(), unit: "V" }, measured: 1.0, fitted: 1.0, normalized };
+    let param = |name, value, sigma| Fitted { name, value, sigma, rounded: value };
+    let readings = [residual("bias voltage", 0.4), residual("Vout at Vin = 1.000 V", -1.2), residual("Vout at Vin = 2.000 V", 0.9)];
+    // σ above the value for kp alone (σ equal to the value is not above it).
+    let params = [param("kn", 2e-3, 2e-3), param("kp", 1e-3, 3e-3)];
+    let chi2 = 0.16 + 1.44 + 0.81;
+    let j = judge(&readings, &params, chi2, 1);
+    assert_eq!(j.loose, ["kp"]);
+    assert!(!j.poor && j.worst == Some(1), "{}", j.text);
+    assert_eq!(
+        j.text,
+        "Good fit: χ²/dof = 2.41 for 1 degree of freedom, where readings within their bench uncertainty stay under 6.58; \
+         the furthest reading is Vout at Vin = 1.000 V (−1.2σ). The readings barely set kp: its uncertainty exceeds its value; \
+         add readings that depend on it, or hold it at the part's value."
+    );
+    // As many readings as parameters: no χ² to judge by, and the text says so.
+    let j = judge(&readings[..2], &params, 0.0, 0);
+    assert_eq!((j.reduced_chi2, j.poor), (None, false));
+    assert!(j.text.starts_with("As many readings as parameters"), "{}", j.text);
+    // One reading beyond 3σ makes a fit poor whatever its χ².
+    let j = judge(&[residual("supply current", 3.2), residual("bias voltage", 0.1)], &params[..1], 10.25, 40);
+    assert!(j.poor && j.disagreeing == [0], "{}", j.text);
+    assert!(j.text.starts_with("Poor fit: supply current (+3.2σ) disagrees with the fitted part"), "{}", j.text);
 }

@@ -540,8 +540,12 @@ fn judgement_text(
         format!("Good fit: {scatter}{w}.")
     };
     if !loose.is_empty() {
-        let (who, its) = if loose.len() == 1 { (loose[0].to_string(), "its uncertainty exceeds its value") } else { (loose.join(", "), "each one's uncertainty exceeds its value") };
-        text.push_str(&format!(" The readings barely set {who}: {its}; add readings that depend on it, or hold it at the part's value."));
+        let said = if loose.len() == 1 {
+            format!("{}: its uncertainty exceeds its value; add readings that depend on it, or hold it at the part's value", loose[0])
+        } else {
+            format!("{}: each one's uncertainty exceeds its value; add readings that depend on them, or hold them at the part's values", loose.join(", "))
+        };
+        text.push_str(&format!(" The readings barely set {said}."));
     }
     text
 }

@@ -90,6 +90,14 @@ test('the fit is judged: a good one says so with its χ², a poor one names the 
   assert.match(await panel(page).locator('dd[data-key="worst"]').textContent(), /^gain at 1\.000 MHz, −\d+\.\d\dσ$/);
   const flagged = panel(page).locator('table').filter({ hasText: 'Each reading against' }).locator('tbody tr.disagree th');
   assert.ok((await flagged.allTextContents()).includes('gain at 1.000 MHz'), 'its row is marked');
+  // Gains at two nearby low frequencies barely depend on the capacitance: its
+  // uncertainty exceeds its value, and the page says so.
+  await gains.fill('100 kHz, 17.8\n200 kHz, 17.7');
+  await fit(page);
+  await page.waitForFunction(() => document.querySelector('#panel-part dd[data-key="loose"]').textContent === 'cap');
+  assert.match(await verdict(page).textContent(), /The readings barely set cap: its uncertainty exceeds its value/);
+  assert.match(await panel(page).locator('table').filter({ hasText: 'Fitted parameters' }).locator('tbody tr').last().locator('.loose').textContent(),
+    /\(above the value\)$/);
   assert.deepEqual(seen.errors, []);
   await page.close();
 });
