@@ -36,12 +36,11 @@
     } }, 'Load preset');
     let shownFor = null;
     const follow = () => {
-      let doc = null;
-      try { doc = JSON.parse(HR.design.text()); } catch (e) { doc = null; }
-      const part = doc && JSON.stringify({ halfrail: doc.halfrail, part: doc.part });
+      // A document of the part alone: an error elsewhere in the design does not hide a preset.
+      const part = JSON.stringify({ halfrail: HR.design.section('halfrail'), part: HR.design.section('part') });
       if (part === shownFor) return;
       shownFor = part;
-      const r = part ? HR.call('presetOf', part) : { error: true };
+      const r = HR.call('presetOf', part);
       const id = !r.error && r.ok ? r.ok : CUSTOM;
       pick.select.value = id;
       pick.select.dataset.matches = id;
