@@ -180,11 +180,19 @@
   // shows under them and flags the box to untick.
   const paramChoice = () => {
     let defaults = [];
+    let askedFor = null;
     const chosen = () => {
       const explicit = HR.design.get('bench', 'fit');
       if (Array.isArray(explicit)) return explicit;
-      const r = HR.call('benchParams', HR.design.text());
-      if (r.ok) defaults = r.ok;
+      // Asked again only when the readings change, of a document of them alone: an
+      // error elsewhere in the design does not hide what they determine.
+      const bench = JSON.stringify({ halfrail: HR.design.section('halfrail'), bench: HR.design.section('bench') });
+      if (bench !== askedFor) {
+        askedFor = bench;
+        const r = HR.call('benchParams', bench);
+        if (r.ok) defaults = r.ok;
+        else if (!HR.design.section('bench')) defaults = [];
+      }
       return defaults;
     };
     const { label } = HR.field('bench', 'fit');
