@@ -99,6 +99,13 @@ pub enum TargetInput {
     MatchSource,
 }
 
+/// A value of the bench readings.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
+pub enum BenchInput {
+    /// The choice of parameters to fit: a refusal there is answered by choosing fewer.
+    Fit,
+}
+
 /// The parts of the Pierce oscillator around the part and its crystal (SPEC §3.5),
 /// as the circuit's elements: an engine message naming one names its field.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Hash)]
@@ -127,4 +134,5 @@ pub enum Input {
     Analysis(AnalysisInput),
     Target(TargetInput),
     Oscillator(OscillatorPart),
+    Bench(BenchInput),
 }

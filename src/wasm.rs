@@ -206,6 +206,21 @@ pub fn bench_fit(text: &str) -> Result<JsValue, JsValue> {
     to_js(&wire::FitOut(&doc::load(text).and_then(|d| d.bench_fit()).map_err(thrown)?))
 }
 
+/// The names of the parameters the bench fit would move (the document's choice,
+/// else what its readings determine): the page ticks their boxes.
+#[wasm_bindgen(js_name = benchParams)]
+pub fn bench_params(text: &str) -> Result<Vec<String>, JsValue> {
+    let names = doc::load(text).and_then(|d| d.bench_params()).map_err(thrown)?;
+    Ok(names.into_iter().map(String::from).collect())
+}
+
+/// The id of the preset the document's part is, field for field, if it is one.
+#[wasm_bindgen(js_name = presetOf)]
+pub fn preset_of(text: &str) -> Result<Option<String>, JsValue> {
+    let document = doc::load(text).map_err(thrown)?;
+    Ok(document.part.as_ref().and_then(|p| p.preset()).map(|p| p.id.to_string()))
+}
+
 /// The bare part's transfer curve alone (`points` from 0 to VDD).
 #[wasm_bindgen(js_name = transferCurve)]
 pub fn transfer_curve(text: &str, points: usize) -> Result<JsValue, JsValue> {

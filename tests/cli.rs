@@ -136,6 +136,19 @@ fn fit_prints_a_part_that_reads_back() {
     // The fitted part is a valid `part` section of a document.
     let doc = serde_json::json!({"halfrail": 1, "part": json["part"]});
     halfrail::doc::load(&doc.to_string()).unwrap();
+    // The judgement and the rounded values come with it: the demo's readings fit well,
+    // and kn is written to the digits its uncertainty supports.
+    let judgement = &json["judgement"];
+    assert_eq!(judgement["poor"], false);
+    assert!(judgement["text"].as_str().unwrap().starts_with("Good fit: χ²/dof = "), "{judgement}");
+    assert!(judgement["reduced_chi2"].as_f64().unwrap() < judgement["reduced_bound"].as_f64().unwrap());
+    let kn = &json["parameters"][0];
+    let rounded = halfrail::analysis::round_to_uncertainty(kn["value"].as_f64().unwrap(), kn["sigma"].as_f64().unwrap());
+    assert_eq!(kn["rounded"].as_f64(), Some(rounded));
+    assert_eq!(json["part_rounded"]["kn_a_per_v2"].as_f64(), Some(rounded));
+    let fields: Vec<&String> = json["fitted_fields"].as_object().unwrap().keys().collect();
+    assert_eq!(fields, ["cdb_f", "cgd_f", "cgs_f", "kn_a_per_v2", "kp_a_per_v2", "lambda_n_per_v", "lambda_p_per_v"], "read back in key order");
+    assert!(json["fitted_fields"]["kn_a_per_v2"].to_string().len() <= 8, "{}", json["fitted_fields"]);
 }
 
 #[test]

@@ -398,3 +398,26 @@ fn each_rule_between_fields_keeps_its_message() {
         assert_eq!(error_of(&edited(pointer, value)), expected, "{pointer}");
     }
 }
+
+#[test]
+fn a_part_is_its_preset_field_for_field() {
+    // Each preset as the page writes it (the wire's keys) reads back as that preset.
+    let presets: serde_json::Value = serde_json::from_str(&halfrail::wire::to_json(&halfrail::wire::PresetsOut(&halfrail::part::PRESETS))).unwrap();
+    for p in presets.as_array().unwrap() {
+        let text = serde_json::json!({ "halfrail": 1, "part": p["part"] }).to_string();
+        let part = load(&text).unwrap().part.unwrap();
+        assert_eq!(part.preset().map(|x| x.id), p["id"].as_str(), "{text}");
+    }
+    // Typed in another notation it is the same part; one field changed, or one added, it is custom.
+    let first = &presets[0]["part"];
+    let mut typed = first.clone();
+    typed["kn_a_per_v2"] = serde_json::json!(format!("{}m", first["kn_a_per_v2"].as_f64().unwrap() * 1e3));
+    let read = |part: &serde_json::Value| load(&serde_json::json!({ "halfrail": 1, "part": part }).to_string()).unwrap().part.unwrap().preset().map(|x| x.id);
+    assert_eq!(read(&typed), presets[0]["id"].as_str());
+    for (key, value) in [("kn_a_per_v2", serde_json::json!("1m")), ("pkg_max_w", serde_json::json!(0.5)), ("n_slope", serde_json::json!(1.5))] {
+        let mut changed = first.clone();
+        changed[key] = value;
+        assert_eq!(read(&changed), None, "{key}");
+    }
+    assert_eq!(load(DEMO).unwrap().part.unwrap().preset(), None, "the demo's part is its own");
+}

@@ -10,7 +10,7 @@
 use super::quantity::FieldUnit as U;
 use super::read::Key;
 use crate::error::FieldError;
-use crate::input::{AnalysisInput, Component, Input, OscillatorPart, PartInput, Role, Section, TargetInput};
+use crate::input::{AnalysisInput, BenchInput, Component, Input, OscillatorPart, PartInput, Role, Section, TargetInput};
 
 /// One field of the document.
 #[derive(Debug)]
@@ -308,6 +308,7 @@ pub fn of(input: Input) -> &'static Field {
             TargetInput::ResistorMax => &TARGET_R_MAX,
             TargetInput::MatchSource => &TARGET_MATCH_SOURCE,
         },
+        Input::Bench(BenchInput::Fit) => &BENCH_FIT,
         Input::Oscillator(p) => oscillator(p),
     }
 }
@@ -368,6 +369,7 @@ mod tests {
             Input::Section(Section::Bench),
             Input::Section(Section::Crystal),
             Input::Section(Section::Oscillator),
+            Input::Bench(BenchInput::Fit),
         ]).chain(OscillatorPart::ALL.map(Input::Oscillator));
         for input in inputs {
             assert!(paths.contains(&of(input).path()), "{input:?}");

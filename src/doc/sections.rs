@@ -90,6 +90,14 @@ impl Part {
             pkg_max_w: f.quantity_in(F::PART_PKG_MAX.key, Range(Open(0.0), Closed(100.0))),
         }
     }
+
+    /// The preset this part is, field for field as read (a value typed as `6m` is
+    /// the preset's 0.006), if it is one: the page says a part is custom otherwise.
+    pub fn preset(&self) -> Option<&'static crate::part::Preset> {
+        let bare = self.pkg_max_w.is_none() && (self.model == Model::Ekv || self.n_slope == TYPICAL_SLOPE);
+        let core = self.to_core();
+        crate::part::PRESETS.iter().find(|p| bare && p.part == core)
+    }
 }
 
 /// The `stage` section: the components it fits, each key a component's

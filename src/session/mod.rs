@@ -283,6 +283,13 @@ impl Document {
         gain_and_noise(&at_field(lin.at(analysis.f_design_hz, &stage))?, missing)
     }
 
+    /// The names of the parameters the bench fit moves: those `bench.fit` names,
+    /// else those the readings determine.
+    pub fn bench_params(&self) -> Result<Vec<&'static str>> {
+        let bench = self.bench.as_ref().ok_or_else(|| missing(&F::BENCH, "a fit needs the bench readings"))?;
+        Ok(bench.params(&bench.readings()?).into_iter().map(crate::analysis::Param::name).collect())
+    }
+
     /// The part as a Pierce crystal oscillator (SPEC §3.5): the `crystal` and
     /// `oscillator` sections around the part.
     pub fn crystal(&self) -> Result<crate::analysis::crystal::Oscillator> {

@@ -10,7 +10,7 @@
 use crate::math;
 use serde::{Serialize, Serializer};
 
-use crate::analysis::{BareCurve, BarePoint, Bias, Fit, Fitted, LoopPoint, Residual, Response, StageBias, Warning, Window};
+use crate::analysis::{BareCurve, BarePoint, Bias, Fit, Fitted, Judgement, LoopPoint, Response, StageBias, Warning, Window};
 use crate::error::FieldError;
 use crate::part::{Model, Part, Preset};
 use crate::units::{voltage_ratio_db, Levels, Mismatch, Unit};
@@ -405,35 +405,101 @@ struct FittedDef {
     name: &'static str,
     value: f64,
     sigma: f64,
+    rounded: f64,
 }
 
+/// One reading against the fitted part, its words and unit beside its figures.
 #[derive(Serialize)]
-#[serde(remote = "Residual")]
-struct ResidualDef {
-    reading: String,
+struct ResidualKeys<'a> {
+    reading: &'a str,
+    unit: &'static str,
     measured: f64,
     fitted: f64,
     normalized: f64,
 }
 
 #[derive(Serialize)]
-#[serde(remote = "Fit")]
-struct FitDef {
-    #[serde(serialize_with = "part")]
-    part: Part,
-    #[serde(serialize_with = "list::<FittedDef, _, _>")]
-    parameters: Vec<Fitted>,
-    #[serde(serialize_with = "list::<ResidualDef, _, _>")]
-    residuals: Vec<Residual>,
-    chi2: f64,
-    dof: usize,
-    evaluations: usize,
+#[serde(remote = "Judgement")]
+struct JudgementDef {
+    reduced_chi2: Option<f64>,
+    reduced_bound: Option<f64>,
+    worst: Option<usize>,
+    disagreeing: Vec<usize>,
+    loose: Vec<&'static str>,
+    poor: bool,
+    text: String,
 }
 
-/// A fit to bench readings: the fitted part, each parameter's uncertainty, the residuals.
+/// A fit to bench readings: the fitted part (and rounded to its uncertainty, to
+/// write down), each parameter's uncertainty, the residuals, the judgement, and
+/// `fitted_fields`: the part's fields the fit set, rounded — what the page's "Use
+/// this part" writes, leaving every field not fitted as the user typed it.
+pub struct FitOut<'a>(pub &'a Fit);
+
 #[derive(Serialize)]
-#[serde(transparent)]
-pub struct FitOut<'a>(#[serde(with = "FitDef")] pub &'a Fit);
+struct FitKeys<'a> {
+    part: PartOut<'a>,
+    part_rounded: PartOut<'a>,
+    #[serde(serialize_with = "list::<FittedDef, _, _>")]
+    parameters: &'a [Fitted],
+    residuals: Vec<ResidualKeys<'a>>,
+    chi2: f64,
+    dof: usize,
+    #[serde(with = "JudgementDef")]
+    judgement: &'a Judgement,
+    evaluations: usize,
+    fitted_fields: FittedFields<'a>,
+}
+
+impl Serialize for FitOut<'_> {
+    fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        let f = self.0;
+        let residuals = f
+            .residuals
+            .iter()
+            .map(|r| ResidualKeys { reading: &r.reading.words, unit: r.reading.unit, measured: r.measured, fitted: r.fitted, normalized: r.normalized })
+            .collect();
+        FitKeys {
+            part: PartOut(&f.part),
+            part_rounded: PartOut(&f.rounded),
+            parameters: &f.parameters,
+            residuals,
+            chi2: f.chi2,
+            dof: f.dof,
+            judgement: &f.judgement,
+            evaluations: f.evaluations,
+            fitted_fields: FittedFields(f),
+        }
+        .serialize(s)
+    }
+}
+
+/// The rounded part's fields that the fitted parameters are, in document keys.
+struct FittedFields<'a>(&'a Fit);
+
+impl Serialize for FittedFields<'_> {
+    fn serialize<S: Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        use crate::analysis::Param;
+        use serde::ser::SerializeMap;
+        let k = PartKeys::from(PartOut(&self.0.rounded));
+        let mut map = s.serialize_map(None)?;
+        for p in &self.0.parameters {
+            let fields: &[(&str, f64)] = match Param::from_name(p.name) {
+                Some(Param::Kn) => &[("kn_a_per_v2", k.kn_a_per_v2)],
+                Some(Param::Kp) => &[("kp_a_per_v2", k.kp_a_per_v2)],
+                Some(Param::Vtn) => &[("vtn_v", k.vtn_v)],
+                Some(Param::Vtp) => &[("vtp_v", k.vtp_v)],
+                Some(Param::Lambda) => &[("lambda_n_per_v", k.lambda_n_per_v), ("lambda_p_per_v", k.lambda_p_per_v)],
+                Some(Param::Cap) => &[("cgs_f", k.cgs_f), ("cgd_f", k.cgd_f), ("cdb_f", k.cdb_f)],
+                None => &[],
+            };
+            for (key, value) in fields {
+                map.serialize_entry(key, value)?;
+            }
+        }
+        map.end()
+    }
+}
 
 #[derive(Serialize)]
 #[serde(remote = "Preset")]
@@ -616,7 +682,6 @@ impl Remote<Warning> for WarningDef { fn write<S: Serializer>(v: &Warning, s: S)
 impl Remote<BarePoint> for BarePointDef { fn write<S: Serializer>(v: &BarePoint, s: S) -> Result<S::Ok, S::Error> { BarePointDef::serialize(v, s) } }
 impl Remote<LoopPoint> for LoopPointDef { fn write<S: Serializer>(v: &LoopPoint, s: S) -> Result<S::Ok, S::Error> { LoopPointDef::serialize(v, s) } }
 impl Remote<Fitted> for FittedDef { fn write<S: Serializer>(v: &Fitted, s: S) -> Result<S::Ok, S::Error> { FittedDef::serialize(v, s) } }
-impl Remote<Residual> for ResidualDef { fn write<S: Serializer>(v: &Residual, s: S) -> Result<S::Ok, S::Error> { ResidualDef::serialize(v, s) } }
 impl Remote<Preset> for PresetDef { fn write<S: Serializer>(v: &Preset, s: S) -> Result<S::Ok, S::Error> { PresetDef::serialize(v, s) } }
 
 /// `items`, each written by its remote definition `D`.

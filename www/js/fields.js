@@ -17,6 +17,10 @@
 //                       its error after it
 //       options         a <select> of [value, text]; `fallback` is shown for no value
 //       tick            a checkbox labelled so: true when ticked, removed when not
+//       choices         a group of checkboxes, [value, text] each, under `label`: the
+//                       list of the values ticked, in the choices' order; an error
+//                       shows under the group and flags the one box whose value it
+//                       names as a word (the box to untick)
 //       compact         the field takes the grid's compact width
 //       origin          who changed the design (HR.design.set's origin)
 //       read(text)      the value to store for what is typed (default: it, trimmed)
@@ -54,7 +58,7 @@ HR.bind = (() => {
   };
 
   const widget = (path, opts) => {
-    const { label, hint, rows, id, aria, attrs = {}, options, fallback = '', tick, compact, value, commit, on = 'input' } = opts;
+    const { label, hint, rows, id, aria, attrs = {}, options, fallback = '', tick, choices, compact, value, commit, on = 'input' } = opts;
     const read = opts.read || (options ? (t) => t : trim);
     const write = opts.write || text;
     // Whether a text already stands for the stored value (as typed, or as written).
@@ -63,7 +67,30 @@ HR.bind = (() => {
     let wrap;
     let input;
     let show = () => {};
-    if (options) {
+    let boxes = [];
+    if (choices) {
+      const group = HR.ui.uid('choices');
+      const error = el('span', { class: 'error', id: `${group}-err`, 'aria-live': 'polite' });
+      show = (reason) => {
+        error.textContent = reason || '';
+        const word = (v) => new RegExp(`(^|[^\\w])${v.replace(/[^\w]/g, '\\$&')}($|[^\\w])`);
+        const named = reason ? boxes.filter((b) => word(b.value).test(reason)) : [];
+        for (const b of boxes) {
+          const flagged = named.length === 1 && named[0] === b;
+          b.setAttribute('aria-invalid', flagged ? 'true' : 'false');
+          b.parentElement.classList.toggle('flagged', flagged);
+        }
+      };
+      const ticked = () => boxes.filter((b) => b.checked).map((b) => b.value);
+      boxes = choices.map(([v]) => el('input', { type: 'checkbox', value: v, 'aria-describedby': `${group}-err`,
+        onchange: () => { show(null); commit(ticked()); } }));
+      const chosen = value() || [];
+      boxes.forEach((b) => { b.checked = chosen.includes(b.value); });
+      wrap = el('fieldset', { class: 'field choices' }, el('legend', {}, label),
+        el('div', { class: 'ticks' }, boxes.map((b, i) => el('label', { class: 'tick' }, b, ` ${choices[i][1]}`))),
+        hint ? el('span', { class: 'hint' }, hint) : null, error);
+      input = boxes[0];
+    } else if (options) {
       const c = choice({ label, options, value: write(value()) || fallback, onChange: (v) => commit(read(v)) });
       [wrap, input] = [c.wrap, c.select];
     } else if (tick) {
@@ -93,12 +120,15 @@ HR.bind = (() => {
     }
 
     const sync = () => {
-      if (tick) input.checked = value() === true;
+      if (choices) {
+        const chosen = value() || [];
+        boxes.forEach((b) => { b.checked = chosen.includes(b.value); });
+      } else if (tick) input.checked = value() === true;
       else if (options) input.value = write(value()) || fallback;
       else if (document.activeElement !== input && !showing(input.value)) input.value = write(value());
     };
     const binding = { path, wrap, input, show: (reason) => show(reason), errors: !options && !tick, sync };
-    bindings.set(input, binding);
+    for (const i of choices ? boxes : [input]) bindings.set(i, binding);
     return binding;
   };
 
@@ -109,8 +139,9 @@ HR.bind = (() => {
       commit: opts.commit || ((v) => HR.design.set(section, key, v, origin)) });
   };
 
-  // The bound fields within `scope`: those on the page, so a field removed is gone.
-  const within = (scope) => [...scope.querySelectorAll('input, textarea, select')].map((n) => bindings.get(n)).filter(Boolean);
+  // The bound fields within `scope`: those on the page, so a field removed is gone
+  // (a group of boxes is one field).
+  const within = (scope) => [...new Set([...scope.querySelectorAll('input, textarea, select')].map((n) => bindings.get(n)).filter(Boolean))];
 
   // Shows `error` (or none: null) at the field within `scope` it names, and clears the
   // others: the field of its exact path, else the nearest one holding it (a reading of

@@ -19,14 +19,35 @@
   };
   const POINTS = 501;
 
+  // The preset selector names the preset the design's part is, field for field (the
+  // core compares them as it reads them: `6m` is 0.006), and says "Custom part" once
+  // a field differs; it follows the part, not the rest of the design.
+  const CUSTOM = 'custom';
   const partCard = (problem) => {
     const presets = HR.presets();
     const pick = choice({ label: 'Preset (illustrative, not a datasheet)', value: presets[0].id,
-      options: presets.map((p) => [p.id, p.title]), onChange: () => {} });
+      options: [...presets.map((p) => [p.id, p.title]), [CUSTOM, 'Custom part (differs from every preset)']],
+      onChange: () => { load.disabled = pick.select.value === CUSTOM; } });
+    const custom = pick.select.querySelector(`option[value="${CUSTOM}"]`);
+    custom.disabled = true;
     const load = el('button', { type: 'button', onclick: () => {
       const p = presets.find((x) => x.id === pick.select.value);
-      HR.design.replace('part', JSON.parse(JSON.stringify(p.part)), `load “${p.title}”`);
+      if (p) HR.design.replace('part', JSON.parse(JSON.stringify(p.part)), `load “${p.title}”`);
     } }, 'Load preset');
+    let shownFor = null;
+    const follow = () => {
+      // A document of the part alone: an error elsewhere in the design does not hide a preset.
+      const part = JSON.stringify({ halfrail: HR.design.section('halfrail'), part: HR.design.section('part') });
+      if (part === shownFor) return;
+      shownFor = part;
+      const r = HR.call('presetOf', part);
+      const id = !r.error && r.ok ? r.ok : CUSTOM;
+      pick.select.value = id;
+      pick.select.dataset.matches = id;
+      load.disabled = id === CUSTOM;
+    };
+    HR.design.onChange(follow);
+    follow();
     const model = HR.bind('part', 'model', { label: HR.field('part', 'model').label, fallback: 'square-law',
       options: [['square-law', 'Square law (long channel)'], ['ekv', 'EKV (weak to strong inversion)']] });
     const fields = FIELDS.map((key) => compact('part', key));
@@ -146,17 +167,69 @@
     return HR.bind('bench', key, { label, hint, rows: 4, id: `area-bench-${key}`, read, write }).wrap;
   };
 
+  // The parameters the fit can move, as the core names them, with what each is.
+  const PARAMS = [['kn', 'kn'], ['kp', 'kp'], ['vtn', 'vtn'], ['vtp', 'vtp'],
+    ['lambda', 'lambda (both λ, one factor)'], ['cap', 'cap (the three capacitances, one factor)']];
+  const UNIT = { kn: ['', ' A/V²'], kp: ['', ' A/V²'], vtn: ['V', ''], vtp: ['V', ''], lambda: ['', ' 1/V'], cap: ['F', ''] };
+  // The significant digits of a number as JS writes it: the rounded values carry
+  // only the digits their uncertainty supports, and are shown with exactly those.
+  const digitsOf = (v) => String(Math.abs(v)).replace(/e.*$/, '').replace('.', '').replace(/^0+/, '').length || 1;
+
+  // Which parameters to fit: a box each, bound to bench.fit. Untouched, the boxes are
+  // what the readings determine (the core says which); a refusal the choice answers
+  // shows under them and flags the box to untick.
+  const paramChoice = () => {
+    let defaults = [];
+    let askedFor = null;
+    const chosen = () => {
+      const explicit = HR.design.get('bench', 'fit');
+      if (Array.isArray(explicit)) return explicit;
+      // Asked again only when the readings change, of a document of them alone: an
+      // error elsewhere in the design does not hide what they determine.
+      const bench = JSON.stringify({ halfrail: HR.design.section('halfrail'), bench: HR.design.section('bench') });
+      if (bench !== askedFor) {
+        askedFor = bench;
+        const r = HR.call('benchParams', bench);
+        if (r.ok) defaults = r.ok;
+        else if (!HR.design.section('bench')) defaults = [];
+      }
+      return defaults;
+    };
+    const { label } = HR.field('bench', 'fit');
+    return HR.bind('bench', 'fit', { label, choices: PARAMS, value: chosen,
+      hint: 'Unticked, a parameter is held at the part’s current value. Until you change them, the ticks are what the readings can determine.',
+      commit: (list) => {
+        const before = chosen();
+        const added = list.find((x) => !before.includes(x));
+        const removed = before.find((x) => !list.includes(x));
+        HR.design.setMany('bench', { fit: list }, added ? `fit ${added} too` : `hold ${removed} at the part’s value`);
+      } });
+  };
+
+  // The judgement's figures: χ²/dof against its bound, the furthest reading, the loose parameters.
+  const JUDGED = [['chi2', 'χ² per degree of freedom'], ['worst', 'Furthest reading'], ['loose', 'Uncertainty above the value']];
+
   const fitCard = (panel) => {
     const fields = BENCH.map((key) => compact('bench', key));
     const gains = area('gains', gainsFromText, gainsToText);
     const curve = area('curve', curveFromText, curveToText);
+    const choose = paramChoice();
     const message = el('p', { class: 'error', 'aria-live': 'polite' });
-    const params = table('Fitted parameters (±1σ from the Jacobian)', ['Parameter', 'Value', '±1σ']);
+    const params = table('Fitted parameters (±1σ from the Jacobian), to the digits their uncertainty supports', ['Parameter', 'Value', '±1σ']);
     const residuals = table('Each reading against the fitted part', ['Reading', 'Measured', 'Fitted', 'In σ']);
-    const results = el('div', { hidden: true }, el('div', { class: 'scroll' }, params.node), el('div', { class: 'scroll' }, residuals.node));
+    const verdict = el('p', { class: 'verdict', 'aria-live': 'polite' });
+    const judged = {};
+    const judgedList = el('dl', { class: 'readout judged' }, JUDGED.map(([k, text]) => {
+      judged[k] = el('dd', { 'data-key': k }, '—');
+      return el('div', {}, el('dt', {}, text), judged[k]);
+    }));
+    const results = el('div', { hidden: true }, verdict, judgedList,
+      el('div', { class: 'scroll' }, params.node), el('div', { class: 'scroll' }, residuals.node));
     let fitted = null;
+    // Writes only the fitted fields, rounded to their uncertainty, as one step: the
+    // rest of the part stays as typed.
     const use = el('button', { type: 'button', disabled: true, onclick: () => {
-      if (fitted) HR.design.replace('part', fitted, 'use the fitted part');
+      if (fitted) HR.design.setMany('part', fitted, 'use the fitted part');
     } }, 'Use this part');
     // The fit runs in a worker (a many-inverter EKV part takes long), with Cancel.
     let running = null;
@@ -174,13 +247,38 @@
       if (r.cancelled) return;
       const at = HR.bind.route(panel, r.error || null);
       message.textContent = r.error && !at ? HR.words(r.error) : '';
-      if (r.error) return;
-      fitted = r.ok.part;
+      if (r.error) {
+        // A refused fit has no result: the last one's part is not offered as this one's.
+        results.hidden = true;
+        use.disabled = true;
+        fitted = null;
+        return;
+      }
+      fitted = r.ok.fitted_fields;
       use.disabled = false;
-      const unitOf = { kn: 'A/V²', kp: 'A/V²', vtn: 'V', vtp: 'V', lambda: '1/V', cap: 'F' };
-      const show = (name, v) => (['vtn', 'vtp', 'cap'].includes(name) ? HR.fmt(v, name === 'cap' ? 'F' : 'V', 4) : `${HR.fmt(v, '', 4)} ${unitOf[name]}`);
-      fillRows(params.tbody, r.ok.parameters.map((p) => [p.name === 'cap' ? 'capacitance (sum)' : p.name, show(p.name, p.value), show(p.name, p.sigma)]));
-      fillRows(residuals.tbody, r.ok.residuals.map((x) => [x.reading, HR.fmt(x.measured, '', 4), HR.fmt(x.fitted, '', 4), HR.fixed(x.normalized, 2)]));
+      const show = (name, v, digits) => { const [unit, after] = UNIT[name]; return `${HR.fmt(v, unit, digits)}${after}`; };
+      const j = r.ok.judgement;
+      fillRows(params.tbody, r.ok.parameters.map((p) => {
+        const loose = j.loose.includes(p.name);
+        return [p.name === 'cap' ? 'capacitance (sum)' : p.name, show(p.name, p.rounded, digitsOf(p.rounded)),
+          loose ? el('span', { class: 'loose' }, `${show(p.name, p.sigma, 2)} (above the value)`) : show(p.name, p.sigma, 2)];
+      }));
+      const unitOf = (x) => (x.unit === 'V/V' ? ['', ' V/V'] : [x.unit, '']);
+      const reading = (x, v) => `${HR.fmt(v, unitOf(x)[0], 4)}${unitOf(x)[1]}`;
+      const sigmas = (v) => `${v >= 0 ? '+' : '−'}${HR.fixed(Math.abs(v), 2)}`;
+      fillRows(residuals.tbody, r.ok.residuals.map((x) => [x.reading, reading(x, x.measured), reading(x, x.fitted), sigmas(x.normalized)]));
+      [...residuals.tbody.rows].forEach((row, i) => {
+        row.classList.toggle('disagree', j.disagreeing.includes(i));
+        if (j.disagreeing.includes(i)) row.dataset.disagree = 'true';
+      });
+      verdict.textContent = j.text;
+      verdict.className = `verdict ${j.poor ? 'warning' : 'ok'}`;
+      verdict.dataset.poor = String(j.poor);
+      judged.chi2.textContent = j.reduced_chi2 === null ? 'none (as many readings as parameters)'
+        : `${HR.fixed(j.reduced_chi2, 2)} (a good fit: under ${HR.fixed(j.reduced_bound, 2)})`;
+      const w = j.worst === null ? null : r.ok.residuals[j.worst];
+      judged.worst.textContent = w ? `${w.reading}, ${sigmas(w.normalized)}σ` : '—';
+      judged.loose.textContent = j.loose.length ? j.loose.join(', ') : 'none';
       results.hidden = false;
       panel.dataset.fitted = String(Number(panel.dataset.fitted || 0) + 1);
     };
@@ -188,7 +286,7 @@
     const node = card('Bench fit',
       el('p', { class: 'intro' }, 'Readings you can take with a generator and a scope fit the part by least squares (Levenberg–Marquardt). Readings are weighted by usual bench accuracy: current 1 %, bias 10 mV, gain 2 %.'),
       el('div', { class: 'grid-fields' }, fields.map((f) => f.wrap)),
-      el('div', { class: 'inputs' }, gains, curve),
+      el('div', { class: 'inputs' }, gains, curve), choose.wrap,
       el('div', { class: 'actions' }, run, use), busy, message, results);
     node.classList.add('wide');
     return { node };
