@@ -532,6 +532,13 @@ fn advise(search: &Search, points: &[Point], candidates: &[Candidate], rf: f64) 
             None => text.push_str("; no part's transconductance would do it: C0 and the strays cap the negative resistance this load allows"),
         }
         out.push(text);
+        if search.crystal.cl_f.is_none() {
+            out.push(
+                "the crystal is specified at series resonance, which a Pierce circuit reaches only with large capacitors that starve the margin: \
+                 one specified at a load capacitance (some 8–20 pF) runs at its frequency with smaller ones"
+                    .to_string(),
+            );
+        }
         return out;
     }
     if !candidates.is_empty() && candidates.iter().all(|c| c.verdict.rings) {
