@@ -31,6 +31,7 @@ use super::frequency::oscillation;
 use super::linear::Linear;
 use super::{analyse, Oscillator};
 use crate::analysis::stage_operating_point;
+use crate::engine::operating_point;
 use crate::error::Result;
 use crate::part::{InverterLaw, Part};
 use crate::pierce::{build, Parts};
@@ -159,6 +160,10 @@ struct Search<'a> {
     bvd: Bvd,
     c_stray: f64,
     wanted: Wanted,
+    /// The last bias solved, by the size of its circuit: the capacitors, Rs and Rf
+    /// carry no DC current, so every screened circuit of a topology has the same
+    /// bias, and Newton started there stops at once.
+    bias: std::cell::RefCell<Vec<nalgebra::DVector<f64>>>,
 }
 
 /// The screen's small-signal figures of one circuit: δ-solved frequency, Z_c there,
@@ -176,7 +181,15 @@ impl Search<'_> {
 
     fn solve(&self, p: &Parts) -> Result<Screened> {
         let circuit = build(self.part, &self.law, p)?;
-        let op = stage_operating_point(self.part, &self.law, &circuit.netlist)?;
+        let known = self.bias.borrow().iter().find(|x| x.len() == crate::engine::Layout::new(&circuit.netlist).size).cloned();
+        let op = match known.map(|x| operating_point(&circuit.netlist, Some(&x))) {
+            Some(Ok(op)) => op,
+            _ => {
+                let op = stage_operating_point(self.part, &self.law, &circuit.netlist)?;
+                self.bias.borrow_mut().push(op.x.clone());
+                op
+            }
+        };
         let lin = Linear::new(&circuit, &op)?;
         let (delta, z) = oscillation(&lin.nominal(), &self.bvd)?;
         Ok(Screened { lin, f_osc: self.bvd.f_s * (1.0 + delta), r_neg: z.re })
@@ -406,7 +419,7 @@ fn eng(value: f64, unit: Unit) -> String {
 /// (the board's, as given), to the limits `wanted`.
 pub fn design(part: &Part, crystal: &Datasheet, c_stray: f64, wanted: &Wanted) -> Result<CrystalDesign> {
     part.check_supply()?;
-    let search = Search { part, law: part.law()?, crystal, bvd: Bvd::of(crystal), c_stray, wanted: *wanted };
+    let search = Search { part, law: part.law()?, crystal, bvd: Bvd::of(crystal), c_stray, wanted: *wanted, bias: Default::default() };
     let values = wanted.series.between(C_LOW, C_HIGH);
     let representative = 2.0 * crystal.cl_f.unwrap_or(SERIES_RESONANT_CL);
     let rf = search.choose_rf(representative, representative, None);
@@ -428,13 +441,25 @@ pub fn design(part: &Part, crystal: &Datasheet, c_stray: f64, wanted: &Wanted) -
     let mut first: Option<Candidate> = None;
     if let Some(max) = wanted.limits.drive_max_w {
         let resistors = wanted.series.between(RS_LOW, RS_HIGH);
+        let mut last: Option<(f64, f64)> = None;
         for _ in 0..MAX_ROUNDS {
             let Some(top) = points.first().filter(|p| small_ok(p)).copied() else { break };
             let analysed = search.analysed(&top, &mut runs)?;
             let over = analysed.oscillator.large.as_ref().ok().filter(|d| d.drive_w > max).map(|d| (d.drive_w, d.f_hz));
             first = Some(analysed);
             let Some((drive_w, f_hz)) = over else { break };
-            let estimate = rs_for(drive_w, max, f_hz, top.rs, top.c2);
+            // Once two runs with an Rs are known, the drive's own slope against Rs
+            // (log–log) places the next; before, the RC law of `rs_for`.
+            let estimate = match (last, top.rs) {
+                (Some((r0, p0)), Some(r1)) if r1 > r0 && drive_w < p0 => {
+                    let slope = crate::math::ln(drive_w / p0) / crate::math::ln(r1 / r0);
+                    r1 * crate::math::pow(max / drive_w, 1.0 / slope)
+                }
+                _ => rs_for(drive_w, max, f_hz, top.rs, top.c2),
+            };
+            if let Some(r) = top.rs {
+                last = Some((r, drive_w));
+            }
             let Some(&rs) = resistors.iter().find(|&&r| r >= estimate && r > top.rs.unwrap_or(0.0)) else { break };
             let again = ranked(&search.screen_all(&values, rf, Some(rs)));
             screened += again.len();
