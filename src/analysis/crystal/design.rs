@@ -3,19 +3,25 @@
 //! limits — or, when no choice does, what would.
 //!
 //! Three steps, each bounded:
-//! 1. *Screen* (small signal only, tens of µs a pair): every C1 of the series from
-//!    1 pF to 1 nF, each with the C2 from C1/2 to 4·C1. The frequency falls as
-//!    either capacitor grows, so for one C1 a bisection finds the first C2 within
-//!    the frequency limit and a walk up takes the rest of the window; a C1 whose
-//!    smallest C2 already runs too slow ends the search (a larger C1 only runs
-//!    slower). Rf is the one chosen on a representative pair, Rs none.
-//! 2. *Shortlist*: the screened pairs in rank order; the first `SHORTLIST` are
-//!    analysed in full (`analyse`, the same analysis `halfrail crystal` runs), each
-//!    with its own Rf (`choose_rf`).
-//! 3. *Drive* (large signal, ~10 ms a run, so only here): with a drive limit, an
-//!    over-driven pair gets the E-series Rs that the last run says would bring the
-//!    drive down, checked in small signal for the margin and the frequency first,
-//!    then run again — at most `MAX_RS_STEPS` times.
+//! 1. *Screen* (small signal only, some 100 µs a pair): every C1 of the series
+//!    from 1 pF to 1 nF, each with the C2 from C1/2 to 4·C1. The frequency falls
+//!    as either capacitor grows, so for one C1 a bisection finds the first C2
+//!    within the frequency limit and a walk up takes the rest of the window; a C1
+//!    whose smallest C2 already runs too slow ends the search (a larger C1 only
+//!    runs slower). Rf is the one chosen on a representative pair, Rs none.
+//! 2. *Drive* (large signal, ~10 ms a run, so only on the best pair): with a drive
+//!    limit, the best pair's steady state; while it is over-driven, the E-series
+//!    Rs that would bring it under (`rs_for`, then the drive's own slope against
+//!    Rs), and the screen again with that Rs — Rs moves the frequency, so the
+//!    pairs move with it — at most `MAX_ROUNDS` times, and only while some pair
+//!    still meets the small-signal limits.
+//! 3. *Shortlist*: the first `SHORTLIST` pairs of the last screen analysed in full
+//!    (`analyse`, the same analysis `halfrail crystal` runs), each with its own Rf
+//!    (`choose_rf`), and one still over-driven given a larger Rs as far as its
+//!    margin and frequency allow (`largest_rs`), at most `MAX_RS_STEPS` times.
+//!
+//! The frequency limit holds SPEC §3.5's `pull_ppm` (small signal); the error at
+//! the steady amplitude is reported beside it (`steady_pull`), not designed to.
 //!
 //! Ranking (`rank_key`): the candidates that meet every limit first; then C2 ≥ C1
 //! (common practice: the larger capacitor on the output side); then by the tightest
