@@ -251,6 +251,8 @@ pub static OSCILLATOR_RS: Field = hinted(&OSCILLATOR, q(OscillatorPart::Rs.key()
 pub static OSCILLATOR_C_STRAY: Field = hinted(&OSCILLATOR, q(OscillatorPart::CStray.key(), U::FARAD), "Stray across the crystal", "F, board and pins, default 0");
 pub static OSCILLATOR_MARGIN_MIN: Field =
     hinted(&OSCILLATOR, q("margin_min", U::PLAIN), "Start-up margin wanted", "−R/ESR at least, default 5 (common practice)");
+pub static OSCILLATOR_PULL_MAX: Field =
+    hinted(&OSCILLATOR, q("pull_max_ppm", U::PLAIN), "Frequency error at most", "ppm from the nominal, for the design helper and the spread; default 10");
 
 /// Every field, in reading order.
 pub static ALL: &[&Field] = &[
@@ -271,6 +273,7 @@ pub static ALL: &[&Field] = &[
     &CRYSTAL, &OSCILLATOR,
     &CRYSTAL_F, &CRYSTAL_CL, &CRYSTAL_ESR, &CRYSTAL_C0, &CRYSTAL_CM, &CRYSTAL_PULL, &CRYSTAL_DRIVE_MAX,
     &OSCILLATOR_C1, &OSCILLATOR_C2, &OSCILLATOR_RF, &OSCILLATOR_RS, &OSCILLATOR_C_STRAY, &OSCILLATOR_MARGIN_MIN,
+    &OSCILLATOR_PULL_MAX,
 ];
 
 /// The field of a section.

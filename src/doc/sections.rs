@@ -452,6 +452,10 @@ pub struct Oscillator {
     pub c_stray_f: f64,
     /// The start-up margin −R/ESR wanted (5 when absent: common practice).
     pub margin_min: f64,
+    /// The frequency error allowed, ppm, for the design helper and the spread's
+    /// yield (`DEFAULT_PULL_MAX_PPM` when absent: the crystal's own tolerance is
+    /// not in the document).
+    pub pull_max_ppm: f64,
 }
 
 /// The start-up margin asked for when the document names none (common practice:
@@ -468,6 +472,11 @@ impl Oscillator {
             rs_ohm: f.quantity_in(F::OSCILLATOR_RS.key, Range(Closed(0.0), Closed(1e8))),
             c_stray_f: f.quantity_or_in(F::OSCILLATOR_C_STRAY.key, 0.0, Range(Closed(0.0), Closed(MAX_CRYSTAL_F))),
             margin_min: f.quantity_or_in(F::OSCILLATOR_MARGIN_MIN.key, DEFAULT_MARGIN_MIN, Range(Closed(1.0), Closed(1e3))),
+            pull_max_ppm: f.quantity_or_in(
+                F::OSCILLATOR_PULL_MAX.key,
+                crate::analysis::crystal::design::DEFAULT_PULL_MAX_PPM,
+                Range(Open(0.0), Closed(1e4)),
+            ),
         }
     }
 }

@@ -4,6 +4,7 @@
 //! Serde-free: what it returns are the core's own results, which `crate::wire`
 //! writes out.
 
+mod crystal;
 mod sheet;
 
 use crate::chain::RunFigures;

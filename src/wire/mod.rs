@@ -7,6 +7,7 @@
 mod results;
 mod chain;
 mod crystal;
+mod crystal_design;
 mod design;
 mod fields;
 mod health;
@@ -17,6 +18,7 @@ mod swing;
 
 pub use chain::{stage_block_from, ChainReport, StageBlock};
 pub use crystal::{CrystalCurves, CrystalReport};
+pub use crystal_design::{CrystalDesignReport, CrystalSpreadReport, CrystalSpreadSummary};
 pub use design::DesignReport;
 pub use fields::FieldsOut;
 pub use health::{FindingOut, HealthOut};

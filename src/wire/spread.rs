@@ -58,7 +58,7 @@ struct StatsDef {
 
 #[derive(Serialize)]
 #[serde(transparent)]
-struct StatsOut<'a>(#[serde(with = "StatsDef")] &'a Stats);
+pub(super) struct StatsOut<'a>(#[serde(with = "StatsDef")] pub(super) &'a Stats);
 
 /// A quantity's swing of every figure.
 #[derive(Serialize)]

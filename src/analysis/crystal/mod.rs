@@ -12,6 +12,10 @@ mod drive;
 mod frequency;
 mod linear;
 
+// The design helper and the spread (issue "Crystal"), on the analyses above.
+pub mod design;
+pub mod spread;
+
 pub use bvd::{cm_from_trim, Bvd, Datasheet, Motional};
 pub use critical::{critical_scale, margin_at};
 pub use curves::{curves, Curves, Envelope, GmSweep, Pulling};

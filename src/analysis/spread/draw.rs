@@ -44,8 +44,11 @@ impl Quantity {
     /// Every quantity that varies in this stage, in a fixed order (the draw order).
     pub fn all(c: &Components) -> Vec<Quantity> {
         let fitted = STAGE.iter().copied().filter(|&k| c.fitted(k).is_some_and(|v| v > 0.0)).map(Quantity::Stage);
-        fitted.chain([Quantity::Vdd, Quantity::Kn, Quantity::Kp, Quantity::Vtn, Quantity::Vtp]).collect()
+        fitted.chain(Quantity::PART).collect()
     }
+
+    /// The part's own quantities, in the draw order (the crystal's spread draws them too).
+    pub const PART: [Quantity; 5] = [Quantity::Vdd, Quantity::Kn, Quantity::Kp, Quantity::Vtn, Quantity::Vtp];
 
     /// The input of the design it is (the wire names it by its document key).
     pub fn input(self) -> Input {
@@ -72,9 +75,21 @@ impl Quantity {
 
     /// The design with this quantity moved by `u` half-widths (u ∈ [−1, 1]).
     pub fn apply(self, u: f64, t: &Tolerance, part: &mut Part, c: &mut Components) {
+        match self {
+            Quantity::Stage(k) => {
+                let w = self.half_width(t) * u;
+                c.set(k, c.get(k).map(|v| v * (1.0 + w)))
+            }
+            _ => self.apply_to_part(u, t, part),
+        }
+    }
+
+    /// The part with this quantity moved by `u` half-widths; a stage component
+    /// leaves it as it is.
+    pub fn apply_to_part(self, u: f64, t: &Tolerance, part: &mut Part) {
         let w = self.half_width(t) * u;
         match self {
-            Quantity::Stage(k) => c.set(k, c.get(k).map(|v| v * (1.0 + w))),
+            Quantity::Stage(_) => {}
             Quantity::Vdd => part.vdd *= 1.0 + w,
             Quantity::Kn => part.nmos.k *= 1.0 + w,
             Quantity::Kp => part.pmos.k *= 1.0 + w,
