@@ -3,8 +3,10 @@
 //! resistance against Vittoz's closed form for an ideal transconductor, properties
 //! over random crystals and parts, the document's sections and `halfrail crystal`.
 
+#[path = "common/cli.rs"]
+mod cli;
+use cli::{halfrail, written};
 use std::f64::consts::TAU;
-use std::process::{Command, Output};
 
 use halfrail::analysis::crystal::{analyse_circuit, oscillation, Bvd, Datasheet, Linear, Motional, Oscillator};
 use halfrail::engine::{operating_point, Element, Node, OperatingPoint};
@@ -333,19 +335,9 @@ fn warnings_name_what_is_wrong() {
     assert!(o.spurious_hz.is_some_and(|f| f > 0.0) && o.warnings.iter().any(|w| w.code == "crystal_rings"), "{o:?}");
 }
 
-fn halfrail(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_halfrail")).args(args).output().expect("the binary runs")
-}
-
-fn written(name: &str, doc: &Value) -> String {
-    let path = std::env::temp_dir().join(format!("halfrail-crystal-{name}-{}.json", std::process::id()));
-    std::fs::write(&path, doc.to_string()).unwrap();
-    path.display().to_string()
-}
-
 #[test]
 fn cli_crystal_prints_the_figures_of_the_spec() {
-    let path = written("ok", &reference());
+    let path = written("crystal-ok", &reference());
     let out = halfrail(&["crystal", &path]);
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
     let json: Value = serde_json::from_slice(&out.stdout).unwrap();

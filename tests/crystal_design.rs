@@ -4,7 +4,9 @@
 //! without tolerances is the nominal in every trial; its yield is the count of its
 //! trials; bad documents are refused by their field.
 
-use std::process::{Command, Output};
+#[path = "common/cli.rs"]
+mod cli;
+use cli::{halfrail, written};
 
 use halfrail::analysis::crystal::design::{CrystalDesign, DriveCheck};
 use halfrail::analysis::crystal::spread::Trial;
@@ -202,21 +204,11 @@ fn the_spread_yield_is_the_count_of_its_trials() {
     assert_ne!(load(&other).crystal_spread(Some(0), &mut |_| {}).unwrap().trials[0].values[0], spread.trials[0].values[0]);
 }
 
-fn halfrail(args: &[&str]) -> Output {
-    Command::new(env!("CARGO_BIN_EXE_halfrail")).args(args).output().expect("the binary runs")
-}
-
-fn written(name: &str, doc: &Value) -> String {
-    let path = std::env::temp_dir().join(format!("halfrail-crystal-design-{name}-{}.json", std::process::id()));
-    std::fs::write(&path, doc.to_string()).unwrap();
-    path.display().to_string()
-}
-
 #[test]
 fn cli_design_and_spread_print_json_and_refuse_by_field() {
     let mut doc = reference();
     doc["tolerance"]["trials"] = json!(5);
-    let path = written("ok", &doc);
+    let path = written("crystal-design-ok", &doc);
     let out = halfrail(&["crystal", &path, "--design"]);
     assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
     let json: Value = serde_json::from_slice(&out.stdout).unwrap();
@@ -269,7 +261,7 @@ fn cli_design_and_spread_print_json_and_refuse_by_field() {
     d["part"]["vdd_v"] = json!(0.9);
     refused("low-supply", &d, "--design", "part.vdd_v");
     // The two modes are one or the other.
-    let path = written("both", &reference());
+    let path = written("crystal-design-both", &reference());
     let out = halfrail(&["crystal", &path, "--design", "--spread"]);
     assert_eq!(out.status.code(), Some(2));
     let _ = std::fs::remove_file(path);

@@ -166,5 +166,18 @@ HR.plane = (() => {
     ctx.restore();
   };
 
-  return { create, label, cross, ring: HR.plot.ring, axisLabels };
+  // The index of the point of `points` ([re, im] or null) nearest the pointer at
+  // (mx, my) on `P`, within 12 px; -1 when none is: what a `pick` reads out.
+  const nearest = (points, P, mx, my) => {
+    let best = -1;
+    let bestD = 12;
+    points.forEach((p, i) => {
+      if (!p) return;
+      const dist = Math.hypot(P.x(p[0]) - mx, P.y(p[1]) - my);
+      if (dist < bestD) { bestD = dist; best = i; }
+    });
+    return best;
+  };
+
+  return { create, label, cross, ring: HR.plot.ring, axisLabels, nearest };
 })();

@@ -329,25 +329,12 @@ pub fn steady_drive(circuit: &PierceCircuit, op: &OperatingPoint, bvd: &Bvd, f_h
 /// The large-signal impedance Z_c(Im) of `circuit` (solved at `op`) at `f_hz` with
 /// `im_a` of motional current: the describing function itself.
 pub fn describing_impedance(circuit: &PierceCircuit, op: &OperatingPoint, f_hz: f64, im_a: f64, vdd: f64) -> Result<Complex64> {
-    let (netlist, source) = with_drive(circuit);
-    let op = operating_point(&netlist, Some(&carry_over(&circuit.netlist, &op.x, &netlist)))?;
-    let small = SmallSignal::at(&netlist, &op)?;
-    let transient = Transient::new(&netlist, source)?;
-    let driven = Driven { transient, bias: op.x.clone(), small, x: circuit.x, g: circuit.g, o: circuit.o };
-    let (at, mut s) = driven.at(f_hz, vdd)?;
-    for _ in 0..MAX_DOUBLINGS {
-        if s.im >= im_a {
-            break;
-        }
-        let im = (2.0 * s.im).min(im_a);
-        s = driven.settle(&at, im, Some(&s))?;
-    }
-    Ok(s.z)
+    Ok(describing_curve(circuit, op, f_hz, &[im_a], vdd)?[0])
 }
 
 /// Z_c(Im) at each of `ims` (rising, A) at `f_hz`: the describing function over
 /// amplitude, from one driven circuit, each amplitude settled from the one below
-/// (doubling towards it where the step is large, as `describing_impedance` does).
+/// (doubling towards it where the step is large).
 pub fn describing_curve(circuit: &PierceCircuit, op: &OperatingPoint, f_hz: f64, ims: &[f64], vdd: f64) -> Result<Vec<Complex64>> {
     let (netlist, source) = with_drive(circuit);
     let op = operating_point(&netlist, Some(&carry_over(&circuit.netlist, &op.x, &netlist)))?;

@@ -207,13 +207,7 @@
       axisLabels(ctx, P, 'Re Z_c (Ω)', 'Im Z_c (Ω)');
     },
     pick: (mx, my, P, d) => {
-      let best = -1;
-      let bestD = 12;
-      d.points.forEach((p, i) => {
-        if (!p) return;
-        const dist = Math.hypot(P.x(p[0]) - mx, P.y(p[1]) - my);
-        if (dist < bestD) { bestD = dist; best = i; }
-      });
+      const best = HR.plane.nearest(d.points, P, mx, my);
       if (best < 0) return null;
       const [re, im] = d.points[best];
       return `gm ${fmt(d.c.gm.gm_s[best], 'S', 3)} · Z_c ${fmt(re, 'Ω', 3)} ${im < 0 ? '−' : '+'} j${fmt(Math.abs(im), 'Ω', 3)}`;

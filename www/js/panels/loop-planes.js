@@ -163,13 +163,7 @@ HR.loopPlanes = (() => {
       axisLabels(ctx, P, 'Re T (radius drawn as log₂(1 + |T|))', 'Im T');
     },
     pick: (mx, my, P, d) => {
-      let best = -1;
-      let bestD = 12;
-      d.points.forEach((p, i) => {
-        if (!p) return;
-        const dist = Math.hypot(P.x(p[0]) - mx, P.y(p[1]) - my);
-        if (dist < bestD) { bestD = dist; best = i; }
-      });
+      const best = HR.plane.nearest(d.points, P, mx, my);
       if (best < 0) return null;
       const r = d.r;
       return `f ${hz(r.f_hz[best], 4)} · |T| ${known(r.t_db[best]) ? fmt(r.t_db[best], 'dB') : '—'} · ∠T ${deg(r.t_phase_deg[best])}`;
