@@ -25,10 +25,38 @@ const cliLarge = (text) => cli('analyze', text).large;
 
 const figure = (page, key) => page.locator(`#panel-swing dd[data-key="${key}"] .value`).textContent();
 
-async function openSwing(hash = '#swing') {
+// Init script: the workers' source gets one more part, which holds any message whose
+// design asks for −30 dBm for three seconds before answering — a run that is surely
+// still going when Cancel is pressed (a real one can end between the bar showing and
+// the click, on a busy machine).
+const slowAtMinus30 = () => {
+  const Native = window.Blob;
+  const HOLD = `;(() => {
+    const inner = self.onmessage;
+    self.onmessage = (e) => {
+      const text = e.data && e.data.args && e.data.args[0];
+      let level = null;
+      try { level = typeof text === 'string' ? JSON.parse(text).analysis.input_dbm : null; } catch (err) { level = null; }
+      if (String(level) === '-30') {
+        const end = Date.now() + 3000;
+        while (Date.now() < end) { /* a long run */ }
+      }
+      inner(e);
+    };
+  })();`;
+  window.Blob = class extends Native {
+    constructor(parts, options) {
+      const worker = options && options.type === 'text/javascript' && parts.some((p) => String(p).includes('self.onmessage'));
+      super(worker ? [...parts, HOLD] : parts, options);
+    }
+  };
+};
+
+async function openSwing(hash = '#swing', init = null) {
   const page = await browser.context.newPage();
   const seen = watch(page);
   await page.addInitScript(instrumentWork);
+  if (init) await page.addInitScript(init);
   await page.goto(PAGE_URL + hash);
   await ready(page);
   return { page, seen };
@@ -100,7 +128,7 @@ test('from file:// the demo runs in a worker, the page stays responsive, and the
 });
 
 test('Cancel stops the run, no result of it appears, and the next run completes; an edit supersedes a run', async () => {
-  const { page, seen } = await openSwing();
+  const { page, seen } = await openSwing('#swing', slowAtMinus30);
   await results(page, 1);
   const hd2 = await figure(page, 'hd2');
   const level = page.getByLabel('Input level (dBm available from the source)');

@@ -127,7 +127,7 @@ HR.sheet = (() => {
   // uPlot draws it once, synchronously, at K times the size, for an image. No label
   // lies over another or over a curve: the marks' labels stand in a strip above the
   // plot, a row each where they would meet (a mark's line crossing no label), and a
-  // level's label takes the first end of its line, above or below it, that no curve
+  // level's label takes the first place along its line (its ends first), above or below it, that no curve
   // or mark crosses; each is haloed in white besides.
   const decade = (v) => v > 0 && Math.abs(Math.log10(v) - Math.round(Math.log10(v))) < 1e-9;
   // The decimals a tick step needs (0.5 → 1, 0.25 → 2, 10 → 0).
@@ -210,8 +210,8 @@ HR.sheet = (() => {
           halo(c, q.text, q.lx, base);
           labels.push({ text: q.text, x0: q.lx, x1: q.lx + c.measureText(q.text).width, y0: base - h, y1: base, clear: true });
         }
-        // Levels: the label at the first end of the line, above or below it, that no
-        // curve or mark crosses (else above at the right).
+        // Levels: the label at the first place along the line (its ends first), above or
+        // below it, that no curve or mark crosses (else above at the right).
         const points = [];
         for (const [ys, scale] of [[a.y, 'l'], [b.y, 'r']]) {
           for (let i = 0; i < f.length; i += 1) {
@@ -223,7 +223,9 @@ HR.sheet = (() => {
           const p = u.valToPos(y, scale, true);
           line(c, INK, left, p, left + width, p);
           const w = c.measureText(text).width;
-          const spots = [[left + width - pad - w, p - pad], [left + pad, p - pad], [left + width - pad - w, p + pad + h], [left + pad, p + pad + h]];
+          // The ends first, then places between them, above the line before below it.
+          const along = [1, 0, 0.75, 0.25, 0.5, 0.875, 0.125, 0.625, 0.375].map((t) => left + pad + t * (width - 2 * pad - w));
+          const spots = [p - pad, p + pad + h].flatMap((base) => along.map((x) => [x, base]));
           const spot = spots.find(([x, base]) => {
             const box = { x0: x - pad, x1: x + w + pad, y0: base - h - pad, y1: base + pad };
             if (box.y0 < top || box.y1 > top + height) return false;
