@@ -38,7 +38,9 @@ const onTop = (locator) => locator.evaluate((el) => {
 });
 
 test('a first visit shows the guide; Next walks part, target, design, loop and swing, each link leading to its panel', async () => {
-  const { page, seen } = await open();
+  // On the Part panel, whose controls the guide must not cover (shown, before they are looked for).
+  const { page, seen } = await open('#part');
+  await page.waitForSelector('#panel-part:not([hidden]) select');
   await assert.doesNotReject(guide(page).waitFor({ state: 'visible' }));
   assert.match(await guide(page).textContent(), /Start here\s*step 1 of 4/);
   assert.deepEqual(await guide(page).locator('.guide-steps li').allTextContents(), ['Part', 'Target', 'Design', 'Loop and swing']);
