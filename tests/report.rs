@@ -315,7 +315,7 @@ fn the_bill_of_materials_lists_every_fitted_part_with_class_and_rating() {
     let expected: Vec<Vec<&str>> = vec![
         vec!["R shunt", "56R", "resistor", "±1 % (F)", "≥ 3.47 V"],
         vec!["C in", "100 nF", "capacitor", "±10 % (K)", "10 V"],
-        vec!["R in", "220R", "resistor", "±1 % (F)", "≥ 3.47 V"],
+        vec!["R in", "100R", "resistor", "±1 % (F)", "≥ 3.47 V"],
         vec!["R fb", "2k2", "resistor", "±1 % (F)", "≥ 3.47 V"],
         vec!["C out", "100 nF", "capacitor", "±10 % (K)", "10 V"],
         vec!["U1", "1 stage", "CMOS inverter, unbuffered", "—", "VDD 3.30 V ±5 %"],
