@@ -203,14 +203,17 @@ fn transient_agrees(doc: &Value, gain_db: f64, seed: u64) {
         };
         Some([bin(1), bin(2), bin(3)])
     };
-    let Some(mut at) = fundamentals(-80.0) else { return };
     // −80 dBm is no small signal for a stage of 80 to 105 dB (seeds 2049000291 and
     // …567: tens of volts asked of the output), nor for one whose last inverter
     // swings far more than its output (seed 2049000873: 137 dB ideal, a 1.75 pF
-    // output coupling at 10.8 kHz): such a stage is driven lower, until the larger
-    // swing is a thousandth of the supply.
+    // output coupling at 10.8 kHz), nor for one whose inner inverters do (seeds
+    // 1592594031, …109, …3710, …4172: a last inverter into a 1.9 Ω load, its driver
+    // swinging a thousand times its output; 27 dB off at −80 dBm, within 0.01 dB at
+    // −140): such a stage is driven lower, until the largest small-signal swing of
+    // any inverter, or of the output, is a thousandth of the supply.
     let vdd = num(doc, "part.vdd_v", seed);
-    let mut level = -80.0;
+    let mut level = small_signal_level_dbm(doc, f, 1e-3 * vdd).map_or(-80.0, |l| l.min(-80.0));
+    let Some(mut at) = fundamentals(level) else { return };
     let swing = at[1].max(at[2]);
     if swing > 1e-3 * vdd {
         level -= 20.0 * (swing / (1e-3 * vdd)).log10();
@@ -228,6 +231,20 @@ fn transient_agrees(doc: &Value, gain_db: f64, seed: u64) {
     }
     let measured = 20.0 * (out / pin).log10();
     close(measured, gain_db, 0.05, &format!("the transient's fundamental at {level:.1} dBm against the small-signal gain"), seed);
+}
+
+/// The available source power (dBm) at which the largest small-signal swing at
+/// `f` of any inverter output or of the output pin is `swing` volts peak.
+fn small_signal_level_dbm(doc: &Value, f: f64, swing: f64) -> Option<f64> {
+    let document = halfrail::doc::load(&doc.to_string()).ok()?;
+    let (part, stage) = document.part_and_stage().ok()?;
+    let lin = halfrail::analysis::Linearised::new(&part, &stage, 50.0).ok()?;
+    let small = lin.small_signal();
+    let x = small.solve(std::f64::consts::TAU * f).ok()?;
+    let nodes = &lin.circuit().nodes;
+    let per_emf = nodes.outputs.iter().chain([&nodes.output]).map(|&n| small.layout.voltage(&x, n).norm()).fold(0.0, f64::max);
+    let rs = stage.get(halfrail::stage::Component::SourceOhm)?;
+    (per_emf > 0.0).then(|| halfrail::analysis::swing::available_dbm(swing / per_emf, rs))
 }
 
 /// Design's top pair, put into the stage, gives the gain design reports.
