@@ -7,7 +7,7 @@
 mod cli;
 #[path = "common/oscillator.rs"]
 mod oscillator;
-use cli::{halfrail, written};
+use cli::{crystal_refuses, halfrail, written};
 use oscillator::reference;
 use std::f64::consts::TAU;
 
@@ -344,15 +344,7 @@ fn cli_crystal_prints_the_figures_of_the_spec() {
     assert_eq!(json["margin"].as_f64(), Some(o.margin));
     let _ = std::fs::remove_file(path);
 
-    let refused = |name: &str, doc: &Value, needle: &str| {
-        let path = written(name, doc);
-        let out = halfrail(&["crystal", &path]);
-        let err = String::from_utf8_lossy(&out.stderr).to_string();
-        assert_eq!(out.status.code(), Some(2), "{err}");
-        assert_eq!(err.trim_end().lines().count(), 1, "{err}");
-        assert!(err.contains(needle), "{err:?} lacks {needle:?}");
-        let _ = std::fs::remove_file(path);
-    };
+    let refused = |name: &str, doc: &Value, needle: &str| crystal_refuses(name, doc, &[], needle);
     let mut d = reference();
     d.as_object_mut().unwrap().remove("crystal");
     refused("no-crystal", &d, "crystal: missing");

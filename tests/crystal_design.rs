@@ -8,7 +8,7 @@
 mod cli;
 #[path = "common/oscillator.rs"]
 mod oscillator;
-use cli::{halfrail, written};
+use cli::{crystal_refuses, halfrail, written};
 
 use halfrail::analysis::crystal::design::{CrystalDesign, DriveCheck};
 use halfrail::analysis::crystal::spread::Trial;
@@ -226,15 +226,7 @@ fn cli_design_and_spread_print_json_and_refuse_by_field() {
     assert!(json.get("yield").is_some() && json["varied"].as_array().unwrap().contains(&json!("c1_f")));
     let _ = std::fs::remove_file(path);
 
-    let refused = |name: &str, doc: &Value, flag: &str, needle: &str| {
-        let path = written(name, doc);
-        let out = halfrail(&["crystal", &path, flag]);
-        let err = String::from_utf8_lossy(&out.stderr).to_string();
-        assert_eq!(out.status.code(), Some(2), "{err}");
-        assert_eq!(err.trim_end().lines().count(), 1, "{err}");
-        assert!(err.contains(needle), "{err:?} lacks {needle:?}");
-        let _ = std::fs::remove_file(path);
-    };
+    let refused = |name: &str, doc: &Value, flag: &str, needle: &str| crystal_refuses(name, doc, &[flag], needle);
     let mut d = reference();
     d["oscillator"]["pull_max_ppm"] = json!(0);
     refused("pull-zero", &d, "--design", "oscillator.pull_max_ppm: must be > 0");
