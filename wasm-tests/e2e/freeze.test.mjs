@@ -6,35 +6,16 @@
 // loop analysis takes far longer than a frame computes in the background likewise.
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
-import { launch, clearStorage, ready, watch, instrumentWork, workLog, framesDrawn, undoButton, PAGE_URL } from './browser.mjs';
+import { launch, clearStorage, ready, watch, instrumentWork, workLog, framesDrawn, undoButton, holdWorkers, PAGE_URL } from './browser.mjs';
 
 let browser;
 before(async () => { browser = await launch(); });
 after(async () => { await browser.close(); });
 beforeEach(() => clearStorage(browser.context));
 
-// Init script: the worker's source (the Blob worker.js makes of the glue and its loop)
-// gets one more part, which spins for a minute before answering any message that
-// carries a design with R fb = 6k8 — a core call that never comes back in time.
-const runawayHook = () => {
-  const Native = window.Blob;
-  const SPIN = `;(() => {
-    const inner = self.onmessage;
-    self.onmessage = (e) => {
-      if (JSON.stringify(e.data).includes('\\\\"r_fb_ohm\\\\":\\\\"6k8\\\\"')) {
-        const end = Date.now() + 60000;
-        while (Date.now() < end) { /* a runaway call */ }
-      }
-      inner(e);
-    };
-  })();`;
-  window.Blob = class extends Native {
-    constructor(parts, options) {
-      const worker = options && options.type === 'text/javascript' && parts.some((p) => String(p).includes('self.onmessage'));
-      super(worker ? [...parts, SPIN] : parts, options);
-    }
-  };
-};
+// Init script: any message that carries a design with R fb = 6k8 is held for a
+// minute before it is answered — a core call that never comes back in time.
+const runawayHook = holdWorkers((data) => JSON.stringify(data).includes('\\"r_fb_ohm\\":\\"6k8\\"'), 60000);
 
 const stage = (page) => page.locator('#panel-stage');
 const follow = (page) => stage(page).getAttribute('data-follow');
