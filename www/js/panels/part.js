@@ -245,7 +245,7 @@
       judged[k] = el('dd', { 'data-key': k }, '—');
       return el('div', {}, el('dt', {}, text), judged[k]);
     }));
-    const outdated = el('p', { class: 'stale-note', hidden: true, role: 'status' });
+    const outdated = el('p', { class: 'stale-note outdated', hidden: true, role: 'status' });
     const figures = el('div', {}, verdict, judgedList,
       el('div', { class: 'scroll' }, params.node), el('div', { class: 'scroll' }, residuals.node));
     const results = el('div', { hidden: true }, outdated, figures);
