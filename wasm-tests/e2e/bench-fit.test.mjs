@@ -1,8 +1,8 @@
 // The bench fit on the Part panel as a user finishes it: choosing the parameters to
 // fit (a refusal points at the box to untick), reading the judgement of the fit (a
 // poor one said to be poor, naming the reading that disagrees), using the part with
-// values rounded to their uncertainty, and the preset selector saying when the part
-// is custom. Every step waits for what the page shows, never for a time.
+// values rounded to their uncertainty, a fit marked out of date once what it was made
+// from changes, and the preset selector saying when the part is custom. Every step waits for what the page shows, never for a time.
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
 import { launch, clearStorage, openPanel, undoButton, cli } from './browser.mjs';
@@ -113,7 +113,10 @@ test('Use this part writes each fitted value to the digits its uncertainty suppo
   for (const [label, key] of [['kn (NMOS)', 'kn_a_per_v2'], ['kp (PMOS)', 'kp_a_per_v2'], ['λn', 'lambda_n_per_v'],
     ['λp', 'lambda_p_per_v'], ['Cgs', 'cgs_f'], ['Cgd', 'cgd_f'], ['Cdb', 'cdb_f']]) {
     const text = await partValue(page, label);
-    assert.equal(text, String(wanted[key]), label);
+    // Written as values are typed (`6.76m`, not 0.00676), reading back as exactly the
+    // value the core rounded.
+    assert.match(text, /^-?\d+(\.\d+)?[pnµm]$/, `${label}: ${text}`);
+    assert.equal(await page.evaluate((t) => wasm_bindgen.parseValue(t, '', 'value').value, text), wanted[key], `${label}: ${text}`);
     const digits = text.replace(/e.*$/, '').replace(/[^0-9]/g, '').replace(/^0+/, '');
     assert.ok(digits.length >= 2 && digits.length <= 4, `${label}: ${text}, a handful of digits`);
   }
@@ -125,6 +128,55 @@ test('Use this part writes each fitted value to the digits its uncertainty suppo
   await undoButton(page).click();
   await partValueIs(page, 'Cgs', '4p');
   assert.equal(await partValue(page, 'kn (NMOS)'), '6m');
+  await page.close();
+});
+
+test('a fit is marked out of date once the readings or the held part change, and its part is not offered until fitted again', async () => {
+  const { page, seen } = await openPanel(browser.context, 'part');
+  const note = panel(page).locator('p.outdated');
+  const use = page.getByRole('button', { name: 'Use this part' });
+  // Waits until the fit on show is out of date for `why` ('' : it is the design's own).
+  const outdated = (why) => page.waitForFunction((w) => {
+    const results = document.querySelector('#panel-part p.outdated').parentElement;
+    return results.dataset.outdated === w;
+  }, why);
+  await fit(page);
+  assert.equal(await note.isVisible(), false);
+  assert.equal(await use.isEnabled(), true);
+  // A reading added after the fit: the fit says it is for the old readings, muted, and
+  // its part is no longer offered.
+  const gains = page.getByLabel('Open-loop gain readings');
+  const before = await gains.inputValue();
+  await gains.fill(`${before}\n1 MHz, 15`);
+  await outdated('readings');
+  assert.equal(await note.textContent(), 'Readings changed since this fit — fit again to use its part.');
+  assert.equal(await note.isVisible(), true);
+  assert.equal(await use.isDisabled(), true);
+  assert.match(await panel(page).locator('p.verdict').locator('xpath=..').getAttribute('class'), /\bstale\b/);
+  // Undone, the readings are the fit's again: it is offered again.
+  await undoButton(page).click();
+  await outdated('');
+  assert.equal(await note.isVisible(), false);
+  assert.equal(await use.isEnabled(), true);
+  // A value of the part the fit held (Vtn is not fitted here) changed: out of date too.
+  await page.getByLabel('Vtn', { exact: true }).fill('0.6');
+  await outdated('part');
+  assert.equal(await note.textContent(), 'The part’s held values changed since this fit — fit again to use its part.');
+  assert.equal(await use.isDisabled(), true);
+  // Fitted again: the design's own fit, whose part Use writes without making it out of date.
+  await fit(page);
+  await outdated('');
+  assert.equal(await use.isEnabled(), true);
+  await use.click();
+  await partValueIs(page, 'kn (NMOS)', '6m', false);
+  assert.equal(await note.isVisible(), false);
+  assert.equal(await use.isEnabled(), true);
+  // Another choice of parameters is another fit.
+  await box(page, 'lambda (both λ, one factor)').uncheck();
+  await outdated('choice');
+  assert.equal(await note.textContent(), 'The parameters to fit changed since this fit — fit again to use its part.');
+  assert.equal(await use.isDisabled(), true);
+  assert.deepEqual(seen.errors, []);
   await page.close();
 });
 

@@ -136,6 +136,34 @@ export const instrumentWork = () => {
 };
 export const workLog = (page) => page.evaluate(() => window.__work);
 
+// An init script (page.addInitScript) that holds the page's background workers: their
+// source (the Blob worker.js makes of the glue and its loop) gets one more part, which
+// spins for `ms` before answering any message for which `predicate(message)` is true —
+// a run surely still going when a test acts on it, or (a long `ms`) a runaway call.
+// `predicate` runs in the worker, so it may use nothing from the test's scope.
+export const holdWorkers = (predicate, ms) => `(${(source, ms) => {
+  const Native = window.Blob;
+  const HOLD = `;(() => {
+    const inner = self.onmessage;
+    const held = (${source});
+    self.onmessage = (e) => {
+      let hold = false;
+      try { hold = Boolean(held(e.data)); } catch (err) { hold = false; }
+      if (hold) {
+        const end = Date.now() + ${Number(ms)};
+        while (Date.now() < end) { /* a long run */ }
+      }
+      inner(e);
+    };
+  })();`;
+  window.Blob = class extends Native {
+    constructor(parts, options) {
+      const worker = options && options.type === 'text/javascript' && parts.some((p) => String(p).includes('self.onmessage'));
+      super(worker ? [...parts, HOLD] : parts, options);
+    }
+  };
+}})(${JSON.stringify(String(predicate))}, ${Number(ms)});`;
+
 // The workers a panel's runs made, from workLog's list: all but the health line's,
 // which has a lane of its own, always on show.
 export const panelWorkers = (log) => log.workers.filter((w) => !w.startsWith('halfrail-health '));

@@ -3,38 +3,20 @@
 // makes the Stage panel's worker spin whenever the design holds R fb = 6k8; while it
 // spins the page draws frames, answers clicks and keys on another panel, says on the
 // panel that it is computing, and Cancel stops the run. A real legal document whose
-// loop analysis takes far longer than a frame computes in the background likewise.
+// loop analysis takes far longer than a frame computes in the background likewise. A
+// run superseded in its lane ends as it was asked to (its worker ended, or kept).
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
-import { launch, clearStorage, ready, watch, instrumentWork, workLog, framesDrawn, undoButton, PAGE_URL } from './browser.mjs';
+import { launch, clearStorage, ready, watch, instrumentWork, workLog, framesDrawn, undoButton, holdWorkers, PAGE_URL } from './browser.mjs';
 
 let browser;
 before(async () => { browser = await launch(); });
 after(async () => { await browser.close(); });
 beforeEach(() => clearStorage(browser.context));
 
-// Init script: the worker's source (the Blob worker.js makes of the glue and its loop)
-// gets one more part, which spins for a minute before answering any message that
-// carries a design with R fb = 6k8 — a core call that never comes back in time.
-const runawayHook = () => {
-  const Native = window.Blob;
-  const SPIN = `;(() => {
-    const inner = self.onmessage;
-    self.onmessage = (e) => {
-      if (JSON.stringify(e.data).includes('\\\\"r_fb_ohm\\\\":\\\\"6k8\\\\"')) {
-        const end = Date.now() + 60000;
-        while (Date.now() < end) { /* a runaway call */ }
-      }
-      inner(e);
-    };
-  })();`;
-  window.Blob = class extends Native {
-    constructor(parts, options) {
-      const worker = options && options.type === 'text/javascript' && parts.some((p) => String(p).includes('self.onmessage'));
-      super(worker ? [...parts, SPIN] : parts, options);
-    }
-  };
-};
+// Init script: any message that carries a design with R fb = 6k8 is held for a
+// minute before it is answered — a core call that never comes back in time.
+const runawayHook = holdWorkers((data) => JSON.stringify(data).includes('\\"r_fb_ohm\\":\\"6k8\\"'), 60000);
 
 const stage = (page) => page.locator('#panel-stage');
 const follow = (page) => stage(page).getAttribute('data-follow');
@@ -110,6 +92,34 @@ test('a runaway core call leaves the page responsive, says it is computing, and 
   assert.equal(await stage(page).locator('.stale-note').isVisible(), false);
   assert.equal(await stage(page).getByRole('button', { name: 'Compute now' }).isVisible(), false);
   assert.equal(await stage(page).locator('.readout').getAttribute('class'), 'readout');
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});
+
+test('a run ends as it was asked to, whatever the run after it asks: a runaway is ended, a kept worker kept', async () => {
+  const page = await browser.context.newPage();
+  const seen = watch(page);
+  // Two calls held in the worker: one for a minute (a runaway), one for a second.
+  await page.addInitScript(holdWorkers((data) => data.name === 'formatFixed' && data.args[0] === 6.8, 60000));
+  await page.addInitScript(holdWorkers((data) => data.name === 'formatFixed' && data.args[0] === 4.7, 1000));
+  await page.goto(`${PAGE_URL}#bench`);
+  await ready(page);
+  const runs = await page.evaluate(async () => {
+    const { run, startedIn } = HR.background;
+    // A runaway that may end its worker, superseded by a run that keeps its own: the
+    // runaway's worker is ended, and the kept run answers from a fresh one at once.
+    const runaway = run('formatFixed', [6.8, 1], { lane: 'probe' });
+    const kept = run('formatFixed', [2.2, 1], { lane: 'probe', keep: true });
+    const first = [await runaway.promise, await kept.promise, startedIn.probe];
+    // A kept run superseded by one that does not keep: the kept run's worker finishes
+    // its call and then answers the next, no worker started.
+    const slow = run('formatFixed', [4.7, 1], { lane: 'probe', keep: true });
+    const next = run('formatFixed', [3.3, 1], { lane: 'probe' });
+    return [...first, await slow.promise, await next.promise, startedIn.probe];
+  });
+  assert.deepEqual(runs, [{ cancelled: true }, runs[1], 2, { cancelled: true }, runs[4], 2]);
+  assert.equal(runs[1].ok, '2.2');
+  assert.equal(runs[4].ok, '3.3');
   assert.deepEqual(seen.errors, []);
   await page.close();
 });

@@ -9,7 +9,7 @@ import fs from 'fs';
 import http from 'http';
 import os from 'os';
 import path from 'path';
-import { launch, watch, ready, clearStorage, editElsewhereDuringRun, PAGE_PATH, PAGE_URL, cli, instrumentWork, workLog, panelWorkers, panelWorkersStarted, backgroundPanel, supersede } from './browser.mjs';
+import { launch, watch, ready, clearStorage, editElsewhereDuringRun, PAGE_PATH, PAGE_URL, cli, instrumentWork, workLog, panelWorkers, panelWorkersStarted, backgroundPanel, supersede, holdWorkers } from './browser.mjs';
 
 let browser;
 before(async () => { browser = await launch(); });
@@ -25,32 +25,13 @@ const cliLarge = (text) => cli('analyze', text).large;
 
 const figure = (page, key) => page.locator(`#panel-swing dd[data-key="${key}"] .value`).textContent();
 
-// Init script: the workers' source gets one more part, which holds any message whose
-// design asks for −30 dBm for three seconds before answering — a run that is surely
-// still going when Cancel is pressed (a real one can end between the bar showing and
-// the click, on a busy machine).
-const slowAtMinus30 = () => {
-  const Native = window.Blob;
-  const HOLD = `;(() => {
-    const inner = self.onmessage;
-    self.onmessage = (e) => {
-      const text = e.data && e.data.args && e.data.args[0];
-      let level = null;
-      try { level = typeof text === 'string' ? JSON.parse(text).analysis.input_dbm : null; } catch (err) { level = null; }
-      if (String(level) === '-30') {
-        const end = Date.now() + 3000;
-        while (Date.now() < end) { /* a long run */ }
-      }
-      inner(e);
-    };
-  })();`;
-  window.Blob = class extends Native {
-    constructor(parts, options) {
-      const worker = options && options.type === 'text/javascript' && parts.some((p) => String(p).includes('self.onmessage'));
-      super(worker ? [...parts, HOLD] : parts, options);
-    }
-  };
-};
+// Init script: any message whose design asks for −30 dBm is held for three seconds
+// before it is answered — a run that is surely still going when Cancel is pressed (a
+// real one can end between the bar showing and the click, on a busy machine).
+const slowAtMinus30 = holdWorkers((data) => {
+  const text = data && data.args && data.args[0];
+  return typeof text === 'string' && String(JSON.parse(text).analysis.input_dbm) === '-30';
+}, 3000);
 
 async function openSwing(hash = '#swing', init = null) {
   const page = await browser.context.newPage();

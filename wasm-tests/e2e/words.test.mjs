@@ -10,6 +10,7 @@
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
 import fs from 'fs';
+import os from 'os';
 import path from 'path';
 import { execFileSync } from 'child_process';
 import { launch, clearStorage, openPanel, undoButton, redoButton, PAGE_PATH, CLI_PATH } from './browser.mjs';
@@ -24,6 +25,20 @@ const DEMO = JSON.parse(fs.readFileSync(DEMO_PATH, 'utf8'));
 // A key of the document as scripts read it: `r_fb_ohm`, `stage.r_fb_ohm`, `part.cgs_f`.
 const KEY = /\b[a-z]+_[a-z0-9_]+\b|\b(part|stage|analysis|target|tolerance|bench|chain)\.[a-z]/;
 
+// What `halfrail VERB` says on stderr, refusing the document `doc` (exit status 2).
+const refusal = (verb, doc) => {
+  const file = path.join(fs.mkdtempSync(path.join(os.tmpdir(), 'halfrail-words-')), 'design.halfrail.json');
+  fs.writeFileSync(file, JSON.stringify(doc));
+  try {
+    execFileSync(CLI_PATH, [verb, file], { encoding: 'utf8', stdio: 'pipe' });
+  } catch (e) {
+    assert.equal(e.status, 2);
+    return e.stderr.trim();
+  } finally {
+    fs.rmSync(path.dirname(file), { recursive: true, force: true });
+  }
+  throw new Error(`halfrail ${verb} did not refuse the document`);
+};
 const count = (page, id) => page.locator(`#panel-${id}`).getAttribute('data-computed').then(Number);
 const recomputed = (page, id, n) => page.waitForFunction(([p, m]) => Number(document.getElementById(`panel-${p}`).dataset.computed) > m, [id, n]);
 const value = (page, key) => page.locator(`#panel-stage button.value[data-key="${key}"]`);
@@ -80,6 +95,36 @@ test('a warning of the core names a component by its label, on the Part panel an
 async function typeAtLabel(page, id, label, text) {
   await page.locator(`#panel-${id}`).getByLabel(label, { exact: true }).fill(text);
 }
+
+test('a refusal that speaks of a field of another section names it by its label; the CLI keeps the keys', async () => {
+  const { page, seen } = await openPanel(browser.context, 'stage');
+  // A low corner too near the design frequency: Design is refused at the Low corner,
+  // and the reason names the design frequency, not `f_design`.
+  const corner = page.getByLabel('Low corner', { exact: true });
+  await corner.fill('10 MHz');
+  await page.getByRole('button', { name: 'Design', exact: true }).click();
+  await page.waitForFunction(() => [...document.querySelectorAll('#panel-stage label')]
+    .find((l) => l.textContent === 'Low corner').control.getAttribute('aria-invalid') === 'true');
+  const reason = await page.locator('#panel-stage .field').filter({ has: corner }).locator('.error').textContent();
+  assert.match(reason, /^a low corner of 10\.00 MHz is not well below Design frequency \(10\.70 MHz\).* above Design frequency\/2 \(5\.350 MHz\)/);
+  assert.doesNotMatch(reason, KEY, reason);
+  // The command, which scripts read, keeps the path and its own words.
+  const cli = refusal('design', { ...DEMO, target: { ...DEMO.target, f_low_hz: '10 MHz' } });
+  assert.match(cli, /^halfrail: target\.f_low_hz: a low corner of 10\.00 MHz is not well below f_design \(10\.70 MHz\)/);
+
+  // The bench fit's refusals say the parameters by the names on their boxes.
+  await page.locator('#rail a[href="#part"]').click();
+  const boxes = page.locator('#panel-part fieldset.choices input[type="checkbox"]');
+  for (const box of await boxes.all()) if (await box.isChecked()) await box.uncheck();
+  await page.waitForSelector('#panel-part[data-follow="settled"]', { state: 'attached' });
+  await page.getByRole('button', { name: 'Fit the part' }).click();
+  const said = page.locator('#panel-part fieldset.choices .error');
+  await page.waitForFunction(() => document.querySelector('#panel-part fieldset.choices .error').textContent !== '');
+  assert.equal(await said.textContent(), 'no parameter is chosen: choose at least one to fit');
+  assert.match(refusal('fit', { ...DEMO, bench: { ...DEMO.bench, fit: [] } }), /^halfrail: bench\.fit: no parameter is chosen/);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});
 
 test('Undo and Redo say the change in words, with the values as engineers write them', async () => {
   const { page, seen } = await openPanel(browser.context, 'stage');

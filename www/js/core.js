@@ -139,11 +139,22 @@ HR.fieldWords = (path) => {
   if (f) return where ? `${f.name} (${where})` : f.name;
   return general === `${entry && entry[1]}[]` ? where : '';
 };
+// The field a key of another section names, found in the whole catalogue: the key
+// (`f_design_hz`), else a key's stem without its unit (`f_design`, `r_fb`), when it
+// names exactly one field; null otherwise.
+HR.fieldOfKey = (word) => {
+  HR.fieldAt('');
+  const keys = Object.keys(HR.fieldsKnown || {}).map((p) => [p, p.slice(p.lastIndexOf('.') + 1)]);
+  const only = (list) => (list.length === 1 ? HR.fieldAt(list[0][0]) : null);
+  const exact = keys.filter(([, k]) => k === word);
+  return exact.length ? only(exact) : only(keys.filter(([, k]) => k.startsWith(`${word}_`) && !k.slice(word.length + 1).includes('_')));
+};
 // An error's reason with the keys it quotes put in words: a path of the document
 // (`must be below part.vdd_v`), and a key of the field it names or of what holds that
 // field (`missing field \`vdd_v\`` of `part`, `takes no loss_db` of a block), by
-// their names.
-HR.reasonWords = (e) => {
+// their names; with `elsewhere` (errors: the default), also a key or stem naming one
+// field of another section (`not well below f_design`, `its f_design_hz`).
+HR.reasonWords = (e, { elsewhere = true } = {}) => {
   if (!e) return '';
   const field = String(e.field || '').replace(/\[\d+\]/g, '[]');
   // The field and what holds it, nearest first: `chain.blocks[].loss_db`, `chain.blocks[]`, `chain`, ''.
@@ -157,11 +168,11 @@ HR.reasonWords = (e) => {
   return String(e.reason)
     .replace(/\b[a-z]+(?:\.[a-z0-9_]+|\[\d*\])+/g, (p) => HR.fieldWords(p) || p)
     .replace(/`([a-z0-9_]+)`/g, (all, key) => { const f = keyed(key); return f ? `“${f.name}”` : all; })
-    .replace(/\b[a-z0-9]+(?:_[a-z0-9]+)+\b/g, (key) => { const f = keyed(key); return f ? f.name : key; });
+    .replace(/\b[a-z0-9]+(?:_[a-z0-9]+)+\b/g, (key) => { const f = keyed(key) || (elsewhere && HR.fieldOfKey(key)); return f ? f.name : key; });
 };
 // A text of the core (a warning, a finding) with the stage's keys it names in words:
 // `Coupling capacitors (c_in_f, c_out_f)` as `(C in, C out)`.
-HR.textWords = (text) => HR.reasonWords({ field: 'stage', reason: text });
+HR.textWords = (text) => HR.reasonWords({ field: 'stage', reason: text }, { elsewhere: false });
 // A core error as the page says it: `R fb: must be > 0, got -3300`; an error that
 // names no field of the document keeps the core's message (`value: …`, a trap's).
 HR.words = (e) => {

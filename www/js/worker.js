@@ -96,11 +96,11 @@ HR.background = (() => {
   // `keep`: a new run supersedes the lane's running one without ending its worker,
   // which finishes the old call (its answer is dropped) and then takes the new one —
   // for a lane that runs after every edit and is usually done within a frame, where
-  // starting a worker per edit would cost more than the call.
+  // starting a worker per edit would cost more than the call. It is the job's own:
+  // a later run of the lane, kept or not, does not change how an earlier one ends.
   const submit = (message, entry, { lane: key = entry, onProgress = () => {}, keep = false } = {}) => {
     if (!lanes.has(key)) lanes.set(key, { key, worker: null, job: null });
     const lane = lanes.get(key);
-    lane.keep = keep;
     if (lane.job) lane.job.cancel();
     let settle;
     const promise = new Promise((resolve) => { settle = resolve; });
@@ -118,7 +118,7 @@ HR.background = (() => {
       cancel() {
         if (lane.job !== job) return;
         lane.job = null;
-        if (!lane.keep) stop(lane);
+        if (!keep) stop(lane);
         settle({ cancelled: true });
       },
     };

@@ -174,6 +174,18 @@
   // The significant digits of a number as JS writes it: the rounded values carry
   // only the digits their uncertainty supports, and are shown with exactly those.
   const digitsOf = (v) => String(Math.abs(v)).replace(/e.*$/, '').replace('.', '').replace(/^0+/, '').length || 1;
+  // A fitted value of the part as values are typed (`6.76m`, not 0.00676): the core's
+  // engineering notation to exactly those digits, kept only where it reads back as the
+  // very same value (else the number itself, which always does).
+  const written = (key, v) => {
+    const text = HR.fmt(v, '', digitsOf(v));
+    const back = HR.call('parseValue', text, HR.field('part', key).unit, '');
+    return back.ok && back.ok.value === v ? text : v;
+  };
+  // A value with its objects' keys in order, so that two sections holding the same
+  // values compare equal however their keys were added.
+  const canonical = (v) => JSON.stringify(v === undefined ? null : v, (k, x) => (x && typeof x === 'object' && !Array.isArray(x)
+    ? Object.fromEntries(Object.keys(x).sort().map((key) => [key, x[key]])) : x));
 
   // Which parameters to fit: a box each, bound to bench.fit. Untouched, the boxes are
   // what the readings determine (the core says which); a refusal the choice answers
@@ -196,7 +208,7 @@
       return defaults;
     };
     const { label } = HR.field('bench', 'fit');
-    return HR.bind('bench', 'fit', { label, choices: PARAMS, value: chosen,
+    const bound = HR.bind('bench', 'fit', { label, choices: PARAMS, value: chosen,
       hint: 'Unticked, a parameter is held at the part’s current value. Until you change them, the ticks are what the readings can determine.',
       commit: (list) => {
         const before = chosen();
@@ -204,6 +216,16 @@
         const removed = before.find((x) => !list.includes(x));
         HR.design.setMany('bench', { fit: list }, added ? `fit ${added} too` : `hold ${removed} at the part’s value`);
       } });
+    return { ...bound, chosen };
+  };
+
+  // Why a fit on show is not the fit of the design as it is now, in words, by what
+  // changed since: the readings, the parameters chosen, or the part's values the fit
+  // held (the fitted ones are only its starting point, and Use this part writes them).
+  const OUTDATED = {
+    readings: 'Readings changed since this fit — fit again to use its part.',
+    choice: 'The parameters to fit changed since this fit — fit again to use its part.',
+    part: 'The part’s held values changed since this fit — fit again to use its part.',
   };
 
   // The judgement's figures: χ²/dof against its bound, the furthest reading, the loose parameters.
@@ -223,21 +245,50 @@
       judged[k] = el('dd', { 'data-key': k }, '—');
       return el('div', {}, el('dt', {}, text), judged[k]);
     }));
-    const results = el('div', { hidden: true }, verdict, judgedList,
+    const outdated = el('p', { class: 'stale-note outdated', hidden: true, role: 'status' });
+    const figures = el('div', {}, verdict, judgedList,
       el('div', { class: 'scroll' }, params.node), el('div', { class: 'scroll' }, residuals.node));
+    const results = el('div', { hidden: true }, outdated, figures);
     let fitted = null;
-    // Writes only the fitted fields, rounded to their uncertainty, as one step: the
-    // rest of the part stays as typed.
+    // What the fit on show was made from: its document's bench readings and part, and
+    // the parameters it moved.
+    let basis = null;
+    // Which of OUTDATED the fit on show is, or '' while it is the design's own.
+    const outdatedBy = () => {
+      if (!basis) return '';
+      const now = JSON.parse(HR.design.text());
+      const bench = (d) => canonical({ ...(d.bench || {}), fit: undefined });
+      const held = (d) => canonical(Object.fromEntries(Object.entries(d.part || {}).filter(([k]) => !(k in fitted))));
+      if (bench(now) !== bench(basis.doc)) return 'readings';
+      if (canonical([...choose.chosen()].sort()) !== canonical([...basis.params].sort())) return 'choice';
+      if (held(now) !== held(basis.doc)) return 'part';
+      return '';
+    };
+    // Marks the fit on show as out of date (muted, with why in words) and takes its
+    // part off offer until the user fits again; an undo back to its design restores it.
+    const markOutdated = () => {
+      const why = outdatedBy();
+      outdated.hidden = !why;
+      outdated.textContent = why ? OUTDATED[why] : '';
+      results.dataset.outdated = why;
+      figures.classList.toggle('stale', Boolean(why));
+      use.disabled = !fitted || Boolean(why);
+    };
+    // Writes only the fitted fields, rounded to their uncertainty and as values are
+    // typed, as one step: the rest of the part stays as typed.
     const use = el('button', { type: 'button', disabled: true, onclick: () => {
-      if (fitted) HR.design.setMany('part', fitted, 'use the fitted part');
+      if (!fitted || outdatedBy()) return;
+      HR.design.setMany('part', Object.fromEntries(Object.entries(fitted).map(([k, v]) => [k, written(k, v)])), 'use the fitted part');
     } }, 'Use this part');
+    HR.design.onChange(() => { if (basis) markOutdated(); });
     // The fit runs in a worker (a many-inverter EKV part takes long), with Cancel.
     let running = null;
     const busy = el('p', { class: 'busy', hidden: true, role: 'status' }, 'Fitting… ',
       el('button', { type: 'button', onclick: () => running && running.cancel() }, 'Cancel'));
     const fit = async () => {
       if (running) running.cancel();
-      const mine = HR.background.run('benchFit', [HR.design.text()], { lane: 'fit' });
+      const text = HR.design.text();
+      const mine = HR.background.run('benchFit', [text], { lane: 'fit' });
       running = mine;
       busy.hidden = false;
       const r = await mine.promise;
@@ -252,10 +303,12 @@
         results.hidden = true;
         use.disabled = true;
         fitted = null;
+        basis = null;
         return;
       }
       fitted = r.ok.fitted_fields;
-      use.disabled = false;
+      basis = { doc: JSON.parse(text), params: r.ok.parameters.map((p) => p.name) };
+      markOutdated();
       const show = (name, v, digits) => { const [unit, after] = UNIT[name]; return `${HR.fmt(v, unit, digits)}${after}`; };
       const j = r.ok.judgement;
       fillRows(params.tbody, r.ok.parameters.map((p) => {
