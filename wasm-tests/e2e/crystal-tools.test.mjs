@@ -118,7 +118,7 @@ test('limits no choice meets: said plainly, with the core’s words on what woul
   const want = cli('crystal', await page.evaluate(() => HR.design.text()), '--design');
   assert.equal(want.met, false);
   assert.match(await page.locator(`${designCard} [data-key="verdict"]`).textContent(), /^No choice meets a frequency error within ±10\.0 ppm, a start-up margin of 40\.0 or more/);
-  const advice = await page.locator(`${designCard} ul.warnings li`).allTextContents();
+  const advice = await page.locator(`${designCard} ul.design-advice li`).allTextContents();
   assert.equal(advice.length, want.advice.length);
   assert.ok(advice[0].startsWith('What would: with the frequency within ±10 ppm the best start-up margin is'), advice[0]);
   assert.ok(advice[0].includes('a crystal with an ESR of at most'), advice[0]);

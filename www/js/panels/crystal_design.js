@@ -53,7 +53,7 @@ HR.crystalDesign = (() => {
     })();
     const problem = el('p', { class: 'error', 'aria-live': 'polite' });
     const verdict = el('p', { class: 'design-best', 'data-key': 'verdict' });
-    const advice = el('ul', { class: 'warnings' });
+    const advice = el('ul', { class: 'design-advice' });
     const list = table('', ['#', 'C1', 'C2', 'Rs', 'Rf', 'Frequency error', 'Start-up margin', 'Drive level', 'Meets the limits', 'Notes', '']);
     list.node.classList.add('candidates');
     const out = el('div', { class: 'design-out', hidden: true }, verdict, advice, el('div', { class: 'scroll' }, list.node));
@@ -78,8 +78,8 @@ HR.crystalDesign = (() => {
         : `No choice meets ${limitWords(l)}.${d.candidates.length ? ' The nearest are ranked below.' : ''}`;
       verdict.classList.toggle('bad', !d.met);
       advice.hidden = d.met;
-      advice.replaceChildren(...(d.met ? [] : (d.advice.length ? d.advice : ['the core names no change that would'])
-        .map((a) => el('li', { class: 'warning' }, `What would: ${HR.textWords(a)}.`))));
+      advice.replaceChildren(...(d.met ? [] : d.advice.length ? d.advice.map((a) => el('li', {}, `What would: ${HR.textWords(a)}.`))
+        : [el('li', {}, 'The helper found no change that would meet them: loosen a limit.')]));
       list.node.querySelector('caption').textContent = `${d.candidates.length} choices from ${d.series}, best first, of ${d.screened} capacitor pairs screened (frequency error: from the nominal, small signal; margin: −R/ESR; drive level: in the crystal at the steady amplitude)`;
       list.node.hidden = !top;
       fillRows(list.tbody, d.candidates.map((c, i) => [String(i + 1), cap(c.c1_f), cap(c.c2_f), res(c.rs_ohm), res(c.rf_ohm), ppm(c.pull_ppm), fixed(c.margin, 2),
