@@ -74,6 +74,8 @@ test('Design ranks choices as halfrail crystal --design; Use sets C1, C2 and Rs 
   assert.deepEqual([await field(page, 'C1 (gate side)').inputValue(), await field(page, 'C2 (output side)').inputValue(),
     await field(page, 'Series resistor Rs').inputValue()], [c1, c2, rs]);
   assert.equal(await page.evaluate(() => HR.design.section('oscillator').rs_ohm), rs);
+  // Rf, already the helper's value, is left as typed.
+  assert.equal(await page.evaluate(() => HR.design.section('oscillator').rf_ohm), '1M');
   // The panel's figures are the CLI's for the design as it now is.
   const after = cli('crystal', await page.evaluate(() => HR.design.text()));
   assert.equal(Number(await page.locator(`${panel} dd[data-key="f_osc"]`).getAttribute('data-value')), after.f_osc_hz);
@@ -206,9 +208,19 @@ test('a pinned reference: drawn under the plots and beside the figures, as the c
   for (const p of plots) assert.ok(p.ref && p.exact, JSON.stringify(p));
   // The locus: the reference's points counted on the plane.
   assert.ok(Number(await page.locator(`${panel} figure.plane`).getAttribute('data-reference')) > 10);
+  // The spread: the reference's yield beside this design's once asked for.
+  await page.locator(spreadCard).getByRole('button', { name: 'Run the spread' }).click();
+  await page.waitForSelector(`${spreadCard}[data-computed="1"][data-follow="settled"]`, { timeout: 120000 });
+  assert.match(await page.locator(`${spreadCard} .vs-line`).textContent(), /Reference not computed here/);
+  await page.locator(spreadCard).getByRole('button', { name: 'Compute the reference too' }).click();
+  await page.waitForSelector(`${spreadCard} [data-key="yield"] .vs`, { timeout: 120000 });
+  const refYield = cli('crystal', pinned, '--spread').yield;
+  assert.ok((await page.locator(`${spreadCard} [data-key="yield"] .vs`).textContent())
+    .startsWith(`ref ${await words(page, (y) => HR.fixed(100 * y, 1), refYield)} %`));
   // Clear takes it all away.
   await page.getByRole('button', { name: 'Clear reference' }).click();
   await page.waitForFunction(() => !document.querySelector('#panel-crystal dd[data-key="f_osc"] .vs'));
   assert.equal(await page.locator(`${panel} figure.plane`).getAttribute('data-reference'), '');
+  assert.equal(await page.locator(`${spreadCard} [data-key="yield"] .vs`).count(), 0);
   await page.close();
 });

@@ -70,6 +70,23 @@ HR.crystalDesign = (() => {
     node.classList.add('wide', 'crystal-design');
     node.dataset.state = 'idle';
 
+    // Writes a choice into the circuit as one step of undo: only the values that differ
+    // from the design's (a value typed `1M` stays so), and no step when none does.
+    const use = (c) => {
+      const values = {};
+      const said = [];
+      for (const [key, v, kind, unit, name, words] of [['c1_f', c.c1_f, 'C', 'F', 'C1', cap], ['c2_f', c.c2_f, 'C', 'F', 'C2', cap],
+        ['rs_ohm', known(c.rs_ohm) ? c.rs_ohm : null, 'R', 'Ω', 'Rs', res], ['rf_ohm', c.rf_ohm, 'R', 'Ω', 'Rf', res]]) {
+        const now = HR.design.value('oscillator', key, unit);
+        const absent = (x) => !known(x) || (key === 'rs_ohm' && x === 0);
+        if (now === v || (absent(now) && absent(v))) continue;
+        values[key] = absent(v) ? '' : asText(v, kind, unit);
+        said.push(`${name} ${words(v)}`);
+      }
+      if (!said.length) { HR.setStatus('That choice is already in the circuit.'); return; }
+      HR.design.setMany('oscillator', values, `use ${said.join(', ')}`, 'crystal');
+    };
+
     const render = (d) => {
       const l = d.limits;
       const top = d.candidates[0];
@@ -84,11 +101,7 @@ HR.crystalDesign = (() => {
       list.node.hidden = !top;
       fillRows(list.tbody, d.candidates.map((c, i) => [String(i + 1), cap(c.c1_f), cap(c.c2_f), res(c.rs_ohm), res(c.rf_ohm), ppm(c.pull_ppm), fixed(c.margin, 2),
         known(c.drive_w) ? `${fmt(c.drive_w, 'W', 3)} (${DRIVE[c.drive]})` : DRIVE[c.drive], c.meets ? 'yes' : 'no', notes(c, l),
-        el('button', { type: 'button', class: 'apply', 'aria-label': `Use C1 ${cap(c.c1_f)}, C2 ${cap(c.c2_f)}, Rs ${res(c.rs_ohm)}, Rf ${res(c.rf_ohm)}`, onclick: () => {
-          const values = { c1_f: asText(c.c1_f, 'C', 'F'), c2_f: asText(c.c2_f, 'C', 'F'), rf_ohm: asText(c.rf_ohm, 'R', 'Ω'),
-            rs_ohm: known(c.rs_ohm) ? asText(c.rs_ohm, 'R', 'Ω') : '' };
-          HR.design.setMany('oscillator', values, `use C1 ${cap(c.c1_f)}, C2 ${cap(c.c2_f)}, Rs ${res(c.rs_ohm)}`, 'crystal');
-        } }, 'Use')]));
+        el('button', { type: 'button', class: 'apply', 'aria-label': `Use C1 ${cap(c.c1_f)}, C2 ${cap(c.c2_f)}, Rs ${res(c.rs_ohm)}, Rf ${res(c.rf_ohm)}`, onclick: () => use(c) }, 'Use')]));
       for (const [i, row] of [...list.tbody.rows].entries()) row.dataset.meets = String(d.candidates[i].meets);
     };
 
