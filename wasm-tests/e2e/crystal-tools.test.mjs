@@ -57,6 +57,7 @@ test('Design ranks choices as halfrail crystal --design; Use sets C1, C2 and Rs 
     assert.deepEqual(cells.slice(0, 6), expected, `row ${i + 1}`);
     assert.ok(cells[6].startsWith(await words(page, (w) => HR.fmt(w, 'W', 3), c.drive_w)), cells[6]);
     assert.equal(cells[7], c.meets ? 'yes' : 'no');
+    assert.equal(Number(await rows.nth(i).getAttribute('data-pull')), c.pull_ppm, 'bit for bit');
   }
   const verdict = await page.locator(`${designCard} [data-key="verdict"]`).textContent();
   assert.match(verdict, /^The best choice meets a frequency error within ±10\.0 ppm, a start-up margin of 5\.0 or more and a drive level of at most 200 µW/);
@@ -139,6 +140,7 @@ test('the spread: a yield and figures as halfrail crystal --spread; Cancel stops
   const want = cli('crystal', text, '--spread');
   const head = await page.locator(`${spreadCard} [data-key="yield"]`).textContent();
   assert.equal(head, `Yield ${await words(page, (y) => HR.fixed(100 * y, 1), want.yield)} %`);
+  assert.equal(Number(await page.locator(`${spreadCard} [data-key="yield"]`).getAttribute('data-value')), want.yield, 'bit for bit');
   const rows = page.locator(`${spreadCard} table tbody tr`);
   const means = await words(page, (w) => [`${w.pull_ppm.mean > 0 ? '+' : ''}${HR.fixed(w.pull_ppm.mean, 2)} ppm`, HR.fixed(w.margin.mean, 2), HR.fmt(w.drive_w.mean, 'W', 3)], want);
   for (const [i, mean] of means.entries()) assert.equal(await rows.nth(i).locator('td').nth(1).textContent(), mean);

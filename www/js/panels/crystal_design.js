@@ -102,7 +102,8 @@ HR.crystalDesign = (() => {
       fillRows(list.tbody, d.candidates.map((c, i) => [String(i + 1), cap(c.c1_f), cap(c.c2_f), res(c.rs_ohm), res(c.rf_ohm), ppm(c.pull_ppm), fixed(c.margin, 2),
         known(c.drive_w) ? `${fmt(c.drive_w, 'W', 3)} (${DRIVE[c.drive]})` : DRIVE[c.drive], c.meets ? 'yes' : 'no', notes(c, l),
         el('button', { type: 'button', class: 'apply', 'aria-label': `Use C1 ${cap(c.c1_f)}, C2 ${cap(c.c2_f)}, Rs ${res(c.rs_ohm)}, Rf ${res(c.rf_ohm)}`, onclick: () => use(c) }, 'Use')]));
-      for (const [i, row] of [...list.tbody.rows].entries()) row.dataset.meets = String(d.candidates[i].meets);
+      // What each row is, unrounded, for a test to compare with the command's.
+      for (const [i, row] of [...list.tbody.rows].entries()) Object.assign(row.dataset, { meets: String(d.candidates[i].meets), pull: String(d.candidates[i].pull_ppm) });
     };
 
     // Design once asked, then again a pause after each change of what it depends on.

@@ -75,6 +75,7 @@ HR.crystalSpread = (() => {
       const words = `a frequency error within ±${fixed(s.limits.pull_max_ppm, 1)} ppm, a margin of ${fixed(s.limits.margin_min, 1)} or more${known(s.limits.drive_max_w) ? ` and a drive level of at most ${fmt(s.limits.drive_max_w, 'W', 3)}` : ''}`;
       const more = `${s.ringing ? ` ${s.ringing} trials ring without the crystal and count as failing.` : ''}${s.unsolved ? ` ${s.unsolved} trials could not be solved and count as failing.` : ''}`;
       yieldHead.textContent = known(s.yield) ? `Yield ${yieldOf(s)}` : 'No yield: no trial could be judged on every limit';
+      if (known(s.yield)) yieldHead.dataset.value = String(s.yield); else delete yieldHead.dataset.value;
       yieldText.textContent = `${known(s.yield) ? `${passed} of the ${s.judged} trials judged on every limit meet ${words}. ` : ''}${known(s.limits.drive_max_w)
         ? `Judged: the ${solved} of the first ${s.drive_trials} trials whose steady state was solved, and the ${s.judged - solved} others that already miss the frequency or margin limit. ` : ''}${known(s.yield_small_signal)
         ? `Of all ${s.trials} trials, ${pct(s.yield_small_signal)} meet the frequency and margin limits.` : ''}${more}`;
