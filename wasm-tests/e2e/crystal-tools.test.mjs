@@ -146,6 +146,9 @@ test('the spread: a yield and figures as halfrail crystal --spread; Cancel stops
   for (const [i, mean] of means.entries()) assert.equal(await rows.nth(i).locator('td').nth(1).textContent(), mean);
   assert.equal(await rows.nth(2).locator('td').last().textContent(), String(want.drive_w.count));
   assert.match(await page.locator(`${spreadCard} .intro`).nth(1).textContent(), new RegExp(`Of all ${want.trials} trials, `));
+  const said = await page.locator(spreadCard).innerText();
+  for (const key of ['pull_ppm', 'drive_w', 'c1_f', 'vdd_v', 'kn_a_per_v2']) assert.ok(!said.includes(key), `${key} shown`);
+  assert.match(said, /Drawn in each trial: C1 \(gate side\), C2 \(output side\), /);
   // Three histograms, each drawn.
   const ranges = await page.locator(`${spreadCard} figure.plot`).evaluateAll((fs) => fs.map((f) => f.dataset.xRange || ''));
   assert.equal(ranges.length, 3);
