@@ -315,6 +315,25 @@ pub fn crystal_curves(text: &str) -> Result<JsValue, JsValue> {
     to_js(&wire::CrystalCurves { oscillator: &oscillator, curves: &curves })
 }
 
+/// The oscillator's design helper: C1, C2, Rs and Rf ranked, and what would meet
+/// the limits when nothing does (the same as `halfrail crystal --design`). Tens of
+/// milliseconds (steady states): the page runs it in a worker.
+#[wasm_bindgen(js_name = crystalDesign)]
+pub fn crystal_design(text: &str) -> Result<JsValue, JsValue> {
+    to_js(&wire::CrystalDesignReport(&doc::load(text).and_then(|d| d.crystal_design()).map_err(thrown)?))
+}
+
+/// The oscillator's spread over the `tolerance` section: the summary of
+/// `halfrail crystal --spread` and every trial's figures as columns. Long (the
+/// first trials solve their steady state): the page runs it in a worker, and
+/// `progress` hears the fraction of trials done.
+#[wasm_bindgen(js_name = crystalSpread)]
+pub fn crystal_spread(text: &str, progress: &js_sys::Function) -> Result<JsValue, JsValue> {
+    let document = doc::load(text).map_err(thrown)?;
+    let result = document.crystal_spread(None, &mut reporter(progress)).map_err(thrown)?;
+    to_js(&wire::CrystalSpreadReport(&result))
+}
+
 /// Panics on purpose: the page's recovery from a trap (report it, keep the design,
 /// start a fresh module) is tested with it. Nothing in the page calls it.
 #[wasm_bindgen(js_name = trapForTest)]

@@ -34,6 +34,8 @@ const SCRIPTS = [
   'js/panels/swing.js',
   'js/panels/spread.js',
   'js/panels/chain.js',
+  'js/panels/crystal_design.js',
+  'js/panels/crystal_spread.js',
   'js/panels/crystal.js',
   'js/embed.js',
   'js/documents.js',

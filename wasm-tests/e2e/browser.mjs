@@ -13,13 +13,13 @@ export const PAGE_URL = 'file://' + PAGE_PATH;
 // The native CLI the page is compared with (built by `make test-e2e`).
 export const CLI_PATH = path.resolve(here, '..', '..', 'target', 'debug', 'halfrail');
 
-// `halfrail VERB FILE` on the document `text` (written to a scratch file), as JSON.
-export function cli(verb, text) {
+// `halfrail VERB FILE [FLAGS…]` on the document `text` (written to a scratch file), as JSON.
+export function cli(verb, text, ...flags) {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), `halfrail-${verb}-`));
   const file = path.join(dir, 'design.halfrail.json');
   fs.writeFileSync(file, text);
   try {
-    return JSON.parse(execFileSync(CLI_PATH, [verb, file]));
+    return JSON.parse(execFileSync(CLI_PATH, [verb, file, ...flags]));
   } finally {
     fs.rmSync(dir, { recursive: true, force: true });
   }

@@ -209,3 +209,38 @@ fn spread_trials_split_and_joined_give_the_whole_spread() {
     let err = wasm::spread_finish(&document, "{\"gain_db\": [1]}").unwrap_err();
     assert_eq!(text(&err, "field"), "trials");
 }
+
+#[wasm_bindgen_test]
+fn the_crystal_design_and_spread_of_the_demo() {
+    let demo = wasm::demo_document();
+    // The helper's choices, best first, each with its values and verdict.
+    let d = wasm::crystal_design(&demo).unwrap();
+    assert_eq!(get(&d, "met").as_bool(), Some(true));
+    assert_eq!(Array::from(&get(&d, "advice")).length(), 0);
+    let candidates = Array::from(&get(&d, "candidates"));
+    assert!(candidates.length() >= 1);
+    let best = candidates.get(0);
+    for key in ["c1_f", "c2_f", "rf_ohm", "pull_ppm", "margin"] {
+        assert!(number(&best, key).is_finite(), "{key}");
+    }
+    assert_eq!(get(&best, "meets").as_bool(), Some(true));
+    // A small spread: its summary, every trial's columns, and the progress heard.
+    let document = demo.replacen("\"trials\": 2000", "\"trials\": 6", 1);
+    let heard = Array::new();
+    let progress = js_sys::Function::new_with_args("p", "this.push(p)").bind0(&heard);
+    let s = wasm::crystal_spread(&document, &progress).unwrap();
+    let summary = get(&s, "summary");
+    assert_eq!(number(&summary, "trials"), 6.0);
+    let y = number(&summary, "yield");
+    assert!((0.0..=1.0).contains(&y), "yield {y}");
+    let trials = get(&s, "trials");
+    for key in ["pull_ppm", "margin", "drive_w", "rings", "pass"] {
+        assert_eq!(Array::from(&get(&trials, key)).length(), 6, "{key}");
+    }
+    assert_eq!(heard.length(), 6);
+    assert_eq!(heard.get(5).as_f64(), Some(1.0));
+    // Without the part, both name it.
+    let bare = r#"{"halfrail": 1}"#;
+    assert_eq!(text(&wasm::crystal_design(bare).unwrap_err(), "field"), "part");
+    assert_eq!(text(&wasm::crystal_spread(bare, &progress).unwrap_err(), "field"), "part");
+}

@@ -5,9 +5,11 @@
 // them, the core's figures and warnings, and four plots: the negative resistance
 // against gm, the same impedance in the complex plane as gm varies, the frequency
 // error against the load, and the start-up envelope. The report and the curves are
-// computed in a worker (crystalReport takes the steady state: tens of milliseconds).
-// A document without the sections gets a word of explanation and a button that adds
-// the demo's oscillator as one step of undo.
+// computed in a worker (crystalReport takes the steady state: tens of milliseconds),
+// each with the pinned reference's (HR.compare) beside it. The design helper and the
+// spread are cards of their own (crystal_design.js, crystal_spread.js). A document
+// without the sections gets a word of explanation and a button that adds the demo's
+// oscillator as one step of undo.
 
 (() => {
   const { el, card } = HR.ui;
@@ -60,6 +62,14 @@
       vpp_out: [known(r.vpp_out_v) ? `${fmt(r.vpp_out_v, 'V', 3)} p-p` : withheld, r.vpp_out_v],
     };
   };
+
+  // What the reference comparison subtracts: [value, how] (HR.compare.figures).
+  const DIFFS = {
+    f_osc: (r) => [[r.f_osc_hz, 'Hz']], pull: (r) => [[r.pull_ppm, '']], f_steady: (r) => [[r.f_steady_hz, 'Hz']], f_s: (r) => [[r.f_s_hz, 'Hz']],
+    cl_eff: (r) => [[r.cl_eff_f, 'F']], r_neg: (r) => [[r.r_neg_ohm, 'Ω']], margin: (r) => [[r.margin, '']], gm: (r) => [[r.gm_s, 'S']],
+    tau: (r) => [[r.tau_s, '×']], drive: (r) => [[r.drive_w, 'W']], im: (r) => [[r.im_a, 'A']], vpp_gate: (r) => [[r.vpp_gate_v, 'V']], vpp_out: (r) => [[r.vpp_out_v, 'V']],
+  };
+  const locusPoints = (g) => g.z_re_ohm.map((re, i) => (known(re) && known(g.z_im_ohm[i]) ? [re, g.z_im_ohm[i]] : null));
 
   // ---- The schematic, in SVG ---------------------------------------------------------
   const SVG = 'http://www.w3.org/2000/svg';
@@ -142,8 +152,9 @@
     square: true,
     idle: (d) => `The part’s own gm is ringed; the crystal starts left of −ESR. Hover the curve for gm and Z_c.`,
     home: (d) => {
-      const xs = [...d.points.filter(Boolean).map((p) => p[0]), 0, -d.c.target_ohm];
-      const ys = [...d.points.filter(Boolean).map((p) => p[1]), 0];
+      const all = [...d.points, ...(d.ref || [])].filter(Boolean);
+      const xs = [...all.map((p) => p[0]), 0, -d.c.target_ohm];
+      const ys = [...all.map((p) => p[1]), 0];
       const [x0, x1, y0, y1] = [Math.min(...xs), Math.max(...xs), Math.min(...ys), Math.max(...ys)];
       const pad = 0.08 * Math.max(x1 - x0, y1 - y0, 1);
       return [x0 - pad, x1 + pad, y0 - pad, y1 + pad];
@@ -165,17 +176,25 @@
         ctx.stroke();
         planeLabel(ctx, words, P.x(re) + 4, P.box.t + 14 + 14 * row, colour, 'left', P);
       }
-      ctx.setLineDash([]);
-      ctx.strokeStyle = css('--plot-1');
-      ctx.lineWidth = 2;
-      ctx.beginPath();
-      let pen = false;
-      for (const p of d.points) {
-        if (!p) { pen = false; continue; }
-        if (pen) ctx.lineTo(P.x(p[0]), P.y(p[1])); else ctx.moveTo(P.x(p[0]), P.y(p[1]));
-        pen = true;
+      const path = (points, colour, width, dash) => {
+        ctx.strokeStyle = colour;
+        ctx.lineWidth = width;
+        ctx.setLineDash(dash);
+        ctx.beginPath();
+        let pen = false;
+        for (const p of points) {
+          if (!p) { pen = false; continue; }
+          if (pen) ctx.lineTo(P.x(p[0]), P.y(p[1])); else ctx.moveTo(P.x(p[0]), P.y(p[1]));
+          pen = true;
+        }
+        ctx.stroke();
+      };
+      // The reference's locus, under this design's.
+      if (d.ref) {
+        path(d.ref, muted, 1.5, [6, 4]);
+        planeLabel(ctx, '- - reference', P.box.l + 6, P.box.t + P.box.h - 8, muted, 'left', P);
       }
-      ctx.stroke();
+      path(d.points, css('--plot-1'), 2, []);
       ctx.restore();
       const [re, im] = d.c.z_c;
       planeRing(ctx, P.x(re), P.y(im), 6, css('--plot-2'));
@@ -312,7 +331,9 @@
       const envNote = el('p', { class: 'plot-note' }, 'From 60 dB below the steady amplitude; the dashed curve is the small-signal growth that never slows.');
       envCell.append(envNote);
 
-      const render = ([r, c]) => {
+      // The figures and curves, with the pinned reference's (HR.compare) when it has them.
+      const render = HR.compare.rerender(([r, c]) => {
+        const [rr, rc] = [HR.compare.report('crystalReport'), HR.compare.report('crystalCurves')];
         const t = texts(r);
         for (const [k] of FIGURES) {
           const [words, value, note] = t[k];
@@ -327,25 +348,30 @@
           : [el('li', { class: 'ok' }, 'No warnings: it starts with the margin wanted, runs near its nominal frequency and drives the crystal within its rating.')]));
         withheld.hidden = !r.large_withheld;
         withheld.textContent = r.large_withheld ? `No large-signal figures: ${r.large_withheld}.` : '';
+        HR.compare.figures(Object.fromEntries(FIGURES.map(([k]) => [k, cells[k].parentNode])),
+          (x) => Object.fromEntries(Object.entries(texts(x)).map(([k, [words]]) => [k, words])), DIFFS, r, rr);
         last = c;
         const g = c.gm;
-        gmPlot.setData([g.gm_s, g.r_neg_ohm]);
-        plane.setData({ c, points: g.z_re_ohm.map((re, i) => (known(re) && known(g.z_im_ohm[i]) ? [re, g.z_im_ohm[i]] : null)) });
-        pullPlot.setData([c.pulling.cl_f, c.pulling.pull_ppm]);
+        gmPlot.setData([g.gm_s, g.r_neg_ohm], rc && [rc.gm.gm_s, rc.gm.r_neg_ohm]);
+        plane.setData({ c, points: locusPoints(g), ref: rc ? locusPoints(rc.gm) : undefined });
+        pullPlot.setData([c.pulling.cl_f, c.pulling.pull_ppm], rc && [rc.pulling.cl_f, rc.pulling.pull_ppm]);
         const e = c.envelope;
+        const re = rc && rc.envelope;
         envCell.hidden = !e;
-        if (e) envPlot.setData([e.t_s, e.im_a, e.im_linear_a]);
+        if (e) envPlot.setData([e.t_s, e.im_a, e.im_linear_a], re && [re.t_s, re.im_a]);
         redraw();
-      };
+      });
 
+      const designCard = HR.crystalDesign.create(container);
+      const spreadCard = HR.crystalSpread.create(container);
       container.append(el('h1', {}, 'Crystal'),
         el('p', { class: 'lede' }, 'The part as a Pierce crystal oscillator: whether it starts, where it runs against the crystal’s nominal frequency, and how hard it drives the crystal.'),
-        el('div', { class: 'cards' }, empty, inputs, figures, plotsCard));
+        el('div', { class: 'cards' }, empty, inputs, figures, designCard, plotsCard, spreadCard));
       const layout = () => {
         const has = hasSections();
         // The cards themselves: `.cards` lays out as a grid, which `hidden` on it would not undo.
         empty.hidden = has;
-        for (const c of [inputs, figures, plotsCard]) c.hidden = !has;
+        for (const c of [inputs, figures, designCard, plotsCard, spreadCard]) c.hidden = !has;
         add.hidden = has || HR.design.readOnly();
         container.dataset.crystal = has ? 'present' : 'absent';
         redraw();
@@ -360,7 +386,7 @@
       figures.querySelector('h2').after(box.node);
       box.attach(HR.background.follow(container, {
         job: (text) => (hasSections()
-          ? HR.background.calls([['crystalReport', [text]], ['crystalCurves', [text]]], { lane: 'crystal' })
+          ? HR.compare.along(HR.background.calls([['crystalReport', [text]], ['crystalCurves', [text]]], { lane: 'crystal' }), [['crystalReport'], ['crystalCurves']])
           : { promise: Promise.resolve({ ok: null }), cancel() {} }),
         delay: 0, quiet: HR.background.QUIET,
         render: (ok) => { layout(); if (ok) render(ok); },

@@ -56,7 +56,16 @@
     })();
     return { promise, cancel() { stopped = true; runs.forEach((r) => r.cancel()); } };
   };
-  HR.spread = { run };
+  // Counts of the trials' values in bins from the smallest to the largest, with an
+  // empty bin at each end so the outer bars show whole: [centres, counts].
+  const bins = (values, { min, max, count }) => {
+    const n = Math.max(1, Math.min(40, Math.round(Math.sqrt(count))));
+    const w = (max - min) / n || Math.abs(max) * 1e-6 || 1;
+    const counts = new Array(n + 2).fill(0);
+    for (const x of values) if (known(x)) counts[1 + Math.min(n - 1, Math.floor((x - min) / w))] += 1;
+    return [counts.map((_, i) => min + (i - 0.5) * w), counts];
+  };
+  HR.spread = { run, bins };
 
   // The target's limits on each figure as [lowest, highest] (null: no bound).
   const limits = () => {
@@ -148,16 +157,6 @@
           series: [{ label: 'trials', unit: '', opts: { paths: uPlot.paths.bars({ size: [1, Infinity] }), fill: css('--window') } }] });
         return { k, unit, plot, note: c.appendChild(el('p', { class: 'plot-note' })) };
       });
-
-      // Counts of the trials' values in bins from the smallest to the largest, with an
-      // empty bin at each end so the outer bars show whole: [centres, counts].
-      const bins = (values, { min, max, count }) => {
-        const n = Math.max(1, Math.min(40, Math.round(Math.sqrt(count))));
-        const w = (max - min) / n || Math.abs(max) * 1e-6 || 1;
-        const counts = new Array(n + 2).fill(0);
-        for (const x of values) if (known(x)) counts[1 + Math.min(n - 1, Math.floor((x - min) / w))] += 1;
-        return [counts.map((_, i) => min + (i - 0.5) * w), counts];
-      };
 
       // The reference's yield and each figure's mean (in the Mean column), when it is at hand.
       const yieldOf = (s) => (known(s.yield) ? `${fixed(100 * s.yield, 1)} %` : 'none');
