@@ -145,11 +145,14 @@ struct SpreadForm<'a> {
     /// The first this many trials solved their steady state (the drive level).
     drive_trials: u64,
     seed: u64,
-    /// The fraction of the judged trials that meet every limit.
+    /// The fraction of all trials that meet every limit (estimated: see `summarise`).
     #[serde(rename = "yield")]
     yield_fraction: Option<f64>,
-    judged: usize,
     yield_small_signal: Option<f64>,
+    /// With a drive limit: the trials with a steady state that meet the small-signal
+    /// limits, and the fraction of them within the drive limit.
+    drive_judged: usize,
+    drive_pass: Option<f64>,
     unsolved: usize,
     ringing: usize,
     limits: LimitsOut<'a>,
@@ -170,8 +173,9 @@ impl<'a> From<CrystalSpreadSummary<'a>> for SpreadForm<'a> {
             drive_trials: r.drive_trials,
             seed: r.seed,
             yield_fraction: s.yield_fraction,
-            judged: s.judged,
             yield_small_signal: s.yield_small_signal,
+            drive_judged: s.drive_judged,
+            drive_pass: s.drive_pass,
             unsolved: s.unsolved,
             ringing: s.ringing,
             limits: LimitsOut(&r.limits),

@@ -11,9 +11,9 @@
 //!
 //! Each trial's small-signal figures cost some tens of µs; its steady state (the
 //! drive level) some 10 ms, so only the first `drive_trials` trials solve it
-//! (`DEFAULT_DRIVE_TRIALS` by default). The yield counts the trials judged on
-//! every limit: with a drive limit, those with a steady state asked for, and any
-//! trial that already fails in small signal.
+//! (`DEFAULT_DRIVE_TRIALS` by default). The yield is the share of all trials that
+//! meet the small-signal limits times the share of those first trials meeting them
+//! that are also within the drive limit (`summarise`).
 
 use std::ops::Range;
 
@@ -202,25 +202,40 @@ pub struct Summary {
     pub ringing: usize,
     /// Per figure, in `Figure::ALL` order.
     pub stats: Vec<Option<Stats>>,
-    /// The trials judged on every limit, and the fraction of them that pass.
-    pub judged: usize,
+    /// The fraction of all trials that meet every limit: `yield_small_signal` times
+    /// `drive_pass` (the drive level is known only for the first trials, which are
+    /// drawn like every other, so their share is an unbiased estimate of all's).
     pub yield_fraction: Option<f64>,
     /// The fraction of all trials that meet the small-signal limits.
     pub yield_small_signal: Option<f64>,
+    /// With a drive limit: the trials with a steady state asked for that meet the
+    /// small-signal limits (whose drive level decides), and the fraction of them
+    /// within the drive limit.
+    pub drive_judged: usize,
+    pub drive_pass: Option<f64>,
 }
 
 pub fn summarise(trials: &[Trial], limits: &Limits) -> Summary {
     let stats = (0..Figure::ALL.len()).map(|k| Stats::of(&mut trials.iter().filter_map(|t| t.values[k]).collect::<Vec<_>>())).collect();
-    let verdicts: Vec<bool> = trials.iter().filter_map(|t| t.pass(limits)).collect();
     let fraction = |pass: usize, of: usize| (of > 0).then(|| pass as f64 / of as f64);
+    let small: Vec<&Trial> = trials.iter().filter(|t| t.passes_small_signal(limits)).collect();
+    let yield_small_signal = fraction(small.len(), trials.len());
+    let decided: Vec<bool> = small.iter().filter(|t| t.driven).filter_map(|t| t.pass(limits)).collect();
+    let drive_pass = limits.drive_max_w.and_then(|_| fraction(decided.iter().filter(|&&p| p).count(), decided.len()));
+    let yield_fraction = match (limits.drive_max_w, yield_small_signal) {
+        (None, y) | (Some(_), y @ Some(0.0)) => y,
+        (Some(_), Some(y)) => drive_pass.map(|d| y * d),
+        (Some(_), None) => None,
+    };
     Summary {
         trials: trials.len(),
         unsolved: trials.iter().filter(|t| t.rings.is_none()).count(),
         ringing: trials.iter().filter(|t| t.rings == Some(true)).count(),
         stats,
-        judged: verdicts.len(),
-        yield_fraction: fraction(verdicts.iter().filter(|&&v| v).count(), verdicts.len()),
-        yield_small_signal: fraction(trials.iter().filter(|t| t.passes_small_signal(limits)).count(), trials.len()),
+        yield_fraction,
+        yield_small_signal,
+        drive_judged: if limits.drive_max_w.is_some() { decided.len() } else { 0 },
+        drive_pass,
     }
 }
 

@@ -69,16 +69,14 @@ HR.crystalSpread = (() => {
       last = r;
       const s = r.summary;
       lim = bounds(s.limits);
-      const pass = r.trials.pass;
-      const passed = pass.filter((p) => p === true).length;
-      const solved = pass.slice(0, s.drive_trials).filter((p) => p !== null).length;
       const words = `a frequency error within ±${fixed(s.limits.pull_max_ppm, 1)} ppm, a margin of ${fixed(s.limits.margin_min, 1)} or more${known(s.limits.drive_max_w) ? ` and a drive level of at most ${fmt(s.limits.drive_max_w, 'W', 3)}` : ''}`;
       const more = `${s.ringing ? ` ${s.ringing} trials ring without the crystal and count as failing.` : ''}${s.unsolved ? ` ${s.unsolved} trials could not be solved and count as failing.` : ''}`;
-      yieldHead.textContent = known(s.yield) ? `Yield ${yieldOf(s)}` : 'No yield: no trial could be judged on every limit';
+      yieldHead.textContent = known(s.yield) ? `Yield ${yieldOf(s)}` : 'No yield: no trial whose drive level was solved meets the frequency and margin limits';
       if (known(s.yield)) yieldHead.dataset.value = String(s.yield); else delete yieldHead.dataset.value;
-      yieldText.textContent = `${known(s.yield) ? `${passed} of the ${s.judged} trials judged on every limit meet ${words}. ` : ''}${known(s.limits.drive_max_w)
-        ? `Judged: the ${solved} of the first ${s.drive_trials} trials whose steady state was solved, and the ${s.judged - solved} others that already miss the frequency or margin limit. ` : ''}${known(s.yield_small_signal)
-        ? `Of all ${s.trials} trials, ${pct(s.yield_small_signal)} meet the frequency and margin limits.` : ''}${more}`;
+      const small = known(s.yield_small_signal) ? `${pct(s.yield_small_signal)} of all ${s.trials} trials meet the frequency and margin limits` : '';
+      yieldText.textContent = known(s.limits.drive_max_w)
+        ? `The share of all trials that meet ${words}. ${small}; the drive level is solved for the first ${s.drive_trials}, and of the ${s.drive_judged} of those that meet them, ${known(s.drive_pass) ? pct(s.drive_pass) : 'none'} are within the drive limit: the yield is the product.${more}`
+        : `${small}.${more}`;
       fillRows(stats.tbody, FIGURES.map(([k, name, unit]) => {
         const st = s[k];
         return [name, show(s.nominal[k], unit), st ? show(st.mean, unit) : 'in no trial', st ? show(st.std, unit) : '—',
