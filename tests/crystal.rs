@@ -11,6 +11,7 @@ use cli::{crystal_refuses, halfrail, written};
 use oscillator::reference;
 use std::f64::consts::TAU;
 
+use halfrail::analysis::crystal::design::Limits;
 use halfrail::analysis::crystal::{analyse_circuit, oscillation, Bvd, Datasheet, Linear, Motional, Oscillator};
 use halfrail::engine::{operating_point, Element, Node, OperatingPoint};
 use halfrail::pierce::{build_around, Parts, PierceCircuit};
@@ -111,7 +112,7 @@ fn negative_resistance_of_an_ideal_transconductor_is_vittozs() {
 
 fn ideal_oscillator(gm: f64, c1: f64, c2: f64, c3: f64, crystal: &Datasheet) -> Oscillator {
     let (circuit, op) = ideal(gm, c1, c2, c3);
-    analyse_circuit(&circuit, &op, crystal, 5.0).unwrap()
+    analyse_circuit(&circuit, &op, crystal, &Limits { margin_min: 5.0, pull_max_ppm: 10.0, drive_max_w: None }).unwrap()
 }
 
 #[test]
@@ -319,6 +320,14 @@ fn warnings_name_what_is_wrong() {
     d["oscillator"]["c1_f"] = json!("8p");
     d["oscillator"]["c2_f"] = json!("8p");
     assert!(codes(&d).contains(&"crystal_load"), "{:?}", codes(&d));
+    // Warned beyond the frequency error the user allows, not a fixed ±10 ppm.
+    let pull = oscillator(&d).pull_ppm.abs();
+    d["oscillator"]["pull_max_ppm"] = json!(pull * 1.01);
+    let o = oscillator(&d);
+    assert!(!o.warnings.iter().any(|w| w.code == "crystal_load"), "{pull} ppm within {}: {:?}", pull * 1.01, o.warnings);
+    d["oscillator"]["pull_max_ppm"] = json!(pull * 0.99);
+    let said = oscillator(&d).warnings.into_iter().find(|w| w.code == "crystal_load").expect("warned");
+    assert!(said.text.contains(&format!("±{:.1} ppm", pull * 0.99)), "{}", said.text);
     // A buffered part rings through Rf and the capacitors by itself.
     let mut d = reference();
     d["part"]["stages"] = json!(3);

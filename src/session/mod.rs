@@ -315,7 +315,7 @@ impl Document {
         let part = self.part.as_ref().ok_or_else(|| missing(&F::PART, "the oscillator needs the part"))?;
         let crystal = self.crystal.as_ref().ok_or_else(|| missing(&F::CRYSTAL, "the oscillator needs the crystal's figures"))?;
         let oscillator = self.oscillator.as_ref().ok_or_else(|| missing(&F::OSCILLATOR, "the oscillator needs the circuit around the part"))?;
-        analyse(&part.to_core(), &crystal.to_core(), &oscillator.to_core(), oscillator.margin_min).map_err(located_in_oscillator)
+        analyse(&part.to_core(), &crystal.to_core(), &oscillator.to_core(), &self.crystal_limits()?).map_err(located_in_oscillator)
     }
 
     /// The part fitted to the `bench` readings, starting from the document's part.
@@ -404,7 +404,7 @@ fn needs_f_design() -> String {
 }
 
 /// One of the oscillator analyses (`analysis::crystal::analyse` or its small-signal part).
-type CrystalAnalysis = fn(&crate::part::Part, &crate::analysis::crystal::Datasheet, &crate::pierce::Parts, f64) -> Result<crate::analysis::crystal::Oscillator>;
+type CrystalAnalysis = fn(&crate::part::Part, &crate::analysis::crystal::Datasheet, &crate::pierce::Parts, &crate::analysis::crystal::design::Limits) -> Result<crate::analysis::crystal::Oscillator>;
 
 /// An error of the oscillator's circuit placed in the document: the engine names
 /// the oscillator's elements by their keys (`rf_ohm`, `c0_f`), so the first one it

@@ -209,6 +209,7 @@ mod tests {
             x_c_ohm: 0.0,
             margin: 10.0,
             margin_min: 5.0,
+            pull_max_ppm: 10.0,
             gm_s: 1e-2,
             gm_crit_s: Some(1e-3),
             tau_s: Some(tau),

@@ -46,8 +46,8 @@ use crate::values::Series;
 
 /// The frequency error allowed when the document names none, ppm: crystals are
 /// commonly specified to ±10…±30 ppm at 25 °C, and the load capacitance should
-/// not spend that budget (common practice; `PULL_WARN_PPM` warns at the same).
-pub const DEFAULT_PULL_MAX_PPM: f64 = super::PULL_WARN_PPM;
+/// not spend that budget (common practice; the analysis warns beyond the limit).
+pub const DEFAULT_PULL_MAX_PPM: f64 = 10.0;
 
 /// The capacitors tried, F: ordinary C0G values for a crystal's load.
 const C_LOW: f64 = 1e-12;
@@ -234,7 +234,7 @@ impl Search<'_> {
     /// The pair analysed in full with its own Rf and the Rs it was screened with.
     fn analysed(&self, point: &Point, runs: &mut usize) -> Result<Candidate> {
         let parts = self.parts(point.c1, point.c2, self.choose_rf(point.c1, point.c2, point.rs), point.rs);
-        let oscillator = analyse(self.part, self.crystal, &parts, self.wanted.limits.margin_min)?;
+        let oscillator = analyse(self.part, self.crystal, &parts, &self.wanted.limits)?;
         *runs += 1;
         let verdict = self.verdict(&oscillator);
         Ok(Candidate { parts, oscillator, verdict })
@@ -270,7 +270,7 @@ impl Search<'_> {
                     break;
                 }
                 parts = Parts { rs: Some(resistors[index]), ..parts };
-                oscillator = analyse(self.part, self.crystal, &parts, self.wanted.limits.margin_min)?;
+                oscillator = analyse(self.part, self.crystal, &parts, &self.wanted.limits)?;
                 *runs += 1;
             }
         }

@@ -28,15 +28,11 @@ use std::f64::consts::TAU;
 use super::stability::{fastest_growing, growth_hz};
 use super::{stage_operating_point, Warning};
 use crate::engine::OperatingPoint;
+use design::Limits;
 use crate::error::Result;
 use crate::part::Part;
 use crate::pierce::{build, PierceCircuit, Parts};
 use crate::units::{format_eng, Unit};
-
-/// A frequency error beyond this many ppm from the load capacitance alone is
-/// warned about: crystals are commonly specified to ±10…±30 ppm at 25 °C, and a
-/// wrong load should not spend that budget (common practice).
-pub const PULL_WARN_PPM: f64 = 10.0;
 
 /// Rf is warned about when it takes more than this share of the negative
 /// resistance the circuit would have without it: a fifth of the margin is as much
@@ -67,7 +63,9 @@ pub struct Oscillator {
     pub x_c_ohm: f64,
     /// −r_neg/Rm.
     pub margin: f64,
+    /// The margin wanted and the frequency error allowed (warned about beyond them).
     pub margin_min: f64,
+    pub pull_max_ppm: f64,
     /// Stage 1's transconductance at the bias, S.
     pub gm_s: f64,
     /// The smallest stage-1 transconductance (all stages scaled alike) at which the
@@ -90,10 +88,10 @@ pub struct Oscillator {
 }
 
 /// The oscillator of `part` in the circuit `parts` (its C0 taken from the crystal)
-/// with the crystal `crystal`; the margin wanted `margin_min`: the small-signal
+/// with the crystal `crystal`; held to `limits` (margin and frequency error): the small-signal
 /// figures and the steady state.
-pub fn analyse(part: &Part, crystal: &Datasheet, parts: &Parts, margin_min: f64) -> Result<Oscillator> {
-    let (mut found, circuit, op) = prepared(part, crystal, parts, margin_min)?;
+pub fn analyse(part: &Part, crystal: &Datasheet, parts: &Parts, limits: &Limits) -> Result<Oscillator> {
+    let (mut found, circuit, op) = prepared(part, crystal, parts, limits)?;
     found.large = if found.spurious_hz.is_some() {
         Err("the circuit oscillates by itself without the crystal: its steady state is not the crystal's".to_string())
     } else if found.margin <= 1.0 {
@@ -107,22 +105,22 @@ pub fn analyse(part: &Part, crystal: &Datasheet, parts: &Parts, margin_min: f64)
 
 /// The same without the steady state (`large` says so): the small-signal figures
 /// alone, some milliseconds where the steady state takes tens.
-pub fn analyse_small_signal(part: &Part, crystal: &Datasheet, parts: &Parts, margin_min: f64) -> Result<Oscillator> {
-    Ok(prepared(part, crystal, parts, margin_min)?.0)
+pub fn analyse_small_signal(part: &Part, crystal: &Datasheet, parts: &Parts, limits: &Limits) -> Result<Oscillator> {
+    Ok(prepared(part, crystal, parts, limits)?.0)
 }
 
-fn prepared(part: &Part, crystal: &Datasheet, parts: &Parts, margin_min: f64) -> Result<(Oscillator, PierceCircuit, OperatingPoint)> {
+fn prepared(part: &Part, crystal: &Datasheet, parts: &Parts, limits: &Limits) -> Result<(Oscillator, PierceCircuit, OperatingPoint)> {
     part.check_supply()?;
     let law = part.law()?;
     let circuit = build(part, &law, &Parts { c0: crystal.c0_f, ..*parts })?;
     let op = stage_operating_point(part, &law, &circuit.netlist)?;
-    let found = analyse_circuit(&circuit, &op, crystal, margin_min)?;
+    let found = analyse_circuit(&circuit, &op, crystal, limits)?;
     Ok((found, circuit, op))
 }
 
 /// The small-signal figures of any Pierce circuit already solved at its bias `op`
 /// (the steady state left for `analyse`, which knows the supply).
-pub fn analyse_circuit(circuit: &PierceCircuit, op: &OperatingPoint, crystal: &Datasheet, margin_min: f64) -> Result<Oscillator> {
+pub fn analyse_circuit(circuit: &PierceCircuit, op: &OperatingPoint, crystal: &Datasheet, limits: &Limits) -> Result<Oscillator> {
     let bvd = Bvd::of(crystal);
     let lin = Linear::new(circuit, op)?;
     let nominal = lin.nominal();
@@ -150,7 +148,8 @@ pub fn analyse_circuit(circuit: &PierceCircuit, op: &OperatingPoint, crystal: &D
         r_neg_ohm,
         x_c_ohm: z.im,
         margin,
-        margin_min,
+        margin_min: limits.margin_min,
+        pull_max_ppm: limits.pull_max_ppm,
         gm_s: lin.gm_s,
         gm_crit_s,
         tau_s,
@@ -198,7 +197,7 @@ fn warnings(o: &Oscillator, crystal: &Datasheet, circuit: &PierceCircuit, vdd: O
         );
     }
     let steady_ppm = o.large.as_ref().ok().map(|d| 1e6 * (d.f_hz - crystal.f_hz) / crystal.f_hz);
-    if o.pull_ppm.abs() > PULL_WARN_PPM || steady_ppm.is_some_and(|p| p.abs() > PULL_WARN_PPM) {
+    if o.pull_ppm.abs() > o.pull_max_ppm || steady_ppm.is_some_and(|p| p.abs() > o.pull_max_ppm) {
         let mut text = match crystal.cl_f {
             Some(cl) => format!(
                 "the circuit loads the crystal with {} against the {} it is specified at: it runs {:+.1} ppm off its nominal frequency",
@@ -215,6 +214,7 @@ fn warnings(o: &Oscillator, crystal: &Datasheet, circuit: &PierceCircuit, vdd: O
         if let Some(p) = steady_ppm {
             text.push_str(&format!("; at its steady amplitude, {p:+.1} ppm"));
         }
+        text.push_str(&format!(" (the frequency error allowed is ±{:.1} ppm)", o.pull_max_ppm));
         warn("crystal_load", text);
     }
     if let Some(f) = o.spurious_hz {
