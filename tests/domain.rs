@@ -112,11 +112,11 @@ fn sweep_row(doc: &Value, design_index: usize, seed: u64) -> Option<std::collect
 
 /// The sweep's row at f_design carries the same gain as `analyze`: to 1e-6 dB, or
 /// to the doubles' own floor for this stage where that is coarser.
-fn sweep_agrees(doc: &Value, design_index: usize, gain_db: f64, seed: u64) {
+fn sweep_agrees(doc: &Value, small: Option<&Small>, design_index: usize, gain_db: f64, seed: u64) {
     let row = sweep_row(doc, design_index, seed).unwrap_or_else(|| panic!("seed {seed}: analyze printed but sweep refused"));
     let f_design = num(doc, "analysis.f_design_hz", seed);
     close(row["f_hz"] / f_design, 1.0, 1e-9, "the sweep's frequency at f_design", seed);
-    let tol = 1e-6 + 3.0 * gain_floor_db(doc, f_design);
+    let tol = 1e-6 + 3.0 * small.map_or(0.0, |s| gain_floor_db(s, f_design));
     close(row["gain_db"], gain_db, tol, "the sweep's gain at f_design against analyze", seed);
 }
 
@@ -129,12 +129,10 @@ fn sweep_agrees(doc: &Value, design_index: usize, gain_db: f64, seed: u64) {
 /// sixteen of them, one to eight ulps either side (four once gave a third of the
 /// spread, seed 1592591613: a 0.97 mF input coupling at 643 kHz, 3.9·10³ S beside
 /// R fb's 1.2·10⁻⁸ S at the gate, 1.0·10⁻⁴ dB between sweep and analyze).
-fn gain_floor_db(doc: &Value, f_design: f64) -> f64 {
-    let Ok(document) = halfrail::doc::load(&doc.to_string()) else { return 0.0 };
-    let Ok((part, stage)) = document.part_and_stage() else { return 0.0 };
-    let Ok(lin) = halfrail::analysis::Linearised::new(&part, &stage, document.sweep().map_or(50.0, |a| a.z0_ohm)) else { return 0.0 };
+fn gain_floor_db(small: &Small, f_design: f64) -> f64 {
+    let (lin, stage) = (&small.lin, &small.stage);
     let ulps = (1..=8).flat_map(|k| [-(k as f64), k as f64]);
-    let gains: Vec<f64> = ulps.filter_map(|k| lin.at(f_design * (1.0 + k * f64::EPSILON), &stage).ok()).map(|p| p.gain_db()).collect();
+    let gains: Vec<f64> = ulps.filter_map(|k| lin.at(f_design * (1.0 + k * f64::EPSILON), stage).ok()).map(|p| p.gain_db()).collect();
     let (lo, hi) = gains.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &g| (a.min(g), b.max(g)));
     if hi >= lo { hi - lo } else { 0.0 }
 }
@@ -181,8 +179,24 @@ fn large_agrees(report: &Value, seed: u64) {
     }
 }
 
+/// The stage of a document linearised at its bias, built once per document for
+/// the checks that solve it directly.
+struct Small {
+    stage: halfrail::stage::Components,
+    lin: halfrail::analysis::Linearised,
+}
+
+impl Small {
+    fn of(doc: &Value) -> Option<Small> {
+        let document = halfrail::doc::load(&doc.to_string()).ok()?;
+        let (part, stage) = document.part_and_stage().ok()?;
+        let lin = halfrail::analysis::Linearised::new(&part, &stage, document.sweep().map_or(50.0, |a| a.z0_ohm)).ok()?;
+        Some(Small { stage, lin })
+    }
+}
+
 /// The fundamental of the steady-state waveform at a small level against |Av|.
-fn transient_agrees(doc: &Value, gain_db: f64, seed: u64) {
+fn transient_agrees(doc: &Value, small: Option<&Small>, gain_db: f64, seed: u64) {
     let f = num(doc, "analysis.f_design_hz", seed);
     // The fundamentals (peak volts) of the input pin, the output and the last
     // inverter's own output at `dbm`; the record is whole periods, so one DFT bin
@@ -212,7 +226,7 @@ fn transient_agrees(doc: &Value, gain_db: f64, seed: u64) {
     // −140): such a stage is driven lower, until the largest small-signal swing of
     // any inverter, or of the output, is a thousandth of the supply.
     let vdd = num(doc, "part.vdd_v", seed);
-    let mut level = small_signal_level_dbm(doc, f, 1e-3 * vdd).map_or(-80.0, |l| l.min(-80.0));
+    let mut level = small.and_then(|s| small_signal_level_dbm(s, f, 1e-3 * vdd)).map_or(-80.0, |l| l.min(-80.0));
     let Some(mut at) = fundamentals(level) else { return };
     let swing = at[1].max(at[2]);
     if swing > 1e-3 * vdd {
@@ -235,10 +249,8 @@ fn transient_agrees(doc: &Value, gain_db: f64, seed: u64) {
 
 /// The available source power (dBm) at which the largest small-signal swing at
 /// `f` of any inverter output or of the output pin is `swing` volts peak.
-fn small_signal_level_dbm(doc: &Value, f: f64, swing: f64) -> Option<f64> {
-    let document = halfrail::doc::load(&doc.to_string()).ok()?;
-    let (part, stage) = document.part_and_stage().ok()?;
-    let lin = halfrail::analysis::Linearised::new(&part, &stage, 50.0).ok()?;
+fn small_signal_level_dbm(small: &Small, f: f64, swing: f64) -> Option<f64> {
+    let (lin, stage) = (&small.lin, &small.stage);
     let small = lin.small_signal();
     let x = small.solve(std::f64::consts::TAU * f).ok()?;
     let nodes = &lin.circuit().nodes;
@@ -326,11 +338,12 @@ fn check_document(seed: u64) {
         num(&report, key, seed);
     }
     let gain_db = num(&report, "ac.gain_db", seed);
-    sweep_agrees(doc, drawn.design_index, gain_db, seed);
+    let small = Small::of(doc);
+    sweep_agrees(doc, small.as_ref(), drawn.design_index, gain_db, seed);
     loop_agrees(&report, seed);
     large_agrees(&report, seed);
     if report["loop"]["stable"] == json!(true) && doc["stage"].get("source_ohm").is_some() && seed % 3 == 0 {
-        transient_agrees(doc, gain_db, seed);
+        transient_agrees(doc, small.as_ref(), gain_db, seed);
     }
     design_agrees(doc, drawn.design_index, seed);
     spread_agrees(doc, &report, seed);
