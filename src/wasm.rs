@@ -302,7 +302,23 @@ pub fn spread_report(text: &str, progress: &js_sys::Function) -> Result<JsValue,
 /// of milliseconds (the steady state): the page runs it in a worker.
 #[wasm_bindgen(js_name = crystalReport)]
 pub fn crystal_report(text: &str) -> Result<JsValue, JsValue> {
-    to_js(&wire::CrystalReport(&doc::load(text).and_then(|d| d.crystal()).map_err(thrown)?))
+    to_js(&wire::CrystalReport(&oscillator_of(text, &doc::load(text).map_err(thrown)?)?))
+}
+
+thread_local! {
+    /// The last document's oscillator: the panel asks for the report and then the
+    /// curves of the same text, and the steady state is most of either's time.
+    static LAST_OSCILLATOR: std::cell::RefCell<Option<(String, crate::analysis::crystal::Oscillator)>> = const { std::cell::RefCell::new(None) };
+}
+
+/// The oscillator of `document` (read from `text`), solved once per text.
+fn oscillator_of(text: &str, document: &doc::Document) -> Result<crate::analysis::crystal::Oscillator, JsValue> {
+    if let Some(o) = LAST_OSCILLATOR.with_borrow(|last| last.as_ref().filter(|(t, _)| t == text).map(|(_, o)| o.clone())) {
+        return Ok(o);
+    }
+    let o = document.crystal().map_err(thrown)?;
+    LAST_OSCILLATOR.set(Some((text.to_owned(), o.clone())));
+    Ok(o)
 }
 
 /// The Crystal panel's curves (negative resistance and locus against gm, pulling
@@ -310,7 +326,7 @@ pub fn crystal_report(text: &str) -> Result<JsValue, JsValue> {
 #[wasm_bindgen(js_name = crystalCurves)]
 pub fn crystal_curves(text: &str) -> Result<JsValue, JsValue> {
     let document = doc::load(text).map_err(thrown)?;
-    let oscillator = document.crystal().map_err(thrown)?;
+    let oscillator = oscillator_of(text, &document)?;
     let curves = document.crystal_curves(&oscillator).map_err(thrown)?;
     to_js(&wire::CrystalCurves { oscillator: &oscillator, curves: &curves })
 }
