@@ -137,17 +137,19 @@ impl Waveforms for Settling<'_> {
     }
 
     fn run(&self, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> Result<Wave> {
-        if let [_, _, ..] = tones {
+        let shot = if let [_, _, ..] = tones {
             let mean_square: f64 = tones.iter().map(|t| t.amplitude * t.amplitude).sum();
             let carrier = tones.iter().map(|t| t.f_hz).sum::<f64>() / tones.len() as f64;
             let same_power = Tone { amplitude: mean_square.sqrt(), f_hz: carrier };
-            return match self.steady.shifted_bias(&same_power, &mut |_| {}) {
-                Ok(base) => self.time.run_about(&base, tones, record, progress),
-                Err(e) if e.field == "circuit" => self.time.run(tones, record, progress),
+            match self.steady.shifted_bias(&same_power, &mut |_| {}) {
+                Ok(base) => return self.time.run_about(&base, tones, record, progress),
                 Err(e) => Err(e),
-            };
-        }
-        match self.steady.run(tones, record, progress) {
+            }
+        } else {
+            self.steady.run(tones, record, progress)
+        };
+        // Where the shooting fails in the engine, the transient from the bias.
+        match shot {
             Err(e) if e.field == "circuit" => self.time.run(tones, record, progress),
             done => done,
         }
