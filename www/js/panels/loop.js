@@ -106,8 +106,8 @@
     const [unit, kind] = KNOBS[key] ? [HR.field('stage', key).unit, KNOBS[key]] : ['', 'R'];
     const rkm = HR.rkm(v, kind);
     const shown = unit === 'Ω' ? rkm || fmt(v, unit, 3) : fmt(v, unit, 3);
-    const look = HR.call('lookUp', String(v));
-    const series = look.ok && look.ok.member_of.length ? ` · ${look.ok.member_of[0]}` : '';
+    const coarsest = HR.seriesOf(v);
+    const series = coarsest ? ` · ${coarsest}` : '';
     const back = rkm ? HR.call('parseValue', rkm, unit, `stage.${key}`) : { error: true };
     return { shown: `${shown}${series}`, text: back.ok && back.ok.value === v ? rkm : v };
   };

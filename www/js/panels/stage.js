@@ -29,8 +29,8 @@
     if (parsed.error) return { text: `${name} | ${text} (!)`, short: false };
     const v = parsed.ok.value;
     const shown = unit === 'Ω' ? (v === 0 ? '0 (short)' : HR.rkm(v, 'R') || HR.fmt(v, 'Ω', 3)) : HR.fmt(v, 'F', 3);
-    const look = v > 0 ? HR.call('lookUp', String(v)) : { error: true };
-    const series = look.ok && look.ok.member_of.length ? ` · ${look.ok.member_of[0]}` : '';
+    const coarsest = v > 0 ? HR.seriesOf(v) : '';
+    const series = coarsest ? ` · ${coarsest}` : '';
     return { text: `${name} | ${shown}${series}`, short: v === 0 };
   };
 
