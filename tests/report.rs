@@ -371,3 +371,132 @@ fn without_a_part_the_bill_lists_the_components_and_says_why_no_ratings() {
     assert!(!rows.iter().any(|r| r[0] == "U1" || r[0] == "C dec"), "{md}");
     assert!(md.contains("the document has no part section to give the supply"), "{md}");
 }
+
+/// The crystal-oscillator section of a sheet (plain text or Markdown): from its
+/// heading to the next.
+fn crystal_section(sheet: &str) -> &str {
+    let start = sheet.find("Crystal oscillator\n").unwrap_or_else(|| panic!("no crystal section in:\n{sheet}"));
+    let rest = &sheet[start..];
+    &rest[..rest.find("Before you build\n").unwrap_or(rest.len())]
+}
+
+/// The number that leads a shown figure (`136 µW against 200 µW rated`,
+/// `+5.75 ppm`), read by the core's own parser.
+fn leading(shown: &str) -> f64 {
+    let text = shown.split(" against ").next().unwrap().split(" (").next().unwrap().trim_start_matches('+');
+    let text = text.strip_suffix(" ppm").unwrap_or(text);
+    parse(text).unwrap_or_else(|e| panic!("`{shown}`: {e}")).value
+}
+
+/// `label`'s figure in `section` agrees with `expected` within half a unit of its
+/// last printed digit (`digits` significant, or `decimals` when given).
+fn crystal_agrees(section: &str, label: &str, expected: &serde_json::Value, digits: i32, decimals: Option<i32>) {
+    let shown = figure(section, label);
+    let expected = expected.as_f64().unwrap_or_else(|| panic!("{label}: {expected}"));
+    let half_step = match decimals {
+        Some(d) => 0.5 * 10f64.powi(-d),
+        None => 0.5 * 10f64.powi(expected.abs().log10().floor() as i32 - digits + 1),
+    };
+    let got = leading(shown);
+    assert!((got - expected).abs() <= half_step * (1.0 + 1e-9), "{label}: sheet `{shown}` against {expected}");
+}
+
+/// The demo has an oscillator (issue "Crystal"): `halfrail report` gives it a section
+/// with the figures `halfrail crystal` prints, at the precision shown — where it
+/// runs, how far off, the load, the negative resistance and margin, gm against the
+/// critical gm, τ, the steady state and the drive against the crystal's rating — the
+/// parts to buy (C1, C2, Rs, Rf and the crystal, classes and ratings as the stage's),
+/// the oscillator's cautions, and the sheet's cautions still after it.
+#[test]
+fn the_crystal_section_shows_the_figures_of_halfrail_crystal_and_its_parts() {
+    let demo = demo_path();
+    let report = halfrail(&["report", &demo]);
+    assert!(report.status.success(), "{}", String::from_utf8_lossy(&report.stderr));
+    let sheet = String::from_utf8(report.stdout).unwrap();
+    let section = crystal_section(&sheet);
+    let c = json_of(&halfrail(&["crystal", &demo]));
+    crystal_agrees(section, "Series resonance f_s", &c["f_s_hz"], 9, None);
+    crystal_agrees(section, "Oscillation frequency", &c["f_osc_hz"], 9, None);
+    crystal_agrees(section, "Frequency error", &c["pull_ppm"], 0, Some(2));
+    crystal_agrees(section, "Effective load capacitance", &c["cl_eff_f"], 3, None);
+    crystal_agrees(section, "Negative resistance Re Z_c", &c["r_neg_ohm"], 3, None);
+    crystal_agrees(section, "Start-up margin −R/ESR", &c["margin"], 3, None);
+    crystal_agrees(section, "gm against critical gm", &c["gm_s"], 3, None);
+    let crit = figure(section, "gm against critical gm").split(" against ").nth(1).unwrap().trim_end_matches(|ch: char| ch != 'S');
+    let crit_json = c["gm_crit_s"].as_f64().unwrap();
+    assert!((parse(crit).unwrap().value - crit_json).abs() <= 0.005 * crit_json, "critical gm `{crit}` against {crit_json}");
+    crystal_agrees(section, "Start-up time constant τ", &c["tau_s"], 3, None);
+    crystal_agrees(section, "Drive level", &c["drive_w"], 3, None);
+    assert!(figure(section, "Drive level").ends_with("against 200 µW rated"), "the crystal's rating beside it");
+    crystal_agrees(section, "Crystal current (amplitude)", &c["im_a"], 3, None);
+    crystal_agrees(section, "Swing at the gate", &c["vpp_gate_v"], 3, None);
+    crystal_agrees(section, "Swing at the output", &c["vpp_out_v"], 3, None);
+    let steady_ppm = 1e6 * (c["f_steady_hz"].as_f64().unwrap() - 12.8e6) / 12.8e6;
+    crystal_agrees(section, "Frequency error, steady", &steady_ppm.into(), 0, Some(2));
+    assert!(c["spurious_hz"].is_null());
+    assert_eq!(figure(section, "Without the crystal"), "stable: no oscillation of its own");
+    assert!(figure(section, "Start-up margin −R/ESR").ends_with("(wanted ≥ 5.0)"), "the demo's margin_min");
+    assert_eq!(c["warnings"].as_array().unwrap().len(), 0, "the demo's oscillator meets its limits");
+    assert!(!section.contains("Warning:"));
+
+    // Its parts, in the Markdown sheet's table.
+    let md = demo_sheet().render(Style::Markdown);
+    let rows: Vec<Vec<String>> = crystal_section(&md)
+        .lines()
+        .filter(|l| l.starts_with("| ") && !l.starts_with("| ---") && !l.starts_with("| ref ") && !l.starts_with("| figure "))
+        .map(|l| l[2..l.len() - 2].split(" | ").map(String::from).collect())
+        .filter(|r: &Vec<String>| r.len() == 5)
+        .collect();
+    let expected: Vec<Vec<&str>> = vec![
+        vec!["C1", "15.0 pF", "capacitor C0G (common practice)", "±10 % (K)", "10 V"],
+        vec!["C2", "15.0 pF", "capacitor C0G (common practice)", "±10 % (K)", "10 V"],
+        vec!["Rs", "2k7", "resistor", "±1 % (F)", "≥ 3.47 V"],
+        vec!["Rf", "1M0", "resistor", "±1 % (F)", "≥ 3.47 V"],
+        vec!["Y1", "12.8000 MHz", "crystal, CL 12.0 pF, ESR ≤ 35.0 Ω", "—", "200 µW"],
+    ];
+    assert_eq!(rows, expected, "{md}");
+    assert!(md.contains("## Crystal oscillator"), "a heading of its own");
+
+    // The oscillator's cautions, then the sheet's, which apply to it too.
+    let flat = |t: &str| t.split_whitespace().collect::<Vec<_>>().join(" ");
+    for caution in halfrail::report::OSCILLATOR_CAUTIONS {
+        assert!(flat(section).contains(caution), "the section lacks {caution:?}");
+    }
+    let after = &sheet[sheet.find("\nCrystal oscillator\n").unwrap()..];
+    for caution in CAUTIONS {
+        assert!(flat(after).contains(caution), "no {caution:?} after the crystal section");
+    }
+    for line in sheet.lines() {
+        assert!(line.chars().count() <= 80, "wider than 80 columns: {line:?}");
+    }
+}
+
+/// An oscillator that misses its limits says so in the section, in the warnings of
+/// `halfrail crystal`; without the sections there is no crystal section, and with
+/// one of the two the section says what is missing.
+#[test]
+fn the_crystal_section_warns_and_says_why_when_it_cannot_be_had() {
+    let mut doc: serde_json::Value = serde_json::from_str(DEMO).unwrap();
+    doc["crystal"]["drive_max_w"] = "50u".into();
+    doc["oscillator"]["margin_min"] = 20.into();
+    doc["oscillator"].as_object_mut().unwrap().remove("rs_ohm");
+    let path = scratch("crystal-warns.json", &doc.to_string());
+    let sheet = String::from_utf8(halfrail(&["report", path.to_str().unwrap()]).stdout).unwrap();
+    let section = crystal_section(&sheet);
+    let c = json_of(&halfrail(&["crystal", path.to_str().unwrap()]));
+    let codes: Vec<&str> = c["warnings"].as_array().unwrap().iter().map(|w| w["code"].as_str().unwrap()).collect();
+    assert!(codes.contains(&"crystal_overdrive") && codes.contains(&"crystal_margin"), "{codes:?}");
+    let flat = section.split_whitespace().collect::<Vec<_>>().join(" ");
+    for w in c["warnings"].as_array().unwrap() {
+        assert!(flat.contains(&format!("Warning: {}", w["text"].as_str().unwrap())), "{w} not in:\n{section}");
+    }
+    assert!(!section.contains("\nRs "), "no Rs fitted, none to buy:\n{section}");
+    assert!(section.contains("o drives x directly"));
+    assert!(figure(section, "Drive level").ends_with("against 50.0 µW rated"));
+
+    let without = load(&demo_without(&["crystal", "oscillator"])).unwrap().sheet().render(Style::Text);
+    assert!(!without.contains("Crystal oscillator"), "no section without the sections");
+    let half = load(&demo_without(&["oscillator"])).unwrap().sheet().render(Style::Text);
+    assert!(crystal_section(&half).contains("Not computed: oscillator"), "{}", crystal_section(&half));
+    assert!(half.contains("Before you build"), "the rest stands");
+}
