@@ -7,7 +7,7 @@
 
 use super::bom::{self, Tolerances};
 use super::layout::Block;
-use super::sheet::{eng, known, or_why, pairs, significant};
+use super::sheet::{eng, known, pairs, significant};
 use crate::analysis::crystal::{Datasheet, Oscillator};
 use crate::error::Result;
 use crate::part::Part;
@@ -28,12 +28,10 @@ pub struct CrystalSheet {
 /// (12.8000000 MHz is 0.1 Hz, under 0.01 ppm).
 pub const FREQUENCY_DIGITS: usize = 9;
 
-/// Cautions of the oscillator beyond the sheet's own (common practice).
-pub const OSCILLATOR_CAUTIONS: [&str; 3] = [
-    "Keep the crystal, C1 and C2 close to the part, with short traces over a ground plane: board strays pull the frequency and can stop the start (common practice).",
-    "Measure the frequency through a buffer or a probe of a picofarad or less: a probe's capacitance on the crystal pulls it (common practice).",
-    "Check that it starts cold, hot and at the lowest supply, and the crystal's load capacitance, ESR and drive rating in its datasheet.",
-];
+/// The oscillator's caution beyond the sheet's own, among them under "Before you
+/// build" (common practice).
+pub const OSCILLATOR_CAUTION: &str =
+    "Oscillator: C1, C2 in C0G, next to the part with Y1 over a ground plane; probe through a buffer (common practice).";
 
 fn hertz(f: f64) -> String {
     format_eng(f, Some(Unit::Hertz), FREQUENCY_DIGITS)
@@ -49,11 +47,12 @@ pub fn ppm(x: f64) -> String {
     }
 }
 
-/// The section: its heading, then the figures, warnings, parts and cautions, or
-/// one line saying why the oscillator could not be analysed.
+/// The section: its heading, then the figures, warnings and parts, or one line
+/// saying why the oscillator could not be analysed. Compact, as the printed sheet
+/// lays the figures and the parts side by side: six figures, four columns of parts.
 pub fn section(blocks: &mut Vec<Block>, c: &CrystalSheet, part: Option<&Part>, tolerances: Option<Tolerances>, series: Option<Series>) {
     blocks.push(Block::Heading("Crystal oscillator".into()));
-    let o = match (&c.oscillator, &c.crystal, &c.parts) {
+    let (o, crystal, parts) = match (&c.oscillator, &c.crystal, &c.parts) {
         (Ok(o), Some(crystal), Some(parts)) => (o, crystal, parts),
         (Err(why), _, _) => {
             blocks.push(Block::Paragraph(format!("Not computed: {why}.")));
@@ -64,68 +63,51 @@ pub fn section(blocks: &mut Vec<Block>, c: &CrystalSheet, part: Option<&Part>, t
             return;
         }
     };
-    let (o, crystal, parts) = o;
     figures(blocks, o, crystal);
     if !o.warnings.is_empty() {
         blocks.push(Block::Bullets(o.warnings.iter().map(|w| format!("Warning: {}", w.text)).collect()));
     }
-    let rs = parts.rs.filter(|&r| r > 0.0);
-    let stray = if parts.c_stray > 0.0 { format!("; {} of board and pin stray across the crystal assumed", eng(parts.c_stray, Unit::Farad)) } else { String::new() };
-    blocks.push(Block::Paragraph(format!(
-        "Pierce circuit: g is the inverter's input, o its output, x the crystal's far end; Rf g–o, C1 g–gnd, {}C2 x–gnd, Y1 x–g{stray}.",
-        if rs.is_some() { "Rs o–x, " } else { "o drives x directly, " }
-    )));
-    blocks.push(Block::Paragraph("To buy for the oscillator (the inverter is the part above):".into()));
+    // The topology is SPEC §3.5's (Rf g–o, C1 g–gnd, Rs o–x, C2 x–gnd, the crystal x–g):
+    // the sheet says only what the figures assume beyond the parts.
+    blocks.push(Block::Paragraph(if parts.c_stray > 0.0 {
+        format!("To buy ({} stray across Y1 assumed):", eng(parts.c_stray, Unit::Farad))
+    } else {
+        "To buy:".to_string()
+    }));
     bom::oscillator_bill(blocks, parts, crystal, o.large.as_ref().ok().map(|d| d.drive_w), part, tolerances, series);
-    let mut cautions: Vec<String> = OSCILLATOR_CAUTIONS.iter().map(|c| c.to_string()).collect();
-    cautions.push("The cautions under Before you build apply to the oscillator too.".into());
-    blocks.push(Block::Bullets(cautions));
 }
 
+/// Six figures, each label short and each value one line beside the parts on paper.
 fn figures(blocks: &mut Vec<Block>, o: &Oscillator, crystal: &Datasheet) {
-    let nominal = match crystal.cl_f {
-        Some(cl) => format!("{} at CL {}", hertz(crystal.f_hz), eng(cl, Unit::Farad)),
-        None => format!("{} (series resonance)", hertz(crystal.f_hz)),
-    };
-    let load = match crystal.cl_f {
-        Some(cl) => format!("{} (the crystal's {})", eng(o.cl_eff_f, Unit::Farad), eng(cl, Unit::Farad)),
-        None => eng(o.cl_eff_f, Unit::Farad),
-    };
     let gm = match known(o.gm_crit_s) {
-        Some(crit) => format!("{} against {} critical ({}×)", eng(o.gm_s, Unit::Siemens), eng(crit, Unit::Siemens), significant(o.gm_s / crit, 3)),
-        None => format!("{} (no gm makes it start)", eng(o.gm_s, Unit::Siemens)),
+        Some(crit) => format!("{}, critical {}", eng(o.gm_s, Unit::Siemens), eng(crit, Unit::Siemens)),
+        None => format!("{}, none starts it", eng(o.gm_s, Unit::Siemens)),
     };
     let mut rows = vec![
-        ("Crystal", nominal),
-        ("Series resonance f_s", hertz(o.bvd.f_s)),
-        ("Oscillation frequency", hertz(o.f_osc_hz)),
-        ("Frequency error", ppm(o.pull_ppm)),
-        ("Effective load capacitance", load),
-        ("Negative resistance Re Z_c", eng(o.r_neg_ohm, Unit::Ohm)),
-        ("Start-up margin −R/ESR", format!("{} (wanted ≥ {})", significant(o.margin, 3), significant(o.margin_min, 2))),
-        ("gm against critical gm", gm),
-        ("Start-up time constant τ", or_why(o.tau_s, |t| eng(t, Unit::Second), "it does not start")),
+        ("Frequency", format!("{} ({}), CL {}", hertz(o.f_osc_hz), ppm(o.pull_ppm), eng(o.cl_eff_f, Unit::Farad))),
+        ("Negative R", format!("{}, margin {} (≥ {})", eng(o.r_neg_ohm, Unit::Ohm), significant(o.margin, 3), shortest(o.margin_min))),
+        ("gm", gm),
+        ("Start-up τ", o.tau_s.filter(|t| t.is_finite()).map_or_else(|| "— (it does not start)".to_string(), |t| eng(t, Unit::Second))),
     ];
     match &o.large {
         Ok(d) => {
-            let limit = crystal.drive_max_w.map_or_else(String::new, |w| format!(" against {} rated", eng(w, Unit::Watt)));
-            rows.extend([
-                ("Drive level", format!("{}{limit}", eng(d.drive_w, Unit::Watt))),
-                ("Crystal current (amplitude)", eng(d.im_a, Unit::Ampere)),
-                ("Swing at the gate", eng(d.vpp_gate_v, Unit::Vpp)),
-                ("Swing at the output", eng(d.vpp_out_v, Unit::Vpp)),
-                ("Frequency error, steady", ppm(1e6 * (d.f_hz - crystal.f_hz) / crystal.f_hz)),
-            ]);
+            let limit = crystal.drive_max_w.map_or_else(String::new, |w| format!(" ({} rated)", eng(w, Unit::Watt)));
+            rows.push(("Drive", format!("{}{limit}", eng(d.drive_w, Unit::Watt))));
+            rows.push(("Swing g, o", format!("{}, {}", eng(d.vpp_gate_v, Unit::Vpp), eng(d.vpp_out_v, Unit::Vpp))));
         }
         Err(why) => rows.push(("Steady state", format!("— ({why})"))),
     }
-    let alone = match o.spurious_hz {
-        None => "stable: no oscillation of its own".to_string(),
-        Some(f) if f > 0.0 => format!("oscillates by itself at about {}", eng(f, Unit::Hertz)),
-        Some(_) => "runs away by itself (latches)".to_string(),
-    };
-    rows.push(("Without the crystal", alone));
     blocks.push(pairs("figure", rows));
+}
+
+/// A plain number as short as it is exact to three digits (`5`, `2.5`, `0.333`).
+fn shortest(x: f64) -> String {
+    let text = significant(x, 3);
+    if text.contains('.') {
+        text.trim_end_matches('0').trim_end_matches('.').to_string()
+    } else {
+        text
+    }
 }
 
 #[cfg(test)]
@@ -137,6 +119,14 @@ mod tests {
         assert_eq!(ppm(3.214), "+3.21 ppm");
         assert_eq!(ppm(-0.5), "-0.50 ppm");
         assert_eq!(ppm(-0.001), "0.00 ppm", "no negative zero");
+    }
+
+    #[test]
+    fn plain_numbers_without_trailing_zeros() {
+        assert_eq!(shortest(5.0), "5");
+        assert_eq!(shortest(2.5), "2.5");
+        assert_eq!(shortest(12.0), "12");
+        assert_eq!(shortest(1234.0), "1234");
     }
 
     #[test]

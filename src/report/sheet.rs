@@ -103,7 +103,11 @@ impl Sheet {
             super::oscillator::section(&mut blocks, c, self.part.as_ref(), self.tolerances, self.series);
         }
         blocks.push(Block::Heading("Before you build".into()));
-        blocks.push(Block::Bullets(CAUTIONS.iter().map(|c| c.to_string()).collect()));
+        let mut cautions: Vec<String> = CAUTIONS.iter().map(|c| c.to_string()).collect();
+        if self.crystal.is_some() {
+            cautions.push(super::oscillator::OSCILLATOR_CAUTION.to_string());
+        }
+        blocks.push(Block::Bullets(cautions));
         Page {
             title: self.title.as_deref().filter(|t| !t.trim().is_empty()).unwrap_or("Untitled design").to_string(),
             subtitle: format!("Design sheet, Halfrail {}", env!("CARGO_PKG_VERSION")),

@@ -353,6 +353,43 @@ test('The printed sheet has a bill of materials: each fitted part with its value
   await page.close();
 });
 
+test('The printed sheet has the demo’s crystal oscillator: its figures as the Crystal panel’s report gives them, the parts to buy and its caution, within two pages', async () => {
+  const { page, seen } = await openPanel(browser.context, 'stage');
+  await pressPrint(page);
+  const xtal = page.locator('#sheet section').filter({ has: page.locator('h2', { hasText: /^Crystal oscillator$/ }) });
+  assert.equal(await xtal.count(), 1, 'a section of its own');
+  const text = await xtal.textContent();
+  const figures = await xtal.locator('table').first().locator('tbody tr').evaluateAll((trs) => trs.map((tr) => tr.cells[0].textContent));
+  assert.deepEqual(figures, ['Frequency', 'Negative R', 'gm', 'Start-up τ', 'Drive', 'Swing g, o']);
+  // The same figures as the Crystal panel's (crystalReport, the same as `halfrail crystal`).
+  const shown = await page.evaluate(() => {
+    const r = wasm_bindgen.crystalReport(HR.design.text());
+    return { pull: `(${r.pull_ppm >= 0 ? '+' : ''}${HR.fixed(r.pull_ppm, 2)} ppm)`, drive: HR.fmt(r.drive_w, 'W'), tau: HR.fmt(r.tau_s, 's'), warnings: r.warnings.length };
+  });
+  assert.ok(text.includes(shown.pull), `the frequency error ${shown.pull}`);
+  assert.ok(text.includes(`${shown.drive} (200 µW rated)`), `the drive ${shown.drive} against the crystal's rating`);
+  assert.ok(text.includes(shown.tau), `τ ${shown.tau}`);
+  assert.equal(shown.warnings, 0);
+  const parts = xtal.locator('table').filter({ has: page.locator('th', { hasText: /^ref$/ }) });
+  assert.deepEqual(await parts.locator('thead th').allTextContents(), ['ref', 'value', 'part', 'rating']);
+  const rows = await parts.locator('tbody tr').evaluateAll((trs) => trs.map((tr) => [...tr.cells].map((c) => c.textContent)));
+  assert.deepEqual(rows.map((r) => r[0]), ['C1', 'C2', 'Rs', 'Rf', 'Y1']);
+  assert.deepEqual(rows[4], ['Y1', '12.8 MHz', 'crystal CL 12.0 pF, ESR ≤ 35.0 Ω', '200 µW']);
+  assert.deepEqual(rows[0].slice(1), ['15.0 pF', 'C0G ±10 % (K)', '10 V']);
+  const cautions = page.locator('#sheet section').filter({ has: page.locator('h2', { hasText: /^Before you build$/ }) });
+  assert.match(await cautions.textContent(), /Oscillator: C1, C2 in C0G, next to the part with Y1 over a ground plane/);
+  for (const format of ['A4', 'Letter']) {
+    const pdf = await readPdf(await page.pdf({ format }));
+    assert.ok(pdf.pages.length <= 2, `${pdf.pages.length} ${format} pages`);
+    for (const t of ['Crystal oscillator', shown.pull, 'crystal CL 12.0 pF, ESR ≤ 35.0 Ω', 'Oscillator: C1, C2 in C0G']) {
+      assert.ok(pdf.text.includes(squash(t)), `${format}: the PDF has “${t}”`);
+    }
+  }
+  assert.deepEqual(seen.requests, []);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});
+
 // Every label drawn on the sheet's plots (their boxes, in the image's pixels): none
 // meets another, each lies in the image, the marks' stand above the plot area (no
 // curve there) and the levels' where no curve passes.

@@ -578,7 +578,8 @@ HR.sheet = (() => {
     const draft = HR.design.text();
     return checked.text === draft && Boolean(body) && body.text === sourceOf(draft, checked.error).text && linkIsCurrent();
   };
-  // 'preparing' while a run is in the background, else 'idle'.
+  // What the background is doing about the sheet: 'preparing' (a run in the lane),
+  // 'waiting' (the pause after a change), else 'idle'.
   const state = () => (running ? 'preparing' : timer ? 'waiting' : 'idle');
 
   return { print, linkIsCurrent, ready, state };
