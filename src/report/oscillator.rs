@@ -1,9 +1,11 @@
 //! The design sheet's crystal-oscillator section (issue "Crystal"): what a
 //! technician builds the Pierce oscillator from and checks it against — its
 //! figures (SPEC §3.5: where it runs, how far off, whether and how fast it starts,
-//! how hard the crystal is driven), the warnings, the parts to buy and the
-//! oscillator's own cautions. The analysis arrives as its result or the reason it
-//! could not be had, as every section of the sheet does.
+//! how hard the crystal is driven), the warnings and the parts to buy; its caution
+//! joins the sheet's under "Before you build". The analysis arrives as its result
+//! or the reason it could not be had, as every section of the sheet does. It is
+//! kept short: the printed sheet sets the figures beside the parts, and the demo's
+//! sheet, oscillator and all, prints on two pages.
 
 use super::bom::{self, Tolerances};
 use super::layout::Block;
