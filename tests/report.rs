@@ -371,3 +371,128 @@ fn without_a_part_the_bill_lists_the_components_and_says_why_no_ratings() {
     assert!(!rows.iter().any(|r| r[0] == "U1" || r[0] == "C dec"), "{md}");
     assert!(md.contains("the document has no part section to give the supply"), "{md}");
 }
+
+/// The crystal-oscillator section of a sheet (plain text or Markdown): from its
+/// heading to the next.
+fn crystal_section(sheet: &str) -> &str {
+    let start = sheet.find("Crystal oscillator\n").unwrap_or_else(|| panic!("no crystal section in:\n{sheet}"));
+    let rest = &sheet[start..];
+    &rest[..rest.find("Before you build\n").unwrap_or(rest.len())]
+}
+
+/// A number as the sheet shows it (`136 µW`, `+5.75 ppm`, `τ 123 µs`), read by the
+/// core's own parser.
+fn reading(shown: &str) -> f64 {
+    let text = shown.trim().trim_start_matches("τ ").trim_start_matches("margin ").trim_start_matches('+');
+    let text = text.split(" (").next().unwrap().split(" ppm").next().unwrap();
+    parse(text).unwrap_or_else(|e| panic!("`{shown}`: {e}")).value
+}
+
+/// The `part`th comma-separated piece of `label`'s figure in `section`.
+fn piece<'a>(section: &'a str, label: &str, part: usize) -> &'a str {
+    let shown = figure(section, label);
+    shown.split(", ").nth(part).unwrap_or_else(|| panic!("{label}: no piece {part} in `{shown}`"))
+}
+
+/// `shown` agrees with `expected` within half a unit of its last printed digit
+/// (`digits` significant, or `decimals` when given).
+fn reads_as(label: &str, shown: &str, expected: &serde_json::Value, digits: i32, decimals: Option<i32>) {
+    let expected = expected.as_f64().unwrap_or_else(|| panic!("{label}: {expected}"));
+    let half_step = match decimals {
+        Some(d) => 0.5 * 10f64.powi(-d),
+        None => 0.5 * 10f64.powi(expected.abs().log10().floor() as i32 - digits + 1),
+    };
+    let got = reading(shown);
+    assert!((got - expected).abs() <= half_step * (1.0 + 1e-9), "{label}: sheet `{shown}` against {expected}");
+}
+
+/// The demo has an oscillator (issue "Crystal"): `halfrail report` gives it a section
+/// with the figures `halfrail crystal` prints, at the precision shown — where it
+/// runs and how far off, the load, the negative resistance and margin, gm against
+/// the critical gm, τ, the steady swing and the drive against the crystal's rating
+/// — the parts to buy (C1, C2, Rs, Rf and the crystal, classes and ratings as the
+/// stage's), and its caution among the sheet's cautions after it.
+#[test]
+fn the_crystal_section_shows_the_figures_of_halfrail_crystal_and_its_parts() {
+    let demo = demo_path();
+    let report = halfrail(&["report", &demo]);
+    assert!(report.status.success(), "{}", String::from_utf8_lossy(&report.stderr));
+    let sheet = String::from_utf8(report.stdout).unwrap();
+    let section = crystal_section(&sheet);
+    let c = json_of(&halfrail(&["crystal", &demo]));
+    let frequency = figure(section, "Frequency");
+    reads_as("f_osc", frequency.split(" (").next().unwrap(), &c["f_osc_hz"], 9, None);
+    reads_as("pull", frequency.split(" (").nth(1).unwrap(), &c["pull_ppm"], 0, Some(2));
+    reads_as("cl_eff", piece(section, "Frequency", 1).trim_start_matches("CL "), &c["cl_eff_f"], 3, None);
+    reads_as("r_neg", piece(section, "Negative R", 0), &c["r_neg_ohm"], 3, None);
+    reads_as("margin", piece(section, "Negative R", 1), &c["margin"], 3, None);
+    assert!(figure(section, "Negative R").ends_with("(≥ 5)"), "the demo's margin_min");
+    reads_as("gm", piece(section, "gm", 0), &c["gm_s"], 3, None);
+    reads_as("gm_crit", piece(section, "gm", 1).trim_start_matches("critical "), &c["gm_crit_s"], 3, None);
+    reads_as("tau", figure(section, "Start-up τ"), &c["tau_s"], 3, None);
+    reads_as("drive", figure(section, "Drive"), &c["drive_w"], 3, None);
+    assert!(figure(section, "Drive").ends_with("(200 µW rated)"), "the crystal's rating beside it");
+    reads_as("vpp gate", piece(section, "Swing g, o", 0), &c["vpp_gate_v"], 3, None);
+    reads_as("vpp out", piece(section, "Swing g, o", 1), &c["vpp_out_v"], 3, None);
+    assert_eq!(c["warnings"].as_array().unwrap().len(), 0, "the demo's oscillator meets its limits");
+    assert!(!section.contains("Warning:"));
+    assert!(section.contains("To buy (3.00 pF stray across Y1 assumed):"), "the stray the figures assume");
+
+    // Its parts, in the Markdown sheet's table.
+    let md = demo_sheet().render(Style::Markdown);
+    let rows: Vec<Vec<String>> = crystal_section(&md)
+        .lines()
+        .filter(|l| l.starts_with("| ") && !l.starts_with("| ---") && !l.starts_with("| ref ") && !l.starts_with("| figure "))
+        .map(|l| l[2..l.len() - 2].split(" | ").map(String::from).collect())
+        .filter(|r: &Vec<String>| r.len() == 4)
+        .collect();
+    let expected: Vec<Vec<&str>> = vec![
+        vec!["C1", "15.0 pF", "C0G ±10 % (K)", "10 V"],
+        vec!["C2", "15.0 pF", "C0G ±10 % (K)", "10 V"],
+        vec!["Rs", "2k7", "resistor ±1 % (F)", "≥ 3.47 V"],
+        vec!["Rf", "1M0", "resistor ±1 % (F)", "≥ 3.47 V"],
+        vec!["Y1", "12.8 MHz", "crystal CL 12.0 pF, ESR ≤ 35.0 Ω", "200 µW"],
+    ];
+    assert_eq!(rows, expected, "{md}");
+    assert!(md.contains("## Crystal oscillator"), "a heading of its own");
+
+    // Its caution among the sheet's, after it.
+    let flat = |t: &str| t.split_whitespace().collect::<Vec<_>>().join(" ");
+    let after = flat(&sheet[sheet.find("\nCrystal oscillator\n").unwrap()..]);
+    for caution in CAUTIONS.iter().chain([&halfrail::report::OSCILLATOR_CAUTION]) {
+        assert!(after.contains(caution), "no {caution:?} after the crystal section");
+    }
+    for line in sheet.lines() {
+        assert!(line.chars().count() <= 80, "wider than 80 columns: {line:?}");
+    }
+}
+
+/// An oscillator that misses its limits says so in the section, in the warnings of
+/// `halfrail crystal`; without the sections there is no crystal section (nor its
+/// caution), and with one of the two the section says what is missing.
+#[test]
+fn the_crystal_section_warns_and_says_why_when_it_cannot_be_had() {
+    let mut doc: serde_json::Value = serde_json::from_str(DEMO).unwrap();
+    doc["crystal"]["drive_max_w"] = "50u".into();
+    doc["oscillator"]["margin_min"] = 20.into();
+    doc["oscillator"].as_object_mut().unwrap().remove("rs_ohm");
+    let path = scratch("crystal-warns.json", &doc.to_string());
+    let sheet = String::from_utf8(halfrail(&["report", path.to_str().unwrap()]).stdout).unwrap();
+    let section = crystal_section(&sheet);
+    let c = json_of(&halfrail(&["crystal", path.to_str().unwrap()]));
+    let codes: Vec<&str> = c["warnings"].as_array().unwrap().iter().map(|w| w["code"].as_str().unwrap()).collect();
+    assert!(codes.contains(&"crystal_overdrive") && codes.contains(&"crystal_margin"), "{codes:?}");
+    let flat = section.split_whitespace().collect::<Vec<_>>().join(" ");
+    for w in c["warnings"].as_array().unwrap() {
+        assert!(flat.contains(&format!("Warning: {}", w["text"].as_str().unwrap())), "{w} not in:\n{section}");
+    }
+    assert!(!section.contains("\nRs "), "no Rs fitted, none to buy:\n{section}");
+    assert!(figure(section, "Drive").ends_with("(50.0 µW rated)"));
+    assert!(figure(section, "Negative R").ends_with("(≥ 20)"));
+
+    let without = load(&demo_without(&["crystal", "oscillator"])).unwrap().sheet().render(Style::Text);
+    assert!(!without.contains("Crystal oscillator") && !without.contains("Oscillator:"), "no section without the sections");
+    let half = load(&demo_without(&["oscillator"])).unwrap().sheet().render(Style::Text);
+    assert!(crystal_section(&half).contains("Not computed: oscillator"), "{}", crystal_section(&half));
+    assert!(half.contains("Before you build"), "the rest stands");
+}

@@ -17,10 +17,12 @@
 
 use super::layout::Block;
 use super::sheet::{designator, marking};
+use crate::analysis::crystal::Datasheet;
 use crate::math;
 use crate::part::Part;
+use crate::pierce::Parts;
 use crate::stage::{Component, Components, Role};
-use crate::units::{format_eng, Unit, DEFAULT_DIGITS};
+use crate::units::{format_eng, format_rkm, RkmKind, Unit, DEFAULT_DIGITS};
 use crate::values::{series_of, Series};
 
 /// The `tolerance` section's classes the bill of materials buys to.
@@ -165,6 +167,62 @@ pub fn bill(blocks: &mut Vec<Block>, stage: &Components, part: Option<&Part>, to
     }
 }
 
+/// The oscillator's parts to buy (issue "Crystal"): C1 and C2 (C0G, common
+/// practice: their drift is the frequency's; marked so in the section's caution), Rs when fitted, Rf, and the crystal
+/// Y1 rated for the drive (its datasheet's, else at least what it runs at) —
+/// classes and ratings as the stage's parts take them. The inverter is the sheet's
+/// own part.
+pub fn oscillator_bill(
+    blocks: &mut Vec<Block>,
+    parts: &Parts,
+    crystal: &Datasheet,
+    drive_w: Option<f64>,
+    part: Option<&Part>,
+    tolerances: Option<Tolerances>,
+    series: Option<Series>,
+) {
+    let series = series.unwrap_or(Series::E24);
+    let (r_pct, _) = wanted(tolerances.map(|t| t.resistor_pct), series);
+    let (c_pct, _) = wanted(tolerances.map(|t| t.capacitor_pct), series);
+    let top = part.map(|p| p.vdd * (1.0 + tolerances.map_or(0.0, |t| t.vdd_pct) / 100.0));
+    let resistor_rating = || top.map_or_else(|| "—".into(), |t| format!("≥ {}", volts_up(t)));
+    let capacitor = |name: &str, v: f64| {
+        let class = class_text(class_of(v, c_pct));
+        vec![name.into(), format_eng(v, Some(Unit::Farad), DEFAULT_DIGITS), format!("C0G {class}"), capacitor_rating(top)]
+    };
+    let resistor = |name: &str, v: f64| {
+        let value = format_rkm(v, RkmKind::Resistance).unwrap_or_else(|| format_eng(v, Some(Unit::Ohm), DEFAULT_DIGITS));
+        vec![name.into(), value, format!("resistor {}", class_text(class_of(v, r_pct))), resistor_rating()]
+    };
+    let mut rows = vec![capacitor("C1", parts.c1), capacitor("C2", parts.c2)];
+    if let Some(rs) = parts.rs.filter(|&r| r > 0.0) {
+        rows.push(resistor("Rs", rs));
+    }
+    rows.push(resistor("Rf", parts.rf));
+    let ohms = format_eng(crystal.esr_ohm, Some(Unit::Ohm), DEFAULT_DIGITS);
+    let what = crystal.cl_f.map_or_else(
+        || format!("crystal series, ESR ≤ {ohms}"),
+        |cl| format!("crystal CL {}, ESR ≤ {ohms}", format_eng(cl, Some(Unit::Farad), DEFAULT_DIGITS)),
+    );
+    // Its rating is the drive it stands: the datasheet's, else at least what it runs at.
+    let watts = |w: f64| format_eng(w, Some(Unit::Watt), DEFAULT_DIGITS);
+    let drive = crystal.drive_max_w.map(watts).or_else(|| drive_w.map(|d| format!("≥ {}", watts(d)))).unwrap_or_else(|| "—".into());
+    rows.push(vec!["Y1".into(), exact_hertz(crystal.f_hz), what, drive]);
+    // Four columns, the class with the part: the printed sheet sets them beside the figures.
+    let head: Vec<String> = ["ref", "value", "part", "rating"].map(String::from).to_vec();
+    blocks.push(Block::Table { right: vec![false; head.len()], head, rows });
+}
+
+/// A crystal's frequency as ordered: to 9 digits, without trailing zeros
+/// (`12.8 MHz`, `14.31818 MHz`, `32.768 kHz`).
+fn exact_hertz(f: f64) -> String {
+    let text = format_eng(f, Some(Unit::Hertz), 9);
+    match text.split_once(' ') {
+        Some((number, unit)) if number.contains('.') => format!("{} {unit}", number.trim_end_matches('0').trim_end_matches('.')),
+        _ => text,
+    }
+}
+
 /// A round value as engineers write it (`10 µF`, `100 nF`).
 fn eng_farads(value: f64) -> String {
     format_eng(value, Some(Unit::Farad), 2)
@@ -206,5 +264,8 @@ mod tests {
         assert_eq!(volts_up(12.01), "12.1 V");
         assert_eq!(eng_farads(10e-6), "10 µF");
         assert_eq!(eng_farads(100e-9), "100 nF");
+        assert_eq!(exact_hertz(12.8e6), "12.8 MHz");
+        assert_eq!(exact_hertz(14.31818e6), "14.31818 MHz");
+        assert_eq!(exact_hertz(32768.0), "32.768 kHz");
     }
 }

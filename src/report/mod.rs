@@ -5,6 +5,7 @@
 mod bom;
 mod chain_csv;
 pub mod layout;
+mod oscillator;
 mod scientific;
 mod sheet;
 mod sweep_csv;
@@ -13,6 +14,7 @@ mod wave_csv;
 
 pub use chain_csv::chain_csv;
 pub use bom::Tolerances;
+pub use oscillator::{CrystalSheet, OSCILLATOR_CAUTION};
 pub use sheet::{ChainSheet, Sheet, Style, CAUTIONS};
 pub use sweep_csv::sweep_csv;
 pub use touchstone::touchstone;

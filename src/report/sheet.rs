@@ -16,6 +16,7 @@ use crate::stage::{Component, Components, Role};
 use crate::units::{format_eng, format_fixed, format_rkm, voltage_ratio_db, RkmKind, Unit, DEFAULT_DIGITS};
 use crate::values::{series_of, Series};
 use super::bom::{self, Tolerances};
+use super::oscillator::CrystalSheet;
 
 /// The cautions of SPEC §5, worded as the page's footer words them.
 pub const CAUTIONS: [&str; 5] = [
@@ -63,6 +64,9 @@ pub struct Sheet {
     pub tolerances: Option<Tolerances>,
     /// The target's E-series, when the document has a target.
     pub series: Option<Series>,
+    /// The crystal oscillator, when the document has a `crystal` or an
+    /// `oscillator` section (`None`: the sheet has no such section).
+    pub crystal: Option<CrystalSheet>,
 }
 
 impl Sheet {
@@ -95,8 +99,15 @@ impl Sheet {
             Some(c) => section(&mut blocks, "Chain", c.budget.as_ref(), |b, budget| chain(b, c, budget)),
             None => blocks.push(Block::Paragraph("No chain: the document has no chain section, so there is no cascade budget.".into())),
         }
+        if let Some(c) = &self.crystal {
+            super::oscillator::section(&mut blocks, c, self.part.as_ref(), self.tolerances, self.series);
+        }
         blocks.push(Block::Heading("Before you build".into()));
-        blocks.push(Block::Bullets(CAUTIONS.iter().map(|c| c.to_string()).collect()));
+        let mut cautions: Vec<String> = CAUTIONS.iter().map(|c| c.to_string()).collect();
+        if self.crystal.is_some() {
+            cautions.push(super::oscillator::OSCILLATOR_CAUTION.to_string());
+        }
+        blocks.push(Block::Bullets(cautions));
         Page {
             title: self.title.as_deref().filter(|t| !t.trim().is_empty()).unwrap_or("Untitled design").to_string(),
             subtitle: format!("Design sheet, Halfrail {}", env!("CARGO_PKG_VERSION")),
@@ -114,23 +125,23 @@ fn section<T, E: std::fmt::Display>(blocks: &mut Vec<Block>, heading: &str, cont
     }
 }
 
-fn pairs(head: &str, rows: Vec<(&str, String)>) -> Block {
+pub(super) fn pairs(head: &str, rows: Vec<(&str, String)>) -> Block {
     Block::Pairs { head: [head.to_string(), "value".to_string()], rows: rows.into_iter().map(|(l, v)| (l.to_string(), v)).collect() }
 }
 
 // ---- Numbers ---------------------------------------------------------------------
 
 /// A finite value, else `None` (the sheet shows a dash).
-fn known(x: Option<f64>) -> Option<f64> {
+pub(super) fn known(x: Option<f64>) -> Option<f64> {
     x.filter(|v| v.is_finite())
 }
 
-fn eng(x: f64, unit: Unit) -> String {
+pub(super) fn eng(x: f64, unit: Unit) -> String {
     format_eng(x, Some(unit), DEFAULT_DIGITS)
 }
 
 /// A value with its unit, or a dash and why there is none.
-fn or_why(x: Option<f64>, show: impl Fn(f64) -> String, why: &str) -> String {
+pub(super) fn or_why(x: Option<f64>, show: impl Fn(f64) -> String, why: &str) -> String {
     known(x).map_or_else(|| format!("— ({why})"), show)
 }
 
@@ -151,7 +162,7 @@ fn degrees(x: f64) -> String {
 }
 
 /// `digits` significant digits without a prefix (`0.00773`, `3.00`).
-fn significant(x: f64, digits: usize) -> String {
+pub(super) fn significant(x: f64, digits: usize) -> String {
     if x == 0.0 || !x.is_finite() {
         return format_fixed(x, digits.saturating_sub(1));
     }

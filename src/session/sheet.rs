@@ -3,7 +3,7 @@
 //! it can and say why of the others.
 
 use crate::doc::{Document, Part};
-use crate::report::{ChainSheet, Sheet, Tolerances};
+use crate::report::{ChainSheet, CrystalSheet, Sheet, Tolerances};
 
 impl Document {
     /// Everything the design sheet shows. Never fails as a whole: an analysis that
@@ -31,6 +31,11 @@ impl Document {
             large,
             tolerances: self.tolerance.as_ref().map(|t| Tolerances { resistor_pct: t.resistor_pct, capacitor_pct: t.capacitor_pct, vdd_pct: t.vdd_pct }),
             series: self.target.as_ref().map(|t| t.series),
+            crystal: (self.crystal.is_some() || self.oscillator.is_some()).then(|| CrystalSheet {
+                crystal: self.crystal.as_ref().map(|c| c.to_core()),
+                parts: self.oscillator.as_ref().map(|o| o.to_core()),
+                oscillator: self.crystal(),
+            }),
         }
     }
 }

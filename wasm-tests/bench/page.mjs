@@ -95,6 +95,10 @@ for (let i = 0; i < RUNS; i++) {
         curve3: median(() => wasm_bindgen.transferCurve(buffered, 500)),
         report: median(() => wasm_bindgen.partReport(demo, 501)),
         fit: median(() => wasm_bindgen.benchFit(demo)),
+        // The demo's oscillator (the lab receiver's reference): the Crystal panel's
+        // report, small signal and steady state, and its curves (which run the report too).
+        crystal: median(() => wasm_bindgen.crystalReport(demo), 5),
+        crystalCurves: median(() => wasm_bindgen.crystalCurves(demo), 3),
       };
     });
   }
@@ -222,6 +226,8 @@ const rows = [
   ['wasm: compression sweep, 20 levels (demo)', `${core.compression.toFixed(0)} ms`, '≤ 1000 ms', core.compression <= 1000],
   ['wasm: whole Swing panel analysis (demo)', `${core.swing.toFixed(0)} ms`, '', true],
   ['wasm: spread, 2000 trials, one thread (demo)', `${core.spread.toFixed(0)} ms`, '≤ 1500 ms', core.spread <= 1500],
+  ['wasm: crystal analysis, demo oscillator (crystalReport)', `${core.crystal.toFixed(1)} ms`, '≤ 20 ms', core.crystal <= 20],
+  ['wasm: crystal curves with their report (crystalCurves)', `${core.crystalCurves.toFixed(1)} ms`, '', true],
   ['wasm: chain, 12 blocks (stage figures known)', `${core.chain12.toFixed(2)} ms`, '≤ 1 ms', core.chain12 <= 1],
   ['wasm: chain, 12 blocks, 3-stage run as one circuit', `${core.chain12run.toFixed(2)} ms`, '≤ 1 ms', core.chain12run <= 1],
   ['page: spread, 2000 trials, one worker (demo)', `${spreadWorkers[1].toFixed(0)} ms`, '≤ 1500 ms', spreadWorkers[1] <= 1500],

@@ -166,6 +166,7 @@ test('notes and title survive a reload, and are printed on the sheet', async () 
   assert.equal(await field(page, 'Notes').inputValue(), notes);
   assert.equal(await field(page, 'Title').inputValue(), 'Receiver IF, board 2');
   assert.equal(await page.locator('#design-title').textContent(), 'Receiver IF, board 2');
+  await page.waitForFunction(() => HR.sheet.ready()); // the sheet is prepared in the background
   const sheet = await page.evaluate(() => {
     dispatchEvent(new Event('beforeprint'));
     const s = document.getElementById('sheet').innerText;

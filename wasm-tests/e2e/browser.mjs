@@ -164,13 +164,15 @@ export const holdWorkers = (predicate, ms) => `(${(source, ms) => {
   };
 }})(${JSON.stringify(String(predicate))}, ${Number(ms)});`;
 
-// The workers a panel's runs made, from workLog's list: all but the health line's,
-// which has a lane of its own, always on show.
-export const panelWorkers = (log) => log.workers.filter((w) => !w.startsWith('halfrail-health '));
-// How many workers the panels' runs have started (HR.background.startedIn, less the
-// health line's lane), in `page` or a frame.
-export const panelWorkersStarted = (page) => page.evaluate(() =>
-  Object.entries(HR.background.startedIn).filter(([lane]) => lane !== 'health').reduce((sum, [, n]) => sum + n, 0));
+// The lanes that run whatever panel is shown: the health line's, always on show, and
+// the printed sheet's, prepared in the background after edits.
+const PAGE_LANES = ['health', 'sheet'];
+// The workers a panel's runs made, from workLog's list: all but those of PAGE_LANES.
+export const panelWorkers = (log) => log.workers.filter((w) => !PAGE_LANES.some((lane) => w.startsWith(`halfrail-${lane} `)));
+// How many workers the panels' runs have started (HR.background.startedIn, less
+// PAGE_LANES'), in `page` or a frame.
+export const panelWorkersStarted = (page) => page.evaluate((skip) =>
+  Object.entries(HR.background.startedIn).filter(([lane]) => !skip.includes(lane)).reduce((sum, [, n]) => sum + n, 0), PAGE_LANES);
 
 // The states of a panel that computes in the background (worker.js's follow()):
 // its results counted, its run box, and the follower's state, each waited for.

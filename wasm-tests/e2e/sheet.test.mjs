@@ -1,7 +1,9 @@
-// The printed design sheet in Chromium from file://: Print sheet (the Design bar)
-// computes the sheet in the background and prints it, and the browser's own print
-// (`beforeprint`, which page.pdf() fires as Ctrl+P does) gives the same sheet for the
-// design as it is then. The PDF is read back with pdf.js: one or two pages, A4 and
+// The printed design sheet in Chromium from file://: the sheet is prepared in the
+// background after each change, Print sheet waits for it and prints it, and the
+// browser's own print (`beforeprint`, which page.pdf() fires as Ctrl+P does) gives
+// the same sheet for the design as it is then, with no core call on the main thread:
+// before the sheet of the latest change is ready it prints the earlier one, or a
+// sheet that is not ready, and says so. The PDF is read back with pdf.js: one or two pages, A4 and
 // Letter; every figure of the core's sheet (sheetText, the text of `halfrail report`)
 // is in it, the gain, the phase margin, the component values and the page's cautions
 // word for word; the schematic and the two plots are images; no network request. The
@@ -29,6 +31,33 @@ async function pressPrint(page) {
   await page.waitForFunction(() => window.printed === 1, null, { timeout: 20000 });
 }
 
+// From now on, records the name of every call into the core made on the main thread
+// (each entry of wasm_bindgen wrapped once) in `window.__main`, emptied here. The
+// workers' calls are their own module's, not recorded.
+async function recordMainCalls(page) {
+  await page.evaluate(() => {
+    if (!window.__main) {
+      window.__main = [];
+      for (const [name, f] of Object.entries(wasm_bindgen)) {
+        if (typeof f !== 'function' || name === 'initSync') continue;
+        wasm_bindgen[name] = (...args) => { window.__main.push(name); return f(...args); };
+      }
+    }
+    window.__main.length = 0;
+  });
+}
+// The analyses a sheet needs, which never run on the main thread.
+const ANALYSES = ['sheetPage', 'sheetText', 'responseReport', 'loopReport', 'swingReport', 'crystalReport'];
+
+// Ctrl+P as the page sees it: `beforeprint`, with the core calls made on the main
+// thread meanwhile, the sheet's state and its text.
+const ownPrint = (page) => page.evaluate(() => {
+  window.__main.length = 0;
+  dispatchEvent(new Event('beforeprint'));
+  const sheet = document.getElementById('sheet');
+  return { calls: [...window.__main], state: sheet.dataset.state, text: sheet.textContent };
+});
+
 // The core's own sheet of the page's design as Markdown: its tables' value cells,
 // but for the components' `key` column, which the printed sheet leaves out (the keys
 // stay in the file and in `halfrail report`): `keys` are those cells.
@@ -49,9 +78,11 @@ async function coreCells(page) {
 
 test('Print sheet prepares the sheet in the background and prints it: the PDF has every figure of the core sheet, the cautions, the images, on one or two pages', async () => {
   const { page, seen } = await openPanel(browser.context, 'stage');
-  const workers = await page.evaluate(() => HR.background.startedIn.sheet || 0);
+  await recordMainCalls(page);
+  const workers = 0; // the sheet may be prepared before Print sheet is pressed
   await pressPrint(page);
   assert.ok(await page.evaluate(() => HR.background.startedIn.sheet || 0) > workers, 'the sheet was computed in a worker');
+  assert.deepEqual(await page.evaluate((a) => window.__main.filter((n) => a.includes(n)), ANALYSES), [], 'no analysis on the main thread');
   assert.match(await page.locator('#engine-status').textContent(), /sheet/i);
   const { cells } = await coreCells(page);
   const figures = await page.evaluate(() => {
@@ -83,20 +114,76 @@ test('Print sheet prepares the sheet in the background and prints it: the PDF ha
   await page.close();
 });
 
-test('The browser’s own print gives the same sheet, for the design as it is when printing; a bad value prints the last good design and says so', async () => {
+test('The browser’s own print calls no core on the main thread: it prints the sheet prepared in the background, says in words when that is of an earlier design or not ready, follows the design once prepared; a bad value prints the last good design and says so', async () => {
+  // At the page's start, before any sheet is prepared: a sheet that says it is not
+  // ready, and no core call (Ctrl+P at once after the page is up).
+  const first = await browser.context.newPage();
+  const seenFirst = watch(first);
+  await first.addInitScript(() => {
+    new MutationObserver((m, o) => {
+      if (!document.documentElement.dataset.ready) return;
+      o.disconnect();
+      const calls = [];
+      for (const [name, f] of Object.entries(wasm_bindgen)) {
+        if (typeof f === 'function' && name !== 'initSync') wasm_bindgen[name] = (...args) => { calls.push(name); return f(...args); };
+      }
+      dispatchEvent(new Event('beforeprint'));
+      const sheet = document.getElementById('sheet');
+      window.__atStart = { calls: [...calls], state: sheet.dataset.state, text: sheet.textContent };
+    }).observe(document, { subtree: true, attributes: true, attributeFilter: ['data-ready'] }); // no <html> yet
+  });
+  await first.goto(`${PAGE_URL}#response`);
+  await ready(first);
+  const atStart = await first.evaluate(() => window.__atStart);
+  assert.deepEqual(atStart.calls, [], 'no core call on the main thread at beforeprint');
+  assert.equal(atStart.state, 'none');
+  assert.match(atStart.text, /The design sheet is not ready yet: it is prepared in the background/);
+  assert.match(atStart.text, /Print again in a moment, or use Print sheet/);
+  assert.ok(!atStart.text.includes('Voltage gain Av'), 'no figures that are not there');
+  // Then prepared in the background, in the sheet's own lane.
+  await first.waitForFunction(() => HR.sheet.ready());
+  assert.ok(await first.evaluate(() => HR.background.startedIn.sheet) >= 1);
+  assert.deepEqual(seenFirst.errors, []);
+  await first.close();
+
   const { page, seen } = await openPanel(browser.context, 'response');
+  await page.waitForFunction(() => HR.sheet.ready());
+  await recordMainCalls(page);
+  const prepared = await ownPrint(page);
+  assert.deepEqual(prepared.calls, [], 'no core call on the main thread at beforeprint');
+  assert.equal(prepared.state, 'current');
+  assert.ok(prepared.text.includes('Voltage gain Av') && !/not ready|earlier version/.test(prepared.text));
   await pressPrint(page);
+  assert.deepEqual(await page.evaluate((a) => window.__main.filter((n) => a.includes(n)), ANALYSES), [], 'Print sheet ran no analysis on the main thread');
   const byButton = await page.locator('#sheet').textContent();
+  assert.equal(prepared.text, byButton, 'Ctrl+P printed the sheet Print sheet prints');
   await page.evaluate(() => window.dispatchEvent(new Event('beforeprint')));
   assert.equal(await page.locator('#sheet').textContent(), byButton, 'beforeprint rebuilt the same sheet');
 
-  // An edit, then Ctrl+P (page.pdf fires beforeprint): the sheet follows the edit.
-  await page.evaluate(() => HR.design.set('stage', 'r_fb_ohm', '3k3'));
-  await page.waitForFunction(() => HR.sheet.linkIsCurrent()); // made 300 ms after the edit
+  // An edit, then Ctrl+P at once (after the edit's own microtasks, before any pause
+  // has passed): the sheet prepared before it, marked in words, and no core call.
+  await page.evaluate(async () => {
+    HR.design.set('stage', 'r_fb_ohm', '3k3');
+    await Promise.resolve();
+  });
+  const early = await ownPrint(page);
+  assert.deepEqual(early.calls, [], 'no core call on the main thread at beforeprint');
+  assert.equal(early.state, 'older');
+  assert.match(early.text, /Not the design as it is now: this sheet is of an earlier version of it\..*was not ready when printing began/);
+  assert.ok(early.text.includes('2k2') && !early.text.includes('3k3'), 'the earlier design’s R fb');
+  assert.ok(early.text.includes('Link to this design: none: this sheet is not of the design as it is now'), 'no link to a design it is not');
+
+  // Once prepared (a state, waited for), Ctrl+P (page.pdf fires beforeprint) prints the edit.
+  await page.waitForFunction(() => HR.sheet.ready()); // the sheet and the link, made after a pause
+  const after = await ownPrint(page);
+  assert.deepEqual(after.calls, [], 'no core call on the main thread at beforeprint');
+  assert.equal(after.state, 'current');
+  await recordMainCalls(page);
   const gain = await page.evaluate(() => HR.fmt(wasm_bindgen.responseReport(HR.design.text()).design.gain_db, 'dB'));
   const edited = await readPdf(await page.pdf({ format: 'A4' }));
   assert.ok(edited.text.includes('3k3') && !edited.text.includes(' 2k2 '), 'the edited R fb is printed');
   assert.ok(edited.text.includes(squash(gain)), `the new gain ${gain}`);
+  assert.ok(!/not ready|earlier version/.test(edited.text));
   const { cells } = await coreCells(page);
   assert.deepEqual(cells.filter((c) => !edited.text.includes(c)), []);
   // The sheet's link opens this design: from file://, its end as printed in note 1,
@@ -109,8 +196,13 @@ test('The browser’s own print gives the same sheet, for the design as it is wh
   assert.equal(await other.evaluate(() => HR.design.text()), draft);
   await other.close();
 
-  // A bad value: the sheet is of the last good design, and says so.
-  await page.evaluate(() => HR.design.set('stage', 'r_fb_ohm', '3k3x'));
+  // A bad value: the sheet is of the last good design, and says so, with no core call.
+  await page.evaluate(async () => {
+    HR.design.set('stage', 'r_fb_ohm', '3k3x');
+    await Promise.resolve();
+  });
+  const refused = await ownPrint(page);
+  assert.deepEqual(refused.calls, [], 'no core call on the main thread at beforeprint');
   const bad = await readPdf(await page.pdf({ format: 'A4' }));
   assert.match(bad.text, /bad value \(R fb: /);
   assert.ok(bad.text.includes('3k3'), 'the last good R fb');
@@ -251,10 +343,48 @@ test('The printed sheet has a bill of materials: each fitted part with its value
   // A tolerance edited on the page: the sheet's classes follow (Ctrl+P, for the design as it is).
   await page.evaluate(() => HR.design.set('tolerance', 'resistor_pct', 5));
   await page.waitForFunction(() => HR.sheet.linkIsCurrent());
+  await page.waitForFunction(() => HR.sheet.ready()); // prepared in the background
   const pdf = await readPdf(await page.pdf({ format: 'A4' }));
   assert.ok(pdf.text.includes('Bill of materials'));
   assert.deepEqual((await bom.locator('tbody tr').filter({ hasText: 'R fb' }).locator('td').allTextContents()).slice(3), ['±5 % (J)', '≥ 3.47 V']);
   assert.ok(pdf.text.includes('±5 % (J)') && pdf.text.includes('common practice'));
+  assert.deepEqual(seen.requests, []);
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});
+
+test('The printed sheet has the demo’s crystal oscillator: its figures as the Crystal panel’s report gives them, the parts to buy and its caution, within two pages', async () => {
+  const { page, seen } = await openPanel(browser.context, 'stage');
+  await pressPrint(page);
+  const xtal = page.locator('#sheet section').filter({ has: page.locator('h2', { hasText: /^Crystal oscillator$/ }) });
+  assert.equal(await xtal.count(), 1, 'a section of its own');
+  const text = await xtal.textContent();
+  const figures = await xtal.locator('table').first().locator('tbody tr').evaluateAll((trs) => trs.map((tr) => tr.cells[0].textContent));
+  assert.deepEqual(figures, ['Frequency', 'Negative R', 'gm', 'Start-up τ', 'Drive', 'Swing g, o']);
+  // The same figures as the Crystal panel's (crystalReport, the same as `halfrail crystal`).
+  const shown = await page.evaluate(() => {
+    const r = wasm_bindgen.crystalReport(HR.design.text());
+    return { pull: `(${r.pull_ppm >= 0 ? '+' : ''}${HR.fixed(r.pull_ppm, 2)} ppm)`, drive: HR.fmt(r.drive_w, 'W'), tau: HR.fmt(r.tau_s, 's'), warnings: r.warnings.length };
+  });
+  assert.ok(text.includes(shown.pull), `the frequency error ${shown.pull}`);
+  assert.ok(text.includes(`${shown.drive} (200 µW rated)`), `the drive ${shown.drive} against the crystal's rating`);
+  assert.ok(text.includes(shown.tau), `τ ${shown.tau}`);
+  assert.equal(shown.warnings, 0);
+  const parts = xtal.locator('table').filter({ has: page.locator('th', { hasText: /^ref$/ }) });
+  assert.deepEqual(await parts.locator('thead th').allTextContents(), ['ref', 'value', 'part', 'rating']);
+  const rows = await parts.locator('tbody tr').evaluateAll((trs) => trs.map((tr) => [...tr.cells].map((c) => c.textContent)));
+  assert.deepEqual(rows.map((r) => r[0]), ['C1', 'C2', 'Rs', 'Rf', 'Y1']);
+  assert.deepEqual(rows[4], ['Y1', '12.8 MHz', 'crystal CL 12.0 pF, ESR ≤ 35.0 Ω', '200 µW']);
+  assert.deepEqual(rows[0].slice(1), ['15.0 pF', 'C0G ±10 % (K)', '10 V']);
+  const cautions = page.locator('#sheet section').filter({ has: page.locator('h2', { hasText: /^Before you build$/ }) });
+  assert.match(await cautions.textContent(), /Oscillator: C1, C2 in C0G, next to the part with Y1 over a ground plane/);
+  for (const format of ['A4', 'Letter']) {
+    const pdf = await readPdf(await page.pdf({ format }));
+    assert.ok(pdf.pages.length <= 2, `${pdf.pages.length} ${format} pages`);
+    for (const t of ['Crystal oscillator', shown.pull, 'crystal CL 12.0 pF, ESR ≤ 35.0 Ω', 'Oscillator: C1, C2 in C0G']) {
+      assert.ok(pdf.text.includes(squash(t)), `${format}: the PDF has “${t}”`);
+    }
+  }
   assert.deepEqual(seen.requests, []);
   assert.deepEqual(seen.errors, []);
   await page.close();
@@ -288,6 +418,7 @@ test('The sheet’s plot labels meet neither each other nor a curve, where the m
   // f_design beside f_low: their labels take two rows.
   await page.evaluate(() => HR.design.set('analysis', 'f_design_hz', '5 kHz'));
   await page.waitForFunction(() => HR.sheet.linkIsCurrent());
+  await page.waitForFunction(() => HR.sheet.ready()); // prepared in the background
   const pdf = await readPdf(await page.pdf({ format: 'A4' }));
   assert.ok(pdf.pages.length <= 2 && pdf.images >= 3);
   const [crowded] = await plotLabels(page);

@@ -5,20 +5,20 @@
 // the same sheet as `halfrail report`, its bill of materials too), laid out with the
 // schematic and its values, the gain and phase and the loop gain drawn for paper, the
 // permalink (HR.documents.link: one line on the sheet, whole in a note, never a local
-// path), the build and the date. sheetPage runs every analysis, the
-// large-signal one too: Print sheet runs it in the background; Ctrl+P, which cannot
-// wait, uses the one Print sheet made for this design, or else runs it at once.
-
+// path), the build and the date. sheetPage runs every analysis, the large-signal one
+// too, so it never runs on the main thread: the sheet is prepared in the background
+// (lane `sheet`) a pause after each change, and drawn when the page is idle. Print
+// sheet waits for it; Ctrl+P, which cannot wait, prints the prepared sheet, and when
+// that is of an earlier design (or there is none yet) says so on the paper in words
+// rather than computing at once.
 HR.sheet = (() => {
   const { el } = HR.ui;
   const INK = '#1b1f1d';
   const GRID = '#d3d8d4';
   const [C1, C2, C3] = ['#0b6e5f', '#b34700', '#5b3fa6'];
   const K = 2; // plots and schematic are drawn at this many canvas pixels a CSS pixel (and more on a dense screen)
-  const sheets = new Map(); // design text → {ok: the core's sheet page} | {error}
   let link = { text: null, url: null, why: '' };
   let node = null;
-  let shownFor = null;
 
   // ---- The core's sheet page (sheetPage: the blocks `halfrail report` lays out) as DOM
   const tableOf = (head, rows, right = []) => {
@@ -259,17 +259,17 @@ HR.sheet = (() => {
     return el('figure', {}, el('figcaption', {}, title, ' ', key(a, C1), ' ', key(b, C2, true)), img);
   };
 
-  // The two plots, from the sweeps Print sheet computed in the background with the
-  // sheet (`made.curves`), or else (Ctrl+P, which cannot wait) made here at once.
-  const plots = (text, curves) => {
+  // The two plots, from the sweeps computed in the background with the sheet
+  // (`made.curves`); a sweep the core refused is left out.
+  const plots = (curves) => {
     const out = [];
-    const r = curves ? curves.response : HR.call('responseReport', text);
+    const r = curves.response || {};
     if (r.ok) {
       const d = r.ok.design;
       out.push(bode('Voltage gain and phase', r.ok.f_hz, [{ label: 'Av', y: r.ok.gain_db }, { label: 'phase', y: r.ok.phase_unwrapped_deg }],
         [[r.ok.f_design_hz, 'f_design'], [d.f_low_hz, 'f_low'], [d.f_high_hz, 'f_high']], []));
     }
-    const l = curves ? curves.loop : HR.call('loopReport', text);
+    const l = curves.loop || {};
     if (l.ok) {
       const s = l.ok.summary;
       out.push(bode('Loop gain T', l.ok.f_hz, [{ label: '|T|', y: l.ok.t_db }, { label: '∠T', y: l.ok.t_phase_deg }],
@@ -306,13 +306,23 @@ HR.sheet = (() => {
   };
 
   // The design the sheet is of: the draft, or the last good one while the draft has a
-  // bad value (said on the sheet).
-  const source = () => {
-    const text = HR.design.text();
-    const check = HR.check(text);
+  // bad value (said on the sheet). `error`: the core's check of the draft.
+  const sourceOf = (text, error) => {
     const good = HR.design.lastGood();
-    if (!check.error || !good) return { text, problem: check.error };
-    return { text: good, problem: check.error, older: true };
+    if (!error || !good) return { text, problem: error };
+    return { text: good, problem: error, older: true };
+  };
+  // The draft's check, remembered (a pass is memoised by HR.check; a refusal is not):
+  // made after each change, so that `beforeprint` asks the core nothing.
+  let checked = { text: null, error: null };
+  const recheck = () => {
+    const text = HR.design.text();
+    if (checked.text !== text) checked = { text, error: HR.check(text).error || null };
+    return checked;
+  };
+  const source = () => {
+    const c = recheck();
+    return sourceOf(c.text, c.error);
   };
 
   // The link as printed. A link of a thousand characters and more is no line to
@@ -341,20 +351,22 @@ HR.sheet = (() => {
     ];
   };
 
-  const build = ({ text, problem, older }) => {
-    if (!sheets.has(text)) sheets.set(text, HR.call('sheetPage', text));
-    while (sheets.size > 4) sheets.delete(sheets.keys().next().value);
+  // ---- The sheet of a prepared design, drawn once -------------------------------
+  // design text → {ok: the core's sheet page, curves: {response, loop}} | {error}
+  const sheets = new Map();
+  // The drawn sheet of one prepared design: {text, title, sub, error, lead, parts}.
+  // Drawing formats through the core (axes, values), calls bounded well under a
+  // frame, so it is done when the sheet arrives (in an idle moment), not at print.
+  let body = null;
+  const draw = (text) => {
+    if (body && body.text === text) return body;
     const made = sheets.get(text);
-    const url = link.text === text && link.url;
-    const linkText = url || (link.text === text ? `none: ${link.why}` : older ? 'none while the design on the page has a bad value' : 'not made yet: print again');
-    const key = JSON.stringify([text, linkText, problem || null]);
-    if (shownFor === key) return;
     const sheet = made.ok ? read(made.ok) : { title: '', sub: '', lead: [], sections: [], rows: {} };
     const doc = JSON.parse(text);
     const parts = [];
     let flow = null;
     let drawn = false;
-    const drawings = () => { drawn = true; return el('div', { class: 'plots' }, plots(text, made.curves)); };
+    const drawings = () => { drawn = true; return el('div', { class: 'plots' }, plots(made.curves || {})); };
     for (const s of sheet.sections) {
       const first = !parts.length && Object.keys(sheet.rows).length;
       const sec = el('section', {}, el('h2', {}, s.head), first ? schematic(doc, sheet.rows) : null, ...(s.wide ? sideBySide(s.nodes.map(halves)) : s.nodes));
@@ -368,14 +380,56 @@ HR.sheet = (() => {
       }
     }
     if (made.ok && !drawn) parts.push(drawings());
+    body = { text, title: sheet.title, sub: sheet.sub, error: made.error || null, lead: sheet.lead, parts };
+    return body;
+  };
+
+  // The title a sheet of the draft has, as the core gives it (`Untitled design` for none).
+  const titleOf = (text) => {
+    try {
+      const t = JSON.parse(text).title;
+      return typeof t === 'string' && t.trim() ? t : 'Untitled design';
+    } catch (e) {
+      return 'Untitled design';
+    }
+  };
+
+  // Puts the sheet on #sheet: the drawn sheet of the design `from` ('current'), or,
+  // when that is not prepared, the last one drawn marked as of an earlier design
+  // ('older'), or a sheet that says it is not ready ('none'). No core call: what it
+  // says of a bad value was checked after the change, and the body is drawn.
+  let shownFor = null;
+  const compose = ({ text, problem, older }, state) => {
+    const url = state === 'current' && link.text === text && link.url;
+    const linkText = url || (state !== 'current' ? 'none: this sheet is not of the design as it is now'
+      : link.text === text ? `none: ${link.why}` : older ? 'none while the design on the page has a bad value' : 'not made yet: print again');
+    const b = state === 'none' ? null : body;
+    const key = JSON.stringify([text, state, b && b.text, linkText, problem || null]);
+    if (shownFor === key && node) return;
     if (!node) document.body.append((node = el('div', { class: 'sheet', id: 'sheet' })));
     const warn = (t) => el('p', { class: 'warn' }, t);
+    const again = 'Print again in a moment, or use Print sheet (in the Design bar), which waits for it.';
+    const bad = problem ? HR.words(problem) : '';
+    const notes = [];
+    if (state === 'current' && problem) {
+      notes.push(warn(older ? `The design on the page has a bad value (${bad}); this sheet is of the last design without one.`
+        : `This design has a bad value (${bad}).`));
+    }
+    if (state === 'older') {
+      notes.push(warn(`Not the design as it is now: this sheet is of an earlier version of it${problem ? ` (the design on the page has a bad value: ${bad})` : ''}. `
+        + `The sheet is prepared in the background after each change, and the one for the latest change was not ready when printing began. ${again}`));
+    }
+    if (state === 'none') {
+      notes.push(warn('The design sheet is not ready yet: it is prepared in the background (every analysis, the large-signal one too) '
+        + `and was still being made when printing began. ${again}`));
+    }
+    if (b && b.error) notes.push(warn(`The sheet could not be made: ${HR.words(b.error)}.`));
+    const title = state === 'current' && b.title ? b.title : titleOf(HR.design.text());
+    node.dataset.state = state;
     node.replaceChildren(...[
-      el('header', {}, el('h1', {}, sheet.title || String(doc.title || 'Design sheet')), el('p', { class: 'sub' }, sheet.sub)),
-      problem ? warn(older ? `The design on the page has a bad value (${HR.words(problem)}); this sheet is of the last design without one.`
-        : `This design has a bad value (${HR.words(problem)}).`) : null,
-      made.error ? warn(`The sheet could not be made: ${HR.words(made.error)}.`) : null,
-      ...sheet.lead, ...parts,
+      el('header', {}, el('h1', {}, title), el('p', { class: 'sub' }, (b && b.sub) || `Design sheet, Halfrail ${HR.version}`)),
+      ...notes,
+      ...(b ? [...b.lead, ...b.parts] : []),
       el('footer', {}, el('p', {}, `Halfrail ${HR.version} · printed ${today()}`), ...footerLink(url, linkText))].filter(Boolean));
     shownFor = key;
   };
@@ -390,39 +444,118 @@ HR.sheet = (() => {
   };
   let linkTimer = null; // a pause after the last edit, as the panels' background runs wait
   HR.design.onChange(() => { clearTimeout(linkTimer); linkTimer = setTimeout(refreshLink, 300); });
+
+  // ---- Preparing the sheet in the background ----------------------------------
+  // The sheet, then the two sweeps its plots draw (the loop's can take long too), one
+  // after another in the lane `sheet`; a sweep the core refuses is left out. The lane
+  // keeps its worker: a newer design supersedes a run without ending it (the old
+  // answer is dropped), so no worker is started per edit. One run at a time; a run a
+  // print waits for is not superseded by the background's.
+  let running = null; // {text, promise, cancel(), forPrint}
+  const ENTRIES = [['sheetPage', null], ['responseReport', 'response'], ['loopReport', 'loop']];
+  const made = (text, forPrint = false) => {
+    if (sheets.has(text)) return Promise.resolve(sheets.get(text));
+    if (running && running.text === text) {
+      running.forPrint = running.forPrint || forPrint;
+      return running.promise;
+    }
+    if (running && running.forPrint && !forPrint) return Promise.resolve(null);
+    if (running) running.cancel();
+    let job = null;
+    let cancelled = false;
+    const mine = { text, forPrint, cancel() { cancelled = true; if (job) job.cancel(); } };
+    mine.promise = (async () => {
+      const curves = {};
+      let r = null;
+      for (const [entry, key] of ENTRIES) {
+        job = HR.background.run(entry, [text], { lane: 'sheet', keep: true });
+        const got = await job.promise;
+        job = null;
+        if (cancelled || got.cancelled) return null;
+        if (key) curves[key] = got; else r = got;
+        if (!key && r.error) break;
+      }
+      const result = r.error ? { error: r.error } : { ok: r.ok, curves };
+      sheets.set(text, result);
+      while (sheets.size > 4) sheets.delete(sheets.keys().next().value);
+      return result;
+    })();
+    running = mine;
+    mine.promise.then(() => {
+      if (running !== mine) return;
+      running = null;
+      // The design moved on while this one was made (for a print): prepare it too.
+      if (!sheets.has(sourceOf(HR.design.text(), checked.text === HR.design.text() ? checked.error : null).text)) schedule();
+    });
+    return mine.promise;
+  };
+
+  // Draws a prepared sheet when the page is next idle, if it is still the design's.
+  const idle = window.requestIdleCallback ? (f) => window.requestIdleCallback(f, { timeout: 500 }) : (f) => setTimeout(f, 0);
+  const drawSoon = (text) => idle(() => {
+    if (sheets.has(text) && source().text === text) draw(text);
+  });
+
+  // A pause after the last change, as the panels' runs wait (longer: the sheet is
+  // every analysis, and is wanted only at print).
+  const PAUSE = 800;
+  let timer = null;
+  const prepare = () => {
+    timer = null;
+    if (!document.documentElement.dataset.ready) return;
+    const from = source();
+    made(from.text).then((m) => { if (m) drawSoon(from.text); });
+  };
+  const schedule = (delay = PAUSE) => {
+    clearTimeout(timer);
+    timer = setTimeout(prepare, delay);
+  };
+  let queued = false;
+  HR.design.onChange(() => {
+    if (!document.documentElement.dataset.ready) return;
+    schedule();
+    // The draft's check after the burst of edits (one checkDocument, memoised for
+    // the followers that check it too).
+    if (queued) return;
+    queued = true;
+    queueMicrotask(() => { queued = false; recheck(); });
+  });
   new MutationObserver((m, o) => {
-    if (document.documentElement.dataset.ready) { o.disconnect(); refreshLink(); }
+    if (document.documentElement.dataset.ready) { o.disconnect(); refreshLink(); schedule(); }
   }).observe(document.documentElement, { attributes: true, attributeFilter: ['data-ready'] });
 
-  // Print sheet: the sheet's text from a background run (the page keeps answering),
-  // then the sheet, then the browser's print dialog.
-  let pending = null;
+  // Print sheet: the sheet prepared in the background (waited for if need be; the
+  // page keeps answering), then the sheet, then the browser's print dialog.
   const print = async () => {
     const from = source();
     if (!sheets.has(from.text)) {
       HR.setStatus('Preparing the design sheet (every analysis, the large-signal one too)…');
-      if (pending) pending.cancel();
-      // The sheet, then the two sweeps its plots draw (the loop's can take long too),
-      // one after another in the lane; a sweep the core refuses is left out.
-      const curves = {};
-      let r = null;
-      for (const [entry, key] of [['sheetPage', null], ['responseReport', 'response'], ['loopReport', 'loop']]) {
-        pending = HR.background.run(entry, [from.text], { lane: 'sheet' });
-        const got = await pending.promise;
-        pending = null;
-        if (got.cancelled) return;
-        if (key) curves[key] = got; else r = got;
-      }
-      sheets.set(from.text, r.error ? { error: r.error } : { ok: r.ok, curves });
+      if (!(await made(from.text, true))) return;
     }
     if (link.text !== HR.design.text()) await refreshLink();
-    build(from);
+    draw(from.text);
+    compose(from, 'current');
     await Promise.all([...node.querySelectorAll('img')].map((i) => i.decode().catch(() => {})));
     HR.setStatus('Design sheet ready: printing it, or saving it as PDF from the print dialog.');
     node.dataset.printed = String(Number(node.dataset.printed || 0) + 1);
     window.print();
   };
-  window.addEventListener('beforeprint', () => { if (document.documentElement.dataset.ready) build(source()); });
+
+  // Ctrl+P (and page.pdf): what is prepared, at once. The design's check was made
+  // after the last change (an edit in this very task is not checked yet: its sheet
+  // is then taken as not prepared, which it cannot be).
+  window.addEventListener('beforeprint', () => {
+    if (!document.documentElement.dataset.ready) return;
+    const draft = HR.design.text();
+    const from = checked.text === draft ? sourceOf(draft, checked.error) : { text: draft, problem: null };
+    if (sheets.has(from.text)) {
+      draw(from.text); // already drawn, but for a print in the moment before the idle one
+      compose(from, 'current');
+      return;
+    }
+    compose(from, body ? 'older' : 'none');
+    schedule(0);
+  });
   // While printing, the page's title is what a PDF of the sheet is saved as: named from
   // the design's title as the other files are (HR.documents.named), or as before
   // without one.
@@ -439,6 +572,15 @@ HR.sheet = (() => {
 
   // Whether the kept link is of the design as it is now (a test waits for it).
   const linkIsCurrent = () => link.text === HR.design.text();
+  // Whether Ctrl+P now prints the sheet of the design as it is, with its link: the
+  // sheet prepared and drawn (the tests wait for this state before printing).
+  const ready = () => {
+    const draft = HR.design.text();
+    return checked.text === draft && Boolean(body) && body.text === sourceOf(draft, checked.error).text && linkIsCurrent();
+  };
+  // What the background is doing about the sheet: 'preparing' (a run in the lane),
+  // 'waiting' (the pause after a change), else 'idle'.
+  const state = () => (running ? 'preparing' : timer ? 'waiting' : 'idle');
 
-  return { print, linkIsCurrent };
+  return { print, linkIsCurrent, ready, state };
 })();
