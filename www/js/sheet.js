@@ -447,10 +447,11 @@ HR.sheet = (() => {
 
   // ---- Preparing the sheet in the background ----------------------------------
   // The sheet, then the two sweeps its plots draw (the loop's can take long too), one
-  // after another in the lane `sheet`; a sweep the core refuses is left out. The lane
-  // keeps its worker: a newer design supersedes a run without ending it (the old
-  // answer is dropped), so no worker is started per edit. One run at a time; a run a
-  // print waits for is not superseded by the background's.
+  // after another in the lane `sheet`; a sweep the core refuses is left out. A newer
+  // design supersedes a run by ending its worker: the sheet is every analysis (a
+  // second or two of a core), which a stale run would go on spending while the
+  // panels compute; runs start only after a pause, so a worker a pause is cheap. One
+  // run at a time; a run a print waits for is not superseded by the background's.
   let running = null; // {text, promise, cancel(), forPrint}
   const ENTRIES = [['sheetPage', null], ['responseReport', 'response'], ['loopReport', 'loop']];
   const made = (text, forPrint = false) => {
@@ -468,7 +469,7 @@ HR.sheet = (() => {
       const curves = {};
       let r = null;
       for (const [entry, key] of ENTRIES) {
-        job = HR.background.run(entry, [text], { lane: 'sheet', keep: true });
+        job = HR.background.run(entry, [text], { lane: 'sheet' });
         const got = await job.promise;
         job = null;
         if (cancelled || got.cancelled) return null;
