@@ -4,7 +4,8 @@
 // spins the page draws frames, answers clicks and keys on another panel, says on the
 // panel that it is computing, and Cancel stops the run. A real legal document whose
 // loop analysis takes far longer than a frame computes in the background likewise. A
-// run superseded in its lane ends as it was asked to (its worker ended, or kept).
+// run superseded in its lane ends as it was asked to (its worker ended, or kept), and a
+// kept lane ends a runaway that a newer run has waited behind for a grace.
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
 import { launch, clearStorage, ready, watch, instrumentWork, workLog, framesDrawn, undoButton, holdWorkers, PAGE_URL } from './browser.mjs';
@@ -120,6 +121,47 @@ test('a run ends as it was asked to, whatever the run after it asks: a runaway i
   assert.deepEqual(runs, [{ cancelled: true }, runs[1], 2, { cancelled: true }, runs[4], 2]);
   assert.equal(runs[1].ok, '2.2');
   assert.equal(runs[4].ok, '3.3');
+  assert.deepEqual(seen.errors, []);
+  await page.close();
+});
+
+test('a drag on Stage keeps its worker and follows it; a runaway behind the drag is ended after a grace', async () => {
+  const page = await browser.context.newPage();
+  const seen = watch(page);
+  await page.addInitScript(instrumentWork);
+  await page.addInitScript(runawayHook);
+  await page.goto(`${PAGE_URL}#stage`);
+  await ready(page);
+  await page.waitForSelector('#panel-stage[data-follow="settled"]', { state: 'attached' });
+  // A drag: R fb set thirty times, one value a frame. The lane keeps its worker (the
+  // stale run, a few milliseconds, finishes and the latest goes in): no worker started.
+  const drag = await page.evaluate(async () => {
+    const started = HR.background.startedIn.stage;
+    const n = Number(document.getElementById('panel-stage').dataset.computed);
+    const values = ['2k0', '2k2', '2k4', '2k7', '3k0', '3k3', '3k6', '3k9', '4k3', '4k7'];
+    for (let i = 0; i < 30; i++) {
+      HR.design.set('stage', 'r_fb_ohm', values[i % 10], 'drag');
+      await new Promise((resolve) => requestAnimationFrame(resolve));
+    }
+    return { started, n };
+  });
+  await page.waitForSelector('#panel-stage[data-follow="settled"]', { state: 'attached' });
+  assert.equal(await page.evaluate(() => HR.background.startedIn.stage), drag.started, 'no worker started by the drag');
+  assert.ok(Number(await stage(page).getAttribute('data-computed')) > drag.n);
+  assert.match(await stage(page).locator('button.value[data-key="r_fb_ohm"]').textContent(), /4k7/);
+  assert.equal(await stage(page).locator('.stale-note').isVisible(), false, 'the figures on show are the last value’s');
+
+  // A runaway (R fb = 6k8, held for a minute) superseded by an edit: the edit waits
+  // behind it for the grace, then its worker is ended and the edit computes afresh.
+  const ended = (await workLog(page)).terminated;
+  const n = Number(await stage(page).getAttribute('data-computed'));
+  await page.evaluate(() => HR.design.set('stage', 'r_fb_ohm', '6k8', 'runaway'));
+  await page.waitForSelector('#panel-stage[data-follow="running"]', { state: 'attached' });
+  await page.evaluate(() => HR.design.set('stage', 'r_fb_ohm', '5k6', 'after'));
+  await page.waitForSelector(`#panel-stage[data-computed="${n + 1}"][data-follow="settled"]`, { state: 'attached', timeout: 30000 });
+  assert.ok((await workLog(page)).terminated > ended, 'the runaway’s worker was ended');
+  assert.equal(await page.evaluate(() => HR.background.startedIn.stage), drag.started + 1, 'one fresh worker');
+  assert.equal(await stage(page).locator('.stale-note').isVisible(), false);
   assert.deepEqual(seen.errors, []);
   await page.close();
 });

@@ -74,6 +74,7 @@ HR.compare = (() => {
   // panel's render finds them: what a panel's follow job returns.
   const along = (handle, entries) => ({
     cancel: handle.cancel,
+    end: handle.end,
     promise: Promise.all([handle.promise, ...entries.map(([entry, ...args]) => {
       if (!text()) return null;
       report(entry, ...args);

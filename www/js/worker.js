@@ -15,8 +15,9 @@
 // wall time), {error: {field, reason, message}} (bad input, or a trap, which is also
 // reported in the status line as HR.call does) or {cancelled: true}. Each lane (by
 // default the entry's name) has one worker and runs one call at a time: a new run in a
-// lane cancels the one before it. Cancelling terminates the lane's worker; the next run
-// starts a fresh one. Lanes run in parallel, one worker each.
+// lane cancels the one before it. Cancelling terminates the lane's worker (the next run
+// starts a fresh one), except a run made with `keep` (see submit); `end()` always
+// does. Lanes run in parallel, one worker each.
 //
 //   HR.background.follow(panel, spec)
 //
@@ -57,13 +58,26 @@ HR.background = (() => {
   const stop = (lane) => {
     if (lane.worker) lane.worker.terminate();
     lane.worker = null;
+    lane.unanswered.clear();
+    lane.waiting = null;
   };
+
+  // How long a run waits behind a superseded kept run still computing in its lane's
+  // worker before that worker is ended and the run starts in a fresh one: a kept run
+  // is usually done within a frame, so only a runaway is ended (longer than the
+  // e2e tests' one-second kept run, which must finish).
+  const GRACE_MS = 2500;
 
   // The lane's worker, started (and handed the module) when it has none.
   const workerOf = (lane) => {
     if (lane.worker) return lane.worker;
     const worker = new Worker(sourceUrl(), { name: `halfrail-${lane.key}` });
     worker.onmessage = ({ data }) => {
+      if (!('progress' in data)) {
+        lane.unanswered.delete(data.id);
+        // The superseded run is done: the run waiting behind it goes in.
+        if (lane.unanswered.size === 0 && lane.waiting) lane.waiting();
+      }
       const job = lane.job;
       if (!job || data.id !== job.id) return;
       if ('progress' in data) job.onProgress(data.progress);
@@ -72,8 +86,11 @@ HR.background = (() => {
     // The worker itself failed (it could not start, or the module would not load).
     worker.onerror = (e) => {
       e.preventDefault();
-      if (lane.job) lane.job.finish({ trap: e.message || 'the background worker stopped' });
+      // A run waiting behind a superseded one was not posted here: it starts afresh.
+      const waiting = lane.waiting;
+      if (lane.job && !waiting) lane.job.finish({ trap: e.message || 'the background worker stopped' });
       stop(lane);
+      if (waiting) waiting();
     };
     worker.postMessage({ module: HR.module });
     lane.worker = worker;
@@ -98,8 +115,10 @@ HR.background = (() => {
   // for a lane that runs after every edit and is usually done within a frame, where
   // starting a worker per edit would cost more than the call. It is the job's own:
   // a later run of the lane, kept or not, does not change how an earlier one ends.
+  // A kept run's worker is ended all the same when the run that supersedes it has
+  // waited GRACE_MS behind it (a runaway), and by `end()` (the user's Cancel).
   const submit = (message, entry, { lane: key = entry, onProgress = () => {}, keep = false } = {}) => {
-    if (!lanes.has(key)) lanes.set(key, { key, worker: null, job: null });
+    if (!lanes.has(key)) lanes.set(key, { key, worker: null, job: null, unanswered: new Set(), waiting: null });
     const lane = lanes.get(key);
     if (lane.job) lane.job.cancel();
     let settle;
@@ -115,20 +134,34 @@ HR.background = (() => {
         else if (data.error) settle({ error: data.error });
         else { stop(lane); settle(trapped(data.trap)); }
       },
-      cancel() {
+      cancel(end = false) {
         if (lane.job !== job) return;
         lane.job = null;
-        if (!keep) stop(lane);
+        if (end || !keep) stop(lane);
         settle({ cancelled: true });
       },
     };
     lane.job = job;
-    try {
-      workerOf(lane).postMessage({ id: job.id, ...message });
-    } catch (e) {
-      job.finish({ trap: `no background worker: ${e && e.message ? e.message : e}` });
+    const post = () => {
+      lane.waiting = null;
+      if (lane.job !== job) return;
+      try {
+        workerOf(lane).postMessage({ id: job.id, ...message });
+        lane.unanswered.add(job.id);
+      } catch (e) {
+        job.finish({ trap: `no background worker: ${e && e.message ? e.message : e}` });
+      }
+    };
+    if (lane.worker && lane.unanswered.size > 0) {
+      // Behind a superseded kept run still computing: posted when it answers (only
+      // the latest run waits, so a drag leaves no queue of stale calls), or after
+      // GRACE_MS in a fresh worker.
+      lane.waiting = post;
+      setTimeout(() => { if (lane.waiting === post) { stop(lane); post(); } }, GRACE_MS);
+    } else {
+      post();
     }
-    return { promise, cancel: () => job.cancel() };
+    return { promise, cancel: () => job.cancel(), end: () => job.cancel(true) };
   };
 
   // Keeps a panel's figures in step with the design, like HR.design.follow, with the
@@ -230,12 +263,13 @@ HR.background = (() => {
       launch(text);
     };
 
-    const cancelJob = () => {
+    // `end`: the user's Cancel, which ends the run's worker even in a lane that keeps it.
+    const cancelJob = (end = false) => {
       const mine = job;
       job = null;
       clearTimeout(showing);
       showing = null;
-      if (mine) mine.cancel();
+      if (mine) (end && mine.end ? mine.end() : mine.cancel());
       progress(null);
     };
 
@@ -283,7 +317,7 @@ HR.background = (() => {
       start,
       cancel() {
         if (!job) return;
-        cancelJob();
+        cancelJob(true);
         held = true;
         mark('held');
         stale('cancelled', shownText !== null);

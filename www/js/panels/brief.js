@@ -90,6 +90,7 @@
         name: 'responseReport',
         args: (text) => [text],
         lane: 'brief',
+        keep: true,
         delay: 0,
         quiet: HR.background.QUIET,
         progress: () => {},

@@ -386,7 +386,7 @@
       figures.querySelector('h2').after(box.node);
       box.attach(HR.background.follow(container, {
         job: (text) => (hasSections()
-          ? HR.compare.along(HR.background.calls([['crystalReport', [text]], ['crystalCurves', [text]]], { lane: 'crystal' }), [['crystalReport'], ['crystalCurves']])
+          ? HR.compare.along(HR.background.calls([['crystalReport', [text]], ['crystalCurves', [text]]], { lane: 'crystal', keep: true }), [['crystalReport'], ['crystalCurves']])
           : { promise: Promise.resolve({ ok: null }), cancel() {} }),
         delay: 0, quiet: HR.background.QUIET,
         render: (ok) => { layout(); if (ok) render(ok); },

@@ -346,7 +346,7 @@
       const box = HR.background.runBox('loop analysis');
       verdictCard.querySelector('h2').after(box.node);
       box.attach(HR.background.follow(container, {
-        job: (text) => HR.compare.along(HR.background.run('loopReport', [text], { lane: 'loop' }), [['loopReport']]),
+        job: (text) => HR.compare.along(HR.background.run('loopReport', [text], { lane: 'loop', keep: true }), [['loopReport']]),
         delay: 0, quiet: HR.background.QUIET,
         render,
         report: (error) => {

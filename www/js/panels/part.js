@@ -362,7 +362,7 @@
       const box = HR.background.runBox('operating point and curves');
       bias.node.querySelector('h2').after(box.node);
       box.attach(HR.background.follow(container, {
-        job: (text) => HR.compare.along(HR.background.run('partReport', [text, POINTS], { lane: 'part' }), [['partReport', POINTS]]),
+        job: (text) => HR.compare.along(HR.background.run('partReport', [text, POINTS], { lane: 'part', keep: true }), [['partReport', POINTS]]),
         delay: 0, quiet: HR.background.QUIET,
         render: HR.compare.rerender((r) => { bias.render(r); curves.render(r); }),
         report: (error, at) => { problem.textContent = error && !at ? HR.words(error) : ''; },

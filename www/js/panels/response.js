@@ -110,7 +110,7 @@
       const box = HR.background.runBox('response');
       figures.querySelector('h2').after(box.node);
       box.attach(HR.background.follow(container, {
-        job: (text) => HR.compare.along(HR.background.run('responseReport', [text], { lane: 'response' }), [['responseReport']]),
+        job: (text) => HR.compare.along(HR.background.run('responseReport', [text], { lane: 'response', keep: true }), [['responseReport']]),
         delay: 0, quiet: HR.background.QUIET,
         render,
         report: (error) => { problem.textContent = HR.words(error); },

@@ -268,7 +268,7 @@
       const box = HR.background.runBox('key figures');
       stale.before(box.node);
       box.attach(HR.background.follow(container, {
-        job: (text) => HR.compare.along(HR.background.calls([['responseReport', [text]], ['biasOf', [text]]], { lane: 'stage' }),
+        job: (text) => HR.compare.along(HR.background.calls([['responseReport', [text]], ['biasOf', [text]]], { lane: 'stage', keep: true }),
           [['responseReport'], ['biasOf']]),
         delay: 0, quiet: HR.background.QUIET,
         render: (ok, meta) => render({ r: ok[0], b: ok[1] }, meta),
