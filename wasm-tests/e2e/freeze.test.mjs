@@ -23,14 +23,20 @@ const stage = (page) => page.locator('#panel-stage');
 const follow = (page) => stage(page).getAttribute('data-follow');
 const computed = (page) => stage(page).getAttribute('data-computed').then(Number);
 
-test('a runaway core call leaves the page responsive, says it is computing, and Cancel stops it', async () => {
+// The Stage panel with its first figures, its workers logged and the runaway hook in.
+const stagePage = async () => {
   const page = await browser.context.newPage();
   const seen = watch(page);
   await page.addInitScript(instrumentWork);
   await page.addInitScript(runawayHook);
   await page.goto(`${PAGE_URL}#stage`);
   await ready(page);
-  await page.waitForSelector('#panel-stage[data-computed]');
+  await page.waitForSelector('#panel-stage[data-computed][data-follow="settled"]', { state: 'attached' });
+  return { page, seen };
+};
+
+test('a runaway core call leaves the page responsive, says it is computing, and Cancel stops it', async () => {
+  const { page, seen } = await stagePage();
   const n = await computed(page);
   // Mount the Bench panel once, to type into it during the run.
   await page.locator('#rail a[href="#bench"]').click();
@@ -126,13 +132,7 @@ test('a run ends as it was asked to, whatever the run after it asks: a runaway i
 });
 
 test('a drag on Stage keeps its worker and follows it; a runaway behind the drag is ended after a grace', async () => {
-  const page = await browser.context.newPage();
-  const seen = watch(page);
-  await page.addInitScript(instrumentWork);
-  await page.addInitScript(runawayHook);
-  await page.goto(`${PAGE_URL}#stage`);
-  await ready(page);
-  await page.waitForSelector('#panel-stage[data-follow="settled"]', { state: 'attached' });
+  const { page, seen } = await stagePage();
   // A drag: R fb set thirty times, one value a frame. The lane keeps its worker (the
   // stale run, a few milliseconds, finishes and the latest goes in): no worker started.
   const drag = await page.evaluate(async () => {

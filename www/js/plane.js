@@ -179,5 +179,24 @@ HR.plane = (() => {
     return best;
   };
 
-  return { create, label, cross, ring: HR.plot.ring, axisLabels, nearest };
+  // Strokes `points` ([re, im], or null for a gap) on `P` in `colour`, `width` px and
+  // `dash`; `sign` −1 draws the mirror image (a Nyquist plot's negative frequencies).
+  const polyline = (ctx, P, points, { colour, width, dash = [], sign = 1 }) => {
+    ctx.save();
+    ctx.strokeStyle = colour;
+    ctx.lineWidth = width;
+    ctx.setLineDash(dash);
+    ctx.beginPath();
+    let pen = false;
+    for (const p of points) {
+      if (!p) { pen = false; continue; }
+      const [x, y] = [P.x(p[0]), P.y(sign * p[1])];
+      if (pen) ctx.lineTo(x, y); else ctx.moveTo(x, y);
+      pen = true;
+    }
+    ctx.stroke();
+    ctx.restore();
+  };
+
+  return { create, label, cross, ring: HR.plot.ring, axisLabels, nearest, polyline };
 })();

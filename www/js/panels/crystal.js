@@ -176,25 +176,12 @@
         ctx.stroke();
         planeLabel(ctx, words, P.x(re) + 4, P.box.t + 14 + 14 * row, colour, 'left', P);
       }
-      const path = (points, colour, width, dash) => {
-        ctx.strokeStyle = colour;
-        ctx.lineWidth = width;
-        ctx.setLineDash(dash);
-        ctx.beginPath();
-        let pen = false;
-        for (const p of points) {
-          if (!p) { pen = false; continue; }
-          if (pen) ctx.lineTo(P.x(p[0]), P.y(p[1])); else ctx.moveTo(P.x(p[0]), P.y(p[1]));
-          pen = true;
-        }
-        ctx.stroke();
-      };
       // The reference's locus, under this design's.
       if (d.ref) {
-        path(d.ref, muted, 1.5, [6, 4]);
+        HR.plane.polyline(ctx, P, d.ref, { colour: muted, width: 1.5, dash: [6, 4] });
         planeLabel(ctx, '- - reference', P.box.l + 6, P.box.t + P.box.h - 8, muted, 'left', P);
       }
-      path(d.points, css('--plot-1'), 2, []);
+      HR.plane.polyline(ctx, P, d.points, { colour: css('--plot-1'), width: 2 });
       ctx.restore();
       const [re, im] = d.c.z_c;
       planeRing(ctx, P.x(re), P.y(im), 6, css('--plot-2'));

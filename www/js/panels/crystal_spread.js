@@ -22,10 +22,7 @@ HR.crystalSpread = (() => {
   const nameOf = (key) => (HR.fieldAt(`oscillator.${key}`) || HR.fieldAt(`part.${key}`) || { name: key }).name;
 
   const create = (container) => {
-    const bar = el('progress', { max: 1, value: 0, 'aria-label': 'Progress of the oscillator’s spread' });
-    const barText = el('span', { class: 'run-text', 'aria-live': 'polite' }, '');
-    const cancel = el('button', { type: 'button', class: 'cancel', onclick: () => follower && follower.cancel() }, 'Cancel');
-    const running = el('div', { class: 'run', hidden: true }, bar, barText, cancel);
+    const running = HR.spread.progressBox('Progress of the oscillator’s spread', () => follower && follower.cancel());
     const go = el('button', { type: 'button', class: 'primary', onclick: () => start() }, 'Run the spread');
     const toSpread = el('a', { href: `#spread${HR.documents ? HR.documents.tail : ''}`, onclick: (e) => { e.preventDefault(); HR.goTo('spread', 'input'); } }, 'Spread panel');
     const problem = el('p', { class: 'error', 'aria-live': 'polite', hidden: true });
@@ -44,7 +41,7 @@ HR.crystalSpread = (() => {
     const node = card('Spread over the tolerances',
       el('p', { class: 'intro' }, 'Each trial draws C1, C2, the strays, Rf and Rs within the capacitors’ and resistors’ tolerances, and the supply and the part’s k and thresholds, from the tolerances of the ', toSpread,
         '; the first trials also solve the steady state, for the drive level. The yield counts the trials that meet the frequency error, margin and drive limits.'),
-      el('div', { class: 'actions' }, go), running, timing, problem, staleNote, results);
+      el('div', { class: 'actions' }, go), running.node, timing, problem, staleNote, results);
     node.classList.add('wide', 'crystal-spread');
 
     let last = null;
@@ -103,12 +100,7 @@ HR.crystalSpread = (() => {
       follower = HR.background.follow(node, {
         name: 'crystalSpread', args: (text) => [text], lane: 'crystal-spread',
         render,
-        progress: (p) => {
-          running.hidden = p === null;
-          if (p === null) return;
-          bar.value = p;
-          barText.textContent = `Computing… ${fixed(100 * p, 0)} %`;
-        },
+        progress: running.progress,
         report: (error) => {
           problem.textContent = error ? HR.words(error) : '';
           problem.hidden = !error;

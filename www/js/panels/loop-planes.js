@@ -83,30 +83,14 @@ HR.loopPlanes = (() => {
       ctx.moveTo(P.x(0), P.box.t); ctx.lineTo(P.x(0), P.box.t + P.box.h);
       ctx.stroke();
       ctx.restore();
-      // Negative frequencies (the mirror image), then the sweep itself.
-      const path = (sign, colour, dash, width, points = d.points) => {
-        ctx.save();
-        ctx.strokeStyle = colour;
-        ctx.lineWidth = width;
-        ctx.setLineDash(dash);
-        ctx.beginPath();
-        let pen = false;
-        for (const p of points) {
-          if (!p) { pen = false; continue; }
-          const [x, y] = [P.x(p[0]), P.y(sign * p[1])];
-          if (pen) ctx.lineTo(x, y); else ctx.moveTo(x, y);
-          pen = true;
-        }
-        ctx.stroke();
-        ctx.restore();
-      };
       // The reference's T (positive frequencies), under this design's.
       if (d.ref) {
-        path(1, muted, [6, 4], 1.5, d.ref);
+        HR.plane.polyline(ctx, P, d.ref, { colour: muted, width: 1.5, dash: [6, 4] });
         label(ctx, '- - reference', P.box.l + 6, P.box.t + 16, muted);
       }
-      path(-1, css('--plot-3'), [5, 4], 1.5);
-      path(1, css('--plot-1'), [], 2);
+      // Negative frequencies (the mirror image), then the sweep itself.
+      HR.plane.polyline(ctx, P, d.points, { colour: css('--plot-3'), width: 1.5, dash: [5, 4], sign: -1 });
+      HR.plane.polyline(ctx, P, d.points, { colour: css('--plot-1'), width: 2 });
       // Arrowheads where the frequency passes each decade: the way the sweep runs.
       const fs = d.r.f_hz;
       ctx.save();

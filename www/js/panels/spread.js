@@ -65,7 +65,23 @@
     for (const x of values) if (known(x)) counts[1 + Math.min(n - 1, Math.floor((x - min) / w))] += 1;
     return [counts.map((_, i) => min + (i - 0.5) * w), counts];
   };
-  HR.spread = { run, bins };
+  // A spread's progress bar with Cancel, hidden while nothing runs: {node, progress(p)},
+  // `progress` being what HR.background.follow calls (null: done).
+  const progressBox = (label, cancel) => {
+    const bar = el('progress', { max: 1, value: 0, 'aria-label': label });
+    const text = el('span', { class: 'run-text', 'aria-live': 'polite' }, '');
+    const node = el('div', { class: 'run', hidden: true }, bar, text, el('button', { type: 'button', class: 'cancel', onclick: cancel }, 'Cancel'));
+    return {
+      node,
+      progress(p) {
+        node.hidden = p === null;
+        if (p === null) return;
+        bar.value = p;
+        text.textContent = `Computing… ${fixed(100 * p, 0)} %`;
+      },
+    };
+  };
+  HR.spread = { run, bins, progressBox };
 
   // The target's limits on each figure as [lowest, highest] (null: no bound).
   const limits = () => {
@@ -95,16 +111,13 @@
       const fields = TOLERANCES.map((key) => HR.bind('tolerance', key, { label: HR.field('tolerance', key).label, hint: HR.field('tolerance', key).hint,
         compact: true, origin: 'spread', read: /^(trials|seed)$/.test(key) ? whole : undefined }));
 
-      const bar = el('progress', { max: 1, value: 0, 'aria-label': 'Progress of the Monte Carlo run' });
-      const barText = el('span', { class: 'run-text', 'aria-live': 'polite' }, '');
-      const cancel = el('button', { type: 'button', class: 'cancel', onclick: () => follower.cancel() }, 'Cancel');
-      const running = el('div', { class: 'run', hidden: true }, bar, barText, cancel);
+      const running = progressBox('Progress of the Monte Carlo run', () => follower.cancel());
       const now = el('button', { type: 'button', onclick: () => follower.start() }, 'Compute now');
       const timing = el('p', { class: 'run-note' }, 'The trials run in two background workers.');
       const problem = el('p', { class: 'error', 'aria-live': 'polite', hidden: true });
       const staleNote = el('p', { class: 'stale-note', hidden: true });
       const runCard = card('Tolerances', el('p', { class: 'intro' }, 'Each trial builds the stage with every part drawn at random, evenly and independently, within ± its tolerance: the stage’s resistors and capacitors, the supply, kn, kp, Vtn and Vtp. The source and the load stay as they are.'),
-        el('div', { class: 'grid-fields' }, fields.map((f) => f.wrap)), running, timing,
+        el('div', { class: 'grid-fields' }, fields.map((f) => f.wrap)), running.node, timing,
         el('div', { class: 'actions' }, now), problem, staleNote);
       runCard.classList.add('wide');
 
@@ -210,12 +223,7 @@
       const follower = HR.background.follow(container, {
         job: run,
         render,
-        progress: (p) => {
-          running.hidden = p === null;
-          if (p === null) return;
-          bar.value = p;
-          barText.textContent = `Computing… ${fixed(100 * p, 0)} %`;
-        },
+        progress: running.progress,
         report: (error) => {
           problem.textContent = HR.words(error);
           problem.hidden = !error;
