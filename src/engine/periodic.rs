@@ -125,7 +125,10 @@ impl Transient<'_> {
         let mut x = DVector::zeros(size);
         let mut correction = DVector::zeros(size);
         let mut s_next = DMatrix::zeros(size, 2 * m);
-        let (mut memory, mut column, mut solved) = (DVector::zeros(size), DVector::zeros(size), DVector::zeros(size));
+        let (mut memory, mut column) = (DVector::zeros(size), DVector::zeros(size));
+        // The sensitivities' right-hand sides and solutions, row-major (size × 2m), to
+        // be solved together.
+        let (mut block, mut solved) = (vec![0.0; size * 2 * m], vec![0.0; size * 2 * m]);
         for k in 1..=steps {
             let t = k as f64 * h;
             // BDF2 throughout: 2x − x₋/2 is the memory, as in `run`.
@@ -158,12 +161,20 @@ impl Transient<'_> {
                 // J·∂x/∂z = ∂rhs/∂z: the memory's sensitivity through the Jacobian at x.
                 s_history.copy_from(&s_now);
                 s_history.zip_apply(&s_before, |a, b| *a = 2.0 * *a - 0.5 * b);
-                for j in 0..2 * m {
+                let k = 2 * m;
+                for j in 0..k {
                     column.fill(0.0);
                     memory.copy_from(&s_history.column(j));
                     companion.memory(n, &memory, h, BDF2_ALPHA, &mut column);
-                    lu.solve_into(&column, &mut solved);
-                    s_next.set_column(j, &solved);
+                    for (r, &v) in column.iter().enumerate() {
+                        block[r * k + j] = v;
+                    }
+                }
+                lu.solve_rows_into(&block, k, &mut solved);
+                for (r, row) in solved.chunks_exact(k).enumerate() {
+                    for (j, &v) in row.iter().enumerate() {
+                        s_next[(r, j)] = v;
+                    }
                 }
                 // s_before ← s_now ← s_next (the old s_before's buffer to fill next).
                 std::mem::swap(&mut s_before, &mut s_now);
