@@ -28,7 +28,14 @@ pub struct HessenbergSweep {
     /// The Hessenberg system of one frequency and its solution.
     m: Vec<Complex64>,
     y: Vec<Complex64>,
+    /// The same for `LANES` frequencies at once.
+    m_lanes: Vec<[Complex64; LANES]>,
+    y_lanes: Vec<[Complex64; LANES]>,
 }
+
+/// Frequencies `solve_many` takes together: each solve is a chain of dependent
+/// divisions and subtractions, and four independent chains keep the processor busy.
+const LANES: usize = 4;
 
 /// √(a² + b²) without overflow or underflow in the squares.
 fn hypot(a: f64, b: f64) -> f64 {
@@ -130,7 +137,8 @@ impl HessenbergSweep {
             }
         }
         let z_rows = read.iter().map(|&r| z[r * n..(r + 1) * n].to_vec()).collect();
-        Some(HessenbergSweep { n, h, t, rhs, z_rows, m: vec![Complex64::default(); n * n], y: vec![Complex64::default(); n] })
+        let zero = Complex64::default();
+        Some(HessenbergSweep { n, h, t, rhs, z_rows, m: vec![zero; n * n], y: vec![zero; n], m_lanes: vec![[zero; LANES]; n * n], y_lanes: vec![[zero; LANES]; n] })
     }
 
     /// The unknowns read, at `omega`, into `out` (one per unknown read); `false`
@@ -188,6 +196,110 @@ impl HessenbergSweep {
     }
 }
 
+impl HessenbergSweep {
+    /// `solve` at each of `omegas`: the unknowns read, one row of them per frequency,
+    /// into `out`, and in `ok` whether each solved. The same arithmetic as `solve`,
+    /// each frequency's to the bit, `LANES` frequencies at a time.
+    pub fn solve_many(&mut self, omegas: &[f64], out: &mut [Complex64], ok: &mut [bool]) {
+        let reads = self.z_rows.len();
+        let mut lanes_out = vec![[Complex64::default(); LANES]; reads];
+        for (c, chunk) in omegas.chunks(LANES).enumerate() {
+            // Spare lanes repeat the chunk's first frequency.
+            let mut w = [chunk[0]; LANES];
+            w[..chunk.len()].copy_from_slice(chunk);
+            let solved = self.lanes(w, &mut lanes_out);
+            for (l, &good) in solved.iter().enumerate().take(chunk.len()) {
+                let k = c * LANES + l;
+                for (r, o) in lanes_out.iter().enumerate() {
+                    out[k * reads + r] = o[l];
+                }
+                ok[k] = good && lanes_out.iter().all(|o| o[l].re.is_finite() && o[l].im.is_finite());
+            }
+        }
+    }
+
+    /// `solve`'s steps for `LANES` frequencies side by side.
+    fn lanes(&mut self, w: [f64; LANES], out: &mut [[Complex64; LANES]]) -> [bool; LANES] {
+        let n = self.n;
+        let mut ok = [n > 0; LANES];
+        if n == 0 {
+            return ok;
+        }
+        let (m, y) = (&mut self.m_lanes, &mut self.y_lanes);
+        for (yi, &r) in y.iter_mut().zip(&self.rhs) {
+            *yi = [r; LANES];
+        }
+        let fill = |m: &mut [[Complex64; LANES]], k: usize| {
+            for j in k.saturating_sub(1)..n {
+                let (g, c) = (self.h[k * n + j], self.t[k * n + j]);
+                m[k * n + j] = w.map(|w| Complex64::new(g, w * c));
+            }
+        };
+        fill(m, 0);
+        for k in 0..n - 1 {
+            fill(m, k + 1);
+            let mut f = [Complex64::default(); LANES];
+            for l in 0..LANES {
+                if m[(k + 1) * n + k][l].norm_sqr() > m[k * n + k][l].norm_sqr() {
+                    for j in k..n {
+                        let above = m[k * n + j][l];
+                        m[k * n + j][l] = m[(k + 1) * n + j][l];
+                        m[(k + 1) * n + j][l] = above;
+                    }
+                    let above = y[k][l];
+                    y[k][l] = y[k + 1][l];
+                    y[k + 1][l] = above;
+                }
+                let p = m[k * n + k][l];
+                let size = p.norm_sqr();
+                if size > 0.0 && size.is_finite() {
+                    f[l] = m[(k + 1) * n + k][l] * (p.conj() / size);
+                } else {
+                    ok[l] = false;
+                }
+            }
+            for j in k + 1..n {
+                let u = m[k * n + j];
+                let x = &mut m[(k + 1) * n + j];
+                for l in 0..LANES {
+                    x[l] -= f[l] * u[l];
+                }
+            }
+            let above = y[k];
+            for l in 0..LANES {
+                y[k + 1][l] -= f[l] * above[l];
+            }
+        }
+        for i in (0..n).rev() {
+            let mut s = y[i];
+            for j in i + 1..n {
+                let (u, yj) = (m[i * n + j], y[j]);
+                for l in 0..LANES {
+                    s[l] = s[l] - u[l] * yj[l];
+                }
+            }
+            for l in 0..LANES {
+                let d = m[i * n + i][l];
+                let size = d.norm_sqr();
+                if !(size > 0.0 && size.is_finite()) {
+                    ok[l] = false;
+                }
+                y[i][l] = s[l] * (d.conj() / size);
+            }
+        }
+        for (o, z) in out.iter_mut().zip(&self.z_rows) {
+            let mut sum = [Complex64::default(); LANES];
+            for (yj, &zj) in y.iter().zip(z) {
+                for l in 0..LANES {
+                    sum[l] = sum[l] + yj[l] * zj;
+                }
+            }
+            *o = sum;
+        }
+        ok
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -237,6 +349,28 @@ mod tests {
         let mut b = DVector::zeros(n);
         b[7] = Complex64::new(1.0, 0.0);
         (g, c, b)
+    }
+
+    #[test]
+    fn many_frequencies_at_once_give_each_the_single_solve_to_the_bit() {
+        for seed in 1..10 {
+            let (g, c, b) = pencil(seed);
+            let read = [2, 4];
+            let mut sweep = HessenbergSweep::new(&g, &c, &b, &read).unwrap();
+            let omegas: Vec<f64> = (0..23).map(|k| std::f64::consts::TAU * crate::math::pow(10.0, 0.5 + 0.4 * k as f64)).collect();
+            let mut many = vec![Complex64::default(); omegas.len() * 2];
+            let mut ok = vec![false; omegas.len()];
+            sweep.solve_many(&omegas, &mut many, &mut ok);
+            for (k, &w) in omegas.iter().enumerate() {
+                let mut one = [Complex64::default(); 2];
+                assert_eq!(sweep.solve(w, &mut one), ok[k], "seed {seed}, ω {w:e}");
+                if ok[k] {
+                    for r in 0..2 {
+                        assert_eq!((one[r].re.to_bits(), one[r].im.to_bits()), (many[2 * k + r].re.to_bits(), many[2 * k + r].im.to_bits()), "seed {seed}, ω {w:e}");
+                    }
+                }
+            }
+        }
     }
 
     #[test]

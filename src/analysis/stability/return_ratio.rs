@@ -67,16 +67,12 @@ impl ReturnRatio {
         let small = &self.small;
         let sweep = small.layout.index(self.control).and_then(|i| HessenbergSweep::new(&small.g, &small.c, &small.b, &[i]));
         let Some(mut sweep) = sweep else { return grid.iter().map(|&f| self.at(f)).collect() };
-        let mut out = [Complex64::default()];
+        let omegas: Vec<f64> = grid.iter().map(|&f| std::f64::consts::TAU * f).collect();
+        let (mut v, mut ok) = (vec![Complex64::default(); grid.len()], vec![false; grid.len()]);
+        sweep.solve_many(&omegas, &mut v, &mut ok);
         grid.iter()
             .enumerate()
-            .map(|(k, &f)| {
-                if k > 0 && sweep.solve(std::f64::consts::TAU * f, &mut out) && (out[0].norm_sqr() - 1.0).abs() > GUARD {
-                    Ok(-out[0])
-                } else {
-                    self.at(f)
-                }
-            })
+            .map(|(k, &f)| if k > 0 && ok[k] && (v[k].norm_sqr() - 1.0).abs() > GUARD { Ok(-v[k]) } else { self.at(f) })
             .collect()
     }
 
