@@ -66,10 +66,11 @@ impl HessenbergSweep {
         // C = Q₁R by Householder reflections, applied to G and b from the left.
         let mut v = vec![0.0; n];
         for k in 0..n.saturating_sub(1) {
-            let norm = (k..n).fold(0.0, |s, i| hypot(s, t[i * n + k]));
-            if norm == 0.0 {
+            // A column already zero below the diagonal needs no reflection.
+            if (k + 1..n).all(|i| t[i * n + k] == 0.0) {
                 continue;
             }
+            let norm = (k..n).fold(0.0, |s, i| hypot(s, t[i * n + k]));
             let alpha = if t[k * n + k] > 0.0 { -norm } else { norm };
             for i in k..n {
                 v[i] = t[i * n + k];
@@ -102,11 +103,13 @@ impl HessenbergSweep {
         // diagonal taken out by a rotation of columns.
         for j in 0..n.saturating_sub(2) {
             for i in (j + 2..n).rev() {
+                // Nothing to take out where the entry is zero already (the engine's
+                // matrices are sparse): no rotation, and no fill-in below C's diagonal.
                 let (a, bb) = (h[(i - 1) * n + j], h[i * n + j]);
-                let r = hypot(a, bb);
-                if r == 0.0 {
+                if bb == 0.0 {
                     continue;
                 }
+                let r = hypot(a, bb);
                 let (cs, sn) = (a / r, bb / r);
                 for m in [&mut h, &mut t] {
                     for col in 0..n {
@@ -121,10 +124,10 @@ impl HessenbergSweep {
                 h[i * n + j] = 0.0;
 
                 let (a, bb) = (t[i * n + i], t[i * n + i - 1]);
-                let r = hypot(a, bb);
-                if r == 0.0 {
+                if bb == 0.0 {
                     continue;
                 }
+                let r = hypot(a, bb);
                 let (cs, sn) = (a / r, bb / r);
                 for m in [&mut h, &mut t, &mut z] {
                     for row in 0..n {
