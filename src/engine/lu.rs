@@ -92,8 +92,10 @@ impl<T: Entry> Lu<T> {
         let n = a.nrows();
         self.n = n;
         self.lu.clear();
+        // `a` is column-major: read each row of the packed factors down it.
+        let a = &a.as_slice()[..n * n];
         for i in 0..n {
-            self.lu.extend((0..n).map(|j| a[(i, j)]));
+            self.lu.extend((0..n).map(|j| a[j * n + i]));
         }
         self.factor()
     }
