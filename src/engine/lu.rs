@@ -108,42 +108,31 @@ impl<T: Entry> Lu<T> {
 
     fn factor(&mut self) -> bool {
         self.singular_at = None;
-        let n = self.n;
-        let lu = &mut self.lu[..n * n];
+        let (n, lu) = (self.n, &mut self.lu);
         self.rows.clear();
         self.rows.extend(0..n);
-        // Rows as slices, split around the pivot row: the sweeps and the transient's
-        // Newton spend their time here, and slices drop the bounds checks. The
-        // arithmetic is the same, in the same order, as entry by entry.
         for k in 0..n {
-            // The last of equal largest, as `max_by` chooses.
-            let mut pivot = k;
-            let mut best = lu[k * n + k].magnitude2();
-            for i in k + 1..n {
-                let m = lu[i * n + k].magnitude2();
-                if best.total_cmp(&m) != std::cmp::Ordering::Greater {
-                    (pivot, best) = (i, m);
-                }
-            }
+            let pivot = (k..n).max_by(|&i, &j| lu[i * n + k].magnitude2().total_cmp(&lu[j * n + k].magnitude2())).unwrap_or(k);
             let p = lu[pivot * n + k];
-            if !(best > 0.0 && best.is_finite()) {
+            let size = p.magnitude2();
+            if !(size > 0.0 && size.is_finite()) {
                 self.singular_at = Some(k);
                 return false;
             }
             if pivot != k {
-                let (upper, lower) = lu.split_at_mut(pivot * n);
-                upper[k * n..(k + 1) * n].swap_with_slice(&mut lower[..n]);
+                for j in 0..n {
+                    lu.swap(k * n + j, pivot * n + j);
+                }
                 self.rows.swap(k, pivot);
             }
             let inv = T::one() / p;
-            let (upper, lower) = lu.split_at_mut((k + 1) * n);
-            let u_row = &upper[k * n + k + 1..];
-            for row in lower.chunks_exact_mut(n) {
-                let l = row[k] * inv;
-                row[k] = l;
+            for i in k + 1..n {
+                let l = lu[i * n + k] * inv;
+                lu[i * n + k] = l;
                 if l != T::default() {
-                    for (x, &u) in row[k + 1..].iter_mut().zip(u_row) {
-                        *x -= l * u;
+                    for j in k + 1..n {
+                        let u = lu[k * n + j];
+                        lu[i * n + j] -= l * u;
                     }
                 }
             }
