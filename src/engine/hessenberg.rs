@@ -34,8 +34,8 @@ pub struct HessenbergSweep {
 }
 
 /// Frequencies `solve_many` takes together: each solve is a chain of dependent
-/// divisions and subtractions, and eight independent chains keep the processor busy (eight: 2.5 % faster
-/// than four on the demo spread natively).
+/// divisions and subtractions, and eight independent chains keep the processor
+/// busy (2.5 % faster than four on the demo spread natively).
 const LANES: usize = 8;
 
 /// √(a² + b²) without overflow or underflow in the squares.
