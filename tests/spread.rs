@@ -156,3 +156,41 @@ fn zero_tolerances_give_every_trial_the_nominal_figures_exactly() {
         }
     }
 }
+
+#[test]
+fn the_demo_spread_keeps_its_recorded_figures() {
+    // Recorded from the demo's spread before the sweeps were made cheaper (the
+    // Hessenberg form on the margin grid and the band edges' searches): the same seed
+    // must give the same figures, to 1e-9.
+    let r = load(DEMO).unwrap().spread(&mut |_| {}).unwrap();
+    let close = |got: f64, want: f64, what: &str| assert!((got - want).abs() <= 1e-9 * want.abs(), "{what}: {got} against {want}");
+    let recorded: [(usize, [f64; 6]); 4] = [
+        (0, [11.532572819585855, 2933.8673531112395, 37826260.01794855, 102.84498342784612, 0.0024346156381230446, 12.442315631127414]),
+        (1, [12.002613010134468, 3212.4255513464745, 38341835.15539032, 103.62921104929367, 0.0025888042522556674, 12.216018956566852]),
+        (2, [11.891814713474409, 3309.542436708162, 38969809.80582915, 105.25833238717603, 0.002795718222645789, 12.278465160249139]),
+        (1999, [12.59302453548546, 3618.8668317613046, 39367506.265383415, 106.56632405104125, 0.0029446105786208117, 12.070396963361116]),
+    ];
+    for (i, values) in recorded {
+        for (k, want) in values.into_iter().enumerate() {
+            close(r.trials[i].values[k].unwrap(), want, &format!("trial {i}, {}", Figure::ALL[k].key()));
+        }
+        assert_eq!(r.trials[i].growing, Some(0));
+    }
+    // mean, std, min, max, p1, p99 of each figure.
+    let stats: [[f64; 6]; 6] = [
+        [11.886883315682283, 0.5765807022643614, 9.969608142436318, 13.437236381840012, 10.529272518146758, 13.01506678814918],
+        [3201.879697846658, 252.0596983788148, 2538.2237823786704, 3978.5887183170985, 2688.5477268435748, 3779.0877545044887],
+        [38733815.883101925, 1124819.02537425, 35759670.74056679, 42756564.97556418, 36369964.44373643, 41361668.679700844],
+        [104.56083394866228, 1.9717471829215738, 98.21512799839648, 109.95552991082543, 100.15042961672009, 108.81578142576168],
+        [0.002735109932022377, 0.00040234388306847554, 0.0016932132514906005, 0.004223215815482078, 0.001913035815496039, 0.0036910329139121117],
+        [12.28945870200066, 0.21849026943263417, 11.659713194360235, 13.080355044644989, 11.848591825484156, 12.827554949118891],
+    ];
+    for (k, want) in stats.iter().enumerate() {
+        let s = r.summary.stats[k].unwrap();
+        for (got, (want, what)) in [s.mean, s.std, s.min, s.max, s.p1, s.p99].into_iter().zip(want.iter().zip(["mean", "std", "min", "max", "p1", "p99"])) {
+            close(got, *want, &format!("{} {what}", Figure::ALL[k].key()));
+        }
+        assert_eq!(s.count, 2000);
+    }
+    assert_eq!((r.summary.trials, r.summary.unsolved, r.summary.oscillating, r.summary.yield_fraction), (2000, 0, 0, Some(0.916)));
+}

@@ -17,7 +17,7 @@ use num_complex::Complex64;
 
 use super::twoport::{mu, output_noise, output_selector, resistor_noise, rollett_k, NoiseSource, TwoPort, BOLTZMANN, T0_K};
 use super::transfer::stage_operating_point;
-use crate::engine::{Workspace, Element, Netlist, Node, OperatingPoint, SmallSignal};
+use crate::engine::{HessenbergSweep, Workspace, Element, Netlist, Node, OperatingPoint, SmallSignal};
 use crate::error::Result;
 use crate::part::Part;
 use crate::stage::{build_run, Component, Components, StageCircuit};
@@ -288,36 +288,56 @@ impl Linearised {
         self.loop_break.as_ref().map(|(b, _)| *b)
     }
 
-    /// Av alone at `f_hz`: one solve, for searches that need nothing else.
+    /// Av alone at `f_hz`: one solve, for searches that need nothing else (into the
+    /// sweep's buffers: an edge search makes some forty of them).
     pub fn av(&self, f_hz: f64) -> Result<Complex64> {
-        let x = self.main.solve(std::f64::consts::TAU * f_hz)?;
-        let nodes = &self.circuit.nodes;
-        Ok(self.main.layout.voltage(&x, nodes.output) / self.main.layout.voltage(&x, nodes.input))
+        let work = &mut *self.work.borrow_mut();
+        self.main.solve_in(std::f64::consts::TAU * f_hz, &self.main.b, None, work)?;
+        let (x, nodes) = (&work.x, &self.circuit.nodes);
+        Ok(self.main.layout.voltage(x, nodes.output) / self.main.layout.voltage(x, nodes.input))
     }
 
     /// The band's lower edge (|Av| down to |Av(f_design)|/√2) found without a sweep:
     /// halving the frequency from f_design until it is passed, then refining to
     /// 0.1 %. `None` when the gain holds down to a millihertz (a DC-coupled stage).
     pub fn edge_below(&self, f_design: f64) -> Result<Option<f64>> {
-        self.edge_from(f_design, 0.5, 1e-3)
+        let level = math::norm(self.av(f_design)?) / std::f64::consts::SQRT_2;
+        edge_from(f_design, level, 0.5, 1e-3, &|f| Ok(math::norm(self.av(f)?)))
     }
 
     /// The upper edge the same way, doubling up to 1 THz.
     pub fn edge_above(&self, f_design: f64) -> Result<Option<f64>> {
-        self.edge_from(f_design, 2.0, 1e12)
+        let level = math::norm(self.av(f_design)?) / std::f64::consts::SQRT_2;
+        edge_from(f_design, level, 2.0, 1e12, &|f| Ok(math::norm(self.av(f)?)))
     }
 
-    fn edge_from(&self, f_design: f64, factor: f64, limit: f64) -> Result<Option<f64>> {
-        let level = math::norm(self.av(f_design)?) / std::f64::consts::SQRT_2;
-        let mut f = f_design;
-        while (factor < 1.0 && f > limit) || (factor > 1.0 && f < limit) {
-            let next = f * factor;
-            if math::norm(self.av(next)?) < level {
-                return refine_edge(self, level, f, next).map(Some);
+    /// Both edges, as `edge_below` and `edge_above` give them, from Av at f_design
+    /// already known (`at`'s, which is `av`'s to the bit: the same factors and
+    /// solve). The search's samples come from the Hessenberg form, several times
+    /// cheaper than `av`'s LU, as the search needs only their side of the level;
+    /// one within `EDGE_GUARD` of it (or one the form cannot solve) is `av`'s, so
+    /// every step chooses as on `av`'s samples and the edges are the same.
+    pub fn edges(&self, f_design: f64, av_design: Complex64) -> Result<(Option<f64>, Option<f64>)> {
+        let level = math::norm(av_design) / std::f64::consts::SQRT_2;
+        let (main, nodes) = (&self.main, &self.circuit.nodes);
+        let sweep = match (main.layout.index(nodes.input), main.layout.index(nodes.output)) {
+            (Some(i), Some(o)) => HessenbergSweep::new(&main.g, &main.c, &main.b, &[i, o]),
+            _ => None,
+        };
+        let sweep = RefCell::new(sweep);
+        let gain = |f: f64| -> Result<f64> {
+            if let Some(s) = sweep.borrow_mut().as_mut() {
+                let mut v = [Complex64::default(); 2];
+                if s.solve(std::f64::consts::TAU * f, &mut v) {
+                    let g = math::norm(v[1] / v[0]);
+                    if g.is_finite() && (g / level - 1.0).abs() > EDGE_GUARD {
+                        return Ok(g);
+                    }
+                }
             }
-            f = next;
-        }
-        Ok(None)
+            Ok(math::norm(self.av(f)?))
+        };
+        Ok((edge_from(f_design, level, 0.5, 1e-3, &gain)?, edge_from(f_design, level, 2.0, 1e12, &gain)?))
     }
 
     /// Each noise source's share of the output noise at `f_hz`, largest first: (name, fraction).
@@ -395,12 +415,30 @@ fn integrated_noise(lin: &Linearised, c: &Components, low: f64, high: f64) -> Re
     Ok(power.sqrt())
 }
 
+/// How near |Av| may be to the band edge's level before `edges` takes `av`'s
+/// sample: far above the Hessenberg form's rounding (~10⁻¹² of |Av|).
+const EDGE_GUARD: f64 = 1e-6;
+
+/// A band edge: stepping from `f_design` by `factor` (to `limit`) until |Av|, given
+/// by `gain`, falls below `level`, then refined. `None` when it never does.
+fn edge_from(f_design: f64, level: f64, factor: f64, limit: f64, gain: &impl Fn(f64) -> Result<f64>) -> Result<Option<f64>> {
+    let mut f = f_design;
+    while (factor < 1.0 && f > limit) || (factor > 1.0 && f < limit) {
+        let next = f * factor;
+        if gain(next)? < level {
+            return refine_edge(gain, level, f, next).map(Some);
+        }
+        f = next;
+    }
+    Ok(None)
+}
+
 /// Refines a band edge between two frequencies that bracket the level, by bisection
 /// in log frequency to 0.1 %.
-fn refine_edge(lin: &Linearised, level: f64, mut inside: f64, mut outside: f64) -> Result<f64> {
+fn refine_edge(gain: &impl Fn(f64) -> Result<f64>, level: f64, mut inside: f64, mut outside: f64) -> Result<f64> {
     while (outside / inside - 1.0).abs() > 1e-3 {
         let mid = (inside * outside).sqrt();
-        if math::norm(lin.av(mid)?) >= level {
+        if gain(mid)? >= level {
             inside = mid;
         } else {
             outside = mid;
@@ -421,14 +459,15 @@ pub fn response_of(lin: &Linearised, c: &Components, f_design: f64, freqs: &[f64
     let design = lin.at(f_design, c)?;
     let level = math::norm(design.av) / std::f64::consts::SQRT_2;
     let split = freqs.partition_point(|&f| f < f_design);
+    let gain = |f: f64| Ok(math::norm(lin.av(f)?));
     let below = (0..split).rev().find(|&i| math::norm(points[i].av) < level);
     let above = (split..points.len()).find(|&i| math::norm(points[i].av) < level);
     let f_low_hz = match below {
-        Some(i) => Some(refine_edge(lin, level, if i + 1 < split { freqs[i + 1] } else { f_design }, freqs[i])?),
+        Some(i) => Some(refine_edge(&gain, level, if i + 1 < split { freqs[i + 1] } else { f_design }, freqs[i])?),
         None => None,
     };
     let f_high_hz = match above {
-        Some(i) => Some(refine_edge(lin, level, if i > split { freqs[i - 1] } else { f_design }, freqs[i])?),
+        Some(i) => Some(refine_edge(&gain, level, if i > split { freqs[i - 1] } else { f_design }, freqs[i])?),
         None => None,
     };
     // Av is taken at the input pin, so the ideal ratio is −r_fb/r_in alone: with r_in

@@ -71,8 +71,10 @@ impl ComplexLu {
         let n = g.nrows();
         self.n = n;
         self.lu.clear();
+        // G and C are column-major: read each row of the packed factors down them.
+        let (g, c) = (&g.as_slice()[..n * n], &c.as_slice()[..n * n]);
         for i in 0..n {
-            self.lu.extend((0..n).map(|j| Complex64::new(g[(i, j)], omega * c[(i, j)])));
+            self.lu.extend((0..n).map(|j| Complex64::new(g[j * n + i], omega * c[j * n + i])));
         }
         self.factor()
     }
@@ -90,8 +92,10 @@ impl<T: Entry> Lu<T> {
         let n = a.nrows();
         self.n = n;
         self.lu.clear();
+        // `a` is column-major: read each row of the packed factors down it.
+        let a = &a.as_slice()[..n * n];
         for i in 0..n {
-            self.lu.extend((0..n).map(|j| a[(i, j)]));
+            self.lu.extend((0..n).map(|j| a[j * n + i]));
         }
         self.factor()
     }
@@ -164,6 +168,39 @@ impl<T: Entry> Lu<T> {
         }
     }
 
+    /// X with A·X = B for `k` right-hand sides at once, B and X row-major (n × k):
+    /// each column's arithmetic is `solve_into`'s, in the same order (the same bits),
+    /// but the columns advance together, independent chains the processor overlaps
+    /// instead of one chain of dependent subtractions at a time.
+    pub fn solve_rows_into(&self, b: &[T], k: usize, x: &mut [T]) {
+        let n = self.n;
+        for (i, &row) in self.rows.iter().enumerate() {
+            x[i * k..(i + 1) * k].copy_from_slice(&b[row * k..(row + 1) * k]);
+        }
+        for i in 0..n {
+            let (done, rest) = x.split_at_mut(i * k);
+            let xi = &mut rest[..k];
+            for (j, &l) in self.lu[i * n..i * n + i].iter().enumerate() {
+                for (s, &xj) in xi.iter_mut().zip(&done[j * k..(j + 1) * k]) {
+                    *s = *s - l * xj;
+                }
+            }
+        }
+        for i in (0..n).rev() {
+            let (head, tail) = x.split_at_mut((i + 1) * k);
+            let xi = &mut head[i * k..];
+            for (j, &u) in self.lu[i * n + i + 1..(i + 1) * n].iter().enumerate() {
+                for (s, &xj) in xi.iter_mut().zip(&tail[j * k..(j + 1) * k]) {
+                    *s = *s - u * xj;
+                }
+            }
+            let d = self.lu[i * n + i];
+            for s in xi.iter_mut() {
+                *s = *s / d;
+            }
+        }
+    }
+
     /// y with Aᵀ·y = c (plain transpose, not conjugate): Aᵀ = Uᵀ·Lᵀ·P.
     pub fn solve_transpose(&mut self, c: &DVector<T>) -> DVector<T> {
         let mut y = DVector::from_element(self.n, T::default());
@@ -188,6 +225,29 @@ impl<T: Entry> Lu<T> {
         }
         for (i, &row) in self.rows.iter().enumerate() {
             y[row] = z[i];
+        }
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn many_right_hand_sides_give_each_column_the_single_solve_to_the_bit() {
+        let n = 6;
+        let a = DMatrix::from_fn(n, n, |i, j| if i == j { 3.0 + i as f64 } else { ((i * 7 + j * 3) % 5) as f64 - 2.1 });
+        let lu = RealLu::of_matrix(&a).unwrap();
+        let k = 4;
+        let b: Vec<f64> = (0..n * k).map(|v| ((v * 37) % 11) as f64 * 0.31 - 1.7).collect();
+        let mut x = vec![0.0; n * k];
+        lu.solve_rows_into(&b, k, &mut x);
+        for c in 0..k {
+            let column = DVector::from_fn(n, |r, _| b[r * k + c]);
+            let one = lu.solve(&column);
+            for r in 0..n {
+                assert_eq!(x[r * k + c].to_bits(), one[r].to_bits());
+            }
         }
     }
 }

@@ -6,6 +6,7 @@
 mod ac;
 mod carry;
 mod dc;
+mod hessenberg;
 mod lu;
 mod mna;
 mod netlist;
@@ -15,6 +16,7 @@ mod transient;
 
 pub use carry::carry_over;
 pub use ac::{check_finite, SmallSignal, Workspace};
+pub use hessenberg::HessenbergSweep;
 pub use lu::{ComplexLu, RealLu};
 pub use dc::{operating_point, DcSystem, Method, OperatingPoint};
 pub use mna::{Layout, GMIN};

@@ -120,6 +120,15 @@ impl Transient<'_> {
         let mut history = DVector::zeros(size);
         let mut rhs = DVector::zeros(size);
         let mut s_history = DMatrix::zeros(size, 2 * m);
+        // Buffers for every step (a shot allocates nothing after this): the next
+        // solution, the closing correction, the next sensitivities and one column.
+        let mut x = DVector::zeros(size);
+        let mut correction = DVector::zeros(size);
+        let mut s_next = DMatrix::zeros(size, 2 * m);
+        let (mut memory, mut column) = (DVector::zeros(size), DVector::zeros(size));
+        // The sensitivities' right-hand sides and solutions, row-major (size × 2m), to
+        // be solved together.
+        let (mut block, mut solved) = (vec![0.0; size * 2 * m], vec![0.0; size * 2 * m]);
         for k in 1..=steps {
             let t = k as f64 * h;
             // BDF2 throughout: 2x − x₋/2 is the memory, as in `run`.
@@ -130,7 +139,7 @@ impl Transient<'_> {
             companion.memory(n, &history, h, BDF2_ALPHA, &mut rhs);
             // Predicted on the line through the last two points; from the last point
             // itself when that fails (the prediction overshoots a sharp edge).
-            let mut x = &now * 2.0 - &before;
+            x.zip_zip_apply(&now, &before, |x, now, before| *x = now * 2.0 - before);
             if !self.newton(&companion.gear, &rhs, &mut x, &mut scratch) && {
                 x.copy_from(&now);
                 !self.newton(&companion.gear, &rhs, &mut x, &mut scratch)
@@ -146,22 +155,34 @@ impl Transient<'_> {
             if !lu.refactor_matrix(&scratch.jacobian) {
                 return Err(FieldError::new("circuit", "the periodic steady state met a singular step"));
             }
-            x -= lu.solve(&scratch.residual);
+            lu.solve_into(&scratch.residual, &mut correction);
+            x -= &correction;
             if carry {
                 // J·∂x/∂z = ∂rhs/∂z: the memory's sensitivity through the Jacobian at x.
                 s_history.copy_from(&s_now);
                 s_history.zip_apply(&s_before, |a, b| *a = 2.0 * *a - 0.5 * b);
-                let mut s_next = DMatrix::zeros(size, 2 * m);
-                let mut column = DVector::zeros(size);
-                for j in 0..2 * m {
+                let k = 2 * m;
+                for j in 0..k {
                     column.fill(0.0);
-                    companion.memory(n, &s_history.column(j).into_owned(), h, BDF2_ALPHA, &mut column);
-                    s_next.set_column(j, &lu.solve(&column));
+                    memory.copy_from(&s_history.column(j));
+                    companion.memory(n, &memory, h, BDF2_ALPHA, &mut column);
+                    for (r, &v) in column.iter().enumerate() {
+                        block[r * k + j] = v;
+                    }
                 }
+                lu.solve_rows_into(&block, k, &mut solved);
+                for (r, row) in solved.chunks_exact(k).enumerate() {
+                    for (j, &v) in row.iter().enumerate() {
+                        s_next[(r, j)] = v;
+                    }
+                }
+                // s_before ← s_now ← s_next (the old s_before's buffer to fill next).
                 std::mem::swap(&mut s_before, &mut s_now);
-                s_now = s_next;
+                std::mem::swap(&mut s_now, &mut s_next);
             }
-            before = std::mem::replace(&mut now, x);
+            // before ← now ← x (the old before's buffer to fill next).
+            std::mem::swap(&mut before, &mut now);
+            std::mem::swap(&mut now, &mut x);
             shot.x[k - 1].copy_from(&now);
         }
         if carry {

@@ -65,8 +65,10 @@ pub struct Transient<'a> {
 /// own unknowns.
 pub(super) struct Companion {
     large: Vec<Large>,
-    /// C of the small capacitors, bordered with zeros to the run's size.
-    c: DMatrix<f64>,
+    /// C of the small capacitors, bordered with zeros to the run's size, as its
+    /// nonzero entries (row, column, value) column by column: the memory's product
+    /// touches only these (a stage's C is mostly zeros).
+    c: Vec<(usize, usize, f64)>,
     euler: DMatrix<f64>,
     pub(super) gear: DMatrix<f64>,
 }
@@ -101,7 +103,15 @@ impl Companion {
             m
         };
         let (euler, gear) = (with(1.0), with(BDF2_ALPHA));
-        Companion { large, c, euler, gear }
+        let mut entries = Vec::new();
+        for j in 0..size {
+            for i in 0..size {
+                if c[(i, j)] != 0.0 {
+                    entries.push((i, j, c[(i, j)]));
+                }
+            }
+        }
+        Companion { large, c: entries, euler, gear }
     }
 
     /// The branches the large capacitors add after the circuit's own unknowns.
@@ -114,7 +124,13 @@ impl Companion {
     /// large one, a branch, its voltage in `history` over `alpha` (1 for Euler,
     /// `BDF2_ALPHA`). The history is x for Euler, 2x − x₋/2 for BDF2.
     pub(super) fn memory(&self, n: usize, history: &DVector<f64>, h: f64, alpha: f64, rhs: &mut DVector<f64>) {
-        rhs.gemv(1.0 / h, &self.c, history, 1.0);
+        // rhs += C·history/h in the order and roundings of nalgebra's gemv, which this
+        // replaced (column by column, (C_ij/h)·x_j added to each row): the same bits,
+        // the zeros' terms (exact zeros added) left out.
+        let over_h = 1.0 / h;
+        for &(i, j, c) in &self.c {
+            rhs[i] = over_h * c * history[j] + rhs[i];
+        }
         for (j, cap) in self.large.iter().enumerate() {
             let at = |i: Option<usize>| i.map_or(0.0, |i| history[i]);
             rhs[n + j] += (at(cap.a) - at(cap.b)) / alpha;

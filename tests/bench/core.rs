@@ -12,7 +12,17 @@ use halfrail::part::preset;
 use halfrail::stage::build;
 
 /// Median seconds per call of `f`, over `batches` batches sized to take about 20 ms each.
+/// With `HALFRAIL_BENCH_RUNS=n`, `f` runs exactly n times and the mean is reported:
+/// a fixed amount of work, for counting it (`perf stat -e instructions`) on a busy
+/// machine, where wall time says little.
 fn median_time(mut f: impl FnMut()) -> f64 {
+    if let Some(runs) = std::env::var("HALFRAIL_BENCH_RUNS").ok().and_then(|v| v.parse::<usize>().ok()) {
+        let t = Instant::now();
+        for _ in 0..runs {
+            f();
+        }
+        return t.elapsed().as_secs_f64() / runs.max(1) as f64;
+    }
     let start = Instant::now();
     f();
     let once = start.elapsed().as_secs_f64().max(1e-9);
@@ -28,6 +38,23 @@ fn median_time(mut f: impl FnMut()) -> f64 {
         .collect();
     times.sort_by(f64::total_cmp);
     times[times.len() / 2]
+}
+
+/// The rows asked for: `cargo bench --bench core -- spread loop` times only the rows
+/// whose name holds one of the words (all rows without any).
+fn filters() -> Vec<String> {
+    std::env::args().skip(1).filter(|a| !a.starts_with("--")).collect()
+}
+
+/// Times `f` and reports it as `what`, if the filters let it run.
+fn row(what: &str, target: Option<f64>, f: impl FnMut()) -> Option<f64> {
+    let filters = filters();
+    if !filters.is_empty() && !filters.iter().any(|w| what.contains(w.as_str())) {
+        return None;
+    }
+    let seconds = median_time(f);
+    report(what, seconds, target);
+    Some(seconds)
 }
 
 fn report(what: &str, seconds: f64, target: Option<f64>) {
@@ -64,6 +91,11 @@ const NATIVE_FIGURES: &str = "target/bench/native.json";
 
 fn main() {
     let mut figures: Vec<(&str, f64)> = Vec::new();
+    let mut keep = |name: &'static str, seconds: Option<f64>| {
+        if let Some(s) = seconds {
+            figures.push((name, s));
+        }
+    };
     let doc = load(DEMO).unwrap();
     let demo_part = doc.part.as_ref().unwrap().to_core();
     let stage = doc.stage.unwrap();
@@ -71,46 +103,38 @@ fn main() {
     let law = buffered.law().unwrap();
     let circuit = build(&buffered, &law, &stage).unwrap();
 
-    report(
-        "operating point, three-stage part in the demo stage",
-        median_time(|| {
-            black_box(operating_point(black_box(&circuit.netlist), None).unwrap());
-        }),
-        Some(50e-6),
-    );
-    report("bias report, demo design (two operating points)", median_time(|| {
+    row("operating point, three-stage part in the demo stage", Some(50e-6), || {
+        black_box(operating_point(black_box(&circuit.netlist), None).unwrap());
+    });
+    row("bias report, demo design (two operating points)", None, || {
         black_box(bias(&demo_part, &stage, None).unwrap());
-    }), None);
-    report("transfer curve, 500 points, demo part", median_time(|| {
+    });
+    row("transfer curve, 500 points, demo part", None, || {
         black_box(bare_curve(&demo_part, 500).unwrap());
-    }), None);
-    report("transfer curve, 500 points, three-stage part", median_time(|| {
+    });
+    row("transfer curve, 500 points, three-stage part", None, || {
         black_box(bare_curve(&buffered, 500).unwrap());
-    }), None);
+    });
     // The demo swept 10 kHz to 1 GHz at 200 points per decade (1001 points), from the
     // document text as the page's `responsePoints` does, so the two figures compare.
     let wide = wide_sweep(DEMO);
-    let response = median_time(|| {
+    keep("response", row("small-signal response, demo, 1001 points (gain, Z, S, noise)", Some(2e-3), || {
         black_box(load(black_box(&wide)).unwrap().response().unwrap());
-    });
-    report("small-signal response, demo, 1001 points (gain, Z, S, noise)", response, Some(2e-3));
-    figures.push(("response", response));
+    }));
     // The same sweep with the loop: return ratio, margins, poles, open-loop poles, step.
-    let stability = median_time(|| {
+    keep("stability", row("loop analysis, demo, 1001 points + poles + step (with the response)", Some(3e-3), || {
         black_box(load(black_box(&wide)).unwrap().stability().unwrap());
-    });
-    report("loop analysis, demo, 1001 points + poles + step (with the response)", stability, Some(3e-3));
-    figures.push(("stability", stability));
+    }));
     let wide_doc = load(&wide).unwrap();
-    report("compensation helper, demo (already meets 60°: one judgement)", median_time(|| {
+    row("compensation helper, demo (already meets 60°: one judgement)", None, || {
         black_box(wide_doc.compensation().unwrap());
-    }), None);
+    });
     let mut buffered_json: serde_json::Value = serde_json::from_str(&wide).unwrap();
     buffered_json["part"] = serde_json::to_value(halfrail::wire::PartOut(&buffered)).unwrap();
     let buffered_doc = load(&buffered_json.to_string()).unwrap();
-    report("compensation helper, three-stage part (three knobs searched)", median_time(|| {
+    row("compensation helper, three-stage part (three knobs searched)", None, || {
         black_box(buffered_doc.compensation().unwrap());
-    }), None);
+    });
     // Large signal (issue 6 targets are for wasm: two-tone ≤ 150 ms, sweep ≤ 1 s).
     {
         use halfrail::analysis::swing::{compression, emf_amplitude, rail_level_dbm, sweep_range_dbm, Record, TimeDomain, Waveforms};
@@ -119,65 +143,59 @@ fn main() {
         let record = Record::two_tone(f);
         let a = emf_amplitude(-20.0, 50.0);
         let tones = record.two_tones(a);
-        let two_tone = median_time(|| {
+        keep("two-tone", row("two-tone steady state, demo, 2^14 samples (+2^11 warm-up)", None, || {
             black_box(time.run(&tones, &record, &mut |_| {}).unwrap());
-        });
-        report("two-tone steady state, demo, 2^14 samples (+2^11 warm-up)", two_tone, None);
-        figures.push(("two-tone", two_tone));
+        }));
         let (from, to) = sweep_range_dbm(rail_level_dbm(demo_part.vdd, time.gain_to_last_stage(f).unwrap(), 50.0));
-        let sweep = median_time(|| {
+        keep("compression", row("compression sweep, demo, 20 levels", None, || {
             black_box(compression(&time, f, from, to, 50.0, 1e3, &mut |_| {}).unwrap());
-        });
-        report("compression sweep, demo, 20 levels", sweep, None);
-        figures.push(("compression", sweep));
-        report("large-signal analysis, demo (tone, sweep, intercept, series)", median_time(|| {
+        }));
+        row("large-signal analysis, demo (tone, sweep, intercept, series)", None, || {
             black_box(doc.large(halfrail::analysis::swing::Curve::Drawn, &mut |_| {}).unwrap());
-        }), None);
+        });
     }
-    report("design to target, demo (12 dB, E24, 100 kHz corner)", median_time(|| {
+    row("design to target, demo (12 dB, E24, 100 kHz corner)", None, || {
         black_box(doc.design().unwrap());
-    }), None);
-    let spread = median_time(|| {
-        black_box(doc.spread(&mut |_| {}).unwrap());
     });
-    report("spread, demo, 2000 trials + swings + corners", spread, None);
-    figures.push(("spread", spread));
+    keep("spread", row("spread, demo, 2000 trials + swings + corners", None, || {
+        black_box(doc.spread(&mut |_| {}).unwrap());
+    }));
     {
         use halfrail::chain::{cascade, Block, Levels};
         let blocks: Vec<Block> = (0..12).map(|i| if i % 3 == 0 { Block::passive("pad", 3.0) } else { Block::amp("amp", 15.0, 4.0, Some(25.0), Some(12.0), Some(0.05)) }).collect();
-        report("cascade of 12 blocks", median_time(|| {
+        row("cascade of 12 blocks", None, || {
             black_box(cascade(black_box(&blocks), &Levels { input_dbm: -60.0, bandwidth_hz: 1e6, snr_wanted_db: 10.0 }));
-        }), None);
+        });
     }
     let bench = doc.bench.as_ref().unwrap();
     let start = bench.starting_part(doc.part.as_ref());
     let readings = bench.readings().unwrap();
     let params = bench.params(&readings);
-    report("bench fit, demo readings (4 parameters)", median_time(|| {
+    row("bench fit, demo readings (4 parameters)", None, || {
         black_box(fit(&start, &readings, &params).unwrap());
-    }), None);
+    });
     // The crystal oscillator (issue "Crystal"): the lab receiver's reference
     // oscillator of tests/crystal.rs (C1 27p, C2 33p, Rs 100 Ω: not the demo's). Targets are the
     // issue's: the analysis ≤ 20 ms in the page (so here for the wasm ratio), the
     // design helper ≤ 100 ms.
     {
         let reference = load(CRYSTAL_REFERENCE).unwrap();
-        report("crystal, reference oscillator, small signal only", median_time(|| {
+        row("crystal, reference oscillator, small signal only", None, || {
             black_box(reference.crystal_small_signal().unwrap());
-        }), None);
-        let crystal = median_time(|| {
+        });
+        keep("crystal", row("crystal, reference oscillator, small signal + steady state", None, || {
             black_box(reference.crystal().unwrap());
-        });
-        report("crystal, reference oscillator, small signal + steady state", crystal, None);
-        figures.push(("crystal", crystal));
-        let design = median_time(|| {
+        }));
+        keep("crystal-design", row("crystal design helper, reference (E12, 100 µW drive limit)", Some(100e-3), || {
             black_box(reference.crystal_design().unwrap());
-        });
-        report("crystal design helper, reference (E12, 100 µW drive limit)", design, Some(100e-3));
-        figures.push(("crystal-design", design));
-        report("crystal spread, reference, 200 trials (20 with steady state)", median_time(|| {
+        }));
+        row("crystal spread, reference, 200 trials (20 with steady state)", None, || {
             black_box(reference.crystal_spread(None, &mut |_| {}).unwrap());
-        }), None);
+        });
+    }
+    // A filtered run leaves the page benchmark's figures as they were.
+    if !filters().is_empty() {
+        return;
     }
     let json: serde_json::Map<String, serde_json::Value> = figures.iter().map(|(k, v)| (k.to_string(), (*v).into())).collect();
     std::fs::create_dir_all("target/bench").unwrap();

@@ -28,10 +28,9 @@ pub use stats::{corners, summarise, swings, Corner, Limits, Stats, Summary, Swin
 
 use std::ops::Range;
 
-use num_complex::Complex64;
 
 use super::design::GainKind;
-use super::stability::{continuous_phase, grows, margins, natural_frequencies, ReturnRatio};
+use super::stability::{continuous_phase, grows, natural_frequencies, phase_margin, ReturnRatio};
 use super::{frequencies, Linearised};
 use crate::error::Result;
 use crate::part::Part;
@@ -107,10 +106,11 @@ impl Setup {
         let small = lin.small_signal();
         let growing = natural_frequencies(&small.g, &small.c)?.iter().filter(|&&s| grows(s)).count();
         let ratio = ReturnRatio::new(&lin)?;
-        let t: Vec<Complex64> = self.grid.iter().map(|&f| ratio.at(f)).collect::<Result<_>>()?;
+        let t = ratio.on_grid(&self.grid)?;
         let phase = continuous_phase(&self.grid, &t, |f| ratio.at(f))?;
-        let pm = margins(self.f_design, &self.grid, &t, &phase, |f| ratio.at(f))?.phase_margin_deg;
-        let values = [gain, lin.edge_below(self.f_design)?, lin.edge_above(self.f_design)?, pm, Some(iq), p.nf_db()];
+        let (pm, _) = phase_margin(&self.grid, &t, &phase, |f| ratio.at(f))?;
+        let (low, high) = lin.edges(self.f_design, p.av)?;
+        let values = [gain, low, high, pm, Some(iq), p.nf_db()];
         Ok(Trial { values, growing: Some(growing) })
     }
 

@@ -22,7 +22,7 @@ use crate::part::Part;
 use crate::stage::{Component, Components};
 use crate::values::Series;
 
-use super::{continuous_phase, fastest_growing, margins, NoCrossover, ReturnRatio};
+use super::{continuous_phase, fastest_growing, phase_margin, NoCrossover, ReturnRatio};
 
 /// The margin asked for when the user says nothing (common practice: 60°, a step
 /// response with a few per cent of overshoot).
@@ -141,15 +141,15 @@ impl Judged {
 
 /// The loop of `lin` judged over `grid`: the poles first (most candidates of a loop
 /// that needs help are still unstable, and then the margin is not worth sweeping for).
-fn judge(lin: &Linearised, f_design: f64, grid: &[f64]) -> Result<Judged> {
+fn judge(lin: &Linearised, grid: &[f64]) -> Result<Judged> {
     if fastest_growing(lin.small_signal())?.is_some() {
         return Ok(Judged { stable: false, margin_deg: None, no_crossover: None });
     }
     let ratio = ReturnRatio::new(lin)?;
-    let t = grid.iter().map(|&f| ratio.at(f)).collect::<Result<Vec<_>>>()?;
+    let t = ratio.on_grid(grid)?;
     let phase = continuous_phase(grid, &t, |f| ratio.at(f))?;
-    let m = margins(f_design, grid, &t, &phase, |f| ratio.at(f))?;
-    Ok(Judged { stable: true, margin_deg: m.phase_margin_deg, no_crossover: m.no_crossover })
+    let (margin_deg, no_crossover) = phase_margin(grid, &t, &phase, |f| ratio.at(f))?;
+    Ok(Judged { stable: true, margin_deg, no_crossover })
 }
 
 /// Gain at f_design (dB) and the upper band edge on `grid`.
@@ -162,7 +162,6 @@ fn gain_and_edge(lin: &Linearised, c: &Components, f_design: f64, grid: &[f64]) 
 struct Search<'a> {
     part: &'a Part,
     z0: f64,
-    f_design: f64,
     wanted: f64,
     /// The coarse grid, and the analysis' own frequencies a find is confirmed on.
     grid: Vec<f64>,
@@ -174,12 +173,12 @@ impl Search<'_> {
     fn coarse(&self, tried: &Components) -> Option<Linearised> {
         // A candidate the engine cannot bias or solve is simply not an answer.
         let lin = Linearised::new(self.part, tried, self.z0).ok()?;
-        judge(&lin, self.f_design, &self.grid).ok()?.meets(self.wanted).then_some(lin)
+        judge(&lin, &self.grid).ok()?.meets(self.wanted).then_some(lin)
     }
 
     /// Its margin on the analysis' own frequencies, when it meets the wanted one there too.
     fn confirm(&self, lin: Linearised) -> Option<(Linearised, Option<f64>)> {
-        let confirmed = judge(&lin, self.f_design, self.sweep).ok()?;
+        let confirmed = judge(&lin, self.sweep).ok()?;
         confirmed.meets(self.wanted).then_some((lin, confirmed.margin_deg))
     }
 
@@ -209,9 +208,9 @@ pub fn compensate(
     series: Series,
     gain_tol_db: f64,
 ) -> Result<Vec<Suggestion>> {
-    let search = Search { part, z0, f_design, wanted: wanted_deg, grid: frequencies(span.0, span.1, GRID_PER_DECADE), sweep };
+    let search = Search { part, z0, wanted: wanted_deg, grid: frequencies(span.0, span.1, GRID_PER_DECADE), sweep };
     let lin = Linearised::new(part, c, z0)?;
-    let now = judge(&lin, f_design, sweep)?;
+    let now = judge(&lin, sweep)?;
     if now.meets(wanted_deg) || (now.stable && now.no_crossover == Some(NoCrossover::BelowOne)) {
         return Ok(Vec::new());
     }

@@ -119,17 +119,12 @@ pub fn margins(f_design: f64, freqs: &[f64], t: &[Complex64], phase: &[f64], t_a
         _ => carry(sample(freqs[..n].partition_point(|&f| f <= f_design).saturating_sub(1)), f_design, t_mid, &t_at)?,
     };
 
-    // Every crossover, refined: (f, 180° + φ).
-    let mut crossovers: Vec<(f64, f64)> = Vec::new();
+    let Crossovers { crossovers, worst, no_crossover } = crossovers(freqs, t, phase, &t_at)?;
     // Every passage of φ through −180°, refined: f.
     let mut phase_crossings: Vec<f64> = Vec::new();
     let minus_pi = -std::f64::consts::PI;
     for i in 1..n {
         let (below, above) = (sample(i - 1), sample(i));
-        if math::norm(below.1) >= 1.0 && math::norm(above.1) < 1.0 {
-            let (f, phase) = refine(below, above, &t_at, |t, _| math::norm(t) >= 1.0)?;
-            crossovers.push((f, phase.to_degrees() - PM_REFERENCE_DEG));
-        }
         let over = |p: f64| p > minus_pi;
         if over(below.2) != over(above.2) {
             let side = over(below.2);
@@ -137,13 +132,6 @@ pub fn margins(f_design: f64, freqs: &[f64], t: &[Complex64], phase: &[f64], t_a
             phase_crossings.push(f);
         }
     }
-
-    let worst = crossovers.iter().copied().min_by(|a, b| a.1.total_cmp(&b.1));
-    let no_crossover = match (worst, n) {
-        (Some(_), _) | (None, 0) => None,
-        (None, _) if math::norm(t[n - 1]) >= 1.0 => Some(NoCrossover::AboveAtTop),
-        (None, _) => Some(NoCrossover::BelowOne),
-    };
     // The phase crossing nearest the crossover on a log scale; with no crossover, the
     // one where |T| is largest (the least gain margin).
     let gain_db = |f: f64| -> Result<f64> { Ok(-voltage_ratio_db(math::norm(t_at(f)?))) };
@@ -165,11 +153,49 @@ pub fn margins(f_design: f64, freqs: &[f64], t: &[Complex64], phase: &[f64], t_a
         crossover_hz: worst.map(|c| c.0),
         phase_margin_deg: worst.map(|c| c.1),
         pm_reference_deg: worst.map(|_| PM_REFERENCE_DEG),
-        crossovers: crossovers.len(),
+        crossovers,
         no_crossover,
         phase_crossover_hz: chosen.map(|c| c.0),
         gain_margin_db: chosen.map(|c| c.1),
     })
+}
+
+/// The crossovers of a sampled loop gain, each refined on T.
+struct Crossovers {
+    /// How many there are.
+    crossovers: usize,
+    /// The one with the least margin: (f, 180° + φ).
+    worst: Option<(f64, f64)>,
+    no_crossover: Option<NoCrossover>,
+}
+
+fn crossovers(freqs: &[f64], t: &[Complex64], phase: &[f64], t_at: &impl Fn(f64) -> Result<Complex64>) -> Result<Crossovers> {
+    let n = freqs.len().min(t.len()).min(phase.len());
+    let sample = |i: usize| (freqs[i], t[i], phase[i]);
+    // Every crossover, refined: (f, 180° + φ).
+    let mut found: Vec<(f64, f64)> = Vec::new();
+    for i in 1..n {
+        let (below, above) = (sample(i - 1), sample(i));
+        if math::norm(below.1) >= 1.0 && math::norm(above.1) < 1.0 {
+            let (f, phase) = refine(below, above, t_at, |t, _| math::norm(t) >= 1.0)?;
+            found.push((f, phase.to_degrees() - PM_REFERENCE_DEG));
+        }
+    }
+    let worst = found.iter().copied().min_by(|a, b| a.1.total_cmp(&b.1));
+    let no_crossover = match (worst, n) {
+        (Some(_), _) | (None, 0) => None,
+        (None, _) if math::norm(t[n - 1]) >= 1.0 => Some(NoCrossover::AboveAtTop),
+        (None, _) => Some(NoCrossover::BelowOne),
+    };
+    Ok(Crossovers { crossovers: found.len(), worst, no_crossover })
+}
+
+/// The phase margin alone, as `margins` gives it (and why there is none), without
+/// the gain margin's search for −180° or T at f_design: the spread and the
+/// compensation helper judge many loops and read nothing else.
+pub fn phase_margin(freqs: &[f64], t: &[Complex64], phase: &[f64], t_at: impl Fn(f64) -> Result<Complex64>) -> Result<(Option<f64>, Option<NoCrossover>)> {
+    let c = crossovers(freqs, t, phase, &t_at)?;
+    Ok((c.worst.map(|w| w.1), c.no_crossover))
 }
 
 /// Bisects in log frequency between `below` (where `still` holds) and `above`

@@ -27,7 +27,7 @@ mod return_ratio;
 mod step;
 
 pub use compensate::{compensate, Knob, Suggestion, DEFAULT_GAIN_TOL_DB, WANTED_MARGIN_DEG};
-pub use margins::{continuous_phase, margins, unwrap_near, Margins, NoCrossover, PM_REFERENCE_DEG};
+pub use margins::{continuous_phase, margins, phase_margin, unwrap_near, Margins, NoCrossover, PM_REFERENCE_DEG};
 pub use nyquist::{encirclement, Encirclement};
 pub use poles::{fastest_growing, growth_hz, growth_words, grows, least_damped_pair, natural_frequencies, on_axis, Pair, ON_AXIS_WITHIN};
 pub use return_ratio::ReturnRatio;
