@@ -29,7 +29,7 @@ mod step;
 pub use compensate::{compensate, Knob, Suggestion, DEFAULT_GAIN_TOL_DB, WANTED_MARGIN_DEG};
 pub use margins::{continuous_phase, margins, phase_margin, unwrap_near, Margins, NoCrossover, PM_REFERENCE_DEG};
 pub use nyquist::{encirclement, Encirclement};
-pub use poles::{fastest_growing, growth_hz, growth_words, grows, least_damped_pair, natural_frequencies, on_axis, Pair, ON_AXIS_WITHIN};
+pub use poles::{fastest_growing, growth_hz, growth_words, grows, least_damped_pair, natural_frequencies, natural_frequencies_by, on_axis, Inversion, Pair, ON_AXIS_WITHIN};
 pub use return_ratio::ReturnRatio;
 pub use step::{settling, step_response, Settling, Step, SETTLE_BAND};
 
@@ -115,11 +115,24 @@ pub fn analyse(lin: &Linearised, components: &Components, response: &Response, f
     let t_phase = continuous_phase(freqs, &t, |f| ratio.at(f))?;
     let margins = margins(f_design, freqs, &t, &t_phase, |f| ratio.at(f))?;
     let small = lin.small_signal();
-    let poles = natural_frequencies(&small.g, &small.c)?;
-    let open_poles = ratio.open_loop_poles()?;
-    let open_loop_growing = open_poles.iter().filter(|&&p| grows(p)).count();
-    let poles_growing = poles.iter().filter(|&&p| grows(p)).count();
-    let nyquist = encirclement(&ratio, &poles, open_poles, open_loop_growing)?;
+    let growing = |poles: &[Complex64]| poles.iter().filter(|&&p| grows(p)).count();
+    let mut poles = natural_frequencies(&small.g, &small.c)?;
+    let mut open_poles = ratio.open_loop_poles()?.to_vec();
+    let mut nyquist = encirclement(&ratio, &poles, &open_poles, growing(&open_poles))?;
+    // The Nyquist count and the poles are independent counts of the growing natural
+    // frequencies; where they differ, a long chain's eigenvalues are in doubt and the
+    // passes formed the other way (`Inversion`) are kept when their own counts agree.
+    if nyquist.is_some_and(|n| n.growing != growing(&poles)) {
+        let open = ratio.open_loop();
+        let other = natural_frequencies_by(&small.g, &small.c, Inversion::Solved)?;
+        let other_open = natural_frequencies_by(&open.g, &open.c, Inversion::Solved)?;
+        let counted = encirclement(&ratio, &other, &other_open, growing(&other_open))?;
+        if counted.is_some_and(|n| n.growing == growing(&other)) {
+            (poles, open_poles, nyquist) = (other, other_open, counted);
+        }
+    }
+    let open_loop_growing = growing(&open_poles);
+    let poles_growing = growing(&poles);
     // Either count finding a growing natural frequency makes the loop unstable; they
     // differ only for one on (or at the resolution of doubles near) the jω axis.
     let stable = poles_growing == 0 && nyquist.is_none_or(|n| n.growing == 0);

@@ -79,19 +79,27 @@ struct Pass {
     poles: Vec<Complex64>,
 }
 
-fn pass(g: &DMatrix<f64>, c: &DMatrix<f64>, sigma: f64) -> Result<Option<Pass>> {
-    // (G + σC)⁻¹C by solving, not by the inverse times C: G of a chain of stages is
-    // ill-conditioned, and the explicit inverse's rounding, far larger, gave a nine-stage
-    // closed loop a growing +8.3·10⁸ rad/s in place of −5.8·10⁸ (seed 1592596416).
+/// How a pass forms (G + σC)⁻¹C. On the ill-conditioned pencil of a long chain each
+/// rounding gets some poles wrong that the other gets right (make-fuzz seeds: the
+/// explicit inverse fails 1592596416, solving fails 1592591060 and 1592594537, faer's
+/// QZ the reference for all three); the loop analysis tries the other where its two
+/// counts of growing natural frequencies disagree (`stability::analyse`).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Inversion {
+    /// The explicit inverse, then times C.
+    Explicit,
+    /// C solved through the LU.
+    Solved,
+}
+
+fn pass(g: &DMatrix<f64>, c: &DMatrix<f64>, sigma: f64, how: Inversion) -> Result<Option<Pass>> {
     let shifted = g + c * sigma;
     let lu = shifted.lu();
-    if !lu.is_invertible() {
-        return Ok(None);
-    }
-    let Some(solved) = lu.solve(c) else { return Ok(None) };
-    if !solved.iter().all(|v| v.is_finite()) {
-        return Ok(None);
-    }
+    let solved = match how {
+        Inversion::Explicit => lu.try_inverse().map(|inverse| inverse * c),
+        Inversion::Solved => lu.is_invertible().then(|| lu.solve(c)).flatten(),
+    };
+    let Some(solved) = solved.filter(|m| m.iter().all(|v| v.is_finite())) else { return Ok(None) };
     let a = -solved;
     // Balanced first, as LAPACK's eigen-solvers do: a chain of high-gain stages
     // makes entries differ by the chain's gain (10¹⁰ for nine stages), and
@@ -129,6 +137,11 @@ fn pass(g: &DMatrix<f64>, c: &DMatrix<f64>, sigma: f64) -> Result<Option<Pass>> 
 /// ladder of shifts down from the fastest node's G/C (`ladder`) gives the rest, each
 /// pass the poles in its own band.
 pub fn natural_frequencies(g: &DMatrix<f64>, c: &DMatrix<f64>) -> Result<Vec<Complex64>> {
+    natural_frequencies_by(g, c, Inversion::Explicit)
+}
+
+/// The same, with the passes formed `how`.
+pub fn natural_frequencies_by(g: &DMatrix<f64>, c: &DMatrix<f64>, how: Inversion) -> Result<Vec<Complex64>> {
     if c.amax() == 0.0 {
         return Ok(Vec::new());
     }
@@ -140,7 +153,7 @@ pub fn natural_frequencies(g: &DMatrix<f64>, c: &DMatrix<f64>) -> Result<Vec<Com
     // then shifts at the pencil's own frequency scale, away from any pole in practice.
     let mut low = None;
     for sigma in [0.0, 0.37 * scale, -1.9 * scale, 7.3 * scale] {
-        if let Some(p) = pass(&g, &c, sigma)? {
+        if let Some(p) = pass(&g, &c, sigma, how)? {
             low = Some(p);
             break;
         }
@@ -161,7 +174,7 @@ pub fn natural_frequencies(g: &DMatrix<f64>, c: &DMatrix<f64>) -> Result<Vec<Com
     // the ceiling of poles at infinity) is found again by the ladder, from its height.
     let beyond = low.poles.iter().map(|p| math::norm(p)).filter(|&m| m > low_up_to && m < CEILING * fast).fold(0.0, f64::max);
     if fast.is_finite() && (fast / BAND > low_up_to || beyond > 0.0) {
-        poles = ladder(&g, &c, &low, low_up_to, fast.max(beyond))?.unwrap_or(poles);
+        poles = ladder(&g, &c, &low, low_up_to, fast.max(beyond), how)?.unwrap_or(poles);
     }
     // Far above the fastest node: the rounding of poles at infinity (C singular, two of
     // them as a defective pair: ±6·10¹⁷ rad/s beside a fastest pole of 1.9·10¹⁰).
@@ -178,7 +191,7 @@ pub fn natural_frequencies(g: &DMatrix<f64>, c: &DMatrix<f64>) -> Result<Vec<Com
     let fastest = poles.iter().map(|p| math::norm(p)).fold(0.0, f64::max);
     // Only when there is a slow real pole to check (the demo has none: no second pass).
     let slow = poles.iter().any(|p| p.im.abs() <= ON_AXIS_WITHIN * math::norm(p) && math::norm(p) < SLOW * fastest);
-    let twin = if low.sigma == 0.0 && slow { pass(&g.transpose(), &c.transpose(), 0.0)? } else { None };
+    let twin = if low.sigma == 0.0 && slow { pass(&g.transpose(), &c.transpose(), 0.0, how)? } else { None };
     for p in &mut poles {
         let m = math::norm(*p);
         let real = p.im.abs() <= ON_AXIS_WITHIN * m;
@@ -218,13 +231,13 @@ const CONFIRMED_WITHIN: f64 = 1e-3;
 /// came out as +5.1·10¹⁰ from σ = 3.6·10¹¹), but differently from each shift. The low
 /// pass gives the poles below the lowest band. `None` when a shift lands on a pole
 /// every time.
-fn ladder(g: &DMatrix<f64>, c: &DMatrix<f64>, low: &Pass, low_up_to: f64, fast: f64) -> Result<Option<Vec<Complex64>>> {
+fn ladder(g: &DMatrix<f64>, c: &DMatrix<f64>, low: &Pass, low_up_to: f64, fast: f64, how: Inversion) -> Result<Option<Vec<Complex64>>> {
     let mut passes = Vec::new();
     let mut sigma = 0.61 * fast;
     for _ in 0..MAX_RUNGS {
         let mut pass_at = None;
         for k in [1.0, 1.7, 0.29] {
-            if let Some(p) = pass(g, c, k * sigma)? {
+            if let Some(p) = pass(g, c, k * sigma, how)? {
                 pass_at = Some(p);
                 break;
             }
