@@ -200,6 +200,9 @@ test('a pinned reference: drawn under the plots and beside the figures, as the c
   }, [now.f_osc_hz, ref.f_osc_hz]);
   assert.equal(line, `ref ${refHz} · Δ ${delta}`);
   assert.match(await page.locator(`${panel} dd[data-key="margin"] .vs`).textContent(), /^ref \d+\.\d\d · Δ /);
+  // The frequency error's difference in ppm, as this design's less the reference's.
+  const ppm = await page.evaluate((d) => `${d > 0 ? '+' : ''}${HR.fixed(d, 2)} ppm`, now.pull_ppm - ref.pull_ppm);
+  assert.ok((await page.locator(`${panel} dd[data-key="pull"] .vs`).textContent()).endsWith(`· Δ ${ppm}`), ppm);
   // Each plot carries a series labelled "reference", the core's curves on the pinned text.
   const plots = await page.evaluate(() => {
     const curves = HR.call('crystalCurves', HR.compare.text()).ok;

@@ -92,14 +92,14 @@ HR.compare = (() => {
     return wrapped;
   };
 
-  // This design's figure less the reference's, as text: `how` is 'dB', '°', 'K', a
-  // unit for HR.fmt ('Ω', 'A', 'W', '%'), '' (a plain number), or '×' for frequencies,
+  // This design's figure less the reference's, as text: `how` is 'dB', '°', 'K', 'ppm',
+  // a unit for HR.fmt ('Ω', 'A', 'W', '%'), '' (a plain number), or '×' for frequencies,
   // times and noise, given as the ratio this ÷ reference.
   const delta = (a, b, how) => {
     if (!known(a) || !known(b)) return '—';
     if (how === '×') return `×${fixed(a / b, 3)}`;
     const d = a - b;
-    const t = how === '°' ? `${fixed(d, 1)}°` : how === 'K' ? `${fixed(d, 0)} K` : how ? HR.fmt(d, how, 3) : fixed(d, 3);
+    const t = how === '°' ? `${fixed(d, 1)}°` : how === 'K' ? `${fixed(d, 0)} K` : how === 'ppm' ? `${fixed(d, 2)} ppm` : how ? HR.fmt(d, how, 3) : fixed(d, 3);
     return d > 0 && /[1-9]/.test(t) ? `+${t}` : t;
   };
   const NOTE = 'Under each figure: the reference’s value, and Δ, this design less the reference (× : frequencies, times and noise as this design’s over the reference’s).';

@@ -65,7 +65,7 @@
 
   // What the reference comparison subtracts: [value, how] (HR.compare.figures).
   const DIFFS = {
-    f_osc: (r) => [[r.f_osc_hz, 'Hz']], pull: (r) => [[r.pull_ppm, '']], f_steady: (r) => [[r.f_steady_hz, 'Hz']], f_s: (r) => [[r.f_s_hz, 'Hz']],
+    f_osc: (r) => [[r.f_osc_hz, 'Hz']], pull: (r) => [[r.pull_ppm, 'ppm']], f_steady: (r) => [[r.f_steady_hz, 'Hz']], f_s: (r) => [[r.f_s_hz, 'Hz']],
     cl_eff: (r) => [[r.cl_eff_f, 'F']], r_neg: (r) => [[r.r_neg_ohm, 'Ω']], margin: (r) => [[r.margin, '']], gm: (r) => [[r.gm_s, 'S']],
     tau: (r) => [[r.tau_s, '×']], drive: (r) => [[r.drive_w, 'W']], im: (r) => [[r.im_a, 'A']], vpp_gate: (r) => [[r.vpp_gate_v, 'V']], vpp_out: (r) => [[r.vpp_out_v, 'V']],
   };
