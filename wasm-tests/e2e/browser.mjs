@@ -59,11 +59,22 @@ export async function ready(frameOrPage) {
   await frameOrPage.waitForSelector('html[data-ready="true"]', { timeout: 15000 });
 }
 
-// Empties the file:// origin's storage (shared by every page opened from disk).
-export async function clearStorage(context) {
+// A blank page from disk: it shares the file:// origin's storage with the page under
+// test and runs none of its code, so nothing it does can save over what a test writes
+// (the page itself saves its draft once the core has accepted it, after a while).
+const BLANK_PATH = path.join(fs.mkdtempSync(path.join(os.tmpdir(), 'halfrail-blank-')), 'blank.html');
+fs.writeFileSync(BLANK_PATH, '<!doctype html><title>blank</title>');
+process.on('exit', () => fs.rmSync(path.dirname(BLANK_PATH), { recursive: true, force: true }));
+
+// Empties the file:// origin's storage (shared by every page opened from disk) and
+// writes `entries` ({key: text}) into it, for the next page to start on.
+export async function clearStorage(context, entries = {}) {
   const page = await context.newPage();
-  await page.goto(PAGE_URL + '#bench');
-  await page.evaluate(() => localStorage.clear());
+  await page.goto('file://' + BLANK_PATH);
+  await page.evaluate((e) => {
+    localStorage.clear();
+    for (const [k, v] of Object.entries(e)) localStorage.setItem(k, v);
+  }, entries);
   await page.close();
 }
 

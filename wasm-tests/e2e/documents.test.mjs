@@ -40,14 +40,8 @@ const clean = async (page, seen) => {
   assert.deepEqual(seen.errors, []);
   await page.close();
 };
-// Writes storage entries from a first visit, so the next page starts on them.
-async function stored(entries) {
-  const page = await browser.context.newPage();
-  await page.goto(PAGE_URL + '#bench');
-  await ready(page);
-  await page.evaluate((e) => { localStorage.clear(); for (const [k, v] of Object.entries(e)) localStorage.setItem(k, v); }, entries);
-  await page.close();
-}
+// Writes storage entries, so the next page starts on them.
+const stored = (entries) => clearStorage(browser.context, entries);
 // Opens files with the page's file picker (the Open button), or a dropped file.
 async function pick(page, files) {
   const [chooser] = await Promise.all([page.waitForEvent('filechooser'), bar(page, 'Open…').click()]);

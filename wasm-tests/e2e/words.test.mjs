@@ -116,10 +116,11 @@ test('a refusal that speaks of a field of another section names it by its label;
 });
 
 test('the bench fit’s refusal says the parameters by the names on their boxes; the CLI keeps the key', async () => {
-  // On a page of its own: after the refused Design above, on the same page, the fit
-  // was seen to run with parameters although every box was cleared (not yet understood).
   const { page, seen } = await openPanel(browser.context, 'part');
   const boxes = page.locator('#panel-part fieldset.choices input[type="checkbox"]');
+  // `all()` does not wait: on a panel not yet built it is empty, no box is cleared,
+  // and the fit runs with the readings' own choice (seen on loaded fresh clones).
+  await boxes.first().waitFor();
   for (const box of await boxes.all()) if (await box.isChecked()) await box.uncheck();
   await page.waitForSelector('#panel-part[data-follow="settled"]', { state: 'attached' });
   await page.getByRole('button', { name: 'Fit the part' }).click();
