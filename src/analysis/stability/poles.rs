@@ -30,10 +30,10 @@ const ORIGIN_WITHIN: f64 = 1e-9;
 /// The relative error of a pole taken as good enough to keep it from a pass (each
 /// pass is trusted only where its rounding, propagated to s, stays below this). The
 /// bound ε·|A| on an eigenvalue's rounding holds for a normal matrix; a chain of
-/// stages is far from one, so the low pass can be wrong within it (seed 1592598340,
-/// nine stages: a growing 5.0·10⁹ rad/s in place of −1.0·10¹⁰ and −1.1·10¹⁰, still). A
-/// tighter bound (10⁻⁸) hands such poles to the ladder, whose top pass was worse
-/// still on others (seed 1592592879: all eight fast poles lost), so it stays.
+/// stages is far from one, so the low pass can be wrong within it: its twin on the
+/// transposed pencil lowers the bound where they disagree (`first_doubt`). A tighter
+/// bound everywhere (10⁻⁸) handed good poles to the ladder, whose top pass was worse
+/// on others (seed 1592592879: all eight fast poles lost), so it stays.
 const TRUSTED_TO: f64 = 1e-5;
 
 /// A pole within this fraction of the pencil's scale |G|/|C| of the origin is at
@@ -165,7 +165,9 @@ pub fn natural_frequencies_by(g: &DMatrix<f64>, c: &DMatrix<f64>, how: Inversion
     // capacitance to anything.
     let c_min = (0..c.nrows()).map(|i| c[(i, i)].abs()).filter(|&v| v > 0.0).fold(f64::INFINITY, f64::min);
     let fast = g.amax().max(f64::MIN_POSITIVE) / c_min;
-    let low_up_to = TRUSTED_TO / (f64::EPSILON * low.size.max(f64::MIN_POSITIVE));
+    // The same pass on the transposed pencil: the same poles under other roundings.
+    let twin = pass(&g.transpose(), &c.transpose(), low.sigma, how)?;
+    let low_up_to = (TRUSTED_TO / (f64::EPSILON * low.size.max(f64::MIN_POSITIVE))).min(first_doubt(&low, twin.as_ref()));
     let mut poles = low.poles.clone();
     // The nodes' G/C can fall short of the fastest pole (seed 1592590474 of the
     // property suite: 9.4·10⁹ rad/s against poles at 6.2·10⁹ and 2.4·10¹⁰, which the
@@ -189,9 +191,7 @@ pub fn natural_frequencies_by(g: &DMatrix<f64>, c: &DMatrix<f64>, how: Inversion
     // The same pass on the transposed pencil (the same poles, other roundings) tells
     // them: a slow real pole it does not find within `SAME_WITHIN` has no sign in doubles.
     let fastest = poles.iter().map(|p| math::norm(p)).fold(0.0, f64::max);
-    // Only when there is a slow real pole to check (the demo has none: no second pass).
-    let slow = poles.iter().any(|p| p.im.abs() <= ON_AXIS_WITHIN * math::norm(p) && math::norm(p) < SLOW * fastest);
-    let twin = if low.sigma == 0.0 && slow { pass(&g.transpose(), &c.transpose(), 0.0, how)? } else { None };
+    let twin = twin.filter(|_| low.sigma == 0.0);
     for p in &mut poles {
         let m = math::norm(*p);
         let real = p.im.abs() <= ON_AXIS_WITHIN * m;
@@ -206,6 +206,25 @@ pub fn natural_frequencies_by(g: &DMatrix<f64>, c: &DMatrix<f64>, how: Inversion
     crate::order::sort_by(&mut poles, |a, b| math::norm(a).total_cmp(&math::norm(b)));
     Ok(poles)
 }
+
+/// Where the low pass stops being trusted by what its twin on the transposed pencil
+/// says: below the slowest pole (above the slow ones, whose sign the twin judges
+/// apart) that the twin does not find within `CONFIRMED_WITHIN`. The ε·|A| bound of
+/// `TRUSTED_TO` holds for a normal matrix only; on a chain's far-from-normal one the
+/// low pass can be wrong well within it (seed 1592598340, nine stages: a growing
+/// 5.0·10⁹ rad/s in place of −1.0·10¹⁰ and −1.1·10¹⁰, and −1.4·10¹¹ lost, all under
+/// the bound of 2.1·10¹⁰; its twin disagreed from 6·10⁸ up), and the ladder's
+/// shifts near those poles give them. Unbounded without a twin.
+fn first_doubt(low: &Pass, twin: Option<&Pass>) -> f64 {
+    let Some(twin) = twin else { return f64::INFINITY };
+    let fastest = low.poles.iter().map(|p| math::norm(*p)).fold(0.0, f64::max);
+    let doubted = low.poles.iter().filter(|p| math::norm(**p) >= SLOW * fastest && !twin.poles.iter().any(|q| math::norm(*q - **p) <= CONFIRMED_WITHIN * math::norm(**p)));
+    doubted.map(|p| DOUBT_MARGIN * math::norm(*p)).fold(f64::INFINITY, f64::min)
+}
+
+/// The low pass is trusted up to this fraction of the first pole its twin doubts, so
+/// the ladder's lowest band takes that pole in.
+const DOUBT_MARGIN: f64 = 0.5;
 
 /// A shifted pass is trusted for poles above its shift over this (and up to the band of
 /// the pass above it): the images of poles far below a shift σ come out anywhere up to
