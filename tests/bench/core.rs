@@ -193,6 +193,24 @@ fn main() {
             black_box(reference.crystal_spread(None, &mut |_| {}).unwrap());
         });
     }
+    // `halfrail sweep --csv` as a whole process (start, read, sweep, format, write) over
+    // 8001 points: the demo from 10 Hz to 1 GHz at 1000 points per decade.
+    {
+        let mut long: serde_json::Value = serde_json::from_str(DEMO).unwrap();
+        long["analysis"]["f_start_hz"] = 10.into();
+        long["analysis"]["f_stop_hz"] = 1e9.into();
+        long["analysis"]["points_per_decade"] = 1000.into();
+        let dir = std::env::temp_dir().join(format!("halfrail-bench-{}", std::process::id()));
+        std::fs::create_dir_all(&dir).unwrap();
+        let file = dir.join("sweep.halfrail.json");
+        std::fs::write(&file, long.to_string()).unwrap();
+        row("halfrail sweep --csv, 8001 points, whole process", Some(15e-3), || {
+            let out = std::process::Command::new(env!("CARGO_BIN_EXE_halfrail")).arg("sweep").arg(&file).arg("--csv").output().unwrap();
+            assert!(out.status.success() && out.stdout.iter().filter(|&&b| b == b'\n').count() == 8002);
+            black_box(out);
+        });
+        std::fs::remove_dir_all(&dir).unwrap();
+    }
     // A filtered run leaves the page benchmark's figures as they were.
     if !filters().is_empty() {
         return;
