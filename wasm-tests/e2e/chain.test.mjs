@@ -113,12 +113,20 @@ test('the demo chain: the budget after each block and the totals agree with half
   await matchesCli(page);
   assert.deepEqual(await runs(page), ['stageBlock']);
   // A change to the stage does, once; its row says it is computing meanwhile.
-  const during = await page.evaluate(async () => {
+  // What the stage's row says while it computes: caught by an observer as the page
+  // writes it, however soon the run ends.
+  const during = await page.evaluate(() => new Promise((resolve) => {
+    const table = document.querySelector('#panel-chain table.chain-blocks');
+    const look = () => {
+      const row = table.querySelectorAll('tbody tr')[1];
+      if (row?.dataset.stage !== 'computing') return;
+      observer.disconnect();
+      resolve([row.dataset.stage, row.textContent, document.querySelector('#panel-chain .stale-note').dataset.why]);
+    };
+    const observer = new MutationObserver(look);
+    observer.observe(table, { subtree: true, childList: true, characterData: true, attributes: true });
     HR.design.set('stage', 'r_fb_ohm', '3k9', 'test');
-    await new Promise((r) => setTimeout(r, 0)); // the panel updates a microtask after the edit; the run takes far longer
-    const row = document.querySelectorAll('#panel-chain table.chain-blocks tbody tr')[1];
-    return [row.dataset.stage, row.textContent, document.querySelector('#panel-chain .stale-note').dataset.why];
-  });
+  }));
   assert.equal(during[0], 'computing');
   assert.match(during[1], /computing…/);
   assert.equal(during[2], 'stage');

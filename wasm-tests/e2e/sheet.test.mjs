@@ -76,6 +76,16 @@ async function coreCells(page) {
   return { md, cells: [...new Set(cells.filter(Boolean))], keys };
 }
 
+// The link's end `end`, put after the page's file name, opens the design on `page`.
+async function opensTheDesign(page, end) {
+  const draft = await page.evaluate(() => HR.design.text());
+  const other = await browser.context.newPage();
+  await other.goto(PAGE_URL + end);
+  await other.waitForFunction(() => document.documentElement.dataset.ready === 'true');
+  assert.equal(await other.evaluate(() => HR.design.text()), draft);
+  await other.close();
+}
+
 test('Print sheet prepares the sheet in the background and prints it: the PDF has every figure of the core sheet, the cautions, the images, on one or two pages', async () => {
   const { page, seen } = await openPanel(browser.context, 'stage');
   await recordMainCalls(page);
@@ -189,12 +199,7 @@ test('The browser’s own print calls no core on the main thread: it prints the 
   // The sheet's link opens this design: from file://, its end as printed in note 1,
   // put after the page's file name.
   const end = await page.locator('#sheet .note .full').textContent();
-  const draft = await page.evaluate(() => HR.design.text());
-  const other = await browser.context.newPage();
-  await other.goto(PAGE_URL + end);
-  await other.waitForFunction(() => document.documentElement.dataset.ready === 'true');
-  assert.equal(await other.evaluate(() => HR.design.text()), draft);
-  await other.close();
+  await opensTheDesign(page, end);
 
   // A bad value: the sheet is of the last good design, and says so, with no core call.
   await page.evaluate(async () => {
@@ -276,12 +281,7 @@ test('From file:// the printed link is one line cut to fit, whole in note 1 as t
     assert.ok(!Buffer.from(await page.pdf({ format })).toString('latin1').includes(path.dirname(PAGE_PATH)), `${format}: nor in its bytes`);
   }
   // Pasted after the page's file name, the end opens the design.
-  const draft = await page.evaluate(() => HR.design.text());
-  const other = await browser.context.newPage();
-  await other.goto(PAGE_URL + end);
-  await other.waitForFunction(() => document.documentElement.dataset.ready === 'true');
-  assert.equal(await other.evaluate(() => HR.design.text()), draft);
-  await other.close();
+  await opensTheDesign(page, end);
   assert.deepEqual(seen.requests, []);
   assert.deepEqual(seen.errors, []);
   await page.close();
