@@ -1075,6 +1075,31 @@ fn drawn_loop(seed: u64) -> stability::Loop {
     doc.stability().unwrap().1
 }
 
+/// Seed 1592605182 of `make fuzz` (five EKV stages, a 0.13 F output coupling
+/// capacitor): the explicit ladder kept 6 of the 8 natural frequencies its passes
+/// agree there are, dropping a growing pair at 6.0 MHz that faer's QZ finds (and
+/// scipy's, 6.0455·10⁶ ± j4.7529·10⁶ Hz). The loop analysis, checked by its Nyquist
+/// count, had it right; the swing's own check did not, and gave distortion figures
+/// for an oscillating stage. Every caller of the poles now gets all eight.
+#[test]
+fn a_ladder_short_of_its_count_is_formed_the_other_way() {
+    let seed = 1592605182;
+    let doc = halfrail::doc::load(&domain_gen::draw(seed).doc.to_string()).unwrap();
+    let (part, stage) = doc.part_and_stage().unwrap();
+    let lin = Linearised::new(&part, &stage, doc.sweep().unwrap().z0_ohm).unwrap();
+    let small = lin.small_signal();
+    let ours = natural_frequencies(&small.g, &small.c).unwrap();
+    let faer = faer_poles(&small.g, &small.c, faer_cutoff(&small.g, &small.c));
+    assert_eq!(ours.len(), faer.len(), "ours {ours:?}\nfaer {faer:?}");
+    assert_eq!(ours.iter().filter(|&&p| grows(p)).count(), 2, "{ours:?}");
+    for p in &faer {
+        assert!(ours.iter().any(|q| (q - p).norm() <= 1e-3 * p.norm().max(1e-3)), "faer's {p} not among {ours:?}");
+    }
+    assert!(stability::fastest_growing(small).unwrap().is_some());
+    let refused = doc.large(halfrail::analysis::swing::Curve::Skipped, &mut |_| {}).unwrap_err();
+    assert!(refused.reason.contains("no large-signal figures"), "{}", refused.reason);
+}
+
 /// Found by a random run: seven stages whose open loop has a growing real pole at
 /// 9.6 rad/s beside poles near 4e7 rad/s. faer and the core's poles both give 4
 /// growing closed-loop poles; the core's open loop counted 1 growing pole where faer

@@ -136,14 +136,31 @@ fn pass(g: &DMatrix<f64>, c: &DMatrix<f64>, sigma: f64, how: Inversion) -> Resul
 /// full relative accuracy up to where its rounding reaches `TRUSTED_TO`; above that, a
 /// ladder of shifts down from the fastest node's G/C (`ladder`) gives the rest, each
 /// pass the poles in its own band.
+///
+/// The passes are formed the explicit way first; when the ladder keeps fewer poles
+/// than its passes agree there are, the solved way is taken if it keeps them all
+/// (seed 1592605182, five stages beside a 0.13 F coupling capacitor: the explicit
+/// ladder kept 6 of 8, dropping a growing pair at 6.0 MHz that faer's QZ and the
+/// solved ladder both find; the swing then gave figures for an oscillating stage).
 pub fn natural_frequencies(g: &DMatrix<f64>, c: &DMatrix<f64>) -> Result<Vec<Complex64>> {
-    natural_frequencies_by(g, c, Inversion::Explicit)
+    let (poles, complete) = counted(g, c, Inversion::Explicit)?;
+    if complete {
+        return Ok(poles);
+    }
+    let (other, other_complete) = counted(g, c, Inversion::Solved)?;
+    Ok(if other_complete { other } else { poles })
 }
 
 /// The same, with the passes formed `how`.
 pub fn natural_frequencies_by(g: &DMatrix<f64>, c: &DMatrix<f64>, how: Inversion) -> Result<Vec<Complex64>> {
+    Ok(counted(g, c, how)?.0)
+}
+
+/// The natural frequencies with the passes formed `how`, and whether they are as many
+/// as the ladder's passes agree there are (true where no ladder was needed).
+fn counted(g: &DMatrix<f64>, c: &DMatrix<f64>, how: Inversion) -> Result<(Vec<Complex64>, bool)> {
     if c.amax() == 0.0 {
-        return Ok(Vec::new());
+        return Ok((Vec::new(), true));
     }
     // The pencil's frequency scale, from the whole circuit (the reduced G can be
     // zero: every remaining node held by capacitors alone).
@@ -169,6 +186,7 @@ pub fn natural_frequencies_by(g: &DMatrix<f64>, c: &DMatrix<f64>, how: Inversion
     let twin = pass(&g.transpose(), &c.transpose(), low.sigma, how)?;
     let low_up_to = (TRUSTED_TO / (f64::EPSILON * low.size.max(f64::MIN_POSITIVE))).min(first_doubt(&low, twin.as_ref()));
     let mut poles = low.poles.clone();
+    let mut complete = true;
     // The nodes' G/C can fall short of the fastest pole (seed 1592590474 of the
     // property suite: 9.4·10⁹ rad/s against poles at 6.2·10⁹ and 2.4·10¹⁰, which the
     // low pass, trusted to 1.0·10⁹, gave as +5.7·10⁹ and −1.6·10¹⁰: a growing pole
@@ -176,7 +194,9 @@ pub fn natural_frequencies_by(g: &DMatrix<f64>, c: &DMatrix<f64>, how: Inversion
     // the ceiling of poles at infinity) is found again by the ladder, from its height.
     let beyond = low.poles.iter().map(|p| math::norm(p)).filter(|&m| m > low_up_to && m < CEILING * fast).fold(0.0, f64::max);
     if fast.is_finite() && (fast / BAND > low_up_to || beyond > 0.0) {
-        poles = ladder(&g, &c, &low, low_up_to, fast.max(beyond), how)?.unwrap_or(poles);
+        if let Some((found, all)) = ladder(&g, &c, &low, low_up_to, fast.max(beyond), how)? {
+            (poles, complete) = (found, all);
+        }
     }
     // Far above the fastest node: the rounding of poles at infinity (C singular, two of
     // them as a defective pair: ±6·10¹⁷ rad/s beside a fastest pole of 1.9·10¹⁰).
@@ -204,7 +224,7 @@ pub fn natural_frequencies_by(g: &DMatrix<f64>, c: &DMatrix<f64>, how: Inversion
         }
     }
     crate::order::sort_by(&mut poles, |a, b| math::norm(a).total_cmp(&math::norm(b)));
-    Ok(poles)
+    Ok((poles, complete))
 }
 
 /// Where the low pass stops being trusted by what its twin on the transposed pencil
@@ -250,7 +270,7 @@ const CONFIRMED_WITHIN: f64 = 1e-3;
 /// came out as +5.1·10¹⁰ from σ = 3.6·10¹¹), but differently from each shift. The low
 /// pass gives the poles below the lowest band. `None` when a shift lands on a pole
 /// every time.
-fn ladder(g: &DMatrix<f64>, c: &DMatrix<f64>, low: &Pass, low_up_to: f64, fast: f64, how: Inversion) -> Result<Option<Vec<Complex64>>> {
+fn ladder(g: &DMatrix<f64>, c: &DMatrix<f64>, low: &Pass, low_up_to: f64, fast: f64, how: Inversion) -> Result<Option<(Vec<Complex64>, bool)>> {
     let mut passes = Vec::new();
     let mut sigma = 0.61 * fast;
     for _ in 0..MAX_RUNGS {
@@ -324,7 +344,7 @@ fn ladder(g: &DMatrix<f64>, c: &DMatrix<f64>, low: &Pass, low_up_to: f64, fast: 
         let candidates = passes.iter().chain([low]).enumerate().flat_map(|(k, p)| p.poles.iter().map(move |s| (s, k))).filter(|(s, _)| math::norm(*s) < ceiling);
         let (all, own) = polished_sets(g, c, candidates.map(|(s, k)| (s, in_own_band(k, s))));
         if all.len() == count {
-            return Ok(Some(all));
+            return Ok(Some((all, true)));
         }
         // Else what the ladder kept, with every pole it missed that a candidate from
         // its own band's pass polishes to (the images of poles far from a shift, which
@@ -340,10 +360,12 @@ fn ladder(g: &DMatrix<f64>, c: &DMatrix<f64>, low: &Pass, low_up_to: f64, fast: 
             }
         }
         if merged.len() <= count {
-            return Ok(Some(merged));
+            let complete = merged.len() == count;
+            return Ok(Some((merged, complete)));
         }
     }
-    Ok(Some(poles))
+    let complete = poles.len() == count;
+    Ok(Some((poles, complete)))
 }
 
 /// Two polished poles within this fraction of their size are one, as two passes'
