@@ -82,8 +82,10 @@ struct Pass {
 /// How a pass forms (G + σC)⁻¹C. On the ill-conditioned pencil of a long chain each
 /// rounding gets some poles wrong that the other gets right (make-fuzz seeds: the
 /// explicit inverse fails 1592596416, solving fails 1592591060 and 1592594537, faer's
-/// QZ the reference for all three); the loop analysis tries the other where its two
-/// counts of growing natural frequencies disagree (`stability::analyse`).
+/// QZ the reference for all three). The explicit one goes first; the other is tried
+/// where the explicit ladder keeps fewer poles than its passes agree there are
+/// (`natural_frequencies`), and where the loop analysis's two counts of growing
+/// natural frequencies disagree (`stability::analyse`).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Inversion {
     /// The explicit inverse, then times C.
