@@ -23,7 +23,7 @@ run: dist
 dist: setup-rust setup-build-tools
 	cargo rustc --lib --target wasm32-unknown-unknown --profile wasm --crate-type cdylib
 	wasm-bindgen --target no-modules --no-typescript --out-dir $(BINDGEN) $(WASM_OUT)
-	www/node_modules/.bin/wasm-opt -Oz --enable-reference-types --enable-bulk-memory --enable-nontrapping-float-to-int --enable-sign-ext --enable-multivalue --enable-mutable-globals \
+	www/node_modules/.bin/wasm-opt -O3 --enable-reference-types --enable-bulk-memory --enable-nontrapping-float-to-int --enable-sign-ext --enable-multivalue --enable-mutable-globals \
 	  $(BINDGEN)/halfrail_bg.wasm -o $(BINDGEN)/halfrail_bg.opt.wasm
 	node www/build.mjs $(BINDGEN) $(PAGE)
 
