@@ -14,6 +14,15 @@ use rand::Rng;
 #[allow(dead_code)]
 mod draw;
 
+#[path = "common/digest.rs"]
+mod digest;
+
+/// The FFT gives the bits the wasm build gives (`wasm-tests`, the same digest).
+#[test]
+fn the_spectrum_has_the_same_bits_as_in_wasm() {
+    assert_eq!(digest::spectrum_digest(), digest::SPECTRUM_DIGEST, "the FFT's arithmetic changed: set SPECTRUM_DIGEST to the new value in both builds' check");
+}
+
 /// |X_k| by the DFT's definition, scaled as `amplitudes` scales it.
 fn direct(samples: &[f64]) -> Vec<f64> {
     let n = samples.len();
@@ -31,7 +40,7 @@ fn direct(samples: &[f64]) -> Vec<f64> {
 proptest! {
     #![proptest_config(ProptestConfig::with_cases(64))]
 
-    /// rustfft's radix-4 against the DFT sum, and Parseval: Σx² = N·(a0² + Σ a_k²/2 + a_{N/2}²).
+    /// The FFT against the DFT sum, and Parseval: Σx² = N·(a0² + Σ a_k²/2 + a_{N/2}²).
     #[test]
     fn fft_matches_the_dft_and_keeps_energy(log2 in 1u32..9, seed in any::<u64>()) {
         let n = 1usize << log2;

@@ -94,6 +94,16 @@ fn formatting_and_facts() {
     assert!(get(&perfect, "return_loss_db").is_null(), "an infinite return loss crosses as null");
 }
 
+#[path = "../../../tests/common/digest.rs"]
+mod digest;
+
+/// The FFT of the large-signal figures gives the bits the native build gives
+/// (`tests/swing.rs` checks the same digest natively).
+#[wasm_bindgen_test]
+fn the_spectrum_has_the_same_bits_as_natively() {
+    assert_eq!(digest::spectrum_digest(), digest::SPECTRUM_DIGEST);
+}
+
 #[wasm_bindgen_test]
 fn documents_are_checked_the_same_as_natively() {
     let s = wasm::check_document(include_str!("../../../src/doc/demo.halfrail.json")).unwrap();
