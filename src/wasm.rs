@@ -442,7 +442,7 @@ pub fn sheet_text(text: &str, markdown: bool) -> Result<String, JsValue> {
 /// One of the document's analyses computed and only its size returned: the
 /// benchmark's measure of the core alone, without the cost of handing the
 /// figures to JavaScript. `what`: "response", "stability", "design", "two-tone"
-/// (one two-tone record of 2^14 samples at f_design) or "compression" (the
+/// (one two-tone record of 2^13 samples at f_design) or "compression" (the
 /// 20-level sweep).
 #[wasm_bindgen(js_name = benchCore)]
 pub fn bench_core(text: &str, what: &str) -> Result<usize, JsValue> {

@@ -301,3 +301,53 @@ fn the_intercept_from_the_shifted_bias_is_the_transients_where_that_settles() {
         assert!((shifted.oip3_dbm - transient.oip3_dbm).abs() < 0.3, "case {k}: OIP3 {} against {}", shifted.oip3_dbm, transient.oip3_dbm);
     }
 }
+
+/// Any `Waveforms` with each record made `times` as fine: the same window, bins and
+/// warm-up time, `times` as many steps.
+struct Finer<'a>(&'a dyn Waveforms, usize);
+
+impl Waveforms for Finer<'_> {
+    fn small_signal_gain(&self, f_hz: f64) -> halfrail::error::Result<f64> {
+        self.0.small_signal_gain(f_hz)
+    }
+
+    fn run(&self, tones: &[Tone], record: &Record, progress: &mut dyn FnMut(f64)) -> halfrail::error::Result<halfrail::analysis::swing::Wave> {
+        let finer = Record { samples: record.samples * self.1, warmup: record.warmup * self.1, ..*record };
+        let mut wave = self.0.run(tones, &finer, progress)?;
+        // Every `times`-th sample: the coarser record's instants.
+        for v in [&mut wave.t_s, &mut wave.out, &mut wave.input, &mut wave.last_stage] {
+            *v = v.iter().skip(self.1 - 1).step_by(self.1).copied().collect();
+        }
+        Ok(wave)
+    }
+}
+
+/// The two-tone record's step (about 82 a cycle of the carrier) is fine enough:
+/// on the three stages above, a record four times as fine moves the intercept by
+/// less than 0.05 dB (measured: 0.002, 0.002 and 0.026 dB; BDF2's error falls as
+/// the step squared, so the record's own error is some 16/15 of that).
+#[test]
+fn the_two_tone_record_is_fine_enough_for_the_intercept() {
+    let cases: [fn(&mut Value); 3] = [
+        |_| {},
+        |d| {
+            d["part"]["model"] = json!("ekv");
+            d["part"]["n_slope"] = json!(1.3);
+        },
+        |d| {
+            d["part"]["stages"] = json!(3);
+            d["stage"]["r_fb_ohm"] = json!("47k");
+            d["stage"]["load_f"] = json!("220p");
+            d["stage"]["c_fb_f"] = json!("2p2");
+        },
+    ];
+    for (k, edit) in cases.into_iter().enumerate() {
+        let (td, f, rs) = stage_of(edit);
+        let rl = 50.0;
+        let start = halfrail::analysis::swing::rail_level_dbm(3.3, td.gain_to_last_stage(f).unwrap(), rs) - 20.0;
+        let settling = Settling::new(&td);
+        let record = intercept(&settling, f, start, rs, rl, &mut |_| {}).unwrap();
+        let fine = intercept(&Finer(&settling, 4), f, start, rs, rl, &mut |_| {}).unwrap();
+        assert!((record.oip3_dbm - fine.oip3_dbm).abs() < 0.05, "case {k}: OIP3 {} on the record, {} four times as fine", record.oip3_dbm, fine.oip3_dbm);
+    }
+}

@@ -143,7 +143,7 @@ fn main() {
         let record = Record::two_tone(f);
         let a = emf_amplitude(-20.0, 50.0);
         let tones = record.two_tones(a);
-        keep("two-tone", row("two-tone steady state, demo, 2^14 samples (+2^11 warm-up)", None, || {
+        keep("two-tone", row("two-tone steady state, demo, 2^13 samples (+2^10 warm-up)", None, || {
             black_box(time.run(&tones, &record, &mut |_| {}).unwrap());
         }));
         let (from, to) = sweep_range_dbm(rail_level_dbm(demo_part.vdd, time.gain_to_last_stage(f).unwrap(), 50.0));

@@ -1,5 +1,5 @@
 //! The same bits on both targets (DEVELOPERS.md, "deterministic"): a digest of the
-//! spectrum of a fixed two-tone-length record, computed natively (`tests/swing.rs`)
+//! spectrum of a fixed 2^14-point record, computed natively (`tests/swing.rs`)
 //! and in wasm (`wasm-tests`), each checked against `SPECTRUM_DIGEST`. The record is
 //! made by integer arithmetic alone, so only the FFT can make the digests differ
 //! (rustfft's std twiddles did: glibc and musl round some in the last bit apart).

@@ -6,7 +6,7 @@
 //! which round 60 of the 1024 twiddles of a single-tone record (1026 of the two-tone
 //! record's 16 384) differently in the last bit — so the page's harmonics and
 //! intercepts were not the command's, against the "same bits on both targets"
-//! invariant. The records are short (2^10 and 2^14 points), so radix 2 is enough.
+//! invariant. The records are short (2^10 and 2^13 points), so radix 2 is enough.
 
 use crate::math;
 use num_complex::Complex64;
