@@ -47,6 +47,11 @@ pub fn sin(x: f64) -> f64 {
     libm::sin(x)
 }
 
+/// r·e^(iθ) (num-complex's `from_polar` takes std's cos and sin).
+pub fn polar(r: f64, theta: f64) -> Complex64 {
+    Complex64::new(r * libm::cos(theta), r * libm::sin(theta))
+}
+
 /// |z| without overflow.
 pub fn norm(z: impl Borrow<Complex64>) -> f64 {
     let z = z.borrow();

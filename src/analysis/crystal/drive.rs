@@ -142,7 +142,7 @@ impl Driven<'_> {
 
     /// The linear steady state at `im`, at step `k` of the period.
     fn linear_at(&self, at: &AtFrequency, im: f64, k: i64) -> DVector<f64> {
-        let phase = Complex64::from_polar(1.0, TAU * k as f64 / STEPS_PER_CYCLE as f64);
+        let phase = math::polar(1.0, TAU * k as f64 / STEPS_PER_CYCLE as f64);
         &self.bias + at.phasor.map(|v| (v * phase).re * im)
     }
 
