@@ -14,15 +14,6 @@ use rand::Rng;
 #[allow(dead_code)]
 mod draw;
 
-#[path = "common/digest.rs"]
-mod digest;
-
-/// The FFT gives the bits the wasm build gives (`wasm-tests`, the same digest).
-#[test]
-fn the_spectrum_has_the_same_bits_as_in_wasm() {
-    assert_eq!(digest::spectrum_digest(), digest::SPECTRUM_DIGEST, "the FFT's arithmetic changed: set SPECTRUM_DIGEST to the new value in both builds' check");
-}
-
 /// |X_k| by the DFT's definition, scaled as `amplitudes` scales it.
 fn direct(samples: &[f64]) -> Vec<f64> {
     let n = samples.len();

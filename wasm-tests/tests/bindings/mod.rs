@@ -97,11 +97,16 @@ fn formatting_and_facts() {
 #[path = "../../../tests/common/digest.rs"]
 mod digest;
 
-/// The FFT of the large-signal figures gives the bits the native build gives
-/// (`tests/swing.rs` checks the same digest natively).
+/// The FFT of the large-signal figures and nalgebra's SVD give the bits the native
+/// build gives (`tests/same_bits.rs` checks the same digests natively).
 #[wasm_bindgen_test]
 fn the_spectrum_has_the_same_bits_as_natively() {
     assert_eq!(digest::spectrum_digest(), digest::SPECTRUM_DIGEST);
+}
+
+#[wasm_bindgen_test]
+fn the_svd_has_the_same_bits_as_natively() {
+    assert_eq!(digest::svd_digest(), digest::SVD_DIGEST);
 }
 
 #[wasm_bindgen_test]
