@@ -441,9 +441,10 @@ pub fn sheet_text(text: &str, markdown: bool) -> Result<String, JsValue> {
 
 /// One of the document's analyses computed and only its size returned: the
 /// benchmark's measure of the core alone, without the cost of handing the
-/// figures to JavaScript. `what`: "response", "stability", "design", "two-tone"
-/// (one two-tone record of 2^13 samples at f_design) or "compression" (the
-/// 20-level sweep).
+/// figures to JavaScript. `what`: "response", "stability", "design", "one-tone"
+/// (the tone at the document's level, settled), "two-tone" (one two-tone record
+/// of 2^13 samples at f_design, as the Swing analysis runs it) or "compression"
+/// (the 20-level sweep, settled level by level).
 #[wasm_bindgen(js_name = benchCore)]
 pub fn bench_core(text: &str, what: &str) -> Result<usize, JsValue> {
     let document = doc::load(text).map_err(thrown)?;
@@ -451,15 +452,17 @@ pub fn bench_core(text: &str, what: &str) -> Result<usize, JsValue> {
         "response" => document.response().map(|r| r.points.len()),
         "stability" => document.stability().map(|(_, l)| l.t.len()),
         "design" => document.design().map(|d| d.candidates.len()),
+        "one-tone" => document.wave().map(|w| w.out.len()),
         "two-tone" | "compression" => bench_swing(&document, what),
         _ => return Err(thrown(FieldError::new("what", format!("`{what}` is not a benchmarked analysis")))),
     };
     points.map_err(thrown)
 }
 
-/// One two-tone record or one compression sweep of the document's stage.
+/// One two-tone record or one compression sweep of the document's stage, each
+/// as the Swing analysis runs it (`Settling`).
 fn bench_swing(document: &doc::Document, what: &str) -> crate::error::Result<usize> {
-    use crate::analysis::swing::{compression, emf_amplitude, rail_level_dbm, sweep_range_dbm, Record, TimeDomain, Waveforms};
+    use crate::analysis::swing::{compression, emf_amplitude, rail_level_dbm, sweep_range_dbm, Record, Settling, TimeDomain, Waveforms};
     let (part, stage) = document.part_and_stage()?;
     let f = document.sweep()?.f_design_hz;
     let time = TimeDomain::new(&part, &stage)?;
@@ -467,10 +470,10 @@ fn bench_swing(document: &doc::Document, what: &str) -> crate::error::Result<usi
     if what == "two-tone" {
         let record = Record::two_tone(f);
         let a = emf_amplitude(-20.0, rs);
-        Ok(time.run(&record.two_tones(a), &record, &mut |_| {})?.out.len())
+        Ok(Settling::new(&time).run(&record.two_tones(a), &record, &mut |_| {})?.out.len())
     } else {
         let (from, to) = sweep_range_dbm(rail_level_dbm(part.vdd, time.gain_to_last_stage(f)?, rs));
         let rl = stage.get(crate::stage::Component::LoadOhm).unwrap_or(1e3);
-        Ok(compression(&time, f, from, to, rs, rl, &mut |_| {})?.levels.len())
+        Ok(compression(&Settling::new(&time), f, from, to, rs, rl, &mut |_| {})?.levels.len())
     }
 }

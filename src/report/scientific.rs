@@ -68,6 +68,17 @@ fn scale(x: f64, power: i32) -> f64 {
     }
 }
 
+/// "00", "01", … "99".
+const PAIRS: [[u8; 2]; 100] = {
+    let mut pairs = [[0u8; 2]; 100];
+    let mut i = 0;
+    while i < 100 {
+        pairs[i] = [b'0' + (i / 10) as u8, b'0' + (i % 10) as u8];
+        i += 1;
+    }
+    pairs
+};
+
 /// d.dddddddddde±x from the eleven digits `digits` and the exponent `e` (|e| < 100).
 fn write_digits(out: &mut String, negative: bool, digits: u64, e: i32) {
     // −d.dddddddddde−xx: 18 bytes at most, put together and pushed at once.
@@ -80,12 +91,16 @@ fn write_digits(out: &mut String, negative: bool, digits: u64, e: i32) {
     if negative {
         put(b'-');
     }
+    // The eleven digits two at a time, the low eight in 32-bit arithmetic: a digit at
+    // a time was a fifth of `halfrail sweep --csv`.
     let mut mantissa = [0u8; 11];
-    let mut rest = digits;
-    for slot in mantissa.iter_mut().rev() {
-        *slot = b'0' + (rest % 10) as u8;
-        rest /= 10;
+    let (high, mut low) = ((digits / 100_000_000) as u32, (digits % 100_000_000) as u32);
+    for at in [9, 7, 5, 3] {
+        mantissa[at..at + 2].copy_from_slice(&PAIRS[(low % 100) as usize]);
+        low /= 100;
     }
+    mantissa[0] = b'0' + (high / 100) as u8;
+    mantissa[1..3].copy_from_slice(&PAIRS[(high % 100) as usize]);
     put(mantissa[0]);
     put(b'.');
     mantissa[1..].iter().for_each(|&d| put(d));

@@ -5,7 +5,10 @@
 // Targets: one file ≤ 1 MB, first result ≤ 300 ms (the gzip budget is withdrawn: gzip
 // is reported only); (issue 3)
 // a 500-point transfer curve ≤ 5 ms in wasm; (issue 8) the spread of 2000 trials ≤ 1500 ms
-// in one worker, faster in two. Core timings run inside the page.
+// in one worker; (issue 17) one tone ≤ 5 ms, the whole Swing analysis ≤ 30 ms, the
+// spread in two workers ≤ 50 ms, the loop analysis ≤ 1.5× native, the heap after a
+// tour ≤ 64 MB; (issue 15) a Stage edit in the DOM no slower than 5.3 ms p95. Core
+// timings run inside the page.
 import fs from 'fs';
 import zlib from 'zlib';
 import { launch, PAGE_PATH, PAGE_URL } from '../e2e/browser.mjs';
@@ -67,6 +70,7 @@ for (let i = 0; i < RUNS; i++) {
         stabilityCore: median(() => wasm_bindgen.benchCore(sweep, 'stability')),
         loopPanel: median(() => wasm_bindgen.loopReport(sweep)),
         design: median(() => wasm_bindgen.benchCore(demo, 'design'), 5),
+        oneTone: median(() => wasm_bindgen.benchCore(demo, 'one-tone'), 5),
         twoTone: median(() => wasm_bindgen.benchCore(demo, 'two-tone'), 3),
         compression: median(() => wasm_bindgen.benchCore(demo, 'compression'), 3),
         swing: median(() => wasm_bindgen.swingReport(demo, () => {}), 3),
@@ -138,83 +142,60 @@ const spreadWorkers = await workerPage.evaluate(async () => {
 });
 await workerPage.close();
 
-// An edit on the Stage panel until its figures and schematic are redrawn: 40 edits.
-// Two times each: to the frame that first finds the figures counted (polled every
-// frame, so a result that comes from a worker is seen at the next frame), and to the
-// moment they are counted, drawn in the DOM (`exact`).
-const editPage = await browser.context.newPage();
-await editPage.goto(PAGE_URL + '#stage');
-await editPage.waitForSelector('#panel-stage[data-computed]');
-const { edits, exact } = await editPage.evaluate(async () => {
-  const panel = document.getElementById('panel-stage');
-  const out = { edits: [], exact: [] };
-  for (let i = 0; i < 40; i++) {
-    const n = Number(panel.dataset.computed);
-    let counted = null;
-    const seen = new MutationObserver(() => { if (counted === null && Number(panel.dataset.computed) > n) counted = performance.now(); });
-    seen.observe(panel, { attributes: true, attributeFilter: ['data-computed'] });
-    const t0 = performance.now();
-    HR.design.set('stage', 'r_fb_ohm', i % 2 ? '2k2' : '2k4', 'bench');
-    // The panel recomputes in a microtask after the edit; wait for that, then for frames if need be.
-    await Promise.resolve();
-    await new Promise((resolve) => {
-      const poll = () => (Number(panel.dataset.computed) > n ? resolve() : requestAnimationFrame(poll));
-      poll();
-    });
-    out.edits.push(performance.now() - t0);
-    seen.takeRecords();
-    seen.disconnect();
-    out.exact.push((counted === null ? performance.now() : counted) - t0);
-  }
-  return out;
-});
-await editPage.close();
+// An edit until the shown panel's figures are redrawn: 40 edits of R fb, on the
+// Stage panel (its figures and schematic) and on the Swing panel (issue 17: the
+// whole large-signal analysis). Two times each: to the frame that first finds the
+// figures counted (polled every frame, so a result that comes from a worker is seen
+// at the next frame), and to the moment they are counted, drawn in the DOM (`exact`).
+const editTimes = async (panelId) => {
+  const editPage = await browser.context.newPage();
+  await editPage.goto(PAGE_URL + '#' + panelId);
+  await editPage.waitForSelector(`#panel-${panelId}[data-computed]`);
+  const times = await editPage.evaluate(async (panelId) => {
+    const panel = document.getElementById(`panel-${panelId}`);
+    const out = { edits: [], exact: [] };
+    for (let i = 0; i < 40; i++) {
+      const n = Number(panel.dataset.computed);
+      let counted = null;
+      const seen = new MutationObserver(() => { if (counted === null && Number(panel.dataset.computed) > n) counted = performance.now(); });
+      seen.observe(panel, { attributes: true, attributeFilter: ['data-computed'] });
+      const t0 = performance.now();
+      HR.design.set('stage', 'r_fb_ohm', i % 2 ? '2k2' : '2k4', 'bench');
+      // The panel recomputes in a microtask after the edit; wait for that, then for frames if need be.
+      await Promise.resolve();
+      await new Promise((resolve) => {
+        const poll = () => (Number(panel.dataset.computed) > n ? resolve() : requestAnimationFrame(poll));
+        poll();
+      });
+      out.edits.push(performance.now() - t0);
+      seen.takeRecords();
+      seen.disconnect();
+      out.exact.push((counted === null ? performance.now() : counted) - t0);
+    }
+    return out;
+  }, panelId);
+  await editPage.close();
+  return times;
+};
+const { edits, exact } = await editTimes('stage');
+const swingEdits = await editTimes('swing');
 
-// The heap after a tour of every panel (issue 17: ≤ 64 MB): each panel of the rail
-// shown in turn until its figures are in, then, after a garbage collection, the JS
-// heap of the page and of each of its workers (CDP Runtime.getHeapUsage, the workers
-// reached through the Target domain) plus the wasm linear memory of each instance.
-const tourPage = await browser.context.newPage();
-await tourPage.goto(PAGE_URL + '#part');
-await tourPage.waitForSelector('html[data-ready="true"]');
-for (const id of await tourPage.locator('#rail a').evaluateAll((as) => as.map((a) => a.dataset.panel))) {
-  await tourPage.locator(`#rail a[data-panel="${id}"]`).click();
-  await tourPage.waitForSelector(`#panel-${id}:not([hidden])`);
-  // A panel that follows the design has its figures in when its follower has settled.
-  await tourPage.waitForFunction((id) => {
-    const p = document.getElementById(`panel-${id}`);
-    return !p.dataset.follow || p.dataset.follow === 'settled';
-  }, id, { timeout: 120000 });
-}
-const cdp = await browser.context.newCDPSession(tourPage);
-await cdp.send('HeapProfiler.collectGarbage');
-const heap = { js: (await cdp.send('Runtime.getHeapUsage')).usedSize, wasm: await tourPage.evaluate(() => wasm_bindgen.initSync().memory.buffer.byteLength), workers: 0 };
-const replies = new Map();
-cdp.on('Target.receivedMessageFromTarget', ({ sessionId, message }) => {
-  const m = JSON.parse(message);
-  if (replies.has(sessionId) && m.id === 1) replies.get(sessionId)(m.result);
-});
-for (const t of (await cdp.send('Target.getTargets')).targetInfos.filter((t) => t.type === 'worker')) {
-  const { sessionId } = await cdp.send('Target.attachToTarget', { targetId: t.targetId, flatten: false });
-  const reply = new Promise((resolve) => replies.set(sessionId, resolve));
-  await cdp.send('Target.sendMessageToTarget', { sessionId, message: JSON.stringify({ id: 1, method: 'Runtime.getHeapUsage' }) });
-  heap.js += (await reply).usedSize;
-  heap.workers += 1;
-}
-for (const w of tourPage.workers()) heap.wasm += await w.evaluate(() => wasm_bindgen.initSync().memory.buffer.byteLength);
 await tourPage.close();
 await browser.close();
 const heapMb = (heap.js + heap.wasm) / 2 ** 20;
 const pct95 = (xs) => [...xs].sort((a, b) => a - b)[Math.floor(0.95 * xs.length)];
 const p95 = pct95(edits);
 const p95exact = pct95(exact);
+const swingP95 = pct95(swingEdits.edits);
+const swingP95exact = pct95(swingEdits.exact);
 
-// The native figures `cargo bench --bench core` left behind, for the "wasm ≤ 2× native" targets.
+// The native figures `cargo bench --bench core` left behind, for the targets set
+// against them: wasm ≤ `limit`× native (issue 17: the loop analysis ≤ 1.5×).
 const native = fs.existsSync(NATIVE_FIGURES) ? JSON.parse(fs.readFileSync(NATIVE_FIGURES, 'utf8')) : {};
-const ratio = (name, ms) => {
-  if (!(name in native)) return ['≤ 2× native (no native figure)', false];
+const ratio = (name, ms, limit = 2) => {
+  if (!(name in native)) return [`≤ ${limit}× native (no native figure)`, false];
   const times = ms / (native[name] * 1e3);
-  return [`≤ 2× native (${times.toFixed(2)}×)`, times <= 2];
+  return [`≤ ${limit}× native (${times.toFixed(2)}×)`, times <= limit];
 };
 
 const rows = [
@@ -228,12 +209,13 @@ const rows = [
   ['wasm: bench fit of the demo readings', `${core.fit.toFixed(1)} ms`, '', true],
   ['wasm: response of the demo, 1001 points (core)', `${core.responseCore.toFixed(2)} ms`, ...ratio('response', core.responseCore)],
   ['wasm: the same with the report handed to the page', `${core.response.toFixed(1)} ms`, '', true],
-  ['wasm: loop analysis of the demo, 1001 points (core)', `${core.stabilityCore.toFixed(2)} ms`, ...ratio('stability', core.stabilityCore)],
+  ['wasm: loop analysis of the demo, 1001 points (core)', `${core.stabilityCore.toFixed(2)} ms`, ...ratio('stability', core.stabilityCore, 1.5)],
   ['wasm: Loop panel report (loop, helper, handed over)', `${core.loopPanel.toFixed(1)} ms`, '', true],
   ['wasm: design to target, demo (12 dB, E24, 100 kHz)', `${core.design.toFixed(1)} ms`, '≤ 50 ms', core.design <= 50],
-  ['wasm: two-tone steady state, 2^13 samples (demo)', `${core.twoTone.toFixed(1)} ms`, '≤ 150 ms', core.twoTone <= 150],
-  ['wasm: compression sweep, 20 levels (demo)', `${core.compression.toFixed(0)} ms`, '≤ 1000 ms', core.compression <= 1000],
-  ['wasm: whole Swing panel analysis (demo)', `${core.swing.toFixed(0)} ms`, '', true],
+  ['wasm: one tone at the document\'s level, settled (demo)', `${core.oneTone.toFixed(2)} ms`, '≤ 5 ms', core.oneTone <= 5],
+  ['wasm: two-tone record, 2^13 samples (demo)', `${core.twoTone.toFixed(1)} ms`, '≤ 150 ms', core.twoTone <= 150],
+  ['wasm: compression sweep, 20 levels, settled (demo)', `${core.compression.toFixed(1)} ms`, '≤ 1000 ms', core.compression <= 1000],
+  ['wasm: whole Swing panel analysis (demo)', `${core.swing.toFixed(1)} ms`, '≤ 30 ms', core.swing <= 30],
   ['wasm: spread, 2000 trials, one thread (demo)', `${core.spread.toFixed(0)} ms`, '≤ 1500 ms', core.spread <= 1500],
   ['wasm: crystal analysis, demo oscillator (crystalReport)', `${core.crystal.toFixed(1)} ms`, '≤ 20 ms', core.crystal <= 20],
   ['wasm: the Crystal panel\'s run, report and curves of the demo', `${core.crystalPanel.toFixed(1)} ms`, '', true],
@@ -241,11 +223,13 @@ const rows = [
   ['wasm: chain, 12 blocks (stage figures known)', `${core.chain12.toFixed(2)} ms`, '≤ 1 ms', core.chain12 <= 1],
   ['wasm: chain, 12 blocks, 3-stage run as one circuit', `${core.chain12run.toFixed(2)} ms`, '≤ 1 ms', core.chain12run <= 1],
   ['page: spread, 2000 trials, one worker (demo)', `${spreadWorkers[1].toFixed(0)} ms`, '≤ 1500 ms', spreadWorkers[1] <= 1500],
-  ['page: spread, 2000 trials, two workers (demo)', `${spreadWorkers[2].toFixed(0)} ms`, `faster than one worker (${(spreadWorkers[1] / spreadWorkers[2]).toFixed(2)}×)`, spreadWorkers[2] < spreadWorkers[1]],
+  ['page: spread, 2000 trials, two workers (demo)', `${spreadWorkers[2].toFixed(0)} ms`, `≤ 50 ms (${(spreadWorkers[1] / spreadWorkers[2]).toFixed(2)}× one worker)`, spreadWorkers[2] <= 50],
   [`heap after a tour of the panels (page + ${heap.workers} workers)`, `${heapMb.toFixed(1)} MB`, '≤ 64 MB', heapMb <= 64],
   ['  of which JS heaps / wasm memories', `${(heap.js / 2 ** 20).toFixed(1)} / ${(heap.wasm / 2 ** 20).toFixed(1)} MB`, '', null],
-  ['Stage edit to redrawn figures, 95th percentile of 40', `${p95.toFixed(1)} ms`, '≤ 16 ms', p95 <= 16],
-  ['Stage edit to figures in the DOM, 95th percentile', `${p95exact.toFixed(1)} ms`, '≤ 16 ms', p95exact <= 16],
+  ['Stage edit to redrawn figures, 95th percentile of 40', `${p95.toFixed(1)} ms`, '≤ 16 ms (one frame)', p95 <= 16],
+  ['Stage edit to figures in the DOM, 95th percentile', `${p95exact.toFixed(1)} ms`, '≤ 5.3 ms (issue 15)', p95exact <= 5.3],
+  ['Swing shown: edit to redrawn figures, p95 of 40', `${swingP95.toFixed(1)} ms`, '', null],
+  ['Swing shown: edit to figures in the DOM, p95', `${swingP95exact.toFixed(1)} ms`, '', null],
 ];
 for (const [what, figure, target, met] of rows) {
   console.log(`${what.padEnd(52)} ${figure.padStart(12)}  ${target.padEnd(30)} ${target ? (met ? 'met' : 'MISSED') : ''}`);
