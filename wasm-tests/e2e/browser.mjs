@@ -106,7 +106,8 @@ export async function editElsewhereDuringRun(page, id) {
     return {
       t0,
       vpp: document.querySelector('#panel-bench dd[data-key="vpp"]').textContent,
-      stillRunning: !box.hidden && panel.dataset.computed === before,
+      // Running: its box shown, or (a panel that shows it only after a while) its follower's state.
+      stillRunning: (!box.hidden || panel.dataset.follow === 'running') && panel.dataset.computed === before,
       answeredMs: performance.now() - t0,
     };
   }, id);

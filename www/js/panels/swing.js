@@ -4,8 +4,10 @@
 // design's input level, output power against input power with the 1 dB point and the
 // intercept lines, and the figures (HD2, HD3, THD, OP1dB, IP1dB, Psat, OIP3, IIP3 with
 // its slope check, the swing against the rails) beside the power-series estimates.
-// The core's swingReport takes a good part of a second, so it runs in a background
-// worker (HR.background), with a progress bar and Cancel; this file lays out its result.
+// The core's swingReport takes some 30 ms for the demo but seconds for a part of many
+// inverters, so it runs in a background worker (HR.background) after every edit, as the
+// quick panels do, and shows a progress bar and Cancel only when a run goes on past
+// HR.background.QUIET; this file lays out its result.
 
 (() => {
   const { el, card } = HR.ui;
@@ -113,7 +115,7 @@
         const r = shownText === null ? { error: true } : await HR.background.run('waveCsv', [shownText], { lane: 'wave-csv' }).promise;
         if (r.ok !== undefined) HR.ui.download(HR.documents.named('wave', 'csv'), new Blob([r.ok], { type: 'text/csv' }));
       } }, 'Save the waveform as CSV');
-      const timing = el('p', { class: 'run-note' }, 'The analysis simulates the stage in time at many signal levels, so it runs in the background, with a progress bar.');
+      const timing = el('p', { class: 'run-note' }, 'The analysis simulates the stage in time at many signal levels, in the background; a long run shows its progress.');
       const problem = el('p', { class: 'error', 'aria-live': 'polite', hidden: true });
       const staleNote = el('p', { class: 'stale-note', hidden: true });
       const runCard = card('Signal level', el('div', { class: 'inputs' }, level.wrap), running, timing,
@@ -313,9 +315,12 @@
         bar.value = p;
         barText.textContent = `Computing… ${fixed(100 * p, 0)} %`;
       };
+      // After every edit, in a worker kept between runs (a drag's stale run finishes and
+      // the latest goes next); the bar only for a run longer than QUIET.
       const follower = HR.background.follow(container, {
         name: 'swingReport',
         args: (text) => [text],
+        delay: 0, quiet: HR.background.QUIET, keep: true,
         render,
         progress,
         report: (error) => {
