@@ -15,9 +15,7 @@
 
 use nalgebra::{DMatrix, DVector, SVD};
 
-use super::lu::RealLu;
-use super::mna::evaluate_into;
-use super::transient::{Companion, Scratch, Transient, BDF2_ALPHA};
+use super::transient::{Companion, Finish, Scratch, Transient, BDF2_ALPHA};
 use crate::error::{FieldError, Result};
 
 /// Newton iterations of the shooting at most (it converges in two to five).
@@ -113,7 +111,6 @@ impl Transient<'_> {
             s_now[(i, m + i)] = 1.0;
         }
         let mut scratch = Scratch::new(size);
-        let mut lu = RealLu::default();
         let mut b = DVector::zeros(size);
         b.rows_mut(0, n).copy_from(&self.b);
         let dc_drive = self.b[self.driven];
@@ -121,9 +118,8 @@ impl Transient<'_> {
         let mut rhs = DVector::zeros(size);
         let mut s_history = DMatrix::zeros(size, 2 * m);
         // Buffers for every step (a shot allocates nothing after this): the next
-        // solution, the closing correction, the next sensitivities and one column.
+        // solution, the next sensitivities and one column.
         let mut x = DVector::zeros(size);
-        let mut correction = DVector::zeros(size);
         let mut s_next = DMatrix::zeros(size, 2 * m);
         let (mut memory, mut column) = (DVector::zeros(size), DVector::zeros(size));
         // The sensitivities' right-hand sides and solutions, row-major (size × 2m), to
@@ -138,25 +134,21 @@ impl Transient<'_> {
             rhs[self.driven] = dc_drive + drive(t);
             companion.memory(n, &history, h, BDF2_ALPHA, &mut rhs);
             // Predicted on the line through the last two points; from the last point
-            // itself when that fails (the prediction overshoots a sharp edge).
+            // itself when that fails (the prediction overshoots a sharp edge). The last
+            // Newton correction is taken on the Jacobian at the balanced point
+            // (`Finish::Exact`), not on older factors: a chord's finish leaves x off by
+            // up to 10⁻¹² of its size, and a mode that decays over 10⁸ periods (a 20 mF
+            // coupling capacitor at 18 MHz) turns that into volts of doubt about where
+            // the period closes (the shooting wandered ±30 mV and never closed). Those
+            // factors serve the sensitivities.
             x.zip_zip_apply(&now, &before, |x, now, before| *x = now * 2.0 - before);
-            if !self.newton(&companion.gear, &rhs, &mut x, &mut scratch) && {
+            if !self.newton_finishing(&companion.gear, &rhs, &mut x, &mut scratch, Finish::Exact) && {
                 x.copy_from(&now);
-                !self.newton(&companion.gear, &rhs, &mut x, &mut scratch)
+                !self.newton_finishing(&companion.gear, &rhs, &mut x, &mut scratch, Finish::Exact)
             } {
                 return Err(FieldError::new("circuit", format!("the periodic steady state did not converge at t = {t:.4e} s of the period")));
             }
-            // One more Newton correction with the Jacobian at x: the step's own stop
-            // test leaves x off by up to 10⁻¹⁰ of its size, and a mode that decays
-            // over 10⁸ periods (a 20 mF coupling capacitor at 18 MHz) turns that
-            // into volts of doubt about where the period closes (the shooting
-            // wandered ±30 mV and never closed). Its factors serve the sensitivities.
-            evaluate_into(&companion.gear, &rhs, &self.devices, &x, 1.0, &mut scratch.residual, &mut scratch.jacobian);
-            if !lu.refactor_matrix(&scratch.jacobian) {
-                return Err(FieldError::new("circuit", "the periodic steady state met a singular step"));
-            }
-            lu.solve_into(&scratch.residual, &mut correction);
-            x -= &correction;
+            let lu = &scratch.lu;
             if carry {
                 // J·∂x/∂z = ∂rhs/∂z: the memory's sensitivity through the Jacobian at x.
                 s_history.copy_from(&s_now);

@@ -240,6 +240,11 @@ impl<'a> Transient<'a> {
     /// Newton on one step's system `a`·x − i(x) = `rhs` from `x`, in place; true
     /// when it converged (the tests of the DC solve, `MAX_ITERATIONS` at most).
     pub(super) fn newton(&self, a: &DMatrix<f64>, rhs: &DVector<f64>, x: &mut DVector<f64>, s: &mut Scratch) -> bool {
+        self.newton_finishing(a, rhs, x, s, Finish::Chord)
+    }
+
+    /// `newton`, its last correction taken as `finish` says.
+    pub(super) fn newton_finishing(&self, a: &DMatrix<f64>, rhs: &DVector<f64>, x: &mut DVector<f64>, s: &mut Scratch, finish: Finish) -> bool {
         for iteration in 0..MAX_ITERATIONS {
             evaluate_into(a, rhs, &self.devices, x, 1.0, &mut s.residual, &mut s.jacobian);
             // The imbalance is judged at the point the step starts from,
@@ -250,7 +255,7 @@ impl<'a> Transient<'a> {
             // as x has, so the step is off only in second order): a step of the
             // transient then factorises once, not twice (the LU was a sixth of a
             // nine-inverter part's two-tone run).
-            let chord = balanced_before && iteration > 0;
+            let chord = balanced_before && iteration > 0 && finish == Finish::Chord;
             if !chord && !s.lu.refactor_matrix(&s.jacobian) {
                 return false;
             }
@@ -312,6 +317,18 @@ impl<'a> Transient<'a> {
     }
 }
 
+/// How Newton takes its last correction, from a balanced point.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub(super) enum Finish {
+    /// On the previous iteration's factors: off only in second order, and a step of
+    /// the transient factorises once.
+    Chord,
+    /// On the Jacobian at that point, factorised afresh: x to a few ε, and the factors
+    /// left in the scratch are the Jacobian's at the answer's doorstep (the periodic
+    /// steady state's sensitivities are solved with them).
+    Exact,
+}
+
 /// Sub-step counts tried, in turn, on a step Newton cannot take whole.
 const SUBSTEPS: &[usize] = &[4, 16, 64];
 
@@ -320,7 +337,7 @@ pub(super) struct Scratch {
     pub(super) residual: DVector<f64>,
     pub(super) jacobian: DMatrix<f64>,
     step: DVector<f64>,
-    lu: RealLu,
+    pub(super) lu: RealLu,
 }
 
 impl Scratch {

@@ -180,6 +180,38 @@ const editTimes = async (panelId) => {
 const { edits, exact } = await editTimes('stage');
 const swingEdits = await editTimes('swing');
 
+// The heap after a tour of every panel (issue 17: ≤ 64 MB): each panel of the rail
+// shown in turn until its figures are in, then, after a garbage collection, the JS
+// heap of the page and of each of its workers (CDP Runtime.getHeapUsage, the workers
+// reached through the Target domain) plus the wasm linear memory of each instance.
+const tourPage = await browser.context.newPage();
+await tourPage.goto(PAGE_URL + '#part');
+await tourPage.waitForSelector('html[data-ready="true"]');
+for (const id of await tourPage.locator('#rail a').evaluateAll((as) => as.map((a) => a.dataset.panel))) {
+  await tourPage.locator(`#rail a[data-panel="${id}"]`).click();
+  await tourPage.waitForSelector(`#panel-${id}:not([hidden])`);
+  // A panel that follows the design has its figures in when its follower has settled.
+  await tourPage.waitForFunction((id) => {
+    const p = document.getElementById(`panel-${id}`);
+    return !p.dataset.follow || p.dataset.follow === 'settled';
+  }, id, { timeout: 120000 });
+}
+const cdp = await browser.context.newCDPSession(tourPage);
+await cdp.send('HeapProfiler.collectGarbage');
+const heap = { js: (await cdp.send('Runtime.getHeapUsage')).usedSize, wasm: await tourPage.evaluate(() => wasm_bindgen.initSync().memory.buffer.byteLength), workers: 0 };
+const replies = new Map();
+cdp.on('Target.receivedMessageFromTarget', ({ sessionId, message }) => {
+  const m = JSON.parse(message);
+  if (replies.has(sessionId) && m.id === 1) replies.get(sessionId)(m.result);
+});
+for (const t of (await cdp.send('Target.getTargets')).targetInfos.filter((t) => t.type === 'worker')) {
+  const { sessionId } = await cdp.send('Target.attachToTarget', { targetId: t.targetId, flatten: false });
+  const reply = new Promise((resolve) => replies.set(sessionId, resolve));
+  await cdp.send('Target.sendMessageToTarget', { sessionId, message: JSON.stringify({ id: 1, method: 'Runtime.getHeapUsage' }) });
+  heap.js += (await reply).usedSize;
+  heap.workers += 1;
+}
+for (const w of tourPage.workers()) heap.wasm += await w.evaluate(() => wasm_bindgen.initSync().memory.buffer.byteLength);
 await tourPage.close();
 await browser.close();
 const heapMb = (heap.js + heap.wasm) / 2 ** 20;
