@@ -131,13 +131,17 @@ impl<T: Entry> Lu<T> {
             }
             let inv = T::one() / p;
             self.pivot_inverses.push(inv);
-            for i in k + 1..n {
-                let l = lu[i * n + k] * inv;
-                lu[i * n + k] = l;
+            // The rows below the pivot's, by slices: no bounds checks in the inner
+            // loop, which the compiler may then vectorise (each entry's arithmetic,
+            // and so its rounding, as before).
+            let (top, below) = lu.split_at_mut((k + 1) * n);
+            let pivot_row = &top[k * n + k + 1..];
+            for row in below.chunks_exact_mut(n) {
+                let l = row[k] * inv;
+                row[k] = l;
                 if l != T::default() {
-                    for j in k + 1..n {
-                        let u = lu[k * n + j];
-                        lu[i * n + j] -= l * u;
+                    for (x, &u) in row[k + 1..].iter_mut().zip(pivot_row) {
+                        *x -= l * u;
                     }
                 }
             }
