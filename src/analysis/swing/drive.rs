@@ -46,6 +46,15 @@ impl Record {
         Record { resolution_hz: f_hz / SINGLE_CYCLES as f64, samples: 1024, warmup: 512 }
     }
 
+    /// A level of the compression sweep at `f_hz`: one cycle at the single tone's
+    /// 256 samples a cycle (the same steps, so the sweep's levels and the tone
+    /// settle alike) after its two cycles of warm-up. Only the fundamental is read,
+    /// and a settled record is exactly periodic: four cycles gave the same bin at
+    /// four times the transform.
+    pub fn sweep_level(f_hz: f64) -> Self {
+        Record { resolution_hz: f_hz, samples: 256, warmup: 512 }
+    }
+
     /// Two tones at f·(1 ± 0.01): bins 99 and 101 of a resolution of f/100, 2^13
     /// samples (about 82 a cycle of the carrier), and a warm-up of 2^10. Twice as
     /// many steps moved the intercept by 0.002–0.02 dB on the three stages of

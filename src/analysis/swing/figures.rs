@@ -80,7 +80,7 @@ pub fn small_signal_gt_db(w: &dyn Waveforms, f_hz: f64, source_ohm: f64, load_oh
 
 /// GT over `COMPRESSION_LEVELS` source powers from `from_dbm` to `to_dbm`.
 pub fn compression(w: &dyn Waveforms, f_hz: f64, from_dbm: f64, to_dbm: f64, source_ohm: f64, load_ohm: f64, progress: &mut dyn FnMut(f64)) -> Result<Compression> {
-    let record = Record::single(f_hz);
+    let record = Record::sweep_level(f_hz);
     let mut levels = Vec::with_capacity(COMPRESSION_LEVELS);
     for i in 0..COMPRESSION_LEVELS {
         let pin_dbm = from_dbm + (to_dbm - from_dbm) * i as f64 / (COMPRESSION_LEVELS - 1) as f64;
