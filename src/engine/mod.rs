@@ -4,6 +4,7 @@
 //! `G`/`C`/device stamps here rather than on a solver of their own.
 
 mod ac;
+mod bordered;
 mod carry;
 mod dc;
 mod hessenberg;

@@ -110,7 +110,7 @@ impl Transient<'_> {
             s_before[(i, i)] = 1.0;
             s_now[(i, m + i)] = 1.0;
         }
-        let mut scratch = Scratch::new(size);
+        let mut scratch = Scratch::for_steps_of(&companion.gear, &self.devices);
         let mut b = DVector::zeros(size);
         b.rows_mut(0, n).copy_from(&self.b);
         let dc_drive = self.b[self.driven];
@@ -148,7 +148,7 @@ impl Transient<'_> {
             } {
                 return Err(FieldError::new("circuit", format!("the periodic steady state did not converge at t = {t:.4e} s of the period")));
             }
-            let lu = &scratch.lu;
+            let lu = &mut scratch.lu;
             if carry {
                 // J·∂x/∂z = ∂rhs/∂z: the memory's sensitivity through the Jacobian at x.
                 s_history.copy_from(&s_now);

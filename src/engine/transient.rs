@@ -20,7 +20,7 @@
 
 use nalgebra::{DMatrix, DVector};
 
-use super::lu::RealLu;
+use super::bordered::StepLu;
 use super::mna::{balanced, dc_sources, device_slots, evaluate_into, linear_stamps, DeviceSlot, Layout};
 use super::netlist::{Element, Netlist};
 use crate::error::{FieldError, Result};
@@ -190,7 +190,9 @@ impl<'a> Transient<'a> {
         let mut x = DVector::zeros(size);
         let mut history = DVector::zeros(size);
         let mut rhs = DVector::zeros(size);
-        let mut scratch = Scratch::new(size);
+        // The first, backward-Euler step's matrix is not BDF2's: its own scratch.
+        let mut first = Scratch::new(size);
+        let mut scratch = Scratch::for_steps_of(&companion.gear, &self.devices);
         let mut seen = DVector::zeros(n);
         let mut b = DVector::zeros(size);
         b.rows_mut(0, n).copy_from(&self.b);
@@ -216,7 +218,7 @@ impl<'a> Transient<'a> {
                 x *= 2.0;
                 x.axpy(-1.0, &before, 1.0);
             }
-            let mut converged = self.newton(a, &rhs, &mut x, &mut scratch);
+            let mut converged = self.newton(a, &rhs, &mut x, if k == 1 { &mut first } else { &mut scratch });
             if !converged {
                 // The step crossed something Newton could not (a part of many stages
                 // switching its inner nodes rail to rail within it): cross it again in
@@ -256,7 +258,7 @@ impl<'a> Transient<'a> {
             // transient then factorises once, not twice (the LU was a sixth of a
             // nine-inverter part's two-tone run).
             let chord = balanced_before && iteration > 0 && finish == Finish::Chord;
-            if !chord && !s.lu.refactor_matrix(&s.jacobian) {
+            if !chord && !s.lu.refactor(&s.jacobian) {
                 return false;
             }
             s.lu.solve_into(&s.residual, &mut s.step);
@@ -337,11 +339,18 @@ pub(super) struct Scratch {
     pub(super) residual: DVector<f64>,
     pub(super) jacobian: DMatrix<f64>,
     step: DVector<f64>,
-    pub(super) lu: RealLu,
+    pub(super) lu: StepLu,
 }
 
 impl Scratch {
+    /// For steps of any matrix (factorised densely).
     pub(super) fn new(size: usize) -> Self {
-        Scratch { residual: DVector::zeros(size), jacobian: DMatrix::zeros(size, size), step: DVector::zeros(size), lu: RealLu::default() }
+        Scratch { residual: DVector::zeros(size), jacobian: DMatrix::zeros(size, size), step: DVector::zeros(size), lu: StepLu::default() }
+    }
+
+    /// For steps of the matrix `a` alone, with `devices` (factorised in blocks,
+    /// `StepLu`): Newton must be handed that `a` and no other.
+    pub(super) fn for_steps_of(a: &DMatrix<f64>, devices: &[DeviceSlot]) -> Self {
+        Scratch { lu: StepLu::for_matrix(a, devices.iter().filter_map(|&(_, output, _)| output)), ..Scratch::new(a.nrows()) }
     }
 }
