@@ -136,8 +136,8 @@ impl Transient<'_> {
             // Predicted on the line through the last two points; from the last point
             // itself when that fails (the prediction overshoots a sharp edge). The last
             // Newton correction is taken on the Jacobian at the balanced point
-            // (`Finish::Exact`), not on older factors: a chord's finish leaves x off by
-            // up to 10⁻¹² of its size, and a mode that decays over 10⁸ periods (a 20 mF
+            // (`Finish::Exact`), not on older factors: the step's stop test alone leaves
+            // x off by up to 10⁻¹⁰ of its size, and a mode that decays over 10⁸ periods (a 20 mF
             // coupling capacitor at 18 MHz) turns that into volts of doubt about where
             // the period closes (the shooting wandered ±30 mV and never closed). Those
             // factors serve the sensitivities.
