@@ -284,7 +284,8 @@
         overdriven.textContent = levelNote(s);
         overdriven.hidden = !overdriven.textContent;
         estimate.textContent = seriesNote(s);
-        timing.textContent = `Computed in ${fixed(ms / 1000, 2)} s in a background worker, for ${dbm(s.input_dbm)} at ${fmt(s.f_hz, 'Hz', 4)}.`;
+        const took = ms < 1000 ? `${fixed(ms, 0)} ms` : `${fixed(ms / 1000, 2)} s`;
+        timing.textContent = `Computed in ${took} in a background worker, for ${dbm(s.input_dbm)} at ${fmt(s.f_hz, 'Hz', 4)}.`;
 
         transferPlot.setData([r.transfer_emf_v, r.transfer_out_v]);
         transferNote.textContent = `v(out) at the load against a slowly varied source EMF, the coupling capacitors holding their bias charge. Shaded: the signal’s excursion at the input level (±${volts(r.amplitude_v)} of EMF) and the output it gives${r.amplitude_v < 0.02 * Math.max(...r.transfer_emf_v) ? ' — a thin sliver here: drag across it to zoom in' : ''}.`;
