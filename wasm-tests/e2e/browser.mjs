@@ -126,14 +126,20 @@ export const redoButton = (page) => page.locator('#docbar').getByRole('button', 
 
 // An init script (page.addInitScript) that watches the page's background work from
 // before its own scripts run: every Worker made (`name url`) and terminated, every
-// animation frame, every value a progress bar shows and whether a run box is shown,
-// each with its time. Read it with workLog(page).
+// run posted to one (its entry's name), every animation frame, every value a progress
+// bar shows and whether a run box is shown, each with its time. Read it with
+// workLog(page).
 export const instrumentWork = () => {
-  const log = { workers: [], terminated: 0, frames: [], progress: [], box: [] };
+  const log = { workers: [], terminated: 0, runs: [], frames: [], progress: [], box: [] };
   window.__work = log;
   const Native = window.Worker;
   window.Worker = class extends Native {
     constructor(url, options) { super(url, options); log.workers.push(`${(options && options.name) || ''} ${url}`); }
+    postMessage(data, ...rest) {
+      const entry = data && (data.name || (data.calls && data.calls[0][0]));
+      if (entry) log.runs.push([performance.now(), entry]);
+      return super.postMessage(data, ...rest);
+    }
   };
   const terminate = Native.prototype.terminate;
   Native.prototype.terminate = function () { log.terminated += 1; return terminate.call(this); };

@@ -174,6 +174,7 @@ test('a bad level is reported at its field without a run; edits elsewhere wait u
   await page.evaluate(() => HR.design.set('analysis', 'input_dbm', '-33 dBm', 'test'));
   await settledAs(page, 'due');
   assert.equal(await computed(page), 2);
+  assert.equal((await log(page)).runs.filter(([, entry]) => entry === 'swingReport').length, 2, 'two runs so far');
   await page.locator('#rail a[href="#swing"]').click();
   await results(page, 3);
   assert.equal(await figure(page, 'level'), '-33.00 dBm at 10.70 MHz');
