@@ -194,3 +194,59 @@ fn the_demo_spread_keeps_its_recorded_figures() {
     }
     assert_eq!((r.summary.trials, r.summary.unsolved, r.summary.oscillating, r.summary.yield_fraction), (2000, 0, 0, Some(0.916)));
 }
+
+/// The demo spread's every figure as text, one line each: the nominal trial, each
+/// trial (`trial i growing v0 … v5`), the summary's statistics, each quantity's
+/// swing and each figure's corners; `-` for a figure that does not exist. Twelve
+/// significant digits: the text rounds a figure by 5e-12 of itself at most, far
+/// inside the 1e-9 it is checked to.
+fn demo_spread_text() -> String {
+    let r = load(DEMO).unwrap().spread(&mut |_| {}).unwrap();
+    let num = |v: Option<f64>| v.map_or("-".to_string(), |v| format!("{v:.11e}"));
+    let row = |values: &[Option<f64>]| values.iter().map(|&v| num(v)).collect::<Vec<_>>().join(" ");
+    let trial = |t: &halfrail::analysis::spread::Trial| format!("{} {}", t.growing.map_or("-".to_string(), |g| g.to_string()), row(&t.values));
+    let mut lines = vec![format!("nominal {}", trial(&r.nominal))];
+    lines.extend(r.trials.iter().enumerate().map(|(i, t)| format!("trial {i} {}", trial(t))));
+    let s = &r.summary;
+    lines.push(format!("summary {} {} {} {}", s.trials, s.unsolved, s.oscillating, num(s.yield_fraction)));
+    for (k, stats) in s.stats.iter().enumerate() {
+        let st = stats.unwrap();
+        lines.push(format!("stats {k} {} {}", st.count, row(&[st.mean, st.std, st.min, st.max, st.p1, st.p99].map(Some))));
+    }
+    lines.extend(r.swings.iter().enumerate().map(|(q, sw)| format!("swing {q} {}", row(&sw.per_figure))));
+    lines.extend(r.corners.iter().enumerate().map(|(k, c)| format!("corner {k} {}", row(&[c.low, c.high]))));
+    lines.join("\n") + "\n"
+}
+
+/// Prints `demo_spread_text` (how `tests/spread_demo.txt` was made):
+/// `cargo test --release --test spread print_demo_spread -- --ignored --nocapture`.
+#[test]
+#[ignore]
+fn print_demo_spread() {
+    print!("{}", demo_spread_text());
+}
+
+#[test]
+fn the_demo_spread_keeps_every_figure() {
+    // tests/spread_demo.txt holds this build's figures before the spread was made
+    // faster (commit eb3a6e6): the same seed must give every trial's figures and
+    // growing count, the statistics, the swings and the corners again, to 1e-9 of
+    // each figure (near zero, a swing to 1e-12 of the nominal figure: a swing of
+    // a quantity that hardly moves a figure is the solver's rounding, some 1e-12 of it).
+    let want = include_str!("spread_demo.txt");
+    let got = demo_spread_text();
+    assert_eq!(got.lines().count(), want.lines().count());
+    let nominal: Vec<f64> = want.lines().next().unwrap().split(' ').skip(2).map(|v| v.parse().unwrap()).collect();
+    for (got, want) in got.lines().zip(want.lines()) {
+        let (g, w): (Vec<&str>, Vec<&str>) = (got.split(' ').collect(), want.split(' ').collect());
+        assert_eq!(g.len(), w.len(), "{got}\nagainst\n{want}");
+        let floor = |k: usize| if w[0] == "swing" && k >= 2 { 1e-3 * nominal[k - 2].abs() } else { 0.0 };
+        for (k, (a, b)) in g.iter().zip(&w).enumerate() {
+            let close = match (a.parse::<f64>(), b.parse::<f64>()) {
+                (Ok(a), Ok(b)) => (a - b).abs() <= 1e-9 * b.abs().max(floor(k)),
+                _ => a == b,
+            };
+            assert!(close, "{got}\nagainst\n{want}");
+        }
+    }
+}
