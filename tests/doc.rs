@@ -421,3 +421,33 @@ fn a_part_is_its_preset_field_for_field() {
     }
     assert_eq!(load(DEMO).unwrap().part.unwrap().preset(), None, "the demo's part is its own");
 }
+
+/// `Document::quick`: the demo is quick (the page computes its Stage figures on the
+/// main thread); so is a document with no sweep; a long sweep of nine inverters, or
+/// of one at the 100 001 points the format allows, is not (a worker computes it).
+#[test]
+fn quick_documents_are_the_cheap_ones() {
+    let quick = |text: &str| load(text).unwrap().quick();
+    assert!(quick(DEMO));
+    assert!(quick(&with("analysis", serde_json::Value::Null)));
+    let mut nine: serde_json::Value = serde_json::from_str(DEMO).unwrap();
+    nine["part"]["stages"] = 9.into();
+    nine["analysis"]["points_per_decade"] = 200.into();
+    assert!(!quick(&nine.to_string()), "1 201 frequencies of nine inverters");
+    nine["part"]["stages"] = 1.into();
+    assert!(quick(&nine.to_string()), "1 201 frequencies of one inverter");
+    nine["analysis"]["points_per_decade"] = 1000.into();
+    assert!(!quick(&nine.to_string()), "6 001 frequencies");
+}
+
+/// The frequency count the work bound uses is the sweep's length, over spans from a
+/// hundredth of a decade to twelve decades and every density the format allows.
+#[test]
+fn frequency_count_is_the_sweeps_length() {
+    use halfrail::analysis::{frequencies, frequency_count};
+    for per_decade in [1, 2, 7, 50, 333, 1000] {
+        for (start, stop) in [(1.0, 1.023), (1e3, 1e9), (0.37, 4.1e11), (10.585e6, 10.815e6), (1.0, 10.0)] {
+            assert_eq!(frequency_count(start, stop, per_decade), frequencies(start, stop, per_decade).len(), "{start}–{stop} at {per_decade}");
+        }
+    }
+}

@@ -26,8 +26,21 @@ use crate::stage::{build_run, Component, Components, StageCircuit};
 /// both ends included.
 pub fn frequencies(start: f64, stop: f64, per_decade: u32) -> Vec<f64> {
     let decades = math::log10(stop / start);
-    let steps = (decades * per_decade as f64).ceil().max(1.0) as usize;
+    let steps = frequency_count(start, stop, per_decade) - 1;
     (0..=steps).map(|i| start * math::pow(10f64, decades * i as f64 / steps as f64)).collect()
+}
+
+/// How many frequencies `frequencies` gives, without making them.
+pub fn frequency_count(start: f64, stop: f64, per_decade: u32) -> usize {
+    (math::log10(stop / start) * per_decade as f64).ceil().max(1.0) as usize + 1
+}
+
+/// A bound on the frequencies `response` solves the stage at: the sweep's, the noise
+/// grid's, and the band edges' bisection (some 30 steps each from its bracket).
+pub fn solve_count(sweep: (f64, f64, u32), noise_band: Option<(f64, f64)>) -> usize {
+    const EDGE_STEPS: usize = 2 * 30;
+    let noise = noise_band.map_or(0, |(low, high)| frequency_count(low, high, NOISE_GRID_PER_DECADE));
+    frequency_count(sweep.0, sweep.1, sweep.2) + noise + EDGE_STEPS
 }
 
 /// The figures at one frequency.

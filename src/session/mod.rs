@@ -60,6 +60,12 @@ impl Analysis {
 }
 
 
+/// The most work `Document::quick` allows: 3000 frequencies of a one-inverter stage,
+/// 1000 of a nine-inverter one, at most about 3 ms natively (1 µs a frequency for one
+/// inverter, 2.8 µs for nine, measured here with the demo's components and noise band;
+/// the demo itself is some 1 500).
+pub const QUICK_WORK: usize = 12_000;
+
 /// The analyses a document asks for, with the section each one needs named when
 /// it is missing: one place for the CLI and the page to start from.
 impl Document {
@@ -87,6 +93,20 @@ impl Document {
     pub fn response(&self) -> Result<crate::analysis::Response> {
         let (part, stage) = self.part_and_stage()?;
         self.sweep()?.response(&part, &stage)
+    }
+
+    /// Whether the stage's bias and response (the Stage panel's figures) are quick to
+    /// compute: the frequencies the response solves at, each weighted by the size of
+    /// the circuit it solves (its inverter stages, plus three for the resistors and
+    /// the load), within `QUICK_WORK`. The page computes a quick document's figures on
+    /// its main thread, any other in a worker: this bound, not a timing, is what lets
+    /// no document hold the page up. A document without a sweep, part or stage is
+    /// quick (its calls answer at once).
+    pub fn quick(&self) -> bool {
+        let (Some(analysis), Some(part)) = (&self.analysis, &self.part) else { return true };
+        let sweep = (analysis.f_start_hz, analysis.f_stop_hz, analysis.points_per_decade);
+        let solves = crate::analysis::solve_count(sweep, analysis.noise_band());
+        solves.saturating_mul(part.stages as usize + 3) <= QUICK_WORK
     }
 
     /// The stage's response and loop analysis over the `analysis` sweep.

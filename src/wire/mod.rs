@@ -50,7 +50,7 @@ pub fn summary(d: &Document) -> DocumentSummary {
     .into_iter()
     .filter_map(|(section, present)| present.then_some(section.key.name))
     .collect();
-    DocumentSummary { halfrail: d.halfrail, sections }
+    DocumentSummary { halfrail: d.halfrail, sections, quick: d.quick() }
 }
 
 

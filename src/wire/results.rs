@@ -162,11 +162,14 @@ fn field_label(e: &FieldError) -> Option<&'static str> {
 #[serde(transparent)]
 pub struct FieldErrorOut<'a>(#[serde(with = "FieldErrorDef")] pub &'a FieldError);
 
-/// What a valid document holds: `{"halfrail": 1, "sections": ["part", …]}`.
+/// What a valid document holds: `{"halfrail": 1, "sections": ["part", …], "quick": true}`
+/// (`quick`: `Document::quick`, whether the page may compute its stage figures on its
+/// main thread).
 #[derive(Serialize)]
 pub struct DocumentSummary {
     pub halfrail: u32,
     pub sections: Vec<&'static str>,
+    pub quick: bool,
 }
 
 /// What the standard says of one series: `{"name", "per_decade", "tolerances_pct"}`.

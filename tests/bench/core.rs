@@ -77,6 +77,20 @@ fn wide_sweep(text: &str) -> String {
     doc.to_string()
 }
 
+/// The costliest document the page computes on its main thread (`Document::quick`):
+/// the demo with `stages` inverters and the densest sweep that is still quick.
+fn costliest_quick(stages: u32) -> String {
+    let mut doc: serde_json::Value = serde_json::from_str(DEMO).unwrap();
+    doc["part"]["stages"] = stages.into();
+    for per_decade in (1..=1000).rev() {
+        doc["analysis"]["points_per_decade"] = per_decade.into();
+        if load(&doc.to_string()).unwrap().quick() {
+            break;
+        }
+    }
+    doc.to_string()
+}
+
 /// The reference oscillator of a small lab receiver (tests/crystal.rs; values ours),
 /// with a spread of 200 trials.
 const CRYSTAL_REFERENCE: &str = r#"{"halfrail": 1,
@@ -121,6 +135,15 @@ fn main() {
     keep("response", row("small-signal response, demo, 1001 points (gain, Z, S, noise)", Some(2e-3), || {
         black_box(load(black_box(&wide)).unwrap().response().unwrap());
     }));
+    // What the Stage panel computes on the page's main thread, at its costliest
+    // (`QUICK_WORK`'s claim: at most about 3 ms).
+    for stages in [1, 9] {
+        let costliest = load(&costliest_quick(stages)).unwrap();
+        let what = format!("Stage figures (bias, response), costliest quick, {stages} inv.");
+        row(&what, Some(3e-3), || {
+            black_box((costliest.bias().unwrap(), costliest.response().unwrap()));
+        });
+    }
     // The same sweep with the loop: return ratio, margins, poles, open-loop poles, step.
     keep("stability", row("loop analysis, demo, 1001 points + poles + step (with the response)", Some(3e-3), || {
         black_box(load(black_box(&wide)).unwrap().stability().unwrap());

@@ -159,7 +159,9 @@ export const workLog = (page) => page.evaluate(() => window.__work);
 // spins for `ms` before answering any message for which `predicate(message)` is true —
 // a run surely still going when a test acts on it, or (a long `ms`) a runaway call.
 // `predicate` runs in the worker, so it may use nothing from the test's scope.
+// Every run goes to a worker while it is held (`halfrailWorkersOnly`: none on the main thread).
 export const holdWorkers = (predicate, ms) => `(${(source, ms) => {
+  window.halfrailWorkersOnly = true;
   const Native = window.Blob;
   const HOLD = `;(() => {
     const inner = self.onmessage;

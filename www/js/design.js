@@ -34,7 +34,21 @@ HR.design = (() => {
     return true;
   };
 
-  const save = () => persist && HR.store.set(KEY, { draft, good });
+  // Stored at the end of the task that changed the design, once however many changes it
+  // made (an edit writes the draft, and then the panels accept it: one write, not two,
+  // and not before the figures), and at once when the page is hidden or closed.
+  let saving = false;
+  const store = () => {
+    saving = false;
+    if (persist) HR.store.set(KEY, { draft, good });
+  };
+  const save = () => {
+    if (saving) return;
+    saving = true;
+    setTimeout(() => saving && store(), 0);
+  };
+  addEventListener('pagehide', () => saving && store());
+  document.addEventListener('visibilitychange', () => document.hidden && saving && store());
 
   const plain = (v) => v !== null && typeof v === 'object' && !Array.isArray(v);
   // Why a stored value is no draft this page can use (not JSON, not a draft's shape,

@@ -99,6 +99,31 @@ HR.background = (() => {
     return worker;
   };
 
+  // A run on the main thread, answered as a worker's run is (HR.call turns errors and
+  // traps into answers): `here`, for a design whose calls the core says are quick.
+  // Nothing can cancel it, as it is over before anything could.
+  const runHere = (message) => {
+    const begun = performance.now();
+    const list = message.calls || [[message.name, message.args]];
+    const ok = [];
+    for (const [name, args] of list) {
+      const r = HR.call(name, ...args);
+      if (r.error) return settled({ error: r.error });
+      ok.push(r.ok);
+    }
+    return settled({ ok: message.calls ? ok : ok[0], ms: performance.now() - begun });
+  };
+  const settled = (answer) => ({ promise: Promise.resolve(answer), cancel() {}, end() {} });
+
+  // Whether a design's small-signal figures may be computed here: the core's check
+  // says the document is quick (a bound on the work its calls do, not a timing of
+  // earlier ones), and no test holds the workers (`halfrailWorkersOnly`, set by the
+  // e2e helper that makes worker runs spin, keeps every run in a worker).
+  const quick = (text) => {
+    const r = HR.check(text);
+    return Boolean(r.ok && r.ok.quick) && !self.halfrailWorkersOnly;
+  };
+
   const trapped = (what) => {
     const message = `The calculation engine failed in the background (${what}). Your inputs are kept; the next run starts afresh.`;
     HR.setStatus(message, true);
@@ -117,7 +142,9 @@ HR.background = (() => {
   // a later run of the lane, kept or not, does not change how an earlier one ends.
   // A kept run's worker is ended all the same when the run that supersedes it has
   // waited GRACE_MS behind it (a runaway), and by `end()` (the user's Cancel).
-  const submit = (message, entry, { lane: key = entry, onProgress = () => {}, keep = false } = {}) => {
+  // `here`: computed on the main thread at once (runHere), no worker involved.
+  const submit = (message, entry, { lane: key = entry, onProgress = () => {}, keep = false, here = false } = {}) => {
+    if (here) return runHere(message);
     if (!lanes.has(key)) lanes.set(key, { key, worker: null, job: null, unanswered: new Set(), waiting: null });
     const lane = lanes.get(key);
     if (lane.job) lane.job.cancel();
@@ -372,15 +399,16 @@ HR.background = (() => {
     };
   };
 
-  // Why every panel's figures of the design come from a worker, even the few-ms ones:
-  // a call on the main thread cannot be interrupted, so no timing of earlier calls
-  // can keep the first slow one (one edit can take the loop helper from 2 ms to a
-  // second) or a runaway from freezing the page. The price is a hop to the worker
-  // and back, 1–3 ms on the demo. QUIET is how long such a run may take before it is
+  // Why a panel's figures of the design come from a worker, even the few-ms ones: a
+  // call on the main thread cannot be interrupted, so no timing of earlier calls can
+  // keep the first slow one (one edit can take the loop helper from 2 ms to a second)
+  // or a runaway from freezing the page. The price is a hop to the worker and back,
+  // 1–3 ms on the demo. Only where the core bounds a call's work a priori (`quick`)
+  // may a panel compute here instead. QUIET is how long a run may take before it is
   // shown as running: ordinary designs answer well within it, so an edit redraws
   // with no flash of the stale marker.
   const QUIET = 120;
 
   // `started`: workers started so far, and `startedIn` by lane (the tests count them).
-  return { run, calls, follow, staleNotes, staleMarker, runBox, QUIET, started: 0, startedIn: {} };
+  return { run, calls, quick, follow, staleNotes, staleMarker, runBox, QUIET, started: 0, startedIn: {} };
 })();

@@ -191,11 +191,11 @@
       // The drawing is scaled to the card's width, down to MIN_SCALE (its labels would be
       // too small to read below that: it scrolls there instead, as .scroll shows).
       const MIN_SCALE = 0.6;
+      // The room is the width the ResizeObserver last reported: reading it from the
+      // frame on every edit would force a layout of the page in the middle of the edit.
       const frame = el('div', { class: 'scroll' }, drawing);
-      const scaleNow = () => {
-        const room = frame.clientWidth;
-        return room > 0 ? Math.min(1, Math.max(MIN_SCALE, room / HR.schematic.WIDTH)) : 1;
-      };
+      let room = 0;
+      const scaleNow = () => (room > 0 ? Math.min(1, Math.max(MIN_SCALE, room / HR.schematic.WIDTH)) : 1);
       let drawnScale = 1;
       const refresh = (error) => {
         drawnScale = scaleNow();
@@ -253,9 +253,10 @@
           (() => { const c = card('Key figures', stale, HR.health.voids(readout, ['gain', 'gt', 'band', 'zin', 'rl', 'nf']), readout); c.classList.add('wide'); return c; })(),
           target.node));
 
-      // The figures need the sweep and the operating point, both in one worker run
-      // (either error is the answer): a many-inverter part takes far longer than a
-      // frame (worker.js). The schematic shows the draft at once, whatever the run.
+      // The figures need the sweep and the operating point, both in one run (either
+      // error is the answer): on the main thread when the core calls the design quick,
+      // else in a worker (a long sweep of many inverters takes far longer than a frame;
+      // worker.js). The schematic shows the draft at once, whatever the run.
       let shownError = null;
       refresh(null);
       HR.design.onChange(() => { if (!editing && HR.ui.shown(container)) refresh(shownError); });
@@ -263,16 +264,23 @@
       // A window made narrower or wider draws it again at the scale that fits (not while
       // a value is edited in place: that would take its box away).
       new ResizeObserver(() => {
+        room = frame.clientWidth;
         if (!editing && HR.ui.shown(container) && scaleNow() !== drawnScale) refresh(shownError);
       }).observe(frame);
       const box = HR.background.runBox('key figures');
       stale.before(box.node);
       box.attach(HR.background.follow(container, {
-        job: (text) => HR.compare.along(HR.background.calls([['responseReport', [text]], ['biasOf', [text]]], { lane: 'stage', keep: true }),
+        job: (text) => HR.compare.along(HR.background.calls([['responseReport', [text]], ['biasOf', [text]]], { lane: 'stage', keep: true, here: HR.background.quick(text) }),
           [['responseReport'], ['biasOf']]),
         delay: 0, quiet: HR.background.QUIET,
         render: (ok, meta) => render({ r: ok[0], b: ok[1] }, meta),
-        report: (error) => { shownError = error; refresh(error); problem.textContent = HR.words(error); },
+        // The schematic marks the field in error: drawn again only when that changes.
+        report: (error) => {
+          const field = (e) => (e ? e.field : null);
+          if (field(error) !== field(shownError)) refresh(error);
+          shownError = error;
+          problem.textContent = HR.words(error);
+        },
         progress: box.progress,
         stale: box.stale(HR.background.staleMarker(stale, [readout])),
         when: () => !editing,
