@@ -114,6 +114,7 @@ fn documents_are_checked_the_same_as_natively() {
     let s = wasm::check_document(include_str!("../../../src/doc/demo.halfrail.json")).unwrap();
     assert_eq!(number(&s, "halfrail"), 1.0);
     assert_eq!(Array::from(&get(&s, "sections")).length(), 9);
+    assert_eq!(get(&s, "quick").as_bool(), Some(true), "the page computes the demo's Stage figures on its main thread");
 }
 
 #[wasm_bindgen_test]
