@@ -357,12 +357,13 @@ pub fn trap_for_test() {
     panic!("trapForTest: a deliberate trap");
 }
 
-/// How many trials the document's spread runs (its `tolerance.trials`, or the
-/// core's default): what the page splits between its workers.
-#[wasm_bindgen(js_name = spreadTrialCount)]
-pub fn spread_trial_count(text: &str) -> Result<u32, JsValue> {
-    let document = doc::load(text).map_err(thrown)?;
-    Ok(document.tolerances().map_err(thrown)?.trials)
+/// How the page splits the document's spread between its workers: `trials` (its
+/// `tolerance.trials`, or the core's default), and `bounds_work`, how many trials'
+/// work the swings, corners and nominal figures (`spreadBounds`) are.
+#[wasm_bindgen(js_name = spreadShares)]
+pub fn spread_shares(text: &str) -> Result<JsValue, JsValue> {
+    let plan = doc::load(text).and_then(|d| d.spread_plan()).map_err(thrown)?;
+    to_js(&wire::SpreadShares { trials: plan.trials, bounds_work: plan.bounds_work() })
 }
 
 /// Trials `from..to` of the document's spread, for splitting the Monte Carlo
@@ -374,13 +375,22 @@ pub fn spread_trials(text: &str, from: u32, to: u32, progress: &js_sys::Function
     to_js(&wire::TrialColumns(&plan.run_reporting(from as u64..to as u64, &mut reporter(progress))))
 }
 
-/// The spread report from every trial's figures (the columns `spreadTrials`
-/// returned, joined in trial order): the same as `spreadReport`.
-#[wasm_bindgen(js_name = spreadFinish)]
-pub fn spread_finish(text: &str, columns: &str) -> Result<JsValue, JsValue> {
+/// The part of the spread's summary the draws do not change: the nominal figures,
+/// the swings and the corners (the summary's keys of those names).
+#[wasm_bindgen(js_name = spreadBounds)]
+pub fn spread_bounds(text: &str) -> Result<JsValue, JsValue> {
+    let plan = doc::load(text).and_then(|d| d.spread_plan()).map_err(thrown)?;
+    to_js(&wire::SpreadBoundsOut(&plan.bounds().map_err(thrown)?))
+}
+
+/// The statistics of every trial's figures (the columns `spreadTrials` returned,
+/// joined in trial order): the rest of the summary's keys. With `spreadBounds`'
+/// keys, the summary `spreadReport` gives.
+#[wasm_bindgen(js_name = spreadStatistics)]
+pub fn spread_statistics(text: &str, columns: &str) -> Result<JsValue, JsValue> {
     let plan = doc::load(text).and_then(|d| d.spread_plan()).map_err(thrown)?;
     let trials = wire::trials_from_columns(columns).map_err(thrown)?;
-    to_js(&wire::SpreadReport(&plan.finish(trials).map_err(thrown)?))
+    to_js(&wire::SpreadStatistics(&plan.summary(&trials)))
 }
 
 /// The document's stage as a chain block (gain, NF, OIP3, OP1dB, DC power): the

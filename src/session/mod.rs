@@ -384,10 +384,30 @@ impl SpreadPlan {
 
     /// The statistics of `trials` (all of them, in order), with swings and corners.
     pub fn finish(&self, trials: Vec<crate::analysis::spread::Trial>) -> Result<SpreadResult> {
-        use crate::analysis::spread::{corners, summarise, swings};
+        let SpreadBounds { nominal, swings, corners } = self.bounds()?;
+        Ok(SpreadResult { nominal, summary: self.summary(&trials), swings, corners, trials })
+    }
+
+    /// The statistics of `trials` (all of them, in order) against the limits.
+    pub fn summary(&self, trials: &[crate::analysis::spread::Trial]) -> crate::analysis::spread::Summary {
+        crate::analysis::spread::summarise(trials, &self.limits)
+    }
+
+    /// What the draws do not change: the nominal design's figures, each quantity's
+    /// swing and the worst-case corners. It is the work of `bounds_work` trials, so
+    /// the page runs it beside the trials of one of its workers.
+    pub fn bounds(&self) -> Result<SpreadBounds> {
+        use crate::analysis::spread::{corners, swings};
         let swings = at_field(swings(&self.part, &self.stage, &self.setup, &self.tolerance))?;
         let corners = at_field(corners(&self.part, &self.stage, &self.setup, &self.tolerance, &swings))?;
-        Ok(SpreadResult { nominal: at_field(self.setup.figures(&self.part, &self.stage))?, summary: summarise(&trials, &self.limits), swings, corners, trials })
+        Ok(SpreadBounds { nominal: at_field(self.setup.figures(&self.part, &self.stage))?, swings, corners })
+    }
+
+    /// How many trials' work `bounds` is: the figures evaluated at the nominal design,
+    /// at each quantity's two central-difference steps and at each figure's two corners.
+    pub fn bounds_work(&self) -> u64 {
+        let quantities = crate::analysis::spread::Quantity::all(&self.stage).len();
+        (1 + 2 * quantities + 2 * crate::analysis::spread::Figure::ALL.len()) as u64
     }
 }
 
@@ -400,6 +420,14 @@ pub struct SpreadResult {
     pub corners: Vec<crate::analysis::spread::Corner>,
     /// Every trial's figures (the histograms).
     pub trials: Vec<crate::analysis::spread::Trial>,
+}
+
+/// The part of a spread the draws do not change (`SpreadPlan::bounds`).
+#[derive(Debug, Clone, PartialEq)]
+pub struct SpreadBounds {
+    pub nominal: crate::analysis::spread::Trial,
+    pub swings: Vec<crate::analysis::spread::Swing>,
+    pub corners: Vec<crate::analysis::spread::Corner>,
 }
 
 /// GT and NF of a chain block from its design point; `missing` words what the

@@ -27,7 +27,7 @@ pub use results::{
     PresetsOut, RatioPairsOut, ResponseReport, SeriesFacts, ValueInUnit,
 };
 pub use sheet::SheetPage;
-pub use spread::{trials_from_columns, SpreadReport, SpreadSummary, TrialColumns};
+pub use spread::{trials_from_columns, SpreadBoundsOut, SpreadReport, SpreadShares, SpreadStatistics, SpreadSummary, TrialColumns};
 pub use stability::{LoopReport, LoopSummary, SuggestionOut};
 pub use swing::{LargeSummary, SwingReport};
 

@@ -2,14 +2,15 @@
 //! tests outside the project use: `trials`, each figure's `mean`, `std`, `min`,
 //! `max`, `p1`, `p99`, and `yield`; `oscillating` counts the trials whose closed
 //! loop grows, which fail the yield), `SpreadReport` adds every trial for the
-//! Spread panel's histograms.
+//! Spread panel's histograms; `SpreadStatistics` and `SpreadBoundsOut` are the
+//! summary's two halves, which the page's workers compute apart.
 
 use serde::ser::{SerializeStruct, Serializer};
 use serde::Serialize;
 
-use crate::analysis::spread::{Corner, Figure, Quantity, Stats, Swing, Trial};
+use crate::analysis::spread::{Corner, Figure, Quantity, Stats, Summary, Swing, Trial};
 use crate::doc::read::Key;
-use crate::session::SpreadResult;
+use crate::session::{SpreadBounds, SpreadResult};
 
 impl Figure {
     /// The figure's name on the wire: its statistics and its column of trials
@@ -87,14 +88,39 @@ struct CornerDef {
 #[serde(transparent)]
 struct CornerOut<'a>(#[serde(with = "CornerDef")] &'a Corner);
 
-/// `halfrail spread` output.
+/// `halfrail spread` output: the statistics and the bounds side by side.
 #[derive(Clone, Copy, Serialize)]
 #[serde(into = "SummaryForm<'a>")]
 pub struct SpreadSummary<'a>(pub &'a SpreadResult);
 
-/// Each figure's statistics sit among the summary's own keys, under the figure's key.
 #[derive(Serialize)]
 struct SummaryForm<'a> {
+    #[serde(flatten)]
+    stats: StatsForm<'a>,
+    #[serde(flatten)]
+    bounds: BoundsForm<'a>,
+}
+
+impl<'a> From<SpreadSummary<'a>> for SummaryForm<'a> {
+    fn from(SpreadSummary(r): SpreadSummary<'a>) -> Self {
+        SummaryForm { stats: StatsForm::of(&r.summary), bounds: BoundsForm::of(&r.nominal, &r.swings, &r.corners) }
+    }
+}
+
+/// The statistics of a spread's trials alone (`SpreadPlan::summary`), as in the summary.
+#[derive(Clone, Copy, Serialize)]
+#[serde(into = "StatsForm<'a>")]
+pub struct SpreadStatistics<'a>(pub &'a Summary);
+
+impl<'a> From<SpreadStatistics<'a>> for StatsForm<'a> {
+    fn from(SpreadStatistics(s): SpreadStatistics<'a>) -> Self {
+        StatsForm::of(s)
+    }
+}
+
+/// Each figure's statistics sit among the summary's own keys, under the figure's key.
+#[derive(Serialize)]
+struct StatsForm<'a> {
     trials: usize,
     #[serde(rename = "yield")]
     yield_fraction: Option<f64>,
@@ -102,6 +128,33 @@ struct SummaryForm<'a> {
     oscillating: usize,
     #[serde(flatten, serialize_with = "by_figure")]
     stats: Vec<Option<StatsOut<'a>>>,
+}
+
+impl<'a> StatsForm<'a> {
+    fn of(s: &'a Summary) -> Self {
+        StatsForm {
+            trials: s.trials,
+            yield_fraction: s.yield_fraction,
+            unsolved: s.unsolved,
+            oscillating: s.oscillating,
+            stats: s.stats.iter().map(|s| s.as_ref().map(StatsOut)).collect(),
+        }
+    }
+}
+
+/// What the draws do not change (`SpreadPlan::bounds`), as in the summary.
+#[derive(Clone, Copy, Serialize)]
+#[serde(into = "BoundsForm<'a>")]
+pub struct SpreadBoundsOut<'a>(pub &'a SpreadBounds);
+
+impl<'a> From<SpreadBoundsOut<'a>> for BoundsForm<'a> {
+    fn from(SpreadBoundsOut(b): SpreadBoundsOut<'a>) -> Self {
+        BoundsForm::of(&b.nominal, &b.swings, &b.corners)
+    }
+}
+
+#[derive(Serialize)]
+struct BoundsForm<'a> {
     #[serde(serialize_with = "by_figure")]
     nominal: &'a [Option<f64>],
     nominal_oscillates: bool,
@@ -109,19 +162,13 @@ struct SummaryForm<'a> {
     corners: Vec<CornerOut<'a>>,
 }
 
-impl<'a> From<SpreadSummary<'a>> for SummaryForm<'a> {
-    fn from(SpreadSummary(r): SpreadSummary<'a>) -> Self {
-        let s = &r.summary;
-        SummaryForm {
-            trials: s.trials,
-            yield_fraction: s.yield_fraction,
-            unsolved: s.unsolved,
-            oscillating: s.oscillating,
-            stats: s.stats.iter().map(|s| s.as_ref().map(StatsOut)).collect(),
-            nominal: &r.nominal.values,
-            nominal_oscillates: r.nominal.oscillates(),
-            swings: r.swings.iter().map(SwingOut).collect(),
-            corners: r.corners.iter().map(CornerOut).collect(),
+impl<'a> BoundsForm<'a> {
+    fn of(nominal: &'a Trial, swings: &'a [Swing], corners: &'a [Corner]) -> Self {
+        BoundsForm {
+            nominal: &nominal.values,
+            nominal_oscillates: nominal.oscillates(),
+            swings: swings.iter().map(SwingOut).collect(),
+            corners: corners.iter().map(CornerOut).collect(),
         }
     }
 }
@@ -185,4 +232,11 @@ impl<'a> From<SpreadReport<'a>> for ReportForm<'a> {
     fn from(SpreadReport(r): SpreadReport<'a>) -> Self {
         ReportForm { summary: SpreadSummary(r), trials: TrialColumns(&r.trials) }
     }
+}
+
+/// How the page splits a spread between its workers (`spreadShares`).
+#[derive(Serialize)]
+pub struct SpreadShares {
+    pub trials: u64,
+    pub bounds_work: u64,
 }

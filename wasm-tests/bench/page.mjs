@@ -132,7 +132,7 @@ for (let i = 0; i < RUNS; i++) {
 
 // The Spread panel's run through the page's own worker facility (HR.spread.run, on
 // HR.background): the demo's 2000 trials in one worker (spreadReport), and split between
-// two (spreadTrials on two lanes, then spreadFinish), from the call to the report in
+// two (spreadTrials on two lanes, the second with spreadBounds, then spreadStatistics), from the call to the report in
 // hand; the workers are kept between runs, so two warm-up runs first, then the median of 5.
 const workerPage = await browser.context.newPage();
 await workerPage.goto(PAGE_URL + '#bench');

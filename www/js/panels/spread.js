@@ -1,8 +1,8 @@
 'use strict';
 // Spread: what the parts' tolerances do to the stage. The core's Monte Carlo runs in
-// the background, its trials split between two workers (spreadTrials on two lanes),
-// the two halves' columns joined in trial order and summarised by spreadFinish in a
-// worker too: histograms of the figures, the yield against the target's limits, how
+// the background, its trials split between two workers (spreadTrials on two lanes, the
+// second with the swings and corners, spreadBounds), the columns joined in trial order
+// and summarised by spreadStatistics in a worker too: histograms of the figures, the yield against the target's limits, how
 // far each part's tolerance moves each figure (which part to buy tighter), the
 // worst-case corners, and the tolerances themselves (in the design, undoable).
 
@@ -24,35 +24,41 @@
   const partName = (key) => (HR.fieldAt(`stage.${key}`) || HR.fieldAt(`part.${key}`) || { name: key }).name;
   const TOLERANCES = ['resistor_pct', 'capacitor_pct', 'vdd_pct', 'k_pct', 'vt_mv', 'trials', 'seed'];
   // Runs the spread of `text` in the background → {promise, cancel()}, as HR.background.run.
-  // Two lanes: the trials in halves on two workers, then spreadFinish on the first;
-  // one lane: spreadReport in one worker.
+  // Two lanes: the trials split between two workers, the second also computing the
+  // bounds (the nominal figures, swings and corners, which the draws do not change)
+  // with fewer trials, so that both finish together; then spreadStatistics of the
+  // joined columns on the first. The summary is the statistics' keys and the bounds'.
+  // One lane: spreadReport in one worker.
   const run = (text, onProgress = () => {}, lanes = 2) => {
     const go = (name, args, lane, progress = () => {}) => HR.background.run(name, args, { lane, onProgress: progress });
     if (lanes === 1) return go('spreadReport', [text], 'spread-1', onProgress);
     const begun = performance.now();
-    const counted = HR.call('spreadTrialCount', text);
-    if (counted.error) return { promise: Promise.resolve({ error: counted.error }), cancel() {} };
-    const n = counted.ok;
-    const half = Math.ceil(n / 2);
+    const shares = HR.call('spreadShares', text);
+    if (shares.error) return { promise: Promise.resolve({ error: shares.error }), cancel() {} };
+    const { trials: n, bounds_work: bounds } = shares.ok;
+    const split = Math.min(n, Math.ceil((n + bounds) / 2));
     const done = [0, 0];
     let stopped = false;
-    let runs = [[0, half], [half, n]].map(([from, to], i) => go('spreadTrials', [text, from, to], `spread-${i}`, (p) => {
-      done[i] = p * (to - from);
+    const progress = (i, count) => (p) => {
+      done[i] = p * count;
       onProgress((0.9 * (done[0] + done[1])) / n);
-    }));
+    };
+    let runs = [
+      go('spreadTrials', [text, 0, split], 'spread-0', progress(0, split)),
+      HR.background.calls([['spreadTrials', [text, split, n]], ['spreadBounds', [text]]], { lane: 'spread-1', onProgress: progress(1, n - split) }),
+    ];
     const promise = (async () => {
-      const halves = await Promise.all(runs.map((r) => r.promise));
-      const bad = halves.find((h) => h.error) || halves.find((h) => !h.ok);
+      const [first, second] = await Promise.all(runs.map((r) => r.promise));
+      const bad = [first, second].find((h) => h.error) || [first, second].find((h) => !h.ok);
       if (bad || stopped) return bad || { cancelled: true };
-      const joined = {};
-      for (const key of Object.keys(halves[0].ok)) joined[key] = halves[0].ok[key].concat(halves[1].ok[key]);
-      runs = [go('spreadFinish', [text, JSON.stringify(joined)], 'spread-0')];
+      const [rest, bounds] = second.ok;
+      const trials = {};
+      for (const key of Object.keys(first.ok)) trials[key] = first.ok[key].concat(rest[key]);
+      runs = [go('spreadStatistics', [text, JSON.stringify(trials)], 'spread-0')];
       const r = await runs[0].promise;
-      if (r.ok) {
-        onProgress(1);
-        r.ms = performance.now() - begun;
-      }
-      return r;
+      if (!r.ok) return r;
+      onProgress(1);
+      return { ok: { summary: { ...r.ok, ...bounds }, trials }, ms: performance.now() - begun };
     })();
     return { promise, cancel() { stopped = true; runs.forEach((r) => r.cancel()); } };
   };
