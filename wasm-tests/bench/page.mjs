@@ -158,14 +158,16 @@ await workerPage.close();
 // Stage panel (its figures and schematic) and on the Swing panel (issue 17: the
 // whole large-signal analysis). Two times each: to the frame that first finds the
 // figures counted (polled every frame, so a result that comes from a worker is seen
-// at the next frame), and to the moment they are counted, drawn in the DOM (`exact`).
+// at the next frame), and to the moment they are counted, drawn in the DOM (`exact`);
+// and which frame after the edit first shows them (`frames`: 1, the next, is the best
+// there is; its time in ms is mostly where in a frame the edit fell).
 const editTimes = async (panelId) => {
   const editPage = await browser.context.newPage();
   await editPage.goto(PAGE_URL + '#' + panelId);
   await editPage.waitForSelector(`#panel-${panelId}[data-computed]`);
   const times = await editPage.evaluate(async (panelId) => {
     const panel = document.getElementById(`panel-${panelId}`);
-    const out = { edits: [], exact: [] };
+    const out = { edits: [], exact: [], frames: [] };
     for (let i = 0; i < 40; i++) {
       const n = Number(panel.dataset.computed);
       let counted = null;
@@ -175,11 +177,15 @@ const editTimes = async (panelId) => {
       HR.design.set('stage', 'r_fb_ohm', i % 2 ? '2k2' : '2k4', 'bench');
       // The panel recomputes in a microtask after the edit; wait for that, then for frames if need be.
       await Promise.resolve();
+      let frames = 0;
       await new Promise((resolve) => {
-        const poll = () => (Number(panel.dataset.computed) > n ? resolve() : requestAnimationFrame(poll));
+        const poll = () => (Number(panel.dataset.computed) > n ? resolve() : requestAnimationFrame(() => { frames += 1; poll(); }));
         poll();
       });
       out.edits.push(performance.now() - t0);
+      // The frame that first shows the figures: 1 when they are in before the next one
+      // (the frame's time after the edit is where in its 16.7 ms the edit fell).
+      out.frames.push(Math.max(1, frames));
       seen.takeRecords();
       seen.disconnect();
       out.exact.push((counted === null ? performance.now() : counted) - t0);
@@ -189,7 +195,7 @@ const editTimes = async (panelId) => {
   await editPage.close();
   return times;
 };
-const { edits, exact } = await editTimes('stage');
+const { edits, exact, frames } = await editTimes('stage');
 const swingEdits = await editTimes('swing');
 
 // The heap after a tour of every panel (issue 17: ≤ 64 MB): each panel of the rail
@@ -229,6 +235,7 @@ await browser.close();
 const heapMb = (heap.js + heap.wasm) / 2 ** 20;
 const pct95 = (xs) => [...xs].sort((a, b) => a - b)[Math.floor(0.95 * xs.length)];
 const p95 = pct95(edits);
+const framesP95 = pct95(frames);
 const p95exact = pct95(exact);
 const swingP95 = pct95(swingEdits.edits);
 const swingP95exact = pct95(swingEdits.exact);
@@ -271,7 +278,8 @@ const rows = [
   ['page: spread, 2000 trials, two workers (demo)', `${spreadWorkers[2].toFixed(0)} ms`, `≤ 50 ms (${(spreadWorkers[1] / spreadWorkers[2]).toFixed(2)}× one worker)`, spreadWorkers[2] <= 50],
   [`heap after a tour of the panels (page + ${heap.workers} workers)`, `${heapMb.toFixed(1)} MB`, '≤ 64 MB', heapMb <= 64],
   ['  of which JS heaps / wasm memories', `${(heap.js / 2 ** 20).toFixed(1)} / ${(heap.wasm / 2 ** 20).toFixed(1)} MB`, '', null],
-  ['Stage edit to redrawn figures, 95th percentile of 40', `${p95.toFixed(1)} ms`, '≤ 16 ms (one frame)', p95 <= 16],
+  ['Stage edit to redrawn figures, 95th percentile of 40', `${p95.toFixed(1)} ms`, '', null],
+  ['Stage edit: the frame that first shows the figures, p95', `frame ${framesP95}`, 'the next one', framesP95 <= 1],
   ['Stage edit to figures in the DOM, 95th percentile', `${p95exact.toFixed(1)} ms`, '≤ 5.3 ms (issue 15)', p95exact <= 5.3],
   ['Swing shown: edit to redrawn figures, p95 of 40', `${swingP95.toFixed(1)} ms`, '', null],
   ['Swing shown: edit to figures in the DOM, p95', `${swingP95exact.toFixed(1)} ms`, '', null],
