@@ -315,13 +315,13 @@ impl Linearised {
     /// 0.1 %. `None` when the gain holds down to a millihertz (a DC-coupled stage).
     pub fn edge_below(&self, f_design: f64) -> Result<Option<f64>> {
         let level = math::norm(self.av(f_design)?) / std::f64::consts::SQRT_2;
-        edge_from(f_design, level, 0.5, 1e-3, &|f| Ok(math::norm(self.av(f)?)))
+        EdgeSearch::stepping(f_design, level, 0.5, 1e-3).run(&|f| Ok(math::norm(self.av(f)?)))
     }
 
     /// The upper edge the same way, doubling up to 1 THz.
     pub fn edge_above(&self, f_design: f64) -> Result<Option<f64>> {
         let level = math::norm(self.av(f_design)?) / std::f64::consts::SQRT_2;
-        edge_from(f_design, level, 2.0, 1e12, &|f| Ok(math::norm(self.av(f)?)))
+        EdgeSearch::stepping(f_design, level, 2.0, 1e12).run(&|f| Ok(math::norm(self.av(f)?)))
     }
 
     /// Both edges, as `edge_below` and `edge_above` give them, from Av at f_design
@@ -329,28 +329,54 @@ impl Linearised {
     /// solve). The search's samples come from the Hessenberg form, several times
     /// cheaper than `av`'s LU, as the search needs only their side of the level;
     /// one within `EDGE_GUARD` of it (or one the form cannot solve) is `av`'s, so
-    /// every step chooses as on `av`'s samples and the edges are the same.
+    /// every step chooses as on `av`'s samples and the edges are the same. The two
+    /// searches go side by side, their samples solved together (`edge_samples`):
+    /// the form's solve is a chain of divisions that waits on itself, and several
+    /// frequencies at once fill the wait (the demo spread's edges: 34 solves one
+    /// by one, 12 batches side by side).
     pub fn edges(&self, f_design: f64, av_design: Complex64) -> Result<(Option<f64>, Option<f64>)> {
         let level = math::norm(av_design) / std::f64::consts::SQRT_2;
         let (main, nodes) = (&self.main, &self.circuit.nodes);
-        let sweep = match (main.layout.index(nodes.input), main.layout.index(nodes.output)) {
+        let mut sweep = match (main.layout.index(nodes.input), main.layout.index(nodes.output)) {
             (Some(i), Some(o)) => HessenbergSweep::new(&main.g, &main.c, &main.b, &[i, o]),
             _ => None,
         };
-        let sweep = RefCell::new(sweep);
-        let gain = |f: f64| -> Result<f64> {
-            if let Some(s) = sweep.borrow_mut().as_mut() {
-                let mut v = [Complex64::default(); 2];
-                if s.solve(std::f64::consts::TAU * f, &mut v) {
-                    let g = math::norm(v[1] / v[0]);
-                    if g.is_finite() && (g / level - 1.0).abs() > EDGE_GUARD {
-                        return Ok(g);
+        let mut searches = [EdgeSearch::stepping(f_design, level, 0.5, 1e-3), EdgeSearch::stepping(f_design, level, 2.0, 1e12)];
+        // A search that met an error stops there; the lower one's error is the
+        // answer, as when the searches ran one after the other.
+        let mut failed: [Option<crate::error::FieldError>; 2] = [None, None];
+        let mut asks = [[0.0; AHEAD]; 2];
+        loop {
+            let counts: [usize; 2] = std::array::from_fn(|k| if failed[k].is_none() { searches[k].ahead(&mut asks[k]) } else { 0 });
+            if counts == [0, 0] {
+                break;
+            }
+            let mut freqs = [0.0; 2 * AHEAD];
+            freqs[..counts[0]].copy_from_slice(&asks[0][..counts[0]]);
+            freqs[counts[0]..counts[0] + counts[1]].copy_from_slice(&asks[1][..counts[1]]);
+            let mut samples = [None; 2 * AHEAD];
+            edge_samples(sweep.as_mut(), &freqs[..counts[0] + counts[1]], level, &mut samples);
+            for k in 0..2 {
+                let offset = if k == 0 { 0 } else { counts[0] };
+                for (&f, &sample) in asks[k][..counts[k]].iter().zip(&samples[offset..]) {
+                    // A step asked ahead is not needed once an earlier one fell below the level.
+                    if searches[k].next() != Some(f) {
+                        break;
+                    }
+                    match sample.map_or_else(|| self.av(f).map(math::norm), Ok) {
+                        Ok(gain) => searches[k].answer(gain),
+                        Err(e) => {
+                            failed[k] = Some(e);
+                            break;
+                        }
                     }
                 }
             }
-            Ok(math::norm(self.av(f)?))
-        };
-        Ok((edge_from(f_design, level, 0.5, 1e-3, &gain)?, edge_from(f_design, level, 2.0, 1e12, &gain)?))
+        }
+        match failed {
+            [Some(e), _] | [None, Some(e)] => Err(e),
+            [None, None] => Ok((searches[0].edge(), searches[1].edge())),
+        }
     }
 
     /// Each noise source's share of the output noise at `f_hz`, largest first: (name, fraction).
@@ -432,32 +458,123 @@ fn integrated_noise(lin: &Linearised, c: &Components, low: f64, high: f64) -> Re
 /// sample: far above the Hessenberg form's rounding (~10⁻¹² of |Av|).
 const EDGE_GUARD: f64 = 1e-6;
 
-/// A band edge: stepping from `f_design` by `factor` (to `limit`) until |Av|, given
-/// by `gain`, falls below `level`, then refined. `None` when it never does.
-fn edge_from(f_design: f64, level: f64, factor: f64, limit: f64, gain: &impl Fn(f64) -> Result<f64>) -> Result<Option<f64>> {
-    let mut f = f_design;
-    while (factor < 1.0 && f > limit) || (factor > 1.0 && f < limit) {
-        let next = f * factor;
-        if gain(next)? < level {
-            return refine_edge(gain, level, f, next).map(Some);
-        }
-        f = next;
+/// Steps of a band edge's search asked for ahead: up to this many of each search in
+/// one batch of the Hessenberg form's solves (its lanes take eight).
+const AHEAD: usize = 4;
+
+/// |Av| at each of `freqs` (at most `2·AHEAD`) from the Hessenberg form, into
+/// `out`: `None` where it cannot say (no form, not solved, not finite, or within
+/// `EDGE_GUARD` of `level`), there `av`'s sample is taken. One frequency is one
+/// solve, two one `solve_two`, more one `solve_many`: the same bits each way.
+fn edge_samples(sweep: Option<&mut HessenbergSweep>, freqs: &[f64], level: f64, out: &mut [Option<f64>]) {
+    out.fill(None);
+    let Some(sweep) = sweep else { return };
+    let mut v = [Complex64::default(); 4 * AHEAD];
+    let mut ok = [false; 2 * AHEAD];
+    let mut omegas = [0.0; 2 * AHEAD];
+    for (w, &f) in omegas.iter_mut().zip(freqs) {
+        *w = std::f64::consts::TAU * f;
     }
-    Ok(None)
+    let omegas = &omegas[..freqs.len()];
+    match omegas.len() {
+        1 => ok[0] = sweep.solve(omegas[0], &mut v[..2]),
+        2 => {
+            let mut pair = [[Complex64::default(); 2]; 2];
+            ok[..2].copy_from_slice(&sweep.solve_two([omegas[0], omegas[1]], &mut pair));
+            for l in 0..2 {
+                (v[2 * l], v[2 * l + 1]) = (pair[0][l], pair[1][l]);
+            }
+        }
+        n => sweep.solve_many(omegas, &mut v[..2 * n], &mut ok[..n]),
+    }
+    for (k, o) in out.iter_mut().enumerate().take(freqs.len()) {
+        let g = math::norm(v[2 * k + 1] / v[2 * k]);
+        *o = (ok[k] && g.is_finite() && (g / level - 1.0).abs() > EDGE_GUARD).then_some(g);
+    }
 }
 
-/// Refines a band edge between two frequencies that bracket the level, by bisection
-/// in log frequency to 0.1 %.
-fn refine_edge(gain: &impl Fn(f64) -> Result<f64>, level: f64, mut inside: f64, mut outside: f64) -> Result<f64> {
-    while (outside / inside - 1.0).abs() > 1e-3 {
-        let mid = (inside * outside).sqrt();
-        if gain(mid)? >= level {
-            inside = mid;
-        } else {
-            outside = mid;
+/// A band edge's search, one sample at a time (so that two can share their solves):
+/// stepping from f_design by `factor` (to `limit`) until |Av| falls below `level`,
+/// then bisecting in log frequency to 0.1 %.
+#[derive(Debug, Clone, Copy)]
+struct EdgeSearch {
+    level: f64,
+    factor: f64,
+    limit: f64,
+    phase: Phase,
+}
+
+#[derive(Debug, Clone, Copy)]
+enum Phase {
+    /// |Av| is above the level up to here; on by `factor`.
+    Stepping(f64),
+    /// The edge lies between (inside, outside).
+    Bisecting(f64, f64),
+}
+
+impl EdgeSearch {
+    fn stepping(f_design: f64, level: f64, factor: f64, limit: f64) -> Self {
+        EdgeSearch { level, factor, limit, phase: Phase::Stepping(f_design) }
+    }
+
+    /// A search that starts from a bracket, `inside` the band and `outside` it.
+    fn bisecting(level: f64, inside: f64, outside: f64) -> Self {
+        EdgeSearch { level, factor: 1.0, limit: inside, phase: Phase::Bisecting(inside, outside) }
+    }
+
+    /// The frequency it needs |Av| at next (`None`: done).
+    fn next(&self) -> Option<f64> {
+        match self.phase {
+            Phase::Stepping(f) => ((self.factor < 1.0 && f > self.limit) || (self.factor > 1.0 && f < self.limit)).then(|| f * self.factor),
+            Phase::Bisecting(inside, outside) => ((outside / inside - 1.0).abs() > 1e-3).then(|| (inside * outside).sqrt()),
         }
     }
-    Ok((inside * outside).sqrt())
+
+    /// The frequencies it needs next as far as they are known, into `out`: the steps
+    /// ahead (each needed until one falls below the level), or the next midpoint.
+    /// How many.
+    fn ahead(&self, out: &mut [f64]) -> usize {
+        let mut at = *self;
+        for (n, o) in out.iter_mut().enumerate() {
+            let Some(f) = at.next() else { return n };
+            *o = f;
+            match at.phase {
+                Phase::Stepping(_) => at.phase = Phase::Stepping(f),
+                Phase::Bisecting(..) => return n + 1,
+            }
+        }
+        out.len()
+    }
+
+    /// Takes |Av| at `next()`.
+    fn answer(&mut self, gain: f64) {
+        self.phase = match self.phase {
+            Phase::Stepping(f) => {
+                let next = f * self.factor;
+                if gain < self.level { Phase::Bisecting(f, next) } else { Phase::Stepping(next) }
+            }
+            Phase::Bisecting(inside, outside) => {
+                let mid = (inside * outside).sqrt();
+                if gain >= self.level { Phase::Bisecting(mid, outside) } else { Phase::Bisecting(inside, mid) }
+            }
+        };
+    }
+
+    /// The edge once `next()` is `None` (`None` when the steps never passed the level).
+    fn edge(&self) -> Option<f64> {
+        match self.phase {
+            Phase::Stepping(_) => None,
+            Phase::Bisecting(inside, outside) => Some((inside * outside).sqrt()),
+        }
+    }
+
+    /// The search to its end, |Av| from `gain`.
+    fn run(mut self, gain: &impl Fn(f64) -> Result<f64>) -> Result<Option<f64>> {
+        while let Some(f) = self.next() {
+            self.answer(gain(f)?);
+        }
+        Ok(self.edge())
+    }
 }
 
 /// The stage's response over `freqs`, with the design figures at `f_design`, and the
@@ -476,11 +593,11 @@ pub fn response_of(lin: &Linearised, c: &Components, f_design: f64, freqs: &[f64
     let below = (0..split).rev().find(|&i| math::norm(points[i].av) < level);
     let above = (split..points.len()).find(|&i| math::norm(points[i].av) < level);
     let f_low_hz = match below {
-        Some(i) => Some(refine_edge(&gain, level, if i + 1 < split { freqs[i + 1] } else { f_design }, freqs[i])?),
+        Some(i) => EdgeSearch::bisecting(level, if i + 1 < split { freqs[i + 1] } else { f_design }, freqs[i]).run(&gain)?,
         None => None,
     };
     let f_high_hz = match above {
-        Some(i) => Some(refine_edge(&gain, level, if i > split { freqs[i - 1] } else { f_design }, freqs[i])?),
+        Some(i) => EdgeSearch::bisecting(level, if i > split { freqs[i - 1] } else { f_design }, freqs[i]).run(&gain)?,
         None => None,
     };
     // Av is taken at the input pin, so the ideal ratio is −r_fb/r_in alone: with r_in
