@@ -189,11 +189,14 @@ test('the line and the Brief figures are computed in workers, never on the page\
     await page.waitForSelector('#panel-stage input.in-place', { state: 'detached' });
   }
   await recomputed(page, line0);
+  // Stage computes its own figures (responseReport too) on this thread for a quick
+  // design: the Brief's are counted from when it is shown again.
+  const lineCalls = await page.evaluate(() => window.__mainCalls.splice(0));
   await page.locator('#rail a[data-panel="brief"]').click();
   await page.waitForFunction((n) => Number(document.getElementById('panel-brief').dataset.computed) > n, brief0);
   await page.waitForSelector('#health[data-follow="settled"]');
   const calls = await page.evaluate(() => window.__mainCalls);
-  assert.ok(!calls.includes('health') && !calls.includes('responseReport'), calls.join());
+  assert.ok(!lineCalls.includes('health') && !calls.includes('health') && !calls.includes('responseReport'), [...lineCalls, '|', ...calls].join());
   assert.equal(await page.evaluate(() => HR.background.startedIn.health), 1, 'one worker for the line');
   assert.ok(await page.evaluate(() => HR.background.startedIn.brief) >= 1, 'the Brief figures in a worker');
   assert.deepEqual(await line(page), { state: 'caution', stale: false, quiet: null, findings: (await expected(page)).findings.map(({ code, severity, topic, text, link }) => ({ code, severity, topic, text, link })) });

@@ -64,7 +64,9 @@ HR.health = (() => {
         name: 'health',
         args: (text) => [text],
         keep: true,
-        delay: 0,
+        // Posted in a task of its own after the edit, not within it: the panel on show
+        // computes its figures first (Stage's, on the main thread, wait for nothing).
+        delay: 1,
         quiet: HR.background.QUIET,
         progress: () => {},
         render,

@@ -61,10 +61,13 @@ HR.schematic = (() => {
     U = GRID * scale;
     const width = 52 * U;
     const height = 14 * U;
-    canvas.width = width * ratio;
-    canvas.height = height * ratio;
-    canvas.style.width = `${width}px`;
-    canvas.style.height = `${height}px`;
+    // A canvas given its size again is made afresh (a new bitmap): only when it changes.
+    if (canvas.width !== width * ratio || canvas.height !== height * ratio) {
+      canvas.width = width * ratio;
+      canvas.height = height * ratio;
+      canvas.style.width = `${width}px`;
+      canvas.style.height = `${height}px`;
+    }
     const ctx = canvas.getContext('2d');
     ctx.setTransform(ratio, 0, 0, ratio, 0, 0);
     ctx.clearRect(0, 0, width, height);
@@ -72,6 +75,7 @@ HR.schematic = (() => {
     ctx.strokeStyle = ink;
     ctx.fillStyle = ink;
     ctx.lineWidth = Math.max(1, 1.6 * scale);
+    ctx.textAlign = 'start'; // the rest of the state the last draw left is set where used
     const anchors = [];
     const anchor = (key, x, y) => anchors.push({ key, x: x * U, y: y * U, text: text(key) });
     const series = (key, kind, from, to) => {

@@ -178,9 +178,12 @@
           const again = overlay.querySelector(`[data-key="${key}"]`);
           if (again) again.focus();
         };
+        // The key's own action is stopped: focus is back on the value's button by then,
+        // and Enter's would press it, opening the box again.
         input.addEventListener('keydown', (e) => {
-          if (e.key === 'Enter') finish(true);
-          if (e.key === 'Escape') finish(false);
+          if (e.key !== 'Enter' && e.key !== 'Escape') return;
+          e.preventDefault();
+          finish(e.key === 'Enter');
         });
         input.addEventListener('blur', () => finish(true));
         overlay.append(input);
