@@ -3,7 +3,7 @@
 // component with the last figures kept.
 import { test, before, after, beforeEach } from 'node:test';
 import assert from 'node:assert/strict';
-import { launch, clearStorage, openPanel, undoButton, redoButton } from './browser.mjs';
+import { launch, clearStorage, openPanel, undoButton, redoButton, cli } from './browser.mjs';
 
 let browser;
 before(async () => { browser = await launch(); });
@@ -89,5 +89,37 @@ test('a component is reached from the keyboard, and a bad value is refused at it
   await page.locator('#panel-stage input.in-place').fill('1p');
   await page.keyboard.press('Enter');
   await page.waitForSelector('#panel-stage button.value[data-key="c_fb_f"]:not(.ghost)');
+  await page.close();
+});
+
+// A design the core calls quick (checkDocument's `quick`: a bound on the work, not a
+// timing) has its figures computed on the page's thread at once, with no worker: in
+// the DOM before the edit's task is over. A long sweep of nine inverters is not
+// quick: its figures come from a worker, and a quick design afterwards computes here
+// again. Both give what the CLI gives.
+test('a quick design computes its figures at once on the page; a long sweep of nine inverters in a worker', async () => {
+  const { page, seen } = await openPanel(browser.context, 'stage');
+  const edit = (section, key, v) => page.evaluate(([s, k, v]) => {
+    const panel = document.getElementById('panel-stage');
+    const n = Number(panel.dataset.computed);
+    HR.design.set(s, k, v, 'test');
+    // The edit's microtasks have run by the next task: a quick run is over by then.
+    return new Promise((resolve) => setTimeout(() => resolve({
+      at: Number(panel.dataset.computed) - n, quick: HR.check(HR.design.text()).ok.quick, workers: HR.background.startedIn.stage || 0,
+    }), 0));
+  }, [section, key, v]);
+  assert.deepEqual(await edit('stage', 'r_fb_ohm', '3k3'), { at: 1, quick: true, workers: 0 });
+  assert.match(await figure(page, 'gain'), new RegExp(`^${cli('analyze', await page.evaluate(() => HR.design.text())).ac.gain_db.toFixed(2)} dB`));
+
+  await edit('part', 'stages', 9);
+  const slow = await edit('analysis', 'points_per_decade', 1000);
+  assert.equal(slow.quick, false);
+  await page.waitForSelector('#panel-stage[data-follow="settled"]', { state: 'attached' });
+  assert.equal(await page.evaluate(() => HR.background.startedIn.stage), 1, 'the long sweep in a worker');
+  assert.match(await figure(page, 'gain'), new RegExp(`^${cli('analyze', await page.evaluate(() => HR.design.text())).ac.gain_db.toFixed(2)} dB`));
+
+  const back = await edit('analysis', 'points_per_decade', 50);
+  assert.deepEqual(back, { at: 1, quick: true, workers: 1 }, 'quick again: computed here at once');
+  assert.deepEqual(seen.errors, []);
   await page.close();
 });
