@@ -106,11 +106,12 @@
       container.append(el('h1', {}, 'Response'),
         el('p', { class: 'lede' }, 'The stage’s small-signal response over the analysis range of the design, with the finite, falling open-loop gain of the part included.'),
         el('div', { class: 'cards' }, figures, plotsCard));
-      // In a worker: a long sweep of a many-inverter part outlasts a frame (worker.js).
+      // Here when the core calls the design quick, else in a worker: a long sweep of a
+      // many-inverter part outlasts a frame (worker.js).
       const box = HR.background.runBox('response');
       figures.querySelector('h2').after(box.node);
       box.attach(HR.background.follow(container, {
-        job: (text) => HR.compare.along(HR.background.run('responseReport', [text], { lane: 'response', keep: true }), [['responseReport']]),
+        job: (text) => HR.compare.along(HR.background.run('responseReport', [text], { lane: 'response', keep: true, here: HR.background.quick(text) }), [['responseReport']]),
         delay: 0, quiet: HR.background.QUIET,
         render,
         report: (error) => { problem.textContent = HR.words(error); },
