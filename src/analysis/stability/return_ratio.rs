@@ -18,9 +18,15 @@ use crate::engine::{HessenbergSweep, Node, SmallSignal, Workspace};
 use crate::error::{FieldError, Result};
 use crate::input::{Input, Section};
 
-/// How near |T|² may be to 1 before `on_grid` takes `at`'s sample: far above the
-/// Hessenberg form's rounding (~10⁻¹² of |T| on the engine's pencils).
+/// How near |T|² may be to 1 before `on_grid` and `sample` take `at`'s sample: far
+/// above the Hessenberg form's rounding (~10⁻¹² of |T| on the engine's pencils).
 const GUARD: f64 = 1e-6;
+
+/// Whether a sample of the Hessenberg form is far enough from |T| = 1 to be on the
+/// same side of it as `at`'s.
+fn clear_of_unity(t: Complex64) -> bool {
+    (t.norm_sqr() - 1.0).abs() > GUARD
+}
 
 /// The stage with stage 1's gm broken out, ready to return T at any frequency.
 pub struct ReturnRatio {
@@ -31,6 +37,9 @@ pub struct ReturnRatio {
     work: RefCell<Workspace>,
     /// The natural frequencies of the broken loop (the poles of T), found once.
     open_poles: OnceCell<Vec<Complex64>>,
+    /// The pencil's Hessenberg form reading the controlling node, reduced once on
+    /// first use (`None` when it cannot be).
+    sweep: OnceCell<Option<RefCell<HessenbergSweep>>>,
 }
 
 impl ReturnRatio {
@@ -46,7 +55,7 @@ impl ReturnRatio {
             b[r] = Complex64::new(cut.delta, 0.0);
         }
         small.b = b;
-        Ok(ReturnRatio { small, control: cut.control, work: RefCell::default(), open_poles: OnceCell::new() })
+        Ok(ReturnRatio { small, control: cut.control, work: RefCell::default(), open_poles: OnceCell::new(), sweep: OnceCell::new() })
     }
 
     /// T at `f_hz`.
@@ -56,24 +65,41 @@ impl ReturnRatio {
         Ok(-self.small.layout.voltage(&work.x, self.control))
     }
 
+    /// The Hessenberg form, reduced on first use.
+    fn sweep(&self) -> Option<&RefCell<HessenbergSweep>> {
+        let small = &self.small;
+        let reduce = || small.layout.index(self.control).and_then(|i| HessenbergSweep::new(&small.g, &small.c, &small.b, &[i])).map(RefCell::new);
+        self.sweep.get_or_init(reduce).as_ref()
+    }
+
     /// T at each of `grid` (Hz), for the margins: samples of the Hessenberg form,
     /// several times cheaper than `at`'s LU, where the margins need only each
     /// sample's side of |T| = 1 and the phase steps between them — they refine every
-    /// crossing on `at`, and the phase carried along the grid telescopes to `at`'s
-    /// own there. The first sample (where the phase starts), any within `GUARD` of
-    /// |T| = 1 and any the form cannot solve are `at`'s, so the margins make the same
-    /// choices as on `at`'s samples and differ from them by rounding only.
+    /// crossing on `sample`, and the phase carried along the grid telescopes to the
+    /// exact samples' own there. The first sample (where the phase starts), any within
+    /// `GUARD` of |T| = 1 and any the form cannot solve are `at`'s, so the margins make
+    /// the same choices as on `at`'s samples and differ from them by rounding only.
     pub fn on_grid(&self, grid: &[f64]) -> Result<Vec<Complex64>> {
-        let small = &self.small;
-        let sweep = small.layout.index(self.control).and_then(|i| HessenbergSweep::new(&small.g, &small.c, &small.b, &[i]));
-        let Some(mut sweep) = sweep else { return grid.iter().map(|&f| self.at(f)).collect() };
+        let Some(sweep) = self.sweep() else { return grid.iter().map(|&f| self.at(f)).collect() };
         let omegas: Vec<f64> = grid.iter().map(|&f| std::f64::consts::TAU * f).collect();
         let (mut v, mut ok) = (vec![Complex64::default(); grid.len()], vec![false; grid.len()]);
-        sweep.solve_many(&omegas, &mut v, &mut ok);
+        sweep.borrow_mut().solve_many(&omegas, &mut v, &mut ok);
         grid.iter()
             .enumerate()
-            .map(|(k, &f)| if k > 0 && ok[k] && (v[k].norm_sqr() - 1.0).abs() > GUARD { Ok(-v[k]) } else { self.at(f) })
+            .map(|(k, &f)| if k > 0 && ok[k] && clear_of_unity(v[k]) { Ok(-v[k]) } else { self.at(f) })
             .collect()
+    }
+
+    /// T at `f_hz` from the Hessenberg form, for searches on |T| = 1 (the crossover's
+    /// bisection, the phase carried between samples): `at`'s within `GUARD` of
+    /// |T| = 1 or where the form cannot solve, so a search makes `at`'s choices and
+    /// its figure moves by rounding only (some 10⁻¹² of the phase margin).
+    pub fn sample(&self, f_hz: f64) -> Result<Complex64> {
+        let mut v = [Complex64::default()];
+        match self.sweep() {
+            Some(sweep) if sweep.borrow_mut().solve(std::f64::consts::TAU * f_hz, &mut v) && clear_of_unity(v[0]) => Ok(-v[0]),
+            _ => self.at(f_hz),
+        }
     }
 
     /// The natural frequencies of the circuit with the loop broken (rad/s).
