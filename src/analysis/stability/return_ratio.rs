@@ -82,12 +82,13 @@ impl ReturnRatio {
     pub fn on_grid(&self, grid: &[f64]) -> Result<Vec<Complex64>> {
         let Some(sweep) = self.sweep() else { return grid.iter().map(|&f| self.at(f)).collect() };
         let omegas: Vec<f64> = grid.iter().map(|&f| std::f64::consts::TAU * f).collect();
-        let (mut v, mut ok) = (vec![Complex64::default(); grid.len()], vec![false; grid.len()]);
-        sweep.borrow_mut().solve_many(&omegas, &mut v, &mut ok);
-        grid.iter()
-            .enumerate()
-            .map(|(k, &f)| if k > 0 && ok[k] && clear_of_unity(v[k]) { Ok(-v[k]) } else { self.at(f) })
-            .collect()
+        let (mut t, mut ok) = (vec![Complex64::default(); grid.len()], vec![false; grid.len()]);
+        sweep.borrow_mut().solve_many(&omegas, &mut t, &mut ok);
+        // In place: a collected Vec grows by doubling, a kilobyte or two a time.
+        for (k, (t, &f)) in t.iter_mut().zip(grid).enumerate() {
+            *t = if k > 0 && ok[k] && clear_of_unity(*t) { -*t } else { self.at(f)? };
+        }
+        Ok(t)
     }
 
     /// T at `f_hz` from the Hessenberg form, for searches on |T| = 1 (the crossover's
