@@ -50,14 +50,41 @@ pub struct SmallSignal {
     pub b: DVector<Complex64>,
     /// What each unknown is, in words, for naming the one a singular system
     /// leaves undetermined: a node with the elements at it, or a branch.
-    unknowns: Vec<String>,
+    unknowns: Unknowns,
+}
+
+/// Each unknown's words, packed in one string: a linearisation is made for every
+/// trial of a spread (twice, and cloned once), and a string each was some sixty
+/// small allocations a trial for a message that is almost never shown.
+#[derive(Debug, Clone, Default)]
+struct Unknowns {
+    text: String,
+    /// Where each unknown's words end in `text`.
+    ends: Vec<usize>,
+}
+
+impl Unknowns {
+    /// Unknown `k`'s words.
+    fn get(&self, k: usize) -> Option<&str> {
+        let start = k.checked_sub(1).map_or(Some(0), |j| self.ends.get(j).copied())?;
+        self.text.get(start..*self.ends.get(k)?)
+    }
+
+    /// Ends the words of the next unknown.
+    fn close(&mut self) {
+        self.ends.push(self.text.len());
+    }
 }
 
 impl SmallSignal {
     /// A linear system given by its matrices (no netlist: its unknowns are named by
     /// number), for checking the solver against another.
     pub fn of_matrices(layout: Layout, g: DMatrix<f64>, c: DMatrix<f64>, b: DVector<Complex64>) -> Self {
-        let unknowns = (0..layout.size).map(|k| format!("unknown {k}")).collect();
+        let mut unknowns = Unknowns::default();
+        for k in 0..layout.size {
+            unknowns.text.push_str(&format!("unknown {k}"));
+            unknowns.close();
+        }
         SmallSignal { layout, g, c, b, unknowns }
     }
 
@@ -141,18 +168,27 @@ impl SmallSignal {
 }
 
 /// Each unknown of `layout` in words: "the voltage of node `g1` (at r_in_ohm,
-/// r_fb_ohm, …)" or "the current of `source EMF`".
-fn describe_unknowns(netlist: &Netlist, layout: &Layout) -> Vec<String> {
-    let mut out: Vec<String> = (1..netlist.node_count()).map(|k| {
+/// r_fb_ohm, …)" or "the current of `source EMF`" (nodes first, then the branches
+/// in element order, as `Layout` numbers them).
+fn describe_unknowns(netlist: &Netlist, layout: &Layout) -> Unknowns {
+    let mut out = Unknowns { text: String::with_capacity(64 * layout.size), ends: Vec::with_capacity(layout.size) };
+    for k in 1..netlist.node_count() {
         let node = Node(k);
-        let at: Vec<&str> = netlist.elements().iter().filter(|e| touches(&e.element, node)).map(|e| e.name.as_str()).collect();
-        format!("the voltage of node `{}` (at {})", netlist.node_name(node), at.join(", "))
-    }).collect();
-    out.resize(layout.size, String::new());
-    for (k, named) in netlist.elements().iter().enumerate() {
-        if let Some(i) = layout.branch[k] {
-            out[i] = format!("the current of `{}`", named.name);
+        out.text.push_str("the voltage of node `");
+        out.text.push_str(netlist.node_name(node));
+        out.text.push_str("` (at ");
+        for (j, e) in netlist.elements().iter().filter(|e| touches(&e.element, node)).enumerate() {
+            out.text.push_str(if j == 0 { "" } else { ", " });
+            out.text.push_str(&e.name);
         }
+        out.text.push(')');
+        out.close();
+    }
+    for named in netlist.elements().iter().zip(&layout.branch).filter_map(|(named, b)| b.map(|_| named)) {
+        out.text.push_str("the current of `");
+        out.text.push_str(&named.name);
+        out.text.push('`');
+        out.close();
     }
     out
 }
@@ -186,5 +222,26 @@ pub fn check_finite(solution: &DVector<Complex64>, omega: f64) -> Result<()> {
         Ok(())
     } else {
         Err(singular(omega))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn each_unknown_is_named_by_its_node_and_elements_or_its_branch() {
+        let mut n = Netlist::new();
+        let (a, b) = (n.node("a"), n.node("b"));
+        n.add("V1", Element::VoltageSource { a, b: Node::GROUND, dc: 1.0, ac: 0.0 });
+        n.add("R1", Element::Resistor { a, b, ohms: 1e3 });
+        n.add("C1", Element::Capacitor { a: b, b: Node::GROUND, farads: 1e-9 });
+        n.add("L1", Element::Inductor { a: b, b: Node::GROUND, henries: 1e-6 });
+        let words = describe_unknowns(&n, &Layout::new(&n));
+        let want = ["the voltage of node `a` (at V1, R1)", "the voltage of node `b` (at R1, C1, L1)", "the current of `V1`", "the current of `L1`"];
+        for (k, w) in want.iter().enumerate() {
+            assert_eq!(words.get(k), Some(*w));
+        }
+        assert_eq!(words.get(want.len()), None);
     }
 }
