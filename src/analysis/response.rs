@@ -231,7 +231,7 @@ impl Linearised {
         remove_source(&mut n, &circuit);
         open(&mut n, Component::LoadOhm.key());
         open(&mut n, Component::LoadF.key());
-        let ports = TwoPort::new(&n, &op, nodes.input, nodes.output, z0)?;
+        let ports = TwoPort::of(n, &op, nodes.input, nodes.output, z0)?;
 
         let noise = noise_sources(part, &circuit, &op);
         let selector = output_selector(&main, nodes.output);

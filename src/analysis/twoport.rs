@@ -32,7 +32,13 @@ pub struct TwoPort {
 impl TwoPort {
     /// Terminates a copy of `netlist` (linearised at `op`) in z0 at both ports.
     pub fn new(netlist: &Netlist, op: &OperatingPoint, p1: Node, p2: Node, z0: f64) -> Result<Self> {
-        let mut n = netlist.clone();
+        Self::of(netlist.clone(), op, p1, p2, z0)
+    }
+
+    /// The same on `netlist` itself, for a caller whose copy is its own already
+    /// (a netlist's clone is a string per node and element).
+    pub fn of(netlist: Netlist, op: &OperatingPoint, p1: Node, p2: Node, z0: f64) -> Result<Self> {
+        let mut n = netlist;
         n.add("port 1", Element::Resistor { a: p1, b: Node::GROUND, ohms: z0 });
         n.add("port 2", Element::Resistor { a: p2, b: Node::GROUND, ohms: z0 });
         let small = SmallSignal::at(&n, op)?;

@@ -74,6 +74,8 @@ impl ComplexLu {
         let n = g.nrows();
         self.n = n;
         self.lu.clear();
+        // Room for all the rows at once: row by row, a new one's buffer grows 3 times.
+        self.lu.reserve(n * n);
         // G and C are column-major: read each row of the packed factors down them.
         let (g, c) = (&g.as_slice()[..n * n], &c.as_slice()[..n * n]);
         for i in 0..n {
@@ -95,6 +97,7 @@ impl<T: Entry> Lu<T> {
         let n = a.nrows();
         self.n = n;
         self.lu.clear();
+        self.lu.reserve(n * n);
         // `a` is column-major: read each row of the packed factors down it.
         let a = &a.as_slice()[..n * n];
         for i in 0..n {
@@ -115,6 +118,7 @@ impl<T: Entry> Lu<T> {
         self.rows.clear();
         self.rows.extend(0..n);
         self.pivot_inverses.clear();
+        self.pivot_inverses.reserve(n);
         for k in 0..n {
             let pivot = (k..n).max_by(|&i, &j| lu[i * n + k].magnitude2().total_cmp(&lu[j * n + k].magnitude2())).unwrap_or(k);
             let p = lu[pivot * n + k];
