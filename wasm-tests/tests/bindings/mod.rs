@@ -203,10 +203,14 @@ fn the_waveform_of_the_demo_as_csv() {
 
 #[wasm_bindgen_test]
 fn spread_trials_split_and_joined_give_the_whole_spread() {
-    // A small spread of the demo: trials 0..6 in two runs joined, then finished.
+    // A small spread of the demo: trials 0..6 in two runs joined, their statistics and
+    // the bounds, against the whole spread's summary in one call.
     let demo = wasm::demo_document();
     let document = demo.replacen("\"trials\": 2000", "\"trials\": 6", 1);
     let quiet = js_sys::Function::new_no_args("");
+    let shares = wasm::spread_shares(&document).unwrap();
+    assert_eq!(number(&shares, "trials"), 6.0);
+    assert!(number(&shares, "bounds_work") > 13.0, "the nominal figures, two corners a figure and two steps a quantity");
     let a = wasm::spread_trials(&document, 0, 4, &quiet).unwrap();
     let b = wasm::spread_trials(&document, 4, 6, &quiet).unwrap();
     let joined = js_sys::Object::new();
@@ -216,13 +220,19 @@ fn spread_trials_split_and_joined_give_the_whole_spread() {
         Reflect::set(&joined, &JsValue::from_str(key), &column).unwrap();
     }
     let columns = js_sys::JSON::stringify(&joined).unwrap().as_string().unwrap();
-    let report = wasm::spread_finish(&document, &columns).unwrap();
-    let summary = get(&report, "summary");
-    assert_eq!(number(&summary, "trials"), 6.0);
-    let gain = get(&summary, "gain_db");
-    assert!(number(&gain, "min") <= number(&gain, "mean") && number(&gain, "mean") <= number(&gain, "max"));
+    let whole = get(&wasm::spread_report(&document, &quiet).unwrap(), "summary");
+    let halves = [wasm::spread_statistics(&document, &columns).unwrap(), wasm::spread_bounds(&document).unwrap()];
+    let keys = |o: &JsValue| js_sys::Object::keys(&js_sys::Object::from(o.clone())).iter().map(|k| k.as_string().unwrap()).collect::<Vec<_>>();
+    let json = |v: JsValue| js_sys::JSON::stringify(&v).unwrap().as_string().unwrap();
+    for half in &halves {
+        for key in keys(half) {
+            assert_eq!(json(get(half, &key)), json(get(&whole, &key)), "{key}");
+        }
+    }
+    assert_eq!(keys(&halves[0]).len() + keys(&halves[1]).len(), keys(&whole).len(), "the two halves make the whole summary");
+    assert_eq!(number(&halves[0], "trials"), 6.0);
     // A bad join names the field.
-    let err = wasm::spread_finish(&document, "{\"gain_db\": [1]}").unwrap_err();
+    let err = wasm::spread_statistics(&document, "{\"gain_db\": [1]}").unwrap_err();
     assert_eq!(text(&err, "field"), "trials");
 }
 
