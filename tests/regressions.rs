@@ -246,3 +246,29 @@ fn the_large_signal_figures_are_the_same_without_the_transfer_curve() {
     assert!(skipped.transfer.is_none());
     assert_eq!(Value::from(halfrail::wire::to_json(&halfrail::wire::LargeSummary(&drawn))), Value::from(halfrail::wire::to_json(&halfrail::wire::LargeSummary(&skipped))));
 }
+
+/// Domain seed 1592591615: the gate held by an ideal source (no source resistance,
+/// R in a short), so the loop has nothing to return, T = 0 at every frequency and
+/// there is no phase margin. The spread's phase carried between grid points once
+/// sampled the Hessenberg form, whose rounding there has a phase of its own: it
+/// bisected for two minutes a trial. Every trial has no margin, at once.
+#[test]
+fn a_gate_held_by_an_ideal_source_has_no_loop_to_spread() {
+    let doc = json!({"halfrail":1,
+        "part":{"model":"ekv","vdd_v":2.997798474508939,"stages":1,"kn_a_per_v2":0.00010008070841868541,"kp_a_per_v2":0.00027112407596680384,
+            "vtn_v":0.5329269425115668,"vtp_v":-0.488584215121026,"lambda_n_per_v":0.07175153869089686,"lambda_p_per_v":0.15418955760348596,
+            "n_slope":1.3696836354867994,"temp_c":44.63349100970265,"cgs_f":6.603953064273054e-13,"cgd_f":1.7968171381319795e-12,"cdb_f":1.3404988677793157e-11},
+        "stage":{"c_fb_f":1.6626434392472393e-10,"load_f":5.826893722844259e-10,"r_fb_ohm":40637.121868156,"r_in_ohm":0.0,"r_out_ohm":0.0,"shunt_ohm":354425.55652516097},
+        "analysis":{"f_design_hz":9767.934050741464,"f_start_hz":74.92043650508052,"f_stop_hz":52542.29146271484,"points_per_decade":26,"z0_ohm":50.0},
+        "target":{"gain_db":20.251981635613436,"gain_tol_db":1.3982414931904434,"series":"E48"},
+        "tolerance":{"capacitor_pct":9.72987489132465,"k_pct":18.94079732975019,"resistor_pct":7.4473553710908735,"seed":1592591615,"trials":8,"vdd_pct":5.164468588293469,"vt_mv":78.98327782134591}});
+    let d = load(&doc.to_string()).unwrap();
+    let (part, stage) = d.part_and_stage().unwrap();
+    let lin = halfrail::analysis::Linearised::new(&part, &stage, 50.0).unwrap();
+    let ratio = halfrail::analysis::stability::ReturnRatio::new(&lin).unwrap();
+    assert_eq!(ratio.at(1e3).unwrap().norm(), 0.0, "nothing returns round the loop");
+    let spread = d.spread(&mut |_| {}).unwrap();
+    let margin = halfrail::analysis::spread::Figure::ALL.iter().position(|&f| f == halfrail::analysis::spread::Figure::PhaseMarginDeg).unwrap();
+    assert_eq!(spread.trials.len(), 8);
+    assert!(spread.trials.iter().all(|t| t.values[margin].is_none()), "no crossover, no margin");
+}

@@ -107,8 +107,8 @@ impl Setup {
         let growing = natural_frequencies(&small.g, &small.c)?.iter().filter(|&&s| grows(s)).count();
         let ratio = ReturnRatio::new(&lin)?;
         let t = ratio.on_grid(&self.grid)?;
-        let phase = continuous_phase(&self.grid, &t, |f| ratio.sample(f))?;
-        let (pm, _) = phase_margin(&self.grid, &t, &phase, |f| ratio.sample(f))?;
+        let phase = continuous_phase(&self.grid, &t, |f| ratio.at(f))?;
+        let (pm, _) = phase_margin(&self.grid, &t, &phase, |f| ratio.at(f))?;
         let (low, high) = lin.edges(self.f_design, p.av)?;
         let values = [gain, low, high, pm, Some(iq), p.nf_db()];
         Ok(Trial { values, growing: Some(growing) })

@@ -18,7 +18,7 @@ use crate::engine::{HessenbergSweep, Node, SmallSignal, Workspace};
 use crate::error::{FieldError, Result};
 use crate::input::{Input, Section};
 
-/// How near |T|² may be to 1 before `on_grid` and `sample` take `at`'s sample: far
+/// How near |T|² may be to 1 before `on_grid` takes `at`'s sample: far
 /// above the Hessenberg form's rounding (~10⁻¹² of |T| on the engine's pencils).
 const GUARD: f64 = 1e-6;
 
@@ -75,10 +75,14 @@ impl ReturnRatio {
     /// T at each of `grid` (Hz), for the margins: samples of the Hessenberg form,
     /// several times cheaper than `at`'s LU, where the margins need only each
     /// sample's side of |T| = 1 and the phase steps between them — they refine every
-    /// crossing on `sample`, and the phase carried along the grid telescopes to the
+    /// crossing on `at`, and the phase carried along the grid telescopes to the
     /// exact samples' own there. The first sample (where the phase starts), any within
     /// `GUARD` of |T| = 1 and any the form cannot solve are `at`'s, so the margins make
     /// the same choices as on `at`'s samples and differ from them by rounding only.
+    /// The searches between grid points stay on `at`: where T is exactly zero (an input
+    /// held by an ideal source leaves no loop), the form's rounding has a phase of its
+    /// own, and a phase carried across such samples bisected for minutes
+    /// (tests/regressions.rs).
     pub fn on_grid(&self, grid: &[f64]) -> Result<Vec<Complex64>> {
         let Some(sweep) = self.sweep() else { return grid.iter().map(|&f| self.at(f)).collect() };
         let omegas: Vec<f64> = grid.iter().map(|&f| std::f64::consts::TAU * f).collect();
@@ -89,18 +93,6 @@ impl ReturnRatio {
             *t = if k > 0 && ok[k] && clear_of_unity(*t) { -*t } else { self.at(f)? };
         }
         Ok(t)
-    }
-
-    /// T at `f_hz` from the Hessenberg form, for searches on |T| = 1 (the crossover's
-    /// bisection, the phase carried between samples): `at`'s within `GUARD` of
-    /// |T| = 1 or where the form cannot solve, so a search makes `at`'s choices and
-    /// its figure moves by rounding only (some 10⁻¹² of the phase margin).
-    pub fn sample(&self, f_hz: f64) -> Result<Complex64> {
-        let mut v = [Complex64::default()];
-        match self.sweep() {
-            Some(sweep) if sweep.borrow_mut().solve(std::f64::consts::TAU * f_hz, &mut v) && clear_of_unity(v[0]) => Ok(-v[0]),
-            _ => self.at(f_hz),
-        }
     }
 
     /// The natural frequencies of the circuit with the loop broken (rad/s).
