@@ -111,8 +111,8 @@ fn trials_that_oscillate_fail_the_yield() {
     let (_, l) = doc.stability().unwrap();
     assert!(!l.stable && l.poles_growing > 0, "{:?}", l.verdict);
     let r = doc.spread(&mut |_| {}).unwrap();
-    assert_eq!(r.nominal.growing, Some(l.poles_growing));
-    assert!(r.nominal.oscillates());
+    assert_eq!(r.bounds.nominal.growing, Some(l.poles_growing));
+    assert!(r.bounds.nominal.oscillates());
     assert_eq!((r.summary.trials, r.summary.oscillating, r.summary.unsolved), (40, 40, 0));
     assert_eq!(r.summary.yield_fraction, Some(0.0));
     // The gain alone would have passed most of them: the yield fell for the oscillation.
@@ -152,7 +152,7 @@ fn zero_tolerances_give_every_trial_the_nominal_figures_exactly() {
     let r = load(&doc.to_string()).unwrap().spread(&mut |_| {}).unwrap();
     for (k, stats) in r.summary.stats.iter().enumerate() {
         if let Some(s) = stats {
-            assert_eq!((s.min, s.max, s.std), (r.nominal.values[k].unwrap(), r.nominal.values[k].unwrap(), 0.0), "{}", Figure::ALL[k].key());
+            assert_eq!((s.min, s.max, s.std), (r.bounds.nominal.values[k].unwrap(), r.bounds.nominal.values[k].unwrap(), 0.0), "{}", Figure::ALL[k].key());
         }
     }
 }
@@ -205,7 +205,7 @@ fn demo_spread_text() -> String {
     let num = |v: Option<f64>| v.map_or("-".to_string(), |v| format!("{v:.11e}"));
     let row = |values: &[Option<f64>]| values.iter().map(|&v| num(v)).collect::<Vec<_>>().join(" ");
     let trial = |t: &halfrail::analysis::spread::Trial| format!("{} {}", t.growing.map_or("-".to_string(), |g| g.to_string()), row(&t.values));
-    let mut lines = vec![format!("nominal {}", trial(&r.nominal))];
+    let mut lines = vec![format!("nominal {}", trial(&r.bounds.nominal))];
     lines.extend(r.trials.iter().enumerate().map(|(i, t)| format!("trial {i} {}", trial(t))));
     let s = &r.summary;
     lines.push(format!("summary {} {} {} {}", s.trials, s.unsolved, s.oscillating, num(s.yield_fraction)));
@@ -213,8 +213,8 @@ fn demo_spread_text() -> String {
         let st = stats.unwrap();
         lines.push(format!("stats {k} {} {}", st.count, row(&[st.mean, st.std, st.min, st.max, st.p1, st.p99].map(Some))));
     }
-    lines.extend(r.swings.iter().enumerate().map(|(q, sw)| format!("swing {q} {}", row(&sw.per_figure))));
-    lines.extend(r.corners.iter().enumerate().map(|(k, c)| format!("corner {k} {}", row(&[c.low, c.high]))));
+    lines.extend(r.bounds.swings.iter().enumerate().map(|(q, sw)| format!("swing {q} {}", row(&sw.per_figure))));
+    lines.extend(r.bounds.corners.iter().enumerate().map(|(k, c)| format!("corner {k} {}", row(&[c.low, c.high]))));
     lines.join("\n") + "\n"
 }
 

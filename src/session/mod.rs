@@ -384,8 +384,7 @@ impl SpreadPlan {
 
     /// The statistics of `trials` (all of them, in order), with swings and corners.
     pub fn finish(&self, trials: Vec<crate::analysis::spread::Trial>) -> Result<SpreadResult> {
-        let SpreadBounds { nominal, swings, corners } = self.bounds()?;
-        Ok(SpreadResult { nominal, summary: self.summary(&trials), swings, corners, trials })
+        Ok(SpreadResult { summary: self.summary(&trials), bounds: self.bounds()?, trials })
     }
 
     /// The statistics of `trials` (all of them, in order) against the limits.
@@ -414,10 +413,8 @@ impl SpreadPlan {
 /// A spread and everything reported with it.
 #[derive(Debug, Clone, PartialEq)]
 pub struct SpreadResult {
-    pub nominal: crate::analysis::spread::Trial,
     pub summary: crate::analysis::spread::Summary,
-    pub swings: Vec<crate::analysis::spread::Swing>,
-    pub corners: Vec<crate::analysis::spread::Corner>,
+    pub bounds: SpreadBounds,
     /// Every trial's figures (the histograms).
     pub trials: Vec<crate::analysis::spread::Trial>,
 }

@@ -103,7 +103,7 @@ struct SummaryForm<'a> {
 
 impl<'a> From<SpreadSummary<'a>> for SummaryForm<'a> {
     fn from(SpreadSummary(r): SpreadSummary<'a>) -> Self {
-        SummaryForm { stats: StatsForm::of(&r.summary), bounds: BoundsForm::of(&r.nominal, &r.swings, &r.corners) }
+        SummaryForm { stats: StatsForm::of(&r.summary), bounds: BoundsForm::of(&r.bounds) }
     }
 }
 
@@ -149,7 +149,7 @@ pub struct SpreadBoundsOut<'a>(pub &'a SpreadBounds);
 
 impl<'a> From<SpreadBoundsOut<'a>> for BoundsForm<'a> {
     fn from(SpreadBoundsOut(b): SpreadBoundsOut<'a>) -> Self {
-        BoundsForm::of(&b.nominal, &b.swings, &b.corners)
+        BoundsForm::of(b)
     }
 }
 
@@ -163,12 +163,12 @@ struct BoundsForm<'a> {
 }
 
 impl<'a> BoundsForm<'a> {
-    fn of(nominal: &'a Trial, swings: &'a [Swing], corners: &'a [Corner]) -> Self {
+    fn of(b: &'a SpreadBounds) -> Self {
         BoundsForm {
-            nominal: &nominal.values,
-            nominal_oscillates: nominal.oscillates(),
-            swings: swings.iter().map(SwingOut).collect(),
-            corners: corners.iter().map(CornerOut).collect(),
+            nominal: &b.nominal.values,
+            nominal_oscillates: b.nominal.oscillates(),
+            swings: b.swings.iter().map(SwingOut).collect(),
+            corners: b.corners.iter().map(CornerOut).collect(),
         }
     }
 }

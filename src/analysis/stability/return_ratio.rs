@@ -18,15 +18,9 @@ use crate::engine::{HessenbergSweep, Node, SmallSignal, Workspace};
 use crate::error::{FieldError, Result};
 use crate::input::{Input, Section};
 
-/// How near |T|² may be to 1 before `on_grid` takes `at`'s sample: far
-/// above the Hessenberg form's rounding (~10⁻¹² of |T| on the engine's pencils).
+/// How near |T|² may be to 1 before `on_grid` takes `at`'s sample: far above the
+/// Hessenberg form's rounding (~10⁻¹² of |T| on the engine's pencils).
 const GUARD: f64 = 1e-6;
-
-/// Whether a sample of the Hessenberg form is far enough from |T| = 1 to be on the
-/// same side of it as `at`'s.
-fn clear_of_unity(t: Complex64) -> bool {
-    (t.norm_sqr() - 1.0).abs() > GUARD
-}
 
 /// The stage with stage 1's gm broken out, ready to return T at any frequency.
 pub struct ReturnRatio {
@@ -37,9 +31,6 @@ pub struct ReturnRatio {
     work: RefCell<Workspace>,
     /// The natural frequencies of the broken loop (the poles of T), found once.
     open_poles: OnceCell<Vec<Complex64>>,
-    /// The pencil's Hessenberg form reading the controlling node, reduced once on
-    /// first use (`None` when it cannot be).
-    sweep: OnceCell<Option<RefCell<HessenbergSweep>>>,
 }
 
 impl ReturnRatio {
@@ -55,7 +46,7 @@ impl ReturnRatio {
             b[r] = Complex64::new(cut.delta, 0.0);
         }
         small.b = b;
-        Ok(ReturnRatio { small, control: cut.control, work: RefCell::default(), open_poles: OnceCell::new(), sweep: OnceCell::new() })
+        Ok(ReturnRatio { small, control: cut.control, work: RefCell::default(), open_poles: OnceCell::new() })
     }
 
     /// T at `f_hz`.
@@ -65,32 +56,26 @@ impl ReturnRatio {
         Ok(-self.small.layout.voltage(&work.x, self.control))
     }
 
-    /// The Hessenberg form, reduced on first use.
-    fn sweep(&self) -> Option<&RefCell<HessenbergSweep>> {
-        let small = &self.small;
-        let reduce = || small.layout.index(self.control).and_then(|i| HessenbergSweep::new(&small.g, &small.c, &small.b, &[i])).map(RefCell::new);
-        self.sweep.get_or_init(reduce).as_ref()
-    }
-
     /// T at each of `grid` (Hz), for the margins: samples of the Hessenberg form,
     /// several times cheaper than `at`'s LU, where the margins need only each
     /// sample's side of |T| = 1 and the phase steps between them — they refine every
-    /// crossing on `at`, and the phase carried along the grid telescopes to the
-    /// exact samples' own there. The first sample (where the phase starts), any within
-    /// `GUARD` of |T| = 1 and any the form cannot solve are `at`'s, so the margins make
-    /// the same choices as on `at`'s samples and differ from them by rounding only.
-    /// The searches between grid points stay on `at`: where T is exactly zero (an input
-    /// held by an ideal source leaves no loop), the form's rounding has a phase of its
-    /// own, and a phase carried across such samples bisected for minutes
-    /// (tests/regressions.rs).
+    /// crossing on `at`, and the phase carried along the grid telescopes to `at`'s
+    /// own there. The first sample (where the phase starts), any within `GUARD` of
+    /// |T| = 1 and any the form cannot solve are `at`'s, so the margins make the same
+    /// choices as on `at`'s samples and differ from them by rounding only. The searches
+    /// between grid points stay on `at`: where T is exactly zero (an input held by an
+    /// ideal source leaves no loop), the form's rounding has a phase of its own, and a
+    /// phase carried across such samples bisected for minutes (tests/regressions.rs).
     pub fn on_grid(&self, grid: &[f64]) -> Result<Vec<Complex64>> {
-        let Some(sweep) = self.sweep() else { return grid.iter().map(|&f| self.at(f)).collect() };
+        let small = &self.small;
+        let sweep = small.layout.index(self.control).and_then(|i| HessenbergSweep::new(&small.g, &small.c, &small.b, &[i]));
+        let Some(mut sweep) = sweep else { return grid.iter().map(|&f| self.at(f)).collect() };
         let omegas: Vec<f64> = grid.iter().map(|&f| std::f64::consts::TAU * f).collect();
         let (mut t, mut ok) = (vec![Complex64::default(); grid.len()], vec![false; grid.len()]);
-        sweep.borrow_mut().solve_many(&omegas, &mut t, &mut ok);
+        sweep.solve_many(&omegas, &mut t, &mut ok);
         // In place: a collected Vec grows by doubling, a kilobyte or two a time.
         for (k, (t, &f)) in t.iter_mut().zip(grid).enumerate() {
-            *t = if k > 0 && ok[k] && clear_of_unity(*t) { -*t } else { self.at(f)? };
+            *t = if k > 0 && ok[k] && (t.norm_sqr() - 1.0).abs() > GUARD { -*t } else { self.at(f)? };
         }
         Ok(t)
     }

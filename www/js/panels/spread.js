@@ -2,9 +2,10 @@
 // Spread: what the parts' tolerances do to the stage. The core's Monte Carlo runs in
 // the background, its trials split between two workers (spreadTrials on two lanes, the
 // second with the swings and corners, spreadBounds), the columns joined in trial order
-// and summarised by spreadStatistics in a worker too: histograms of the figures, the yield against the target's limits, how
-// far each part's tolerance moves each figure (which part to buy tighter), the
-// worst-case corners, and the tolerances themselves (in the design, undoable).
+// and summarised by spreadStatistics in a worker too: histograms of the figures, the
+// yield against the target's limits, how far each part's tolerance moves each figure
+// (which part to buy tighter), the worst-case corners, and the tolerances themselves
+// (in the design, undoable).
 
 (() => {
   const { el, card, choice, table, fillRows } = HR.ui;
@@ -35,8 +36,8 @@
     const begun = performance.now();
     const shares = HR.call('spreadShares', text);
     if (shares.error) return { promise: Promise.resolve({ error: shares.error }), cancel() {} };
-    const { trials: n, bounds_work: bounds } = shares.ok;
-    const split = Math.min(n, Math.ceil((n + bounds) / 2));
+    const { trials: n, bounds_work: boundsWork } = shares.ok;
+    const split = Math.min(n, Math.ceil((n + boundsWork) / 2));
     const done = [0, 0];
     let stopped = false;
     const progress = (i, count) => (p) => {
@@ -48,12 +49,12 @@
       HR.background.calls([['spreadTrials', [text, split, n]], ['spreadBounds', [text]]], { lane: 'spread-1', onProgress: progress(1, n - split) }),
     ];
     const promise = (async () => {
-      const [first, second] = await Promise.all(runs.map((r) => r.promise));
-      const bad = [first, second].find((h) => h.error) || [first, second].find((h) => !h.ok);
+      const answers = await Promise.all(runs.map((r) => r.promise));
+      const bad = answers.find((h) => h.error) || answers.find((h) => !h.ok);
       if (bad || stopped) return bad || { cancelled: true };
-      const [rest, bounds] = second.ok;
+      const [first, [rest, bounds]] = answers.map((a) => a.ok);
       const trials = {};
-      for (const key of Object.keys(first.ok)) trials[key] = first.ok[key].concat(rest[key]);
+      for (const key of Object.keys(first)) trials[key] = first[key].concat(rest[key]);
       runs = [go('spreadStatistics', [text, JSON.stringify(trials)], 'spread-0')];
       const r = await runs[0].promise;
       if (!r.ok) return r;
